@@ -1,0 +1,7 @@
+/** Runs once when the server starts: the outbox worker resumes any mail left queued. */
+export async function register() {
+  if (process.env.NEXT_RUNTIME !== 'nodejs') return;
+  if (process.env.OUTBOX_WORKER === 'off') return;
+  const { startOutboxWorker } = await import('./lib/mail/outbox');
+  startOutboxWorker(Number(process.env.OUTBOX_INTERVAL_MS || 3000));
+}

@@ -1,0 +1,188 @@
+/**
+ * Numbers as students type them, their significant figures, and uncertainty propagation.
+ *
+ * The raw text is kept because "481" and "481.03" are different claims about precision,
+ * and the slip diagnosis needs to know how far a number may have been rounded.
+ */
+
+export interface TypedNumber {
+  value: number;
+  /** The text as typed (or the shortest decimal form of a JS number). */
+  text: string;
+  /** Significant figures; trailing zeros of an integer without a decimal point are not counted (ambiguous). */
+  sigFigs: number;
+  /** Power of ten of the last significant digit: 2885.98 → −2; 480 → 1. */
+  lastDigitPower: number;
+  /** Half a unit in the last significant digit: how far rounding may have moved the number. */
+  roundingHalfWidth: number;
+  /** False when the digits carry no precision information (a binary float with 15+ digits). */
+  precisionKnown: boolean;
+  /** Uncertainty given in the text, "2885.98(5)" or "481 ± 3", in the same unit. */
+  uncertainty?: number;
+}
+
+export type ParseNumberResult = ({ ok: true } & TypedNumber) | { ok: false; message: string };
+
+const SUP: Record<string, string> = {
+  '⁰': '0', '¹': '1', '²': '2', '³': '3', '⁴': '4', '⁵': '5', '⁶': '6', '⁷': '7', '⁸': '8', '⁹': '9', '⁻': '-', '⁺': '+',
+};
+
+interface Mantissa {
+  value: number;
+  sigFigs: number;
+  lastDigitPower: number;
+  concise?: number; // the "(5)" of 2885.98(5), in units of the last digit
+}
+
+const MANTISSA = /^([+-]?)(\d*)(?:[.,](\d*))?(?:\((\d+)\))?$/;
+
+function parseMantissa(text: string, exponent: number): Mantissa | string {
+  const m = MANTISSA.exec(text);
+  if (!m) return `"${text}" is not a number.`;
+  const [, sign, intPart = '', fracPart, concise] = m;
+  if (intPart === '' && (fracPart === undefined || fracPart === '')) return `"${text}" is not a number.`;
+  if (text.includes(',') && fracPart !== undefined && fracPart.length === 3 && /[1-9]/.test(intPart)) {
+    return `"${text}" is ambiguous: is the comma a decimal mark or a thousands separator? Write it without the comma or with a decimal point.`;
+  }
+  const frac = fracPart ?? '';
+  const digits = (intPart + frac).replace(/^0+/, '');
+  let sigFigs: number;
+  let lastDigitPower: number;
+  if (fracPart !== undefined) {
+    sigFigs = Math.max(1, digits.length);
+    lastDigitPower = -frac.length + exponent;
+  } else {
+    const trailingZeros = /0*$/.exec(intPart)?.[0].length ?? 0;
+    const stripped = digits.replace(/0+$/, '');
+    sigFigs = Math.max(1, stripped.length);
+    lastDigitPower = (digits.length === 0 ? 0 : trailingZeros) + exponent;
+  }
+  const value = Number(`${sign}${intPart || '0'}.${frac || '0'}e${exponent}`);
+  return { value, sigFigs, lastDigitPower, concise: concise === undefined ? undefined : Number(concise) };
+}
+
+function splitExponent(text: string): { mantissa: string; exponent: number } | string {
+  // 1.23e-4, 1.23E-4, 1.23×10^-4, 1.23x10-4, 1.23*10^-4, 1.23·10⁻⁴
+  const m = /^(.*?)(?:[eE]([+-]?\d+)|[x×*·]10(?:\^)?\(?([+-]?\d+)\)?)$/.exec(text);
+  if (!m) return { mantissa: text, exponent: 0 };
+  const exp = Number(m[2] ?? m[3]);
+  if (!Number.isFinite(exp) || Math.abs(exp) > 300) return `The exponent in "${text}" is out of range.`;
+  return { mantissa: m[1], exponent: exp };
+}
+
+function normalise(raw: string): string {
+  return raw
+    .normalize('NFC')
+    .replace(/[⁰¹²³⁴⁵⁶⁷⁸⁹⁻⁺]/g, (ch) => SUP[ch] ?? ch)
+    .replace(/[−–—]/g, '-')
+    .replace(/\+\/-|\+-/g, '±')
+    .replace(/[\s\u00a0\u2009\u202f']/g, '');
+}
+
+function parseSingle(text: string): Mantissa | string {
+  const split = splitExponent(text);
+  if (typeof split === 'string') return split;
+  return parseMantissa(split.mantissa, split.exponent);
+}
+
+/** Parses what a student typed: "2885.98", "1.6266e-27", "1.6266 × 10⁻²⁷", "2885.98(5)", "481 ± 3", "(4.81 ± 0.03) × 10²". */
+export function parseTypedNumber(input: unknown): ParseNumberResult {
+  if (typeof input === 'number') {
+    if (!Number.isFinite(input)) return { ok: false, message: 'The value is not a finite number.' };
+    const text = String(input);
+    const parsed = parseSingle(text.replace('e+', 'e'));
+    if (typeof parsed === 'string') return { ok: false, message: parsed };
+    // A JS number has lost its typed digits; 15+ significant digits are float noise, not precision.
+    const precisionKnown = parsed.sigFigs <= 12;
+    return finish(input, text, parsed, precisionKnown, undefined);
+  }
+  if (typeof input !== 'string') return { ok: false, message: 'The value must be a number or the text of a number.' };
+  const text = input.trim();
+  if (text === '') return { ok: false, message: 'The value is empty.' };
+  if (text.length > 100) return { ok: false, message: 'The value is too long to be a number.' };
+  const s = normalise(text);
+
+  // (a ± b) × 10^n
+  const grouped = /^\((.+)±(.+)\)(?:[eE]([+-]?\d+)|[x×*·]10\^?\(?([+-]?\d+)\)?)?$/.exec(s);
+  if (grouped) {
+    const exp = Number(grouped[3] ?? grouped[4] ?? 0);
+    const a = parseMantissa(grouped[1], exp);
+    const b = parseMantissa(grouped[2], exp);
+    if (typeof a === 'string') return { ok: false, message: a };
+    if (typeof b === 'string') return { ok: false, message: b };
+    return finish(a.value, text, a, true, Math.abs(b.value));
+  }
+  const parts = s.split('±');
+  if (parts.length > 2) return { ok: false, message: `"${text}" has more than one ±.` };
+  const main = parseSingle(parts[0]);
+  if (typeof main === 'string') return { ok: false, message: main };
+  let sigma: number | undefined;
+  if (parts.length === 2) {
+    const unc = parseSingle(parts[1]);
+    if (typeof unc === 'string') return { ok: false, message: `Uncertainty: ${unc}` };
+    sigma = Math.abs(unc.value);
+  } else if (main.concise !== undefined) {
+    sigma = main.concise * Math.pow(10, main.lastDigitPower);
+  }
+  return finish(main.value, text, main, true, sigma);
+}
+
+function finish(value: number, text: string, m: Mantissa, precisionKnown: boolean, uncertainty: number | undefined): ParseNumberResult {
+  if (!Number.isFinite(value)) return { ok: false, message: 'The value is not a finite number.' };
+  return {
+    ok: true,
+    value,
+    text,
+    sigFigs: m.sigFigs,
+    lastDigitPower: m.lastDigitPower,
+    roundingHalfWidth: precisionKnown ? 0.5 * Math.pow(10, m.lastDigitPower) : 0,
+    precisionKnown,
+    uncertainty: uncertainty !== undefined && Number.isFinite(uncertainty) ? uncertainty : undefined,
+  };
+}
+
+// ---------------------------------------------------------------------------------------
+// Significant figures against a stated uncertainty
+
+export type PrecisionVerdict = 'ok' | 'too-many-significant-figures' | 'too-few-significant-figures' | 'unknown';
+
+/**
+ * Common practice: quote the uncertainty to one or two significant figures and the value to
+ * the same decimal place. One digit beyond the uncertainty's leading digit is accepted (two-
+ * figure uncertainty); more is spurious precision. A value rounded coarser than its own
+ * uncertainty's leading digit throws information away.
+ */
+export function precisionAgainstUncertainty(typed: TypedNumber, uncertainty: number): PrecisionVerdict {
+  if (!typed.precisionKnown || !(uncertainty > 0) || !Number.isFinite(uncertainty)) return 'unknown';
+  const leading = Math.floor(Math.log10(uncertainty));
+  if (typed.lastDigitPower < leading - 1) return 'too-many-significant-figures';
+  if (typed.lastDigitPower > leading) return 'too-few-significant-figures';
+  return 'ok';
+}
+
+// ---------------------------------------------------------------------------------------
+// Propagation for products of powers, the form of every formula here (k ∝ ν̃²μ, r ∝ (μB)^−½).
+
+export interface PowerTerm {
+  value: number;
+  sigma: number;
+  power: number;
+}
+
+/** Relative standard uncertainty of Π xᵢ^pᵢ for uncorrelated xᵢ: (σ_f/f)² = Σ (pᵢ σᵢ/xᵢ)². */
+export function relativeUncertaintyOfProduct(terms: PowerTerm[]): number {
+  let sum = 0;
+  for (const t of terms) {
+    if (t.value === 0) continue;
+    const r = (t.power * t.sigma) / t.value;
+    sum += r * r;
+  }
+  return Math.sqrt(sum);
+}
+
+/** Combined standard uncertainty of uncorrelated contributions: √(Σ σᵢ²). */
+export function combinedUncertainty(...sigmas: (number | undefined)[]): number {
+  let sum = 0;
+  for (const s of sigmas) if (s !== undefined && Number.isFinite(s)) sum += s * s;
+  return Math.sqrt(sum);
+}

@@ -1,0 +1,113 @@
+/**
+ * Route-handler plumbing: every API route is wrapped in `route`, which refuses cross-site writes,
+ * turns HttpError and validation failures into JSON 4xx answers, and logs anything else as a 500.
+ */
+import { z, type ZodType } from 'zod';
+import { HttpError } from './http-error';
+
+export { HttpError };
+
+const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS']);
+export const MAX_JSON_BYTES = 1_000_000;
+const MAX_JSON_DEPTH = 20;
+
+export function json(body: unknown, status = 200, headers?: HeadersInit): Response {
+  return Response.json(body, { status, headers: { 'Cache-Control': 'no-store', ...headers } });
+}
+
+export function errorResponse(error: unknown): Response {
+  if (error instanceof HttpError) {
+    return json({ error: error.message, ...(error.fields ? { fields: error.fields } : {}) }, error.status);
+  }
+  console.error('[oscillab] unhandled error in route handler', error);
+  return json({ error: 'Something went wrong on our side. The error has been logged.' }, 500);
+}
+
+/**
+ * State-changing requests must come from a page of this site (common practice for CSRF
+ * protection with cookie sessions): the browser's Origin header, or Sec-Fetch-Site, must say so.
+ */
+export function assertSameOrigin(request: Request): void {
+  if (SAFE_METHODS.has(request.method)) return;
+  const site = request.headers.get('sec-fetch-site');
+  if (site === 'same-origin') return;
+  const origin = request.headers.get('origin');
+  if (!origin) throw new HttpError(403, 'Cross-site request refused: the Origin header is missing.');
+  const url = new URL(request.url);
+  const host = request.headers.get('x-forwarded-host') ?? request.headers.get('host') ?? url.host;
+  const allowed = new Set([url.origin, `${url.protocol}//${host}`]);
+  if (process.env.APP_ORIGIN) allowed.add(process.env.APP_ORIGIN);
+  if (!allowed.has(origin)) throw new HttpError(403, 'Cross-site request refused.');
+}
+
+type Handler<C> = (request: Request, context: C) => Promise<Response>;
+
+export function route<C = unknown>(handler: Handler<C>): Handler<C> {
+  return async (request, context) => {
+    try {
+      assertSameOrigin(request);
+      return await handler(request, context);
+    } catch (error) {
+      return errorResponse(error);
+    }
+  };
+}
+
+function depth(value: unknown, level = 0): number {
+  if (level > MAX_JSON_DEPTH) return level;
+  if (value && typeof value === 'object') {
+    let max = level;
+    for (const v of Object.values(value)) max = Math.max(max, depth(v, level + 1));
+    return max;
+  }
+  return level;
+}
+
+export function fieldErrors(error: z.ZodError): Record<string, string[]> {
+  const out: Record<string, string[]> = {};
+  for (const issue of error.issues) {
+    const key = issue.path.join('.') || '_';
+    (out[key] ??= []).push(issue.message);
+  }
+  return out;
+}
+
+export function validate<T>(schema: ZodType<T>, data: unknown): T {
+  const parsed = schema.safeParse(data);
+  if (!parsed.success) {
+    const fields = fieldErrors(parsed.error);
+    const first = Object.entries(fields)[0];
+    throw new HttpError(400, first ? `Invalid input (${first[0]}): ${first[1][0]}` : 'Invalid input.', fields);
+  }
+  return parsed.data;
+}
+
+/** Read a JSON body of bounded size and depth, then validate it with the form's own zod schema. */
+export async function readJson<T>(request: Request, schema: ZodType<T>): Promise<T> {
+  const type = request.headers.get('content-type') ?? '';
+  if (!type.includes('application/json')) throw new HttpError(415, 'Send the request body as JSON (Content-Type: application/json).');
+  const declared = Number(request.headers.get('content-length') ?? 0);
+  if (declared > MAX_JSON_BYTES) throw new HttpError(413, 'The request body is too large.');
+  const text = await request.text();
+  if (Buffer.byteLength(text) > MAX_JSON_BYTES) throw new HttpError(413, 'The request body is too large.');
+  let data: unknown;
+  try {
+    data = JSON.parse(text);
+  } catch {
+    throw new HttpError(400, 'The request body is not valid JSON.');
+  }
+  if (depth(data) > MAX_JSON_DEPTH) throw new HttpError(400, 'The request body is nested too deeply.');
+  return validate(schema, data);
+}
+
+/** A positive integer id from a URL segment; anything else is simply not found. */
+export function idParam(value: string | undefined): number {
+  const n = Number(value);
+  if (!value || !/^\d{1,12}$/.test(value) || !Number.isSafeInteger(n) || n <= 0) throw new HttpError(404, 'Not found.');
+  return n;
+}
+
+export const schemas = {
+  id: z.number().int().positive().max(Number.MAX_SAFE_INTEGER),
+  shortText: (max = 200) => z.string().trim().min(1, 'Required.').max(max, `At most ${max} characters.`),
+};

@@ -1,0 +1,162 @@
+/**
+ * Outgoing mail goes through the email_outbox table: a row is written in the same transaction as
+ * the change it announces, and `deliverOutbox` sends due rows. A row is claimed by moving it to
+ * 'sending' with a lease (lockedUntil) in one conditional UPDATE, so several workers (or app
+ * instances) never send the same row twice; a worker that dies mid-send leaves the lease to
+ * expire and the row is retried. Failed sends back off exponentially.
+ */
+import fs from 'node:fs/promises';
+import { Op, type Transaction } from 'sequelize';
+import { models } from '@/models';
+import { sendMail, type MailMessage } from './transport';
+import { feedbackPath } from '@/lib/storage';
+
+const LEASE_MS = 60_000;
+const MAX_ATTEMPTS = 12;
+const backoffMs = (attempts: number) => Math.min(30 * 60_000, 5_000 * 2 ** Math.max(0, attempts - 1));
+
+export type QueuedMail = {
+  dedupeKey: string;
+  to: string;
+  subject: string;
+  text: string;
+  html?: string | null;
+  submissionId?: number | null;
+  feedbackDocumentId?: number | null;
+};
+
+/** Queue a message; a second call with the same dedupeKey is a no-op. */
+export async function queueEmail(mail: QueuedMail, transaction?: Transaction): Promise<void> {
+  const { EmailOutbox } = models();
+  const existing = await EmailOutbox.findOne({ where: { dedupeKey: mail.dedupeKey }, transaction });
+  if (existing) return;
+  await EmailOutbox.create(
+    {
+      dedupeKey: mail.dedupeKey,
+      toAddress: mail.to,
+      subject: mail.subject,
+      textBody: mail.text,
+      htmlBody: mail.html ?? null,
+      submissionId: mail.submissionId ?? null,
+      feedbackDocumentId: mail.feedbackDocumentId ?? null,
+      nextAttemptAt: new Date(),
+      lockedUntil: null,
+      lastError: null,
+      messageId: null,
+      sentAt: null,
+    },
+    { transaction },
+  );
+}
+
+async function claim(id: number, now: Date): Promise<boolean> {
+  const { EmailOutbox } = models();
+  const [count] = await EmailOutbox.update(
+    { status: 'sending', lockedUntil: new Date(now.getTime() + LEASE_MS) },
+    {
+      where: {
+        id,
+        [Op.or]: [
+          { status: 'queued', nextAttemptAt: { [Op.lte]: now } },
+          { status: 'sending', lockedUntil: { [Op.lt]: now } },
+        ],
+      },
+    },
+  );
+  return count === 1;
+}
+
+async function messageFor(row: InstanceType<ReturnType<typeof models>['EmailOutbox']>): Promise<MailMessage> {
+  const message: MailMessage = {
+    to: row.toAddress,
+    subject: row.subject,
+    text: row.textBody,
+    html: row.htmlBody ?? undefined,
+    headers: { 'X-Oscillab-Outbox-Id': String(row.id) },
+  };
+  if (row.feedbackDocumentId) {
+    const doc = await models().FeedbackDocument.findByPk(row.feedbackDocumentId);
+    if (doc) {
+      message.attachments = [
+        { filename: `feedback-${row.submissionId ?? doc.submissionId}.pdf`, content: await fs.readFile(feedbackPath(doc.storedName)), contentType: 'application/pdf' },
+      ];
+    }
+  }
+  return message;
+}
+
+export type DeliveryReport = { sent: number; failed: number; remaining: number };
+
+/** Send every due row once. Safe to run in several processes at the same time. */
+export async function deliverOutbox(options: { limit?: number; now?: () => Date } = {}): Promise<DeliveryReport> {
+  const { EmailOutbox } = models();
+  const now = options.now ?? (() => new Date());
+  const due = await EmailOutbox.findAll({
+    where: {
+      [Op.or]: [
+        { status: 'queued', nextAttemptAt: { [Op.lte]: now() } },
+        { status: 'sending', lockedUntil: { [Op.lt]: now() } },
+      ],
+    },
+    order: [['id', 'ASC']],
+    limit: options.limit ?? 500,
+  });
+  let sent = 0;
+  let failed = 0;
+  for (const row of due) {
+    if (!(await claim(row.id, now()))) continue;
+    try {
+      const { messageId } = await sendMail(await messageFor(row));
+      await row.update({ status: 'sent', sentAt: now(), messageId, lockedUntil: null, lastError: null, attempts: row.attempts + 1 });
+      sent++;
+    } catch (error) {
+      const attempts = row.attempts + 1;
+      await row.update({
+        status: attempts >= MAX_ATTEMPTS ? 'failed' : 'queued',
+        attempts,
+        lastError: error instanceof Error ? error.message.slice(0, 1000) : String(error),
+        nextAttemptAt: new Date(now().getTime() + backoffMs(attempts)),
+        lockedUntil: null,
+      });
+      failed++;
+    }
+  }
+  const remaining = await EmailOutbox.count({ where: { status: ['queued', 'sending'] } });
+  return { sent, failed, remaining };
+}
+
+/** Put a failed or sent row back in the queue (staff "resend"). */
+export async function requeue(id: number, dedupeSuffix?: string): Promise<void> {
+  const { EmailOutbox } = models();
+  const row = await EmailOutbox.findByPk(id);
+  if (!row) return;
+  if (row.status === 'sent' && dedupeSuffix) {
+    await queueEmail({
+      dedupeKey: `${row.dedupeKey}:${dedupeSuffix}`,
+      to: row.toAddress, subject: row.subject, text: row.textBody, html: row.htmlBody,
+      submissionId: row.submissionId, feedbackDocumentId: row.feedbackDocumentId,
+    });
+  } else {
+    await row.update({ status: 'queued', nextAttemptAt: new Date(), attempts: 0, lockedUntil: null });
+  }
+}
+
+let timer: NodeJS.Timeout | null = null;
+
+/** Run the worker in this process every few seconds (started by instrumentation.ts). */
+export function startOutboxWorker(intervalMs = 3000): void {
+  if (timer) return;
+  let running = false;
+  timer = setInterval(async () => {
+    if (running) return;
+    running = true;
+    try {
+      await deliverOutbox();
+    } catch (error) {
+      console.error('[oscillab] outbox worker', error);
+    } finally {
+      running = false;
+    }
+  }, intervalMs);
+  timer.unref?.();
+}

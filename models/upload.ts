@@ -1,0 +1,30 @@
+import { Model, type Sequelize, type InferAttributes, type InferCreationAttributes, type CreationOptional } from 'sequelize';
+import { col } from './_base';
+
+export type UploadKind = 'spectrum' | 'report';
+
+export class Upload extends Model<InferAttributes<Upload>, InferCreationAttributes<Upload>> {
+  declare id: CreationOptional<number>;
+  declare ownerId: number;
+  declare submissionId: number | null;
+  declare kind: UploadKind;
+  declare originalName: string;
+  /** Random name inside the upload directory; never derived from the original name. */
+  declare storedName: string;
+  declare sha256: string;
+  declare size: number;
+  declare contentType: string;
+  declare createdAt: CreationOptional<Date>;
+  declare updatedAt: CreationOptional<Date>;
+
+  static initModel(sequelize: Sequelize) {
+    Upload.init(
+      {
+        id: col.id, ownerId: col.fk(), submissionId: col.fk(true), kind: col.str(20), originalName: col.str(255),
+        storedName: col.str(100), sha256: col.str(64), size: { ...col.fk() }, contentType: col.str(100),
+        createdAt: col.date(false), updatedAt: col.date(false),
+      },
+      { sequelize, tableName: 'uploads' },
+    );
+  }
+}

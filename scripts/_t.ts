@@ -1,0 +1,10 @@
+import { simulateLineList, bandConstants } from '@/lib/grading/simulate';
+import { fitBand } from '@/lib/grading/fit';
+const lines = simulateLineList('H35Cl', { jMax: 12 });
+console.log(bandConstants('H35Cl'));
+const f = fitBand(lines, { centrifugal: true, species: 'H35Cl' });
+console.log(JSON.stringify({ ...f, residuals: undefined, covariance: undefined }, null, 1));
+const f2 = fitBand(lines, { centrifugal: false, species: 'H35Cl' });
+if (f2.ok) console.log(f2.nu0, f2.B0, f2.B1, f2.rms, f2.combinationDifferences);
+console.log(simulateLineList('H35Cl', { jMax: 3, isotopeChlorine: true }));
+console.log(fitBand([{branch:'P',J:0,wavenumber:1},{branch:'R',J:1,wavenumber:2},{branch:'R',J:1,wavenumber:3}]));

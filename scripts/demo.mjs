@@ -1,0 +1,60 @@
+#!/usr/bin/env node
+// `npm run demo`: migrate, seed, build, then run the app on :3000 and the mail catcher on :1025/:1080.
+import { spawn, spawnSync } from 'node:child_process';
+import crypto from 'node:crypto';
+import fs from 'node:fs';
+import path from 'node:path';
+import { createRequire } from 'node:module';
+
+const require = createRequire(import.meta.url);
+const { DEMO_PASSWORD } = require('../seeders/data/demo-cast.cjs');
+
+const run = (cmd, args, env = {}) => {
+  const r = spawnSync(cmd, args, { stdio: 'inherit', env: { ...process.env, ...env } });
+  if (r.status !== 0) process.exit(r.status ?? 1);
+};
+
+fs.mkdirSync('data', { recursive: true });
+const secretFile = path.join('data', '.session-secret');
+if (!fs.existsSync(secretFile)) fs.writeFileSync(secretFile, crypto.randomBytes(32).toString('hex'), { mode: 0o600 });
+const env = {
+  NEXTAUTH_SECRET: process.env.NEXTAUTH_SECRET || fs.readFileSync(secretFile, 'utf8').trim(),
+  NEXTAUTH_URL: process.env.NEXTAUTH_URL || 'http://localhost:3000',
+  SMTP_URL: process.env.SMTP_URL || 'smtp://127.0.0.1:1025',
+};
+
+console.log('\n▸ Migrating the database');
+run('npx', ['sequelize-cli', 'db:migrate'], env);
+console.log('\n▸ Seeding the demo (Northmere University, a fictional university)');
+run('npm', ['run', '--silent', 'db:seed'], env);
+if (process.env.SKIP_BUILD !== '1') {
+  console.log('\n▸ Building the app');
+  run('npx', ['next', 'build'], env);
+}
+
+const children = [
+  spawn(process.execPath, ['scripts/maildev.mjs', '1025', '1080'], { stdio: ['ignore', 'ignore', 'inherit'] }),
+  spawn('npx', ['next', 'start', '-p', '3000'], { stdio: 'inherit', env: { ...process.env, ...env } }),
+];
+const stop = () => { for (const c of children) c.kill('SIGTERM'); process.exit(0); };
+process.on('SIGINT', stop);
+process.on('SIGTERM', stop);
+
+const accounts = [
+  ['Site administrator', 'admin@northmere.example'],
+  ['Course lead (CHEM2041)', 'lead@northmere.example'],
+  ['Instructor (CHEM2041; also TA in PHYS2310)', 'instructor1@northmere.example'],
+  ['Instructor and course lead (PHYS2310)', 'instructor2@northmere.example'],
+  ['Teaching assistants', 'ta1@ … ta4@northmere.example'],
+  ['Students (60)', 'student01@ … student60@northmere.example'],
+];
+setTimeout(() => {
+  console.log('\n────────────────────────────────────────────────────────────');
+  console.log(' Oscillab demo is running');
+  console.log('   App:        http://localhost:3000   (sign in there)');
+  console.log('   Mail inbox: http://localhost:1080   (invitations and feedback land here)');
+  console.log(`   Password for every demo account: ${DEMO_PASSWORD}`);
+  for (const [role, email] of accounts) console.log(`   ${role.padEnd(44)} ${email}`);
+  console.log(' Stop with Ctrl+C.');
+  console.log('────────────────────────────────────────────────────────────\n');
+}, 2500);

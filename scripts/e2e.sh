@@ -1,0 +1,13 @@
+#!/usr/bin/env bash
+# Browser tests: a fresh demo database, a production build, then Playwright (which starts the app).
+set -euo pipefail
+cd "$(dirname "$0")/.."
+E2E_DIR=$(mktemp -d /tmp/oscillab-e2e-XXXX)
+export DATABASE_URL="sqlite:${E2E_DIR}/e2e.sqlite"
+export UPLOAD_DIR="${E2E_DIR}/uploads"
+export NEXTAUTH_SECRET=${NEXTAUTH_SECRET:-oscillab-test-secret}
+export NEXTAUTH_URL=http://localhost:3100
+npx sequelize-cli db:migrate > /dev/null
+npm run --silent db:seed > /dev/null
+npx next build > "${E2E_DIR}/build.log" 2>&1 || { tail -50 "${E2E_DIR}/build.log"; exit 1; }
+npx playwright test

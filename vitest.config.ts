@@ -1,0 +1,30 @@
+import { defineConfig } from 'vitest/config';
+import path from 'node:path';
+
+const alias = { '@': path.resolve(__dirname) };
+
+export default defineConfig({
+  resolve: { alias },
+  test: {
+    projects: [
+      {
+        resolve: { alias },
+        test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node' },
+      },
+      {
+        resolve: { alias },
+        test: {
+          name: 'integration',
+          include: ['tests/integration/**/*.test.ts'],
+          environment: 'node',
+          setupFiles: ['tests/integration/setup.ts'],
+          // Each file gets its own temporary database; files run one after another
+          // so they never fight over the shared mail catcher.
+          fileParallelism: false,
+          testTimeout: 30000,
+          hookTimeout: 60000,
+        },
+      },
+    ],
+  },
+});
