@@ -27,6 +27,8 @@ const securityHeaders = [
 const nextConfig = {
   serverExternalPackages: ['sequelize', 'sqlite3', 'pg', 'pg-hstore', 'jcampconverter', 'nodemailer', 'formidable'],
   poweredByHeader: false,
+  // Separate build folders let several checkouts' builds (or helpers) run side by side.
+  distDir: process.env.NEXT_DIST_DIR || '.next',
   async headers() {
     return [{ source: '/:path*', headers: securityHeaders }];
   },

@@ -1,0 +1,529 @@
+/**
+ * Plots as plain data, then an SVG renderer. The model holds only numbers (pixels from
+ * the top-left corner) and strings, so the PDF builder can draw the same plot with pdf-lib.
+ *
+ * Band plots follow the usual infrared practice: wavenumber decreases from left to right.
+ */
+import type { LinePeakComparison, Peak, ReportedLine } from './peaks';
+import { toAbsorbance } from './peaks';
+import type { Spectrum } from './types';
+
+export type MarkerShape = 'triangle-down' | 'circle' | 'diamond' | 'tick';
+export type MarkerGroup = 'P' | 'R' | 'unassigned' | 'peak';
+
+export interface PlotTick {
+  value: number;
+  /** Pixel position along the axis (x for the x axis, y for the y axis). */
+  pos: number;
+  label: string;
+}
+
+export interface PlotAxis {
+  label: string;
+  min: number;
+  max: number;
+  /** True when values decrease along the axis's drawing direction (left→right, or bottom→top). */
+  reversed: boolean;
+  ticks: PlotTick[];
+}
+
+export interface PlotArea {
+  left: number;
+  top: number;
+  width: number;
+  height: number;
+}
+
+export interface PlotMarker {
+  x: number;
+  y: number;
+  shape: MarkerShape;
+  group: MarkerGroup;
+  /** Solid when the line matched a peak (or was not checked); hollow when it matched none. */
+  fill: 'solid' | 'hollow';
+  /** Data value along x (wavenumber or m). */
+  value: number;
+  label?: string;
+  /** Degrees, counter-clockwise positive as in pdf-lib; SVG rotates by the negative. */
+  labelAngle?: number;
+  labelX?: number;
+  labelY?: number;
+  /** Vertical guide from y1 to y2 (pixels), dashed when hollow. */
+  guide?: { y1: number; y2: number };
+  /** One sentence for a tooltip or screen reader. */
+  note: string;
+}
+
+export interface LegendItem {
+  x: number;
+  y: number;
+  shape: MarkerShape;
+  group: MarkerGroup;
+  fill: 'solid' | 'hollow';
+  text: string;
+}
+
+export interface PlotModel {
+  kind: 'band' | 'residual';
+  width: number;
+  height: number;
+  area: PlotArea;
+  xAxis: PlotAxis;
+  yAxis: PlotAxis;
+  /** Polyline through the data, as [x, y] pixel pairs (empty for the residual plot). */
+  curve: [number, number][];
+  markers: PlotMarker[];
+  /** Pixel y of the zero line (residual plot), else null. */
+  zeroLine: number | null;
+  legend: LegendItem[];
+  /** A plain-language summary for screen readers. */
+  description: string;
+}
+
+const MARKER_SIZE = 7;
+
+/** Tick values at 1, 2 or 5 × 10ⁿ, about `target` of them. */
+export function niceTicks(min: number, max: number, target = 6): { values: number[]; decimals: number } {
+  if (!(max > min)) return { values: [min], decimals: 0 };
+  const raw = (max - min) / Math.max(1, target);
+  const mag = 10 ** Math.floor(Math.log10(raw));
+  const norm = raw / mag;
+  const step = (norm < 1.5 ? 1 : norm < 3.5 ? 2 : norm < 7.5 ? 5 : 10) * mag;
+  const decimals = Math.max(0, -Math.floor(Math.log10(step) + 1e-9));
+  const values: number[] = [];
+  for (let v = Math.ceil(min / step - 1e-9) * step; v <= max + step * 1e-9; v += step) {
+    values.push(Number(v.toFixed(decimals)));
+  }
+  return { values, decimals };
+}
+
+function round2(v: number): number {
+  return Math.round(v * 100) / 100;
+}
+
+function formatTick(v: number, decimals: number): string {
+  // U+2212 minus, as typeset.
+  return v.toFixed(decimals).replace(/^-/, '−');
+}
+
+function lineLabelOf(l: ReportedLine): string {
+  return l.branch !== undefined && l.J !== undefined ? `${l.branch}(${l.J})` : '';
+}
+
+/** Keeps, per pixel column, the first, lowest and highest point, so peaks survive thinning. */
+function thin(points: [number, number][], columns: number): [number, number][] {
+  if (points.length <= columns * 3) return points;
+  const out: [number, number][] = [];
+  let col = Math.floor(points[0][0]);
+  let bucket: [number, number][] = [];
+  const flush = () => {
+    if (bucket.length === 0) return;
+    let lo = bucket[0];
+    let hi = bucket[0];
+    for (const p of bucket) {
+      if (p[1] < lo[1]) lo = p;
+      if (p[1] > hi[1]) hi = p;
+    }
+    const keep = [bucket[0], lo, hi, bucket[bucket.length - 1]];
+    const seen = new Set<[number, number]>();
+    for (const p of keep.sort((a, b) => a[0] - b[0])) {
+      if (!seen.has(p)) {
+        seen.add(p);
+        out.push(p);
+      }
+    }
+    bucket = [];
+  };
+  for (const p of points) {
+    const c = Math.floor(p[0]);
+    if (c !== col) {
+      flush();
+      col = c;
+    }
+    bucket.push(p);
+  }
+  flush();
+  return out;
+}
+
+export interface BandPlotInput {
+  spectrum: Spectrum;
+  lines?: ReportedLine[];
+  peaks?: Peak[];
+  /** When given, lines with no peak within tolerance are drawn hollow. */
+  comparison?: LinePeakComparison;
+  width?: number;
+  height?: number;
+  /** Wavenumber range to show, cm⁻¹; by default the reported lines with a margin, else the whole spectrum. */
+  xRange?: [number, number];
+  /** Plot absorbance even for a transmittance spectrum. */
+  asAbsorbance?: boolean;
+}
+
+export function bandPlotModel(input: BandPlotInput): PlotModel {
+  const width = input.width ?? 720;
+  const height = input.height ?? 380;
+  const { spectrum } = input;
+  const lines = input.lines ?? [];
+  const peaks = input.peaks ?? [];
+  const n = spectrum.x.length;
+  const useAbsorbance = input.asAbsorbance === true && spectrum.yKind === 'transmittance';
+  const yValues = useAbsorbance ? toAbsorbance(spectrum) : spectrum.y;
+  const yIsAbsorbance = useAbsorbance || spectrum.yKind === 'absorbance';
+
+  let [xmin, xmax] = input.xRange ?? [spectrum.x[0], spectrum.x[n - 1]];
+  if (!input.xRange && lines.length > 0) {
+    const lo = Math.min(...lines.map((l) => l.wavenumber));
+    const hi = Math.max(...lines.map((l) => l.wavenumber));
+    const pad = Math.max(15, 0.08 * (hi - lo));
+    xmin = Math.max(spectrum.x[0], lo - pad);
+    xmax = Math.min(spectrum.x[n - 1], hi + pad);
+    if (!(xmax > xmin)) [xmin, xmax] = [lo - pad, hi + pad];
+  }
+  if (xmin > xmax) [xmin, xmax] = [xmax, xmin];
+  if (xmax === xmin) {
+    xmin -= 1;
+    xmax += 1;
+  }
+
+  let ymin = Infinity;
+  let ymax = -Infinity;
+  for (let i = 0; i < n; i++) {
+    if (spectrum.x[i] < xmin || spectrum.x[i] > xmax) continue;
+    ymin = Math.min(ymin, yValues[i]);
+    ymax = Math.max(ymax, yValues[i]);
+  }
+  if (!Number.isFinite(ymin)) {
+    ymin = 0;
+    ymax = 1;
+  }
+  if (ymax === ymin) {
+    ymin -= 0.5;
+    ymax += 0.5;
+  }
+  const ypad = 0.05 * (ymax - ymin);
+  ymin -= ypad;
+  ymax += ypad;
+
+  const hasMarkers = lines.length > 0;
+  const legendHeight = hasMarkers || peaks.length > 0 ? 22 : 0;
+  const area: PlotArea = {
+    left: 68,
+    top: hasMarkers ? 16 + 58 : 16,
+    width: width - 68 - 18,
+    height: 0,
+  };
+  area.height = height - area.top - 48 - legendHeight;
+  const px = (v: number) => area.left + ((xmax - v) / (xmax - xmin)) * area.width; // decreasing to the right
+  const py = (v: number) => area.top + ((ymax - v) / (ymax - ymin)) * area.height;
+
+  const xt = niceTicks(xmin, xmax, Math.max(3, Math.round(area.width / 90)));
+  const yt = niceTicks(ymin, ymax, Math.max(3, Math.round(area.height / 50)));
+  const xAxis: PlotAxis = {
+    label: 'Wavenumber / cm⁻¹',
+    min: xmin,
+    max: xmax,
+    reversed: true,
+    ticks: xt.values.map((v) => ({ value: v, pos: round2(px(v)), label: formatTick(v, xt.decimals) })),
+  };
+  const yAxis: PlotAxis = {
+    label: yIsAbsorbance ? 'Absorbance' : 'Transmittance',
+    min: ymin,
+    max: ymax,
+    reversed: false,
+    ticks: yt.values.map((v) => ({ value: v, pos: round2(py(v)), label: formatTick(v, yt.decimals) })),
+  };
+
+  const raw: [number, number][] = [];
+  for (let i = n - 1; i >= 0; i--) {
+    const xv = spectrum.x[i];
+    if (xv < xmin || xv > xmax) continue;
+    raw.push([px(xv), py(yValues[i])]);
+  }
+  const curve = thin(raw, Math.ceil(area.width)).map(([a, b]) => [round2(a), round2(b)] as [number, number]);
+
+  // Curve height at a wavenumber, for the guide lines.
+  const curveAt = (w: number): number => {
+    const xs = spectrum.x;
+    let lo = 0;
+    let hi = n - 1;
+    if (w <= xs[0]) return py(yValues[0]);
+    if (w >= xs[hi]) return py(yValues[hi]);
+    while (hi - lo > 1) {
+      const mid = (lo + hi) >> 1;
+      if (xs[mid] <= w) lo = mid;
+      else hi = mid;
+    }
+    const t = (w - xs[lo]) / (xs[hi] - xs[lo]);
+    return py(yValues[lo] + t * (yValues[hi] - yValues[lo]));
+  };
+
+  const checkOf = new Map<ReportedLine, { matched: boolean; distance: number | null }>();
+  for (const c of input.comparison?.lines ?? []) checkOf.set(c.line, c);
+  const markerY = area.top - 10;
+  const markers: PlotMarker[] = [];
+  for (const l of lines) {
+    if (l.wavenumber < xmin || l.wavenumber > xmax) continue;
+    const label = lineLabelOf(l);
+    const group: MarkerGroup = l.branch === 'P' ? 'P' : l.branch === 'R' ? 'R' : 'unassigned';
+    const check = checkOf.get(l);
+    const hollow = check ? !check.matched : false;
+    const x = round2(px(l.wavenumber));
+    const name = label || 'Unassigned line';
+    const note =
+      `${name} at ${l.wavenumber} cm⁻¹` +
+      (check
+        ? check.matched
+          ? `, matches a peak (${(check.distance ?? 0) >= 0 ? '+' : '−'}${Math.abs(check.distance ?? 0).toFixed(2)} cm⁻¹)`
+          : ', no peak within tolerance'
+        : '');
+    markers.push({
+      x,
+      y: markerY,
+      shape: group === 'P' ? 'triangle-down' : group === 'R' ? 'circle' : 'diamond',
+      group,
+      fill: hollow ? 'hollow' : 'solid',
+      value: l.wavenumber,
+      label: label || undefined,
+      labelAngle: label ? 90 : undefined,
+      labelX: label ? x + 3.5 : undefined,
+      labelY: label ? markerY - MARKER_SIZE - 3 : undefined,
+      guide: { y1: round2(area.top), y2: round2(Math.min(area.top + area.height, Math.max(area.top, curveAt(l.wavenumber)))) },
+      note,
+    });
+  }
+  let yTop = -Infinity;
+  for (const v of spectrum.y) if (v > yTop) yTop = v;
+  const percent = spectrum.yKind === 'transmittance' && yTop > 1.5 ? 100 : 1;
+  for (const p of peaks) {
+    if (p.wavenumber < xmin || p.wavenumber > xmax) continue;
+    // Peak heights are absorbance; draw them on the axis shown.
+    const h = yIsAbsorbance ? p.height : 10 ** -p.height * percent;
+    markers.push({
+      x: round2(px(p.wavenumber)),
+      y: round2(Math.max(area.top, Math.min(area.top + area.height, py(h) + (yIsAbsorbance ? -6 : 6)))),
+      shape: 'tick',
+      group: 'peak',
+      fill: 'solid',
+      value: p.wavenumber,
+      note: `Peak picked at ${p.wavenumber.toFixed(2)} cm⁻¹`,
+    });
+  }
+
+  const legend: LegendItem[] = [];
+  if (legendHeight > 0) {
+    const items: Omit<LegendItem, 'x' | 'y'>[] = [];
+    const groups = new Set(markers.map((m) => m.group));
+    if (groups.has('P')) items.push({ shape: 'triangle-down', group: 'P', fill: 'solid', text: 'P branch' });
+    if (groups.has('R')) items.push({ shape: 'circle', group: 'R', fill: 'solid', text: 'R branch' });
+    if (groups.has('unassigned')) items.push({ shape: 'diamond', group: 'unassigned', fill: 'solid', text: 'unassigned' });
+    if (groups.has('peak')) items.push({ shape: 'tick', group: 'peak', fill: 'solid', text: 'picked peak' });
+    if (markers.some((m) => m.fill === 'hollow')) {
+      items.push({ shape: 'circle', group: 'unassigned', fill: 'hollow', text: 'hollow: no peak within tolerance' });
+    }
+    let lx = area.left;
+    const ly = height - 10;
+    for (const it of items) {
+      legend.push({ ...it, x: lx, y: ly });
+      lx += 22 + it.text.length * 6.2;
+    }
+  }
+
+  const countOf = (g: MarkerGroup) => markers.filter((m) => m.group === g).length;
+  const unmatched = markers.filter((m) => m.fill === 'hollow').length;
+  const description =
+    `${yIsAbsorbance ? 'Absorbance' : 'Transmittance'} from ${xmax.toFixed(0)} to ${xmin.toFixed(0)} cm⁻¹` +
+    (hasMarkers ? `, with ${countOf('P')} P-branch, ${countOf('R')} R-branch and ${countOf('unassigned')} unassigned reported lines` : '') +
+    (input.comparison ? `; ${unmatched} reported line${unmatched === 1 ? '' : 's'} match no peak` : '') +
+    (peaks.length > 0 ? `; ${countOf('peak')} picked peaks shown` : '') +
+    '.';
+
+  return { kind: 'band', width, height, area, xAxis, yAxis, curve, markers, zeroLine: null, legend, description };
+}
+
+export interface Residual {
+  /** Running index: m = J + 1 for R(J), m = −J for P(J). */
+  m: number;
+  /** Observed minus fitted position, cm⁻¹. */
+  residual: number;
+}
+
+export function residualPlotModel(residuals: Residual[], options: { width?: number; height?: number } = {}): PlotModel {
+  const width = options.width ?? 720;
+  const height = options.height ?? 260;
+  const ms = residuals.map((r) => r.m);
+  let xmin = ms.length ? Math.min(...ms) - 1 : -1;
+  let xmax = ms.length ? Math.max(...ms) + 1 : 1;
+  if (xmin === xmax) {
+    xmin -= 1;
+    xmax += 1;
+  }
+  const absMax = residuals.reduce((m, r) => Math.max(m, Math.abs(r.residual)), 0) || 0.1;
+  const ymax = absMax * 1.15;
+  const ymin = -ymax;
+  const legendHeight = 22;
+  const area: PlotArea = { left: 68, top: 16, width: width - 68 - 18, height: height - 16 - 48 - legendHeight };
+  const px = (v: number) => area.left + ((v - xmin) / (xmax - xmin)) * area.width;
+  const py = (v: number) => area.top + ((ymax - v) / (ymax - ymin)) * area.height;
+  const xt = niceTicks(xmin, xmax, Math.max(3, Math.round(area.width / 70)));
+  const xdec = 0;
+  const yt = niceTicks(ymin, ymax, Math.max(3, Math.round(area.height / 45)));
+  const xAxis: PlotAxis = {
+    label: 'Running index m',
+    min: xmin,
+    max: xmax,
+    reversed: false,
+    ticks: xt.values
+      .filter((v) => Number.isInteger(v))
+      .map((v) => ({ value: v, pos: round2(px(v)), label: formatTick(v, xdec) })),
+  };
+  const yAxis: PlotAxis = {
+    label: 'Residual / cm⁻¹',
+    min: ymin,
+    max: ymax,
+    reversed: false,
+    ticks: yt.values.map((v) => ({ value: v, pos: round2(py(v)), label: formatTick(v, yt.decimals) })),
+  };
+  const markers: PlotMarker[] = residuals.map((r) => {
+    const group: MarkerGroup = r.m < 0 ? 'P' : 'R';
+    const label = r.m < 0 ? `P(${-r.m})` : `R(${r.m - 1})`;
+    return {
+      x: round2(px(r.m)),
+      y: round2(py(r.residual)),
+      shape: group === 'P' ? 'triangle-down' : 'circle',
+      group,
+      fill: 'solid',
+      value: r.m,
+      note: `${label} (m = ${r.m}): residual ${r.residual >= 0 ? '+' : '−'}${Math.abs(r.residual).toFixed(3)} cm⁻¹`,
+    };
+  });
+  const ly = height - 10;
+  const legend: LegendItem[] = [
+    { x: area.left, y: ly, shape: 'triangle-down', group: 'P', fill: 'solid', text: 'P branch (m < 0)' },
+    { x: area.left + 140, y: ly, shape: 'circle', group: 'R', fill: 'solid', text: 'R branch (m > 0)' },
+  ];
+  const rms = residuals.length ? Math.sqrt(residuals.reduce((s, r) => s + r.residual ** 2, 0) / residuals.length) : 0;
+  const description = `Residuals of ${residuals.length} lines against m, largest ${absMax.toFixed(3)} cm⁻¹, root mean square ${rms.toFixed(3)} cm⁻¹.`;
+  return { kind: 'residual', width, height, area, xAxis, yAxis, curve: [], markers, zeroLine: round2(py(0)), legend, description };
+}
+
+export interface PlotColours {
+  curve: string;
+  axis: string;
+  grid: string;
+  P: string;
+  R: string;
+  unassigned: string;
+  peak: string;
+}
+
+export interface RenderSvgOptions {
+  title: string;
+  ariaLabel?: string;
+  /** Colours as CSS values; defaults use CSS variables with WCAG-AA-contrast fallbacks on white. */
+  colours?: Partial<PlotColours>;
+  fontFamily?: string;
+  /** Prefix for element ids, unique per page. */
+  idPrefix?: string;
+}
+
+const DEFAULT_COLOURS: PlotColours = {
+  curve: 'currentColor',
+  axis: 'currentColor',
+  grid: 'var(--plot-grid, #d4d4d4)',
+  P: 'var(--plot-branch-p, #a3400b)',
+  R: 'var(--plot-branch-r, #1d5a9e)',
+  unassigned: 'var(--plot-unassigned, #4d4d4d)',
+  peak: 'var(--plot-peak, #5c5c5c)',
+};
+
+function esc(s: string): string {
+  return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
+}
+
+function shapePath(shape: MarkerShape, x: number, y: number, s = MARKER_SIZE): string {
+  const h = s / 2;
+  switch (shape) {
+    case 'triangle-down':
+      return `M${round2(x - h)} ${round2(y - h)}H${round2(x + h)}L${round2(x)} ${round2(y + h)}Z`;
+    case 'diamond':
+      return `M${round2(x)} ${round2(y - h)}L${round2(x + h)} ${round2(y)}L${round2(x)} ${round2(y + h)}L${round2(x - h)} ${round2(y)}Z`;
+    case 'tick':
+      return `M${round2(x)} ${round2(y - h)}V${round2(y + h)}`;
+    case 'circle':
+      // Two arcs make a circle as a path, so every marker is one <path>.
+      return `M${round2(x - h)} ${round2(y)}a${h} ${h} 0 1 0 ${s} 0a${h} ${h} 0 1 0 ${-s} 0Z`;
+  }
+}
+
+function markerStyle(m: { group: MarkerGroup; fill: 'solid' | 'hollow'; shape: MarkerShape }, c: PlotColours): string {
+  const colour = c[m.group];
+  if (m.shape === 'tick') return `stroke:${colour};stroke-width:1.5;fill:none`;
+  return m.fill === 'solid' ? `fill:${colour};stroke:${colour};stroke-width:1` : `fill:none;stroke:${colour};stroke-width:1.5`;
+}
+
+/** An accessible SVG string: role="img", a <title> and <desc>, shapes that differ without colour. */
+export function renderSvg(model: PlotModel, options: RenderSvgOptions): string {
+  const c: PlotColours = { ...DEFAULT_COLOURS, ...(options.colours ?? {}) };
+  const id = (options.idPrefix ?? 'oscillab-plot').replace(/[^A-Za-z0-9_-]/g, '');
+  const font = options.fontFamily ?? 'inherit';
+  const { area, xAxis, yAxis } = model;
+  const bottom = area.top + area.height;
+  const right = area.left + area.width;
+  const o: string[] = [];
+  o.push(
+    `<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 ${model.width} ${model.height}" width="${model.width}" height="${model.height}" role="img" aria-labelledby="${id}-title" aria-describedby="${id}-desc"${options.ariaLabel ? ` aria-label="${esc(options.ariaLabel)}"` : ''} class="oscillab-plot oscillab-plot-${model.kind}" style="font-family:${esc(font)};font-size:11px">`,
+    `<title id="${id}-title">${esc(options.title)}</title>`,
+    `<desc id="${id}-desc">${esc(model.description)}</desc>`,
+  );
+  // Grid and axes.
+  o.push(`<g class="grid" style="stroke:${c.grid};stroke-width:0.5" aria-hidden="true">`);
+  for (const t of xAxis.ticks) o.push(`<line x1="${t.pos}" y1="${area.top}" x2="${t.pos}" y2="${bottom}"/>`);
+  for (const t of yAxis.ticks) o.push(`<line x1="${area.left}" y1="${t.pos}" x2="${right}" y2="${t.pos}"/>`);
+  o.push('</g>');
+  o.push(`<g class="axes" style="stroke:${c.axis};fill:none;stroke-width:1" aria-hidden="true">`);
+  o.push(`<rect x="${area.left}" y="${area.top}" width="${area.width}" height="${area.height}"/>`);
+  for (const t of xAxis.ticks) o.push(`<line x1="${t.pos}" y1="${bottom}" x2="${t.pos}" y2="${bottom + 5}"/>`);
+  for (const t of yAxis.ticks) o.push(`<line x1="${area.left - 5}" y1="${t.pos}" x2="${area.left}" y2="${t.pos}"/>`);
+  o.push('</g>');
+  o.push(`<g class="tick-labels" style="fill:${c.axis}" aria-hidden="true">`);
+  for (const t of xAxis.ticks) o.push(`<text x="${t.pos}" y="${bottom + 17}" text-anchor="middle" style="font-variant-numeric:tabular-nums">${esc(t.label)}</text>`);
+  for (const t of yAxis.ticks) o.push(`<text x="${area.left - 8}" y="${t.pos + 4}" text-anchor="end" style="font-variant-numeric:tabular-nums">${esc(t.label)}</text>`);
+  o.push(`<text x="${round2(area.left + area.width / 2)}" y="${bottom + 36}" text-anchor="middle" class="axis-label">${esc(xAxis.label)}</text>`);
+  const ylx = 16;
+  const yly = round2(area.top + area.height / 2);
+  o.push(`<text x="${ylx}" y="${yly}" text-anchor="middle" transform="rotate(-90 ${ylx} ${yly})" class="axis-label">${esc(yAxis.label)}</text>`);
+  o.push('</g>');
+  if (model.zeroLine !== null) {
+    o.push(`<line class="zero-line" x1="${area.left}" y1="${model.zeroLine}" x2="${right}" y2="${model.zeroLine}" style="stroke:${c.axis};stroke-dasharray:4 3" aria-hidden="true"/>`);
+  }
+  if (model.curve.length > 1) {
+    o.push(`<polyline class="spectrum" points="${model.curve.map(([x, y]) => `${x},${y}`).join(' ')}" style="fill:none;stroke:${c.curve};stroke-width:1;stroke-linejoin:round" aria-hidden="true"/>`);
+  }
+  o.push('<g class="markers">');
+  for (const m of model.markers) {
+    const colour = c[m.group];
+    o.push(`<g class="marker marker-${m.group}${m.fill === 'hollow' ? ' marker-unmatched' : ''}" data-value="${m.value}"${m.label ? ` data-label="${esc(m.label)}"` : ''}>`);
+    o.push(`<title>${esc(m.note)}</title>`);
+    if (m.guide) {
+      o.push(`<line x1="${m.x}" y1="${m.guide.y1}" x2="${m.x}" y2="${m.guide.y2}" style="stroke:${colour};stroke-width:0.75;${m.fill === 'hollow' ? 'stroke-dasharray:3 2;' : ''}opacity:0.8"/>`);
+    }
+    o.push(`<path d="${shapePath(m.shape, m.x, m.y)}" style="${markerStyle(m, c)}"/>`);
+    if (m.label && m.labelX !== undefined && m.labelY !== undefined) {
+      const angle = -(m.labelAngle ?? 0);
+      o.push(`<text x="${m.labelX}" y="${m.labelY}" transform="rotate(${angle} ${m.labelX} ${m.labelY})" style="fill:${colour};font-size:10px">${esc(m.label)}</text>`);
+    }
+    o.push('</g>');
+  }
+  o.push('</g>');
+  if (model.legend.length > 0) {
+    o.push('<g class="legend" aria-hidden="true">');
+    for (const l of model.legend) {
+      o.push(`<path d="${shapePath(l.shape, l.x + 5, l.y - 4)}" style="${markerStyle(l, c)}"/>`);
+      o.push(`<text x="${l.x + 14}" y="${l.y}" style="fill:${c.axis}">${esc(l.text)}</text>`);
+    }
+    o.push('</g>');
+  }
+  o.push('</svg>');
+  return o.join('\n');
+}
