@@ -18,15 +18,29 @@ export function createSequelize(): Sequelize {
     retry: { max: 8, match: [/SQLITE_BUSY/] },
     pool: { max: 1, min: 0, idle: 60000 },
   });
-  sequelize.addHook('afterConnect', async (connection: unknown) => {
-    const db = connection as { exec: (sql: string, cb: (err: Error | null) => void) => void };
-    await new Promise<void>((resolve, reject) =>
-      db.exec('PRAGMA journal_mode = WAL; PRAGMA foreign_keys = ON; PRAGMA busy_timeout = 5000; PRAGMA synchronous = NORMAL;', (err) =>
-        err ? reject(err) : resolve(),
-      ),
-    );
-  });
+  preparePerConnection(sequelize);
   return sequelize;
+}
+
+type SqliteConnection = { exec: (sql: string, cb: (err: Error | null) => void) => void };
+const SQLITE_PRAGMAS = 'PRAGMA journal_mode = WAL; PRAGMA foreign_keys = ON; PRAGMA busy_timeout = 5000; PRAGMA synchronous = NORMAL;';
+
+/**
+ * Sequelize's SQLite dialect opens a new connection per transaction and runs no connect hooks,
+ * so the pragmas (WAL journal, foreign keys, busy timeout) are applied to each new connection here.
+ */
+function preparePerConnection(sequelize: Sequelize): void {
+  const manager = sequelize.connectionManager as unknown as { getConnection: (o: unknown) => Promise<SqliteConnection> };
+  const open = manager.getConnection.bind(manager);
+  const prepared = new WeakSet<object>();
+  manager.getConnection = async (options: unknown) => {
+    const connection = await open(options);
+    if (!prepared.has(connection)) {
+      prepared.add(connection);
+      await new Promise<void>((resolve, reject) => connection.exec(SQLITE_PRAGMAS, (err) => (err ? reject(err) : resolve())));
+    }
+    return connection;
+  };
 }
 
 const globalForDb = globalThis as unknown as { oscillabSequelize?: Sequelize };

@@ -107,17 +107,21 @@ export async function deliverOutbox(options: { limit?: number; now?: () => Date 
     if (!(await claim(row.id, now()))) continue;
     try {
       const { messageId } = await sendMail(await messageFor(row));
-      await row.update({ status: 'sent', sentAt: now(), messageId, lockedUntil: null, lastError: null, attempts: row.attempts + 1 });
+      // Written by id, not through the stale instance: claim() changed the row behind its back.
+      await EmailOutbox.update({ status: 'sent', sentAt: now(), messageId, lockedUntil: null, lastError: null, attempts: row.attempts + 1 }, { where: { id: row.id } });
       sent++;
     } catch (error) {
       const attempts = row.attempts + 1;
-      await row.update({
-        status: attempts >= MAX_ATTEMPTS ? 'failed' : 'queued',
-        attempts,
-        lastError: error instanceof Error ? error.message.slice(0, 1000) : String(error),
-        nextAttemptAt: new Date(now().getTime() + backoffMs(attempts)),
-        lockedUntil: null,
-      });
+      await EmailOutbox.update(
+        {
+          status: attempts >= MAX_ATTEMPTS ? 'failed' : 'queued',
+          attempts,
+          lastError: error instanceof Error ? error.message.slice(0, 1000) : String(error),
+          nextAttemptAt: new Date(now().getTime() + backoffMs(attempts)),
+          lockedUntil: null,
+        },
+        { where: { id: row.id } },
+      );
       failed++;
     }
   }
@@ -137,7 +141,7 @@ export async function requeue(id: number, dedupeSuffix?: string): Promise<void> 
       submissionId: row.submissionId, feedbackDocumentId: row.feedbackDocumentId,
     });
   } else {
-    await row.update({ status: 'queued', nextAttemptAt: new Date(), attempts: 0, lockedUntil: null });
+    await EmailOutbox.update({ status: 'queued', nextAttemptAt: new Date(), attempts: 0, lockedUntil: null }, { where: { id } });
   }
 }
 

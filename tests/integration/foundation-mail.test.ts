@@ -1,0 +1,46 @@
+import { describe, expect, it } from 'vitest';
+import { sendMail } from '@/lib/mail/transport';
+import { deliverOutbox, queueEmail } from '@/lib/mail/outbox';
+import { renderEmail } from '@/lib/templates';
+import { models } from '@/models';
+import { mailTo, waitForMail } from '../helpers/maildev';
+
+describe('mail module', () => {
+  it('delivers a message to the local mail catcher', async () => {
+    const to = `mail-${Date.now()}@test.example`;
+    await sendMail({ to, subject: 'Oscillab mail check', text: 'Band centre 2885.9 cm⁻¹' });
+    const [mail] = await waitForMail(to);
+    expect(mail.subject).toBe('Oscillab mail check');
+    expect(mail.text).toContain('2885.9 cm⁻¹');
+  });
+
+  it('sends each outbox row exactly once, even when the worker runs twice at once', async () => {
+    const to = `outbox-${Date.now()}@test.example`;
+    const { subject, text } = renderEmail('test-message', { name: 'Test person' });
+    await queueEmail({ dedupeKey: `test:${to}`, to, subject, text });
+    await queueEmail({ dedupeKey: `test:${to}`, to, subject, text }); // the same logical message again
+    const [a, b] = await Promise.all([deliverOutbox(), deliverOutbox()]);
+    expect(a.sent + b.sent).toBe(1);
+    await new Promise((r) => setTimeout(r, 300));
+    expect(await mailTo(to)).toHaveLength(1);
+    const row = await models().EmailOutbox.findOne({ where: { dedupeKey: `test:${to}` } });
+    expect(row!.status).toBe('sent');
+    expect(row!.messageId).toBeTruthy();
+  });
+
+  it('keeps mail queued with back-off while SMTP is down, and sends it later', async () => {
+    const to = `down-${Date.now()}@test.example`;
+    const saved = process.env.SMTP_URL;
+    process.env.SMTP_URL = 'smtp://127.0.0.1:9'; // nothing listens there
+    await queueEmail({ dedupeKey: `down:${to}`, to, subject: 'Queued while down', text: 'x' });
+    const down = await deliverOutbox();
+    expect(down.failed).toBeGreaterThanOrEqual(1);
+    const row = await models().EmailOutbox.findOne({ where: { dedupeKey: `down:${to}` } });
+    expect(row!.status).toBe('queued');
+    expect(row!.nextAttemptAt.getTime()).toBeGreaterThan(Date.now());
+    process.env.SMTP_URL = saved;
+    const later = await deliverOutbox({ now: () => new Date(Date.now() + 60 * 60_000) });
+    expect(later.sent).toBeGreaterThanOrEqual(1);
+    expect(await waitForMail(to)).toHaveLength(1);
+  });
+});
