@@ -110,7 +110,8 @@ function tokensOf(fields: string[]): string[] {
   for (const f of fields) {
     if (f === '') continue;
     if (LABEL_RE.test(f)) out.push(f);
-    else out.push(...f.split(/\s+/).filter(Boolean));
+    // A stray separator left on a token ("R(2)," in a space-separated row) is dropped.
+    else out.push(...f.split(/\s+/).map((t) => t.replace(/[,;]$/, '')).filter(Boolean));
   }
   return out;
 }

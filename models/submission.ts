@@ -33,6 +33,8 @@ export class Submission extends Model<InferAttributes<Submission>, InferCreation
   declare releasedAt: Date | null;
   declare extraAttempts: CreationOptional<number>;
   declare resubmissionMessage: string | null;
+  /** The marker's overall comment, printed in the feedback (migration 20261201000600). */
+  declare markerComment: CreationOptional<string | null>;
   /** Optimistic-lock counter: a save names the version it started from. */
   declare version: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
@@ -48,7 +50,7 @@ export class Submission extends Model<InferAttributes<Submission>, InferCreation
         flagOutside: col.bool(), flagSlip: col.bool(), flagLate: col.bool(), flagDuplicate: col.bool(), flagSpectrumMismatch: col.bool(),
         proposedTotal: col.float(), awardedTotal: col.float(), maxTotal: col.float(),
         markedById: col.fk(true), markedAt: col.date(), releasedAt: col.date(), extraAttempts: col.int(0),
-        resubmissionMessage: col.text(true), version: col.int(0),
+        resubmissionMessage: col.text(true), markerComment: col.text(true), version: col.int(0),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
       { sequelize, tableName: 'submissions' },

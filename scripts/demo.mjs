@@ -21,6 +21,7 @@ const env = {
   NEXTAUTH_SECRET: process.env.NEXTAUTH_SECRET || fs.readFileSync(secretFile, 'utf8').trim(),
   NEXTAUTH_URL: process.env.NEXTAUTH_URL || 'http://localhost:3000',
   SMTP_URL: process.env.SMTP_URL || 'smtp://127.0.0.1:1025',
+  NEXT_TELEMETRY_DISABLED: '1',
 };
 
 console.log('\n▸ Migrating the database');

@@ -7,7 +7,8 @@ export DATABASE_URL="sqlite:${E2E_DIR}/e2e.sqlite"
 export UPLOAD_DIR="${E2E_DIR}/uploads"
 export NEXTAUTH_SECRET=${NEXTAUTH_SECRET:-oscillab-test-secret}
 export NEXTAUTH_URL=http://localhost:3100
+export NEXT_TELEMETRY_DISABLED=1
 npx sequelize-cli db:migrate > /dev/null
 npm run --silent db:seed > /dev/null
 npx next build > "${E2E_DIR}/build.log" 2>&1 || { tail -50 "${E2E_DIR}/build.log"; exit 1; }
-npx playwright test
+npx playwright test "$@"

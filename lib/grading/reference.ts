@@ -75,6 +75,8 @@ export const REFERENCE_TABLE: readonly ReferenceEntry[] = [
     bandOrigin: band(2558.53),
     textbookForceConstant: textbook(412),
   }),
+  // Caution: this row's Bₑ and rₑ disagree by 0.66 % through r = √(h/(8π²cμB)); one of the two
+  // remembered values is off. Kept as given in the shared table; checked in tests.
   row('H127I', 2309.014, 39.6435, undefined, 6.426365, 0.1689, 2.069e-4, 1.60916, MEMORY, { textbookForceConstant: textbook(314) }),
   row('H19F', 4138.32, 89.88, 0.9, 20.9557, 0.798, 2.151e-3, 0.91681, MEMORY, {
     bandOrigin: band(3961.42),

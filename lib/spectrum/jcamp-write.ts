@@ -48,9 +48,21 @@ export function evenSpacing(x: ArrayLike<number>): number | null {
   return dx;
 }
 
-function record(label: string, value: string | number): string {
-  const text = String(value).replace(/[\r\n]+/g, ' ').replace(/##/g, '# #');
-  return `##${label}=${text}`;
+/** One labelled record; long text values continue on following lines to keep lines within 80 characters. */
+function record(label: string, value: string | number, maxLen = 80): string {
+  const text = String(value).replace(/[\r\n]+/g, ' ').replace(/##/g, '# #').replace(/\$\$/g, '$ $');
+  const head = `##${label}=`;
+  if (head.length + text.length <= maxLen) return head + text;
+  const lines: string[] = [];
+  let current = head;
+  for (const word of text.split(' ')) {
+    if (current.length > head.length && current.length + 1 + word.length > maxLen) {
+      lines.push(current);
+      current = word;
+    } else current = current === head ? head + word : `${current} ${word}`;
+  }
+  lines.push(current);
+  return lines.join('\n');
 }
 
 /** Writes a JCAMP-DX 4.24 infrared spectrum. Throws when the points are not evenly spaced. */
@@ -64,7 +76,7 @@ export function toJcampDx(spectrum: Spectrum, meta: JcampMeta): string {
   const maxLen = meta.maxLineLength ?? 80;
   const ints = Array.from(y, (v) => Math.round(v / yFactor));
   const out: string[] = [
-    record('TITLE', meta.title),
+    record('TITLE', meta.title, Infinity),
     record('JCAMP-DX', '4.24'),
     record('DATA TYPE', 'INFRARED SPECTRUM'),
     record('ORIGIN', meta.origin ?? 'Oscillab'),

@@ -200,7 +200,13 @@ function readCsvNumber(cell: string, decimalComma: boolean): number {
 
 function parseCsv(text: string, maxPoints: number): SpectrumParse {
   const body = text.replace(/^\uFEFF/, '');
-  const probe = body.slice(0, 4096);
+  // The separator is read from data rows only: headings and comments may hold any punctuation.
+  const probe = body
+    .slice(0, 16384)
+    .split(/\r\n|\r|\n/)
+    .filter((r) => /^\s*"?[+-]?[\d.]/.test(r))
+    .slice(0, 50)
+    .join('\n');
   const delimiter = probe.includes('\t') ? '\t' : probe.includes(';') ? ';' : probe.includes(',') ? ',' : ' ';
   let rows: string[][];
   if (delimiter === ' ') {

@@ -319,7 +319,7 @@ export function bandPlotModel(input: BandPlotInput): PlotModel {
     if (groups.has('unassigned')) items.push({ shape: 'diamond', group: 'unassigned', fill: 'solid', text: 'unassigned' });
     if (groups.has('peak')) items.push({ shape: 'tick', group: 'peak', fill: 'solid', text: 'picked peak' });
     if (markers.some((m) => m.fill === 'hollow')) {
-      items.push({ shape: 'circle', group: 'unassigned', fill: 'hollow', text: 'hollow: no peak within tolerance' });
+      items.push({ shape: 'diamond', group: 'unassigned', fill: 'hollow', text: 'hollow marker: no peak within tolerance' });
     }
     let lx = area.left;
     const ly = height - 10;
@@ -334,7 +334,7 @@ export function bandPlotModel(input: BandPlotInput): PlotModel {
   const description =
     `${yIsAbsorbance ? 'Absorbance' : 'Transmittance'} from ${xmax.toFixed(0)} to ${xmin.toFixed(0)} cm⁻¹` +
     (hasMarkers ? `, with ${countOf('P')} P-branch, ${countOf('R')} R-branch and ${countOf('unassigned')} unassigned reported lines` : '') +
-    (input.comparison ? `; ${unmatched} reported line${unmatched === 1 ? '' : 's'} match no peak` : '') +
+    (input.comparison ? `; ${unmatched} reported line${unmatched === 1 ? ' matches' : 's match'} no peak` : '') +
     (peaks.length > 0 ? `; ${countOf('peak')} picked peaks shown` : '') +
     '.';
 
