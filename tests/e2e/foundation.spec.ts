@@ -29,11 +29,11 @@ for (const [email, path, heading] of homes) {
 
 test('a wrong password shows a generic error and stays on sign-in', async ({ page }) => {
   await signIn(page, 'ta2@northmere.example', 'not-the-password');
-  await expect(page.getByRole('alert')).toHaveText('E-mail or password not recognised.');
+  await expect(page.locator('form [role=alert]')).toHaveText('E-mail or password not recognised.');
   await expect(page).toHaveURL(/\/signin/);
   // An unknown account gets the very same words.
   await signIn(page, 'nobody@northmere.example', 'not-the-password');
-  await expect(page.getByRole('alert')).toHaveText('E-mail or password not recognised.');
+  await expect(page.locator('form [role=alert]')).toHaveText('E-mail or password not recognised.');
 });
 
 test('a student opening a staff URL gets the not-permitted page', async ({ page }) => {
