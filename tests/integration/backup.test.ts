@@ -21,7 +21,7 @@ async function tableChecksums(s: Sequelize): Promise<Record<string, string>> {
 }
 
 describe('database backup and restore', () => {
-  it('copies the database consistently while writes go on, and the restore brings it back', async () => {
+  it.skipIf(!process.env.DATABASE_URL?.startsWith('sqlite:'))('copies the database consistently while writes go on, and the restore brings it back', async () => {
     await buildWorld();
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'oscillab-backup-'));
     const backup = path.join(dir, 'copy.sqlite');

@@ -33,7 +33,7 @@ describe('migrations', () => {
     fs.rmSync(dir, { recursive: true, force: true });
   });
 
-  it('the app connection uses WAL, foreign keys and a busy timeout on SQLite', async () => {
+  it.skipIf(!process.env.DATABASE_URL?.startsWith('sqlite:'))('the app connection uses WAL, foreign keys and a busy timeout on SQLite', async () => {
     const { sequelize } = await import('@/lib/db');
     const s = sequelize();
     const [mode] = await s.query<{ journal_mode: string }>('PRAGMA journal_mode', { type: QueryTypes.SELECT });
