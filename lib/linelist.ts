@@ -39,6 +39,8 @@ export interface LineListParse {
 export const LINE_LIST_MAX_ROWS = 2000;
 /** Characters; generous for 2000 rows of a few columns each. */
 export const LINE_LIST_MAX_CHARS = 400_000;
+/** Characters in one row. */
+export const LINE_LIST_MAX_ROW_CHARS = 1000;
 /** Plausible positions for the bands Oscillab marks (fundamentals and overtones). */
 export const WAVENUMBER_MIN = 200;
 export const WAVENUMBER_MAX = 15000;
@@ -68,7 +70,12 @@ interface RowResult {
   decimalComma?: boolean;
 }
 
-const LABEL_RE = /^([PpRr])\s*(?:\(\s*([+-]?\d+)\s*\)|\[\s*([+-]?\d+)\s*\]|([+-]?\d+))$/;
+const LABEL_PATTERN = /^([PpRr])\s*(?:\(\s*([+-]?\d+)\s*\)|\[\s*([+-]?\d+)\s*\]|([+-]?\d+))$/;
+/** Labels are short; the length guard keeps the pattern's backtracking bounded on hostile input. */
+const LABEL_RE = {
+  test: (s: string) => s.length <= 24 && LABEL_PATTERN.test(s),
+  exec: (s: string) => (s.length <= 24 ? LABEL_PATTERN.exec(s) : null),
+};
 const BRANCH_RE = /^(?:[PpRr])$/;
 const UNIT_RE = /^(?:cm-1|cm\^-1|cm⁻¹|\/cm|1\/cm|cm\^\{-1\})$/i;
 const PLAIN_NUMBER_RE = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
@@ -79,7 +86,9 @@ const THOUSANDS_COMMA_DOT_RE = /^[+-]?\d{1,3}(?:,\d{3})+\.\d+$/; // 2,906.25
 /** Reads one numeric token; `allowDecimalComma` is false when commas separate fields. */
 function readNumber(token: string, allowDecimalComma: boolean): NumberRead | null {
   let t = token.trim().replace(/\u2212/g, '-'); // typographic minus
-  t = t.replace(/\s*(?:cm-1|cm\^-1|cm⁻¹|\/cm)$/i, '');
+  if (t.length > 40) return null; // no number is this long; also keeps the patterns below cheap
+  const unit = /(?:cm-1|cm\^-1|cm⁻¹|\/cm)$/i.exec(t);
+  if (unit) t = t.slice(0, unit.index).trimEnd();
   if (PLAIN_NUMBER_RE.test(t)) return { value: Number(t), decimalComma: false };
   if (allowDecimalComma) {
     if (DECIMAL_COMMA_RE.test(t)) return { value: Number(t.replace(',', '.')), decimalComma: true };
@@ -111,7 +120,12 @@ function tokensOf(fields: string[]): string[] {
     if (f === '') continue;
     if (LABEL_RE.test(f)) out.push(f);
     // A stray separator left on a token ("R(2)," in a space-separated row) is dropped.
-    else out.push(...f.split(/\s+/).map((t) => t.replace(/[,;]$/, '')).filter(Boolean));
+    else {
+      for (const t of f.split(/\s+/)) {
+        const clean = t.replace(/[,;]$/, '');
+        if (clean) out.push(clean);
+      }
+    }
   }
   return out;
 }
@@ -365,9 +379,12 @@ function attempt(rows: { text: string; line: number }[], delimiter: LineListDeli
     }
     const headerFields = splitRow(rows[start - 1].text, delimiter);
     const c = columnsFromHeader(headerFields);
-    // With space-separated text, header words and data cells only line up when their counts agree.
+    // With space-separated text, header words and data cells may not line up ("Wavenumber (cm-1)"
+    // is two words), so the header is used there only for a running-index column, which the
+    // values alone cannot reveal, and only when the counts agree.
     const aligned =
-      delimiter !== 'whitespace' || headerFields.length === splitRow(rows[start].text, delimiter).length;
+      delimiter !== 'whitespace' ||
+      (c?.m !== undefined && headerFields.length === splitRow(rows[start].text, delimiter).length);
     if (c && c.wavenumber !== undefined && aligned) cols = c;
     else if (c && c.wavenumber === undefined && delimiter !== 'whitespace') {
       warnings.push({
@@ -378,6 +395,10 @@ function attempt(rows: { text: string; line: number }[], delimiter: LineListDeli
   }
   for (let r = start; r < rows.length; r++) {
     const { text, line } = rows[r];
+    if (text.length > LINE_LIST_MAX_ROW_CHARS) {
+      errors.push({ line, message: `Line ${line}: the row is ${text.length} characters long; a line-list row has a few short cells.` });
+      continue;
+    }
     const raw = text.trim();
     const fields = splitRow(text, delimiter);
     const res = cols

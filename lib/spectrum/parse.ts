@@ -143,11 +143,24 @@ function xydataProblem(text: string): string | null {
 }
 
 function headerValue(text: string, label: string): string | undefined {
-  const m = new RegExp(String.raw`^\s*##\s*${label}\s*=\s*(.*)$`, 'im').exec(text);
+  // [ \t]* rather than \s*: a pattern that may cross newlines turns quadratic on blank-line padding.
+  const m = new RegExp(String.raw`^[ \t]*##[ \t]*${label}[ \t]*=[ \t]*(.*)$`, 'im').exec(text);
   return m ? m[1].trim() : undefined;
 }
 
-function parseJcamp(text: string, maxPoints: number): SpectrumParse {
+/** A single spectrum has a few dozen labelled records; more means a damaged or hostile file. */
+const JCAMP_MAX_RECORDS = 1000;
+
+function parseJcamp(raw: string, maxPoints: number): SpectrumParse {
+  // Blank-line runs carry nothing in JCAMP-DX, and jcampconverter slows down badly on them.
+  const text = raw.replace(/\r\n?/g, '\n').replace(/\n[ \t]*(?=\n)/g, '');
+  let records = 0;
+  for (let i = text.indexOf('##'); i !== -1; i = text.indexOf('##', i + 2)) {
+    if (i === 0 || text.charCodeAt(i - 1) === 10) records++;
+  }
+  if (records > JCAMP_MAX_RECORDS) {
+    return fail(`The JCAMP-DX file has ${records} labelled records; a single spectrum has a few dozen. Export one spectrum only.`);
+  }
   if (!/^\s*##\s*TITLE\s*=/i.test(text.replace(/^\uFEFF/, ''))) return fail('This is not a JCAMP-DX file: it must start with ##TITLE=.');
   // Refuse oversized files before the converter expands them.
   const declared = Number(headerValue(text, 'NPOINTS'));
@@ -160,7 +173,7 @@ function parseJcamp(text: string, maxPoints: number): SpectrumParse {
   if (/##\s*(NTUPLES|DATA\s*TABLE)\s*=/i.test(text)) {
     return fail('The JCAMP-DX file holds a multi-dimensional data table (##NTUPLES); export a single infrared spectrum with ##XYDATA.');
   }
-  const bad = xydataProblem(text);
+  const bad = xydataProblem(raw); // line numbers as in the file the student has
   if (bad) return fail(bad);
   let result;
   try {

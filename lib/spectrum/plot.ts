@@ -110,37 +110,38 @@ function lineLabelOf(l: ReportedLine): string {
   return l.branch !== undefined && l.J !== undefined ? `${l.branch}(${l.J})` : '';
 }
 
-/** Keeps, per pixel column, the first, lowest and highest point, so peaks survive thinning. */
-function thin(points: [number, number][], columns: number): [number, number][] {
-  if (points.length <= columns * 3) return points;
+/**
+ * The polyline through the points with index order `order`, thinned when dense: per pixel
+ * column it keeps the first, lowest, highest and last point, so peak tops survive.
+ */
+function polyline(n: number, xAt: (k: number) => number, yAt: (k: number) => number, columns: number): [number, number][] {
   const out: [number, number][] = [];
-  let col = Math.floor(points[0][0]);
-  let bucket: [number, number][] = [];
+  if (n <= columns * 3) {
+    for (let k = 0; k < n; k++) out.push([round2(xAt(k)), round2(yAt(k))]);
+    return out;
+  }
+  let col = Number.NaN;
+  let first = -1;
+  let lo = -1;
+  let hi = -1;
+  let last = -1;
   const flush = () => {
-    if (bucket.length === 0) return;
-    let lo = bucket[0];
-    let hi = bucket[0];
-    for (const p of bucket) {
-      if (p[1] < lo[1]) lo = p;
-      if (p[1] > hi[1]) hi = p;
-    }
-    const keep = [bucket[0], lo, hi, bucket[bucket.length - 1]];
-    const seen = new Set<[number, number]>();
-    for (const p of keep.sort((a, b) => a[0] - b[0])) {
-      if (!seen.has(p)) {
-        seen.add(p);
-        out.push(p);
-      }
-    }
-    bucket = [];
+    if (first < 0) return;
+    const keep = Array.from(new Set([first, lo, hi, last])).sort((p, q) => p - q);
+    for (const k of keep) out.push([round2(xAt(k)), round2(yAt(k))]);
   };
-  for (const p of points) {
-    const c = Math.floor(p[0]);
+  for (let k = 0; k < n; k++) {
+    const c = Math.floor(xAt(k));
+    const y = yAt(k);
     if (c !== col) {
       flush();
       col = c;
+      first = lo = hi = last = k;
+      continue;
     }
-    bucket.push(p);
+    if (y < yAt(lo)) lo = k;
+    if (y > yAt(hi)) hi = k;
+    last = k;
   }
   flush();
   return out;
@@ -173,8 +174,8 @@ export function bandPlotModel(input: BandPlotInput): PlotModel {
 
   let [xmin, xmax] = input.xRange ?? [spectrum.x[0], spectrum.x[n - 1]];
   if (!input.xRange && lines.length > 0) {
-    const lo = Math.min(...lines.map((l) => l.wavenumber));
-    const hi = Math.max(...lines.map((l) => l.wavenumber));
+    const lo = lines.reduce((m, l) => Math.min(m, l.wavenumber), Infinity);
+    const hi = lines.reduce((m, l) => Math.max(m, l.wavenumber), -Infinity);
     const pad = Math.max(15, 0.08 * (hi - lo));
     xmin = Math.max(spectrum.x[0], lo - pad);
     xmax = Math.min(spectrum.x[n - 1], hi + pad);
@@ -234,13 +235,13 @@ export function bandPlotModel(input: BandPlotInput): PlotModel {
     ticks: yt.values.map((v) => ({ value: v, pos: round2(py(v)), label: formatTick(v, yt.decimals) })),
   };
 
-  const raw: [number, number][] = [];
-  for (let i = n - 1; i >= 0; i--) {
-    const xv = spectrum.x[i];
-    if (xv < xmin || xv > xmax) continue;
-    raw.push([px(xv), py(yValues[i])]);
-  }
-  const curve = thin(raw, Math.ceil(area.width)).map(([a, b]) => [round2(a), round2(b)] as [number, number]);
+  // Points inside the range, drawn left to right (high wavenumber first).
+  let iHi = n - 1;
+  while (iHi >= 0 && spectrum.x[iHi] > xmax) iHi--;
+  let iLo = 0;
+  while (iLo < n && spectrum.x[iLo] < xmin) iLo++;
+  const count = Math.max(0, iHi - iLo + 1);
+  const curve = polyline(count, (k) => px(spectrum.x[iHi - k]), (k) => py(yValues[iHi - k]), Math.ceil(area.width));
 
   // Curve height at a wavenumber, for the guide lines.
   const curveAt = (w: number): number => {
@@ -352,8 +353,8 @@ export function residualPlotModel(residuals: Residual[], options: { width?: numb
   const width = options.width ?? 720;
   const height = options.height ?? 260;
   const ms = residuals.map((r) => r.m);
-  let xmin = ms.length ? Math.min(...ms) - 1 : -1;
-  let xmax = ms.length ? Math.max(...ms) + 1 : 1;
+  let xmin = ms.length ? ms.reduce((a, b) => Math.min(a, b)) - 1 : -1;
+  let xmax = ms.length ? ms.reduce((a, b) => Math.max(a, b)) + 1 : 1;
   if (xmin === xmax) {
     xmin -= 1;
     xmax += 1;

@@ -90,8 +90,15 @@ export function decodeText(bytes: Uint8Array): string {
   }
 }
 
-const NUM = String.raw`[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?`;
-const TWO_NUMBERS_RE = new RegExp(String.raw`^\s*"?(${NUM})"?\s*(?:[,;\t]|\s)\s*"?(${NUM})"?(?:\s*(?:[,;\t]|\s)\s*.*)?\s*$`);
+const NUMBER_CELL = /^"?[+-]?(?:\d+(?:[.,]\d*)?|[.,]\d+)(?:[eE][+-]?\d+)?"?$/;
+
+/** True when a row starts with two numbers. Tokenised without backtracking patterns, so long rows stay linear. */
+function startsWithTwoNumbers(row: string): boolean {
+  const t = row.replace(/\s+/g, ' ').trim();
+  const cells = t.split(/ ?[;,] ?| /, 3);
+  if (cells.length < 2) return false;
+  return cells[0].length <= 40 && cells[1].length <= 40 && NUMBER_CELL.test(cells[0]) && NUMBER_CELL.test(cells[1]);
+}
 
 /** Two numeric columns on nearly every data row, after at most a few heading or comment rows. */
 export function looksLikeNumericColumns(text: string): boolean {
@@ -103,7 +110,7 @@ export function looksLikeNumericColumns(text: string): boolean {
   for (const row of rows) {
     const t = row.trim();
     if (t === '' || t.startsWith('#')) continue;
-    if (TWO_NUMBERS_RE.test(t)) numeric++;
+    if (startsWithTwoNumbers(t)) numeric++;
     else if (numeric === 0 && leading < 10) leading++;
     else other++;
   }
