@@ -174,7 +174,7 @@ export function polynomialLeastSquares(x: ArrayLike<number>, y: ArrayLike<number
   const Y = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     const t = x[i] / scale;
-    for (let k = 0; k < p; k++) X[i * p + k] = Math.pow(t, powers[k]);
+    for (let k = 0; k < p; k++) X[i * p + k] = powers[k] === 0 ? 1 : powers[k] === 1 ? t : Math.pow(t, powers[k]);
     Y[i] = y[i];
   }
   const sol = leastSquares(X, n, p, Y);
@@ -201,7 +201,7 @@ export function validateLines(lines: unknown, parameterCount: number): { ok: tru
     return { ok: false, problems: [{ field: 'lines', message: `The line list has ${lines.length} lines; a fundamental band has at most a few hundred (limit ${MAX_LINES}). Paste the assigned lines only.` }] };
   }
   const out: Line[] = [];
-  const seen = new Map<string, number>();
+  const seen = new Map<number, number>();
   lines.forEach((raw: unknown, i: number) => {
     const where = `lines[${i}]`;
     const n = i + 1;
@@ -213,21 +213,21 @@ export function validateLines(lines: unknown, parameterCount: number): { ok: tru
     const branch = typeof r.branch === 'string' ? r.branch.trim().toUpperCase() : '';
     const J = typeof r.J === 'string' && r.J.trim() !== '' ? Number(r.J) : r.J;
     const wn = typeof r.wavenumber === 'string' && r.wavenumber.trim() !== '' ? Number(r.wavenumber) : r.wavenumber;
-    const name = `${branch || '?'}(${typeof J === 'number' && Number.isFinite(J) ? J : '?'})`;
+    const name = () => `${branch || '?'}(${typeof J === 'number' && Number.isFinite(J) ? J : '?'})`;
     if (branch !== 'P' && branch !== 'R') {
       problems.push({ field: `${where}.branch`, message: `Line ${n}: branch must be P or R, not "${String(r.branch)}".` });
       return;
     }
     if (typeof J !== 'number' || !Number.isInteger(J)) {
-      problems.push({ field: `${where}.J`, message: `Line ${n} (${name}): J must be a whole number.` });
+      problems.push({ field: `${where}.J`, message: `Line ${n} (${name()}): J must be a whole number.` });
       return;
     }
     if (J < 0) {
-      problems.push({ field: `${where}.J`, message: `Line ${n} (${name}): J cannot be negative.` });
+      problems.push({ field: `${where}.J`, message: `Line ${n} (${name()}): J cannot be negative.` });
       return;
     }
     if (J > 500) {
-      problems.push({ field: `${where}.J`, message: `Line ${n} (${name}): J = ${J} is far beyond any populated level.` });
+      problems.push({ field: `${where}.J`, message: `Line ${n} (${name()}): J = ${J} is far beyond any populated level.` });
       return;
     }
     if (branch === 'P' && J === 0) {
@@ -235,13 +235,13 @@ export function validateLines(lines: unknown, parameterCount: number): { ok: tru
       return;
     }
     if (typeof wn !== 'number' || !Number.isFinite(wn) || wn <= 0) {
-      problems.push({ field: `${where}.wavenumber`, message: `Line ${n} (${name}): the wavenumber must be a positive number of cm⁻¹.` });
+      problems.push({ field: `${where}.wavenumber`, message: `Line ${n} (${name()}): the wavenumber must be a positive number of cm⁻¹.` });
       return;
     }
-    const key = `${branch}${J}`;
+    const key = branch === 'R' ? J + 1 : -J;
     const earlier = seen.get(key);
     if (earlier !== undefined) {
-      problems.push({ field: where, message: `Line ${n} (${name}) repeats the assignment of line ${earlier + 1}; each line can be assigned only once.` });
+      problems.push({ field: where, message: `Line ${n} (${name()}) repeats the assignment of line ${earlier + 1}; each line can be assigned only once.` });
       return;
     }
     seen.set(key, i);

@@ -101,8 +101,18 @@ const SUPERSCRIPTS: Record<string, string> = {
   '⁰': '0', '¹': '1', '²': '2', '³': '3', '⁴': '4', '⁵': '5', '⁶': '6', '⁷': '7', '⁸': '8', '⁹': '9', '⁻': '-', '⁺': '+',
 };
 
+const squashCache = new Map<string, string>();
+
 /** Squash a typed unit to the table's spelling. */
 export function squashUnit(unit: string): string {
+  const hit = squashCache.get(unit);
+  if (hit !== undefined) return hit;
+  const out = squashUnitUncached(unit);
+  if (squashCache.size < 2000) squashCache.set(unit, out);
+  return out;
+}
+
+function squashUnitUncached(unit: string): string {
   let s = unit.normalize('NFC').trim();
   s = s.replace(/[⁰¹²³⁴⁵⁶⁷⁸⁹⁻⁺]/g, (ch) => SUPERSCRIPTS[ch] ?? ch);
   s = s.replace(/[−–]/g, '-');
@@ -113,7 +123,19 @@ export function squashUnit(unit: string): string {
   return s;
 }
 
+const lookupCache = new Map<string, UnitDefinition | null>();
+
 export function lookupUnit(unit: string, dimension?: Dimension): UnitDefinition | undefined {
+  if (typeof unit !== 'string') return undefined;
+  const cacheKey = `${dimension ?? ''}|${unit}`;
+  const hit = lookupCache.get(cacheKey);
+  if (hit !== undefined) return hit ?? undefined;
+  const out = lookupUnitUncached(unit, dimension);
+  if (lookupCache.size < 2000) lookupCache.set(cacheKey, out ?? null);
+  return out;
+}
+
+function lookupUnitUncached(unit: string, dimension?: Dimension): UnitDefinition | undefined {
   const key = squashUnit(unit);
   let defs = UNIT_TABLE[key];
   if (!defs) {
@@ -131,12 +153,18 @@ export function lookupUnit(unit: string, dimension?: Dimension): UnitDefinition 
 }
 
 /** Every unit spelling understood for a dimension, typeset and deduplicated (for help texts). */
+const unitsForCache = new Map<Dimension, UnitDefinition[]>();
+
 export function unitsFor(dimension: Dimension): UnitDefinition[] {
+  const hit = unitsForCache.get(dimension);
+  if (hit) return hit;
   const seen = new Map<string, UnitDefinition>();
   for (const defs of Object.values(UNIT_TABLE)) {
     for (const d of defs) if (d.dimension === dimension && !seen.has(d.display + d.kind)) seen.set(d.display + d.kind, d);
   }
-  return [...seen.values()];
+  const list = [...seen.values()];
+  unitsForCache.set(dimension, list);
+  return list;
 }
 
 export type ToSIResult = { ok: true; valueSI: number; unitSI: string; unit: UnitDefinition } | { ok: false; message: string };

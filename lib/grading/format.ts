@@ -1,0 +1,28 @@
+/**
+ * Numbers for people: sensible significant figures, Unicode minus and ×10ⁿ.
+ */
+import { superscript } from './units';
+
+/** Formats with `sig` significant figures; scientific (× 10ⁿ) for very large or small magnitudes. */
+export function formatNumber(value: number, sig = 6): string {
+  if (!Number.isFinite(value)) return '—';
+  if (value === 0) return '0';
+  const s = Math.max(1, Math.min(15, Math.round(sig)));
+  const exp = Math.floor(Math.log10(Math.abs(value)));
+  const minus = value < 0 ? '−' : '';
+  const abs = Math.abs(value);
+  if (exp >= 6 || exp <= -4) {
+    const [mant, e] = abs.toExponential(s - 1).split('e');
+    return `${minus}${mant} × 10${superscript(String(Number(e)))}`;
+  }
+  // Round to the significant figures first (42747 at 3 s.f. is 42700), then print without exponent.
+  const rounded = Number(abs.toPrecision(s));
+  const e2 = Math.floor(Math.log10(rounded));
+  const decimals = Math.max(0, s - 1 - e2);
+  return `${minus}${rounded.toFixed(Math.min(20, decimals))}`;
+}
+
+/** "481.0 N m⁻¹": value and unit, without a stray space for a pure number. */
+export function withUnit(text: string, unit: string): string {
+  return unit ? `${text} ${unit}` : text;
+}
