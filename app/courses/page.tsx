@@ -1,14 +1,20 @@
-import { authorizePage } from '@/lib/authz';
+import { redirect } from 'next/navigation';
+import { authorizePage, hasRole } from '@/lib/authz';
 import { PageHeader } from '@/components/ui/page-header';
+import { managedCourses } from '@/lib/instructor/courses';
+import { CoursesOverview } from '@/components/instructor/courses-overview';
 
 export const metadata = { title: 'Courses & practicals' };
+export const dynamic = 'force-dynamic';
 
 export default async function CoursesHome() {
-  await authorizePage({ kind: 'role', role: 'instructor' });
+  const actor = await authorizePage();
+  if (!actor.isAdmin && !hasRole(actor, 'instructor') && !hasRole(actor, 'lead')) redirect('/not-permitted');
+  const courses = await managedCourses(actor);
   return (
     <>
-      <PageHeader title="Courses & practicals" lead="Set up cohorts and rosters, define practicals with their quantities and tolerance bands, and moderate marking." />
-      <p className="card text-ink-soft">Course set-up screens are being built.</p>
+      <PageHeader title="Courses & practicals" lead="Set up cohorts and rosters, define practicals with their quantities and tolerance bands, and copy them to a new term." />
+      <CoursesOverview courses={courses} />
     </>
   );
 }

@@ -1,0 +1,13 @@
+import { authorize } from '@/lib/authz';
+import { idParam, json, route } from '@/lib/http';
+import { unassignTa } from '@/lib/instructor/courses';
+
+type Ctx = { params: Promise<{ courseId: string; assignmentId: string }> };
+
+export const DELETE = route<Ctx>(async (request, { params }) => {
+  const p = await params;
+  const courseId = idParam(p.courseId);
+  const actor = await authorize(request, { kind: 'course-manage', courseId });
+  await unassignTa(courseId, idParam(p.assignmentId), actor.id);
+  return json({ ok: true });
+});
