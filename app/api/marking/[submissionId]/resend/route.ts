@@ -1,0 +1,24 @@
+import { audit } from '@/lib/audit';
+import { json, readJson, route, idParam, HttpError } from '@/lib/http';
+import { deliverOutbox, requeue } from '@/lib/mail/outbox';
+import { authorizeSubmission } from '@/lib/marking/access';
+import { resendSchema } from '@/lib/schemas/marking';
+import { models } from '@/models';
+
+type Ctx = { params: Promise<{ submissionId: string }> };
+
+/** Staff "resend": a failed message goes back in the queue; a sent one is queued again as a new copy. */
+export const POST = route<Ctx>(async (request, { params }) => {
+  const id = idParam((await params).submissionId);
+  const { actor } = await authorizeSubmission(request, id, 'submission-mark');
+  const { outboxId } = await readJson(request, resendSchema);
+  const { EmailOutbox } = models();
+  const row = await EmailOutbox.findByPk(outboxId);
+  if (!row || row.submissionId !== id) throw new HttpError(404, 'No such message for this submission.');
+  if (row.status === 'queued' || row.status === 'sending') throw new HttpError(409, 'This message is still waiting to be sent.');
+  const before = { status: row.status, attempts: row.attempts };
+  await requeue(row.id, `resend-${Date.now()}`);
+  await audit({ actorId: actor.id, action: 'mail.resend', entityType: 'email_outbox', entityId: row.id, before, after: { requeued: true } });
+  deliverOutbox().catch((error) => console.error('[oscillab] outbox after resend', error));
+  return json({ ok: true });
+});

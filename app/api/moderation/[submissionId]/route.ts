@@ -1,0 +1,16 @@
+import { authorize } from '@/lib/authz';
+import { json, readJson, route, idParam } from '@/lib/http';
+import { submissionScope } from '@/lib/marking/access';
+import { moderate } from '@/lib/marking/moderation';
+import { moderationSchema } from '@/lib/schemas/marking';
+
+type Ctx = { params: Promise<{ submissionId: string }> };
+
+/** Confirm or change a marker's marks: { decision, version, items, note }. */
+export const POST = route<Ctx>(async (request, { params }) => {
+  const id = idParam((await params).submissionId);
+  const { scope } = await submissionScope(id);
+  const actor = await authorize(request, { kind: 'moderate', courseId: scope.courseId });
+  const input = await readJson(request, moderationSchema);
+  return json(await moderate(actor.id, id, input));
+});

@@ -1,0 +1,234 @@
+'use client';
+
+import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import { useRouter } from 'next/navigation';
+import useSWR from 'swr';
+import { createColumnHelper, flexRender, getCoreRowModel, useReactTable } from '@tanstack/react-table';
+import type { QueueRow } from '@/lib/marking/queue';
+import { QUEUE_FLAGS, QUEUE_STATUSES, QUEUE_SORTS } from '@/lib/schemas/marking';
+import { fetcher, send } from './fetcher';
+
+type Page = { rows: QueueRow[]; total: number; page: number; pageSize: number; pages: number };
+type Filters = { practicalId: string; cohortId: string; status: string; flag: string; sort: string; dir: string; page: number };
+
+const FLAG_LABEL: Record<string, string> = { outside: 'Outside tolerance', slip: 'Named slip', late: 'Late', duplicate: 'Duplicate data', spectrum: 'Spectrum mismatch' };
+const STATUS_LABEL: Record<string, string> = { submitted: 'Submitted', marked: 'Marked', released: 'Released', 'resubmission-requested': 'Resubmission requested' };
+const SORT_LABEL: Record<string, string> = { submittedAt: 'Submission time', student: 'Student', practical: 'Practical', status: 'Status', proposedTotal: 'Proposed total', awardedTotal: 'Awarded total' };
+
+const col = createColumnHelper<QueueRow>();
+
+export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number; title: string }[]; cohorts: { id: number; name: string }[] }) {
+  const router = useRouter();
+  const [f, setF] = useState<Filters>({ practicalId: '', cohortId: '', status: '', flag: '', sort: 'submittedAt', dir: 'asc', page: 1 });
+  const [cursor, setCursor] = useState(0);
+  const [selected, setSelected] = useState<Set<number>>(new Set());
+  const [message, setMessage] = useState('');
+  const tableRef = useRef<HTMLTableSectionElement>(null);
+  const query = useMemo(() => {
+    const p = new URLSearchParams();
+    for (const [k, v] of Object.entries(f)) if (v !== '' && v !== undefined) p.set(k, String(v));
+    return p.toString();
+  }, [f]);
+  const { data, error, isLoading, mutate } = useSWR<Page>(`/api/marking/queue?${query}`, fetcher, { keepPreviousData: true });
+  const rows = useMemo(() => data?.rows ?? [], [data]);
+  const set = (patch: Partial<Filters>) => {
+    setF((old) => ({ ...old, page: 1, ...patch }));
+    setCursor(0);
+  };
+
+  const toggle = useCallback((id: number) => setSelected((s) => {
+    const n = new Set(s);
+    if (n.has(id)) n.delete(id);
+    else n.add(id);
+    return n;
+  }), []);
+
+  const columns = useMemo(
+    () => [
+      col.display({
+        id: 'select',
+        header: () => <span className="sr-only">Select</span>,
+        cell: ({ row }) => (
+          <input type="checkbox" aria-label={`Select ${row.original.student.name}`} checked={selected.has(row.original.id)} onChange={() => toggle(row.original.id)} />
+        ),
+      }),
+      col.accessor((r) => r.student.name, { id: 'student', header: 'Student', cell: ({ row }) => <a href={`/marking/${row.original.id}`}>{row.original.student.name}</a> }),
+      col.accessor((r) => r.practical.title, { id: 'practical', header: 'Practical' }),
+      col.accessor((r) => r.cohort.name, { id: 'cohort', header: 'Cohort' }),
+      col.accessor('status', { header: 'Status', cell: (c) => STATUS_LABEL[c.getValue()] ?? c.getValue() }),
+      col.display({
+        id: 'flags',
+        header: 'Flags',
+        cell: ({ row }) => (
+          <span className="flex flex-wrap gap-1">
+            {(Object.keys(row.original.flags) as (keyof QueueRow['flags'])[])
+              .filter((k) => row.original.flags[k])
+              .map((k) => (
+                <span key={k} className={`rounded px-1 text-xs ${k === 'outside' ? 'bg-verdict-outside-bg text-verdict-outside' : 'bg-paper-sunk text-ink'}`}>
+                  {k === 'outside' ? '✗ ' : '⚑ '}
+                  {FLAG_LABEL[k]}
+                </span>
+              ))}
+          </span>
+        ),
+      }),
+      col.accessor('submittedAt', { header: 'Submitted', cell: (c) => (c.getValue() ? new Date(c.getValue()!).toLocaleString('en-GB', { dateStyle: 'short', timeStyle: 'short' }) : '—') }),
+      col.display({
+        id: 'marks',
+        header: () => <span className="block text-right">Proposed / awarded</span>,
+        cell: ({ row }) => (
+          <span className="num block text-right">
+            {row.original.proposedTotal ?? '—'} / {row.original.awardedTotal ?? '—'} <span className="text-ink-soft">of {row.original.maxTotal ?? '—'}</span>
+          </span>
+        ),
+      }),
+      col.accessor('delivery', { header: 'E-mail', cell: (c) => c.getValue() ?? '—' }),
+    ],
+    [selected, toggle],
+  );
+  const table = useReactTable({ data: rows, columns, getCoreRowModel: getCoreRowModel(), getRowId: (r) => String(r.id) });
+
+  const accept = useCallback(async (row: QueueRow) => {
+    const r = await send<{ status: string; unmarked: number }>(`/api/marking/${row.id}/accept`, 'POST', { version: row.version });
+    setMessage(r.ok ? `${row.student.name}: proposal accepted${r.body.unmarked ? `; ${r.body.unmarked} hand-marked item(s) still to mark` : ' — marked'}.` : `${row.student.name}: ${r.body.error}`);
+    mutate();
+  }, [mutate]);
+
+  useEffect(() => {
+    const onKey = (e: KeyboardEvent) => {
+      const t = e.target as HTMLElement;
+      if (['INPUT', 'SELECT', 'TEXTAREA', 'BUTTON'].includes(t.tagName) && e.key !== 'Escape') return;
+      if (e.metaKey || e.ctrlKey || e.altKey) return;
+      const row = rows[cursor];
+      if (e.key === 'j' || e.key === 'ArrowDown') {
+        e.preventDefault();
+        setCursor((c) => Math.min(rows.length - 1, c + 1));
+      } else if (e.key === 'k' || e.key === 'ArrowUp') {
+        e.preventDefault();
+        setCursor((c) => Math.max(0, c - 1));
+      } else if (e.key === 'Enter' && row) {
+        router.push(`/marking/${row.id}`);
+      } else if (e.key === 'a' && row) {
+        accept(row);
+      } else if (e.key === 'r' && row) {
+        window.open(`/api/marking/${row.id}/report`, '_blank', 'noopener');
+      } else if (e.key === 'x' && row) {
+        toggle(row.id);
+      }
+    };
+    window.addEventListener('keydown', onKey);
+    return () => window.removeEventListener('keydown', onKey);
+  }, [rows, cursor, router, accept, toggle]);
+
+  useEffect(() => {
+    tableRef.current?.querySelector<HTMLElement>(`[data-row="${cursor}"]`)?.scrollIntoView({ block: 'nearest' });
+  }, [cursor]);
+
+  const release = async () => {
+    const ids = [...selected];
+    setMessage(`Releasing ${ids.length} submission(s)…`);
+    const r = await send<{ released: number; results: { submissionId: number; ok: boolean; message?: string }[] }>('/api/release', 'POST', { submissionIds: ids });
+    if (!r.ok) setMessage(`Release refused: ${r.body.error}`);
+    else {
+      const failed = r.body.results.filter((x) => !x.ok);
+      setMessage(`Released ${r.body.released} of ${ids.length}; feedback e-mails queued.${failed.length ? ` Not released: ${failed.map((x) => `#${x.submissionId} (${x.message})`).join(', ')}` : ''}`);
+      setSelected(new Set());
+    }
+    mutate();
+  };
+
+  return (
+    <div>
+      <form className="card mb-4 grid grid-cols-2 gap-3 md:grid-cols-6" onSubmit={(e) => e.preventDefault()} aria-label="Filter the queue">
+        <div>
+          <label className="label" htmlFor="q-practical">Practical</label>
+          <select id="q-practical" className="field" value={f.practicalId} onChange={(e) => set({ practicalId: e.target.value })}>
+            <option value="">All</option>
+            {practicals.map((p) => <option key={p.id} value={p.id}>{p.title}</option>)}
+          </select>
+        </div>
+        <div>
+          <label className="label" htmlFor="q-cohort">Cohort</label>
+          <select id="q-cohort" className="field" value={f.cohortId} onChange={(e) => set({ cohortId: e.target.value })}>
+            <option value="">All</option>
+            {cohorts.map((c) => <option key={c.id} value={c.id}>{c.name}</option>)}
+          </select>
+        </div>
+        <div>
+          <label className="label" htmlFor="q-status">Status</label>
+          <select id="q-status" className="field" value={f.status} onChange={(e) => set({ status: e.target.value })}>
+            <option value="">All</option>
+            {QUEUE_STATUSES.map((s) => <option key={s} value={s}>{STATUS_LABEL[s]}</option>)}
+          </select>
+        </div>
+        <div>
+          <label className="label" htmlFor="q-flag">Flag</label>
+          <select id="q-flag" className="field" value={f.flag} onChange={(e) => set({ flag: e.target.value })}>
+            <option value="">Any</option>
+            {QUEUE_FLAGS.map((s) => <option key={s} value={s}>{FLAG_LABEL[s]}</option>)}
+          </select>
+        </div>
+        <div>
+          <label className="label" htmlFor="q-sort">Sort by</label>
+          <select id="q-sort" className="field" value={f.sort} onChange={(e) => set({ sort: e.target.value })}>
+            {QUEUE_SORTS.map((s) => <option key={s} value={s}>{SORT_LABEL[s]}</option>)}
+          </select>
+        </div>
+        <div>
+          <label className="label" htmlFor="q-dir">Order</label>
+          <select id="q-dir" className="field" value={f.dir} onChange={(e) => set({ dir: e.target.value })}>
+            <option value="asc">Ascending</option>
+            <option value="desc">Descending</option>
+          </select>
+        </div>
+      </form>
+
+      <div className="mb-3 flex flex-wrap items-center gap-3">
+        <button type="button" className="btn" disabled={selected.size === 0} onClick={release}>
+          Release selected ({selected.size})
+        </button>
+        <button type="button" className="btn-quiet" onClick={() => setSelected(new Set(rows.filter((r) => r.status === 'marked').map((r) => r.id)))}>
+          Select all marked on this page
+        </button>
+        <p className="text-sm text-ink-soft" aria-live="polite" role="status">{isLoading ? 'Loading…' : data ? `${data.total} submission(s)` : ''}</p>
+      </div>
+      <p className="mb-3 text-sm" aria-live="polite" role="status" data-testid="queue-message">{message}</p>
+      {error && <p className="error-text" role="alert">{String(error.message ?? error)}</p>}
+
+      <div className="card overflow-x-auto p-0">
+        <table className="data-table" aria-describedby="queue-keys">
+          <thead>
+            {table.getHeaderGroups().map((g) => (
+              <tr key={g.id}>{g.headers.map((h) => <th key={h.id} scope="col">{flexRender(h.column.columnDef.header, h.getContext())}</th>)}</tr>
+            ))}
+          </thead>
+          <tbody ref={tableRef}>
+            {table.getRowModel().rows.map((row, i) => (
+              <tr
+                key={row.id}
+                data-row={i}
+                data-submission={row.original.id}
+                aria-current={i === cursor ? 'true' : undefined}
+                className={i === cursor ? 'bg-accent-soft outline outline-2 outline-accent' : ''}
+                onClick={() => setCursor(i)}
+              >
+                {row.getVisibleCells().map((c) => <td key={c.id}>{flexRender(c.column.columnDef.cell, c.getContext())}</td>)}
+              </tr>
+            ))}
+            {rows.length === 0 && !isLoading && (
+              <tr><td colSpan={columns.length} className="text-ink-soft">Nothing matches these filters.</td></tr>
+            )}
+          </tbody>
+        </table>
+      </div>
+
+      {data && data.pages > 1 && (
+        <nav className="mt-3 flex items-center gap-2" aria-label="Pages">
+          <button type="button" className="btn-quiet" disabled={f.page <= 1} onClick={() => setF((o) => ({ ...o, page: o.page - 1 }))}>Previous page</button>
+          <span className="text-sm">Page {data.page} of {data.pages}</span>
+          <button type="button" className="btn-quiet" disabled={f.page >= data.pages} onClick={() => setF((o) => ({ ...o, page: o.page + 1 }))}>Next page</button>
+        </nav>
+      )}
+    </div>
+  );
+}

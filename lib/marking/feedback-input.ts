@@ -1,0 +1,49 @@
+import type { FeedbackInput } from '@/lib/pdf/feedback';
+import type { MarkingView } from './view';
+import { fitPlotModel, residualModel } from './fit-plot';
+import { rawSum, totalAfterPenalty } from './totals';
+import { speciesDisplay } from './view';
+
+const n = (v: number | null) => (v === null ? '—' : String(Math.round(v * 100) / 100));
+
+function when(iso: string | null): string {
+  if (!iso) return '—';
+  return new Date(iso).toLocaleString('en-GB', { dateStyle: 'long', timeStyle: 'short', timeZone: 'Europe/London' });
+}
+
+/** What the feedback PDF shows, from the marking view. */
+export function feedbackInputFromView(view: MarkingView, now = new Date()): FeedbackInput {
+  const marksByKey = new Map(view.marks.map((m) => [m.itemKey, m]));
+  const max = view.marks.reduce((s, m) => s + m.maxMarks, 0);
+  const awarded = view.marks.map((m) => m.awarded);
+  const comments: FeedbackInput['comments'] = [];
+  if (view.submission.markerComment) comments.push({ label: '', text: view.submission.markerComment });
+  for (const m of view.marks) if (m.comment) comments.push({ label: m.label, text: m.comment });
+  return {
+    course: `${view.course.code} ${view.course.title}`,
+    practical: view.practical.title,
+    cohort: `${view.cohort.name}, ${view.cohort.term}`,
+    student: view.student.studentNumber ? `${view.student.name} (${view.student.studentNumber})` : view.student.name,
+    submittedAt: when(view.submission.submittedAt),
+    attempt: view.submission.attempt,
+    daysLate: view.submission.daysLate,
+    latePenalty: view.submission.latePenalty,
+    quantities: view.quantities.map((q) => {
+      const mark = marksByKey.get(q.itemKey);
+      return {
+        label: q.label,
+        reported: q.reportedTyped,
+        rows: [q.consistency, q.accuracy].filter((r) => r !== null).map((r) => ({ basis: r.basis, expected: r.expectedDisplay, deviation: r.deviationDisplay, verdict: r.verdict })),
+        marks: mark ? `${n(mark.awarded ?? mark.proposed)}/${n(mark.maxMarks)}` : '',
+      };
+    }),
+    slips: view.slips.map((s) => ({ title: s.title, quantity: s.quantityLabel, explanation: s.explanation, formula: s.formula })),
+    plots: view.fits.filter((f) => f.residuals.length > 0).map((f) => ({ species: speciesDisplay(f.species), fit: fitPlotModel(f), residuals: residualModel(f) })),
+    rubric: view.marks.filter((m) => m.handMarked).map((m) => ({ label: m.label, marks: `${n(m.awarded)}/${n(m.maxMarks)}` })),
+    comments,
+    sum: n(rawSum(awarded)),
+    total: n(totalAfterPenalty(awarded, view.submission.latePenalty)),
+    max: n(max),
+    generatedAt: now.toISOString(),
+  };
+}

@@ -1,0 +1,77 @@
+/**
+ * Release: per submission, in one transaction, write the feedback PDF and its row, mark the
+ * submission released and queue the e-mail that carries the PDF. If anything fails the
+ * transaction rolls back and the file is removed, so a release is all or nothing; the outbox
+ * then delivers at most once per dedupe key.
+ */
+import crypto from 'node:crypto';
+import fs from 'node:fs/promises';
+import { sequelize } from '@/lib/db';
+import { audit } from '@/lib/audit';
+import { HttpError } from '@/lib/http';
+import { queueEmail } from '@/lib/mail/outbox';
+import { feedbackPath } from '@/lib/storage';
+import { renderEmail } from '@/lib/templates';
+import { buildFeedbackPdf } from '@/lib/pdf/feedback';
+import { models } from '@/models';
+import { loadMarkingView } from './view';
+import { feedbackInputFromView } from './feedback-input';
+
+export function appUrl(): string {
+  return (process.env.APP_ORIGIN || process.env.NEXTAUTH_URL || 'http://localhost:3000').replace(/\/$/, '');
+}
+
+export type ReleaseOutcome = { submissionId: number; ok: boolean; message?: string; feedbackDocumentId?: number };
+
+export async function releaseOne(actorId: number, submissionId: number): Promise<ReleaseOutcome> {
+  const view = await loadMarkingView(submissionId);
+  if (view.submission.status === 'released') return { submissionId, ok: false, message: 'Already released.' };
+  if (view.submission.status !== 'marked') return { submissionId, ok: false, message: 'Only marked submissions can be released: finish marking first.' };
+  const pdf = await buildFeedbackPdf(feedbackInputFromView(view));
+  const storedName = `${crypto.randomBytes(16).toString('hex')}.pdf`;
+  const file = feedbackPath(storedName);
+  const { Submission, FeedbackDocument } = models();
+  try {
+    return await sequelize().transaction(async (t) => {
+      await fs.writeFile(file, pdf);
+      const [count] = await Submission.update(
+        { status: 'released', releasedAt: new Date(), version: sequelize().literal('version + 1') as unknown as number },
+        { where: { id: submissionId, status: 'marked', version: view.submission.version }, transaction: t },
+      );
+      if (count !== 1) throw new HttpError(409, 'The submission changed while it was being released; reload and try again.');
+      const n = (await FeedbackDocument.count({ where: { submissionId }, transaction: t })) + 1;
+      const doc = await FeedbackDocument.create(
+        { submissionId, storedName, sha256: crypto.createHash('sha256').update(pdf).digest('hex'), size: pdf.byteLength },
+        { transaction: t },
+      );
+      const mail = renderEmail('feedback-released', {
+        student: view.student.name,
+        practical: view.practical.title,
+        course: `${view.course.code} ${view.course.title}`,
+        cohort: view.cohort.name,
+        total: view.submission.awardedTotal ?? '—',
+        max: view.marks.reduce((s, m) => s + m.maxMarks, 0),
+        link: `${appUrl()}/student`,
+      });
+      await queueEmail(
+        { dedupeKey: `release:${submissionId}:${n}`, to: view.student.email, subject: mail.subject, text: mail.text, submissionId, feedbackDocumentId: doc.id },
+        t,
+      );
+      await audit(
+        { actorId, action: 'submission.release', entityType: 'submission', entityId: submissionId, before: { status: 'marked' }, after: { status: 'released', feedbackDocumentId: doc.id } },
+        t,
+      );
+      return { submissionId, ok: true, feedbackDocumentId: doc.id };
+    });
+  } catch (error) {
+    await fs.rm(file, { force: true });
+    if (error instanceof HttpError) return { submissionId, ok: false, message: error.message };
+    throw error;
+  }
+}
+
+export async function releaseMany(actorId: number, submissionIds: number[]): Promise<ReleaseOutcome[]> {
+  const out: ReleaseOutcome[] = [];
+  for (const id of [...new Set(submissionIds)]) out.push(await releaseOne(actorId, id));
+  return out;
+}

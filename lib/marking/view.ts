@@ -1,0 +1,242 @@
+/**
+ * Everything the marking screen, the moderation screen and the feedback PDF show about one
+ * submission, gathered from the database rows in one place and returned as plain data.
+ */
+import { QUANTITIES, SLIPS, fromSI, formatNumber, formatUnit, isQuantityKey, parseSpecies, type SlipCode } from '@/lib/grading';
+import { models } from '@/models';
+import { HttpError } from '@/lib/http';
+import { worstVerdict, type VerdictKey } from './verdict';
+
+export type BasisRow = {
+  basis: 'consistency' | 'accuracy';
+  expectedDisplay: string;
+  deviationDisplay: string;
+  relativeDeviationPercent: number | null;
+  verdict: VerdictKey;
+  slipCodes: string[];
+};
+
+export type QuantityRow = {
+  key: string;
+  species: string;
+  label: string;
+  /** As the student typed it, number and unit. */
+  reportedTyped: string;
+  reportedDisplay: string;
+  consistency: BasisRow | null;
+  accuracy: BasisRow | null;
+  verdict: VerdictKey;
+  itemKey: string;
+};
+
+export type MarkRow = {
+  itemKey: string;
+  label: string;
+  maxMarks: number;
+  proposed: number | null;
+  awarded: number | null;
+  comment: string | null;
+  guidance: string | null;
+  handMarked: boolean;
+};
+
+export type SlipRow = { key: string; code: string; title: string; explanation: string; formula: string; quantityLabel: string };
+
+export type FitData = { species: string; residuals: { m: number; observed: number; calculated: number; residual: number; branch: string; J: number }[]; coefficients: number[]; rms: number | null };
+
+export type MarkingView = Awaited<ReturnType<typeof loadMarkingView>>;
+
+function display(valueSI: number | null | undefined, key: string, signed = false): string {
+  if (valueSI === null || valueSI === undefined || !Number.isFinite(valueSI)) return '—';
+  if (!isQuantityKey(key)) return formatNumber(valueSI, 6);
+  const info = QUANTITIES[key];
+  const r = fromSI(valueSI, info.displayUnit, info.dimension);
+  const [v, unit] = r.ok ? [r.value, r.unit] : [valueSI, info.siUnit];
+  const text = formatNumber(v, signed ? 3 : 6);
+  const sign = signed && v > 0 ? '+' : '';
+  return unit ? `${sign}${text} ${unit}` : `${sign}${text}`;
+}
+
+/** "H35Cl" → "H³⁵Cl" when the engine knows the species. */
+export function speciesDisplay(species: string): string {
+  if (!species) return '';
+  const p = parseSpecies(species);
+  return p.ok ? p.species.display : species;
+}
+
+function labelFor(key: string, species: string): string {
+  const base = isQuantityKey(key) ? QUANTITIES[key].label : key;
+  return species ? `${base} (${speciesDisplay(species)})` : base;
+}
+
+/** Fits with residuals from the stored engine output (one result, or one per species). */
+export function fitsFromSummary(summary: unknown): FitData[] {
+  const out: FitData[] = [];
+  const visit = (node: unknown, speciesHint: string, depth: number) => {
+    if (!node || typeof node !== 'object' || depth > 3) return;
+    const n = node as Record<string, unknown>;
+    const derived = n.derived as Record<string, unknown> | undefined;
+    const fit = derived?.fit as Record<string, unknown> | undefined;
+    if (fit && fit.ok !== false && Array.isArray(fit.residuals)) {
+      const sp = (derived?.species as { formula?: string } | undefined)?.formula ?? speciesHint;
+      out.push({
+        species: sp,
+        residuals: (fit.residuals as FitData['residuals']).filter((r) => r && Number.isFinite(r.m) && Number.isFinite(r.residual)),
+        coefficients: Array.isArray(fit.coefficients) ? (fit.coefficients as number[]) : [],
+        rms: typeof fit.rms === 'number' ? fit.rms : null,
+      });
+      return;
+    }
+    for (const [k, v] of Object.entries(n)) if (v && typeof v === 'object' && k !== 'quantities') visit(v, Array.isArray(n) ? speciesHint : k, depth + 1);
+  };
+  visit(summary, '', 0);
+  return out;
+}
+
+export async function loadMarkingView(submissionId: number) {
+  const { Submission, Practical, Course, Cohort, User, SubmittedValue, CheckResult, SlipFinding, Mark, Upload, FeedbackDocument, EmailOutbox, Moderation } =
+    models();
+  const submission = await Submission.findByPk(submissionId);
+  if (!submission || submission.status === 'draft') throw new HttpError(404, 'Not found.');
+  const [practical, cohort, student, marker] = await Promise.all([
+    Practical.findByPk(submission.practicalId),
+    Cohort.findByPk(submission.cohortId),
+    User.findByPk(submission.studentId),
+    submission.markedById ? User.findByPk(submission.markedById) : Promise.resolve(null),
+  ]);
+  if (!practical || !cohort || !student) throw new HttpError(404, 'Not found.');
+  const course = await Course.findByPk(practical.courseId);
+  if (!course) throw new HttpError(404, 'Not found.');
+  const where = { submissionId };
+  const [values, checks, slips, marks, uploads, docs, outbox, moderations] = await Promise.all([
+    SubmittedValue.findAll({ where, order: [['id', 'ASC']] }),
+    CheckResult.findAll({ where, order: [['id', 'ASC']] }),
+    SlipFinding.findAll({ where, order: [['id', 'ASC']] }),
+    Mark.findAll({ where, order: [['id', 'ASC']] }),
+    Upload.findAll({ where, order: [['id', 'DESC']] }),
+    FeedbackDocument.findAll({ where, order: [['id', 'ASC']] }),
+    EmailOutbox.findAll({ where, order: [['id', 'ASC']] }),
+    Moderation.findAll({ where, order: [['id', 'ASC']] }),
+  ]);
+
+  const rows = new Map<string, QuantityRow>();
+  const rowFor = (key: string, species: string) => {
+    const id = `${key}:${species}`;
+    let row = rows.get(id);
+    if (!row) {
+      const typed = values.find((v) => v.key === key && v.species === species);
+      const typedText = typed ? [typed.valueText, typed.uncertaintyText ? `± ${typed.uncertaintyText}` : '', formatUnit(typed.unit)].filter(Boolean).join(' ') : '—';
+      row = { key, species, label: labelFor(key, species), reportedTyped: typedText, reportedDisplay: display(typed?.valueSI, key), consistency: null, accuracy: null, verdict: 'not-checked', itemKey: id };
+      rows.set(id, row);
+    }
+    return row;
+  };
+  for (const v of values) rowFor(v.key, v.species);
+  for (const c of checks) {
+    const row = rowFor(c.key, c.species);
+    if (row.reportedDisplay === '—') row.reportedDisplay = display(c.reportedSI, c.key);
+    const basis: BasisRow = {
+      basis: c.basis,
+      expectedDisplay: display(c.expectedSI, c.key),
+      deviationDisplay: display(c.deviation, c.key, true),
+      relativeDeviationPercent: c.relativeDeviation === null ? null : c.relativeDeviation * 100,
+      verdict: worstVerdict(c.verdict, undefined),
+      slipCodes: c.slipCodes ? c.slipCodes.split(/[,\s]+/).filter(Boolean) : [],
+    };
+    if (c.basis === 'consistency') row.consistency = basis;
+    else row.accuracy = basis;
+  }
+  for (const row of rows.values()) row.verdict = worstVerdict(row.consistency?.verdict, row.accuracy?.verdict);
+
+  const rubric = Array.isArray(practical.rubric) ? practical.rubric : [];
+  const markRows: MarkRow[] = marks.map((m) => {
+    const rubricKey = m.itemKey.startsWith('rubric:') ? m.itemKey.slice('rubric:'.length) : null;
+    const item = rubricKey ? rubric.find((r) => r.key === rubricKey) : undefined;
+    return {
+      itemKey: m.itemKey,
+      label: m.label,
+      maxMarks: m.maxMarks,
+      proposed: m.proposed,
+      awarded: m.awarded,
+      comment: m.comment,
+      guidance: item?.guidance ?? null,
+      handMarked: m.proposed === null,
+    };
+  });
+
+  const slipRows: SlipRow[] = [];
+  const seen = new Set<string>();
+  const addSlip = (key: string, code: string) => {
+    const id = `${key}|${code}`;
+    if (seen.has(id)) return;
+    seen.add(id);
+    const info = SLIPS[code as SlipCode];
+    const [qKey, sp = ''] = key.split(':');
+    slipRows.push({
+      key,
+      code,
+      title: info?.title ?? code,
+      explanation: info?.explanation ?? '',
+      formula: info?.formula ?? '',
+      quantityLabel: labelFor(qKey, sp),
+    });
+  };
+  for (const s of slips) addSlip(s.key, s.code);
+  for (const row of rows.values()) for (const b of [row.consistency, row.accuracy]) for (const code of b?.slipCodes ?? []) addSlip(`${row.key}:${row.species}`, code);
+  // A slip finding keyed by quantity only (no species) duplicates one keyed with species: keep the first.
+
+  const report = uploads.find((u) => u.kind === 'report') ?? null;
+  const spectrum = uploads.find((u) => u.kind === 'spectrum') ?? null;
+
+  return {
+    submission: {
+      id: submission.id,
+      status: submission.status,
+      attempt: submission.attempt,
+      submittedAt: submission.submittedAt?.toISOString() ?? null,
+      daysLate: submission.daysLate,
+      latePenalty: submission.latePenalty,
+      proposedTotal: submission.proposedTotal,
+      awardedTotal: submission.awardedTotal,
+      maxTotal: submission.maxTotal,
+      markedAt: submission.markedAt?.toISOString() ?? null,
+      releasedAt: submission.releasedAt?.toISOString() ?? null,
+      version: submission.version,
+      extraAttempts: submission.extraAttempts,
+      resubmissionMessage: submission.resubmissionMessage,
+      markerComment: submission.markerComment ?? null,
+      flags: {
+        outside: submission.flagOutside,
+        slip: submission.flagSlip,
+        late: submission.flagLate,
+        duplicate: submission.flagDuplicate,
+        spectrumMismatch: submission.flagSpectrumMismatch,
+      },
+    },
+    scope: { courseId: course.id, cohortId: cohort.id, studentId: student.id },
+    course: { id: course.id, code: course.code, title: course.title },
+    practical: { id: practical.id, title: practical.title, species: practical.species },
+    cohort: { id: cohort.id, name: cohort.name, term: cohort.term },
+    student: { id: student.id, name: student.name, email: student.email, studentNumber: student.studentNumber },
+    marker: marker ? { id: marker.id, name: marker.name } : null,
+    quantities: [...rows.values()],
+    marks: markRows,
+    slips: slipRows,
+    fits: fitsFromSummary(submission.checkSummary),
+    report: report ? { id: report.id, originalName: report.originalName } : null,
+    spectrumUpload: spectrum ? { id: spectrum.id, storedName: spectrum.storedName, originalName: spectrum.originalName } : null,
+    feedbackDocuments: docs.map((d) => ({ id: d.id, createdAt: d.createdAt.toISOString(), size: d.size })),
+    deliveries: outbox.map((o) => ({
+      id: o.id,
+      kind: o.dedupeKey.split(':')[0],
+      dedupeKey: o.dedupeKey,
+      to: o.toAddress,
+      status: o.status,
+      attempts: o.attempts,
+      lastError: o.lastError,
+      sentAt: o.sentAt?.toISOString() ?? null,
+      createdAt: o.createdAt.toISOString(),
+    })),
+    moderations: moderations.map((m) => ({ id: m.id, decision: m.decision, totalBefore: m.totalBefore, totalAfter: m.totalAfter, note: m.note, moderatorId: m.moderatorId, createdAt: m.createdAt.toISOString() })),
+  };
+}

@@ -1,0 +1,267 @@
+/**
+ * The feedback PDF, built with pdf-lib. Fonts are DejaVu (shipped in public/fonts), embedded
+ * as subsets, because the built-in PDF fonts carry none of ν̃, μ, ω, Å or ⁻¹. All wording
+ * comes from templates/pdf/feedback.txt.
+ */
+import fs from 'node:fs';
+import path from 'node:path';
+import fontkit from '@pdf-lib/fontkit';
+import { PDFDocument, rgb, type PDFFont, type PDFPage } from 'pdf-lib';
+import { fill, templateText } from '@/lib/templates';
+import type { PlotModel } from '@/lib/spectrum';
+import { drawPlot } from './draw-plot';
+import { verdictInfo } from '@/lib/marking/verdict';
+
+export type FeedbackInput = {
+  course: string;
+  practical: string;
+  cohort: string;
+  student: string;
+  submittedAt: string;
+  attempt: number;
+  daysLate: number;
+  latePenalty: number;
+  quantities: {
+    label: string;
+    reported: string;
+    rows: { basis: 'consistency' | 'accuracy'; expected: string; deviation: string; verdict: string }[];
+    marks: string;
+  }[];
+  slips: { title: string; quantity: string; explanation: string; formula: string }[];
+  plots: { fit: PlotModel; residuals: PlotModel; species: string }[];
+  rubric: { label: string; marks: string }[];
+  comments: { label: string; text: string }[];
+  sum: string;
+  total: string;
+  max: string;
+  generatedAt: string;
+};
+
+type Fonts = { regular: PDFFont; bold: PDFFont; mono: PDFFont };
+
+let fontBytes: { regular: Buffer; bold: Buffer; mono: Buffer } | null = null;
+export function loadFontBytes() {
+  if (!fontBytes) {
+    const dir = path.join(/*turbopackIgnore: true*/ process.cwd(), 'public', 'fonts');
+    fontBytes = {
+      regular: fs.readFileSync(path.join(dir, 'DejaVuSans.ttf')),
+      bold: fs.readFileSync(path.join(dir, 'DejaVuSans-Bold.ttf')),
+      mono: fs.readFileSync(path.join(dir, 'DejaVuSansMono.ttf')),
+    };
+  }
+  return fontBytes;
+}
+
+function texts(): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const line of templateText('pdf/feedback.txt').split('\n')) {
+    if (!line.trim() || line.startsWith('#')) continue;
+    const i = line.indexOf(':');
+    if (i > 0) out[line.slice(0, i).trim()] = line.slice(i + 1).trim();
+  }
+  return out;
+}
+
+const A4 = { width: 595.28, height: 841.89 };
+const MARGIN = 42;
+const INK = rgb(0.11, 0.15, 0.19);
+const SOFT = rgb(0.29, 0.33, 0.38);
+const RULE = rgb(0.85, 0.84, 0.78);
+
+/**
+ * Text widths at size 1, cached across documents per font: fontkit's layout is the slow part
+ * of pdf-lib, and the same words recur in every feedback document of a batch.
+ */
+const widthCache = new Map<string, number>();
+export function textWidth(text: string, font: PDFFont, size: number): number {
+  const key = `${font.name}|${text}`;
+  let w = widthCache.get(key);
+  if (w === undefined) {
+    w = font.widthOfTextAtSize(text, 1);
+    if (widthCache.size > 50_000) widthCache.clear();
+    widthCache.set(key, w);
+  }
+  return w * size;
+}
+
+export function wrap(text: string, font: PDFFont, size: number, width: number): string[] {
+  const out: string[] = [];
+  const space = textWidth(' ', font, size);
+  for (const para of text.split('\n')) {
+    let line = '';
+    let lineWidth = 0;
+    for (const word of para.split(/\s+/).filter(Boolean)) {
+      const ww = textWidth(word, font, size);
+      if (!line) {
+        line = word;
+        lineWidth = ww;
+      } else if (lineWidth + space + ww <= width) {
+        line = `${line} ${word}`;
+        lineWidth += space + ww;
+      } else {
+        out.push(line);
+        line = word;
+        lineWidth = ww;
+      }
+    }
+    out.push(line);
+  }
+  return out;
+}
+
+class Writer {
+  page!: PDFPage;
+  y = 0;
+  pages: PDFPage[] = [];
+  constructor(private doc: PDFDocument, readonly f: Fonts) {
+    this.newPage();
+  }
+  newPage() {
+    this.page = this.doc.addPage([A4.width, A4.height]);
+    this.pages.push(this.page);
+    this.y = A4.height - MARGIN;
+  }
+  need(h: number) {
+    if (this.y - h < MARGIN + 20) this.newPage();
+  }
+  text(t: string, opts: { size?: number; font?: PDFFont; x?: number; color?: ReturnType<typeof rgb>; width?: number; gap?: number } = {}) {
+    const size = opts.size ?? 9.5;
+    const font = opts.font ?? this.f.regular;
+    const lines = wrap(t, font, size, opts.width ?? A4.width - 2 * MARGIN - ((opts.x ?? MARGIN) - MARGIN));
+    for (const l of lines) {
+      this.need(size * 1.35);
+      this.y -= size * 1.35;
+      this.page.drawText(l, { x: opts.x ?? MARGIN, y: this.y, size, font, color: opts.color ?? INK });
+    }
+    this.y -= opts.gap ?? 0;
+  }
+  heading(t: string) {
+    this.need(40);
+    this.y -= 10;
+    this.text(t, { size: 12.5, font: this.f.bold, gap: 4 });
+  }
+  rule() {
+    this.page.drawLine({ start: { x: MARGIN, y: this.y - 3 }, end: { x: A4.width - MARGIN, y: this.y - 3 }, thickness: 0.5, color: RULE });
+    this.y -= 6;
+  }
+}
+
+/** Column layout of the quantity table, points from the left margin. */
+const COLS = [
+  { key: 'quantity', w: 132 },
+  { key: 'reported', w: 96 },
+  { key: 'expected', w: 92 },
+  { key: 'deviation', w: 70 },
+  { key: 'verdict', w: 90 },
+  { key: 'marks', w: 31 },
+] as const;
+
+export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array> {
+  const T = texts();
+  const doc = await PDFDocument.create();
+  doc.registerFontkit(fontkit);
+  const bytes = loadFontBytes();
+  const f: Fonts = {
+    regular: await doc.embedFont(bytes.regular, { subset: true }),
+    bold: await doc.embedFont(bytes.bold, { subset: true }),
+    mono: await doc.embedFont(bytes.mono, { subset: true }),
+  };
+  doc.setTitle(`${fill(T.title, {})}: ${input.practical}`);
+  doc.setAuthor('Oscillab');
+  doc.setSubject(`${input.course} · ${input.student}`);
+  doc.setCreationDate(new Date(input.generatedAt));
+  doc.setModificationDate(new Date(input.generatedAt));
+
+  const w = new Writer(doc, f);
+  w.text(fill(T.title, {}), { size: 18, font: f.bold });
+  w.text(fill(T.subtitle, { practical: input.practical }), { size: 12.5, color: SOFT, gap: 4 });
+  w.text(fill(T.course, { course: input.course }));
+  w.text(fill(T.cohort, { cohort: input.cohort }));
+  w.text(fill(T.student, { student: input.student }));
+  w.text(fill(T.submitted, { submittedAt: input.submittedAt, attempt: input.attempt }));
+  if (input.daysLate > 0 || input.latePenalty > 0) w.text(fill(T.late, { days: input.daysLate, penalty: input.latePenalty }), { font: f.bold });
+  w.rule();
+
+  // Quantities.
+  w.heading(fill(T.quantitiesHeading, {}));
+  w.text(fill(T.quantitiesIntro, {}), { size: 8.5, color: SOFT, gap: 4 });
+  const header = [T.colQuantity, T.colReported, T.colExpected, T.colDeviation, T.colVerdict, T.colMarks];
+  const drawRow = (cells: string[], opts: { bold?: boolean; size?: number; colours?: (ReturnType<typeof rgb> | undefined)[]; monoCols?: number[] }) => {
+    const size = opts.size ?? 8;
+    const wrapped = cells.map((c, i) => wrap(c, opts.bold ? f.bold : opts.monoCols?.includes(i) ? f.mono : f.regular, size, COLS[i].w - 4));
+    const lines = Math.max(...wrapped.map((l) => l.length));
+    const h = lines * size * 1.3 + 3;
+    w.need(h);
+    let x = MARGIN;
+    wrapped.forEach((ls, i) => {
+      ls.forEach((l, j) => {
+        const font = opts.bold ? f.bold : opts.monoCols?.includes(i) ? f.mono : f.regular;
+        w.page.drawText(l, { x, y: w.y - size * 1.1 - j * size * 1.3, size, font, color: opts.colours?.[i] ?? INK });
+      });
+      x += COLS[i].w;
+    });
+    w.y -= h;
+  };
+  drawRow(header, { bold: true, size: 8 });
+  w.rule();
+  for (const q of input.quantities) {
+    drawRow([q.label, q.reported, '', '', '', q.marks], { monoCols: [1, 5] });
+    for (const r of q.rows) {
+      const v = verdictInfo(r.verdict);
+      drawRow(
+        [`   ${r.basis === 'consistency' ? T.basisConsistency : T.basisAccuracy}`, '', r.expected, r.deviation, `${v.symbol} ${v.word}`, ''],
+        { size: 7.5, monoCols: [2, 3], colours: [SOFT, undefined, undefined, undefined, rgb(...v.rgb)] },
+      );
+    }
+    w.rule();
+  }
+
+  // Named slips.
+  w.heading(fill(T.slipsHeading, {}));
+  if (input.slips.length === 0) w.text(fill(T.slipsNone, {}));
+  for (const s of input.slips) {
+    w.need(50);
+    w.text(s.title, { font: f.bold, size: 10 });
+    w.text(fill(T.slipFor, { quantity: s.quantity }), { size: 8.5, color: SOFT });
+    w.text(s.explanation, { size: 9 });
+    if (s.formula) w.text(fill(T.formula, { formula: s.formula }), { size: 9, font: f.mono, gap: 4 });
+  }
+
+  // Fit and residuals, as vector graphics from the same plot models as the marking screen.
+  for (const p of input.plots) {
+    w.heading(`${fill(T.fitHeading, {})}${p.species ? ` (${p.species})` : ''}`);
+    w.text(fill(T.fitIntro, {}), { size: 8.5, color: SOFT, gap: 4 });
+    const scale = (A4.width - 2 * MARGIN) / p.fit.width;
+    w.need(p.fit.height * scale + 6);
+    drawPlot(w.page, p.fit, { left: MARGIN, top: w.y, scale, font: f.regular, mono: f.mono });
+    w.y -= p.fit.height * scale + 6;
+    w.need(p.residuals.height * scale + 20);
+    w.text(fill(T.residualsCaption, {}), { size: 8.5, font: f.bold });
+    drawPlot(w.page, p.residuals, { left: MARGIN, top: w.y, scale, font: f.regular, mono: f.mono });
+    w.y -= p.residuals.height * scale + 6;
+  }
+
+  if (input.rubric.length) {
+    w.heading(fill(T.rubricHeading, {}));
+    for (const r of input.rubric) drawRow([r.label, '', '', '', '', r.marks], { monoCols: [5] });
+  }
+
+  w.heading(fill(T.commentsHeading, {}));
+  if (input.comments.length === 0) w.text(fill(T.commentsNone, {}));
+  for (const c of input.comments) {
+    if (c.label) w.text(c.label, { font: f.bold, size: 9 });
+    w.text(c.text, { size: 9.5, gap: 3 });
+  }
+
+  w.heading(fill(T.totalHeading, {}));
+  w.text(fill(T.sumLine, { sum: input.sum, max: input.max }), { font: f.mono });
+  if (input.latePenalty > 0) w.text(fill(T.penaltyLine, { penalty: input.latePenalty }), { font: f.mono });
+  w.text(fill(T.totalLine, { total: input.total, max: input.max }), { font: f.bold, size: 12 });
+
+  const pages = w.pages.length;
+  w.pages.forEach((page, i) => {
+    const text = fill(T.footer, { course: input.course, generatedAt: input.generatedAt.slice(0, 10), page: i + 1, pages });
+    page.drawText(text, { x: MARGIN, y: MARGIN - 16, size: 7, font: f.regular, color: SOFT });
+  });
+  return doc.save();
+}

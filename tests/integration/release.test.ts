@@ -1,0 +1,122 @@
+/**
+ * Release through the outbox: with the mail catcher down everything stays queued (nothing
+ * lost, status already released); once it is up, each student receives exactly one copy.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { apiRequest, params } from '@/tests/helpers/session';
+import { buildWorld, type World } from '@/tests/helpers/world';
+import { caughtMail, mailTo } from '@/tests/helpers/maildev';
+import { models } from '@/models';
+import { deliverOutbox } from '@/lib/mail/outbox';
+import { POST as releasePOST } from '@/app/api/release/route';
+import { POST as resendPOST } from '@/app/api/marking/[submissionId]/resend/route';
+import { acceptProposal, saveMarks } from '@/lib/marking/marks';
+import { createCheckedSubmission, createFixturePractical } from '@/lib/marking/test-fixtures';
+
+const SMTP = 1425;
+const WEB = 1480;
+const CLOSED = 1429; // nothing listens here
+let catcher: ChildProcess | null = null;
+let w: World;
+const students: { id: number; email: string }[] = [];
+const ids: number[] = [];
+
+async function waitFor(url: string, ms = 15000) {
+  const end = Date.now() + ms;
+  for (;;) {
+    try {
+      if ((await fetch(url)).ok) return;
+    } catch {}
+    if (Date.now() > end) throw new Error(`catcher did not start: ${url}`);
+    await new Promise((r) => setTimeout(r, 200));
+  }
+}
+
+beforeAll(async () => {
+  process.env.MAILDEV_API = `http://127.0.0.1:${WEB}`;
+  w = await buildWorld();
+  const practical = await createFixturePractical(w.course.id, [w.cohort.id]);
+  const { User, CourseMembership } = models();
+  for (let i = 0; i < 4; i++) {
+    const s = await User.create({ email: `release.${i}@test.example`, name: `Release Student ${i}`, passwordHash: null, isAdmin: false, studentNumber: `R${i}` });
+    await CourseMembership.create({ userId: s.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
+    students.push({ id: s.id, email: s.email });
+    const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: s.id, slip: i % 2 === 0 });
+    const r = await acceptProposal(w.people.ta.id, sub.id, sub.version);
+    await saveMarks(w.people.ta.id, sub.id, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 1 }] });
+    ids.push(sub.id);
+  }
+});
+
+afterAll(() => {
+  catcher?.kill('SIGTERM');
+});
+
+describe('release', () => {
+  it('a TA of another cohort cannot release (403) and nothing is written', async () => {
+    const res = await releasePOST(await apiRequest('/api/release', { as: w.people.otherTa.id, body: { submissionIds: ids } }), {});
+    expect(res.status).toBe(403);
+    expect(await models().EmailOutbox.count()).toBe(0);
+  });
+
+  it('with SMTP down, releases and queues everything; later delivers each exactly once', { timeout: 120_000 }, async () => {
+    const t0 = Date.now();
+    const lap = (what: string) => console.log('[release.test]', what, Date.now() - t0, 'ms');
+    process.env.SMTP_URL = `smtp://127.0.0.1:${CLOSED}`;
+    const res = await releasePOST(await apiRequest('/api/release', { as: w.people.ta.id, body: { submissionIds: ids } }), {});
+    expect(res.status).toBe(200);
+    expect((await res.json()).released).toBe(4);
+    lap('released');
+    const { Submission, EmailOutbox, FeedbackDocument } = models();
+    // Let the release's own delivery attempt finish (it fails: nothing listens).
+    await new Promise((r) => setTimeout(r, 1500));
+    const first = await deliverOutbox();
+    expect(first.sent).toBe(0);
+    const rows = await EmailOutbox.findAll({ where: { submissionId: ids } });
+    expect(rows).toHaveLength(4);
+    for (const r of rows) {
+      expect(r.status).toBe('queued');
+      expect(r.feedbackDocumentId).not.toBeNull();
+      expect(r.dedupeKey).toBe(`release:${r.submissionId}:1`);
+    }
+    expect(rows.some((r) => r.attempts >= 1 && r.lastError)).toBe(true);
+    expect(await Submission.count({ where: { id: ids, status: 'released' } })).toBe(4);
+    expect(await FeedbackDocument.count({ where: { submissionId: ids } })).toBe(4);
+
+    // Releasing again is refused per submission and queues nothing new.
+    const again = await (await releasePOST(await apiRequest('/api/release', { as: w.people.ta.id, body: { submissionIds: ids } }), {})).json();
+    expect(again.released).toBe(0);
+    expect(await EmailOutbox.count({ where: { submissionId: ids } })).toBe(4);
+
+    catcher = spawn(process.execPath, [path.resolve('scripts/maildev.mjs'), String(SMTP), String(WEB)], { stdio: 'ignore' });
+    await waitFor(`http://127.0.0.1:${WEB}/api/email`);
+    lap('catcher up');
+    await fetch(`http://127.0.0.1:${WEB}/api/email/all`, { method: 'DELETE' });
+    process.env.SMTP_URL = `smtp://127.0.0.1:${SMTP}`;
+    const later = () => new Date(Date.now() + 60 * 60_000); // past any back-off
+    const [a, b] = await Promise.all([deliverOutbox({ now: later }), deliverOutbox({ now: later })]);
+    lap('delivered');
+    expect(a.sent + b.sent).toBe(4);
+    expect((await deliverOutbox({ now: later })).sent).toBe(0);
+    for (const s of students) {
+      const mail = await mailTo(s.email);
+      expect(mail).toHaveLength(1);
+      expect(mail[0].attachments?.[0]?.contentType).toBe('application/pdf');
+    }
+    expect((await caughtMail()).length).toBe(4);
+    expect(await EmailOutbox.count({ where: { submissionId: ids, status: 'sent' } })).toBe(4);
+  });
+
+  it('staff can resend a sent message; it arrives once more', async () => {
+    const row = await models().EmailOutbox.findOne({ where: { submissionId: ids[0] } });
+    const res = await resendPOST(await apiRequest(`/api/marking/${ids[0]}/resend`, { as: w.people.ta.id, body: { outboxId: row!.id } }), params({ submissionId: String(ids[0]) }));
+    expect(res.status).toBe(200);
+    await new Promise((r) => setTimeout(r, 300));
+    await deliverOutbox();
+    expect(await mailTo(students[0].email)).toHaveLength(2);
+    const wrong = await resendPOST(await apiRequest(`/api/marking/${ids[1]}/resend`, { as: w.people.ta.id, body: { outboxId: row!.id } }), params({ submissionId: String(ids[1]) }));
+    expect(wrong.status).toBe(404);
+  });
+});
