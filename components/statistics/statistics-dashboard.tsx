@@ -1,0 +1,229 @@
+'use client';
+/**
+ * The statistics of one practical, fetched from /api/statistics/… with SWR. Every figure is
+ * computed in the database by the API; this component only lays it out.
+ */
+import Link from 'next/link';
+import { useState } from 'react';
+import useSWR from 'swr';
+import type { Comparison } from '@/lib/statistics/compare';
+import type { PracticalReport } from '@/lib/statistics/report';
+import type { QuantityStat } from '@/lib/statistics/queries';
+import { formatPercent, quantityLabel } from '@/lib/statistics/scale';
+import { BoxPlotChart, HistogramChart } from './charts';
+
+async function fetcher<T>(url: string): Promise<T> {
+  const res = await fetch(url, { headers: { accept: 'application/json' } });
+  const body = await res.json();
+  if (!res.ok) throw new Error(body?.error ?? `Request failed (${res.status}).`);
+  return body as T;
+}
+
+const BASES = [
+  { basis: 'consistency', title: 'Consistency', lead: 'Is each derived number right from the student’s own measurements? (method and arithmetic)' },
+  { basis: 'accuracy', title: 'Accuracy', lead: 'Is the measured value close to the accepted one? (the experiment)' },
+] as const;
+
+function Verdict({ kind, share, count }: { kind: 'within' | 'partial' | 'outside'; share: number; count: number }) {
+  const look = {
+    within: { symbol: '✓', word: 'within', cls: 'text-verdict-within bg-verdict-within-bg' },
+    partial: { symbol: '◐', word: 'partial', cls: 'text-verdict-partial bg-verdict-partial-bg' },
+    outside: { symbol: '✗', word: 'outside', cls: 'text-verdict-outside bg-verdict-outside-bg' },
+  }[kind];
+  return (
+    <span className={`inline-block rounded px-1.5 num text-xs ${look.cls}`}>
+      <span aria-hidden="true">{look.symbol}</span> {look.word} {formatPercent(share * 100, 0)} ({count})
+    </span>
+  );
+}
+
+export function StatisticsDashboard({ practicalId, cohortId, canExportMarks }: { practicalId: number; cohortId: number | null; canExportMarks: boolean }) {
+  const [threshold, setThreshold] = useState(10);
+  const [by, setBy] = useState<'cohort' | 'instrument'>('cohort');
+  const q = new URLSearchParams();
+  if (cohortId) q.set('cohortId', String(cohortId));
+  const base = `/api/statistics/practicals/${practicalId}`;
+  const { data, error, isLoading } = useSWR<PracticalReport>(`${base}?${q}&threshold=${threshold}`, fetcher, { keepPreviousData: true });
+  const compare = useSWR<Comparison>(`${base}/compare?by=${by}`, fetcher);
+
+  if (error) return <p role="alert" className="card error-text">{error.message}</p>;
+  if (isLoading || !data) return <p className="card text-ink-soft" aria-live="polite">Loading statistics…</p>;
+  const c = data.counts;
+  const qs = q.toString();
+
+  return (
+    <div className="space-y-8">
+      <section aria-labelledby="exports-h" className="flex flex-wrap items-center gap-2">
+        <h2 id="exports-h" className="sr-only">Exports</h2>
+        {canExportMarks && <a className="btn" href={`${base}/export/marks?${qs}`} download>Marks CSV (student records)</a>}
+        <a className="btn-quiet" href={`${base}/export/statistics?${qs}`} download>Statistics CSV</a>
+        <a className="btn-quiet" href={`${base}/export/summary?${qs}`} download>One-page PDF summary</a>
+      </section>
+
+      <section aria-labelledby="counts-h" className="card">
+        <h2 id="counts-h">Submissions — {data.scope.label}</h2>
+        <dl className="mt-3 grid grid-cols-3 gap-4 sm:grid-cols-6">
+          {([['Students', c.students], ['Submitted', c.submitted], ['On time', c.onTime], ['Late', c.late], ['Marked', c.marked], ['Released', c.released]] as const).map(([label, v]) => (
+            <div key={label}>
+              <dt className="text-xs font-bold uppercase tracking-wide text-ink-soft">{label}</dt>
+              <dd className="num text-xl">{v}</dd>
+            </div>
+          ))}
+        </dl>
+        {data.suppressed && (
+          <p className="mt-3 text-ink-soft">Fewer than {data.minGroup} students in this group: only counts are shown, no distributions or means.</p>
+        )}
+      </section>
+
+      {!data.suppressed && BASES.map(({ basis, title, lead }) => {
+        const stats = data.quantities.filter((s) => s.basis === basis);
+        return (
+          <section key={basis} aria-labelledby={`${basis}-h`} className="card space-y-4">
+            <div>
+              <h2 id={`${basis}-h`}>{title}: relative deviation per quantity</h2>
+              <p className="text-ink-soft">{lead}</p>
+            </div>
+            <BoxPlotChart title={`Box plots of relative deviation, ${basis}`} stats={stats} />
+            <QuantityTable stats={stats} caption={`${title}: figures per quantity`} />
+            <h3>Histograms</h3>
+            <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3">
+              {stats.filter((s) => s.histogram).map((s) => <HistogramChart key={`${s.key}-${s.species}`} stat={s} />)}
+            </div>
+          </section>
+        );
+      })}
+
+      <section aria-labelledby="slips-h" className="card">
+        <h2 id="slips-h">Most frequent slips</h2>
+        {data.slips.length === 0 ? <p className="text-ink-soft">No slips named in this group.</p> : (
+          <table className="data-table mt-2">
+            <caption className="sr-only">Most frequent named slips, with an example submission each</caption>
+            <thead><tr><th scope="col">Slip</th><th scope="col">Quantities</th><th scope="col" className="num">Found</th><th scope="col" className="num">Submissions</th><th scope="col">Example</th></tr></thead>
+            <tbody>
+              {data.slips.map((s) => (
+                <tr key={s.code}>
+                  <td>{s.title}</td>
+                  <td className="text-ink-soft">{s.keys.join(', ')}</td>
+                  <td className="num">{s.count}</td>
+                  <td className="num">{s.submissions}</td>
+                  <td><Link href={s.exampleHref}>Submission {s.exampleSubmissionId}</Link></td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        )}
+      </section>
+
+      <section aria-labelledby="markers-h" className="card space-y-3">
+        <h2 id="markers-h">Marker consistency</h2>
+        <p className="text-ink-soft">
+          Marks as a share of the maximum; difference = TA mark − engine proposal, in percentage points of the maximum. Spread is the population standard deviation.
+          {!data.markers.namesShown && ' Other markers are shown without their names.'}
+        </p>
+        <label className="label" htmlFor="threshold">Flag a marker whose mean differs from the others’ by more than (percentage points)</label>
+        <input id="threshold" className="field max-w-32" type="number" min={0} max={100} step={1} value={threshold}
+          onChange={(e) => { const v = Number(e.target.value); if (Number.isFinite(v) && v >= 0 && v <= 100) setThreshold(v); }} />
+        {data.markers.rows.length === 0 ? <p className="text-ink-soft">Nothing marked yet.</p> : (
+          <table className="data-table">
+            <caption className="sr-only">Marker consistency per marker</caption>
+            <thead><tr>
+              <th scope="col">Marker</th><th scope="col" className="num">Marked</th><th scope="col" className="num">Mean mark</th><th scope="col" className="num">Spread</th>
+              <th scope="col" className="num">Others’ mean</th><th scope="col" className="num">Mean difference</th><th scope="col" className="num">Spread</th>
+              <th scope="col" className="num">Overrides</th><th scope="col" className="num">Moderation changes</th><th scope="col">Flag</th>
+            </tr></thead>
+            <tbody>
+              {data.markers.rows.map((m) => (
+                <tr key={m.label}>
+                  <td>{m.label}</td>
+                  <td className="num">{m.submissions}</td>
+                  <td className="num">{m.suppressed ? '—' : formatPercent(m.meanMark, 1)}</td>
+                  <td className="num">{m.suppressed ? '—' : formatPercent(m.sdMark, 1)}</td>
+                  <td className="num">{formatPercent(m.othersMean, 1)}</td>
+                  <td className="num">{m.suppressed ? '—' : formatPercent(m.meanDifference, 1)}</td>
+                  <td className="num">{m.suppressed ? '—' : formatPercent(m.sdDifference, 1)}</td>
+                  <td className="num">{m.overrides}</td>
+                  <td className="num">{m.moderationChanges} of {m.moderations}</td>
+                  <td>{m.flagged ? <span className="rounded bg-verdict-outside-bg px-1.5 text-verdict-outside"><span aria-hidden="true">⚑ </span>differs by more than {data.markers.threshold} points</span> : m.suppressed ? `fewer than ${data.minGroup} marked` : 'no'}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        )}
+      </section>
+
+      <section aria-labelledby="compare-h" className="card space-y-3">
+        <h2 id="compare-h">Across cohorts and years</h2>
+        <fieldset className="flex gap-4">
+          <legend className="label">Side by side per</legend>
+          {(['cohort', 'instrument'] as const).map((v) => (
+            <label key={v} className="flex items-center gap-1 text-sm">
+              <input type="radio" name="compare-by" value={v} checked={by === v} onChange={() => setBy(v)} /> {v}
+            </label>
+          ))}
+        </fieldset>
+        {compare.error ? <p className="error-text">{compare.error.message}</p> : !compare.data ? <p className="text-ink-soft">Loading…</p> : <ComparisonTable data={compare.data} />}
+      </section>
+    </div>
+  );
+}
+
+function QuantityTable({ stats, caption }: { stats: QuantityStat[]; caption: string }) {
+  return (
+    <div className="overflow-x-auto">
+      <table className="data-table">
+        <caption className="sr-only">{caption}</caption>
+        <thead><tr>
+          <th scope="col">Quantity</th><th scope="col" className="num">n</th><th scope="col">Verdicts</th>
+          <th scope="col" className="num">Min</th><th scope="col" className="num">Q1</th><th scope="col" className="num">Median</th><th scope="col" className="num">Q3</th><th scope="col" className="num">Max</th><th scope="col" className="num">Mean</th>
+        </tr></thead>
+        <tbody>
+          {stats.map((s) => (
+            <tr key={`${s.key}-${s.species}`}>
+              <td>{quantityLabel(s.key, s.species)}</td>
+              <td className="num">{s.n}</td>
+              <td>{s.suppressed || !s.shares || !s.verdicts ? <span className="text-ink-soft">fewer than 5 students</span> : (
+                <span className="flex flex-wrap gap-1">
+                  <Verdict kind="within" share={s.shares.within} count={s.verdicts.within} />
+                  <Verdict kind="partial" share={s.shares.partial} count={s.verdicts.partial} />
+                  <Verdict kind="outside" share={s.shares.outside} count={s.verdicts.outside} />
+                  {s.verdicts.notChecked > 0 && <span className="inline-block rounded bg-verdict-unchecked-bg px-1.5 text-xs text-verdict-unchecked"><span aria-hidden="true">○</span> not checked {s.verdicts.notChecked}</span>}
+                </span>
+              )}</td>
+              {(['min', 'q1', 'median', 'q3', 'max'] as const).map((k) => <td key={k} className="num">{formatPercent(s.box?.[k])}</td>)}
+              <td className="num">{formatPercent(s.mean)}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}
+
+function ComparisonTable({ data }: { data: Comparison }) {
+  if (!data.groups.length) return <p className="text-ink-soft">No other cohorts ran this practical.</p>;
+  const keys = [...new Map(data.groups.flatMap((g) => g.quantities).map((q) => [`${q.key}|${q.species}|${q.basis}`, q])).values()];
+  return (
+    <div className="overflow-x-auto">
+      <table className="data-table">
+        <caption className="text-left text-sm text-ink-soft">Practicals titled “{data.title}”: median relative deviation and share within tolerance per group</caption>
+        <thead>
+          <tr><th scope="col">Figure</th>{data.groups.map((g) => <th key={g.group} scope="col" className="num">{g.label}</th>)}</tr>
+        </thead>
+        <tbody>
+          <tr><th scope="row">Submitted (late)</th>{data.groups.map((g) => <td key={g.group} className="num">{g.counts.submitted} ({g.counts.late})</td>)}</tr>
+          <tr><th scope="row">Marked / released</th>{data.groups.map((g) => <td key={g.group} className="num">{g.counts.marked} / {g.counts.released}</td>)}</tr>
+          <tr><th scope="row">Mean mark (spread)</th>{data.groups.map((g) => <td key={g.group} className="num">{g.suppressed ? 'counts only' : `${formatPercent(g.meanMark, 1)} (${formatPercent(g.sdMark, 1)})`}</td>)}</tr>
+          {keys.map((k) => (
+            <tr key={`${k.key}|${k.species}|${k.basis}`}>
+              <th scope="row">{quantityLabel(k.key, k.species)} · {k.basis}</th>
+              {data.groups.map((g) => {
+                const q = g.quantities.find((x) => x.key === k.key && x.species === k.species && x.basis === k.basis);
+                return <td key={g.group} className="num">{!q ? '—' : q.suppressed || !q.shares ? `n ${q.n}` : `${formatPercent(q.box?.median)} · ✓ ${formatPercent(q.shares.within * 100, 0)}`}</td>;
+              })}
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
+}

@@ -1,0 +1,319 @@
+/**
+ * Cohort statistics, computed in the database with portable SQL (SQLite ≥ 3.25 and PostgreSQL):
+ * COUNT / SUM / AVG / MIN / MAX with GROUP BY, histogram buckets with CASE, quartiles from
+ * ROW_NUMBER / COUNT window functions. JavaScript only reshapes the aggregate rows (and
+ * interpolates between the two order statistics the database returns for each quartile).
+ */
+import { QueryTypes } from 'sequelize';
+import { sequelize } from '@/lib/db';
+import { HISTOGRAM_EDGES_PERCENT, MIN_GROUP, bucketLabel } from './definitions';
+
+export type Basis = 'consistency' | 'accuracy';
+
+export interface Scope {
+  practicalIds: number[];
+  cohortIds: number[];
+}
+
+/** "Grouping" column for the per-group variants: nothing, the cohort, or the cohort's instrument. */
+export type GroupBy = 'none' | 'cohort' | 'instrument';
+
+const groupExpr: Record<GroupBy, string> = {
+  none: `'all'`,
+  cohort: `CAST(s."cohortId" AS VARCHAR(20))`,
+  instrument: `COALESCE(c.instrument, '(not recorded)')`,
+};
+
+/** WHERE clause selecting the counted submissions of a scope (see definitions.ts). */
+const COUNTED = `s."practicalId" IN (:practicalIds) AND s."cohortId" IN (:cohortIds)
+  AND s.status <> 'draft' AND s."submittedAt" IS NOT NULL AND s."isMarkedAttempt" = :yes`;
+
+function q<T extends object>(sql: string, replacements: object): Promise<T[]> {
+  return sequelize().query<T>(sql, { replacements: { yes: true, ...replacements }, type: QueryTypes.SELECT });
+}
+
+const num = (v: unknown): number => (v === null || v === undefined ? 0 : Number(v));
+const numOrNull = (v: unknown): number | null => (v === null || v === undefined ? null : Number(v));
+
+// ---------------------------------------------------------------------------------------------
+
+export interface Counts {
+  group: string;
+  students: number;
+  submitted: number;
+  onTime: number;
+  late: number;
+  marked: number;
+  released: number;
+}
+
+export async function submissionCounts(scope: Scope, groupBy: GroupBy = 'none'): Promise<Counts[]> {
+  const rows = await q<Record<string, unknown>>(
+    `SELECT ${groupExpr[groupBy]} AS g,
+       COUNT(DISTINCT s."studentId") AS students,
+       COUNT(*) AS submitted,
+       SUM(CASE WHEN s."daysLate" > 0 THEN 0 ELSE 1 END) AS "onTime",
+       SUM(CASE WHEN s."daysLate" > 0 THEN 1 ELSE 0 END) AS late,
+       SUM(CASE WHEN s.status IN ('marked', 'released') THEN 1 ELSE 0 END) AS marked,
+       SUM(CASE WHEN s."releasedAt" IS NOT NULL THEN 1 ELSE 0 END) AS released
+     FROM submissions s JOIN cohorts c ON c.id = s."cohortId"
+     WHERE ${COUNTED}
+     GROUP BY ${groupExpr[groupBy]}`,
+    { ...scope },
+  );
+  return rows.map((r) => ({
+    group: String(r.g), students: num(r.students), submitted: num(r.submitted), onTime: num(r.onTime),
+    late: num(r.late), marked: num(r.marked), released: num(r.released),
+  }));
+}
+
+// ---------------------------------------------------------------------------------------------
+
+export interface BoxPlot { min: number; q1: number; median: number; q3: number; max: number }
+
+export interface QuantityStat {
+  group: string;
+  key: string;
+  species: string;
+  basis: Basis;
+  /** Check results (one per counted submission that reported this quantity). */
+  n: number;
+  /** Students behind them; below MIN_GROUP only counts are given. */
+  students: number;
+  suppressed: boolean;
+  verdicts?: { within: number; partial: number; outside: number; notChecked: number };
+  shares?: { within: number; partial: number; outside: number };
+  /** Relative deviation in percent, over checked rows. */
+  checked?: number;
+  mean?: number | null;
+  sd?: number | null;
+  box?: BoxPlot | null;
+  histogram?: { bucket: number; label: string; count: number }[];
+}
+
+/** The check rows of the counted submissions, relative deviation x in percent (null when not checked). */
+const checkRows = (groupBy: GroupBy) => `
+  SELECT ${groupExpr[groupBy]} AS g, cr."key" AS qkey, cr.species AS species, cr.basis AS basis, cr.verdict AS verdict,
+         s."studentId" AS "studentId",
+         CASE WHEN cr.verdict <> 'not-checked' AND cr."relativeDeviation" IS NOT NULL THEN cr."relativeDeviation" * 100 END AS x
+  FROM check_results cr
+    JOIN submissions s ON s.id = cr."submissionId"
+    ${groupBy === 'instrument' ? 'JOIN cohorts c ON c.id = s."cohortId"' : ''}
+  WHERE ${COUNTED}`;
+
+const edgeReplacements = Object.fromEntries(HISTOGRAM_EDGES_PERCENT.map((e, i) => [`e${i}`, e]));
+/** Bucket index = number of edges at or below x (0 … edges.length). */
+const bucketExpr = HISTOGRAM_EDGES_PERCENT.map((_, i) => `CASE WHEN x >= :e${i} THEN 1 ELSE 0 END`).join(' + ');
+
+const quantityKey = (g: string, k: string, sp: string, b: string) => `${g}\u0000${k}\u0000${sp}\u0000${b}`;
+
+export async function quantityStatistics(scope: Scope, groupBy: GroupBy = 'none'): Promise<QuantityStat[]> {
+  const base = checkRows(groupBy);
+  // Histogram buckets in their own GROUP BY, so the bucket expression is evaluated once per row
+  // (folding it into the summary as SUM(CASE …) columns makes SQLite re-expand it per column).
+  const [summary, buckets, ranks] = await Promise.all([
+    q<Record<string, unknown>>(
+      `SELECT g, qkey, species, basis, COUNT(*) AS n, COUNT(DISTINCT "studentId") AS students,
+         SUM(CASE WHEN verdict = 'within' THEN 1 ELSE 0 END) AS within,
+         SUM(CASE WHEN verdict = 'partial' THEN 1 ELSE 0 END) AS partial,
+         SUM(CASE WHEN verdict = 'outside' THEN 1 ELSE 0 END) AS outside,
+         SUM(CASE WHEN verdict NOT IN ('within', 'partial', 'outside') THEN 1 ELSE 0 END) AS "notChecked",
+         COUNT(x) AS checked, MIN(x) AS min, MAX(x) AS max, AVG(x) AS mean,
+         CASE WHEN AVG(x * x) - AVG(x) * AVG(x) > 0 THEN SQRT(AVG(x * x) - AVG(x) * AVG(x)) ELSE 0 END AS sd
+       FROM (${base}) v GROUP BY g, qkey, species, basis ORDER BY g, qkey, species, basis`,
+      scope,
+    ),
+    q<Record<string, unknown>>(
+      `SELECT g, qkey, species, basis, ${bucketExpr} AS b, COUNT(*) AS n
+       FROM (${base}) v WHERE x IS NOT NULL GROUP BY g, qkey, species, basis, ${bucketExpr}`,
+      { ...scope, ...edgeReplacements },
+    ),
+    // R type 7 quartiles: for p = 1/4, 1/2, 3/4 the 1-based ranks ⌊(n−1)p⌋+1 and +2, in integer arithmetic.
+    q<Record<string, unknown>>(
+      `SELECT g, qkey, species, basis, rn, n, x FROM (
+         SELECT g, qkey, species, basis, x,
+           ROW_NUMBER() OVER w AS rn,
+           COUNT(*) OVER (w ROWS BETWEEN UNBOUNDED PRECEDING AND UNBOUNDED FOLLOWING) AS n
+         FROM (${base}) v WHERE x IS NOT NULL
+         WINDOW w AS (PARTITION BY g, qkey, species, basis ORDER BY x)
+       ) r
+       WHERE rn IN ((n - 1) / 4 + 1, (n - 1) / 4 + 2, (n - 1) / 2 + 1, (n - 1) / 2 + 2, (3 * (n - 1)) / 4 + 1, (3 * (n - 1)) / 4 + 2)`,
+      scope,
+    ),
+  ]);
+
+  const hist = new Map<string, Map<number, number>>();
+  for (const r of buckets) {
+    const k = quantityKey(String(r.g), String(r.qkey), String(r.species), String(r.basis));
+    if (!hist.has(k)) hist.set(k, new Map());
+    hist.get(k)!.set(num(r.b), num(r.n));
+  }
+  const orderStats = new Map<string, Map<number, number>>();
+  for (const r of ranks) {
+    const k = quantityKey(String(r.g), String(r.qkey), String(r.species), String(r.basis));
+    if (!orderStats.has(k)) orderStats.set(k, new Map());
+    orderStats.get(k)!.set(num(r.rn), Number(r.x));
+  }
+
+  return summary.map((r) => {
+    const k = quantityKey(String(r.g), String(r.qkey), String(r.species), String(r.basis));
+    const n = num(r.n);
+    const students = num(r.students);
+    const stat: QuantityStat = {
+      group: String(r.g), key: String(r.qkey), species: String(r.species), basis: String(r.basis) as Basis,
+      n, students, suppressed: students < MIN_GROUP,
+    };
+    if (stat.suppressed) return stat;
+    const within = num(r.within), partial = num(r.partial), outside = num(r.outside);
+    const judged = within + partial + outside;
+    stat.verdicts = { within, partial, outside, notChecked: num(r.notChecked) };
+    stat.shares = judged ? { within: within / judged, partial: partial / judged, outside: outside / judged } : { within: 0, partial: 0, outside: 0 };
+    stat.checked = num(r.checked);
+    stat.mean = numOrNull(r.mean);
+    stat.sd = numOrNull(r.sd);
+    const os = orderStats.get(k);
+    stat.box = stat.checked > 0 && os
+      ? { min: Number(r.min), q1: interpolate(os, stat.checked, 1, 4), median: interpolate(os, stat.checked, 1, 2), q3: interpolate(os, stat.checked, 3, 4), max: Number(r.max) }
+      : null;
+    const h = hist.get(k) ?? new Map<number, number>();
+    stat.histogram = Array.from({ length: HISTOGRAM_EDGES_PERCENT.length + 1 }, (_, b) => ({ bucket: b, label: bucketLabel(b), count: h.get(b) ?? 0 }));
+    return stat;
+  });
+}
+
+/** R type 7 from the order statistics the database returned (ranks are 1-based). */
+function interpolate(os: Map<number, number>, n: number, num: number, den: number): number {
+  const scaled = (n - 1) * num; // h·den
+  const lower = Math.floor(scaled / den) + 1;
+  const fraction = (scaled % den) / den;
+  const a = os.get(lower)!;
+  if (fraction === 0 || lower >= n) return a;
+  return a + fraction * (os.get(lower + 1)! - a);
+}
+
+// ---------------------------------------------------------------------------------------------
+
+export interface SlipStat { code: string; count: number; submissions: number; exampleSubmissionId: number; keys: string[] }
+
+export async function frequentSlips(scope: Scope, limit = 10): Promise<SlipStat[]> {
+  const [rows, keys] = await Promise.all([
+    q<Record<string, unknown>>(
+      `SELECT sf.code AS code, COUNT(*) AS n, COUNT(DISTINCT sf."submissionId") AS submissions, MIN(sf."submissionId") AS example
+       FROM slip_findings sf JOIN submissions s ON s.id = sf."submissionId"
+       WHERE ${COUNTED}
+       GROUP BY sf.code ORDER BY COUNT(*) DESC, sf.code LIMIT :limit`,
+      { ...scope, limit },
+    ),
+    q<Record<string, unknown>>(
+      `SELECT sf.code AS code, sf."key" AS qkey, COUNT(*) AS n
+       FROM slip_findings sf JOIN submissions s ON s.id = sf."submissionId"
+       WHERE ${COUNTED}
+       GROUP BY sf.code, sf."key" ORDER BY COUNT(*) DESC`,
+      scope,
+    ),
+  ]);
+  return rows.map((r) => ({
+    code: String(r.code), count: num(r.n), submissions: num(r.submissions), exampleSubmissionId: num(r.example),
+    keys: keys.filter((k) => k.code === r.code).map((k) => String(k.qkey)),
+  }));
+}
+
+// ---------------------------------------------------------------------------------------------
+
+export interface MarkerRow {
+  markerId: number;
+  submissions: number;
+  /** Mean and population SD of awardedTotal / maxTotal, in percent. */
+  meanMark: number | null;
+  sdMark: number | null;
+  /** Mean and population SD of (awardedTotal − proposedTotal) / maxTotal, in percentage points. */
+  meanDifference: number | null;
+  sdDifference: number | null;
+  overrides: number;
+  moderations: number;
+  moderationChanges: number;
+  /** Mean of the other markers' submissions pooled, and whether this marker differs by more than the threshold. */
+  othersMean: number | null;
+  flagged: boolean;
+  suppressed: boolean;
+  sumMark: number;
+  markCount: number;
+}
+
+export async function markerConsistency(scope: Scope, thresholdPoints: number): Promise<MarkerRow[]> {
+  const sdOf = (e: string) => `CASE WHEN AVG(${e} * ${e}) - AVG(${e}) * AVG(${e}) > 0 THEN SQRT(AVG(${e} * ${e}) - AVG(${e}) * AVG(${e})) ELSE 0 END`;
+  const [marks, overrides, moderations] = await Promise.all([
+    q<Record<string, unknown>>(
+      `SELECT "markerId", COUNT(*) AS submissions, COUNT(f) AS "markCount", SUM(f) AS "sumMark", AVG(f) AS "meanMark", ${sdOf('f')} AS "sdMark",
+              AVG(d) AS "meanDifference", ${sdOf('d')} AS "sdDifference"
+       FROM (
+         SELECT s."markedById" AS "markerId",
+           CASE WHEN s."maxTotal" > 0 AND s."awardedTotal" IS NOT NULL THEN 100.0 * s."awardedTotal" / s."maxTotal" END AS f,
+           CASE WHEN s."maxTotal" > 0 AND s."awardedTotal" IS NOT NULL AND s."proposedTotal" IS NOT NULL
+                THEN 100.0 * (s."awardedTotal" - s."proposedTotal") / s."maxTotal" END AS d
+         FROM submissions s
+         WHERE ${COUNTED} AND s."markedById" IS NOT NULL AND s.status IN ('marked', 'released')
+       ) m GROUP BY "markerId"`,
+      scope,
+    ),
+    q<Record<string, unknown>>(
+      `SELECT s."markedById" AS "markerId", COUNT(*) AS n
+       FROM marks m JOIN submissions s ON s.id = m."submissionId"
+       WHERE ${COUNTED} AND s."markedById" IS NOT NULL AND m.awarded IS NOT NULL AND m.proposed IS NOT NULL
+         AND ABS(m.awarded - m.proposed) > 0.000001
+       GROUP BY s."markedById"`,
+      scope,
+    ),
+    q<Record<string, unknown>>(
+      `SELECT mo."markerId" AS "markerId", COUNT(*) AS n, SUM(CASE WHEN mo.decision = 'changed' THEN 1 ELSE 0 END) AS changed
+       FROM moderations mo JOIN submissions s ON s.id = mo."submissionId"
+       WHERE ${COUNTED} AND mo."markerId" IS NOT NULL
+       GROUP BY mo."markerId"`,
+      scope,
+    ),
+  ]);
+  const ov = new Map(overrides.map((r) => [num(r.markerId), num(r.n)]));
+  const mo = new Map(moderations.map((r) => [num(r.markerId), { n: num(r.n), changed: num(r.changed) }]));
+  const rows: MarkerRow[] = marks.map((r) => ({
+    markerId: num(r.markerId), submissions: num(r.submissions),
+    meanMark: numOrNull(r.meanMark), sdMark: numOrNull(r.sdMark),
+    meanDifference: numOrNull(r.meanDifference), sdDifference: numOrNull(r.sdDifference),
+    overrides: ov.get(num(r.markerId)) ?? 0,
+    moderations: mo.get(num(r.markerId))?.n ?? 0, moderationChanges: mo.get(num(r.markerId))?.changed ?? 0,
+    othersMean: null, flagged: false, suppressed: num(r.submissions) < MIN_GROUP,
+    sumMark: num(r.sumMark), markCount: num(r.markCount),
+  }));
+  const totalSum = rows.reduce((a, r) => a + r.sumMark, 0);
+  const totalCount = rows.reduce((a, r) => a + r.markCount, 0);
+  for (const r of rows) {
+    const othersCount = totalCount - r.markCount;
+    r.othersMean = othersCount > 0 ? (totalSum - r.sumMark) / othersCount : null;
+    r.flagged = !r.suppressed && othersCount >= MIN_GROUP && r.meanMark !== null && r.othersMean !== null
+      && Math.abs(r.meanMark - r.othersMean) > thresholdPoints;
+    if (r.suppressed) {
+      r.meanMark = r.sdMark = r.meanDifference = r.sdDifference = null;
+    }
+  }
+  return rows;
+}
+
+// ---------------------------------------------------------------------------------------------
+
+export interface MarkSummary { group: string; students: number; marked: number; meanMark: number | null; sdMark: number | null }
+
+/** Mean and population SD of awarded / max (percent) per group, over marked counted submissions. */
+export async function markSummary(scope: Scope, groupBy: GroupBy): Promise<MarkSummary[]> {
+  const rows = await q<Record<string, unknown>>(
+    `SELECT g, COUNT(DISTINCT "studentId") AS students, COUNT(f) AS marked, AVG(f) AS mean,
+       CASE WHEN AVG(f * f) - AVG(f) * AVG(f) > 0 THEN SQRT(AVG(f * f) - AVG(f) * AVG(f)) ELSE 0 END AS sd
+     FROM (
+       SELECT ${groupExpr[groupBy]} AS g, s."studentId" AS "studentId",
+         CASE WHEN s.status IN ('marked', 'released') AND s."maxTotal" > 0 AND s."awardedTotal" IS NOT NULL
+              THEN 100.0 * s."awardedTotal" / s."maxTotal" END AS f
+       FROM submissions s JOIN cohorts c ON c.id = s."cohortId"
+       WHERE ${COUNTED}
+     ) m GROUP BY g`,
+    scope,
+  );
+  return rows.map((r) => ({ group: String(r.g), students: num(r.students), marked: num(r.marked), meanMark: numOrNull(r.mean), sdMark: numOrNull(r.sd) }));
+}

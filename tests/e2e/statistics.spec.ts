@@ -1,0 +1,36 @@
+/**
+ * The course lead opens the statistics of a seeded cohort (demo seed: CHEM2041 Group A), sees the
+ * charts and the slip table, and downloads the marks CSV with its documented header.
+ */
+import { expect, test } from '@playwright/test';
+import fs from 'node:fs';
+
+test('course lead sees cohort statistics and downloads the marks CSV', async ({ page }) => {
+  await page.goto('/signin');
+  await page.fill('#email', 'lead@northmere.example');
+  await page.fill('#password', 'northmere-demo-26');
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL((url) => !url.pathname.startsWith('/signin'));
+
+  await page.goto('/statistics');
+  await expect(page.getByRole('heading', { level: 1, name: 'Cohort statistics' })).toBeVisible();
+  await page.getByRole('link', { name: /Group A/ }).first().click();
+  await expect(page.getByRole('heading', { level: 1, name: /Statistics:/ })).toBeVisible();
+  await expect(page.getByRole('heading', { name: /Submissions — Group A/ })).toBeVisible();
+
+  // Charts (recharts SVG) with accessible names, and the slip table.
+  await expect(page.getByRole('img', { name: /Box plots of relative deviation, consistency/ })).toBeVisible();
+  await expect(page.getByRole('img', { name: /Histogram of relative deviation/ }).first()).toBeVisible();
+  await expect(page.locator('figure svg.recharts-surface').first()).toBeVisible();
+  await expect(page.getByRole('heading', { name: 'Most frequent slips' })).toBeVisible();
+  const slipRows = page.getByRole('table', { name: /Most frequent named slips/ }).locator('tbody tr');
+  await expect(slipRows.first()).toBeVisible();
+  await expect(slipRows.first().getByRole('link', { name: /Submission \d+/ })).toHaveAttribute('href', /^\/marking\/\d+$/);
+
+  const download = page.waitForEvent('download');
+  await page.getByRole('link', { name: /Marks CSV/ }).click();
+  const file = await (await download).path();
+  const text = fs.readFileSync(file!, 'utf8').replace(/^\ufeff/, '');
+  expect(text.split(/\r?\n/)[0]).toMatch(/^student_number,name,email,cohort,practical,attempt,submitted_at,late_days,late_penalty_percent,.*total,max_total,status$/);
+  expect(text.split(/\r?\n/).filter(Boolean).length).toBe(21); // header + the 20 students of Group A
+});
