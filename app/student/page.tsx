@@ -1,14 +1,50 @@
+import Link from 'next/link';
 import { authorizePage } from '@/lib/authz';
 import { PageHeader } from '@/components/ui/page-header';
+import { openPracticalsFor, timeLeft } from '@/lib/submissions/student-home';
 
 export const metadata = { title: 'My practicals' };
+export const dynamic = 'force-dynamic';
 
 export default async function StudentHome() {
   const actor = await authorizePage({ kind: 'role', role: 'student' });
+  const practicals = await openPracticalsFor(actor);
   return (
     <>
-      <PageHeader title="My practicals" lead={`Signed in as ${actor.name}. Open practicals, deadlines, your submissions and released feedback appear here.`} />
-      <p className="card text-ink-soft">No practical is open for your cohorts yet.</p>
+      <PageHeader title="My practicals" lead={`Signed in as ${actor.name}. Open practicals, deadlines, your submissions and released feedback.`} />
+      {practicals.length === 0 ? (
+        <p className="card text-ink-soft">No practical is open for your cohorts yet.</p>
+      ) : (
+        <table className="data-table card">
+          <caption className="sr-only">Open practicals</caption>
+          <thead>
+            <tr>
+              <th scope="col">Practical</th>
+              <th scope="col">Cohort</th>
+              <th scope="col">Deadline</th>
+              <th scope="col" className="num">Attempts left</th>
+              <th scope="col">Your work</th>
+            </tr>
+          </thead>
+          <tbody>
+            {practicals.map((p) => (
+              <tr key={`${p.practicalId}`}>
+                <td>
+                  <Link href={`/student/practicals/${p.practicalId}`}>{p.title}</Link>
+                  <div className="text-xs text-ink-soft">{p.mode === 'practice' ? 'Practice: checks shown at once' : 'Assessed'}</div>
+                </td>
+                <td>{p.cohortName}</td>
+                <td>
+                  <span className="num">{new Date(p.deadline).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' })}</span>
+                  <div className="text-xs text-ink-soft">{timeLeft(new Date(p.deadline))}</div>
+                </td>
+                <td className="num">{p.attemptsLeft}</td>
+                <td>{p.released ? 'Feedback released' : p.latestStatus ? `Attempt ${p.attemptsUsed} ${p.latestStatus}` : p.hasDraft ? 'Draft saved' : 'Not started'}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      )}
     </>
   );
 }

@@ -1,0 +1,67 @@
+/**
+ * The shapes a student sends: the draft (autosaved), the submit request and upload fields.
+ * Shared by the submission form (react-hook-form + zodResolver) and the route handlers.
+ * No server-only imports here.
+ */
+import { z } from 'zod';
+
+/** More lines than any band has; the line-list parser uses the same limit. */
+export const MAX_DRAFT_LINES = 2000;
+export const MAX_LINE_TEXT = 400_000;
+
+const text = (max: number) => z.string().max(max, `At most ${max} characters.`);
+
+/** A number as typed: raw text kept for the significant-figure check. */
+export const typedNumberSchema = z.object({
+  value: text(60).default(''),
+  unit: text(40).default(''),
+  uncertainty: text(60).default(''),
+});
+export type TypedNumberInput = z.infer<typeof typedNumberSchema>;
+
+export const draftLineSchema = z.object({
+  branch: z.enum(['P', 'R']).nullable(),
+  J: z.number().int().min(0).max(200).nullable(),
+  wavenumber: z.number().finite().gt(0, 'A wavenumber must be positive.').lt(100000),
+});
+export type DraftLine = z.infer<typeof draftLineSchema>;
+
+export const speciesDraftSchema = z.object({
+  /** The list as typed or pasted; the source of `lines`. */
+  lineText: text(MAX_LINE_TEXT).default(''),
+  lines: z.array(draftLineSchema).max(MAX_DRAFT_LINES, `At most ${MAX_DRAFT_LINES} lines; paste the peak positions only.`).default([]),
+  bandCentre: typedNumberSchema.default({ value: '', unit: 'cm-1', uncertainty: '' }),
+  overtone: typedNumberSchema.optional(),
+  /** Derived quantities by quantity key. */
+  values: z.record(z.string().max(40), typedNumberSchema).default({}),
+});
+export type SpeciesDraft = z.infer<typeof speciesDraftSchema>;
+
+export const draftSchema = z.object({
+  species: z.record(z.string().max(40), speciesDraftSchema).default({}),
+  spectrumUploadId: z.number().int().positive().nullable().default(null),
+  reportUploadId: z.number().int().positive().nullable().default(null),
+});
+export type Draft = z.infer<typeof draftSchema>;
+
+export const saveDraftSchema = z.object({
+  practicalId: z.number().int().positive(),
+  draft: draftSchema,
+});
+
+export const submitSchema = z.object({
+  /** The draft's version the student last saw; a second click with the same version is refused. */
+  version: z.number().int().min(0),
+  draft: draftSchema,
+});
+
+export const UPLOAD_KINDS = ['spectrum', 'report'] as const;
+export type UploadKind = (typeof UPLOAD_KINDS)[number];
+
+export function emptyDraft(species: string[]): Draft {
+  return {
+    species: Object.fromEntries(species.map((s) => [s, { lineText: '', lines: [], bandCentre: { value: '', unit: 'cm-1', uncertainty: '' }, values: {} }])),
+    spectrumUploadId: null,
+    reportUploadId: null,
+  };
+}

@@ -1,0 +1,310 @@
+/**
+ * checkStoredSubmission: run the grading engine on a stored submission and store what it found.
+ *
+ * Reads the submission, its practical, the quantity definitions, the tolerance bands that apply
+ * to its cohort, the submitted values and the line assignments; calls `checkSubmission` once per
+ * isotopologue of the practical; compares the reported lines with the peaks of the uploaded
+ * spectrum; then replaces, for this submission only:
+ *   - check_results  (one row per quantity, species and basis),
+ *   - slip_findings  (one row per named slip: key = quantity key, code = slip code),
+ *   - submissions.checkSummary (the whole engine output per species + spectrum comparison),
+ *   - the flags (flagOutside, flagSlip, flagLate, flagDuplicate, flagSpectrumMismatch),
+ *   - proposed marks: one row per quantity item (itemKey `${key}:${species}`) and one per rubric
+ *     item (`rubric:${key}`, proposed null), keeping any `awarded` and `comment` a marker set.
+ *
+ * How one quantity's marks are proposed: the item's marks are shared equally between the bases
+ * that received a verdict (consistency and accuracy: half each when both were checked, the
+ * shares from BASIS_SHARE in lib/instructor/bands.ts); each share is marksFor(verdict) — full
+ * within the inner band, half within the outer band, none outside. A quantity with no checked
+ * basis (not reported, or no band) is proposed null: the marker decides.
+ * proposedTotal is the sum of the proposed quantity marks (rubric items excluded), before any
+ * late penalty; submissions.latePenalty holds the percentage to deduct from the total.
+ */
+import crypto from 'node:crypto';
+import fs from 'node:fs';
+import { Op, type Transaction } from 'sequelize';
+import { sequelize } from '@/lib/db';
+import { models } from '@/models';
+import {
+  checkSubmission,
+  isQuantityKey,
+  QUANTITIES,
+  SI_UNIT,
+  SLIPS,
+  parseSpecies,
+  marksFor,
+  type Num,
+  type QuantityKey,
+  type SubmissionResult,
+  type Tolerance,
+} from '@/lib/grading';
+import { pickBands, toleranceFor, BASIS_SHARE, type ResolvedBand } from '@/lib/instructor/bands';
+import { uploadPath } from '@/lib/storage';
+import { compareLinesToPeaks, parseSpectrumFile, pickPeaks, sniffUpload } from '@/lib/spectrum';
+
+export interface SpectrumCheckSummary {
+  uploadId: number;
+  ok: boolean;
+  message?: string;
+  reported: number;
+  matched: number;
+  unmatched: number;
+  strongPeaks: number;
+  missing: number;
+  tolerance: number;
+  unmatchedLines: { species: string; branch: 'P' | 'R' | null; J: number | null; wavenumber: number; nearest: number | null }[];
+  missingPeaks: number[];
+}
+
+export interface CheckSummary {
+  version: 1;
+  checkedAt: string;
+  species: Record<string, SubmissionResult>;
+  spectrum: SpectrumCheckSummary | null;
+  duplicate: { lineList: boolean; spectrum: boolean; otherSubmissionIds: number[] };
+}
+
+/** Wavenumbers exactly as stored, so a copied list matches "to the last decimal". */
+export function lineListHash(lines: { species: string; branch: string | null; J: number | null; wavenumber: number }[]): string | null {
+  if (lines.length < 3) return null;
+  const rows = lines.map((l) => `${l.species}|${l.branch ?? ''}|${l.J ?? ''}|${String(l.wavenumber)}`).sort();
+  return crypto.createHash('sha256').update(rows.join('\n')).digest('hex');
+}
+
+/** Typed uncertainty text → number for the engine; blank or unreadable → undefined (the engine notes it). */
+export function uncertaintyNumber(textValue: string | null | undefined): number | undefined {
+  if (!textValue || !textValue.trim()) return undefined;
+  const n = Number(textValue.trim().replace(/^±\s*/, '').replace(',', '.'));
+  return Number.isFinite(n) && n >= 0 ? n : undefined;
+}
+
+export const SPECTRUM_MISMATCH_SHARE = 0.1;
+
+export async function checkStoredSubmission(submissionId: number, options: { transaction?: Transaction } = {}): Promise<CheckSummary> {
+  if (options.transaction) return run(submissionId, options.transaction);
+  return sequelize().transaction((t) => run(submissionId, t));
+}
+
+async function run(submissionId: number, transaction: Transaction): Promise<CheckSummary> {
+  const { Submission, Practical, QuantityDefinition, ToleranceBand, SubmittedValue, LineAssignment, CheckResult, SlipFinding, Mark, Upload } = models();
+  const submission = await Submission.findByPk(submissionId, { transaction });
+  if (!submission) throw new Error(`Submission ${submissionId} does not exist`);
+  const practical = await Practical.findByPk(submission.practicalId, { transaction });
+  if (!practical) throw new Error(`Practical ${submission.practicalId} does not exist`);
+  const qdefs = await QuantityDefinition.findAll({ where: { practicalId: practical.id }, order: [['position', 'ASC'], ['id', 'ASC']], transaction });
+  const bandRows = qdefs.length
+    ? await ToleranceBand.findAll({
+        where: { quantityDefinitionId: qdefs.map((q) => q.id), [Op.or]: [{ cohortId: null }, { cohortId: submission.cohortId }] },
+        transaction,
+      })
+    : [];
+  const bands = pickBands(bandRows.map((r) => r.get({ plain: true }) as ResolvedBand), submission.cohortId);
+  const values = await SubmittedValue.findAll({ where: { submissionId }, transaction });
+  const lines = await LineAssignment.findAll({ where: { submissionId }, order: [['id', 'ASC']], transaction });
+  const valueOf = (key: string, species: string) => values.find((v) => v.key === key && v.species === species);
+  const asNum = (v: { valueText: string; unit: string; uncertaintyText: string | null }): Num => {
+    const n: Num = { value: v.valueText, unit: v.unit };
+    const u = uncertaintyNumber(v.uncertaintyText);
+    if (u !== undefined) n.uncertainty = u;
+    return n;
+  };
+
+  const speciesList: string[] = Array.isArray(practical.species) ? practical.species : [];
+  const results: Record<string, SubmissionResult> = {};
+  for (const sp of speciesList) {
+    const defs = qdefs.filter((q) => q.species === sp && isQuantityKey(q.key));
+    const reported: Partial<Record<QuantityKey, Num>> = {};
+    const reference: Partial<Record<QuantityKey, Num>> = {};
+    const tolerances: Partial<Record<QuantityKey, Tolerance>> = {};
+    const consistencyTolerances: Partial<Record<QuantityKey, Tolerance>> = {};
+    const requireUncertainty: Partial<Record<QuantityKey, boolean>> = {};
+    for (const q of defs) {
+      const key = q.key as QuantityKey;
+      const v = valueOf(key, sp);
+      if (v && v.valueText.trim() !== '') reported[key] = asNum(v);
+      if (q.referenceKind === 'department' && q.referenceValueSI !== null && Number.isFinite(q.referenceValueSI)) {
+        reference[key] = { value: q.referenceValueSI, unit: SI_UNIT[QUANTITIES[key].dimension] };
+      }
+      const b = bands.get(q.id) ?? {};
+      if (b.accuracy) tolerances[key] = toleranceFor(b.accuracy);
+      if (b.consistency) consistencyTolerances[key] = toleranceFor(b.consistency);
+      requireUncertainty[key] = q.uncertaintyRequired;
+    }
+    const band = valueOf('bandCentre', sp);
+    const overtone = valueOf('overtone', sp);
+    const spLines = lines.filter((l) => l.species === sp && l.branch && l.J !== null).map((l) => ({ branch: l.branch as 'P' | 'R', J: l.J as number, wavenumber: l.wavenumber }));
+    const partnerName = speciesList.find((o) => o !== sp);
+    const partnerBand = partnerName ? valueOf('bandCentre', partnerName) : undefined;
+    results[sp] = checkSubmission({
+      species: sp,
+      measured: {
+        ...(band && band.valueText.trim() ? { bandCentre: asNum(band) } : {}),
+        ...(overtone && overtone.valueText.trim() ? { overtone: asNum(overtone) } : {}),
+        ...(spLines.length ? { lines: spLines } : {}),
+        ...(partnerName && partnerBand && partnerBand.valueText.trim() ? { partner: { species: partnerName, bandCentre: asNum(partnerBand) } } : {}),
+      },
+      reported,
+      reference,
+      tolerances,
+      consistencyTolerances,
+      requireUncertainty,
+    });
+  }
+
+  // --- The student's lines against the peaks of their own spectrum ----------------------
+  const spectrumUpload = await Upload.findOne({ where: { submissionId, kind: 'spectrum' }, order: [['id', 'DESC']], transaction });
+  let spectrum: SpectrumCheckSummary | null = null;
+  if (spectrumUpload) spectrum = compareWithSpectrum(spectrumUpload, lines);
+
+  // --- Duplicate data (for staff only) ---------------------------------------------------
+  const hash = lineListHash(lines);
+  const others = new Set<number>();
+  let dupLines = false;
+  let dupSpectrum = false;
+  if (hash) {
+    const same = await Submission.findAll({
+      where: { lineListHash: hash, studentId: { [Op.ne]: submission.studentId }, attempt: { [Op.gt]: 0 } },
+      attributes: ['id'],
+      transaction,
+    });
+    for (const s of same) others.add(s.id);
+    dupLines = same.length > 0;
+  }
+  if (spectrumUpload) {
+    const same = await Upload.findAll({ where: { sha256: spectrumUpload.sha256, kind: 'spectrum', id: { [Op.ne]: spectrumUpload.id } }, transaction });
+    const subIds = same.map((u) => u.submissionId).filter((x): x is number => x !== null);
+    if (subIds.length) {
+      const subs = await Submission.findAll({
+        where: { id: subIds, studentId: { [Op.ne]: submission.studentId }, attempt: { [Op.gt]: 0 } },
+        attributes: ['id'],
+        transaction,
+      });
+      for (const s of subs) others.add(s.id);
+      dupSpectrum = subs.length > 0;
+    }
+  }
+  if (others.size) await Submission.update({ flagDuplicate: true }, { where: { id: [...others] }, transaction });
+
+  // --- Replace the stored results ---------------------------------------------------------
+  await CheckResult.destroy({ where: { submissionId }, transaction });
+  await SlipFinding.destroy({ where: { submissionId }, transaction });
+  const checkRows = [];
+  const slipRows: { submissionId: number; key: string; code: string }[] = [];
+  let anyOutside = false;
+  let anySlip = false;
+  for (const [sp, r] of Object.entries(results)) {
+    const seen = new Set<string>();
+    for (const q of r.quantities) {
+      const codes = q.diagnoses.map((d) => d.code);
+      if (q.verdict === 'outside') anyOutside = true;
+      checkRows.push({
+        submissionId, key: q.key, species: sp, basis: q.basis,
+        reportedSI: finite(q.reportedSI), expectedSI: finite(q.expectedSI), deviation: finite(q.deviation), relativeDeviation: finite(q.relativeDeviation),
+        verdict: q.verdict, slipCodes: codes.join(',').slice(0, 400),
+      });
+      for (const code of codes) {
+        if (!(code in SLIPS) || seen.has(`${q.key}|${code}`)) continue;
+        seen.add(`${q.key}|${code}`);
+        slipRows.push({ submissionId, key: q.key, code });
+        anySlip = true;
+      }
+    }
+  }
+  if (checkRows.length) await CheckResult.bulkCreate(checkRows, { transaction });
+  if (slipRows.length) await SlipFinding.bulkCreate(slipRows, { transaction });
+
+  // --- Proposed marks ------------------------------------------------------------------------
+  const items: { itemKey: string; label: string; maxMarks: number; proposed: number | null }[] = [];
+  for (const q of qdefs) {
+    if (!isQuantityKey(q.key) || !speciesList.includes(q.species)) continue;
+    const checks = (results[q.species]?.quantities ?? []).filter((c) => c.key === q.key && c.verdict !== 'not-checked');
+    let proposed: number | null = null;
+    if (checks.length) {
+      const shareTotal = checks.reduce((s, c) => s + BASIS_SHARE[c.basis], 0);
+      proposed = checks.reduce((s, c) => s + marksFor(c.verdict, q.marks) * (BASIS_SHARE[c.basis] / shareTotal), 0);
+      proposed = Math.round(proposed * 100) / 100;
+    }
+    items.push({ itemKey: `${q.key}:${q.species}`, label: `${QUANTITIES[q.key].label}, ${speciesDisplay(q.species)}`, maxMarks: q.marks, proposed });
+  }
+  for (const r of Array.isArray(practical.rubric) ? practical.rubric : []) {
+    items.push({ itemKey: `rubric:${r.key}`, label: r.title, maxMarks: r.marks, proposed: null });
+  }
+  const existing = await Mark.findAll({ where: { submissionId }, transaction });
+  const wanted = new Set(items.map((i) => i.itemKey));
+  for (const m of existing) {
+    if (!wanted.has(m.itemKey) && m.awarded === null && !m.comment) await m.destroy({ transaction });
+  }
+  for (const item of items) {
+    const row = existing.find((m) => m.itemKey === item.itemKey);
+    if (row) await row.update({ label: item.label, maxMarks: item.maxMarks, proposed: item.proposed }, { transaction });
+    else await Mark.create({ submissionId, ...item, awarded: null, comment: null, markerId: null }, { transaction });
+  }
+  const quantityItems = items.filter((i) => !i.itemKey.startsWith('rubric:'));
+  const proposedTotal = quantityItems.some((i) => i.proposed !== null) ? Math.round(quantityItems.reduce((s, i) => s + (i.proposed ?? 0), 0) * 100) / 100 : null;
+  const maxTotal = items.reduce((s, i) => s + i.maxMarks, 0);
+
+  const summary: CheckSummary = {
+    version: 1,
+    checkedAt: new Date().toISOString(),
+    species: results,
+    spectrum,
+    duplicate: { lineList: dupLines, spectrum: dupSpectrum, otherSubmissionIds: [...others] },
+  };
+  await submission.update(
+    {
+      checkSummary: JSON.parse(JSON.stringify(summary)),
+      lineListHash: hash,
+      flagOutside: anyOutside,
+      flagSlip: anySlip,
+      flagLate: submission.daysLate > 0,
+      flagDuplicate: others.size > 0,
+      flagSpectrumMismatch: spectrum ? !spectrum.ok || spectrum.unmatched > Math.max(1, SPECTRUM_MISMATCH_SHARE * spectrum.reported) : false,
+      proposedTotal,
+      maxTotal,
+    },
+    { transaction },
+  );
+  return summary;
+}
+
+function finite(x: number): number | null {
+  return typeof x === 'number' && Number.isFinite(x) ? x : null;
+}
+
+export function speciesDisplay(sp: string): string {
+  const p = parseSpecies(sp);
+  return p.ok ? p.species.display : sp;
+}
+
+/** Reads the stored spectrum file and matches every reported line (all isotopologues together) to a peak. */
+export function compareWithSpectrum(
+  upload: { id: number; storedName: string; originalName: string },
+  lines: { species: string; branch: 'P' | 'R' | null; J: number | null; wavenumber: number }[],
+): SpectrumCheckSummary {
+  const empty = { uploadId: upload.id, reported: lines.length, matched: 0, unmatched: 0, strongPeaks: 0, missing: 0, tolerance: 0, unmatchedLines: [], missingPeaks: [] };
+  const loaded = loadSpectrum(upload);
+  if (!loaded.ok) return { ...empty, ok: false, message: loaded.message };
+  const peaks = pickPeaks(loaded.spectrum);
+  const cmp = compareLinesToPeaks(lines.map((l) => ({ species: l.species, wavenumber: l.wavenumber, branch: l.branch ?? undefined, J: l.J ?? undefined })), peaks);
+  return {
+    uploadId: upload.id,
+    ok: true,
+    ...cmp.summary,
+    unmatchedLines: cmp.lines
+      .filter((c) => !c.matched)
+      .map((c) => ({ species: c.line.species, branch: c.line.branch ?? null, J: c.line.J ?? null, wavenumber: c.line.wavenumber, nearest: c.nearest ? c.nearest.wavenumber : null })),
+    missingPeaks: cmp.missing.map((p) => Math.round(p.wavenumber * 1000) / 1000).slice(0, 100),
+  };
+}
+
+export function loadSpectrum(upload: { storedName: string; originalName: string }) {
+  let bytes: Buffer;
+  try {
+    bytes = fs.readFileSync(uploadPath(upload.storedName));
+  } catch {
+    return { ok: false as const, message: 'The spectrum file could not be read.' };
+  }
+  const sniff = sniffUpload(new Uint8Array(bytes), upload.originalName);
+  if (sniff.kind !== 'jcamp' && sniff.kind !== 'csv') return { ok: false as const, message: 'The stored file is not a spectrum.' };
+  return parseSpectrumFile(bytes.toString('utf8'), sniff.kind);
+}

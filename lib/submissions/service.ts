@@ -1,0 +1,210 @@
+/**
+ * Drafts and submitted attempts.
+ *
+ * A student's draft is one submissions row with attempt 0 and status 'draft' (the form's state in
+ * `draft`). Submitting copies the draft into a new row with attempt n = 1, 2, …, writes its
+ * submitted values and line assignments, moves (or copies) the uploads to it, applies the late
+ * rule and runs checkStoredSubmission, all in one transaction.
+ *
+ * Double submits: the request names the draft version it was built from; the first submit bumps
+ * the version in a conditional UPDATE, so a second request with the same version changes
+ * nothing and is answered 409. The unique index (practicalId, studentId, attempt) backs this up.
+ */
+import crypto from 'node:crypto';
+import fs from 'node:fs';
+import { Op, UniqueConstraintError, type Transaction } from 'sequelize';
+import type { Actor } from '@/lib/authz';
+import { audit } from '@/lib/audit';
+import { sequelize } from '@/lib/db';
+import { HttpError } from '@/lib/http';
+import { uploadPath } from '@/lib/storage';
+import { isQuantityKey, QUANTITIES } from '@/lib/grading';
+import { models } from '@/models';
+import type { Practical } from '@/models/practical';
+import type { PracticalCohort } from '@/models/practical-cohort';
+import type { Submission } from '@/models/submission';
+import { draftSchema, emptyDraft, type Draft } from '@/lib/schemas/submission';
+import { checkStoredSubmission } from './check';
+
+const DAY_MS = 86_400_000;
+
+/** Days late, counting every day started after the deadline. */
+export function daysLate(submittedAt: Date, deadline: Date): number {
+  const ms = submittedAt.getTime() - deadline.getTime();
+  return ms > 0 ? Math.ceil(ms / DAY_MS) : 0;
+}
+
+/** Percentage deducted from the total: per day started, up to the cap (rule 'penalty' only). */
+export function latePenaltyFor(practical: Pick<Practical, 'lateRule' | 'latePenaltyPerDay' | 'latePenaltyCap'>, days: number): number {
+  if (days <= 0 || practical.lateRule !== 'penalty') return 0;
+  return Math.min(practical.latePenaltyCap, practical.latePenaltyPerDay * days);
+}
+
+export async function attemptsUsed(practicalId: number, studentId: number, transaction?: Transaction) {
+  const rows = await models().Submission.findAll({ where: { practicalId, studentId }, attributes: ['attempt', 'extraAttempts'], transaction });
+  const used = rows.filter((r) => r.attempt > 0).length;
+  const lastAttempt = rows.reduce((m, r) => Math.max(m, r.attempt), 0);
+  const extra = rows.reduce((m, r) => Math.max(m, r.extraAttempts), 0);
+  return { used, lastAttempt, extra };
+}
+
+export function readDraft(raw: unknown, species: string[]): Draft {
+  const parsed = draftSchema.safeParse(raw ?? {});
+  const base = emptyDraft(species);
+  if (!parsed.success) return base;
+  return { ...base, ...parsed.data, species: { ...base.species, ...parsed.data.species } };
+}
+
+export async function findDraft(practicalId: number, studentId: number, transaction?: Transaction) {
+  return models().Submission.findOne({ where: { practicalId, studentId, attempt: 0 }, transaction });
+}
+
+/** Uploads named by the draft must be the student's own. */
+async function assertOwnUploads(draft: Draft, studentId: number, transaction?: Transaction) {
+  for (const [field, kind] of [['spectrumUploadId', 'spectrum'], ['reportUploadId', 'report']] as const) {
+    const id = draft[field];
+    if (id === null) continue;
+    const up = await models().Upload.findByPk(id, { transaction });
+    if (!up || up.ownerId !== studentId || up.kind !== kind) throw new HttpError(400, `The ${kind} file named in the draft is not one of your uploads.`, { [field]: ['Upload the file again.'] });
+  }
+}
+
+/** Drop species the practical does not have, so a draft cannot grow without bound. */
+function trimDraft(draft: Draft, practical: Practical): Draft {
+  const species = Object.fromEntries(Object.entries(draft.species).filter(([s]) => practical.species.includes(s)));
+  return { ...draft, species };
+}
+
+export async function saveDraft(actor: Actor, practical: Practical, pc: PracticalCohort, draftIn: Draft) {
+  const draft = trimDraft(draftIn, practical);
+  await assertOwnUploads(draft, actor.id);
+  const { Submission } = models();
+  return sequelize().transaction(async (transaction) => {
+    const existing = await findDraft(practical.id, actor.id, transaction);
+    if (existing) {
+      await existing.update({ draft, version: existing.version + 1 }, { transaction });
+      return existing;
+    }
+    try {
+      return await Submission.create(
+        { practicalId: practical.id, cohortId: pc.cohortId, studentId: actor.id, attempt: 0, status: 'draft', draft, submittedAt: null, isMarkedAttempt: false, checkSummary: null, lineListHash: null, proposedTotal: null, awardedTotal: null, maxTotal: null, markedById: null, markedAt: null, releasedAt: null, resubmissionMessage: null, version: 1 },
+        { transaction },
+      );
+    } catch (e) {
+      if (e instanceof UniqueConstraintError) throw new HttpError(409, 'Your draft was saved from another tab at the same moment; reload the page.');
+      throw e;
+    }
+  });
+}
+
+/**
+ * A submission must contain something: at least one line or one reported value. Missing
+ * quantities are not refused (partial work may be handed in); they are shown as format notes
+ * and earn no proposed marks.
+ */
+export function validateForSubmit(draft: Draft, practical: Practical, _qdefs: { key: string; species: string }[]) {
+  const anything = practical.species.some((sp) => {
+    const d = draft.species[sp];
+    return d && (d.lines.length > 0 || Object.values(d.values).some((v) => v.value.trim() !== ''));
+  });
+  if (!anything) throw new HttpError(400, 'The submission is empty: enter your line list and the required values first.', { species: ['At least one line or one value is required.'] });
+}
+
+function randomName(ext: string) {
+  return `${crypto.randomBytes(16).toString('hex')}${ext}`;
+}
+
+/**
+ * SQLite allows one writer; two submits of the same draft at the same moment would otherwise
+ * collide on the database lock. Within one server process they queue here; across processes
+ * (PostgreSQL) the conditional version update decides.
+ */
+const submitQueues = new Map<number, Promise<unknown>>();
+function serialised<T>(key: number, fn: () => Promise<T>): Promise<T> {
+  const prev = submitQueues.get(key) ?? Promise.resolve();
+  const next = prev.catch(() => undefined).then(fn);
+  submitQueues.set(key, next);
+  void next.finally(() => {
+    if (submitQueues.get(key) === next) submitQueues.delete(key);
+  }).catch(() => undefined);
+  return next;
+}
+
+export async function submitDraft(actor: Actor, draftRow: Submission, practical: Practical, version: number, draftIn: Draft, now = new Date()) {
+  return serialised(draftRow.id, () => submitDraftNow(actor, draftRow, practical, version, draftIn, now));
+}
+
+async function submitDraftNow(actor: Actor, draftRow: Submission, practical: Practical, version: number, draftIn: Draft, now = new Date()) {
+  if (draftRow.attempt !== 0) throw new HttpError(409, 'This attempt was already submitted.');
+  const draft = trimDraft(draftIn, practical);
+  await assertOwnUploads(draft, actor.id);
+  const { Submission, PracticalCohort, QuantityDefinition, SubmittedValue, LineAssignment, Upload } = models();
+  const pc = await PracticalCohort.findOne({ where: { practicalId: practical.id, cohortId: draftRow.cohortId } });
+  if (!pc) throw new HttpError(409, 'This practical is no longer set for your cohort.');
+  const qdefs = await QuantityDefinition.findAll({ where: { practicalId: practical.id } });
+  validateForSubmit(draft, practical, qdefs);
+
+  const late = daysLate(now, pc.deadline);
+  if (late > 0 && practical.lateRule === 'not-accepted') {
+    throw new HttpError(409, 'The deadline has passed and this practical does not accept late submissions. Speak to your instructor.');
+  }
+  const copied: string[] = [];
+  try {
+    return await sequelize().transaction(async (transaction) => {
+      const { used, lastAttempt, extra } = await attemptsUsed(practical.id, actor.id, transaction);
+      if (used >= practical.maxAttempts + extra) throw new HttpError(409, `You have used all ${practical.maxAttempts + extra} attempts for this practical.`);
+      const [bumped] = await Submission.update({ version: version + 1, draft }, { where: { id: draftRow.id, version }, transaction });
+      if (bumped === 0) throw new HttpError(409, 'This draft was already submitted or changed in another tab. Reload the page to see your latest attempt.');
+
+      await Submission.update({ isMarkedAttempt: false }, { where: { practicalId: practical.id, studentId: actor.id, attempt: { [Op.gt]: 0 } }, transaction });
+      const attempt = await Submission.create(
+        {
+          practicalId: practical.id, cohortId: draftRow.cohortId, studentId: actor.id, attempt: lastAttempt + 1, status: 'submitted', draft,
+          submittedAt: now, daysLate: late, latePenalty: latePenaltyFor(practical, late), flagLate: late > 0, isMarkedAttempt: true,
+          checkSummary: null, lineListHash: null, proposedTotal: null, awardedTotal: null, maxTotal: null, markedById: null, markedAt: null,
+          releasedAt: null, resubmissionMessage: null, version: 0,
+        },
+        { transaction },
+      );
+      const valueRows: { submissionId: number; key: string; species: string; valueText: string; unit: string; uncertaintyText: string | null; valueSI: number | null }[] = [];
+      const lineRows: { submissionId: number; species: string; branch: 'P' | 'R' | null; J: number | null; wavenumber: number; source: 'student' }[] = [];
+      for (const sp of practical.species) {
+        const d = draft.species[sp];
+        if (!d) continue;
+        const put = (key: string, v: { value: string; unit: string; uncertainty: string } | undefined) => {
+          if (v && v.value.trim() !== '') valueRows.push({ submissionId: attempt.id, key, species: sp, valueText: v.value.trim(), unit: v.unit.trim(), uncertaintyText: v.uncertainty.trim() || null, valueSI: null });
+        };
+        put('bandCentre', d.values.bandCentre ?? d.bandCentre);
+        put('overtone', d.overtone);
+        for (const [key, v] of Object.entries(d.values)) if (key !== 'bandCentre' && key !== 'overtone' && isQuantityKey(key)) put(key, v);
+        for (const l of d.lines) lineRows.push({ submissionId: attempt.id, species: sp, branch: l.branch, J: l.J, wavenumber: l.wavenumber, source: 'student' });
+      }
+      if (valueRows.length) await SubmittedValue.bulkCreate(valueRows, { transaction });
+      if (lineRows.length) await LineAssignment.bulkCreate(lineRows, { transaction });
+
+      for (const id of [draft.spectrumUploadId, draft.reportUploadId]) {
+        if (id === null) continue;
+        const up = await Upload.findByPk(id, { transaction });
+        if (!up) continue;
+        if (up.submissionId === draftRow.id || up.submissionId === null) {
+          await up.update({ submissionId: attempt.id }, { transaction });
+        } else {
+          // Already part of an earlier attempt: that attempt keeps its file, this one gets a copy.
+          const ext = up.storedName.includes('.') ? up.storedName.slice(up.storedName.indexOf('.')) : '';
+          const storedName = randomName(ext);
+          fs.copyFileSync(uploadPath(up.storedName), uploadPath(storedName));
+          copied.push(storedName);
+          await Upload.create({ ownerId: up.ownerId, submissionId: attempt.id, kind: up.kind, originalName: up.originalName, storedName, sha256: up.sha256, size: up.size, contentType: up.contentType }, { transaction });
+        }
+      }
+      await checkStoredSubmission(attempt.id, { transaction });
+      await audit({ actorId: actor.id, action: 'submission.submit', entityType: 'submission', entityId: attempt.id, after: { attempt: attempt.attempt, daysLate: late } }, transaction);
+      return attempt;
+    });
+  } catch (e) {
+    for (const name of copied) fs.rmSync(uploadPath(name), { force: true });
+    if (e instanceof UniqueConstraintError) throw new HttpError(409, 'This attempt was already submitted (a second click?). Reload the page to see it.');
+    if (e instanceof Error && /SQLITE_BUSY/.test(String((e as { parent?: unknown }).parent ?? e.message))) throw new HttpError(409, 'Another change to this submission is being saved; try again in a moment.');
+    throw e;
+  }
+}

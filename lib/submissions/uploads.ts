@@ -1,0 +1,132 @@
+/**
+ * Spectrum and report uploads. The content decides the type (sniffUpload), never the name; a
+ * spectrum must also parse. Files are stored under uploadDir() with a random name, with their
+ * sha256. Whatever is refused leaves nothing on disk and nothing in the database.
+ */
+import crypto from 'node:crypto';
+import fs from 'node:fs';
+import path from 'node:path';
+import { Readable } from 'node:stream';
+import type { IncomingMessage } from 'node:http';
+import formidable from 'formidable';
+import { HttpError } from '@/lib/http';
+import { uploadDir, uploadPath } from '@/lib/storage';
+import { parseSpectrumFile, sniffUpload, type UploadKind as SniffKind } from '@/lib/spectrum';
+import type { UploadKind } from '@/lib/schemas/submission';
+
+const MB = 1024 * 1024;
+
+export function uploadLimits() {
+  const num = (v: string | undefined, d: number) => (v && Number.isFinite(Number(v)) && Number(v) > 0 ? Number(v) : d);
+  return { spectrum: num(process.env.SPECTRUM_MAX_BYTES, 5 * MB), report: num(process.env.REPORT_MAX_BYTES, 20 * MB) };
+}
+
+const CONTENT_TYPES: Record<Exclude<SniffKind, 'unknown'>, { type: string; ext: string }> = {
+  pdf: { type: 'application/pdf', ext: '.pdf' },
+  jcamp: { type: 'chemical/x-jcamp-dx', ext: '.jdx' },
+  csv: { type: 'text/csv', ext: '.csv' },
+};
+
+export interface ReceivedFile {
+  tempPath: string;
+  originalName: string;
+  size: number;
+}
+
+/** Streams a multipart request through formidable into the upload directory; temp files are removed on any failure. */
+export async function receiveMultipart(request: Request, maxBytes: number): Promise<{ fields: Record<string, string>; file: ReceivedFile | null; cleanup: () => void }> {
+  const type = request.headers.get('content-type') ?? '';
+  if (!type.toLowerCase().startsWith('multipart/form-data')) throw new HttpError(415, 'Send the file as multipart/form-data.');
+  const declared = Number(request.headers.get('content-length') ?? 0);
+  if (declared > maxBytes + 64 * 1024) throw new HttpError(413, `The file is too large (limit ${formatBytes(maxBytes)}).`);
+  if (!request.body) throw new HttpError(400, 'No file was sent.');
+  const dir = uploadDir();
+  const created: string[] = [];
+  const cleanup = () => {
+    for (const p of created) fs.rmSync(p, { force: true });
+  };
+  const stream = Readable.fromWeb(request.body as unknown as import('node:stream/web').ReadableStream) as unknown as IncomingMessage;
+  const headers: Record<string, string> = Object.fromEntries(request.headers.entries());
+  // Without a length formidable assumes an empty body; a streamed body is chunked.
+  if (headers['content-length'] === undefined) headers['transfer-encoding'] = 'chunked';
+  Object.assign(stream, { headers });
+  const form = formidable({
+    uploadDir: dir,
+    maxFiles: 1,
+    maxFields: 10,
+    maxFieldsSize: 64 * 1024,
+    maxFileSize: maxBytes,
+    maxTotalFileSize: maxBytes,
+    allowEmptyFiles: true,
+    minFileSize: 0,
+    filename: () => `${crypto.randomBytes(16).toString('hex')}.part`,
+  });
+  form.on('fileBegin', (_name, file) => {
+    created.push(file.filepath);
+  });
+  try {
+    const [fields, files] = await form.parse(stream);
+    const flat: Record<string, string> = {};
+    for (const [k, v] of Object.entries(fields)) if (v && v.length) flat[k] = String(v[0]);
+    const list = Object.values(files).flat().filter(Boolean) as formidable.File[];
+    const f = list[0];
+    return { fields: flat, file: f ? { tempPath: f.filepath, originalName: f.originalFilename ?? '', size: f.size } : null, cleanup };
+  } catch (e) {
+    cleanup();
+    const err = e as { httpCode?: number; code?: number; message?: string };
+    if (err.httpCode === 413 || /maxFileSize|maxTotalFileSize|exceeded/i.test(err.message ?? '')) throw new HttpError(413, `The file is too large (limit ${formatBytes(maxBytes)}).`);
+    if (/maxFiles/i.test(err.message ?? '')) throw new HttpError(400, 'Send one file at a time.');
+    throw new HttpError(400, 'The upload could not be read as multipart form data.');
+  }
+}
+
+export function formatBytes(n: number): string {
+  return n >= MB ? `${+(n / MB).toFixed(1)} MB` : `${Math.ceil(n / 1024)} kB`;
+}
+
+/** A file name as the student's computer named it; refused if it tries to name folders or control characters. */
+export function checkOriginalName(name: string): string {
+  const trimmed = name.trim();
+  if (!trimmed) throw new HttpError(400, 'The file has no name.');
+  if (/[\\/]/.test(trimmed) || trimmed.split(/[\\/]/).includes('..') || trimmed === '..' || trimmed.startsWith('.')) {
+    throw new HttpError(400, 'The file name must be a plain name, without folders or a leading dot.');
+  }
+  // eslint-disable-next-line no-control-regex
+  if (/[\u0000-\u001f\u007f]/.test(trimmed)) throw new HttpError(400, 'The file name contains control characters.');
+  if (trimmed.length > 200) throw new HttpError(400, 'The file name is too long (at most 200 characters).');
+  return trimmed;
+}
+
+export interface AcceptedFile {
+  storedName: string;
+  sha256: string;
+  size: number;
+  contentType: string;
+  originalName: string;
+  finalPath: string;
+  warnings: string[];
+}
+
+/** Checks the received bytes for the kind asked for and moves the file to its final random name. */
+export function acceptFile(file: ReceivedFile, kind: UploadKind): AcceptedFile {
+  const limits = uploadLimits();
+  const originalName = checkOriginalName(file.originalName);
+  if (file.size > limits[kind]) throw new HttpError(413, `A ${kind === 'report' ? 'report' : 'spectrum'} may be at most ${formatBytes(limits[kind])}; this file is ${formatBytes(file.size)}.`);
+  const bytes = fs.readFileSync(file.tempPath);
+  if (bytes.length === 0) throw new HttpError(400, 'The file is empty (0 bytes).');
+  const sniff = sniffUpload(new Uint8Array(bytes), originalName);
+  if (!sniff.ok) throw new HttpError(415, sniff.problems.join(' '));
+  const warnings: string[] = [];
+  if (kind === 'report' && sniff.kind !== 'pdf') throw new HttpError(415, 'The report must be a PDF document.');
+  if (kind === 'spectrum') {
+    if (sniff.kind !== 'jcamp' && sniff.kind !== 'csv') throw new HttpError(415, 'The spectrum must be a JCAMP-DX (.jdx, .dx) or two-column CSV file.');
+    const parsed = parseSpectrumFile(bytes.toString('utf8'), sniff.kind);
+    if (!parsed.ok) throw new HttpError(422, `The spectrum could not be read: ${parsed.message}`);
+    warnings.push(...parsed.warnings);
+  }
+  const ct = CONTENT_TYPES[sniff.kind as Exclude<SniffKind, 'unknown'>];
+  const storedName = `${crypto.randomBytes(16).toString('hex')}${ct.ext}`;
+  const finalPath = uploadPath(storedName);
+  fs.renameSync(file.tempPath, finalPath);
+  return { storedName, sha256: crypto.createHash('sha256').update(bytes).digest('hex'), size: bytes.length, contentType: ct.type, originalName: path.basename(originalName), finalPath, warnings };
+}
