@@ -26,7 +26,7 @@ export class CheckResult extends Model<InferAttributes<CheckResult>, InferCreati
         verdict: col.str(20), slipCodes: { ...col.str(400), defaultValue: '' },
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, tableName: 'check_results' },
+      { sequelize, modelName: 'CheckResult', tableName: 'check_results' },
     );
   }
 }

@@ -33,7 +33,7 @@ export class EmailOutbox extends Model<InferAttributes<EmailOutbox>, InferCreati
         lockedUntil: col.date(), lastError: col.text(true), messageId: col.str(300, true), sentAt: col.date(),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, tableName: 'email_outbox' },
+      { sequelize, modelName: 'EmailOutbox', tableName: 'email_outbox' },
     );
   }
 }

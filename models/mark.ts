@@ -23,7 +23,7 @@ export class Mark extends Model<InferAttributes<Mark>, InferCreationAttributes<M
         proposed: col.float(), awarded: col.float(), comment: col.text(true), markerId: col.fk(true),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, tableName: 'marks' },
+      { sequelize, modelName: 'Mark', tableName: 'marks' },
     );
   }
 }

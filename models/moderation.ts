@@ -20,7 +20,7 @@ export class Moderation extends Model<InferAttributes<Moderation>, InferCreation
         totalBefore: col.float(), totalAfter: col.float(), note: col.text(true),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, tableName: 'moderations' },
+      { sequelize, modelName: 'Moderation', tableName: 'moderations' },
     );
   }
 }

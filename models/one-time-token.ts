@@ -18,7 +18,7 @@ export class OneTimeToken extends Model<InferAttributes<OneTimeToken>, InferCrea
         id: col.id, userId: col.fk(), purpose: col.str(20), tokenHash: col.str(64), expiresAt: col.date(false), usedAt: col.date(),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, tableName: 'one_time_tokens' },
+      { sequelize, modelName: 'OneTimeToken', tableName: 'one_time_tokens' },
     );
   }
 }

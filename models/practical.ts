@@ -36,7 +36,7 @@ export class Practical extends Model<InferAttributes<Practical>, InferCreationAt
         rubric: col.json(false), copiedFromId: col.fk(true), archivedAt: col.date(),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, tableName: 'practicals' },
+      { sequelize, modelName: 'Practical', tableName: 'practicals' },
     );
   }
 }

@@ -17,7 +17,7 @@ export class SignInFailure extends Model<InferAttributes<SignInFailure>, InferCr
         id: col.id, subject: col.str(300), failures: col.int(0), firstFailureAt: col.date(false), blockedUntil: col.date(),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, tableName: 'sign_in_failures' },
+      { sequelize, modelName: 'SignInFailure', tableName: 'sign_in_failures' },
     );
   }
 }

@@ -53,7 +53,7 @@ export class Submission extends Model<InferAttributes<Submission>, InferCreation
         resubmissionMessage: col.text(true), markerComment: col.text(true), version: col.int(0),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, tableName: 'submissions' },
+      { sequelize, modelName: 'Submission', tableName: 'submissions' },
     );
   }
 }

@@ -24,7 +24,7 @@ export class Upload extends Model<InferAttributes<Upload>, InferCreationAttribut
         storedName: col.str(100), sha256: col.str(64), size: { ...col.fk() }, contentType: col.str(100),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, tableName: 'uploads' },
+      { sequelize, modelName: 'Upload', tableName: 'uploads' },
     );
   }
 }

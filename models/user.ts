@@ -23,7 +23,7 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
         createdAt: col.date(false),
         updatedAt: col.date(false),
       },
-      { sequelize, tableName: 'users' },
+      { sequelize, modelName: 'User', tableName: 'users' },
     );
   }
 }
