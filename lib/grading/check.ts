@@ -6,7 +6,7 @@
  */
 import { c, h } from './constants';
 import { anharmonicFromOvertone, type AnharmonicAnalysis } from './anharmonic';
-import { fitBand, MAX_LINES, type BandFit, type Line } from './fit';
+import { fitBand, fitBandConstants, MAX_LINES, type BandFit, type Line } from './fit';
 import { formatNumber, withUnit } from './format';
 import { forceConstantFromBand, bondLengthFromB } from './harmonic';
 import { QUANTITIES, QUANTITY_KEYS, isQuantityKey, type QuantityKey } from './quantities';
@@ -205,7 +205,8 @@ function checkSubmissionUnsafe(input: SubmissionInput): SubmissionResult {
         let memo: ReturnType<NonNullable<SlipInputs['misnumberedFit']>> | null = null;
         misnumbered = () => {
           if (memo !== null) return memo;
-          const g = fitBand(lines, { centrifugal, rBranchIndex: 'J' });
+          // Only the constants are compared, so refit without residuals and combination differences.
+          const g = fitBandConstants(lines, { centrifugal, rBranchIndex: 'J' });
           memo = g.ok ? { nu0: g.nu0.value * 100, B0: g.B0.value * 100, B1: g.B1.value * 100, Be: g.Be.value * 100, alphaE: g.alphaE.value * 100, D: g.D ? g.D.value * 100 : undefined } : undefined;
           return memo;
         };
@@ -347,53 +348,10 @@ function checkSubmissionUnsafe(input: SubmissionInput): SubmissionResult {
     const acc = accuracy(key);
     const notes = presentationNotes(key, p, cons, required(key) || tolerances[key]?.sigma !== undefined || tolerances[key]?.partial?.sigma !== undefined);
     const entries: QuantityCheck[] = [];
-    const make = (basis: 'consistency' | 'accuracy', exp: Expected, tol: Tolerance | undefined, inputs: SlipInputs | undefined, diagnoseIfOutside: boolean): QuantityCheck => {
-      const sigma = Math.hypot(p.sigmaSI ?? 0, exp.sigmaSI);
-      const j = judge(p.valueSI, exp.valueSI, tol, { uncertaintySI: sigma, dimension: info.dimension, roundingSI: basis === 'consistency' ? p.typed.roundingHalfWidth * siPerTyped(p, info.dimension) : 0 });
-      let verdict = j.verdict;
-      const entryNotes = [...notes];
-      if (!p.unitOk) {
-        verdict = 'outside';
-        entryNotes.push({ code: 'unit-not-understood', message: p.unitText.trim() === '' ? `No unit given; the number was read in ${info.displayUnit || 'no unit'}.` : `The unit "${p.unitText}" does not fit this quantity; the number was read in ${info.displayUnit}.` });
-      }
-      if (j.verdict === 'not-checked' && j.reason) entryNotes.push({ code: 'not-checked', message: j.reason });
-      let diagnoses: { code: string; message: string }[] = [];
-      if (verdict === 'outside' && diagnoseIfOutside) {
-        const rel = p.typed.precisionKnown && p.typed.value !== 0 ? p.typed.roundingHalfWidth / Math.abs(p.typed.value) : 0;
-        diagnoses = diagnose({
-          key,
-          reportedSI: p.valueSI,
-          reportedValue: p.typed.value,
-          reportedUnit: p.unitText,
-          expectedSI: exp.valueSI,
-          bandHalfWidthSI: Math.max(j.halfWidth, MIN_SLIP_WINDOW * Math.abs(exp.valueSI)),
-          window: Math.max(MIN_SLIP_WINDOW, rel),
-          inputs,
-        });
-      }
-      return {
-        key,
-        basis,
-        reportedSI: p.valueSI,
-        expectedSI: exp.valueSI,
-        unitSI: info.siUnit,
-        deviation: j.deviation,
-        relativeDeviation: j.relativeDeviation,
-        verdict,
-        diagnoses,
-        notes: entryNotes,
-        reportedText: p.text,
-        reportedDisplay: p.unitOk ? displayValue(p.valueSI, key, p.typed.precisionKnown ? Math.max(3, p.typed.sigFigs) : 6) : withUnit(String(p.typed.text), p.unitText),
-        expectedDisplay: displayValue(exp.valueSI, key, 6),
-        displayUnit: info.displayUnit,
-        expectedSource: exp.source,
-        combinedUncertaintySI: sigma,
-      };
-    };
-    if (cons) entries.push(make('consistency', cons, consistencyTolerances[key] ?? DEFAULT_CONSISTENCY_TOLERANCE, studentInputs, true));
+    if (cons) entries.push(checkAgainst(key, p, notes, 'consistency', cons, consistencyTolerances[key] ?? DEFAULT_CONSISTENCY_TOLERANCE, studentInputs, true));
     if (acc) {
       // Diagnose on accuracy only when there is no own-data check to diagnose against.
-      const a = make('accuracy', acc, tolerances[key], cons ? undefined : referenceInputs, !cons);
+      const a = checkAgainst(key, p, notes, 'accuracy', acc, tolerances[key], cons ? undefined : referenceInputs, !cons);
       if (cons && entries[0]) {
         const cv = entries[0].verdict;
         if (cv === 'within' && a.verdict === 'outside') a.notes.push({ code: 'consistent-not-accurate', message: 'Your calculation is right for your own data, but the result is far from the accepted value: look at the measurement (calibration, line assignment, resolution).' });
@@ -436,6 +394,64 @@ function checkSubmissionUnsafe(input: SubmissionInput): SubmissionResult {
       anharmonic,
     },
     problems,
+  };
+}
+
+/**
+ * One verdict: the reported quantity `key` (parsed as `p`) against one expected value, on one
+ * basis, with the slips named when it is outside and `diagnoseIfOutside` is set.
+ */
+function checkAgainst(
+  key: QuantityKey,
+  p: ParsedNum,
+  notes: { code: string; message: string }[],
+  basis: 'consistency' | 'accuracy',
+  exp: Expected,
+  tol: Tolerance | undefined,
+  inputs: SlipInputs | undefined,
+  diagnoseIfOutside: boolean,
+): QuantityCheck {
+  const info = QUANTITIES[key];
+  const sigma = Math.hypot(p.sigmaSI ?? 0, exp.sigmaSI);
+  const j = judge(p.valueSI, exp.valueSI, tol, { uncertaintySI: sigma, dimension: info.dimension, roundingSI: basis === 'consistency' ? p.typed.roundingHalfWidth * siPerTyped(p, info.dimension) : 0 });
+  let verdict = j.verdict;
+  const entryNotes = [...notes];
+  if (!p.unitOk) {
+    verdict = 'outside';
+    entryNotes.push({ code: 'unit-not-understood', message: p.unitText.trim() === '' ? `No unit given; the number was read in ${info.displayUnit || 'no unit'}.` : `The unit "${p.unitText}" does not fit this quantity; the number was read in ${info.displayUnit}.` });
+  }
+  if (j.verdict === 'not-checked' && j.reason) entryNotes.push({ code: 'not-checked', message: j.reason });
+  let diagnoses: { code: string; message: string }[] = [];
+  if (verdict === 'outside' && diagnoseIfOutside) {
+    const rel = p.typed.precisionKnown && p.typed.value !== 0 ? p.typed.roundingHalfWidth / Math.abs(p.typed.value) : 0;
+    diagnoses = diagnose({
+      key,
+      reportedSI: p.valueSI,
+      reportedValue: p.typed.value,
+      reportedUnit: p.unitText,
+      expectedSI: exp.valueSI,
+      bandHalfWidthSI: Math.max(j.halfWidth, MIN_SLIP_WINDOW * Math.abs(exp.valueSI)),
+      window: Math.max(MIN_SLIP_WINDOW, rel),
+      inputs,
+    });
+  }
+  return {
+    key,
+    basis,
+    reportedSI: p.valueSI,
+    expectedSI: exp.valueSI,
+    unitSI: info.siUnit,
+    deviation: j.deviation,
+    relativeDeviation: j.relativeDeviation,
+    verdict,
+    diagnoses,
+    notes: entryNotes,
+    reportedText: p.text,
+    reportedDisplay: p.unitOk ? displayValue(p.valueSI, key, p.typed.precisionKnown ? Math.max(3, p.typed.sigFigs) : 6) : withUnit(String(p.typed.text), p.unitText),
+    expectedDisplay: displayValue(exp.valueSI, key, 6),
+    displayUnit: info.displayUnit,
+    expectedSource: exp.source,
+    combinedUncertaintySI: sigma,
   };
 }
 

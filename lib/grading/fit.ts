@@ -103,8 +103,13 @@ export interface LeastSquaresSolution {
  * Returns undefined when the columns are (numerically) dependent.
  */
 export function leastSquares(design: Float64Array, n: number, p: number, y: Float64Array): LeastSquaresSolution | undefined {
-  const A = Float64Array.from(design);
-  const b = Float64Array.from(y);
+  // Work on copies so the caller's arrays are untouched. (The copy constructor is much
+  // cheaper than Float64Array.from, which walks an iterator.)
+  return leastSquaresInPlace(new Float64Array(design), n, p, new Float64Array(y));
+}
+
+/** leastSquares on arrays it may overwrite: A becomes the Householder vectors and R, b becomes Qᵀy. */
+function leastSquaresInPlace(A: Float64Array, n: number, p: number, b: Float64Array): LeastSquaresSolution | undefined {
   const rDiag = new Float64Array(p);
   let maxNorm = 0;
   for (let j = 0; j < p; j++) {
@@ -131,35 +136,56 @@ export function leastSquares(design: Float64Array, n: number, p: number, y: Floa
     for (let i = j; i < n; i++) b[i] -= f * A[i * p + j];
     rDiag[j] = alpha;
   }
-  const R = (i: number, k: number) => (i === k ? rDiag[i] : A[i * p + k]);
+  // R is upper triangular: its diagonal is rDiag, its entries above the diagonal are A[i·p + k] (k > i).
   // Back-substitution R β = (Qᵀy)[0..p)
   const beta = new Array<number>(p).fill(0);
   for (let i = p - 1; i >= 0; i--) {
     let s = b[i];
-    for (let k = i + 1; k < p; k++) s -= R(i, k) * beta[k];
-    beta[i] = s / R(i, i);
+    for (let k = i + 1; k < p; k++) s -= A[i * p + k] * beta[k];
+    beta[i] = s / rDiag[i];
   }
-  // R⁻¹ (upper triangular), then (XᵀX)⁻¹ = R⁻¹R⁻ᵀ
-  const Rinv: number[][] = Array.from({ length: p }, () => new Array<number>(p).fill(0));
+  // R⁻¹ (upper triangular, row-major p × p), then (XᵀX)⁻¹ = R⁻¹R⁻ᵀ
+  const Rinv = new Array<number>(p * p).fill(0);
   for (let col = 0; col < p; col++) {
     for (let i = col; i >= 0; i--) {
       let s = i === col ? 1 : 0;
-      for (let k = i + 1; k <= col; k++) s -= R(i, k) * Rinv[k][col];
-      Rinv[i][col] = s / R(i, i);
+      for (let k = i + 1; k <= col; k++) s -= A[i * p + k] * Rinv[k * p + col];
+      Rinv[i * p + col] = s / rDiag[i];
     }
   }
-  const cov: number[][] = Array.from({ length: p }, () => new Array<number>(p).fill(0));
+  const cov: number[][] = new Array(p);
   for (let i = 0; i < p; i++) {
+    const row = new Array<number>(p);
     for (let k = 0; k < p; k++) {
       let s = 0;
-      for (let l = Math.max(i, k); l < p; l++) s += Rinv[i][l] * Rinv[k][l];
-      cov[i][k] = s;
+      for (let l = Math.max(i, k); l < p; l++) s += Rinv[i * p + l] * Rinv[k * p + l];
+      row[k] = s;
     }
+    cov[i] = row;
   }
   let ssr = 0;
   for (let i = p; i < n; i++) ssr += b[i] * b[i];
-  if (!beta.every(Number.isFinite)) return undefined;
+  for (let k = 0; k < p; k++) if (!Number.isFinite(beta[k])) return undefined;
   return { beta, unscaledCovariance: cov, residualSumOfSquares: ssr, degreesOfFreedom: n - p };
+}
+
+// Scratch space for the design matrix and observations of polynomialLeastSquares. A marking
+// batch runs thousands of small fits, and a fresh Float64Array of more than a few numbers
+// gets its own off-heap buffer, which costs more than the whole QR solve. So the fits share
+// these two, grown when a longer line list comes. That is safe because the engine is
+// synchronous and a fit never starts another fit before it has finished with them (the
+// solution it returns is always in new arrays).
+let designScratch = new Float64Array(256);
+let observationScratch = new Float64Array(64);
+
+function scratchDesign(size: number): Float64Array {
+  if (designScratch.length < size) designScratch = new Float64Array(Math.max(size, 2 * designScratch.length));
+  return designScratch;
+}
+
+function scratchObservations(size: number): Float64Array {
+  if (observationScratch.length < size) observationScratch = new Float64Array(Math.max(size, 2 * observationScratch.length));
+  return observationScratch;
 }
 
 /** Fits y = Σ βₖ x^powers[k]; x is scaled to |x| ≤ 1 first so the columns stay comparable. */
@@ -170,20 +196,35 @@ export function polynomialLeastSquares(x: ArrayLike<number>, y: ArrayLike<number
   let scale = 0;
   for (let i = 0; i < n; i++) scale = Math.max(scale, Math.abs(x[i]));
   if (scale === 0) scale = 1;
-  const X = new Float64Array(n * p);
-  const Y = new Float64Array(n);
+  const X = scratchDesign(n * p);
+  const Y = scratchObservations(n);
   for (let i = 0; i < n; i++) {
     const t = x[i] / scale;
     for (let k = 0; k < p; k++) X[i * p + k] = powers[k] === 0 ? 1 : powers[k] === 1 ? t : Math.pow(t, powers[k]);
     Y[i] = y[i];
   }
-  const sol = leastSquares(X, n, p, Y);
+  const sol = leastSquaresInPlace(X, n, p, Y); // X and Y are scratch space, free to overwrite
   if (!sol) return undefined;
-  const f = powers.map((pw) => Math.pow(scale, -pw));
-  const beta = sol.beta.map((b, k) => b * f[k]);
-  const unscaled = sol.unscaledCovariance.map((row, i) => row.map((v, k) => v * f[i] * f[k]));
+  // Undo the scaling: βₖ was fitted against (x/scale)^powₖ, so multiply it by scale^−powₖ,
+  // and the covariance entry (i, k) by scale^−powᵢ · scale^−powₖ.
+  const f = new Array<number>(p);
+  for (let k = 0; k < p; k++) f[k] = Math.pow(scale, -powers[k]);
   const s2 = sol.degreesOfFreedom > 0 ? sol.residualSumOfSquares / sol.degreesOfFreedom : 0;
-  return { ...sol, beta, unscaledCovariance: unscaled, covariance: unscaled.map((row) => row.map((v) => v * s2)) };
+  const beta = new Array<number>(p);
+  const unscaled: number[][] = new Array(p);
+  const covariance: number[][] = new Array(p);
+  for (let i = 0; i < p; i++) {
+    beta[i] = sol.beta[i] * f[i];
+    const unscaledRow = new Array<number>(p);
+    const covarianceRow = new Array<number>(p);
+    for (let k = 0; k < p; k++) {
+      unscaledRow[k] = sol.unscaledCovariance[i][k] * f[i] * f[k];
+      covarianceRow[k] = unscaledRow[k] * s2;
+    }
+    unscaled[i] = unscaledRow;
+    covariance[i] = covarianceRow;
+  }
+  return { beta, unscaledCovariance: unscaled, residualSumOfSquares: sol.residualSumOfSquares, degreesOfFreedom: sol.degreesOfFreedom, covariance };
 }
 
 // ---------------------------------------------------------------------------------------
@@ -191,6 +232,11 @@ export function polynomialLeastSquares(x: ArrayLike<number>, y: ArrayLike<number
 
 export function runningIndex(branch: Branch, J: number, rBranchIndex: 'J+1' | 'J' = 'J+1'): number {
   return branch === 'R' ? (rBranchIndex === 'J' ? J : J + 1) : -J;
+}
+
+/** "R(3)", or "?(?)" for the parts that could not be read: how a bad line is named in a message. */
+function lineName(branch: string, J: unknown): string {
+  return `${branch || '?'}(${typeof J === 'number' && Number.isFinite(J) ? J : '?'})`;
 }
 
 /** Checks a line list and names every bad line ("line 4, P(0): ..."). */
@@ -201,52 +247,57 @@ export function validateLines(lines: unknown, parameterCount: number): { ok: tru
     return { ok: false, problems: [{ field: 'lines', message: `The line list has ${lines.length} lines; a fundamental band has at most a few hundred (limit ${MAX_LINES}). Paste the assigned lines only.` }] };
   }
   const out: Line[] = [];
-  const seen = new Map<number, number>();
-  lines.forEach((raw: unknown, i: number) => {
+  // Position of the line already assigned to each R(J) and P(J), by J, to catch a repeat.
+  // (Plain arrays indexed by J: J is checked to be a whole number from 0 to 500 first.)
+  const seenR: number[] = [];
+  const seenP: number[] = [];
+  for (let i = 0; i < lines.length; i++) {
+    if (!(i in lines)) continue; // a hole in a sparse array is not a line (as Array.prototype.forEach skips it)
+    const raw: unknown = lines[i];
     const where = `lines[${i}]`;
     const n = i + 1;
     if (raw === null || typeof raw !== 'object') {
       problems.push({ field: where, message: `Line ${n} is not a { branch, J, wavenumber } entry.` });
-      return;
+      continue;
     }
     const r = raw as { branch?: unknown; J?: unknown; wavenumber?: unknown };
-    const branch = typeof r.branch === 'string' ? r.branch.trim().toUpperCase() : '';
+    // "P" and "R" as they usually come need no tidying; " r" or "p " do.
+    const branch = r.branch === 'P' || r.branch === 'R' ? r.branch : typeof r.branch === 'string' ? r.branch.trim().toUpperCase() : '';
     const J = typeof r.J === 'string' && r.J.trim() !== '' ? Number(r.J) : r.J;
     const wn = typeof r.wavenumber === 'string' && r.wavenumber.trim() !== '' ? Number(r.wavenumber) : r.wavenumber;
-    const name = () => `${branch || '?'}(${typeof J === 'number' && Number.isFinite(J) ? J : '?'})`;
     if (branch !== 'P' && branch !== 'R') {
       problems.push({ field: `${where}.branch`, message: `Line ${n}: branch must be P or R, not "${String(r.branch)}".` });
-      return;
+      continue;
     }
     if (typeof J !== 'number' || !Number.isInteger(J)) {
-      problems.push({ field: `${where}.J`, message: `Line ${n} (${name()}): J must be a whole number.` });
-      return;
+      problems.push({ field: `${where}.J`, message: `Line ${n} (${lineName(branch, J)}): J must be a whole number.` });
+      continue;
     }
     if (J < 0) {
-      problems.push({ field: `${where}.J`, message: `Line ${n} (${name()}): J cannot be negative.` });
-      return;
+      problems.push({ field: `${where}.J`, message: `Line ${n} (${lineName(branch, J)}): J cannot be negative.` });
+      continue;
     }
     if (J > 500) {
-      problems.push({ field: `${where}.J`, message: `Line ${n} (${name()}): J = ${J} is far beyond any populated level.` });
-      return;
+      problems.push({ field: `${where}.J`, message: `Line ${n} (${lineName(branch, J)}): J = ${J} is far beyond any populated level.` });
+      continue;
     }
     if (branch === 'P' && J === 0) {
       problems.push({ field: `${where}.J`, message: `Line ${n}: P(0) does not exist (it would end on J = −1); the first P line is P(1).` });
-      return;
+      continue;
     }
     if (typeof wn !== 'number' || !Number.isFinite(wn) || wn <= 0) {
-      problems.push({ field: `${where}.wavenumber`, message: `Line ${n} (${name()}): the wavenumber must be a positive number of cm⁻¹.` });
-      return;
+      problems.push({ field: `${where}.wavenumber`, message: `Line ${n} (${lineName(branch, J)}): the wavenumber must be a positive number of cm⁻¹.` });
+      continue;
     }
-    const key = branch === 'R' ? J + 1 : -J;
-    const earlier = seen.get(key);
+    const seen = branch === 'R' ? seenR : seenP;
+    const earlier = seen[J];
     if (earlier !== undefined) {
-      problems.push({ field: where, message: `Line ${n} (${name()}) repeats the assignment of line ${earlier + 1}; each line can be assigned only once.` });
-      return;
+      problems.push({ field: where, message: `Line ${n} (${lineName(branch, J)}) repeats the assignment of line ${earlier + 1}; each line can be assigned only once.` });
+      continue;
     }
-    seen.set(key, i);
+    seen[J] = i;
     out.push({ branch: branch as Branch, J, wavenumber: wn });
-  });
+  }
   if (problems.length > 0) return { ok: false, problems: problems.slice(0, 20) };
   if (out.length < parameterCount) {
     return { ok: false, problems: [{ field: 'lines', message: `The fit has ${parameterCount} parameters but only ${out.length} line${out.length === 1 ? '' : 's'}; assign at least ${parameterCount} lines.` }] };
@@ -261,44 +312,90 @@ function est(value: number, variance: number): Estimate {
   return { value, stdError: Math.sqrt(Math.max(0, variance)) };
 }
 
+/** The fitted constants without the extras (residuals, bond lengths, combination differences). */
+export interface BandConstantsFit {
+  ok: true;
+  cubic: boolean;
+  /** The validated lines, with their running index m and wavenumber y (cm⁻¹) in the same order. */
+  lines: Line[];
+  m: number[];
+  y: number[];
+  solution: LeastSquaresSolution & { covariance: number[][] };
+  nu0: Estimate;
+  B0: Estimate;
+  B1: Estimate;
+  Be: Estimate;
+  alphaE: Estimate;
+  D?: Estimate;
+}
+
+const QUADRATIC_POWERS = [0, 1, 2];
+const CUBIC_POWERS = [0, 1, 2, 3];
+
 /**
- * Fits the line list. Never throws: a list that cannot be fitted comes back as
- * { ok: false, problems } naming the bad line.
+ * The least-squares part of fitBand alone: validates the lines and fits ν̃₀, B₀, B₁, Bₑ, αₑ
+ * (and D). The slip diagnosis uses it to refit with the R branch misnumbered, where the
+ * residuals and combination differences would be thrown away.
  */
-export function fitBand(lines: unknown, options: FitOptions = {}): BandFit | FitFailure {
+export function fitBandConstants(lines: unknown, options: FitOptions = {}): BandConstantsFit | FitFailure {
   const cubic = options.centrifugal === true;
   const p = cubic ? 4 : 3;
   const checked = validateLines(lines, p);
   if (!checked.ok) return checked;
   const list = checked.lines;
   const n = list.length;
-  const m = new Float64Array(n);
-  const y = new Float64Array(n);
+  // Plain arrays: small Float64Arrays are slow to create (see the scratch space above).
+  const m = new Array<number>(n);
+  const y = new Array<number>(n);
   for (let i = 0; i < n; i++) {
     m[i] = runningIndex(list[i].branch, list[i].J, options.rBranchIndex);
     y[i] = list[i].wavenumber;
   }
-  const distinct = new Set(m).size;
-  if (distinct < p) {
-    return { ok: false, problems: [{ field: 'lines', message: `The lines cover only ${distinct} different values of m; a ${p}-parameter fit needs at least ${p}.` }] };
-  }
-  const powers = cubic ? [0, 1, 2, 3] : [0, 1, 2];
-  const sol = polynomialLeastSquares(m, y, powers);
+  // Every line has its own m: validateLines refused repeated assignments, and (branch, J) → m is
+  // one-to-one in either numbering (R lines have m ≥ 0, P lines m ≤ −1). So there are n ≥ p
+  // distinct values of m, as many as the fit needs, and no need to count them again here.
+  const sol = polynomialLeastSquares(m, y, cubic ? CUBIC_POWERS : QUADRATIC_POWERS);
   if (!sol) return { ok: false, problems: [{ field: 'lines', message: 'The line positions cannot be fitted (the equations are singular).' }] };
-  const [a, b, cc, d = 0] = sol.beta;
+  const b = sol.beta[1];
+  const cc = sol.beta[2];
+  const d = cubic ? sol.beta[3] : 0;
   const V = sol.covariance;
-  const warnings: string[] = [];
-  if (sol.degreesOfFreedom === 0) warnings.push('As many lines as parameters: the fit is exact and gives no standard errors.');
-
   // B₁ = (b + c)/2, B₀ = (b − c)/2, αₑ = B₀ − B₁ = −c, Bₑ = (3B₀ − B₁)/2 = b/2 − c.
   const varB1 = (V[1][1] + V[2][2] + 2 * V[1][2]) / 4;
   const varB0 = (V[1][1] + V[2][2] - 2 * V[1][2]) / 4;
   const varBe = V[1][1] / 4 + V[2][2] - V[1][2];
-  const B0 = est((b - cc) / 2, varB0);
-  const B1 = est((b + cc) / 2, varB1);
-  const Be = est(b / 2 - cc, varBe);
-  const alphaE = est(-cc, V[2][2]);
-  const D = cubic ? est(-d / 4, V[3][3] / 16) : undefined;
+  return {
+    ok: true,
+    cubic,
+    lines: list,
+    m,
+    y,
+    solution: sol,
+    nu0: est(sol.beta[0], V[0][0]),
+    B0: est((b - cc) / 2, varB0),
+    B1: est((b + cc) / 2, varB1),
+    Be: est(b / 2 - cc, varBe),
+    alphaE: est(-cc, V[2][2]),
+    D: cubic ? est(-d / 4, V[3][3] / 16) : undefined,
+  };
+}
+
+/**
+ * Fits the line list. Never throws: a list that cannot be fitted comes back as
+ * { ok: false, problems } naming the bad line.
+ */
+export function fitBand(lines: unknown, options: FitOptions = {}): BandFit | FitFailure {
+  const k = fitBandConstants(lines, options);
+  if (!k.ok) return k;
+  const { cubic, lines: list, m, y, solution: sol, B0, B1, Be, alphaE, D } = k;
+  const n = list.length;
+  const a = sol.beta[0];
+  const b = sol.beta[1];
+  const cc = sol.beta[2];
+  const d = cubic ? sol.beta[3] : 0;
+  const V = sol.covariance;
+  const warnings: string[] = [];
+  if (sol.degreesOfFreedom === 0) warnings.push('As many lines as parameters: the fit is exact and gives no standard errors.');
 
   const residuals: LineResidual[] = new Array(n);
   let ss = 0;
@@ -312,7 +409,11 @@ export function fitBand(lines: unknown, options: FitOptions = {}): BandFit | Fit
 
   let re: Estimate | undefined;
   let r0: Estimate | undefined;
-  const species = typeof options.species === 'string' ? (() => { const s = parseSpecies(options.species); return s.ok ? s.species : undefined; })() : options.species;
+  let species: Species | undefined;
+  if (typeof options.species === 'string') {
+    const parsed = parseSpecies(options.species);
+    species = parsed.ok ? parsed.species : undefined;
+  } else species = options.species;
   if (species && Be.value > 0 && B0.value > 0) {
     const mu = species.reducedMassU * u;
     const reV = bondLengthFromB(Be.value * 100, mu) * 1e10;
@@ -326,7 +427,7 @@ export function fitBand(lines: unknown, options: FitOptions = {}): BandFit | Fit
     ok: true,
     model: cubic ? 'cubic' : 'quadratic',
     units: { wavenumber: 'cm⁻¹', length: 'Å' },
-    nu0: est(a, V[0][0]),
+    nu0: k.nu0,
     B0,
     B1,
     alphaE,
@@ -352,30 +453,54 @@ export function fitBand(lines: unknown, options: FitOptions = {}): BandFit | Fit
  * fitted through the origin ([x] or [x, x³] with x = J+½).
  */
 export function combinationDifferences(lines: Line[], centrifugal = false): BandFit['combinationDifferences'] {
-  const R = new Map<number, number>();
-  const P = new Map<number, number>();
-  for (const l of lines) (l.branch === 'R' ? R : P).set(l.J, l.wavenumber);
-  const lower: { x: number; d: number }[] = [];
-  const upper: { x: number; d: number }[] = [];
-  for (const [J, p] of P) {
-    const rBelow = R.get(J - 2); // R(J'−1) − P(J'+1) with J' = J − 1
-    if (rBelow !== undefined && J >= 2) lower.push({ x: J - 1 + 0.5, d: rBelow - p });
-    const rSame = R.get(J);
-    if (rSame !== undefined) upper.push({ x: J + 0.5, d: rSame - p });
-  }
-  const fitCD = (pts: { x: number; d: number }[]): CombinationDifferenceEstimate | undefined => {
-    const useD = centrifugal && pts.length >= 3;
-    if (pts.length < 1) return undefined;
-    const sol = polynomialLeastSquares(pts.map((q) => q.x), pts.map((q) => q.d), useD ? [1, 3] : [1]);
-    if (!sol) return undefined;
-    if (useD) {
-      const Dv = -sol.beta[1] / 8;
-      const B = (sol.beta[0] + 6 * Dv) / 4;
-      // B = (b₁ − (6/8) b₂)/4
-      const v = (sol.covariance[0][0] + (9 / 16) * sol.covariance[1][1] - 1.5 * sol.covariance[0][1]) / 16;
-      return { value: B, stdError: Math.sqrt(Math.max(0, v)), pairs: pts.length };
+  // Wavenumber of each R(J) and P(J) line, by J (of a repeated line, the last one counts).
+  // Plain arrays indexed by J are much quicker here than Maps, and for any J a Map would hold
+  // (negative, fractional) they still work, as named properties.
+  const R: number[] = [];
+  const P: number[] = [];
+  for (const l of lines) (l.branch === 'R' ? R : P)[l.J] = l.wavenumber;
+  // The pairs, as x = J + ½ and the difference d, taking each P(J) once, in the order the
+  // P lines first come.
+  const lowerX: number[] = [];
+  const lowerD: number[] = [];
+  const upperX: number[] = [];
+  const upperD: number[] = [];
+  const done: boolean[] = [];
+  for (const l of lines) {
+    if (l.branch === 'R' || done[l.J]) continue;
+    done[l.J] = true;
+    const J = l.J;
+    const p = P[J];
+    const rBelow = R[J - 2]; // R(J'−1) − P(J'+1) with J' = J − 1
+    if (rBelow !== undefined && J >= 2) {
+      lowerX.push(J - 1 + 0.5);
+      lowerD.push(rBelow - p);
     }
-    return { value: sol.beta[0] / 4, stdError: Math.sqrt(Math.max(0, sol.covariance[0][0])) / 4, pairs: pts.length };
-  };
-  return { B0: fitCD(lower), B1: fitCD(upper) };
+    const rSame = R[J];
+    if (rSame !== undefined) {
+      upperX.push(J + 0.5);
+      upperD.push(rSame - p);
+    }
+  }
+  return { B0: fitCombinationDifferences(lowerX, lowerD, centrifugal), B1: fitCombinationDifferences(upperX, upperD, centrifugal) };
+}
+
+const CD_POWERS = [1];
+const CD_POWERS_WITH_D = [1, 3];
+
+/** B (and optionally D) from the differences d at x = J + ½, fitted through the origin. */
+function fitCombinationDifferences(x: number[], d: number[], centrifugal: boolean): CombinationDifferenceEstimate | undefined {
+  const pairs = x.length;
+  const useD = centrifugal && pairs >= 3;
+  if (pairs < 1) return undefined;
+  const sol = polynomialLeastSquares(x, d, useD ? CD_POWERS_WITH_D : CD_POWERS);
+  if (!sol) return undefined;
+  if (useD) {
+    const Dv = -sol.beta[1] / 8;
+    const B = (sol.beta[0] + 6 * Dv) / 4;
+    // B = (b₁ − (6/8) b₂)/4
+    const v = (sol.covariance[0][0] + (9 / 16) * sol.covariance[1][1] - 1.5 * sol.covariance[0][1]) / 16;
+    return { value: B, stdError: Math.sqrt(Math.max(0, v)), pairs };
+  }
+  return { value: sol.beta[0] / 4, stdError: Math.sqrt(Math.max(0, sol.covariance[0][0])) / 4, pairs };
 }

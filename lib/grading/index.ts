@@ -26,8 +26,8 @@ export {
   bondLengthFromB,
   rotationalConstantFromBondLength,
 } from './harmonic';
-export { fitBand, leastSquares, polynomialLeastSquares, combinationDifferences, validateLines, runningIndex, MAX_LINES } from './fit';
-export type { BandFit, FitFailure, FitOptions, Line, Branch, Estimate, LineResidual } from './fit';
+export { fitBand, fitBandConstants, leastSquares, polynomialLeastSquares, combinationDifferences, validateLines, runningIndex, MAX_LINES } from './fit';
+export type { BandFit, BandConstantsFit, FitFailure, FitOptions, Line, Branch, Estimate, LineResidual } from './fit';
 export { assignPeaks } from './assign';
 export type { PeakAssignment, AssignmentResult } from './assign';
 export { anharmonicFromOvertone, morseDissociation } from './anharmonic';

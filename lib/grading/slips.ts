@@ -131,14 +131,16 @@ export function massVariants(species: Species): MassVariant[] {
   return out;
 }
 
-const perMetre = (x: number): SlipCandidate[] => [
-  { code: 'per-metre-per-centimetre-confusion', valueSI: x * 100 },
-  { code: 'per-metre-per-centimetre-confusion', valueSI: x / 100 },
-];
+/** A wavenumber-based value with cm⁻¹ and m⁻¹ confused, either way (added to `out`). */
+function pushPerMetre(out: SlipCandidate[], x: number): void {
+  out.push({ code: 'per-metre-per-centimetre-confusion', valueSI: x * 100 });
+  out.push({ code: 'per-metre-per-centimetre-confusion', valueSI: x / 100 });
+}
 
-function forceConstantSlips(nu: number, mu: number, species: Species, alternative: { nu?: number; code: SlipCode }): SlipCandidate[] {
+/** k = 4π²c²ν̃²μ redone under each slip (added to `out`). */
+function pushForceConstantSlips(out: SlipCandidate[], nu: number, mu: number, species: Species, alternativeNu: number | undefined, alternativeCode: SlipCode): void {
   const k = forceConstantFromBand(nu, mu);
-  const out: SlipCandidate[] = massVariants(species).map((v) => ({ code: v.code, valueSI: forceConstantFromBand(nu, v.muKg), detail: v.detail }));
+  for (const v of massVariants(species)) out.push({ code: v.code, valueSI: forceConstantFromBand(nu, v.muKg), detail: v.detail });
   out.push({ code: 'missing-2pi', valueSI: k / (4 * Math.PI * Math.PI) });
   // ν̃ (in cm⁻¹ or m⁻¹) put where ν in Hz belongs: c missing from k = 4π²ν²μ.
   out.push({ code: 'wavenumber-used-as-frequency', valueSI: 4 * Math.PI * Math.PI * (nu / 100) ** 2 * mu });
@@ -146,21 +148,20 @@ function forceConstantSlips(nu: number, mu: number, species: Species, alternativ
   // c in m s⁻¹ with ν̃ in cm⁻¹: (c/100)² too small by 10⁴. ν̃ in m⁻¹ with c in cm s⁻¹: 10⁴ too big.
   out.push({ code: 'speed-of-light-in-m-per-s', valueSI: k * 1e-4 });
   out.push({ code: 'per-metre-per-centimetre-confusion', valueSI: k * 1e4 });
-  if (alternative.nu !== undefined && alternative.nu > 0) out.push({ code: alternative.code, valueSI: forceConstantFromBand(alternative.nu, mu) });
-  return out;
+  if (alternativeNu !== undefined && alternativeNu > 0) out.push({ code: alternativeCode, valueSI: forceConstantFromBand(alternativeNu, mu) });
 }
 
-function bondLengthSlips(B: number, species: Species): SlipCandidate[] {
+/** r = √(h/(8π²cμB)) redone under each slip (added to `out`). */
+function pushBondLengthSlips(out: SlipCandidate[], B: number, species: Species): void {
   const mu = species.reducedMassKg;
   const r = bondLengthFromB(B, mu);
-  const out: SlipCandidate[] = massVariants(species).map((v) => ({ code: v.code, valueSI: bondLengthFromB(B, v.muKg), detail: v.detail }));
+  for (const v of massVariants(species)) out.push({ code: v.code, valueSI: bondLengthFromB(B, v.muKg), detail: v.detail });
   // B in cm⁻¹ with c in m s⁻¹ → r × 10; B in m⁻¹ with c in cm s⁻¹ → r / 10.
   out.push({ code: 'speed-of-light-in-m-per-s', valueSI: r * 10 });
   out.push({ code: 'per-metre-per-centimetre-confusion', valueSI: r / 10 });
   // 8π² written as 8 (π² lost) or as 2 ((2π)² lost).
   out.push({ code: 'missing-2pi', valueSI: r * Math.PI });
   out.push({ code: 'missing-2pi', valueSI: r * 2 * Math.PI });
-  return out;
 }
 
 const hc = h * c;
@@ -169,7 +170,6 @@ const hc = h * c;
 export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[] {
   const mu = x.species.reducedMassKg;
   const out: SlipCandidate[] = [];
-  const mis = () => x.misnumberedFit?.();
   const Be = x.B0 !== undefined && x.B1 !== undefined ? (3 * x.B0 - x.B1) / 2 : undefined;
   const BeSwapped = x.B0 !== undefined && x.B1 !== undefined ? (3 * x.B1 - x.B0) / 2 : undefined;
   switch (key) {
@@ -177,15 +177,15 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
       for (const v of massVariants(x.species)) if (v.code !== 'unified-mass-not-converted') out.push({ code: v.code, valueSI: v.muKg, detail: v.detail });
       break;
     case 'forceConstant':
-      if (x.nu0 !== undefined) out.push(...forceConstantSlips(x.nu0, mu, x.species, { nu: x.omegaE, code: 'omega-e-instead-of-band-centre' }));
+      if (x.nu0 !== undefined) pushForceConstantSlips(out, x.nu0, mu, x.species, x.omegaE, 'omega-e-instead-of-band-centre');
       break;
     case 'forceConstantE':
-      if (x.omegaE !== undefined) out.push(...forceConstantSlips(x.omegaE, mu, x.species, { nu: x.nu0, code: 'band-centre-instead-of-omega-e' }));
+      if (x.omegaE !== undefined) pushForceConstantSlips(out, x.omegaE, mu, x.species, x.nu0, 'band-centre-instead-of-omega-e');
       break;
     case 'bandCentre': {
-      const f = mis();
+      const f = x.misnumberedFit?.();
       if (f) out.push({ code: 'r-branch-numbered-from-j', valueSI: f.nu0 });
-      if (x.nu0 !== undefined) out.push(...perMetre(x.nu0));
+      if (x.nu0 !== undefined) pushPerMetre(out, x.nu0);
       break;
     }
     case 'B0':
@@ -193,39 +193,39 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
     case 'Be':
     case 'alphaE':
     case 'D': {
-      const f = mis();
+      const f = x.misnumberedFit?.();
       const v = f?.[key];
       if (v !== undefined) out.push({ code: 'r-branch-numbered-from-j', valueSI: v });
       if (x.B0 !== undefined && x.B1 !== undefined) {
         const swapped = { B0: x.B1, B1: x.B0, Be: BeSwapped, alphaE: x.B1 - x.B0, D: undefined }[key];
         if (swapped !== undefined) out.push({ code: 'b0-b1-swapped', valueSI: swapped });
         const right = { B0: x.B0, B1: x.B1, Be, alphaE: x.B0 - x.B1, D: undefined }[key];
-        if (right !== undefined) out.push(...perMetre(right));
+        if (right !== undefined) pushPerMetre(out, right);
       }
       break;
     }
     case 're':
-      if (Be !== undefined && Be > 0) out.push(...bondLengthSlips(Be, x.species));
+      if (Be !== undefined && Be > 0) pushBondLengthSlips(out, Be, x.species);
       if (x.B0 !== undefined && x.B0 > 0) out.push({ code: 'r0-reported-as-re', valueSI: bondLengthFromB(x.B0, mu) });
       if (BeSwapped !== undefined && BeSwapped > 0) out.push({ code: 'b0-b1-swapped', valueSI: bondLengthFromB(BeSwapped, mu) });
       {
-        const f = mis();
+        const f = x.misnumberedFit?.();
         if (f && f.Be > 0) out.push({ code: 'r-branch-numbered-from-j', valueSI: bondLengthFromB(f.Be, mu) });
       }
       break;
     case 'r0':
-      if (x.B0 !== undefined && x.B0 > 0) out.push(...bondLengthSlips(x.B0, x.species));
+      if (x.B0 !== undefined && x.B0 > 0) pushBondLengthSlips(out, x.B0, x.species);
       if (x.B1 !== undefined && x.B1 > 0) out.push({ code: 'b0-b1-swapped', valueSI: bondLengthFromB(x.B1, mu) });
       {
-        const f = mis();
+        const f = x.misnumberedFit?.();
         if (f && f.B0 > 0) out.push({ code: 'r-branch-numbered-from-j', valueSI: bondLengthFromB(f.B0, mu) });
       }
       break;
     case 'omegaE':
-      if (x.omegaE !== undefined) out.push(...perMetre(x.omegaE));
+      if (x.omegaE !== undefined) pushPerMetre(out, x.omegaE);
       break;
     case 'omegaExe':
-      if (x.omegaExe !== undefined) out.push(...perMetre(x.omegaExe));
+      if (x.omegaExe !== undefined) pushPerMetre(out, x.omegaExe);
       break;
     case 'zeroPointEnergy':
     case 'dissociationEnergy':
@@ -236,7 +236,7 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
         const De = (we * we) / (4 * wx);
         return hc * (key === 'zeroPointEnergy' ? zpe : key === 'dissociationEnergy' ? De : De - zpe);
       };
-      out.push(...perMetre(energy(x.omegaE, x.omegaExe)));
+      pushPerMetre(out, energy(x.omegaE, x.omegaExe));
       if (x.nu0 !== undefined) {
         out.push({ code: 'band-centre-instead-of-omega-e', valueSI: energy(x.nu0, x.omegaExe) });
         if (key === 'zeroPointEnergy') out.push({ code: 'band-centre-instead-of-omega-e', valueSI: (hc * x.nu0) / 2 });
@@ -248,7 +248,10 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
     case 'isotopeRatio':
       break;
   }
-  return out.filter((cand) => Number.isFinite(cand.valueSI));
+  // A model that gives no finite number (a zero B, say) names nothing.
+  const finite: SlipCandidate[] = [];
+  for (const cand of out) if (Number.isFinite(cand.valueSI)) finite.push(cand);
+  return finite;
 }
 
 // ---------------------------------------------------------------------------------------
@@ -284,15 +287,24 @@ function message(code: SlipCode, detail?: string): string {
   return detail ? `${s.title} (${detail}): ${s.explanation}` : `${s.title}: ${s.explanation}`;
 }
 
+/** 10ⁿ for n = −30 … 30, the factors tried for `power-of-ten` (computed once, not per diagnosis). */
+const POWER_OF_TEN_MIN = -30;
+const POWERS_OF_TEN: number[] = [];
+for (let n = POWER_OF_TEN_MIN; n <= 30; n++) POWERS_OF_TEN.push(Math.pow(10, n));
+
+const SUPERSCRIPT_DIGITS = '⁰¹²³⁴⁵⁶⁷⁸⁹';
+const toSuperscriptDigit = (ch: string) => SUPERSCRIPT_DIGITS[Number(ch)];
+
 /** Names the slips that reproduce the reported number. Empty when none does. */
 export function diagnose(d: DiagnoseInput): Diagnosis[] {
   const { reportedSI, expectedSI, window } = d;
   if (!Number.isFinite(reportedSI) || !Number.isFinite(expectedSI)) return [];
   const found = new Map<SlipCode, string | undefined>();
-  const distinguishable = (v: number) => Math.abs(v - expectedSI) > d.bandHalfWidthSI;
   if (d.inputs) {
     for (const cand of slipCandidates(d.key, d.inputs)) {
-      if (!distinguishable(cand.valueSI)) continue;
+      // A candidate inside the band the number failed is indistinguishable from the right answer.
+      const distinguishable = Math.abs(cand.valueSI - expectedSI) > d.bandHalfWidthSI;
+      if (!distinguishable) continue;
       if (close(reportedSI, cand.valueSI, window) && !found.has(cand.code)) found.set(cand.code, cand.detail);
     }
   }
@@ -303,14 +315,16 @@ export function diagnose(d: DiagnoseInput): Diagnosis[] {
   if (found.size === 0 && expectedSI !== 0) {
     for (let n = -30; n <= 30; n++) {
       if (n === 0) continue;
-      const v = expectedSI * Math.pow(10, n);
+      const v = expectedSI * POWERS_OF_TEN[n - POWER_OF_TEN_MIN];
       if (close(reportedSI, v, window)) {
-        found.set('power-of-ten', `out by a factor of 10${n < 0 ? '⁻' : ''}${String(Math.abs(n)).replace(/\d/g, (ch) => '⁰¹²³⁴⁵⁶⁷⁸⁹'[Number(ch)])}`);
+        found.set('power-of-ten', `out by a factor of 10${n < 0 ? '⁻' : ''}${String(Math.abs(n)).replace(/\d/g, toSuperscriptDigit)}`);
         break;
       }
     }
   }
-  return [...found.entries()].map(([code, detail]) => ({ code, message: message(code, detail) }));
+  const out: Diagnosis[] = [];
+  for (const [code, detail] of found) out.push({ code, message: message(code, detail) });
+  return out;
 }
 
 /** The number typed is right when read in another unit of the same dimension (or the unit is missing). */

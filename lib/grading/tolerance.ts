@@ -72,30 +72,34 @@ export function relativeDeviationOf(deviation: number, expected: number): number
   return deviation === 0 ? 0 : Math.sign(deviation) * Number.MAX_VALUE;
 }
 
-export function judge(reportedSI: number, expectedSI: number, tolerance: Tolerance | undefined, opts: JudgeOptions = {}): Judgement {
-  const notChecked = (reason: string): Judgement => ({
+/** The judgement when no band applies: the deviation is still reported, the verdict is left to a marker. */
+function notChecked(reportedSI: number, expectedSI: number, reason: string): Judgement {
+  return {
     verdict: 'not-checked',
     deviation: Number.isFinite(reportedSI - expectedSI) ? reportedSI - expectedSI : 0,
     relativeDeviation: Number.isFinite(reportedSI - expectedSI) ? relativeDeviationOf(reportedSI - expectedSI, expectedSI) : 0,
     halfWidth: 0,
     partialHalfWidth: 0,
     reason,
-  });
+  };
+}
+
+export function judge(reportedSI: number, expectedSI: number, tolerance: Tolerance | undefined, opts: JudgeOptions = {}): Judgement {
   if (typeof reportedSI !== 'number' || typeof expectedSI !== 'number' || !Number.isFinite(reportedSI) || !Number.isFinite(expectedSI)) {
     return { verdict: 'not-checked', deviation: 0, relativeDeviation: 0, halfWidth: 0, partialHalfWidth: 0, reason: 'No finite value to compare.' };
   }
-  if (!tolerance || typeof tolerance !== 'object') return notChecked('No tolerance band is set for this quantity.');
+  if (!tolerance || typeof tolerance !== 'object') return notChecked(reportedSI, expectedSI, 'No tolerance band is set for this quantity.');
   let absFactor = 1;
   if (tolerance.unit !== undefined && tolerance.unit !== '') {
     const dim = opts.dimension ?? lookupUnit(tolerance.unit)?.dimension;
     const conv = dim ? toSI(1, tolerance.unit, dim) : undefined;
-    if (!conv || !conv.ok || conv.unit.kind !== 'linear') return notChecked(`The tolerance unit "${tolerance.unit}" cannot be used for this quantity.`);
+    if (!conv || !conv.ok || conv.unit.kind !== 'linear') return notChecked(reportedSI, expectedSI, `The tolerance unit "${tolerance.unit}" cannot be used for this quantity.`);
     absFactor = conv.valueSI;
   }
   const inner = halfWidthOf(tolerance, expectedSI, absFactor, opts.uncertaintySI);
   const outer = halfWidthOf(tolerance.partial, expectedSI, absFactor, opts.uncertaintySI);
   if (!inner.set && !outer.set) {
-    return notChecked(inner.needsSigma || outer.needsSigma ? 'The band is set in standard uncertainties, but no uncertainty is known.' : 'No tolerance band is set for this quantity.');
+    return notChecked(reportedSI, expectedSI, inner.needsSigma || outer.needsSigma ? 'The band is set in standard uncertainties, but no uncertainty is known.' : 'No tolerance band is set for this quantity.');
   }
   const rounding = opts.roundingSI !== undefined && Number.isFinite(opts.roundingSI) ? Math.abs(opts.roundingSI) : 0;
   const deviation = reportedSI - expectedSI;

@@ -70,10 +70,17 @@ function splitExponent(text: string): { mantissa: string; exponent: number } | s
   return { mantissa: m[1], exponent: exp };
 }
 
+const fromSuperscript = (ch: string) => SUP[ch] ?? ch;
+
+/** Text made only of these characters is left as it is by normalise (no superscripts, dashes, spaces or ±). */
+const ALREADY_NORMAL = /^[0-9.,eE-]*$/;
+
 function normalise(raw: string): string {
+  // Most numbers are typed plainly ("2885.98", "1.6e-27"): skip the rewriting for them.
+  if (ALREADY_NORMAL.test(raw)) return raw;
   return raw
     .normalize('NFC')
-    .replace(/[⁰¹²³⁴⁵⁶⁷⁸⁹⁻⁺]/g, (ch) => SUP[ch] ?? ch)
+    .replace(/[⁰¹²³⁴⁵⁶⁷⁸⁹⁻⁺]/g, fromSuperscript)
     .replace(/[−–—]/g, '-')
     .replace(/\+\/-|\+-/g, '±')
     .replace(/[\s\u00a0\u2009\u202f']/g, '');
@@ -112,7 +119,7 @@ export function parseTypedNumber(input: unknown): ParseNumberResult {
     if (typeof b === 'string') return { ok: false, message: b };
     return finish(a.value, text, a, true, Math.abs(b.value));
   }
-  const parts = s.split('±');
+  const parts = s.includes('±') ? s.split('±') : [s];
   if (parts.length > 2) return { ok: false, message: `"${text}" has more than one ±.` };
   const main = parseSingle(parts[0]);
   if (typeof main === 'string') return { ok: false, message: main };

@@ -123,15 +123,27 @@ function squashUnitUncached(unit: string): string {
   return s;
 }
 
-const lookupCache = new Map<string, UnitDefinition | null>();
+// Parsed units, cached: per dimension asked for (or none), the typed spelling → its definition
+// (null: not understood). A marking batch asks for the same few spellings over and over.
+// Nested maps rather than one map keyed by `${dimension}|${unit}`: building that key string on
+// every call cost more than the lookup itself.
+const lookupCache = new Map<Dimension | undefined, Map<string, UnitDefinition | null>>();
+let lookupCacheSize = 0;
 
 export function lookupUnit(unit: string, dimension?: Dimension): UnitDefinition | undefined {
   if (typeof unit !== 'string') return undefined;
-  const cacheKey = `${dimension ?? ''}|${unit}`;
-  const hit = lookupCache.get(cacheKey);
+  let forDimension = lookupCache.get(dimension);
+  const hit = forDimension?.get(unit);
   if (hit !== undefined) return hit ?? undefined;
   const out = lookupUnitUncached(unit, dimension);
-  if (lookupCache.size < 2000) lookupCache.set(cacheKey, out ?? null);
+  if (lookupCacheSize < 2000) {
+    if (forDimension === undefined) {
+      forDimension = new Map();
+      lookupCache.set(dimension, forDimension);
+    }
+    forDimension.set(unit, out ?? null);
+    lookupCacheSize++;
+  }
   return out;
 }
 
@@ -223,8 +235,10 @@ const TO_SUPERSCRIPT: Record<string, string> = {
   '0': '⁰', '1': '¹', '2': '²', '3': '³', '4': '⁴', '5': '⁵', '6': '⁶', '7': '⁷', '8': '⁸', '9': '⁹', '-': '⁻', '+': '⁺',
 };
 
+const toSuperscriptChar = (ch: string) => TO_SUPERSCRIPT[ch] ?? ch;
+
 export function superscript(text: string): string {
-  return text.replace(/[0-9+-]/g, (ch) => TO_SUPERSCRIPT[ch] ?? ch);
+  return text.replace(/[0-9+-]/g, toSuperscriptChar);
 }
 
 /** Typesets a unit: "cm-1" → "cm⁻¹", "N/m" → "N m⁻¹", "mdyn/A" → "mdyn Å⁻¹". Unknown units get superscript exponents. */
