@@ -399,7 +399,8 @@ function checkSubmissionUnsafe(input: SubmissionInput): SubmissionResult {
 
 /**
  * One verdict: the reported quantity `key` (parsed as `p`) against one expected value, on one
- * basis, with the slips named when it is outside and `diagnoseIfOutside` is set.
+ * basis, with the slips named when it misses the full-marks band (partial credit or outside)
+ * and `diagnoseIfOutside` is set: a number that earns only partial credit deserves the reason too.
  */
 function checkAgainst(
   key: QuantityKey,
@@ -422,7 +423,7 @@ function checkAgainst(
   }
   if (j.verdict === 'not-checked' && j.reason) entryNotes.push({ code: 'not-checked', message: j.reason });
   let diagnoses: { code: string; message: string }[] = [];
-  if (verdict === 'outside' && diagnoseIfOutside) {
+  if ((verdict === 'outside' || verdict === 'partial') && diagnoseIfOutside) {
     const rel = p.typed.precisionKnown && p.typed.value !== 0 ? p.typed.roundingHalfWidth / Math.abs(p.typed.value) : 0;
     diagnoses = diagnose({
       key,
