@@ -30,7 +30,19 @@ const nextConfig = {
   // Separate build folders let several checkouts' builds (or helpers) run side by side.
   distDir: process.env.NEXT_DIST_DIR || '.next',
   async headers() {
-    return [{ source: '/:path*', headers: securityHeaders }];
+    return [
+      { source: '/:path*', headers: securityHeaders },
+      // A student's report PDF is shown in a frame on the marking page, so this one response may be
+      // framed by this site (not by others), and stays sandboxed with nothing else loaded. Headers set
+      // here replace those a route handler sets, so the route's own policy is repeated in full.
+      {
+        source: '/api/marking/:submissionId/report',
+        headers: [
+          { key: 'X-Frame-Options', value: 'SAMEORIGIN' },
+          { key: 'Content-Security-Policy', value: "sandbox; default-src 'none'; frame-ancestors 'self'" },
+        ],
+      },
+    ];
   },
 };
 

@@ -1,6 +1,8 @@
 import { defineConfig } from '@playwright/test';
 
 const port = 3100;
+const securePort = 3101;
+process.env.E2E_SECURE_URL ??= `http://localhost:${securePort}`;
 
 export default defineConfig({
   testDir: 'tests/e2e',
@@ -19,11 +21,23 @@ export default defineConfig({
       args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
     },
   },
-  webServer: {
-    command: `npx next start -p ${port}`,
-    url: `http://localhost:${port}/signin`,
-    reuseExistingServer: false,
-    timeout: 120_000,
-    env: { ...process.env, OUTBOX_INTERVAL_MS: '500' } as Record<string, string>,
-  },
+  webServer: [
+    {
+      command: `npx next start -p ${port}`,
+      url: `http://localhost:${port}/signin`,
+      reuseExistingServer: false,
+      timeout: 120_000,
+      env: { ...process.env, OUTBOX_INTERVAL_MS: '500' } as Record<string, string>,
+    },
+    {
+      // The same build and database with an https public URL, as in production behind TLS: next-auth
+      // then issues __Secure-/__Host- cookies with the Secure flag (tests/e2e/security.spec.ts).
+      // Mail is left to the first server's worker.
+      command: `npx next start -p ${securePort}`,
+      url: `http://localhost:${securePort}/signin`,
+      reuseExistingServer: false,
+      timeout: 120_000,
+      env: { ...process.env, NEXTAUTH_URL: `https://localhost:${securePort}`, OUTBOX_WORKER: 'off' } as Record<string, string>,
+    },
+  ],
 });

@@ -4,7 +4,7 @@ import { NextResponse, type NextRequest } from 'next/server';
  * Sends signed-out visitors of pages to the sign-in page. This is a convenience only: every page,
  * route handler and server action still authorises the caller itself through lib/authz.ts.
  */
-const PUBLIC = [/^\/signin/, /^\/welcome/, /^\/not-permitted/, /^\/api\//, /^\/_next\//, /^\/fonts\//, /^\/favicon/];
+const PUBLIC = [/^\/signin/, /^\/welcome/, /^\/reset(\/|$)/, /^\/not-permitted/, /^\/api\//, /^\/_next\//, /^\/fonts\//, /^\/favicon/];
 
 export function proxy(request: NextRequest) {
   const { pathname } = request.nextUrl;

@@ -22,6 +22,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
       <section className="card" aria-labelledby="signin-heading">
         <h2 id="signin-heading" className="mb-4">Sign in</h2>
         <SignInForm initialError={message} />
+        <p className="mt-3 text-sm"><a href="/reset">Forgot your password?</a></p>
         <p className="hint mt-4">New accounts are set up from the invitation e-mail your department sends.</p>
       </section>
     </div>
