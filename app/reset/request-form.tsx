@@ -2,7 +2,7 @@
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { resetRequestSchema, type ResetRequestInput } from './schema';
+import { resetRequestSchema, type ResetRequestInput } from '@/lib/schemas/auth';
 
 /** "Forgot your password?": sends the address and shows whatever the server says, which is the same for every address. */
 export function ResetRequestForm() {

@@ -12,3 +12,7 @@ export const SIGN_IN_ERRORS: Record<string, string> = {
   CredentialsSignin: 'E-mail or password not recognised.',
   throttled: 'Too many attempts. Wait a few minutes before trying again.',
 };
+
+/** The "forgot your password?" form: the same e-mail rule as sign-in, checked in the browser and by the route. */
+export const resetRequestSchema = signInSchema.pick({ email: true }).strict();
+export type ResetRequestInput = { email: string };

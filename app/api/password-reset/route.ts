@@ -1,5 +1,5 @@
 import { json, readJson, route } from '@/lib/http';
-import { resetRequestSchema } from '@/app/reset/schema';
+import { resetRequestSchema } from '@/lib/schemas/auth';
 import { clientOf, requestPasswordReset } from '@/lib/auth/reset';
 
 /**
