@@ -9,6 +9,7 @@ import { HttpError } from '@/lib/http';
 import { models } from '@/models';
 import { MIN_GROUP } from './definitions';
 import { markSummary, quantityStatistics, submissionCounts, type Counts, type GroupBy, type QuantityStat } from './queries';
+import { cachedStatistics } from './cache';
 import { cohortsOfPractical, managesCourse } from './scope';
 
 export interface ComparisonGroup {
@@ -54,9 +55,9 @@ export async function comparison(request: Request, practicalId: number, by: Excl
   }
   // Instruments are compared only for staff who see every cohort (a TA's group would be one bench anyway).
   const scope = { practicalIds, cohortIds: visible.length ? visible.map((c) => c.id) : [-1] };
-  const [counts, quantities, marks] = await Promise.all([
-    submissionCounts(scope, by), quantityStatistics(scope, by), markSummary(scope, by),
-  ]);
+  const [counts, quantities, marks] = await cachedStatistics('compare', scope, { by }, async () => [
+    await submissionCounts(scope, by), await quantityStatistics(scope, by), await markSummary(scope, by),
+  ] as const);
   const cohortById = new Map(visible.map((c) => [String(c.id), c]));
   const groups: ComparisonGroup[] = counts.map(({ group, ...rest }) => {
     const cohort = by === 'cohort' ? cohortById.get(group) : undefined;

@@ -48,17 +48,19 @@ export interface Counts {
 }
 
 export async function submissionCounts(scope: Scope, groupBy: GroupBy = 'none'): Promise<Counts[]> {
+  // Grouped on the derived column g: PostgreSQL refuses GROUP BY on a bare constant ('all').
   const rows = await q<Record<string, unknown>>(
-    `SELECT ${groupExpr[groupBy]} AS g,
-       COUNT(DISTINCT s."studentId") AS students,
-       COUNT(*) AS submitted,
-       SUM(CASE WHEN s."daysLate" > 0 THEN 0 ELSE 1 END) AS "onTime",
-       SUM(CASE WHEN s."daysLate" > 0 THEN 1 ELSE 0 END) AS late,
-       SUM(CASE WHEN s.status IN ('marked', 'released') THEN 1 ELSE 0 END) AS marked,
-       SUM(CASE WHEN s."releasedAt" IS NOT NULL THEN 1 ELSE 0 END) AS released
-     FROM submissions s JOIN cohorts c ON c.id = s."cohortId"
-     WHERE ${COUNTED}
-     GROUP BY ${groupExpr[groupBy]}`,
+    `SELECT g, COUNT(DISTINCT "studentId") AS students, COUNT(*) AS submitted,
+       SUM(CASE WHEN "daysLate" > 0 THEN 0 ELSE 1 END) AS "onTime",
+       SUM(CASE WHEN "daysLate" > 0 THEN 1 ELSE 0 END) AS late,
+       SUM(CASE WHEN status IN ('marked', 'released') THEN 1 ELSE 0 END) AS marked,
+       SUM(CASE WHEN "releasedAt" IS NOT NULL THEN 1 ELSE 0 END) AS released
+     FROM (
+       SELECT ${groupExpr[groupBy]} AS g, s."studentId" AS "studentId", s."daysLate" AS "daysLate", s.status AS status, s."releasedAt" AS "releasedAt"
+       FROM submissions s JOIN cohorts c ON c.id = s."cohortId"
+       WHERE ${COUNTED}
+     ) v
+     GROUP BY g`,
     { ...scope },
   );
   return rows.map((r) => ({
@@ -102,52 +104,52 @@ const checkRows = (groupBy: GroupBy) => `
   WHERE ${COUNTED}`;
 
 const edgeReplacements = Object.fromEntries(HISTOGRAM_EDGES_PERCENT.map((e, i) => [`e${i}`, e]));
-/** Bucket index = number of edges at or below x (0 … edges.length). */
-const bucketExpr = HISTOGRAM_EDGES_PERCENT.map((_, i) => `CASE WHEN x >= :e${i} THEN 1 ELSE 0 END`).join(' + ');
+/**
+ * Cumulative histogram columns: ge<i> = number of checked rows with x ≥ edge i. One comparison per
+ * edge and row (a bucket index per row, summed per bucket, would expand every edge per bucket).
+ * Bucket b (= number of edges at or below x) then holds ge<b−1> − ge<b>, with ge<−1> = checked
+ * and ge<last+1> = 0 — the same counts, because the edges increase.
+ */
+const cumulativeColumns = HISTOGRAM_EDGES_PERCENT.map((_, i) => `SUM(CASE WHEN x >= :e${i} THEN 1 ELSE 0 END) AS ge${i}`).join(',\n         ');
 
 const quantityKey = (g: string, k: string, sp: string, b: string) => `${g}\u0000${k}\u0000${sp}\u0000${b}`;
 
+/** 1-based ranks of the order statistics R type 7 needs for p = 1/4, 1/2, 3/4 among n values. */
+function quartileRanks(n: number): number[] {
+  return [1, 2, 3].flatMap((k) => {
+    const lower = Math.floor(((n - 1) * k) / 4) + 1;
+    return lower < n ? [lower, lower + 1] : [lower];
+  });
+}
+
 export async function quantityStatistics(scope: Scope, groupBy: GroupBy = 'none'): Promise<QuantityStat[]> {
   const base = checkRows(groupBy);
-  // Histogram buckets in their own GROUP BY, so the bucket expression is evaluated once per row
-  // (folding it into the summary as SUM(CASE …) columns makes SQLite re-expand it per column).
-  const [summary, buckets, ranks] = await Promise.all([
-    q<Record<string, unknown>>(
-      `SELECT g, qkey, species, basis, COUNT(*) AS n, COUNT(DISTINCT "studentId") AS students,
-         SUM(CASE WHEN verdict = 'within' THEN 1 ELSE 0 END) AS within,
-         SUM(CASE WHEN verdict = 'partial' THEN 1 ELSE 0 END) AS partial,
-         SUM(CASE WHEN verdict = 'outside' THEN 1 ELSE 0 END) AS outside,
-         SUM(CASE WHEN verdict NOT IN ('within', 'partial', 'outside') THEN 1 ELSE 0 END) AS "notChecked",
-         COUNT(x) AS checked, MIN(x) AS min, MAX(x) AS max, AVG(x) AS mean,
-         CASE WHEN AVG(x * x) - AVG(x) * AVG(x) > 0 THEN SQRT(AVG(x * x) - AVG(x) * AVG(x)) ELSE 0 END AS sd
-       FROM (${base}) v GROUP BY g, qkey, species, basis ORDER BY g, qkey, species, basis`,
-      scope,
-    ),
-    q<Record<string, unknown>>(
-      `SELECT g, qkey, species, basis, ${bucketExpr} AS b, COUNT(*) AS n
-       FROM (${base}) v WHERE x IS NOT NULL GROUP BY g, qkey, species, basis, ${bucketExpr}`,
-      { ...scope, ...edgeReplacements },
-    ),
-    // R type 7 quartiles: for p = 1/4, 1/2, 3/4 the 1-based ranks ⌊(n−1)p⌋+1 and +2, in integer arithmetic.
-    q<Record<string, unknown>>(
-      `SELECT g, qkey, species, basis, rn, n, x FROM (
-         SELECT g, qkey, species, basis, x,
-           ROW_NUMBER() OVER w AS rn,
-           COUNT(*) OVER (w ROWS BETWEEN UNBOUNDED PRECEDING AND UNBOUNDED FOLLOWING) AS n
-         FROM (${base}) v WHERE x IS NOT NULL
-         WINDOW w AS (PARTITION BY g, qkey, species, basis ORDER BY x)
-       ) r
-       WHERE rn IN ((n - 1) / 4 + 1, (n - 1) / 4 + 2, (n - 1) / 2 + 1, (n - 1) / 2 + 2, (3 * (n - 1)) / 4 + 1, (3 * (n - 1)) / 4 + 2)`,
-      scope,
-    ),
-  ]);
+  // One pass for counts, verdicts, min/max/mean/mean of squares and the histogram.
+  const summary = await q<Record<string, unknown>>(
+    `SELECT g, qkey, species, basis, COUNT(*) AS n, COUNT(DISTINCT "studentId") AS students,
+       SUM(CASE WHEN verdict = 'within' THEN 1 ELSE 0 END) AS within,
+       SUM(CASE WHEN verdict = 'partial' THEN 1 ELSE 0 END) AS partial,
+       SUM(CASE WHEN verdict = 'outside' THEN 1 ELSE 0 END) AS outside,
+       SUM(CASE WHEN verdict NOT IN ('within', 'partial', 'outside') THEN 1 ELSE 0 END) AS "notChecked",
+       COUNT(x) AS checked, MIN(x) AS min, MAX(x) AS max, AVG(x) AS mean, AVG(x * x) AS "meanSquare",
+       ${cumulativeColumns}
+     FROM (${base}) v GROUP BY g, qkey, species, basis ORDER BY g, qkey, species, basis`,
+    { ...scope, ...edgeReplacements },
+  );
+  // Quartiles: one window pass over every quantity at once, keeping only the ranks some group needs
+  // (R type 7: for p = 1/4, 1/2, 3/4 the ranks ⌊(n−1)p⌋+1 and +2; n known from the summary).
+  const wanted = [...new Set(summary.filter((r) => num(r.students) >= MIN_GROUP).flatMap((r) => quartileRanks(num(r.checked))))];
+  const ranks = wanted.length
+    ? await q<Record<string, unknown>>(
+        `SELECT g, qkey, species, basis, rn, x FROM (
+           SELECT g, qkey, species, basis, x, ROW_NUMBER() OVER (PARTITION BY g, qkey, species, basis ORDER BY x) AS rn
+           FROM (${base}) v WHERE x IS NOT NULL
+         ) r
+         WHERE rn IN (:wanted)`,
+        { ...scope, wanted },
+      )
+    : [];
 
-  const hist = new Map<string, Map<number, number>>();
-  for (const r of buckets) {
-    const k = quantityKey(String(r.g), String(r.qkey), String(r.species), String(r.basis));
-    if (!hist.has(k)) hist.set(k, new Map());
-    hist.get(k)!.set(num(r.b), num(r.n));
-  }
   const orderStats = new Map<string, Map<number, number>>();
   for (const r of ranks) {
     const k = quantityKey(String(r.g), String(r.qkey), String(r.species), String(r.basis));
@@ -170,13 +172,16 @@ export async function quantityStatistics(scope: Scope, groupBy: GroupBy = 'none'
     stat.shares = judged ? { within: within / judged, partial: partial / judged, outside: outside / judged } : { within: 0, partial: 0, outside: 0 };
     stat.checked = num(r.checked);
     stat.mean = numOrNull(r.mean);
-    stat.sd = numOrNull(r.sd);
+    // Population SD √(mean(x²) − mean(x)²), 0 when that is not positive (rounding) or nothing was checked.
+    const meanSquare = numOrNull(r.meanSquare);
+    const variance = stat.mean === null || meanSquare === null ? null : meanSquare - stat.mean * stat.mean;
+    stat.sd = variance !== null && variance > 0 ? Math.sqrt(variance) : 0;
     const os = orderStats.get(k);
     stat.box = stat.checked > 0 && os
       ? { min: Number(r.min), q1: interpolate(os, stat.checked, 1, 4), median: interpolate(os, stat.checked, 1, 2), q3: interpolate(os, stat.checked, 3, 4), max: Number(r.max) }
       : null;
-    const h = hist.get(k) ?? new Map<number, number>();
-    stat.histogram = Array.from({ length: HISTOGRAM_EDGES_PERCENT.length + 1 }, (_, b) => ({ bucket: b, label: bucketLabel(b), count: h.get(b) ?? 0 }));
+    const ge = (i: number) => (i < 0 ? stat.checked! : i >= HISTOGRAM_EDGES_PERCENT.length ? 0 : num(r[`ge${i}`]));
+    stat.histogram = Array.from({ length: HISTOGRAM_EDGES_PERCENT.length + 1 }, (_, b) => ({ bucket: b, label: bucketLabel(b), count: ge(b - 1) - ge(b) }));
     return stat;
   });
 }

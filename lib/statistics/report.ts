@@ -4,6 +4,7 @@ import { SLIPS } from '@/lib/grading';
 import { validate } from '@/lib/http';
 import { DEFAULT_MARKER_THRESHOLD, HISTOGRAM_EDGES_PERCENT, MIN_GROUP } from './definitions';
 import { frequentSlips, markerConsistency, quantityStatistics, submissionCounts, type Counts, type QuantityStat, type SlipStat } from './queries';
+import { cachedStatistics } from './cache';
 import { markerLabels, type StatisticsScope } from './scope';
 
 export function slipTitle(code: string): string {
@@ -49,12 +50,13 @@ export interface PracticalReport {
 }
 
 export async function practicalReport(s: StatisticsScope, threshold: number): Promise<PracticalReport> {
-  const [countRows, quantities, slips, markers] = await Promise.all([
-    submissionCounts(s.scope),
-    quantityStatistics(s.scope),
-    frequentSlips(s.scope),
-    markerConsistency(s.scope, threshold),
-  ]);
+  // Sequential: SQLite has one connection, so running them together gains nothing.
+  const [countRows, quantities, slips, markers] = await cachedStatistics('report', s.scope, { threshold }, async () => [
+    await submissionCounts(s.scope),
+    await quantityStatistics(s.scope),
+    await frequentSlips(s.scope),
+    await markerConsistency(s.scope, threshold),
+  ] as const);
   const counts = countRows[0] ?? { group: 'all', students: 0, submitted: 0, onTime: 0, late: 0, marked: 0, released: 0 };
   const suppressed = counts.students < MIN_GROUP;
   const labels = await markerLabels(s.actor, s.manages, markers.map((m) => m.markerId));

@@ -1,0 +1,147 @@
+/**
+ * Demo data for the year-on-year comparison (fictional, Northmere University): last year's CHEM2041
+ * cohort "Group A, 2025 Autumn" with a copy of "HCl/DCl fundamental band" and 20 alumni whose
+ * submissions went through the real pipeline — line lists simulated from published constants
+ * (simulateLineList) with seeded noise, values derived with the engine's own formulas (fitBand,
+ * forceConstantFromBand, bondLengthFromB), some with one named slip; checked by
+ * checkStoredSubmission, marked by ta1 through saveMarks (the engine's proposal for most, a few
+ * overrides with a comment), then released. Dates are moved back to autumn 2025.
+ * Idempotent: an alumnus who already has a submission to the copy is skipped.
+ */
+import { Op } from 'sequelize';
+import { models } from '@/models';
+import { bondLengthFromB, fitBand, forceConstantFromBand, parseSpecies, simulateLineList } from '@/lib/grading';
+import { gaussian, mulberry32 } from '@/lib/spectrum';
+import { copyPractical } from '@/lib/instructor/practicals';
+import { saveMarks } from '@/lib/marking/marks';
+import { checkStoredSubmission } from '@/lib/submissions/check';
+
+export const LAST_YEAR = { term: '2025 Autumn', name: 'Group A', instrument: 'FTIR bench 1 (0.5 cm⁻¹)', deadline: '2025-11-14T17:00:00.000Z' };
+const TITLE = 'HCl/DCl fundamental band';
+const ALUMNI = 20;
+// Last year's briefing did not stress 2π in ν = (1/2π)√(k/μ) or SI masses: more of those slips.
+const SLIP_PLAN = ['correct', 'missing-2pi', 'correct', 'mass-numbers-used', 'correct', 'grams-not-kilograms', 'missing-2pi', 'correct', 'r0-reported-as-re', 'correct'] as const;
+const OVERRIDES: Record<number, { delta: number; comment: string }> = {
+  3: { delta: 0.5, comment: 'Method fully correct; only the masses were taken as mass numbers — some credit restored.' },
+  9: { delta: -1, comment: 'Band centre read from the strongest line, not the band origin.' },
+  11: { delta: 1, comment: 'Working shows the 2π; the final line dropped it in transcription.' },
+  17: { delta: -0.5, comment: 'No uncertainty given for the force constant.' },
+};
+
+export async function seedLastYearDemo(): Promise<{ created: number; skipped: string | null }> {
+  const { Course, Cohort, Practical, PracticalCohort, User, CourseMembership, Submission, SubmittedValue, LineAssignment, Mark } = models();
+  const course = await Course.findOne({ where: { code: 'CHEM2041' } });
+  if (!course) return { created: 0, skipped: 'CHEM2041 not seeded' };
+  const source = await Practical.findOne({ where: { courseId: course.id, title: TITLE, copiedFromId: null } });
+  const ta1 = await User.findOne({ where: { email: 'ta1@northmere.example' } });
+  const lead = await User.findOne({ where: { email: 'lead@northmere.example' } });
+  if (!source || !ta1 || !lead) return { created: 0, skipped: 'demo practicals or staff not seeded' };
+
+  const [cohort] = await Cohort.findOrCreate({
+    where: { courseId: course.id, name: LAST_YEAR.name, term: LAST_YEAR.term },
+    defaults: { courseId: course.id, name: LAST_YEAR.name, term: LAST_YEAR.term, instrument: LAST_YEAR.instrument, archivedAt: null },
+  });
+  const thisYearA = await Cohort.findOne({ where: { courseId: course.id, name: 'Group A', term: '2026 Autumn' } });
+  const existingLink = await PracticalCohort.findOne({ where: { cohortId: cohort.id } });
+  let practical = existingLink ? await Practical.findOne({ where: { id: existingLink.practicalId, title: TITLE } }) : null;
+  if (!practical) {
+    // The instructor workspace's own copy: quantities and bands, Group A's overrides mapped onto last year's Group A.
+    practical = await copyPractical(source, {
+      title: TITLE,
+      cohortMap: thisYearA ? { [String(thisYearA.id)]: cohort.id } : {},
+      deadlines: [{ cohortId: cohort.id, deadline: LAST_YEAR.deadline }],
+    }, lead.id);
+  }
+  const [taDuty] = await models().TaAssignment.findOrCreate({ where: { cohortId: cohort.id, taId: ta1.id, studentId: null }, defaults: { cohortId: cohort.id, taId: ta1.id, studentId: null } });
+  void taDuty;
+
+  const { hashSync } = await import('bcryptjs');
+  // eslint-disable-next-line @typescript-eslint/no-require-imports
+  const cast = require('../../seeders/data/demo-cast.cjs') as { DEMO_PASSWORD: string; FIRST_NAMES: string[]; LAST_NAMES: string[] };
+  let hash: string | null = null;
+  const deadline = new Date(LAST_YEAR.deadline);
+  let created = 0;
+  for (let n = 1; n <= ALUMNI; n++) {
+    const email = `alumni${String(n).padStart(2, '0')}@northmere.example`;
+    let student = await User.findOne({ where: { email } });
+    if (!student) {
+      hash ??= hashSync(cast.DEMO_PASSWORD, 10);
+      // Offsets into the invented name lists that the 2026 students do not use together.
+      const name = `${cast.FIRST_NAMES[(n * 5 + 3) % cast.FIRST_NAMES.length]} ${cast.LAST_NAMES[(n * 11 + 4) % cast.LAST_NAMES.length]}`;
+      student = await User.create({ email, name, passwordHash: hash, isAdmin: false, studentNumber: `NM25${String(3800 + n)}` });
+    }
+    await CourseMembership.findOrCreate({ where: { userId: student.id, courseId: course.id, role: 'student' }, defaults: { userId: student.id, courseId: course.id, role: 'student', cohortId: cohort.id } });
+    if (await Submission.findOne({ where: { practicalId: practical.id, studentId: student.id, attempt: { [Op.gt]: 0 } } })) continue;
+
+    const plan = SLIP_PLAN[n % SLIP_PLAN.length];
+    const late = n % 7 === 0 ? 1 : 0;
+    const submittedAt = new Date(deadline.getTime() + (late ? 20 : -(ALUMNI - n) * 5) * 3600_000);
+    const sub = await Submission.create({
+      practicalId: practical.id, cohortId: cohort.id, studentId: student.id, attempt: 1, status: 'submitted', draft: null,
+      submittedAt, daysLate: late, latePenalty: late ? Math.min(practical.latePenaltyCap, practical.latePenaltyPerDay * late) : 0,
+      flagLate: late > 0, isMarkedAttempt: true, checkSummary: null, lineListHash: null, proposedTotal: null, awardedTotal: null, maxTotal: null,
+      markedById: null, markedAt: null, releasedAt: null, resubmissionMessage: null, version: 0,
+    });
+    const { values, lines } = reportOf(practical.species, plan, 7000 + n);
+    await SubmittedValue.bulkCreate(values.map((v) => ({ ...v, submissionId: sub.id, valueSI: null })));
+    await LineAssignment.bulkCreate(lines.map((l) => ({ submissionId: sub.id, species: l.species, branch: l.branch, J: l.J, wavenumber: l.wavenumber, source: 'student' as const })));
+    await checkStoredSubmission(sub.id);
+
+    // Marking by ta1: the proposal, hand marks for the rubric, and a few overrides with a reason.
+    const marks = await Mark.findAll({ where: { submissionId: sub.id }, order: [['id', 'ASC']] });
+    const override = OVERRIDES[n];
+    let overridden = false;
+    const items = marks.map((m) => {
+      if (m.proposed === null) return { itemKey: m.itemKey, awarded: Math.min(m.maxMarks, 2 + ((n * 3 + m.id) % 3)), comment: null };
+      if (override && !overridden && (override.delta > 0 ? m.proposed + override.delta <= m.maxMarks : m.proposed + override.delta >= 0)) {
+        overridden = true;
+        return { itemKey: m.itemKey, awarded: m.proposed + override.delta, comment: override.comment };
+      }
+      return { itemKey: m.itemKey, awarded: m.proposed, comment: null };
+    });
+    const fresh = (await Submission.findByPk(sub.id))!;
+    await saveMarks(ta1.id, sub.id, { version: fresh.version, items });
+    const markedAt = new Date(deadline.getTime() + (6 + n / 4) * 86400_000);
+    const releasedAt = new Date(deadline.getTime() + 14 * 86400_000);
+    await Submission.update({ status: 'released', markedAt, releasedAt }, { where: { id: sub.id, status: 'marked' } });
+    created++;
+  }
+  return { created, skipped: null };
+}
+
+/** A student's reported values and assigned lines, from a simulated line list with seeded noise. */
+function reportOf(speciesList: string[], plan: (typeof SLIP_PLAN)[number], seed: number) {
+  const noise = gaussian(mulberry32(seed));
+  const values: { key: string; species: string; valueText: string; unit: string; uncertaintyText: string | null }[] = [];
+  const lines: { species: string; branch: 'P' | 'R'; J: number; wavenumber: number }[] = [];
+  for (const sp of speciesList) {
+    const parsed = parseSpecies(sp);
+    if (!parsed.ok) continue;
+    const own = simulateLineList(sp, { jMax: 9 }).map((l) => ({ species: sp, branch: l.branch, J: l.J, wavenumber: Math.round((l.wavenumber + 0.04 * noise()) * 100) / 100 }));
+    lines.push(...own);
+    const fit = fitBand(own);
+    if (!fit.ok) continue;
+    const nu0 = Math.round(fit.nu0.value * 10) / 10;
+    const { reducedMassKg: muKg, reducedMassU: muU } = parsed.species;
+    let kMu = muU;
+    let k = forceConstantFromBand(nu0 * 100, muKg);
+    if (sp === 'H35Cl') {
+      if (plan === 'mass-numbers-used') { kMu = 35 / 36; k = forceConstantFromBand(nu0 * 100, kMu * 1.6605390666e-27); }
+      if (plan === 'missing-2pi') k /= 4 * Math.PI ** 2;
+      if (plan === 'grams-not-kilograms') k *= 1000;
+    }
+    const B0 = fit.B0.value;
+    const B1 = fit.B1.value;
+    const re = sp === 'H35Cl' && plan === 'r0-reported-as-re' ? bondLengthFromB(B0 * 100, muKg) : bondLengthFromB(fit.Be.value * 100, muKg);
+    const put = (key: string, valueText: string, unit: string, unc: string | null) => values.push({ key, species: sp, valueText, unit, uncertaintyText: unc });
+    put('bandCentre', nu0.toFixed(1), 'cm-1', '0.3');
+    put('reducedMass', kMu.toFixed(5), 'u', null);
+    put('forceConstant', k.toPrecision(4), 'N m-1', (k * 0.002).toPrecision(1));
+    put('B0', B0.toFixed(3), 'cm-1', '0.005');
+    put('B1', B1.toFixed(3), 'cm-1', '0.005');
+    put('Be', ((3 * B0 - B1) / 2).toFixed(3), 'cm-1', null);
+    put('alphaE', (B0 - B1).toFixed(3), 'cm-1', null);
+    put('re', (re * 1e10).toFixed(4), 'Å', '0.0005');
+  }
+  return { values, lines };
+}
