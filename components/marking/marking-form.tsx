@@ -20,7 +20,7 @@ export function MarkingForm({ initial }: { initial: MarkingView }) {
     defaultValues: {
       version: initial.submission.version,
       markerComment: initial.submission.markerComment ?? '',
-      items: initial.marks.map((m) => ({ itemKey: m.itemKey, awarded: m.awarded ?? m.proposed ?? (undefined as unknown as number), comment: m.comment ?? '' })),
+      items: initial.marks.map((m) => ({ itemKey: m.itemKey, awarded: m.awarded ?? m.proposed ?? null, comment: m.comment ?? '' })),
     },
   });
   const items = form.watch('items');
@@ -35,7 +35,7 @@ export function MarkingForm({ initial }: { initial: MarkingView }) {
       form.reset({
         version: fresh.submission.version,
         markerComment: fresh.submission.markerComment ?? '',
-        items: fresh.marks.map((m) => ({ itemKey: m.itemKey, awarded: m.awarded ?? m.proposed ?? (undefined as unknown as number), comment: m.comment ?? '' })),
+        items: fresh.marks.map((m) => ({ itemKey: m.itemKey, awarded: m.awarded ?? m.proposed ?? null, comment: m.comment ?? '' })),
       });
     }
   };
@@ -132,7 +132,7 @@ export function MarkingForm({ initial }: { initial: MarkingView }) {
                         min={0}
                         max={m.maxMarks}
                         disabled={!editable}
-                        {...form.register(`items.${i}.awarded`, { valueAsNumber: true })}
+                        {...form.register(`items.${i}.awarded`, { setValueAs: (v) => (v === '' || v === null || v === undefined ? null : Number(v)) })}
                       />
                       {err?.awarded && <p className="error-text">{err.awarded.message}</p>}
                     </td>

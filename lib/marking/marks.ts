@@ -51,9 +51,9 @@ export async function saveMarks(actorId: number, submissionId: number, input: Sa
       if (!mark) throw new HttpError(400, `Unknown mark item: ${item.itemKey}.`, { [item.itemKey]: ['No such item on this submission.'] });
       if (seen.has(item.itemKey)) throw new HttpError(400, `Mark item given twice: ${item.itemKey}.`);
       seen.add(item.itemKey);
-      if (item.awarded > mark.maxMarks + 1e-9)
+      if (item.awarded !== null && item.awarded > mark.maxMarks + 1e-9)
         throw new HttpError(400, `${mark.label}: at most ${mark.maxMarks} marks.`, { [item.itemKey]: [`At most ${mark.maxMarks}.`] });
-      const overrides = mark.proposed !== null && !close(item.awarded, mark.proposed);
+      const overrides = mark.proposed !== null && item.awarded !== null && !close(item.awarded, mark.proposed);
       if (overrides && !(item.comment && item.comment.trim()))
         throw new HttpError(400, `${mark.label}: say why you changed the proposed mark (a comment is required).`, { [item.itemKey]: ['A comment is required when you change the proposed mark.'] });
     }

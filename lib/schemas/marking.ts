@@ -21,11 +21,12 @@ export const queueQuerySchema = z.object({
 });
 export type QueueQuery = z.infer<typeof queueQuerySchema>;
 
-const marks = z.number().finite().min(0, 'Marks cannot be negative.').max(1000);
+const marks = z.number({ error: 'Enter the marks as a number.' }).finite().min(0, 'Marks cannot be negative.').max(1000);
 
 export const markItemSchema = z.object({
   itemKey: z.string().min(1).max(100),
-  awarded: marks,
+  /** null: not marked yet (a hand-marked item the TA has not reached). */
+  awarded: marks.nullable(),
   comment: z.string().trim().max(2000, 'At most 2000 characters.').optional().nullable(),
 });
 
