@@ -67,7 +67,9 @@ export function fieldErrors(error: z.ZodError): Record<string, string[]> {
   const out: Record<string, string[]> = {};
   for (const issue of error.issues) {
     const key = issue.path.join('.') || '_';
-    (out[key] ??= []).push(issue.message);
+    // zod's own wording for a missing field ("expected string, received undefined") is not one a person can act on.
+    const missing = issue.code === 'invalid_type' && / received undefined$/.test(issue.message);
+    (out[key] ??= []).push(missing ? 'Required.' : issue.message);
   }
   return out;
 }

@@ -42,6 +42,7 @@ export async function receiveMultipart(request: Request, maxBytes: number): Prom
   if (!request.body) throw new HttpError(400, 'No file was sent.');
   const dir = uploadDir();
   const created: string[] = [];
+  const streams: fs.WriteStream[] = [];
   const cleanup = () => {
     for (const p of created) fs.rmSync(p, { force: true });
   };
@@ -60,6 +61,12 @@ export async function receiveMultipart(request: Request, maxBytes: number): Prom
     allowEmptyFiles: true,
     minFileSize: 0,
     filename: () => `${crypto.randomBytes(16).toString('hex')}.part`,
+    // Our own write streams, so a refused upload can wait for them to close before removing the file.
+    fileWriteStreamHandler: ((file: { filepath: string }) => {
+      const ws = fs.createWriteStream(file.filepath);
+      streams.push(ws);
+      return ws;
+    }) as never,
   });
   form.on('fileBegin', (_name, file) => {
     created.push(file.filepath);
@@ -72,6 +79,9 @@ export async function receiveMultipart(request: Request, maxBytes: number): Prom
     const f = list[0];
     return { fields: flat, file: f ? { tempPath: f.filepath, originalName: f.originalFilename ?? '', size: f.size } : null, cleanup };
   } catch (e) {
+    // A file may still be opening when formidable gives up (e.g. a second file): removing it
+    // before its stream has closed would let the open create it again afterwards.
+    await Promise.all(streams.map((ws) => (ws.closed ? null : new Promise<void>((resolve) => ws.once('close', () => resolve()).destroy()))));
     cleanup();
     const err = e as { httpCode?: number; code?: number; message?: string };
     if (err.httpCode === 413 || /maxFileSize|maxTotalFileSize|exceeded/i.test(err.message ?? '')) throw new HttpError(413, `The file is too large (limit ${formatBytes(maxBytes)}).`);
