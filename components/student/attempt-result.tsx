@@ -1,5 +1,6 @@
 import type { StudentAttemptView } from '@/lib/submissions/view';
 import { VerdictTag } from './verdict';
+import { speciesDisplay } from '@/lib/grading';
 
 /** What the student may see of one attempt's checks (built by lib/submissions/view.ts). */
 export function AttemptResult({ view }: { view: StudentAttemptView }) {
@@ -44,14 +45,23 @@ export function AttemptResult({ view }: { view: StudentAttemptView }) {
             {view.quantities.map((q) => (
               <tr key={`${q.species}:${q.key}`}>
                 <td>
-                  {q.label} <span className="text-ink-soft">({q.species})</span>
+                  {q.label} <span className="text-ink-soft">({speciesDisplay(q.species)})</span>
                   {q.slips.map((s) => (
                     <p key={s.code} className="mt-1 text-sm" data-slip={s.code}>
-                      <strong>{s.title}.</strong> {s.message}
+                      {s.message.startsWith(s.title) ? (
+                        <>
+                          <strong>{s.title}</strong>
+                          {s.message.slice(s.title.length)}
+                        </>
+                      ) : (
+                        <>
+                          <strong>{s.title}.</strong> {s.message}
+                        </>
+                      )}
                     </p>
                   ))}
                 </td>
-                <td className="num">{q.reportedText}</td>
+                <td className="num whitespace-nowrap">{q.reportedText}</td>
                 <td>{q.consistency ? <><VerdictTag verdict={q.consistency.verdict} /><div className="num text-xs text-ink-soft">expected {q.consistency.expectedDisplay}</div></> : '—'}</td>
                 <td>{q.accuracy ? <><VerdictTag verdict={q.accuracy.verdict} /><div className="num text-xs text-ink-soft">accepted {q.accuracy.expectedDisplay}</div></> : '—'}</td>
               </tr>

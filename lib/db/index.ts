@@ -1,4 +1,4 @@
-import { Sequelize, type Options } from 'sequelize';
+import { Sequelize, Transaction, type Options } from 'sequelize';
 // eslint-disable-next-line @typescript-eslint/no-require-imports
 import cliConfig from './cli-config.cjs';
 
@@ -16,6 +16,10 @@ export function createSequelize(): Sequelize {
     logging: false,
     // SQLite allows one writer at a time; retry instead of failing while another write holds the lock.
     retry: { max: 8, match: [/SQLITE_BUSY/] },
+    // A deferred transaction that reads first and writes later fails at once (SQLITE_BUSY, no
+    // wait) when another connection wrote in between; IMMEDIATE takes the write lock at BEGIN,
+    // where the busy timeout makes it wait its turn instead.
+    transactionType: Transaction.TYPES.IMMEDIATE,
     pool: { max: 1, min: 0, idle: 60000 },
   });
   preparePerConnection(sequelize);

@@ -1,7 +1,7 @@
 /**
  * Numbers for people: sensible significant figures, Unicode minus and ×10ⁿ.
  */
-import { superscript } from './units';
+import { formatUnit, superscript } from './units';
 
 /** Formats with `sig` significant figures; scientific (× 10ⁿ) for very large or small magnitudes. */
 export function formatNumber(value: number, sig = 6): string {
@@ -31,4 +31,10 @@ export function formatNumber(value: number, sig = 6): string {
 /** "481.0 N m⁻¹": value and unit, without a stray space for a pure number. */
 export function withUnit(text: string, unit: string): string {
   return unit ? `${text} ${unit}` : text;
+}
+
+/** A number as the student typed it, with its uncertainty and the unit typeset: "481.0 ± 0.3 N m⁻¹". */
+export function formatTyped(valueText: string, unit: string, uncertaintyText?: string | null): string {
+  const value = uncertaintyText ? `${valueText} ± ${uncertaintyText}` : valueText;
+  return withUnit(value, unit.trim() ? formatUnit(unit) : '');
 }

@@ -7,7 +7,7 @@ export type { Num, SubmissionInput, SubmissionResult, QuantityCheck, ParseQuanti
 export * from './constants';
 export { isotope, stableIsotopes, mostAbundantIsotope, meanAtomicMass, isKnownElement, ISOTOPE_SOURCE } from './isotopes';
 export type { IsotopeData } from './isotopes';
-export { parseSpecies, reducedMass, speciesFromAtoms, isotopologueKey } from './species';
+export { parseSpecies, reducedMass, speciesFromAtoms, isotopologueKey, speciesDisplay } from './species';
 export type { Species, Atom, ParseSpeciesResult, SpeciesInput } from './species';
 export { REFERENCE_TABLE, referenceEntry, listKnownSpecies, scaleByIsotopeRelations, vibrationalTerm } from './reference';
 export type { ReferenceEntry, MolecularConstants } from './reference';
@@ -17,7 +17,7 @@ export { QUANTITIES, QUANTITY_KEYS, isQuantityKey } from './quantities';
 export type { QuantityKey, QuantityInfo } from './quantities';
 export { toSI, fromSI, formatUnit, lookupUnit, unitsFor, uncertaintyToSI, SI_UNIT } from './units';
 export type { Dimension, UnitDefinition, ToSIResult, FromSIResult } from './units';
-export { formatNumber } from './format';
+export { formatNumber, formatTyped } from './format';
 export {
   forceConstantFromBand,
   bandCentreFromForceConstant,

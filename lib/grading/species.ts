@@ -199,3 +199,10 @@ export function elementKey(s: Species): string {
     .sort((x, y) => (atomicNumber(x) ?? 0) - (atomicNumber(y) ?? 0))
     .join('');
 }
+
+/** "H35Cl" → "H³⁵Cl" when the species is understood; otherwise the text as given. */
+export function speciesDisplay(formula: string): string {
+  if (!formula) return '';
+  const p = parseSpecies(formula);
+  return p.ok ? p.species.display : formula;
+}

@@ -2,7 +2,7 @@ import type { FeedbackInput } from '@/lib/pdf/feedback';
 import type { MarkingView } from './view';
 import { fitPlotModel, residualModel } from './fit-plot';
 import { rawSum, totalAfterPenalty } from './totals';
-import { speciesDisplay } from './view';
+import { speciesDisplay } from '@/lib/grading';
 
 const n = (v: number | null) => (v === null ? '—' : String(Math.round(v * 100) / 100));
 

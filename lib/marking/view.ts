@@ -2,7 +2,7 @@
  * Everything the marking screen, the moderation screen and the feedback PDF show about one
  * submission, gathered from the database rows in one place and returned as plain data.
  */
-import { QUANTITIES, SLIPS, fromSI, formatNumber, formatUnit, isQuantityKey, parseSpecies, type SlipCode } from '@/lib/grading';
+import { QUANTITIES, SLIPS, fromSI, formatNumber, formatTyped, isQuantityKey, speciesDisplay, type SlipCode } from '@/lib/grading';
 import { models } from '@/models';
 import { HttpError } from '@/lib/http';
 import { worstVerdict, type VerdictKey } from './verdict';
@@ -57,12 +57,6 @@ function display(valueSI: number | null | undefined, key: string, signed = false
   return unit ? `${sign}${text} ${unit}` : `${sign}${text}`;
 }
 
-/** "H35Cl" → "H³⁵Cl" when the engine knows the species. */
-export function speciesDisplay(species: string): string {
-  if (!species) return '';
-  const p = parseSpecies(species);
-  return p.ok ? p.species.display : species;
-}
 
 function labelFor(key: string, species: string): string {
   const base = isQuantityKey(key) ? QUANTITIES[key].label : key;
@@ -125,7 +119,7 @@ export async function loadMarkingView(submissionId: number) {
     let row = rows.get(id);
     if (!row) {
       const typed = values.find((v) => v.key === key && v.species === species);
-      const typedText = typed ? [typed.valueText, typed.uncertaintyText ? `± ${typed.uncertaintyText}` : '', formatUnit(typed.unit)].filter(Boolean).join(' ') : '—';
+      const typedText = typed ? formatTyped(typed.valueText, typed.unit, typed.uncertaintyText) : '—';
       row = { key, species, label: labelFor(key, species), reportedTyped: typedText, reportedDisplay: display(typed?.valueSI, key), consistency: null, accuracy: null, verdict: 'not-checked', itemKey: id };
       rows.set(id, row);
     }

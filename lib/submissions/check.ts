@@ -31,7 +31,7 @@ import {
   QUANTITIES,
   SI_UNIT,
   SLIPS,
-  parseSpecies,
+  speciesDisplay,
   marksFor,
   type Num,
   type QuantityKey,
@@ -269,11 +269,6 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
 
 function finite(x: number): number | null {
   return typeof x === 'number' && Number.isFinite(x) ? x : null;
-}
-
-export function speciesDisplay(sp: string): string {
-  const p = parseSpecies(sp);
-  return p.ok ? p.species.display : sp;
 }
 
 /** Reads the stored spectrum file and matches every reported line (all isotopologues together) to a peak. */

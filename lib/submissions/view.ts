@@ -4,12 +4,11 @@
  * missing uncertainties) until the marking is released. Staff-only facts (duplicate data) are
  * never part of this view.
  */
-import { isQuantityKey, QUANTITIES, SLIPS, type SlipCode, type Verdict } from '@/lib/grading';
+import { formatTyped, isQuantityKey, QUANTITIES, SLIPS, speciesDisplay, type SlipCode, type Verdict } from '@/lib/grading';
 import { models } from '@/models';
 import type { Practical } from '@/models/practical';
 import type { Submission } from '@/models/submission';
 import type { CheckSummary, SpectrumCheckSummary } from './check';
-import { speciesDisplay } from './check';
 
 export interface StudentQuantityView {
   key: string;
@@ -70,7 +69,9 @@ export async function studentAttemptView(sub: Submission, practical: Practical):
       if (!showVerdicts) continue;
       let view = byKey.get(q.key);
       if (!view) {
-        view = { key: q.key, species: sp, label: QUANTITIES[q.key]?.label ?? q.key, reportedText: q.reportedText, slips: [] };
+        const typed = values.find((v) => v.key === q.key && v.species === sp);
+        const reportedText = typed ? formatTyped(typed.valueText, typed.unit, typed.uncertaintyText) : q.reportedText;
+        view = { key: q.key, species: sp, label: QUANTITIES[q.key]?.label ?? q.key, reportedText, slips: [] };
         byKey.set(q.key, view);
         quantities.push(view);
       }

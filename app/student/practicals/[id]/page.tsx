@@ -7,7 +7,7 @@ import { HazardNotes } from '@/components/hazard-notes';
 import { renderInstructions } from '@/lib/instructor/markdown';
 import { isQuantityKey, QUANTITIES, unitsFor } from '@/lib/grading';
 import { studentPlacement } from '@/lib/submissions/access';
-import { speciesDisplay } from '@/lib/submissions/check';
+import { speciesDisplay } from '@/lib/grading';
 import { attemptsUsed, findDraft, readDraft } from '@/lib/submissions/service';
 import { timeLeft } from '@/lib/submissions/student-home';
 import { studentAttemptView } from '@/lib/submissions/view';
