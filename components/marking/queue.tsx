@@ -19,11 +19,12 @@ const col = createColumnHelper<QueueRow>();
 
 export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number; title: string }[]; cohorts: { id: number; name: string }[] }) {
   const router = useRouter();
-  const [f, setF] = useState<Filters>({ practicalId: '', cohortId: '', status: '', flag: '', sort: 'submittedAt', dir: 'asc', page: 1 });
+  const [f, setF] = useState<Filters>({ practicalId: '', cohortId: '', status: '', flag: '', sort: 'submittedAt', dir: 'desc', page: 1 });
   const [cursor, setCursor] = useState(0);
   const [selected, setSelected] = useState<Set<number>>(new Set());
   const [message, setMessage] = useState('');
   const tableRef = useRef<HTMLTableSectionElement>(null);
+  const regionRef = useRef<HTMLDivElement>(null);
   const query = useMemo(() => {
     const p = new URLSearchParams();
     for (const [k, v] of Object.entries(f)) if (v !== '' && v !== undefined) p.set(k, String(v));
@@ -97,8 +98,14 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
   useEffect(() => {
     const onKey = (e: KeyboardEvent) => {
       const t = e.target as HTMLElement;
-      if (['INPUT', 'SELECT', 'TEXTAREA', 'BUTTON'].includes(t.tagName) && e.key !== 'Escape') return;
+      if (['INPUT', 'SELECT', 'TEXTAREA', 'BUTTON'].includes(t.tagName)) {
+        // Escape leaves a filter or button for the table, where the queue keys work again.
+        if (e.key === 'Escape') regionRef.current?.focus();
+        return;
+      }
       if (e.metaKey || e.ctrlKey || e.altKey) return;
+      // Enter on a focused link follows that link; the row's own focus has already moved the cursor there.
+      if (e.key === 'Enter' && t.tagName === 'A') return;
       const row = rows[cursor];
       if (e.key === 'j' || e.key === 'ArrowDown') {
         e.preventDefault();
@@ -195,7 +202,7 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
       <p className="mb-3 text-sm" aria-live="polite" role="status" data-testid="queue-message">{message}</p>
       {error && <p className="error-text" role="alert">{String(error.message ?? error)}</p>}
 
-      <div className="card overflow-x-auto p-0">
+      <div ref={regionRef} className="card overflow-x-auto p-0" tabIndex={0} role="region" aria-label="Submissions" aria-describedby="queue-keys">
         <table className="data-table" aria-describedby="queue-keys">
           <thead>
             {table.getHeaderGroups().map((g) => (
@@ -211,6 +218,7 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
                 aria-current={i === cursor ? 'true' : undefined}
                 className={i === cursor ? 'bg-accent-soft outline outline-2 outline-accent' : ''}
                 onClick={() => setCursor(i)}
+                onFocus={() => setCursor(i)}
               >
                 {row.getVisibleCells().map((c) => <td key={c.id}>{flexRender(c.column.columnDef.cell, c.getContext())}</td>)}
               </tr>

@@ -71,7 +71,7 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<{ rows: Qu
     include: [
       { model: User, as: 'student', attributes: ['id', 'name', 'studentNumber'] },
       { model: Practical, attributes: ['id', 'title'] },
-      { model: Cohort, attributes: ['id', 'name'] },
+      { model: Cohort, attributes: ['id', 'name', 'term'] },
     ],
     order: [...(order as unknown[]), ['id', 'ASC']] as Order,
     limit: q.pageSize,
@@ -90,7 +90,7 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<{ rows: Qu
         id: s.id,
         student: { id: r.student.id, name: r.student.name, studentNumber: r.student.studentNumber },
         practical: { id: r.Practical.id, title: r.Practical.title },
-        cohort: { id: r.Cohort.id, name: r.Cohort.name },
+        cohort: { id: r.Cohort.id, name: `${r.Cohort.name}, ${r.Cohort.term}` },
         status: s.status,
         attempt: s.attempt,
         submittedAt: s.submittedAt?.toISOString() ?? null,
@@ -121,8 +121,8 @@ export async function queueFilters(actor: Actor) {
     if (managed.length) (await Cohort.findAll({ where: { courseId: managed }, attributes: ['id'] })).forEach((c) => cohortIds.add(c.id));
     actor.taDuties.forEach((d) => cohortIds.add(d.cohortId));
   }
-  const cohorts = await Cohort.findAll({ where: { id: [...cohortIds] }, order: [['name', 'ASC']] });
+  const cohorts = await Cohort.findAll({ where: { id: [...cohortIds] }, order: [['term', 'DESC'], ['name', 'ASC']] });
   const links = await PracticalCohort.findAll({ where: { cohortId: [...cohortIds] }, attributes: ['practicalId'] });
   const practicals = await Practical.findAll({ where: { id: [...new Set(links.map((l) => l.practicalId))] }, order: [['title', 'ASC']] });
-  return { practicals: practicals.map((p) => ({ id: p.id, title: p.title })), cohorts: cohorts.map((c) => ({ id: c.id, name: c.name })) };
+  return { practicals: practicals.map((p) => ({ id: p.id, title: p.title })), cohorts: cohorts.map((c) => ({ id: c.id, name: `${c.name}, ${c.term}` })) };
 }

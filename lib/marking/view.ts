@@ -88,7 +88,7 @@ export function fitsFromSummary(summary: unknown): FitData[] {
 }
 
 export async function loadMarkingView(submissionId: number) {
-  const { Submission, Practical, Course, Cohort, User, SubmittedValue, CheckResult, SlipFinding, Mark, Upload, FeedbackDocument, EmailOutbox, Moderation } =
+  const { Submission, Practical, Course, Cohort, User, SubmittedValue, CheckResult, Mark, Upload, FeedbackDocument, EmailOutbox, Moderation } =
     models();
   const submission = await Submission.findByPk(submissionId);
   if (!submission || submission.status === 'draft') throw new HttpError(404, 'Not found.');
@@ -102,10 +102,9 @@ export async function loadMarkingView(submissionId: number) {
   const course = await Course.findByPk(practical.courseId);
   if (!course) throw new HttpError(404, 'Not found.');
   const where = { submissionId };
-  const [values, checks, slips, marks, uploads, docs, outbox, moderations] = await Promise.all([
+  const [values, checks, marks, uploads, docs, outbox, moderations] = await Promise.all([
     SubmittedValue.findAll({ where, order: [['id', 'ASC']] }),
     CheckResult.findAll({ where, order: [['id', 'ASC']] }),
-    SlipFinding.findAll({ where, order: [['id', 'ASC']] }),
     Mark.findAll({ where, order: [['id', 'ASC']] }),
     Upload.findAll({ where, order: [['id', 'DESC']] }),
     FeedbackDocument.findAll({ where, order: [['id', 'ASC']] }),
@@ -175,9 +174,8 @@ export async function loadMarkingView(submissionId: number) {
       quantityLabel: labelFor(qKey, sp),
     });
   };
-  for (const s of slips) addSlip(s.key, s.code);
+  // From the check rows, which name the species; a slip found on both bases is listed once.
   for (const row of rows.values()) for (const b of [row.consistency, row.accuracy]) for (const code of b?.slipCodes ?? []) addSlip(`${row.key}:${row.species}`, code);
-  // A slip finding keyed by quantity only (no species) duplicates one keyed with species: keep the first.
 
   const report = uploads.find((u) => u.kind === 'report') ?? null;
   const spectrum = uploads.find((u) => u.kind === 'spectrum') ?? null;

@@ -8,6 +8,8 @@ import { submissionScope } from '@/lib/marking/access';
 import { loadMarkingView } from '@/lib/marking/view';
 import { fitPlotModel, residualModel } from '@/lib/marking/fit-plot';
 import { renderSvg } from '@/lib/spectrum';
+import { spectrumFigure } from '@/lib/submissions/spectrum-figure';
+import { models } from '@/models';
 
 export const metadata = { title: 'Mark a submission' };
 export const dynamic = 'force-dynamic';
@@ -25,6 +27,9 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
   }
   await authorizePage({ kind: 'submission-mark', ...scope });
   const view = await loadMarkingView(id);
+  const { Submission, Practical } = models();
+  const submissionRow = (await Submission.findByPk(id))!;
+  const spectrum = await spectrumFigure(submissionRow, (await Practical.findByPk(submissionRow.practicalId))!, 'staff');
   const plots = view.fits
     .filter((f) => f.residuals.length)
     .map((f, i) => ({
@@ -90,6 +95,22 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
               </li>
             ))}
           </ul>
+        )}
+      </section>
+
+      <section aria-labelledby="spectrum-heading" className="card mb-6">
+        <h2 id="spectrum-heading" className="mb-2">Spectrum with the student’s lines</h2>
+        {spectrum.ok ? (
+          <>
+            <div className="overflow-x-auto text-ink" data-testid="marking-spectrum" dangerouslySetInnerHTML={{ __html: spectrum.svg }} />
+            <p className="mt-2 text-sm">
+              {spectrum.summary.ok
+                ? `${spectrum.summary.matched} of ${spectrum.summary.reported} reported lines match a peak (within ±${spectrum.summary.tolerance.toFixed(2)} cm⁻¹)${spectrum.summary.missing ? `; ${spectrum.summary.missing} strong peaks are not in the list` : ''}.`
+                : spectrum.summary.message}
+            </p>
+          </>
+        ) : (
+          <p className="text-ink-soft">{spectrum.message}</p>
         )}
       </section>
 
