@@ -15,6 +15,10 @@ if [ -z "$BIN" ]; then
   fi
 fi
 as_pg() { if [ "$(id -u)" = "0" ]; then runuser -u postgres -- "$@"; else "$@"; fi; }
+if [ "${1:-}" = "stop" ]; then
+  [ -d "$DIR/data" ] && as_pg "$BIN/pg_ctl" -D "$DIR/data" -m fast stop >/dev/null
+  exit 0
+fi
 if ! as_pg "$BIN/pg_isready" -q -h 127.0.0.1 -p "$PORT" 2>/dev/null; then
   rm -rf "$DIR" && mkdir -p "$DIR"
   [ "$(id -u)" = "0" ] && chown postgres "$DIR"

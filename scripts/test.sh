@@ -32,4 +32,10 @@ for _ in $(seq 1 50); do curl -sf "$MAILDEV_API/api/healthz" >/dev/null 2>&1 && 
 npx tsc --noEmit
 npx vitest run --project unit
 npx vitest run --project integration
+
+# The same integration suite on PostgreSQL, through the same migrations (a private server on loopback).
+PG_ADMIN_URL=$(bash scripts/postgres.sh | tail -n 1)
+trap 'kill $MAILDEV_PID 2>/dev/null || true; bash scripts/postgres.sh stop >/dev/null 2>&1 || true' EXIT
+OSCILLAB_PG_ADMIN_URL="$PG_ADMIN_URL" npx vitest run --project integration
+
 bash scripts/e2e.sh
