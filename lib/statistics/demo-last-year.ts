@@ -24,7 +24,7 @@ const SLIP_PLAN = ['correct', 'missing-2pi', 'correct', 'mass-numbers-used', 'co
 const OVERRIDES: Record<number, { delta: number; comment: string }> = {
   3: { delta: 0.5, comment: 'Method fully correct; only the masses were taken as mass numbers — some credit restored.' },
   9: { delta: -1, comment: 'Band centre read from the strongest line, not the band origin.' },
-  11: { delta: 1, comment: 'Working shows the 2π; the final line dropped it in transcription.' },
+  11: { delta: 1, comment: 'Working shows the 2π; the final line dropped it when the result was copied out.' },
   17: { delta: -0.5, comment: 'No uncertainty given for the force constant.' },
 };
 
