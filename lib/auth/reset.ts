@@ -9,18 +9,15 @@
  * "reset-from:<client>") and refused with 429 beyond a small allowance, for known and unknown
  * addresses alike.
  */
-import { randomBytes } from 'node:crypto';
 import { Op, type Transaction } from 'sequelize';
 import { models } from '@/models';
 import { sequelize } from '@/lib/db';
 import { queueEmail } from '@/lib/mail/outbox';
 import { renderEmail } from '@/lib/templates';
-import { hashPassword, passwordSchema } from '@/lib/auth/password';
 import { HttpError } from '@/lib/http-error';
-import { validate } from '@/lib/http';
 import { audit } from '@/lib/audit';
 import { accountSubject } from '@/lib/auth/throttle';
-import { appOrigin, hashToken } from '@/lib/instructor/invitations';
+import { appOrigin, findLink, issueLink, linkState, setPasswordWithLink, type LinkState } from '@/lib/auth/one-time-link';
 
 export const RESET_MINUTES = 60;
 export const RESET_PURPOSE = 'password-reset' as const;
@@ -83,14 +80,13 @@ export async function invalidateResetTokens(userId: number, transaction?: Transa
 
 /** Create a reset link for a known user and queue its e-mail, voiding older links. Returns the token (for tests). */
 export async function issueResetToken(userId: number, now = new Date()): Promise<string> {
-  const { OneTimeToken, User } = models();
-  const token = randomBytes(32).toString('base64url');
+  const { User } = models();
   const expiresAt = new Date(now.getTime() + RESET_MINUTES * 60_000);
-  await sequelize().transaction(async (transaction) => {
+  return sequelize().transaction(async (transaction) => {
     const user = await User.findByPk(userId, { transaction });
     if (!user) throw new Error(`issueResetToken: no user ${userId}`);
     await invalidateResetTokens(user.id, transaction, now);
-    const row = await OneTimeToken.create({ userId: user.id, purpose: RESET_PURPOSE, tokenHash: hashToken(token), expiresAt, usedAt: null }, { transaction });
+    const { token, id } = await issueLink(user.id, RESET_PURPOSE, expiresAt, transaction);
     const { subject, text } = renderEmail('password-reset', {
       name: user.name,
       email: user.email,
@@ -98,9 +94,9 @@ export async function issueResetToken(userId: number, now = new Date()): Promise
       minutes: RESET_MINUTES,
       expires: expiresAt.toUTCString(),
     });
-    await queueEmail({ dedupeKey: `password-reset:${user.id}:${row.id}`, to: user.email, subject, text }, transaction);
+    await queueEmail({ dedupeKey: `password-reset:${user.id}:${id}`, to: user.email, subject, text }, transaction);
+    return token;
   });
-  return token;
 }
 
 const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
@@ -132,53 +128,28 @@ export async function requestPasswordReset(email: string, client: string, now = 
   }
 }
 
-export type ResetTokenState = { ok: true; email: string; name: string } | { ok: false; message: string };
+export type ResetTokenState = LinkState;
 
-const UNKNOWN = 'This link is not valid. Check that you copied the whole link from the e-mail, or ask for a new one.';
-const USED = 'This link has already been used or replaced by a newer one. Ask for a new link if you still need one.';
-const EXPIRED = `This link has expired (links work for ${RESET_MINUTES} minutes). Ask for a new one.`;
-
-async function findResetToken(token: string, transaction?: Transaction) {
-  if (typeof token !== 'string' || token.length < 20 || token.length > 200) return null;
-  return models().OneTimeToken.findOne({ where: { tokenHash: hashToken(token), purpose: RESET_PURPOSE }, transaction });
-}
+const MESSAGES = {
+  unknown: 'This link is not valid. Check that you copied the whole link from the e-mail, or ask for a new one.',
+  used: 'This link has already been used or replaced by a newer one. Ask for a new link if you still need one.',
+  expired: `This link has expired (links work for ${RESET_MINUTES} minutes). Ask for a new one.`,
+};
 
 /** Whether a token is a password-reset token at all (used or not), so the set-password route can tell it from an invitation. */
 export async function isResetToken(token: string): Promise<boolean> {
-  return (await findResetToken(token)) !== null;
+  return (await findLink(token, RESET_PURPOSE)) !== null;
 }
 
 /** What the reset page shows for a token, without using it. */
-export async function resetTokenState(token: string, now = new Date()): Promise<ResetTokenState> {
-  const row = await findResetToken(token);
-  if (!row) return { ok: false, message: UNKNOWN };
-  if (row.usedAt) return { ok: false, message: USED };
-  if (row.expiresAt.getTime() <= now.getTime()) return { ok: false, message: EXPIRED };
-  const user = await models().User.findByPk(row.userId);
-  if (!user) return { ok: false, message: UNKNOWN };
-  return { ok: true, email: user.email, name: user.name };
-}
+export const resetTokenState = (token: string, now = new Date()): Promise<ResetTokenState> => linkState(token, RESET_PURPOSE, MESSAGES, now);
 
 /** Use a reset token once: set the new password and void every other reset link of the account. */
-export async function resetPassword(token: string, password: string, now = new Date()): Promise<{ email: string }> {
-  validate(passwordSchema, password);
-  const hash = await hashPassword(password);
-  return sequelize().transaction(async (transaction) => {
-    const { OneTimeToken, User } = models();
-    const row = await findResetToken(token, transaction);
-    if (!row) throw new HttpError(400, UNKNOWN);
-    if (row.usedAt) throw new HttpError(410, USED);
-    if (row.expiresAt.getTime() <= now.getTime()) throw new HttpError(410, EXPIRED);
-    // Claim the token with a conditional update, so two requests racing cannot both use it.
-    const [claimed] = await OneTimeToken.update({ usedAt: now }, { where: { id: row.id, usedAt: { [Op.is]: null } }, transaction });
-    if (claimed !== 1) throw new HttpError(410, USED);
-    const user = await User.findByPk(row.userId, { transaction });
-    if (!user) throw new HttpError(400, UNKNOWN);
-    await user.update({ passwordHash: hash }, { transaction });
+export function resetPassword(token: string, password: string, now = new Date()): Promise<{ email: string }> {
+  return setPasswordWithLink(token, RESET_PURPOSE, password, MESSAGES, async (user, transaction) => {
     await invalidateResetTokens(user.id, transaction, now);
     // A forgotten password also ends any sign-in slow-down on the account.
     await models().SignInFailure.destroy({ where: { subject: accountSubject(user.email) }, transaction });
     await audit({ actorId: user.id, action: 'password-reset.complete', entityType: 'user', entityId: user.id }, transaction);
-    return { email: user.email };
-  });
+  }, now);
 }
