@@ -7,16 +7,9 @@ import type { CreationAttributes } from 'sequelize';
 import { models } from '@/models';
 import type { CheckResult, Mark, Moderation, SlipFinding, Submission } from '@/models';
 
-export function rng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { mulberry32 as rng } from '@/lib/spectrum/random';
+
+export { rng };
 
 export const SEED_QUANTITIES = [
   { key: 'bandCentre', species: 'H35Cl', unit: 'cm-1' },
