@@ -90,7 +90,13 @@ export async function readJson<T>(request: Request, schema: ZodType<T>): Promise
   if (!type.includes('application/json')) throw new HttpError(415, 'Send the request body as JSON (Content-Type: application/json).');
   const declared = Number(request.headers.get('content-length') ?? 0);
   if (declared > MAX_JSON_BYTES) throw new HttpError(413, 'The request body is too large.');
-  const text = await request.text();
+  let text: string;
+  try {
+    text = await request.text();
+  } catch {
+    // The client went away mid-body (tab closed, connection reset): not a server fault.
+    throw new HttpError(400, 'The request was interrupted before its body arrived; send it again.');
+  }
   if (Buffer.byteLength(text) > MAX_JSON_BYTES) throw new HttpError(413, 'The request body is too large.');
   let data: unknown;
   try {

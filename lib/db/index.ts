@@ -1,4 +1,5 @@
-import { Sequelize, Transaction, type Options } from 'sequelize';
+import { AsyncLocalStorage } from 'node:async_hooks';
+import { QueryTypes, Sequelize, Transaction, type Options } from 'sequelize';
 // eslint-disable-next-line @typescript-eslint/no-require-imports
 import cliConfig from './cli-config.cjs';
 
@@ -23,7 +24,41 @@ export function createSequelize(): Sequelize {
     pool: { max: 1, min: 0, idle: 60000 },
   });
   preparePerConnection(sequelize);
+  oneWriterAtATime(sequelize);
   return sequelize;
+}
+
+/**
+ * node-sqlite3 runs every statement on libuv's small thread pool (4 threads), and a statement
+ * waiting for SQLite's write lock sleeps in the busy handler on one of those threads. With more
+ * waiters than threads the lock holder cannot run its next statement or COMMIT, and everything
+ * stalls until busy timeouts expire (8 concurrent transactions: ~10 s; 50: minutes). So within
+ * one process, transactions and writes outside a transaction take turns here, in arrival order,
+ * before they reach SQLite; the busy timeout is left for writers in other processes.
+ * Re-entrant: a query issued inside a transaction's callback runs at once.
+ */
+function oneWriterAtATime(sequelize: Sequelize): void {
+  const holding = new AsyncLocalStorage<true>();
+  let tail: Promise<unknown> = Promise.resolve();
+  const exclusive = <T>(fn: () => Promise<T>): Promise<T> => {
+    if (holding.getStore()) return fn();
+    const run = tail.then(() => holding.run(true, fn));
+    tail = run.catch(() => undefined);
+    return run;
+  };
+  const s = sequelize as unknown as { transaction: (...args: unknown[]) => Promise<unknown>; query: (...args: unknown[]) => Promise<unknown> };
+  const transaction = s.transaction.bind(sequelize);
+  s.transaction = (...args: unknown[]) => {
+    const managed = args.some((a) => typeof a === 'function');
+    return managed ? exclusive(() => transaction(...args)) : transaction(...args);
+  };
+  const query = s.query.bind(sequelize);
+  const READS: string[] = [QueryTypes.SELECT, QueryTypes.SHOWTABLES, QueryTypes.SHOWINDEXES, QueryTypes.DESCRIBE];
+  s.query = (...args: unknown[]) => {
+    const options = (args[1] ?? {}) as { transaction?: unknown; type?: string };
+    const read = options.type !== undefined && READS.includes(options.type);
+    return read || options.transaction ? query(...args) : exclusive(() => query(...args));
+  };
 }
 
 type SqliteConnection = { exec: (sql: string, cb: (err: Error | null) => void) => void };

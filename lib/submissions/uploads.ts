@@ -40,7 +40,12 @@ export async function receiveMultipart(request: Request, maxBytes: number): Prom
   const declared = Number(request.headers.get('content-length') ?? 0);
   if (declared > maxBytes + 64 * 1024) throw new HttpError(413, `The file is too large (limit ${formatBytes(maxBytes)}).`);
   if (!request.body) throw new HttpError(400, 'No file was sent.');
-  const dir = uploadDir();
+  let dir: string;
+  try {
+    dir = uploadDir();
+  } catch (e) {
+    throw storageRefusal(e) ?? e;
+  }
   const created: string[] = [];
   const streams: fs.WriteStream[] = [];
   const cleanup = () => {
@@ -64,6 +69,7 @@ export async function receiveMultipart(request: Request, maxBytes: number): Prom
     // Our own write streams, so a refused upload can wait for them to close before removing the file.
     fileWriteStreamHandler: ((file: { filepath: string }) => {
       const ws = fs.createWriteStream(file.filepath);
+      ws.on('error', () => undefined); // read from ws.errored below
       streams.push(ws);
       return ws;
     }) as never,
@@ -73,6 +79,11 @@ export async function receiveMultipart(request: Request, maxBytes: number): Prom
   });
   try {
     const [fields, files] = await form.parse(stream);
+    // formidable can finish the form before a failed disk write reaches it (the write stream's
+    // 'error' comes after 'end'), which would leave a truncated file looking complete.
+    await Promise.all(streams.map((ws) => (ws.closed ? null : new Promise<void>((resolve) => ws.once('close', () => resolve())))));
+    const failedWrite = streams.find((ws) => ws.errored)?.errored;
+    if (failedWrite) throw failedWrite;
     const flat: Record<string, string> = {};
     for (const [k, v] of Object.entries(fields)) if (v && v.length) flat[k] = String(v[0]);
     const list = Object.values(files).flat().filter(Boolean) as formidable.File[];
@@ -83,11 +94,26 @@ export async function receiveMultipart(request: Request, maxBytes: number): Prom
     // before its stream has closed would let the open create it again afterwards.
     await Promise.all(streams.map((ws) => (ws.closed ? null : new Promise<void>((resolve) => ws.once('close', () => resolve()).destroy()))));
     cleanup();
+    const refusal = storageRefusal(e) ?? storageRefusal(streams.find((ws) => ws.errored)?.errored);
+    if (refusal) throw refusal;
     const err = e as { httpCode?: number; code?: number; message?: string };
     if (err.httpCode === 413 || /maxFileSize|maxTotalFileSize|exceeded/i.test(err.message ?? '')) throw new HttpError(413, `The file is too large (limit ${formatBytes(maxBytes)}).`);
     if (/maxFiles/i.test(err.message ?? '')) throw new HttpError(400, 'Send one file at a time.');
     throw new HttpError(400, 'The upload could not be read as multipart form data.');
   }
+}
+
+const STORAGE_FULL = new Set(['ENOSPC', 'EDQUOT', 'EFBIG']);
+const STORAGE_UNAVAILABLE = new Set(['EACCES', 'EPERM', 'EROFS', 'ENOTDIR', 'EEXIST', 'EIO', 'ENOENT']);
+const UNCHANGED = 'Your draft and earlier submissions are unchanged; try again later, or tell your instructor if it keeps happening.';
+
+/** A failure of the upload storage itself (disk full, folder unwritable) as a clear refusal, not a 500 and not the student's fault. */
+export function storageRefusal(error: unknown): HttpError | null {
+  const code = (error as { code?: unknown } | null | undefined)?.code;
+  if (typeof code !== 'string') return null;
+  if (STORAGE_FULL.has(code)) return new HttpError(507, `The server has no room left to store files, so your file was not saved. ${UNCHANGED}`);
+  if (STORAGE_UNAVAILABLE.has(code)) return new HttpError(503, `File storage is unavailable right now, so your file was not saved. ${UNCHANGED}`);
+  return null;
 }
 
 export function formatBytes(n: number): string {
@@ -137,6 +163,10 @@ export function acceptFile(file: ReceivedFile, kind: UploadKind): AcceptedFile {
   const ct = CONTENT_TYPES[sniff.kind as Exclude<SniffKind, 'unknown'>];
   const storedName = `${crypto.randomBytes(16).toString('hex')}${ct.ext}`;
   const finalPath = uploadPath(storedName);
-  fs.renameSync(file.tempPath, finalPath);
+  try {
+    fs.renameSync(file.tempPath, finalPath);
+  } catch (e) {
+    throw storageRefusal(e) ?? e;
+  }
   return { storedName, sha256: crypto.createHash('sha256').update(bytes).digest('hex'), size: bytes.length, contentType: ct.type, originalName: path.basename(originalName), finalPath, warnings };
 }

@@ -142,6 +142,11 @@ const MATRIX: Record<string, Case> = {
     expect: [200, 200, 200, 200, 200, 200, 200, 200],
     call: (_w, role) => ({ url: '/api/password-reset', body: { email: `no-account.${uniq(role)}@test.example` }, headers: { 'x-forwarded-for': `192.0.2.${n}` } }),
   },
+  'GET /api/health': {
+    // Public on purpose (load-balancer health check): a fixed body, no database, no session.
+    expect: [200, 200, 200, 200, 200, 200, 200, 200],
+    call: () => ({ url: '/api/health' }),
+  },
   'GET /api/me': {
     expect: [401, 200, 200, 200, 200, 200, 200, 200],
     call: () => ({ url: '/api/me' }),
