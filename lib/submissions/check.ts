@@ -85,6 +85,21 @@ export async function checkStoredSubmission(submissionId: number, options: { tra
   return sequelize().transaction((t) => run(submissionId, t));
 }
 
+async function flagDuplicates(ids: number[]): Promise<void> {
+  const { Submission } = models();
+  for (let attempt = 1; ; attempt++) {
+    try {
+      await Submission.update({ flagDuplicate: true }, { where: { id: ids.sort((a, b) => a - b), flagDuplicate: false } });
+      return;
+    } catch (error) {
+      if (attempt >= 3) {
+        console.error('[oscillab] could not flag duplicate submissions', ids, error);
+        return;
+      }
+    }
+  }
+}
+
 async function run(submissionId: number, transaction: Transaction): Promise<CheckSummary> {
   const { Submission, Practical, QuantityDefinition, ToleranceBand, SubmittedValue, LineAssignment, CheckResult, SlipFinding, Mark, Upload } = models();
   const submission = await Submission.findByPk(submissionId, { transaction });
@@ -183,7 +198,10 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
       dupSpectrum = subs.length > 0;
     }
   }
-  if (others.size) await Submission.update({ flagDuplicate: true }, { where: { id: [...others] }, transaction });
+  // The other students' rows are flagged after this transaction commits, not inside it: two
+  // students with the same data submitting at once would otherwise each hold their own row and
+  // wait for the other's (a deadlock on PostgreSQL). The flag is advisory, for staff only.
+  if (others.size) transaction.afterCommit(() => flagDuplicates([...others]));
 
   // --- Replace the stored results ---------------------------------------------------------
   await CheckResult.destroy({ where: { submissionId }, transaction });
