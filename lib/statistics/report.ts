@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { SLIPS } from '@/lib/grading';
 import { validate } from '@/lib/http';
 import { DEFAULT_MARKER_THRESHOLD, HISTOGRAM_EDGES_PERCENT, MIN_GROUP } from './definitions';
-import { frequentSlips, markerConsistency, quantityStatistics, submissionCounts, type Counts, type QuantityStat, type SlipStat } from './queries';
+import { frequentSlips, markerConsistency, quantityStatistics, submissionCounts, type Counts, type MarkerRow, type QuantityStat, type SlipStat } from './queries';
 import { cachedStatistics } from './cache';
 import { markerLabels, type StatisticsScope } from './scope';
 
@@ -21,21 +21,8 @@ export function thresholdFrom(request: Request): number {
   return validate(thresholdQuery, { threshold: raw }).threshold ?? DEFAULT_MARKER_THRESHOLD;
 }
 
-export interface MarkerView {
-  label: string;
-  own: boolean;
-  submissions: number;
-  suppressed: boolean;
-  meanMark: number | null;
-  sdMark: number | null;
-  meanDifference: number | null;
-  sdDifference: number | null;
-  overrides: number;
-  moderations: number;
-  moderationChanges: number;
-  othersMean: number | null;
-  flagged: boolean;
-}
+/** A marker's row as shown: the query's figures without the raw sums and ids, under a label. */
+export type MarkerView = Omit<MarkerRow, 'markerId' | 'sumMark' | 'markCount'> & { label: string; own: boolean };
 
 export interface PracticalReport {
   practical: { id: number; title: string; courseId: number };

@@ -41,17 +41,15 @@ import {
 import { pickBands, toleranceFor, BASIS_SHARE, type ResolvedBand } from '@/lib/instructor/bands';
 import { uploadPath } from '@/lib/storage';
 import { compareLinesToPeaks, parseSpectrumFile, pickPeaks, sniffUpload } from '@/lib/spectrum';
+import type { LinePeakComparison } from '@/lib/spectrum/peaks';
 
-export interface SpectrumCheckSummary {
+type LineComparisonSummary = LinePeakComparison['summary'];
+
+/** The peak comparison's own summary counts, plus which lines and peaks failed to match. */
+export interface SpectrumCheckSummary extends LineComparisonSummary {
   uploadId: number;
   ok: boolean;
   message?: string;
-  reported: number;
-  matched: number;
-  unmatched: number;
-  strongPeaks: number;
-  missing: number;
-  tolerance: number;
   unmatchedLines: { species: string; branch: 'P' | 'R' | null; J: number | null; wavenumber: number; nearest: number | null }[];
   missingPeaks: number[];
 }
