@@ -7,6 +7,8 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
   declare name: string;
   declare passwordHash: string | null;
   declare isAdmin: CreationOptional<boolean>;
+  /** Carried in session tokens; raising it ends every session signed in before (lib/auth/session.ts). */
+  declare sessionVersion: CreationOptional<number>;
   declare studentNumber: string | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -19,6 +21,7 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
         name: col.str(200),
         passwordHash: col.str(100, true),
         isAdmin: col.bool(false),
+        sessionVersion: col.int(0),
         studentNumber: col.str(40, true),
         createdAt: col.date(false),
         updatedAt: col.date(false),

@@ -71,7 +71,8 @@ export async function setPasswordWithLink(
     if (claimed !== 1) throw new HttpError(410, messages.used);
     const user = await User.findByPk(row.userId, { transaction });
     if (!user) throw new HttpError(400, messages.unknown);
-    await user.update({ passwordHash: hash }, { transaction });
+    // A new password ends every session signed in with the old one (lib/auth/session.ts).
+    await user.update({ passwordHash: hash, sessionVersion: user.sessionVersion + 1 }, { transaction });
     await afterSet(user, transaction);
     return { email: user.email };
   });

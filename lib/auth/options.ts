@@ -36,13 +36,17 @@ export const authOptions: NextAuthOptions = {
           return null;
         }
         await clearFailures(subjects[0]);
-        return { id: String(user.id), email: user.email, name: user.name };
+        return { id: String(user.id), email: user.email, name: user.name, sessionVersion: user.sessionVersion };
       },
     }),
   ],
   callbacks: {
     async jwt({ token, user }) {
-      if (user) token.sub = user.id;
+      // Set once at sign-in and kept as the token is renewed; lib/auth/session.ts compares it with the account's.
+      if (user) {
+        token.sub = user.id;
+        token.sv = (user as { sessionVersion?: number }).sessionVersion ?? 0;
+      }
       return token;
     },
     async session({ session, token }) {

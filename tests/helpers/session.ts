@@ -1,8 +1,11 @@
 import { encode } from 'next-auth/jwt';
 
-/** A next-auth session cookie for a user, signed with the test secret, as the browser would send it. */
-export async function sessionCookie(userId: number): Promise<string> {
-  const token = await encode({ token: { sub: String(userId) }, secret: process.env.NEXTAUTH_SECRET! });
+/**
+ * A next-auth session cookie for a user, signed with the test secret, as the browser would send it.
+ * `sessionVersion` is the account's at sign-in (0 until a password is set or sessions are ended).
+ */
+export async function sessionCookie(userId: number, sessionVersion = 0): Promise<string> {
+  const token = await encode({ token: { sub: String(userId), sv: sessionVersion }, secret: process.env.NEXTAUTH_SECRET! });
   return `next-auth.session-token=${token}`;
 }
 

@@ -7,6 +7,8 @@ import { afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { randomBytes } from 'node:crypto';
 import * as resetRoute from '@/app/api/password-reset/route';
 import * as accept from '@/app/api/invitations/accept/route';
+import * as me from '@/app/api/me/route';
+import { encode } from 'next-auth/jwt';
 import { authOptions } from '@/lib/auth/options';
 import { verifyPassword } from '@/lib/auth/password';
 import { issueResetToken, minimumAnswerMs, resetTokenState, RESET_REQUESTED_MESSAGE } from '@/lib/auth/reset';
@@ -186,6 +188,49 @@ describe('using a reset link', () => {
     const reset = await issueResetToken(user.id);
     expect(await resetTokenState(invitation)).toMatchObject({ ok: false });
     expect(await invitationState(reset)).toMatchObject({ ok: false });
+  });
+});
+
+describe('sessions end with the old password', () => {
+  /** A session cookie made the way next-auth makes one at sign-in: credentials check, then the jwt callback. */
+  async function signedInCookie(email: string, password: string): Promise<string> {
+    const user = await signInWith(email, password);
+    expect(user).not.toBeNull();
+    const token = await authOptions.callbacks!.jwt!({ token: {}, user: user as never, account: null } as never);
+    return `next-auth.session-token=${await encode({ token, secret: process.env.NEXTAUTH_SECRET! })}`;
+  }
+  const whoAmI = async (cookie: string) => me.GET(await apiRequest('/api/me', { headers: { cookie } }), {});
+
+  it('a reset signs out every session signed in before it; signing in with the new password works', async () => {
+    const user = await person('sessions');
+    const laptop = await signedInCookie(user.email, TEST_PASSWORD);
+    const phone = await signedInCookie(user.email, TEST_PASSWORD);
+    expect((await whoAmI(laptop)).status).toBe(200);
+    expect((await whoAmI(phone)).status).toBe(200);
+
+    const token = await linkFromMail(user.email);
+    expect((await setPassword(token, 'rotational-lines-77')).status).toBe(200);
+    for (const old of [laptop, phone]) {
+      const res = await whoAmI(old);
+      expect(res.status).toBe(401);
+      expect((await res.json()).error).toMatch(/Sign in/);
+    }
+    const fresh = await signedInCookie(user.email, 'rotational-lines-77');
+    expect((await whoAmI(fresh)).status).toBe(200);
+  });
+
+  it('a refused reset (weak password) leaves the sessions signed in', async () => {
+    const user = await person('sessions-kept');
+    const laptop = await signedInCookie(user.email, TEST_PASSWORD);
+    const token = await linkFromMail(user.email);
+    expect((await setPassword(token, 'short')).status).toBe(400);
+    expect((await whoAmI(laptop)).status).toBe(200);
+  });
+
+  it('a token without the session counter (issued before it existed) is not a session', async () => {
+    const user = await person('sessions-legacy');
+    const legacy = `next-auth.session-token=${await encode({ token: { sub: String(user.id) }, secret: process.env.NEXTAUTH_SECRET! })}`;
+    expect((await whoAmI(legacy)).status).toBe(401);
   });
 });
 
