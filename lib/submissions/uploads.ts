@@ -16,9 +16,53 @@ import type { UploadKind } from '@/lib/schemas/submission';
 
 const MB = 1024 * 1024;
 
+const positive = (v: string | undefined, d: number) => (v && Number.isFinite(Number(v)) && Number(v) > 0 ? Number(v) : d);
+
 export function uploadLimits() {
-  const num = (v: string | undefined, d: number) => (v && Number.isFinite(Number(v)) && Number(v) > 0 ? Number(v) : d);
-  return { spectrum: num(process.env.SPECTRUM_MAX_BYTES, 5 * MB), report: num(process.env.REPORT_MAX_BYTES, 20 * MB) };
+  return { spectrum: positive(process.env.SPECTRUM_MAX_BYTES, 5 * MB), report: positive(process.env.REPORT_MAX_BYTES, 20 * MB) };
+}
+
+/**
+ * How long an upload may take: a body that sends nothing for `idleMs`, or is still arriving after
+ * `totalMs`, is cut off with 408 (a stalled or deliberately slow client would otherwise hold a
+ * connection and a half-written file). The defaults allow a 20 MB report over a slow link.
+ */
+export function uploadTimeouts() {
+  return { idleMs: positive(process.env.UPLOAD_IDLE_MS, 30_000), totalMs: positive(process.env.UPLOAD_TOTAL_MS, 300_000) };
+}
+
+class UploadTimeout extends Error {
+  constructor(readonly why: 'idle' | 'total') {
+    super(`upload ${why} timeout`);
+  }
+}
+
+/** The request body as a Node stream that fails with UploadTimeout when the client stalls or takes too long. */
+function timedBody(body: ReadableStream<Uint8Array>, { idleMs, totalMs }: { idleMs: number; totalMs: number }): Readable {
+  const reader = body.getReader();
+  const deadline = Date.now() + totalMs;
+  return new Readable({
+    async read() {
+      let timer: NodeJS.Timeout | undefined;
+      const untilDeadline = deadline - Date.now();
+      const why = untilDeadline < idleMs ? 'total' : 'idle';
+      const timeout = new Promise<never>((_, reject) => {
+        timer = setTimeout(() => reject(new UploadTimeout(why)), Math.max(0, Math.min(idleMs, untilDeadline)));
+      });
+      try {
+        const chunk = await Promise.race([reader.read(), timeout]);
+        this.push(chunk.done ? null : Buffer.from(chunk.value));
+      } catch (error) {
+        this.destroy(error as Error);
+      } finally {
+        clearTimeout(timer);
+      }
+    },
+    destroy(error, callback) {
+      reader.cancel().catch(() => undefined);
+      callback(error);
+    },
+  });
 }
 
 const CONTENT_TYPES: Record<Exclude<SniffKind, 'unknown'>, { type: string; ext: string }> = {
@@ -51,7 +95,7 @@ export async function receiveMultipart(request: Request, maxBytes: number): Prom
   const cleanup = () => {
     for (const p of created) fs.rmSync(p, { force: true });
   };
-  const stream = Readable.fromWeb(request.body as unknown as import('node:stream/web').ReadableStream) as unknown as IncomingMessage;
+  const stream = timedBody(request.body, uploadTimeouts()) as unknown as IncomingMessage;
   const headers: Record<string, string> = Object.fromEntries(request.headers.entries());
   // Without a length formidable assumes an empty body; a streamed body is chunked.
   if (headers['content-length'] === undefined) headers['transfer-encoding'] = 'chunked';
@@ -94,6 +138,11 @@ export async function receiveMultipart(request: Request, maxBytes: number): Prom
     // before its stream has closed would let the open create it again afterwards.
     await Promise.all(streams.map((ws) => (ws.closed ? null : new Promise<void>((resolve) => ws.once('close', () => resolve()).destroy()))));
     cleanup();
+    if (e instanceof UploadTimeout) {
+      throw new HttpError(408, e.why === 'idle'
+        ? `The upload stalled (nothing arrived for ${formatDuration(uploadTimeouts().idleMs)}) and was stopped; nothing was saved. Try again on a steadier connection.`
+        : `The upload took longer than ${formatDuration(uploadTimeouts().totalMs)} and was stopped; nothing was saved. Try again on a faster connection.`);
+    }
     const refusal = storageRefusal(e) ?? storageRefusal(streams.find((ws) => ws.errored)?.errored);
     if (refusal) throw refusal;
     const err = e as { httpCode?: number; code?: number; message?: string };
@@ -115,6 +164,8 @@ export function storageRefusal(error: unknown): HttpError | null {
   if (STORAGE_UNAVAILABLE.has(code)) return new HttpError(503, `File storage is unavailable right now, so your file was not saved. ${UNCHANGED}`);
   return null;
 }
+
+const formatDuration = (ms: number) => (ms < 1000 ? `${ms} ms` : ms < 120_000 ? `${+(ms / 1000).toFixed(1)} s` : `${+(ms / 60_000).toFixed(1)} minutes`);
 
 export function formatBytes(n: number): string {
   return n >= MB ? `${+(n / MB).toFixed(1)} MB` : `${Math.ceil(n / 1024)} kB`;

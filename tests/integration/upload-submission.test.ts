@@ -4,7 +4,7 @@
  */
 import fs from 'node:fs';
 import path from 'node:path';
-import { beforeAll, describe, expect, it } from 'vitest';
+import { afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { models } from '@/models';
 import { buildWorld, type World } from '@/tests/helpers/world';
 import { apiRequest, params } from '@/tests/helpers/session';
@@ -123,6 +123,91 @@ describe('uploads', () => {
       expect(await models().Upload.count()).toBe(rowsBefore);
       expect(uploadDirFiles().length).toBe(filesBefore);
     }
+  });
+
+  describe('slow clients', () => {
+    const boundary = 'oscillabslowboundary';
+    const multipart = () =>
+      Buffer.concat([
+        Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="submissionId"\r\n\r\n${draftId}\r\n--${boundary}\r\nContent-Disposition: form-data; name="kind"\r\n\r\nreport\r\n`),
+        Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="slow.pdf"\r\nContent-Type: application/pdf\r\n\r\n`),
+        PDF,
+        Buffer.from(`\r\n--${boundary}--\r\n`),
+      ]);
+    const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
+    /** Sends `body` in `pieces` chunks with `gapMs` between them; `stallAfter` chunks, then nothing more (the body never ends). */
+    function trickle(body: Buffer, pieces: number, gapMs: number, stallAfter = Infinity) {
+      const size = Math.ceil(body.length / pieces);
+      let sent = 0;
+      let cancelled = false;
+      const stream = new ReadableStream<Uint8Array>({
+        async pull(controller) {
+          if (sent > 0) await sleep(gapMs);
+          if (sent >= stallAfter) return new Promise<void>(() => undefined); // a client that has gone quiet
+          const chunk = body.subarray(sent * size, (sent + 1) * size);
+          sent++;
+          if (chunk.length) controller.enqueue(new Uint8Array(chunk));
+          if ((sent) * size >= body.length) controller.close();
+        },
+        cancel() {
+          cancelled = true;
+        },
+      });
+      return { stream, wasCancelled: () => cancelled };
+    }
+    async function post(stream: ReadableStream<Uint8Array>) {
+      const req = await apiRequest('/api/uploads', { as: world.people.student.id, method: 'POST', headers: { 'content-type': `multipart/form-data; boundary=${boundary}` } });
+      return upload(new Request(req.url, { method: 'POST', headers: req.headers, body: stream, duplex: 'half' } as RequestInit));
+    }
+    const saved = { idle: process.env.UPLOAD_IDLE_MS, total: process.env.UPLOAD_TOTAL_MS };
+    afterEach(() => {
+      for (const [k, v] of [['UPLOAD_IDLE_MS', saved.idle], ['UPLOAD_TOTAL_MS', saved.total]] as const) {
+        if (v === undefined) delete process.env[k];
+        else process.env[k] = v;
+      }
+    });
+
+    it('cuts off an upload that stalls halfway with 408, leaving no file and no row', async () => {
+      process.env.UPLOAD_IDLE_MS = '300';
+      const rowsBefore = await models().Upload.count();
+      const filesBefore = uploadDirFiles().length;
+      const body = multipart();
+      const { stream, wasCancelled } = trickle(body, 8, 20, 6); // the file part has begun, then silence
+      const started = Date.now();
+      const res = await post(stream);
+      const elapsed = Date.now() - started;
+      expect(res.status).toBe(408);
+      expect((await res.json()).error).toMatch(/stalled \(nothing arrived for 300 ms\).*nothing was saved/);
+      expect(elapsed).toBeLessThan(5_000); // cut off, not left to hang until the client gives up
+      expect(wasCancelled()).toBe(true);
+      expect(await models().Upload.count()).toBe(rowsBefore);
+      expect(uploadDirFiles().length).toBe(filesBefore);
+    });
+
+    it('cuts off a steady trickle that runs past the total limit', async () => {
+      process.env.UPLOAD_IDLE_MS = '400';
+      process.env.UPLOAD_TOTAL_MS = '600';
+      const rowsBefore = await models().Upload.count();
+      const filesBefore = uploadDirFiles().length;
+      const { stream } = trickle(multipart(), 40, 50); // each gap well inside the idle limit, 2 s in all
+      const res = await post(stream);
+      expect(res.status).toBe(408);
+      expect((await res.json()).error).toMatch(/took longer than 600 ms/);
+      expect(await models().Upload.count()).toBe(rowsBefore);
+      expect(uploadDirFiles().length).toBe(filesBefore);
+    });
+
+    it('accepts a slow upload whose pauses stay inside the limits', async () => {
+      process.env.UPLOAD_IDLE_MS = '1000';
+      const { stream } = trickle(multipart(), 6, 100);
+      const res = await post(stream);
+      const json = await res.json();
+      expect(res.status, JSON.stringify(json)).toBe(201);
+      expect(json.originalName).toBe('slow.pdf');
+      const row = await models().Upload.findByPk(json.id);
+      expect(row!.size).toBe(PDF.length);
+      expect(uploadDirFiles()).toContain(row!.storedName);
+    });
   });
 
   it('refuses a JCAMP file with garbage data', async () => {
