@@ -1,6 +1,10 @@
-/** Runs once when the server starts: the outbox worker resumes any mail left queued. */
+/** Runs once when the server starts: the outbox worker resumes any mail left queued, and files left without a row are swept. */
 export async function register() {
   if (process.env.NEXT_RUNTIME !== 'nodejs') return;
+  if (process.env.STORAGE_SWEEP !== 'off') {
+    const { startStorageSweeper } = await import('./lib/storage-sweep');
+    startStorageSweeper();
+  }
   if (process.env.OUTBOX_WORKER === 'off') return;
   const { startOutboxWorker } = await import('./lib/mail/outbox');
   startOutboxWorker(Number(process.env.OUTBOX_INTERVAL_MS || 3000));

@@ -8,7 +8,7 @@
 import fs from 'node:fs/promises';
 import { Op, type Transaction } from 'sequelize';
 import { models } from '@/models';
-import { sendMail, type MailMessage } from './transport';
+import { MAIL_FROM, sendMail, type MailMessage } from './transport';
 import { feedbackPath } from '@/lib/storage';
 
 const LEASE_MS = 60_000;
@@ -66,13 +66,27 @@ async function claim(id: number, now: Date): Promise<boolean> {
   return count === 1;
 }
 
-async function messageFor(row: InstanceType<ReturnType<typeof models>['EmailOutbox']>): Promise<MailMessage> {
+type OutboxRow = InstanceType<ReturnType<typeof models>['EmailOutbox']>;
+
+/**
+ * One Message-ID per outbox row, the same on every attempt. SMTP cannot be exactly-once: a worker
+ * killed after the relay accepted a message but before the row was marked sent sends it again
+ * when the lease expires. Mail stores and clients treat messages with the same Message-ID as one
+ * (common practice), so such a repeat shows as a single message.
+ */
+export function outboxMessageId(row: Pick<OutboxRow, 'id' | 'createdAt'>): string {
+  const from = /@([^>\s]+)>?\s*$/.exec(MAIL_FROM())?.[1] ?? 'oscillab.invalid';
+  return `<outbox.${row.id}.${new Date(row.createdAt).getTime()}@${from}>`;
+}
+
+async function messageFor(row: OutboxRow): Promise<MailMessage> {
   const message: MailMessage = {
     to: row.toAddress,
     subject: row.subject,
     text: row.textBody,
     html: row.htmlBody ?? undefined,
     headers: { 'X-Oscillab-Outbox-Id': String(row.id) },
+    messageId: outboxMessageId(row),
   };
   if (row.feedbackDocumentId) {
     const doc = await models().FeedbackDocument.findByPk(row.feedbackDocumentId);

@@ -27,6 +27,8 @@ export type MailMessage = {
   html?: string;
   attachments?: { filename: string; content: Buffer; contentType: string }[];
   headers?: Record<string, string>;
+  /** A fixed Message-ID (with angle brackets); nodemailer makes a random one otherwise. */
+  messageId?: string;
 };
 
 /** Send one message now. Most callers queue through the outbox instead (lib/mail/outbox.ts). */

@@ -5,6 +5,8 @@ export type CaughtMail = {
   id: string;
   subject: string;
   text: string;
+  /** Header names lower-cased, as maildev reports them. */
+  headers: Record<string, string>;
   to: { address: string }[];
   attachments?: { fileName: string; contentType: string; generatedFileName: string }[];
 };

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { sendMail } from '@/lib/mail/transport';
-import { deliverOutbox, queueEmail } from '@/lib/mail/outbox';
+import { deliverOutbox, outboxMessageId, queueEmail } from '@/lib/mail/outbox';
 import { renderEmail } from '@/lib/templates';
 import { models } from '@/models';
 import { mailTo, waitForMail } from '../helpers/maildev';
@@ -26,6 +26,25 @@ describe('mail module', () => {
     const row = await models().EmailOutbox.findOne({ where: { dedupeKey: `test:${to}` } });
     expect(row!.status).toBe('sent');
     expect(row!.messageId).toBeTruthy();
+  });
+
+  it('a message sent again after its sender died (lease expired) carries the same Message-ID, so the mailbox shows one', async () => {
+    const to = `repeat-${Date.now()}@test.example`;
+    await queueEmail({ dedupeKey: `repeat:${to}`, to, subject: 'Sent twice by a dying worker', text: 'x' });
+    expect((await deliverOutbox()).sent).toBeGreaterThanOrEqual(1);
+    const row = (await models().EmailOutbox.findOne({ where: { dedupeKey: `repeat:${to}` } }))!;
+    // What a worker killed between the relay's "250 OK" and its own UPDATE leaves behind.
+    await models().EmailOutbox.update({ status: 'sending', sentAt: null, lockedUntil: new Date(Date.now() - 1000) }, { where: { id: row.id } });
+    expect((await deliverOutbox()).sent).toBeGreaterThanOrEqual(1);
+    const copies = await waitForMail(to, 2);
+    expect(copies).toHaveLength(2);
+    const ids = copies.map((m) => m.headers['message-id']);
+    expect(ids[0]).toBe(outboxMessageId(row));
+    expect(ids[1]).toBe(ids[0]);
+    expect((await models().EmailOutbox.findByPk(row.id))!.messageId).toBe(outboxMessageId(row));
+    // A different row (another message) has another Message-ID.
+    const other = { id: row.id + 1, createdAt: row.createdAt };
+    expect(outboxMessageId(other)).not.toBe(outboxMessageId(row));
   });
 
   it('keeps mail queued with back-off while SMTP is down, and sends it later', async () => {
