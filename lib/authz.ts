@@ -85,6 +85,14 @@ export async function actorFromRequest(request: Request): Promise<Actor | null> 
 export async function authorize(request: Request, access: Access = { kind: 'signed-in' }): Promise<Actor> {
   const actor = await actorFromRequest(request);
   if (!actor) throw new HttpError(401, 'Sign in to continue.');
+  return permit(actor, access);
+}
+
+/**
+ * A further check for an actor `authorize` already returned, once the handler has read what the
+ * request is about (the submission's cohort, each item of a batch): 403 unless allowed.
+ */
+export function permit(actor: Actor, access: Access): Actor {
   if (!can(actor, access)) throw new HttpError(403, 'You do not have permission for this.');
   return actor;
 }

@@ -22,6 +22,8 @@ import path from 'node:path';
 const autocannon = require('autocannon');
 
 const SECONDS = Number(process.argv[2] ?? 5);
+/** Extra node flags for the server, e.g. BENCH_SERVER_NODE_ARGS="--cpu-prof --cpu-prof-dir=/tmp/prof" to profile it. */
+const serverNodeArgs = (process.env.BENCH_SERVER_NODE_ARGS ?? '').split(/\s+/).filter(Boolean);
 const PASSWORD = 'northmere-demo-26';
 const distDir = process.env.NEXT_DIST_DIR || '.next';
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'oscillab-bench-http-'));
@@ -101,6 +103,22 @@ async function drive(base: string, route: string, connections: number, spec: { p
   };
 }
 
+/**
+ * autocannon stops counting when its time is up, but the server still works through the requests
+ * in flight (at 100 connections, seconds of them on the slower routes). Wait until the bare route
+ * answers promptly again, so one run's backlog is not timed as the next route's latency.
+ */
+async function settle(base: string) {
+  const end = Date.now() + 60_000;
+  let quick = 0;
+  while (quick < 3 && Date.now() < end) {
+    const t = performance.now();
+    await fetch(`${base}/api/health`).then((r) => r.arrayBuffer());
+    quick = performance.now() - t < 30 ? quick + 1 : 0;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+}
+
 function setCookies(res: Response): string[] {
   return (res.headers as unknown as { getSetCookie?: () => string[] }).getSetCookie?.() ?? [];
 }
@@ -172,7 +190,7 @@ async function main() {
   await closeDatabase();
 
   const log = fs.openSync(path.join(dir, 'server.log'), 'a');
-  server = spawn(process.execPath, [path.resolve('node_modules/next/dist/bin/next'), 'start', '-p', String(port), '-H', '127.0.0.1'], { env, stdio: ['ignore', log, log], detached: true });
+  server = spawn(process.execPath, [...serverNodeArgs, path.resolve('node_modules/next/dist/bin/next'), 'start', '-p', String(port), '-H', '127.0.0.1'], { env, stdio: ['ignore', log, log], detached: true });
   try {
     const end = Date.now() + 90_000;
     for (;;) {
@@ -210,6 +228,7 @@ async function main() {
     const runs: Run[] = [];
     for (const connections of [20, 100]) {
       for (const [name, spec] of Object.entries(routes)) {
+        await settle(base);
         const r = await drive(base, name, connections, spec);
         runs.push(r);
         console.log(`  ran ${name.padEnd(10)} @${connections}: ${r.total} requests (load ${load()})`);

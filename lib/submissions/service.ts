@@ -12,7 +12,7 @@
  */
 import crypto from 'node:crypto';
 import fs from 'node:fs';
-import { Op, UniqueConstraintError, type Transaction } from 'sequelize';
+import { Op, QueryTypes, UniqueConstraintError, type Transaction } from 'sequelize';
 import type { Actor } from '@/lib/authz';
 import { audit } from '@/lib/audit';
 import { sequelize } from '@/lib/db';
@@ -75,26 +75,39 @@ function trimDraft(draft: Draft, practical: Practical): Draft {
   return { ...draft, species };
 }
 
-export async function saveDraft(actor: Actor, practical: Practical, pc: PracticalCohort, draftIn: Draft) {
+/**
+ * Autosave, every few seconds per student while the form is open, so it is kept to one
+ * statement: a conditional UPDATE of the draft row that returns its new version (no transaction,
+ * no read of the old draft). Only the first save inserts the row; if two tabs insert at once, the
+ * unique index (practicalId, studentId, attempt) lets one win and the other updates it.
+ */
+export async function saveDraft(actor: Actor, practical: Practical, pc: PracticalCohort, draftIn: Draft): Promise<{ id: number; version: number; updatedAt: Date }> {
   const draft = trimDraft(draftIn, practical);
   await assertOwnUploads(draft, actor.id);
-  const { Submission } = models();
-  return sequelize().transaction(async (transaction) => {
-    const existing = await findDraft(practical.id, actor.id, transaction);
-    if (existing) {
-      await existing.update({ draft, version: existing.version + 1 }, { transaction });
-      return existing;
-    }
-    try {
-      return await Submission.create(
-        { practicalId: practical.id, cohortId: pc.cohortId, studentId: actor.id, attempt: 0, status: 'draft', draft, submittedAt: null, isMarkedAttempt: false, checkSummary: null, lineListHash: null, proposedTotal: null, awardedTotal: null, maxTotal: null, markedById: null, markedAt: null, releasedAt: null, resubmissionMessage: null, version: 1 },
-        { transaction },
-      );
-    } catch (e) {
-      if (e instanceof UniqueConstraintError) throw new HttpError(409, 'Your draft was saved from another tab at the same moment; reload the page.');
-      throw e;
-    }
-  });
+  const update = async () => {
+    const updatedAt = new Date();
+    const [rows] = (await sequelize().query(
+      'UPDATE "submissions" SET "draft" = :draft, "version" = "version" + 1, "updatedAt" = :updatedAt ' +
+        'WHERE "practicalId" = :practicalId AND "studentId" = :studentId AND "attempt" = 0 RETURNING "id", "version"',
+      { replacements: { draft: JSON.stringify(draft), updatedAt, practicalId: practical.id, studentId: actor.id }, type: QueryTypes.RAW },
+    )) as [{ id: number; version: number }[], unknown];
+    return rows[0] ? { id: Number(rows[0].id), version: Number(rows[0].version), updatedAt } : null;
+  };
+  const updated = await update();
+  if (updated) return updated;
+  try {
+    const row = await models().Submission.create({
+      practicalId: practical.id, cohortId: pc.cohortId, studentId: actor.id, attempt: 0, status: 'draft', draft, submittedAt: null, isMarkedAttempt: false,
+      checkSummary: null, lineListHash: null, proposedTotal: null, awardedTotal: null, maxTotal: null, markedById: null, markedAt: null, releasedAt: null,
+      resubmissionMessage: null, version: 1,
+    });
+    return { id: row.id, version: row.version, updatedAt: row.updatedAt };
+  } catch (e) {
+    if (!(e instanceof UniqueConstraintError)) throw e;
+    const second = await update();
+    if (!second) throw new HttpError(409, 'Your draft was saved from another tab at the same moment; reload the page.');
+    return second;
+  }
 }
 
 /**

@@ -107,6 +107,29 @@ describe('students submitting at once', () => {
   });
 });
 
+describe('one student autosaving from several tabs at once', () => {
+  it('the first save from 4 tabs at the same moment: one draft row, four 200s with distinct versions, the stored draft is the last one counted', { timeout: 30_000 }, async () => {
+    const { Submission } = models();
+    const { practical } = await buildPractical(w);
+    const student = await models().User.create({ email: 'tabs@test.example', name: 'Four Tabs', passwordHash: null, isAdmin: false, studentNumber: 'T4000' });
+    await models().CourseMembership.create({ userId: student.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
+    const drafts = [2885.1, 2885.2, 2885.3, 2885.4].map((centre) => draftFor('H35Cl', { ...correctValues(), bandCentre: { value: String(centre), unit: 'cm-1', uncertainty: '0.5' } }));
+    const answers = await Promise.all(
+      drafts.map(async (draft) => body(await saveDraftRoute(await apiRequest('/api/submissions/draft', { as: student.id, method: 'PUT', body: { practicalId: practical.id, draft } }), {}))),
+    );
+    expect(answers.map((a) => a.status)).toEqual([200, 200, 200, 200]);
+    const rows = await Submission.findAll({ where: { practicalId: practical.id, studentId: student.id } });
+    expect(rows).toHaveLength(1);
+    expect(new Set(answers.map((a) => a.body.id))).toEqual(new Set([rows[0].id]));
+    const versions = answers.map((a) => a.body.version as number).sort();
+    expect(versions).toEqual([1, 2, 3, 4]);
+    expect(rows[0].version).toBe(4);
+    // The row holds the draft of the save that was counted last, read back intact.
+    const last = answers.findIndex((a) => a.body.version === 4);
+    expect(rows[0].draft).toEqual(JSON.parse(JSON.stringify(drafts[last])));
+  });
+});
+
 describe('two TAs saving marks on the same submission at once', () => {
   it('one 200, the other 409 "someone else saved"; the stored marks are the winner\'s', { timeout: 60_000 }, async () => {
     const { User, CourseMembership, TaAssignment, Mark, Submission, AuditEntry } = models();

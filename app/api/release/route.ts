@@ -1,4 +1,4 @@
-import { authorize } from '@/lib/authz';
+import { authorize, permit } from '@/lib/authz';
 import { json, readJson, route } from '@/lib/http';
 import { deliverOutbox } from '@/lib/mail/outbox';
 import { submissionScope } from '@/lib/marking/access';
@@ -8,10 +8,10 @@ import { releaseSchema } from '@/lib/schemas/marking';
 /** Release one or a batch: { submissionIds }. Every submission must be one the caller may mark. */
 export const POST = route(async (request) => {
   const { submissionIds } = await readJson(request, releaseSchema);
-  let actor = await authorize(request, { kind: 'signed-in' });
+  const actor = await authorize(request, { kind: 'signed-in' });
   for (const id of submissionIds) {
     const { scope } = await submissionScope(id);
-    actor = await authorize(request, { kind: 'submission-mark', ...scope });
+    permit(actor, { kind: 'submission-mark', ...scope });
   }
   const results = await releaseMany(actor.id, submissionIds);
   // Send now rather than wait for the worker's next tick; failures stay queued and are retried.

@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import { z } from 'zod';
 import { HttpError, json, route, validate } from '@/lib/http';
-import { authorize } from '@/lib/authz';
+import { authorize, permit } from '@/lib/authz';
 import { sequelize } from '@/lib/db';
 import { UPLOAD_KINDS } from '@/lib/schemas/submission';
 import { scopeOf } from '@/lib/submissions/access';
@@ -17,7 +17,7 @@ const fieldsSchema = z.object({
 
 /** Upload a spectrum or the report PDF to the student's own draft (multipart: submissionId, kind, file). */
 export const POST = route(async (request) => {
-  await authorize(request, { kind: 'signed-in' });
+  const actor = await authorize(request, { kind: 'signed-in' });
   const limits = uploadLimits();
   const received = await receiveMultipart(request, Math.max(limits.spectrum, limits.report));
   let finalPath: string | null = null;
@@ -28,7 +28,7 @@ export const POST = route(async (request) => {
     const draftRow = await Submission.findByPk(fields.submissionId);
     if (!draftRow) throw new HttpError(404, 'No such submission.');
     const { practical, scope } = await scopeOf(draftRow);
-    const actor = await authorize(request, { kind: 'submission-write', ...scope });
+    permit(actor, { kind: 'submission-write', ...scope });
     if (draftRow.attempt !== 0) throw new HttpError(409, 'Files can only be added to your draft, not to a submitted attempt.');
     const accepted = acceptFile(received.file, fields.kind);
     finalPath = accepted.finalPath;
