@@ -32,12 +32,13 @@ export default defineConfig({
     {
       // The same build and database with an https public URL, as in production behind TLS: next-auth
       // then issues __Secure-/__Host- cookies with the Secure flag (tests/e2e/security.spec.ts).
-      // Mail is left to the first server's worker.
+      // Mail is left to the first server's worker. Uploads stalled for 2 s are cut off here, so the
+      // slow-upload test need not wait the default 30 s.
       command: `npx next start -p ${securePort}`,
       url: `http://localhost:${securePort}/signin`,
       reuseExistingServer: false,
       timeout: 120_000,
-      env: { ...process.env, NEXTAUTH_URL: `https://localhost:${securePort}`, OUTBOX_WORKER: 'off' } as Record<string, string>,
+      env: { ...process.env, NEXTAUTH_URL: `https://localhost:${securePort}`, OUTBOX_WORKER: 'off', UPLOAD_IDLE_MS: '2000' } as Record<string, string>,
     },
   ],
 });

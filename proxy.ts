@@ -4,7 +4,7 @@ import { NextResponse, type NextRequest } from 'next/server';
  * Sends signed-out visitors of pages to the sign-in page. This is a convenience only: every page,
  * route handler and server action still authorises the caller itself through lib/authz.ts.
  */
-const PUBLIC = [/^\/signin/, /^\/welcome/, /^\/reset(\/|$)/, /^\/not-permitted/, /^\/api\//, /^\/_next\//, /^\/fonts\//, /^\/favicon/];
+const PUBLIC = [/^\/signin/, /^\/welcome/, /^\/reset(\/|$)/, /^\/not-permitted/, /^\/_next\//, /^\/fonts\//, /^\/favicon/];
 
 export function proxy(request: NextRequest) {
   const { pathname } = request.nextUrl;
@@ -19,4 +19,9 @@ export function proxy(request: NextRequest) {
   return NextResponse.next();
 }
 
-export const config = { matcher: ['/((?!_next/static|_next/image|favicon.ico).*)'] };
+/**
+ * Pages only. API routes answer 401 themselves, and must not pass through here: for a request
+ * that runs the proxy, Next keeps a copy of the body and holds the route handler back until the
+ * whole body has arrived, so an upload's own size and time limits could not act while it streams.
+ */
+export const config = { matcher: ['/((?!api/|_next/static|_next/image|favicon.ico).*)'] };

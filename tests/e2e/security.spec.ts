@@ -3,7 +3,9 @@
  * its content security policy, cookie flags (plain and on an instance whose public URL is https),
  * cross-site writes refused, and the forgot-password flow saying the same for every address.
  */
-import { test, expect, request as playwrightRequest, type Page, type APIResponse } from '@playwright/test';
+import fs from 'node:fs';
+import net from 'node:net';
+import { test, expect, request as playwrightRequest, type Page, type APIResponse, type APIRequestContext } from '@playwright/test';
 import { mailTo, waitForMail } from '../helpers/maildev';
 
 // Demo accounts from the seeders (fictional Northmere University).
@@ -56,6 +58,26 @@ function directives(csp: string): Map<string, string[]> {
 
 function setCookies(response: APIResponse): string[] {
   return response.headersArray().filter((h) => h.name.toLowerCase() === 'set-cookie').map((h) => h.value);
+}
+
+/** next-auth's credentials callback on the https-URL server; returns the Set-Cookie lines of the answer. */
+async function signInAt(api: APIRequestContext, csrfToken: string, csrfCookie: string, email: string): Promise<string[]> {
+  const res = await api.post('/api/auth/callback/credentials', {
+    form: { csrfToken, email, password: PASSWORD, json: 'true' },
+    headers: { cookie: `__Host-next-auth.csrf-token=${csrfCookie}` },
+    maxRedirects: 0,
+  });
+  return setCookies(res);
+}
+
+/** Signs in on the https-URL server and returns the session token. */
+async function signInSecure(api: APIRequestContext, email: string): Promise<string> {
+  const csrf = await api.get('/api/auth/csrf');
+  const { csrfToken } = await csrf.json();
+  const csrfCookie = cookieNamed(setCookies(csrf), '__Host-next-auth.csrf-token')!;
+  const session = cookieNamed(await signInAt(api, csrfToken, cookieValue(csrfCookie), email), '__Secure-next-auth.session-token');
+  if (!session) throw new Error(`sign-in failed for ${email}`);
+  return cookieValue(session);
 }
 
 const cookieNamed = (lines: string[], name: string) => lines.find((l) => l.startsWith(`${name}=`));
@@ -194,14 +216,9 @@ test.describe('cookies', () => {
       expect(attributes(csrfCookie!).some((a) => a.startsWith('domain='))).toBe(false);
       expect(first.some((l) => l.startsWith('next-auth.csrf-token='))).toBe(false);
 
-      const signIn = await api.post('/api/auth/callback/credentials', {
-        form: { csrfToken, email: 'student09@northmere.example', password: PASSWORD, json: 'true' },
-        headers: { cookie: `__Host-next-auth.csrf-token=${cookieValue(csrfCookie!)}` },
-        maxRedirects: 0,
-      });
-      const second = setCookies(signIn);
+      const second = await signInAt(api, csrfToken, cookieValue(csrfCookie!), 'student09@northmere.example');
       const session = cookieNamed(second, '__Secure-next-auth.session-token');
-      expect(session, `status ${signIn.status()}:\n${second.join('\n')}`).toBeTruthy();
+      expect(session, second.join('\n')).toBeTruthy();
       expect(attributes(session!)).toEqual(expect.arrayContaining(['httponly', 'secure', 'samesite=lax', 'path=/']));
       expect(second.some((l) => l.startsWith('next-auth.session-token='))).toBe(false);
       for (const line of [...first, ...second].filter((l) => /next-auth/.test(l))) {
@@ -310,5 +327,57 @@ test.describe('forgot password', () => {
     await signIn(page, email, newPassword);
     await expect(page).toHaveURL(/\/student$/);
     await context.close();
+  });
+});
+
+test.describe('slow uploads', () => {
+  /** Sends the start of a multipart upload over a raw socket, then nothing more; resolves with what the server answers. */
+  function stalledUpload(url: string, cookie: string): Promise<{ head: string; body: string; afterMs: number }> {
+    const { hostname, port } = new URL(url);
+    const boundary = 'oscillabstalledupload';
+    const start = `--${boundary}\r\nContent-Disposition: form-data; name="kind"\r\n\r\nreport\r\n--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="stalled.pdf"\r\nContent-Type: application/pdf\r\n\r\n%PDF-1.4\n`;
+    return new Promise((resolve, reject) => {
+      const socket = net.connect(Number(port), hostname);
+      let answer = '';
+      let sentAt = 0;
+      const done = () => {
+        const split = answer.indexOf('\r\n\r\n');
+        resolve({ head: answer.slice(0, split), body: answer.slice(split + 4), afterMs: Date.now() - sentAt });
+        socket.destroy();
+      };
+      socket.setTimeout(30_000, () => reject(new Error(`no answer within 30 s; got: ${answer}`)));
+      socket.on('error', reject);
+      socket.on('connect', () => {
+        socket.write(
+          [`POST /api/uploads HTTP/1.1`, `Host: ${hostname}:${port}`, `Origin: ${url}`, `Cookie: ${cookie}`,
+            `Content-Type: multipart/form-data; boundary=${boundary}`, `Content-Length: 200000`, '', ''].join('\r\n') + start,
+        );
+        sentAt = Date.now();
+      });
+      socket.on('data', (chunk) => {
+        answer += chunk.toString('utf8');
+        // The JSON body is short: the first complete answer is enough.
+        if (/\r\n\r\n[\s\S]*\}\s*$/.test(answer) || /\r\n0\r\n\r\n$/.test(answer)) done();
+      });
+      socket.on('end', done);
+    });
+  }
+
+  test('an upload that stalls is answered 408 by the server after its idle limit, and leaves no partial file', async () => {
+    const api = await playwrightRequest.newContext({ baseURL: SECURE_URL, extraHTTPHeaders: { origin: SECURE_URL.replace('http://', 'https://') } });
+    try {
+      const session = await signInSecure(api, 'student10@northmere.example');
+      const partials = () => (fs.existsSync(process.env.UPLOAD_DIR!) ? fs.readdirSync(process.env.UPLOAD_DIR!).filter((f) => f.endsWith('.part')) : []);
+      const before = partials();
+      const answer = await stalledUpload(SECURE_URL, `__Secure-next-auth.session-token=${session}`);
+      expect(answer.head.split('\r\n')[0]).toBe('HTTP/1.1 408 Request Timeout');
+      expect(answer.body).toMatch(/stalled \(nothing arrived for 2 s\)/);
+      // Cut off at the configured idle limit (2 s on this server), not left to the client.
+      expect(answer.afterMs).toBeGreaterThanOrEqual(1_900);
+      expect(answer.afterMs).toBeLessThan(15_000);
+      await expect.poll(partials).toEqual(before);
+    } finally {
+      await api.dispose();
+    }
   });
 });
