@@ -21,7 +21,6 @@ import { uploadPath } from '@/lib/storage';
 import { isQuantityKey, QUANTITIES } from '@/lib/grading';
 import { models } from '@/models';
 import type { Practical } from '@/models/practical';
-import type { PracticalCohort } from '@/models/practical-cohort';
 import type { Submission } from '@/models/submission';
 import { draftSchema, emptyDraft, type Draft } from '@/lib/schemas/submission';
 import { checkStoredSubmission } from './check';
@@ -70,7 +69,7 @@ async function assertOwnUploads(draft: Draft, studentId: number, transaction?: T
 }
 
 /** Drop species the practical does not have, so a draft cannot grow without bound. */
-function trimDraft(draft: Draft, practical: Practical): Draft {
+function trimDraft(draft: Draft, practical: Pick<Practical, 'species'>): Draft {
   const species = Object.fromEntries(Object.entries(draft.species).filter(([s]) => practical.species.includes(s)));
   return { ...draft, species };
 }
@@ -81,7 +80,7 @@ function trimDraft(draft: Draft, practical: Practical): Draft {
  * no read of the old draft). Only the first save inserts the row; if two tabs insert at once, the
  * unique index (practicalId, studentId, attempt) lets one win and the other updates it.
  */
-export async function saveDraft(actor: Actor, practical: Practical, pc: PracticalCohort, draftIn: Draft): Promise<{ id: number; version: number; updatedAt: Date }> {
+export async function saveDraft(actor: Actor, practical: Pick<Practical, 'id' | 'species'>, cohortId: number, draftIn: Draft): Promise<{ id: number; version: number; updatedAt: Date }> {
   const draft = trimDraft(draftIn, practical);
   await assertOwnUploads(draft, actor.id);
   const update = async () => {
@@ -97,7 +96,7 @@ export async function saveDraft(actor: Actor, practical: Practical, pc: Practica
   if (updated) return updated;
   try {
     const row = await models().Submission.create({
-      practicalId: practical.id, cohortId: pc.cohortId, studentId: actor.id, attempt: 0, status: 'draft', draft, submittedAt: null, isMarkedAttempt: false,
+      practicalId: practical.id, cohortId, studentId: actor.id, attempt: 0, status: 'draft', draft, submittedAt: null, isMarkedAttempt: false,
       checkSummary: null, lineListHash: null, proposedTotal: null, awardedTotal: null, maxTotal: null, markedById: null, markedAt: null, releasedAt: null,
       resubmissionMessage: null, version: 1,
     });
