@@ -17,7 +17,8 @@ import os from 'node:os';
 import path from 'node:path';
 import { performance } from 'node:perf_hooks';
 
-// BENCH_DB=/path/file.sqlite keeps (and on a second run reuses) the seeded database.
+// BENCH_DB=/path/file.sqlite keeps (and on a second run reuses) the seeded database;
+// BENCH_STATEMENTS=1 also prints each statement's own time, slowest first.
 const keep = process.env.BENCH_DB;
 const dir = keep ? path.dirname(keep) : fs.mkdtempSync(path.join(os.tmpdir(), 'oscillab-bench-'));
 const dbFile = keep ?? path.join(dir, 'bench.sqlite');
@@ -143,6 +144,18 @@ async function measure(practicalId: number, leadId: number, seedStart = performa
   const wholeSql = await captureSql();
   const cohortSql = await captureSql(cohortIds[7]);
   console.log(`The handler sends ${wholeSql.length} statements (whole practical), ${cohortSql.length} (one cohort) when not cached.\n`);
+  if (process.env.BENCH_STATEMENTS) {
+    // BENCH_STATEMENTS=1 prints each statement's own time (whole practical), slowest first, to find what to index or rewrite.
+    const timed: { ms: number; sql: string }[] = [];
+    for (const sql of wholeSql) {
+      await all(sql);
+      const t = performance.now();
+      for (let i = 0; i < 3; i++) await all(sql);
+      timed.push({ ms: (performance.now() - t) / 3, sql });
+    }
+    for (const { ms, sql } of timed.sort((a, b) => b.ms - a.ms)) console.log(`${ms.toFixed(1).padStart(8)} ms  ${sql.replace(/\s+/g, ' ').slice(0, 220)}`);
+    console.log('');
+  }
   console.log('Uncached (STATS_CACHE=off: every call runs every aggregate):');
   const [hw, rw] = await timePair(['handler, whole practical (10,000 submissions)', () => callHandler()], ['raw SQL (same statements, sqlite3 direct), whole', raw(wholeSql)]);
   const [hc, rc] = await timePair(['handler, one cohort (500 submissions)', () => callHandler(cohortIds[7])], ['raw SQL (same statements, sqlite3 direct), cohort', raw(cohortSql)]);
