@@ -8,11 +8,8 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { models } from '@/models';
-import { feedbackDir, uploadDir } from '@/lib/storage';
+import { feedbackDir, isStoredName, uploadDir } from '@/lib/storage';
 import { uploadTimeouts } from '@/lib/submissions/uploads';
-
-const OURS = /^[a-f0-9]{32}(\.[a-z]{2,5})?$/;
-const PARTIAL = /^[a-f0-9]{32}\.part$/;
 
 export function sweepGraceMs(): number {
   return Math.max(60 * 60_000, 2 * uploadTimeouts().totalMs);
@@ -34,16 +31,15 @@ export async function sweepOrphanFiles(options: { now?: Date; graceMs?: number }
     for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
       if (!entry.isFile()) continue;
       const name = entry.name;
-      if (!OURS.test(name) && !PARTIAL.test(name)) continue;
+      if (!isStoredName(name)) continue;
       const file = path.join(dir, name);
-      const referencedHere = !PARTIAL.test(name) && referenced.has(name);
       let age: number;
       try {
         age = now - fs.statSync(file).mtimeMs;
       } catch {
         continue; // removed meanwhile
       }
-      if (referencedHere || age < grace) {
+      if (referenced.has(name) || age < grace) {
         kept++;
         continue;
       }

@@ -16,6 +16,9 @@ export function feedbackDir(): string {
 
 const SAFE_NAME = /^[a-f0-9]{32}(\.[a-z]{2,5})?$/;
 
+/** A name Oscillab gives a stored file (random hex and an extension, formidable's `.part` included). */
+export const isStoredName = (name: string) => SAFE_NAME.test(name);
+
 /** Paths come only from stored random names, never from what a user sent. */
 export function uploadPath(storedName: string): string {
   if (!SAFE_NAME.test(storedName)) throw new Error('Bad stored file name');

@@ -1,8 +1,8 @@
 'use strict';
 
 /**
- * A counter carried in every session token. Setting a password (reset or invitation) or signing
- * out everywhere raises it, so sessions signed in before no longer authorise anything.
+ * A counter carried in every session token. Setting a password (reset or invitation) raises it,
+ * so sessions signed in before no longer authorise anything.
  */
 module.exports = {
   async up(q, S) {

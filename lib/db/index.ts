@@ -99,7 +99,7 @@ const SCHEMA_CHANGE = /^\s*(CREATE|ALTER|DROP)\b/i;
  */
 function rememberColumnTypes(connection: SqliteConnection): void {
   const c = connection as unknown as StatementMethods;
-  for (const method of ['run', 'exec', 'get', 'each', 'prepare'] as const) {
+  for (const method of ['all', 'run', 'exec', 'get', 'each', 'prepare'] as const) {
     const original = c[method].bind(connection);
     c[method] = (sql: string, ...rest: unknown[]) => {
       if (typeof sql === 'string' && SCHEMA_CHANGE.test(sql)) columnTypes.clear();
@@ -108,7 +108,6 @@ function rememberColumnTypes(connection: SqliteConnection): void {
   }
   const all = c.all.bind(connection);
   c.all = (sql: string, ...rest: unknown[]) => {
-    if (typeof sql === 'string' && SCHEMA_CHANGE.test(sql)) columnTypes.clear();
     const table = typeof sql === 'string' ? TABLE_INFO.exec(sql)?.[1] : undefined;
     const callback = rest[rest.length - 1];
     if (!table || typeof callback !== 'function') return all(sql, ...rest);

@@ -95,7 +95,8 @@ export async function receiveMultipart(request: Request, maxBytes: number): Prom
   const cleanup = () => {
     for (const p of created) fs.rmSync(p, { force: true });
   };
-  const stream = timedBody(request.body, uploadTimeouts()) as unknown as IncomingMessage;
+  const timeouts = uploadTimeouts();
+  const stream = timedBody(request.body, timeouts) as unknown as IncomingMessage;
   const headers: Record<string, string> = Object.fromEntries(request.headers.entries());
   // Without a length formidable assumes an empty body; a streamed body is chunked.
   if (headers['content-length'] === undefined) headers['transfer-encoding'] = 'chunked';
@@ -140,8 +141,8 @@ export async function receiveMultipart(request: Request, maxBytes: number): Prom
     cleanup();
     if (e instanceof UploadTimeout) {
       throw new HttpError(408, e.why === 'idle'
-        ? `The upload stalled (nothing arrived for ${formatDuration(uploadTimeouts().idleMs)}) and was stopped; nothing was saved. Try again on a steadier connection.`
-        : `The upload took longer than ${formatDuration(uploadTimeouts().totalMs)} and was stopped; nothing was saved. Try again on a faster connection.`);
+        ? `The upload stalled (nothing arrived for ${formatDuration(timeouts.idleMs)}) and was stopped; nothing was saved. Try again on a steadier connection.`
+        : `The upload took longer than ${formatDuration(timeouts.totalMs)} and was stopped; nothing was saved. Try again on a faster connection.`);
     }
     const refusal = storageRefusal(e) ?? storageRefusal(streams.find((ws) => ws.errored)?.errored);
     if (refusal) throw refusal;
