@@ -1,7 +1,8 @@
 import { defineConfig } from '@playwright/test';
 
-const port = 3100;
-const securePort = 3101;
+// Ports can be moved (E2E_PORT) so two checkouts can run their browser suites side by side.
+const port = Number(process.env.E2E_PORT ?? 3100);
+const securePort = port + 1;
 process.env.E2E_SECURE_URL ??= `http://localhost:${securePort}`;
 
 export default defineConfig({

@@ -6,7 +6,8 @@ E2E_DIR=$(mktemp -d /tmp/oscillab-e2e-XXXX)
 export DATABASE_URL="sqlite:${E2E_DIR}/e2e.sqlite"
 export UPLOAD_DIR="${E2E_DIR}/uploads"
 export NEXTAUTH_SECRET=${NEXTAUTH_SECRET:-oscillab-test-secret}
-export NEXTAUTH_URL=http://localhost:3100
+export E2E_PORT=${E2E_PORT:-3100}
+export NEXTAUTH_URL=http://localhost:${E2E_PORT}
 export NEXT_TELEMETRY_DISABLED=1
 npx sequelize-cli db:migrate > /dev/null
 npm run --silent db:seed > /dev/null
