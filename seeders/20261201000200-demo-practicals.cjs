@@ -4,7 +4,8 @@
  * (practice mode, a coarser band for Group B's instrument) and PHYS2310 "CO fundamental and
  * overtone" (assessed). Idempotent: rows are found by their natural keys before insertion.
  * Tolerances follow common practice (band centre within 1–2 cm⁻¹ at 0.5–1 cm⁻¹ resolution,
- * B within ≈ 1 %, rₑ within ≈ 0.002 Å; consistency for rounding only).
+ * B within ≈ 1 %, rₑ within ≈ 0.002 Å). No consistency bands are set: the engine's defaults by
+ * kind apply (arithmetic to the digits typed, fitted values within three standard errors).
  */
 
 async function findId(q, table, where) {
@@ -25,7 +26,6 @@ async function ensure(q, table, where, extra = {}) {
 const DAY = 86_400_000;
 const REL = (inner, outer) => ({ kind: 'relative', inner, outer, unit: null });
 const ABS = (inner, outer, unit) => ({ kind: 'absolute', inner, outer, unit });
-const CONSISTENCY = REL(0.005, 0.02);
 
 const HCL_INSTRUCTIONS = `## What to hand in
 
@@ -67,7 +67,6 @@ async function quantities(q, practicalId, list, overrides = {}) {
     const qd = await ensure(q, 'quantity_definitions', { practicalId, key, species }, {
       unit, marks, uncertaintyRequired, referenceKind: 'literature', referenceValueSI: null, referenceNote: null, position: position++,
     });
-    await ensure(q, 'tolerance_bands', { quantityDefinitionId: qd, cohortId: null, basis: 'consistency' }, { ...CONSISTENCY, updatedById: null });
     await ensure(q, 'tolerance_bands', { quantityDefinitionId: qd, cohortId: null, basis: 'accuracy' }, { ...accuracy, updatedById: null });
     for (const [cohortId, bands] of Object.entries(overrides)) {
       const band = bands[`${key}:${species}`];

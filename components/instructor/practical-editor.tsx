@@ -14,6 +14,7 @@ type Quantity = {
   id: number; key: QuantityKey; species: string; unit: string; unitDisplay: string; marks: number; uncertaintyRequired: boolean; label: string;
   referenceKind: 'literature' | 'department'; referenceNote: string | null;
   reference: { kind: string; value: number; unit: string; source: string } | null; bands: Band[];
+  consistencyDefault: string | null;
 };
 type Cohort = { id: number; name: string; term: string; instrument: string | null; archived: boolean };
 export type Detail = {
@@ -377,12 +378,21 @@ function Bands({ detail, onChange }: { detail: Detail; onChange: () => void }) {
       <table className="data-table" aria-label="Tolerance bands">
         <thead><tr><th>Quantity</th><th>Applies to</th><th>Question</th><th>Band</th><th /></tr></thead>
         <tbody>
-          {detail.quantities.flatMap((q) => q.bands.map((b) => (
-            <tr key={b.id}>
-              <td>{q.label} · {q.species}</td><td>{cohortLabel(detail.cohorts, b.cohortId)}</td><td>{b.basis}</td><td className="num">{b.text}</td>
-              <td><button type="button" className="btn-quiet" onClick={() => submit('DELETE', { bandId: b.id })}>Remove</button></td>
-            </tr>
-          )))}
+          {detail.quantities.flatMap((q) => [
+            ...q.bands.map((b) => (
+              <tr key={b.id}>
+                <td>{q.label} · {q.species}</td><td>{cohortLabel(detail.cohorts, b.cohortId)}</td><td>{b.basis}</td><td className="num">{b.text}</td>
+                <td><button type="button" className="btn-quiet" onClick={() => submit('DELETE', { bandId: b.id })}>Remove</button></td>
+              </tr>
+            )),
+            ...(q.consistencyDefault && !q.bands.some((b) => b.basis === 'consistency' && b.cohortId === null)
+              ? [
+                  <tr key={`default-${q.id}`} data-testid="consistency-default">
+                    <td>{q.label} · {q.species}</td><td>Course default</td><td>consistency</td><td>Default — {q.consistencyDefault}</td><td />
+                  </tr>,
+                ]
+              : []),
+          ])}
         </tbody>
       </table>
     </section>

@@ -69,6 +69,19 @@ export function AttemptResult({ view }: { view: StudentAttemptView }) {
           </tbody>
         </table>
       )}
+      {view.fits.map((f) => (
+        <div key={f.species} className="text-sm" data-testid="student-fit">
+          <h4 className="font-bold">Your line list, {speciesDisplay(f.species)}</h4>
+          <p>{f.description}</p>
+          {f.notices.length > 0 && (
+            <ul className="list-disc pl-5">
+              {f.notices.map((n) => (
+                <li key={n.code} data-notice={n.code}>{n.message}</li>
+              ))}
+            </ul>
+          )}
+        </div>
+      ))}
       {view.spectrum && (
         <p className="text-sm">
           {view.spectrum.ok

@@ -14,6 +14,7 @@
 import { u } from './constants';
 import { bondLengthFromB } from './harmonic';
 import { parseSpecies, type Species } from './species';
+import { partialFTest, runsTest, type FTest, type RunsTest } from './statistics';
 
 export type Branch = 'P' | 'R';
 
@@ -67,7 +68,15 @@ export interface BandFit {
   lineCount: number;
   /** Ground state from R(J−1) − P(J+1) = 4B₀(J+½); upper state from R(J) − P(J) = 4B₁(J+½). */
   combinationDifferences: { B0?: CombinationDifferenceEstimate; B1?: CombinationDifferenceEstimate };
-  warnings: string[];
+  /** Signs of the residuals in order of m (n ≥ 10): few runs mean an arc, not noise. */
+  runsTest?: RunsTest;
+  warnings: FitWarning[];
+}
+
+/** Something a reader of the fit should know: few lines, large or systematic residuals. */
+export interface FitWarning {
+  code: 'exact-fit' | 'few-lines' | 'large-residuals' | 'systematic-residuals';
+  message: string;
 }
 
 export interface FitFailure {
@@ -82,6 +91,8 @@ export interface FitOptions {
   species?: string | Species;
   /** "J" reproduces the slip of numbering the R branch with m = J instead of J + 1. */
   rBranchIndex?: 'J+1' | 'J';
+  /** Read each P(J) as P(J + pBranchShift): −1 undoes P lines numbered one too high. */
+  pBranchShift?: number;
 }
 
 /** More lines than any real band has; a bigger list is a pasting accident. */
@@ -110,6 +121,16 @@ export function leastSquares(design: Float64Array, n: number, p: number, y: Floa
 
 /** leastSquares on arrays it may overwrite: A becomes the Householder vectors and R, b becomes Qᵀy. */
 function leastSquaresInPlace(A: Float64Array, n: number, p: number, b: Float64Array): LeastSquaresSolution | undefined {
+  const rDiag = householderQR(A, n, p, b);
+  return rDiag ? solveTriangular(A, rDiag, b, n, p, p) : undefined;
+}
+
+/**
+ * Householder QR of the row-major n × p matrix A, applied to b as well. Afterwards R's diagonal
+ * is the returned array, its entries above the diagonal are A[i·p + k] (k > i), and b holds Qᵀy.
+ * Undefined when the columns are (numerically) dependent.
+ */
+function householderQR(A: Float64Array, n: number, p: number, b: Float64Array): Float64Array | undefined {
   const rDiag = new Float64Array(p);
   let maxNorm = 0;
   for (let j = 0; j < p; j++) {
@@ -136,37 +157,45 @@ function leastSquaresInPlace(A: Float64Array, n: number, p: number, b: Float64Ar
     for (let i = j; i < n; i++) b[i] -= f * A[i * p + j];
     rDiag[j] = alpha;
   }
-  // R is upper triangular: its diagonal is rDiag, its entries above the diagonal are A[i·p + k] (k > i).
-  // Back-substitution R β = (Qᵀy)[0..p)
-  const beta = new Array<number>(p).fill(0);
-  for (let i = p - 1; i >= 0; i--) {
+  return rDiag;
+}
+
+/**
+ * The least-squares solution for the first q of the p columns that householderQR factored.
+ * Householder QR is column by column, so the factors of the first q columns are the leading
+ * q × q block of R and the first q entries of Qᵀy; the residual sum of squares then also takes
+ * (Qᵀy)ᵢ² for q ≤ i < p. That gives a model and its nested simpler model from one factorisation.
+ */
+function solveTriangular(A: Float64Array, rDiag: Float64Array, b: Float64Array, n: number, p: number, q: number): LeastSquaresSolution | undefined {
+  const beta = new Array<number>(q).fill(0);
+  for (let i = q - 1; i >= 0; i--) {
     let s = b[i];
-    for (let k = i + 1; k < p; k++) s -= A[i * p + k] * beta[k];
+    for (let k = i + 1; k < q; k++) s -= A[i * p + k] * beta[k];
     beta[i] = s / rDiag[i];
   }
-  // R⁻¹ (upper triangular, row-major p × p), then (XᵀX)⁻¹ = R⁻¹R⁻ᵀ
-  const Rinv = new Array<number>(p * p).fill(0);
-  for (let col = 0; col < p; col++) {
+  // R⁻¹ (upper triangular, row-major q × q), then (XᵀX)⁻¹ = R⁻¹R⁻ᵀ
+  const Rinv = new Array<number>(q * q).fill(0);
+  for (let col = 0; col < q; col++) {
     for (let i = col; i >= 0; i--) {
       let s = i === col ? 1 : 0;
-      for (let k = i + 1; k <= col; k++) s -= A[i * p + k] * Rinv[k * p + col];
-      Rinv[i * p + col] = s / rDiag[i];
+      for (let k = i + 1; k <= col; k++) s -= A[i * p + k] * Rinv[k * q + col];
+      Rinv[i * q + col] = s / rDiag[i];
     }
   }
-  const cov: number[][] = new Array(p);
-  for (let i = 0; i < p; i++) {
-    const row = new Array<number>(p);
-    for (let k = 0; k < p; k++) {
+  const cov: number[][] = new Array(q);
+  for (let i = 0; i < q; i++) {
+    const row = new Array<number>(q);
+    for (let k = 0; k < q; k++) {
       let s = 0;
-      for (let l = Math.max(i, k); l < p; l++) s += Rinv[i * p + l] * Rinv[k * p + l];
+      for (let l = Math.max(i, k); l < q; l++) s += Rinv[i * q + l] * Rinv[k * q + l];
       row[k] = s;
     }
     cov[i] = row;
   }
   let ssr = 0;
-  for (let i = p; i < n; i++) ssr += b[i] * b[i];
-  for (let k = 0; k < p; k++) if (!Number.isFinite(beta[k])) return undefined;
-  return { beta, unscaledCovariance: cov, residualSumOfSquares: ssr, degreesOfFreedom: n - p };
+  for (let i = q; i < n; i++) ssr += b[i] * b[i];
+  for (let k = 0; k < q; k++) if (!Number.isFinite(beta[k])) return undefined;
+  return { beta, unscaledCovariance: cov, residualSumOfSquares: ssr, degreesOfFreedom: n - q };
 }
 
 // Scratch space for the design matrix and observations of polynomialLeastSquares. A marking
@@ -188,8 +217,19 @@ function scratchObservations(size: number): Float64Array {
   return observationScratch;
 }
 
+export type PolynomialSolution = LeastSquaresSolution & { covariance: number[][] };
+
 /** Fits y = Σ βₖ x^powers[k]; x is scaled to |x| ≤ 1 first so the columns stay comparable. */
-export function polynomialLeastSquares(x: ArrayLike<number>, y: ArrayLike<number>, powers: number[]): (LeastSquaresSolution & { covariance: number[][] }) | undefined {
+export function polynomialLeastSquares(x: ArrayLike<number>, y: ArrayLike<number>, powers: number[]): PolynomialSolution | undefined {
+  return nestedPolynomialLeastSquares(x, y, powers, [powers.length])?.[0];
+}
+
+/**
+ * polynomialLeastSquares for several nested models at once: the model with the first q of
+ * `powers` for each q in `sizes`, all from one QR factorisation of the largest design
+ * (see solveTriangular). Undefined when the largest model cannot be fitted.
+ */
+export function nestedPolynomialLeastSquares(x: ArrayLike<number>, y: ArrayLike<number>, powers: number[], sizes: number[]): PolynomialSolution[] | undefined {
   const n = x.length;
   const p = powers.length;
   if (n < p) return undefined;
@@ -203,10 +243,21 @@ export function polynomialLeastSquares(x: ArrayLike<number>, y: ArrayLike<number
     for (let k = 0; k < p; k++) X[i * p + k] = powers[k] === 0 ? 1 : powers[k] === 1 ? t : Math.pow(t, powers[k]);
     Y[i] = y[i];
   }
-  const sol = leastSquaresInPlace(X, n, p, Y); // X and Y are scratch space, free to overwrite
-  if (!sol) return undefined;
-  // Undo the scaling: βₖ was fitted against (x/scale)^powₖ, so multiply it by scale^−powₖ,
-  // and the covariance entry (i, k) by scale^−powᵢ · scale^−powₖ.
+  // X and Y are scratch space, free to overwrite
+  const rDiag = householderQR(X, n, p, Y);
+  if (!rDiag) return undefined;
+  const out: PolynomialSolution[] = [];
+  for (const q of sizes) {
+    const sol = solveTriangular(X, rDiag, Y, n, p, q);
+    if (!sol) return undefined;
+    out.push(unscale(sol, powers, scale));
+  }
+  return out;
+}
+
+/** Undo the scaling of x: βₖ was fitted against (x/scale)^powₖ, so multiply it by scale^−powₖ, and the covariance entry (i, k) by scale^−powᵢ · scale^−powₖ. */
+function unscale(sol: LeastSquaresSolution, powers: number[], scale: number): PolynomialSolution {
+  const p = sol.beta.length;
   const f = new Array<number>(p);
   for (let k = 0; k < p; k++) f[k] = Math.pow(scale, -powers[k]);
   const s2 = sol.degreesOfFreedom > 0 ? sol.residualSumOfSquares / sol.degreesOfFreedom : 0;
@@ -320,7 +371,7 @@ export interface BandConstantsFit {
   lines: Line[];
   m: number[];
   y: number[];
-  solution: LeastSquaresSolution & { covariance: number[][] };
+  solution: PolynomialSolution;
   nu0: Estimate;
   B0: Estimate;
   B1: Estimate;
@@ -331,36 +382,35 @@ export interface BandConstantsFit {
 
 const QUADRATIC_POWERS = [0, 1, 2];
 const CUBIC_POWERS = [0, 1, 2, 3];
+const NESTED_SIZES = [3, 4];
 
-/**
- * The least-squares part of fitBand alone: validates the lines and fits ν̃₀, B₀, B₁, Bₑ, αₑ
- * (and D). The slip diagnosis uses it to refit with the R branch misnumbered, where the
- * residuals and combination differences would be thrown away.
- */
-export function fitBandConstants(lines: unknown, options: FitOptions = {}): BandConstantsFit | FitFailure {
-  const cubic = options.centrifugal === true;
-  const p = cubic ? 4 : 3;
-  const checked = validateLines(lines, p);
-  if (!checked.ok) return checked;
-  const list = checked.lines;
+/** Running indices and wavenumbers of validated lines. */
+function indexLines(list: Line[], rBranchIndex: FitOptions['rBranchIndex']): { m: number[]; y: number[] } {
   const n = list.length;
   // Plain arrays: small Float64Arrays are slow to create (see the scratch space above).
   const m = new Array<number>(n);
   const y = new Array<number>(n);
   for (let i = 0; i < n; i++) {
-    m[i] = runningIndex(list[i].branch, list[i].J, options.rBranchIndex);
+    m[i] = runningIndex(list[i].branch, list[i].J, rBranchIndex);
     y[i] = list[i].wavenumber;
   }
-  // Every line has its own m: validateLines refused repeated assignments, and (branch, J) → m is
-  // one-to-one in either numbering (R lines have m ≥ 0, P lines m ≤ −1). So there are n ≥ p
-  // distinct values of m, as many as the fit needs, and no need to count them again here.
-  const sol = polynomialLeastSquares(m, y, cubic ? CUBIC_POWERS : QUADRATIC_POWERS);
-  if (!sol) return { ok: false, problems: [{ field: 'lines', message: 'The line positions cannot be fitted (the equations are singular).' }] };
+  return { m, y };
+}
+
+/** The lines with every P(J) read as P(J + shift) (−1 undoes P lines numbered one too high). */
+function renumberP(list: Line[], shift: number | undefined): Line[] {
+  if (!shift) return list;
+  return list.map((l) => (l.branch === 'P' ? { branch: 'P', J: l.J + shift, wavenumber: l.wavenumber } : l));
+}
+
+/** ν̃₀, B₀, B₁, Bₑ, αₑ (and D) from the coefficients of ν̃(m) = a + bm + cm² [+ dm³] and their covariance. */
+function constantsOf(list: Line[], m: number[], y: number[], sol: PolynomialSolution): BandConstantsFit {
+  const cubic = sol.beta.length === 4;
   const b = sol.beta[1];
   const cc = sol.beta[2];
   const d = cubic ? sol.beta[3] : 0;
   const V = sol.covariance;
-  // B₁ = (b + c)/2, B₀ = (b − c)/2, αₑ = B₀ − B₁ = −c, Bₑ = (3B₀ − B₁)/2 = b/2 − c.
+  // B₁ = (b + c)/2, B₀ = (b − c)/2, αₑ = B₀ − B₁ = −c, Bₑ = (3B₀ − B₁)/2 = b/2 − c, D = −d/4.
   const varB1 = (V[1][1] + V[2][2] + 2 * V[1][2]) / 4;
   const varB0 = (V[1][1] + V[2][2] - 2 * V[1][2]) / 4;
   const varBe = V[1][1] / 4 + V[2][2] - V[1][2];
@@ -380,13 +430,111 @@ export function fitBandConstants(lines: unknown, options: FitOptions = {}): Band
   };
 }
 
+const SINGULAR: FitFailure = { ok: false, problems: [{ field: 'lines', message: 'The line positions cannot be fitted (the equations are singular).' }] };
+
 /**
- * Fits the line list. Never throws: a list that cannot be fitted comes back as
- * { ok: false, problems } naming the bad line.
+ * The least-squares part of fitBand alone: validates the lines and fits ν̃₀, B₀, B₁, Bₑ, αₑ
+ * (and D). The slip diagnosis uses it to refit with the lines renumbered, where the residuals
+ * and combination differences would be thrown away.
+ */
+export function fitBandConstants(lines: unknown, options: FitOptions = {}): BandConstantsFit | FitFailure {
+  const cubic = options.centrifugal === true;
+  const checked = validateLines(lines, cubic ? 4 : 3);
+  if (!checked.ok) return checked;
+  const list = renumberP(checked.lines, options.pBranchShift);
+  const { m, y } = indexLines(list, options.rBranchIndex);
+  // Every line has its own m: validateLines refused repeated assignments, and (branch, J) → m is
+  // one-to-one in either numbering (R lines have m ≥ 0, P lines m ≤ −1). So there are n ≥ p
+  // distinct values of m, as many as the fit needs, and no need to count them again here.
+  const sol = polynomialLeastSquares(m, y, cubic ? CUBIC_POWERS : QUADRATIC_POWERS);
+  return sol ? constantsOf(list, m, y, sol) : SINGULAR;
+}
+
+/**
+ * Fits the line list with the model asked for (quadratic by default). Never throws: a list that
+ * cannot be fitted comes back as { ok: false, problems } naming the bad line. To let the data
+ * choose between the models, use fitBandModels.
  */
 export function fitBand(lines: unknown, options: FitOptions = {}): BandFit | FitFailure {
   const k = fitBandConstants(lines, options);
-  if (!k.ok) return k;
+  return k.ok ? completeFit(k, options.species) : k;
+}
+
+// ---------------------------------------------------------------------------------------
+// Which model the data support
+
+/** Significance level of the F-test for the centrifugal term (5 %, common practice). */
+export const CENTRIFUGAL_TEST_LEVEL = 0.05;
+/** Significance level of the runs test that calls residuals systematic (1 %: a warning must not cry wolf). */
+export const SYSTEMATIC_RESIDUALS_LEVEL = 0.01;
+/** Below this rms (cm⁻¹) the residuals are rounding of binary floating point, not data. */
+const EXACT_RMS = 1e-9;
+
+export interface ModelChoice {
+  model: 'quadratic' | 'cubic';
+  /**
+   * requested: the student reports D (or the caller asked for it); significant / not-significant:
+   * the F-test of the −4Dm³ term decided; exact: the quadratic model already fits to rounding;
+   * too-few-lines: no degree of freedom left to test the cubic term.
+   */
+  reason: 'requested' | 'significant' | 'not-significant' | 'exact' | 'too-few-lines';
+  fTest?: FTest;
+}
+
+export interface BandModels {
+  ok: true;
+  /** The model the data support (or the one asked for), complete. */
+  fit: BandFit;
+  /** The other model, complete, when it could be fitted: a student who used it may be right too. */
+  alternative?: BandFit;
+  choice: ModelChoice;
+}
+
+/**
+ * Fits the band with and without the centrifugal term −4Dm³ (one QR factorisation serves both)
+ * and chooses: the cubic model when D is asked for, or when the partial F-test finds the m³
+ * term significant at CENTRIFUGAL_TEST_LEVEL; otherwise the quadratic model.
+ */
+export function fitBandModels(lines: unknown, options: { species?: string | Species; centrifugal?: boolean; pBranchShift?: number } = {}): BandModels | FitFailure {
+  const requested = options.centrifugal === true;
+  const checked = validateLines(lines, requested ? 4 : 3);
+  if (!checked.ok) return checked;
+  const list = renumberP(checked.lines, options.pBranchShift);
+  const { m, y } = indexLines(list, 'J+1');
+  const n = list.length;
+  if (n < 4) {
+    const sol = polynomialLeastSquares(m, y, QUADRATIC_POWERS);
+    if (!sol) return SINGULAR;
+    return { ok: true, fit: completeFit(constantsOf(list, m, y, sol), options.species), choice: { model: 'quadratic', reason: 'too-few-lines' } };
+  }
+  const sols = nestedPolynomialLeastSquares(m, y, CUBIC_POWERS, NESTED_SIZES);
+  if (!sols) {
+    // The m³ column can be dependent on the others for odd line sets; the quadratic may still fit.
+    if (requested) return SINGULAR;
+    const sol = polynomialLeastSquares(m, y, QUADRATIC_POWERS);
+    if (!sol) return SINGULAR;
+    return { ok: true, fit: completeFit(constantsOf(list, m, y, sol), options.species), choice: { model: 'quadratic', reason: 'too-few-lines' } };
+  }
+  const [quadratic, cubic] = sols;
+  const fTest = partialFTest(quadratic.residualSumOfSquares, cubic.residualSumOfSquares, 1, n - 4);
+  let choice: ModelChoice;
+  if (requested) choice = { model: 'cubic', reason: 'requested', fTest };
+  else if (Math.sqrt(quadratic.residualSumOfSquares / n) < EXACT_RMS) choice = { model: 'quadratic', reason: 'exact', fTest };
+  else if (!fTest) choice = { model: 'quadratic', reason: 'too-few-lines' };
+  else choice = { model: fTest.p < CENTRIFUGAL_TEST_LEVEL ? 'cubic' : 'quadratic', reason: fTest.p < CENTRIFUGAL_TEST_LEVEL ? 'significant' : 'not-significant', fTest };
+  const q = completeFit(constantsOf(list, m, y, quadratic), options.species);
+  const c = completeFit(constantsOf(list, m, y, cubic), options.species);
+  return choice.model === 'cubic' ? { ok: true, fit: c, alternative: q, choice } : { ok: true, fit: q, alternative: c, choice };
+}
+
+// ---------------------------------------------------------------------------------------
+// What a fit says about itself
+
+/** Fewer degrees of freedom than this and the standard errors mean little (common practice). */
+export const MIN_DEGREES_OF_FREEDOM_FOR_ERRORS = 3;
+
+/** Residuals, bond lengths, combination differences and warnings for fitted constants. */
+function completeFit(k: BandConstantsFit, speciesOption: string | Species | undefined): BandFit {
   const { cubic, lines: list, m, y, solution: sol, B0, B1, Be, alphaE, D } = k;
   const n = list.length;
   const a = sol.beta[0];
@@ -394,8 +542,6 @@ export function fitBand(lines: unknown, options: FitOptions = {}): BandFit | Fit
   const cc = sol.beta[2];
   const d = cubic ? sol.beta[3] : 0;
   const V = sol.covariance;
-  const warnings: string[] = [];
-  if (sol.degreesOfFreedom === 0) warnings.push('As many lines as parameters: the fit is exact and gives no standard errors.');
 
   const residuals: LineResidual[] = new Array(n);
   let ss = 0;
@@ -406,14 +552,15 @@ export function fitBand(lines: unknown, options: FitOptions = {}): BandFit | Fit
     ss += r * r;
     residuals[i] = { branch: list[i].branch, J: list[i].J, m: mi, observed: y[i], calculated: calc, residual: r };
   }
+  const rms = Math.sqrt(ss / n);
 
   let re: Estimate | undefined;
   let r0: Estimate | undefined;
   let species: Species | undefined;
-  if (typeof options.species === 'string') {
-    const parsed = parseSpecies(options.species);
+  if (typeof speciesOption === 'string') {
+    const parsed = parseSpecies(speciesOption);
     species = parsed.ok ? parsed.species : undefined;
-  } else species = options.species;
+  } else species = speciesOption;
   if (species && Be.value > 0 && B0.value > 0) {
     const mu = species.reducedMassU * u;
     const reV = bondLengthFromB(Be.value * 100, mu) * 1e10;
@@ -423,6 +570,7 @@ export function fitBand(lines: unknown, options: FitOptions = {}): BandFit | Fit
     r0 = { value: r0V, stdError: (r0V * B0.stdError) / (2 * B0.value) };
   }
 
+  const systematic = rms > EXACT_RMS && n >= 10 ? runsTest(residualsInOrderOfM(residuals)) : undefined;
   return {
     ok: true,
     model: cubic ? 'cubic' : 'quadratic',
@@ -438,12 +586,35 @@ export function fitBand(lines: unknown, options: FitOptions = {}): BandFit | Fit
     coefficients: sol.beta,
     covariance: V,
     residuals,
-    rms: Math.sqrt(ss / n),
+    rms,
     degreesOfFreedom: sol.degreesOfFreedom,
     lineCount: n,
     combinationDifferences: combinationDifferences(list, cubic),
-    warnings,
+    runsTest: systematic,
+    warnings: fitWarnings(n, sol.beta.length, rms, B0.value, systematic),
   };
+}
+
+function residualsInOrderOfM(residuals: LineResidual[]): number[] {
+  const sorted = residuals.slice().sort((p, q) => p.m - q.m);
+  const out = new Array<number>(sorted.length);
+  for (let i = 0; i < sorted.length; i++) out[i] = sorted[i].residual;
+  return out;
+}
+
+function fitWarnings(n: number, p: number, rms: number, B0: number, runs: RunsTest | undefined): FitWarning[] {
+  const out: FitWarning[] = [];
+  const dof = n - p;
+  if (dof === 0) out.push({ code: 'exact-fit', message: `${n} lines for ${p} parameters: the fit passes through every line and gives no standard errors. Assign more lines.` });
+  else if (dof < MIN_DEGREES_OF_FREEDOM_FOR_ERRORS) out.push({ code: 'few-lines', message: `Only ${n} lines for ${p} parameters: the standard errors rest on ${dof} degree${dof === 1 ? '' : 's'} of freedom and say little. Assign more lines.` });
+  // Lines about 2B apart: residuals of a tenth of that spacing mean lines on the wrong J, not noise.
+  if (B0 > 0 && rms > 0.2 * B0) out.push({ code: 'large-residuals', message: `The residuals are large (rms ${formatRms(rms)} cm⁻¹, about ${Math.round((100 * rms) / (2 * B0))} % of the line spacing): some lines are probably assigned to the wrong J or branch.` });
+  else if (runs && runs.p < SYSTEMATIC_RESIDUALS_LEVEL) out.push({ code: 'systematic-residuals', message: `The residuals are systematic, not random (${runs.runs} runs of one sign where about ${Math.round(runs.expectedRuns)} are expected): the model leaves out a term the lines need, or lines are misassigned.` });
+  return out;
+}
+
+function formatRms(x: number): string {
+  return x >= 0.1 ? x.toFixed(2) : x.toPrecision(2);
 }
 
 /**

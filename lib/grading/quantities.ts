@@ -59,10 +59,62 @@ export const QUANTITIES: Record<QuantityKey, QuantityInfo> = {
   omegaE: q('omegaE', 'Harmonic wavenumber ωₑ', '\\omega_\\mathrm{e}', 'wavenumber', 'cm⁻¹', 'ωₑ = ν̃₀ + 2ωₑxₑ, from the fundamental and the first overtone.'),
   omegaExe: q('omegaExe', 'Anharmonicity constant ωₑxₑ', '\\omega_\\mathrm{e}x_\\mathrm{e}', 'wavenumber', 'cm⁻¹', 'ωₑxₑ = (2ν̃₁←₀ − ν̃₂←₀)/2.'),
   zeroPointEnergy: q('zeroPointEnergy', 'Zero-point energy G(0)', 'G(0)', 'energy', 'cm⁻¹', 'G(0) = ωₑ/2 − ωₑxₑ/4.'),
-  dissociationEnergy: q('dissociationEnergy', 'Dissociation energy Dₑ (Morse)', 'D_\\mathrm{e}', 'energy', 'cm⁻¹', 'Morse estimate of the well depth: Dₑ ≈ ωₑ²/(4ωₑxₑ).'),
-  dissociationEnergy0: q('dissociationEnergy0', 'Dissociation energy D₀ (Morse)', 'D_0', 'energy', 'cm⁻¹', 'D₀ = Dₑ − G(0), measured from the lowest level.'),
+  dissociationEnergy: q('dissociationEnergy', 'Dissociation energy Dₑ', 'D_\\mathrm{e}', 'energy', 'cm⁻¹', 'Depth of the potential well. From ωₑ and ωₑxₑ the Morse model estimates Dₑ ≈ ωₑ²/(4ωₑxₑ); the accepted value is the measured D₀ + G(0), which the Morse estimate overshoots.'),
+  dissociationEnergy0: q('dissociationEnergy0', 'Dissociation energy D₀', 'D_0', 'energy', 'cm⁻¹', 'Dissociation energy from the lowest level, D₀ = Dₑ − G(0). The Morse estimate from ωₑ and ωₑxₑ overshoots; the accepted value is the measured (spectroscopic) D₀.'),
   isotopeShift: q('isotopeShift', 'Isotope shift Δν̃₀', '\\Delta\\tilde{\\nu}_0', 'wavenumber', 'cm⁻¹', 'ν̃₀(partner isotopologue) − ν̃₀(this isotopologue); in the harmonic limit ν̃₀ scales as √(μ/μ′).'),
   isotopeRatio: q('isotopeRatio', 'Isotope ratio ν̃₀′/ν̃₀', '\\tilde{\\nu}_0^{\\prime}/\\tilde{\\nu}_0', 'ratio', '', 'ν̃₀(partner)/ν̃₀(this isotopologue), compared with √(μ/μ′).'),
+};
+
+/**
+ * How the consistency check recomputes a quantity from the student's own data, by default:
+ * 'fitted' from the least-squares fit of their line list (judged with its standard error),
+ * 'arithmetic' from numbers they typed or were given (judged to the digits they typed).
+ * rₑ and r₀ are arithmetic on the student's own B when they report it, else from the fit.
+ */
+export const CONSISTENCY_KIND: Record<QuantityKey, 'arithmetic' | 'fitted'> = {
+  bandCentre: 'fitted',
+  reducedMass: 'arithmetic',
+  forceConstant: 'arithmetic',
+  forceConstantE: 'arithmetic',
+  B0: 'fitted',
+  B1: 'fitted',
+  Be: 'fitted',
+  alphaE: 'fitted',
+  D: 'fitted',
+  re: 'arithmetic',
+  r0: 'arithmetic',
+  omegaE: 'arithmetic',
+  omegaExe: 'arithmetic',
+  zeroPointEnergy: 'arithmetic',
+  dissociationEnergy: 'arithmetic',
+  dissociationEnergy0: 'arithmetic',
+  isotopeShift: 'arithmetic',
+  isotopeRatio: 'arithmetic',
+};
+
+/**
+ * What the accuracy comparison tests, for advice that fits the quantity: a measurement (or a
+ * number worked out from one), the masses, or a model's prediction.
+ */
+export const ACCURACY_KIND: Record<QuantityKey, 'measured' | 'masses' | 'model'> = {
+  bandCentre: 'measured',
+  reducedMass: 'masses',
+  forceConstant: 'measured',
+  forceConstantE: 'measured',
+  B0: 'measured',
+  B1: 'measured',
+  Be: 'measured',
+  alphaE: 'measured',
+  D: 'measured',
+  re: 'measured',
+  r0: 'measured',
+  omegaE: 'measured',
+  omegaExe: 'measured',
+  zeroPointEnergy: 'measured',
+  dissociationEnergy: 'model',
+  dissociationEnergy0: 'model',
+  isotopeShift: 'measured',
+  isotopeRatio: 'measured',
 };
 
 export function isQuantityKey(key: unknown): key is QuantityKey {

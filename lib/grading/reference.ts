@@ -10,7 +10,11 @@
  *
  * Units here: cm⁻¹, except rₑ in Å.
  */
+import { c, e, h } from './constants';
 import { parseSpecies, type Species, elementKey, isotopologueKey } from './species';
+
+/** 1 cm⁻¹ in eV: hc × 100 m⁻¹ / e (CODATA 2018). */
+const WAVENUMBER_IN_EV = (h * c * 100) / e;
 
 export interface MolecularConstants {
   omegaE: number;
@@ -33,6 +37,11 @@ export interface ReferenceEntry {
   bandOrigin?: { value: number; provenance: string };
   /** Measured first overtone (v = 2 ← 0), cm⁻¹, where known. */
   overtone?: { value: number; provenance: string };
+  /**
+   * Measured dissociation energy D₀ from the lowest level, eV (the spectroscopic value, not the
+   * Morse estimate, which overshoots it).
+   */
+  dissociationEnergy0?: { valueEV: number; provenance: string; /** The row whose tabulated D₀ this one is computed from. */ from?: string };
   /** Harmonic force constant kₑ as a standard physical chemistry textbook table gives it, N m⁻¹. */
   textbookForceConstant?: { value: number; provenance: string };
   /** For computed isotopologues: the formula of the row they were derived from. */
@@ -60,7 +69,9 @@ function row(
   return { formula, constants: { omegaE, omegaExe, omegaEye, Be, alphaE, De, reAngstrom }, provenance, ...extra };
 }
 
+const DISSOCIATION = `D₀ as tabulated by ${HH}, from memory`;
 const band = (value: number) => ({ value, provenance: BAND_ORIGIN });
+const d0 = (valueEV: number) => ({ valueEV, provenance: DISSOCIATION });
 const textbook = (value: number) => ({ value, provenance: TEXTBOOK });
 
 /** The rows of the shared reference table, by normalised formula. */
@@ -69,31 +80,39 @@ export const REFERENCE_TABLE: readonly ReferenceEntry[] = [
     bandOrigin: band(2885.98),
     overtone: band(5667.98),
     textbookForceConstant: textbook(516),
+    dissociationEnergy0: d0(4.4336),
   }),
   row('D35Cl', 2145.163, 27.1825, 0.08649, 5.448794, 0.113291, 1.395e-4, 1.27458, MEMORY),
   row('H79Br', 2648.975, 45.2175, -0.0029, 8.464884, 0.23328, 3.4575e-4, 1.41444, MEMORY, {
     bandOrigin: band(2558.53),
     textbookForceConstant: textbook(412),
+    dissociationEnergy0: d0(3.758),
   }),
-  // Caution: this row's Bₑ and rₑ disagree by 0.66 % through r = √(h/(8π²cμB)); one of the two
-  // remembered values is off. Kept as given in the shared table; checked in tests.
-  row('H127I', 2309.014, 39.6435, undefined, 6.426365, 0.1689, 2.069e-4, 1.60916, MEMORY, { textbookForceConstant: textbook(314) }),
+  // Bₑ computed from rₑ = 1.60916 Å with AME2020 masses: the number an earlier table gave as Bₑ
+  // (6.426365) is B₀ = Bₑ − αₑ/2 (shared reference table, note on H¹²⁷I).
+  row('H127I', 2309.014, 39.6435, -0.02, 6.511, 0.16886, 2.069e-4, 1.60916, `${HH}: ωₑ, ωₑxₑ, ωₑyₑ, αₑ read from a stored copy of the NIST WebBook page; Bₑ computed from rₑ`, {
+    textbookForceConstant: textbook(314),
+    dissociationEnergy0: d0(3.0541),
+  }),
   row('H19F', 4138.32, 89.88, 0.9, 20.9557, 0.798, 2.151e-3, 0.91681, MEMORY, {
     bandOrigin: band(3961.42),
     textbookForceConstant: textbook(966),
+    dissociationEnergy0: d0(5.869),
   }),
   row('12C16O', 2169.81358, 13.28831, 0.010511, 1.93128087, 0.01750441, 6.12147e-6, 1.128323, MEMORY, {
     bandOrigin: band(2143.27),
     overtone: band(4260.06),
     textbookForceConstant: textbook(1902),
+    dissociationEnergy0: d0(11.092),
   }),
-  row('14N2', 2358.57, 14.324, -0.00226, 1.998241, 0.017318, 5.76e-6, 1.09768, MEMORY, { textbookForceConstant: textbook(2294) }),
+  row('14N2', 2358.57, 14.324, -0.00226, 1.998241, 0.017318, 5.76e-6, 1.09768, MEMORY, { textbookForceConstant: textbook(2294), dissociationEnergy0: d0(9.759) }),
   row('16O2', 1580.193, 11.981, 0.04747, 1.44563, 0.0159, 4.839e-6, 1.20752, `${HH}: ωₑ, ωₑxₑ, ωₑyₑ as printed in a public reproduction of the NIST table; the rest from memory`, {
     textbookForceConstant: textbook(1177),
+    dissociationEnergy0: d0(5.1156),
   }),
-  row('H2', 4401.213, 121.336, 0.8129, 60.853, 3.0622, 4.71e-2, 0.74144, MEMORY_CCCBDB, { textbookForceConstant: textbook(575) }),
-  row('35Cl2', 559.72, 2.675, undefined, 0.2439, 0.0014, undefined, 1.9879, MEMORY, { textbookForceConstant: textbook(323) }),
-  row('7LiH', 1405.65, 23.2, 0.163, 7.5131, 0.2132, 8.617e-4, 1.5957, `${HH}, read from a stored copy of the NIST WebBook page`),
+  row('H2', 4401.213, 121.336, 0.8129, 60.853, 3.0622, 4.71e-2, 0.74144, MEMORY_CCCBDB, { textbookForceConstant: textbook(575), dissociationEnergy0: d0(4.4781) }),
+  row('35Cl2', 559.72, 2.675, undefined, 0.2439, 0.0014, undefined, 1.9879, MEMORY, { textbookForceConstant: textbook(323), dissociationEnergy0: d0(2.4794) }),
+  row('7LiH', 1405.65, 23.2, 0.163, 7.5131, 0.2132, 8.617e-4, 1.5957, `${HH}, read from a stored copy of the NIST WebBook page`, { dissociationEnergy0: d0(2.429) }),
 ];
 
 /** Band origins measured for isotopologues whose other constants are computed. */
@@ -114,6 +133,25 @@ for (const entry of REFERENCE_TABLE) {
   const list = parentsByElements.get(elementKey(parsed.species)) ?? [];
   list.push({ entry, species: parsed.species });
   parentsByElements.set(elementKey(parsed.species), list);
+}
+
+// Table rows without a tabulated D₀ (D³⁵Cl) take it from a row of the same molecule (H³⁵Cl).
+for (const list of parentsByElements.values()) {
+  const withD0 = list.find((p) => p.entry.dissociationEnergy0);
+  if (!withD0) continue;
+  for (const p of list) if (!p.entry.dissociationEnergy0) p.entry.dissociationEnergy0 = dissociationEnergyFromParent(withD0.entry, p.entry.constants);
+}
+
+/** D₀ of an isotopologue from another one's D₀: the same well depth Dₑ = D₀ + G(0), so D₀ moves by the change in G(0). */
+function dissociationEnergyFromParent(parent: ReferenceEntry, constants: MolecularConstants): ReferenceEntry['dissociationEnergy0'] {
+  const parentD0 = parent.dissociationEnergy0;
+  if (!parentD0) return undefined;
+  const origin = parentD0.from ?? parent.formula;
+  return {
+    valueEV: parentD0.valueEV + (vibrationalTerm(parent.constants, 0) - vibrationalTerm(constants, 0)) * WAVENUMBER_IN_EV,
+    provenance: `computed from D₀ of ${origin} (${DISSOCIATION}) through the zero-point energies (same well depth)`,
+    from: origin,
+  };
 }
 
 /**
@@ -173,11 +211,13 @@ export function referenceEntry(speciesOrFormula: Species | string): ReferenceEnt
         vibrationalTerm(constants, 1) - vibrationalTerm(constants, 0) - (vibrationalTerm(parent.entry.constants, 1) - vibrationalTerm(parent.entry.constants, 0));
       bandOrigin = { value: parent.entry.bandOrigin.value + shift, provenance: `computed from ${parent.entry.formula} (${BAND_ORIGIN}) by isotope relations` };
     }
+    const dissociationEnergy0 = dissociationEnergyFromParent(parent.entry, constants);
     result = {
       formula: species.formula,
       constants,
       provenance: `computed from ${parent.entry.formula} by isotope relations (${parent.entry.provenance})`,
       bandOrigin,
+      dissociationEnergy0,
       derivedFrom: parent.entry.formula,
     };
   }

@@ -6,12 +6,15 @@
  * - forceConstant is k from the band centre (harmonic approximation, what students compute
  *   from their spectrum); kₑ from ωₑ is the separate key forceConstantE.
  * - reducedMass from the isotopic masses; r₀ from B₀ = Bₑ − αₑ/2; B₁ = Bₑ − 3αₑ/2.
- * - zero-point and dissociation energies use the two-term G(v) of the Morse model (ωₑ, ωₑxₑ),
- *   the same formulas students use.
+ * - the zero-point energy uses the two-term G(v) (ωₑ, ωₑxₑ), as students do; the dissociation
+ *   energies are the measured ones (D₀ tabulated, Dₑ = D₀ + G(0)), not the Morse model's
+ *   estimates, which overshoot them (morseEstimates gives those, to show beside).
+ * - harmonicIsotopeReference: the harmonic expectation for an isotope shift or ratio, for a
+ *   student's harmonic prediction (the observed ratio includes anharmonicity).
  * - isotopeShift / isotopeRatio compare with the partner isotopologue (by default ³⁵Cl↔³⁷Cl,
  *   ⁷⁹Br↔⁸¹Br, otherwise H↔D, otherwise ¹²C↔¹³C), from both band centres.
  */
-import { c, h } from './constants';
+import { c, e, h } from './constants';
 import { formatNumber, withUnit } from './format';
 import { bondLengthFromB, forceConstantFromBand } from './harmonic';
 import { isotope, ISOTOPE_SOURCE } from './isotopes';
@@ -108,10 +111,18 @@ export function referenceValues(speciesInput: Species | string, partnerInput?: S
     put('omegaExe', k.omegaExe * 100, src);
     const hc = h * c * 100; // J per cm⁻¹
     const zpe = k.omegaE / 2 - k.omegaExe / 4;
-    const De = (k.omegaE * k.omegaE) / (4 * k.omegaExe);
     put('zeroPointEnergy', zpe * hc, `G(0) = ωₑ/2 − ωₑxₑ/4 (${src})`);
-    put('dissociationEnergy', De * hc, `Morse Dₑ = ωₑ²/(4ωₑxₑ) (${src})`);
-    put('dissociationEnergy0', (De - zpe) * hc, `Morse D₀ = Dₑ − G(0) (${src})`);
+    // Like for like: the accepted dissociation energies are the measured ones. The Morse values
+    // from the same constants are the model's estimates (morseEstimates), shown beside them.
+    const measuredD0 = entry.dissociationEnergy0;
+    if (measuredD0) {
+      put('dissociationEnergy0', measuredD0.valueEV * e, measuredD0.provenance);
+      put('dissociationEnergy', measuredD0.valueEV * e + zpe * hc, `Dₑ = D₀ + G(0): D₀ ${measuredD0.provenance}; G(0) = ωₑ/2 − ωₑxₑ/4 (${src})`);
+    } else {
+      const morse = morseEstimates(species)!;
+      put('dissociationEnergy', morse.De.valueSI, `${morse.De.source}; no measured value is tabulated`);
+      put('dissociationEnergy0', morse.D0.valueSI, `${morse.D0.source}; no measured value is tabulated`);
+    }
     if (partner) {
       const pb = bandCentreOf(partner);
       if (pb) {
@@ -122,5 +133,42 @@ export function referenceValues(speciesInput: Species | string, partnerInput?: S
     }
   }
   if (cache.size < 500) cache.set(cacheKey, out);
+  return out;
+}
+
+/**
+ * The Morse model's dissociation energies from the accepted ωₑ and ωₑxₑ: Dₑ = ωₑ²/(4ωₑxₑ),
+ * D₀ = Dₑ − G(0). The linear (Birge–Sponer) extrapolation behind them overestimates, because
+ * the real level spacings close up faster near the dissociation limit than a straight line.
+ */
+export function morseEstimates(species: Species): { De: ReferenceValue; D0: ReferenceValue } | undefined {
+  const entry = referenceEntry(species);
+  if (!entry) return undefined;
+  const k = entry.constants;
+  const hc = h * c * 100;
+  const zpe = k.omegaE / 2 - k.omegaExe / 4;
+  const De = (k.omegaE * k.omegaE) / (4 * k.omegaExe);
+  const value = (key: QuantityKey, v: number, source: string): ReferenceValue => ({ valueSI: v, unitSI: QUANTITIES[key].siUnit, display: show(v, key), source });
+  return {
+    De: value('dissociationEnergy', De * hc, `Morse estimate Dₑ = ωₑ²/(4ωₑxₑ) from ${entry.provenance}`),
+    D0: value('dissociationEnergy0', (De - zpe) * hc, `Morse estimate D₀ = Dₑ − G(0) from ${entry.provenance}`),
+  };
+}
+
+/**
+ * What the harmonic model predicts for the partner isotopologue: ν̃₀′/ν̃₀ = √(μ/μ′) exactly, and the
+ * shift ν̃₀(√(μ/μ′) − 1) from the accepted band centre. A student's harmonic prediction is judged
+ * against these; the observed ratio (from both measured band centres) differs by the anharmonicity.
+ */
+export function harmonicIsotopeReference(species: Species, partner: Species): { isotopeRatio: ReferenceValue; isotopeShift?: ReferenceValue } {
+  const ratio = Math.sqrt(species.reducedMassKg / partner.reducedMassKg);
+  const out: { isotopeRatio: ReferenceValue; isotopeShift?: ReferenceValue } = {
+    isotopeRatio: { valueSI: ratio, unitSI: QUANTITIES.isotopeRatio.siUnit, display: show(ratio, 'isotopeRatio'), source: `harmonic expectation √(μ/μ′) for ${partner.display} from the isotopic masses (${ISOTOPE_SOURCE})` },
+  };
+  const band = bandCentreOf(species);
+  if (band) {
+    const shift = band.value * 100 * (ratio - 1);
+    out.isotopeShift = { valueSI: shift, unitSI: QUANTITIES.isotopeShift.siUnit, display: show(shift, 'isotopeShift'), source: `harmonic expectation ν̃₀(√(μ/μ′) − 1) for ${partner.display} from the accepted band centre of ${species.display} (${band.source})` };
+  }
   return out;
 }

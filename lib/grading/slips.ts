@@ -30,6 +30,11 @@ export const SLIP_CODES = [
   'r-branch-numbered-from-j',
   'b0-b1-swapped',
   'r0-reported-as-re',
+  'p-branch-numbered-from-j-plus-1',
+  'zero-point-energy-omitted',
+  'anharmonicity-not-halved',
+  'isotope-shift-sign',
+  'ratio-without-square-root',
   'power-of-ten',
   'unit-mismatch',
 ] as const;
@@ -66,6 +71,11 @@ export const SLIPS: Record<SlipCode, SlipInfo> = {
   'r-branch-numbered-from-j': slip('r-branch-numbered-from-j', 'R branch numbered from J instead of J + 1', 'In the fit against the running number m, R(J) lines must have m = J + 1 (and P(J) lines m = −J). Numbering the R branch with m = J shifts ν̃₀ and the rotational constants.', 'R(J): m = J + 1; P(J): m = −J; ν̃(m) = ν̃₀ + (B₁+B₀)m + (B₁−B₀)m²'),
   'b0-b1-swapped': slip('b0-b1-swapped', 'B₀ and B₁ swapped', 'The ground- and upper-state rotational constants were interchanged (a sign that αₑ came out negative). The m² coefficient is B₁ − B₀ and is negative, since B₁ < B₀.', 'B₀ = (b − c)/2, B₁ = (b + c)/2 from ν̃ = ν̃₀ + bm + cm²'),
   'r0-reported-as-re': slip('r0-reported-as-re', 'r₀ reported as rₑ', 'The bond length from B₀ is r₀, averaged over the zero-point vibration; rₑ comes from Bₑ = B₀ + αₑ/2.', 'rₑ = √(h/(8π²cμBₑ)), r₀ = √(h/(8π²cμB₀))'),
+  'p-branch-numbered-from-j-plus-1': slip('p-branch-numbered-from-j-plus-1', 'P lines numbered one too high', 'The lines of the P branch are labelled one J too high (the band gap misread): the first line below the gap is P(1). Numbered so, the fit leaves residuals of several cm⁻¹; renumbered, it fits to the precision of the measurement.', 'P(J) = ν̃₀ − (B₁ + B₀)J + (B₁ − B₀)J², the first P line is P(1)'),
+  'zero-point-energy-omitted': slip('zero-point-energy-omitted', 'Zero-point energy not subtracted', 'D₀ is measured from the lowest level v = 0, not from the bottom of the well: subtract the zero-point energy G(0) from Dₑ.', 'D₀ = Dₑ − G(0), G(0) = ωₑ/2 − ωₑxₑ/4'),
+  'anharmonicity-not-halved': slip('anharmonicity-not-halved', 'ωₑxₑ not divided by 2', 'From ν̃₁←₀ = ωₑ − 2ωₑxₑ and ν̃₂←₀ = 2ωₑ − 6ωₑxₑ it follows that 2ν̃₁←₀ − ν̃₂←₀ = 2ωₑxₑ: the difference is twice the anharmonicity constant.', 'ωₑxₑ = (2ν̃₁←₀ − ν̃₂←₀)/2, ωₑ = ν̃₁←₀ + 2ωₑxₑ'),
+  'isotope-shift-sign': slip('isotope-shift-sign', 'Isotope shift with the wrong sign', 'The shift is defined as ν̃₀(partner) − ν̃₀(this isotopologue): the heavier isotopologue has the lower band centre, so the shift to a heavier partner is negative.', 'Δν̃₀ = ν̃₀′ − ν̃₀ = ν̃₀(√(μ/μ′) − 1)'),
+  'ratio-without-square-root': slip('ratio-without-square-root', 'Ratio of reduced masses without the square root', 'With the same force constant the wavenumber goes as 1/√μ, so the band centres are in the ratio of the square roots of the reduced masses, not of the masses themselves.', 'ν̃₀′/ν̃₀ = √(μ/μ′)'),
   'power-of-ten': slip('power-of-ten', 'Out by a power of ten', 'The digits are right but the number is out by a power of ten: check unit prefixes and conversions.', 'check prefixes: 10⁻² m = 1 cm, 10⁻¹⁰ m = 1 Å, 10⁻³ kg = 1 g'),
   'unit-mismatch': slip('unit-mismatch', 'Unit missing or wrong', 'The number is right, but the unit given with it is wrong or missing.', 'a quantity = number × unit'),
 };
@@ -80,8 +90,27 @@ export interface SlipInputs {
   omegaExe?: number;
   B0?: number;
   B1?: number;
+  /** Bₑ the student worked from (their own, else (3B₀ − B₁)/2). */
+  Be?: number;
   /** The fit redone with the R branch numbered m = J (SI wavenumbers), when lines were given. */
-  misnumberedFit?: () => { nu0: number; B0: number; B1: number; Be: number; alphaE: number; D?: number } | undefined;
+  misnumberedFit?: () => FittedConstants | undefined;
+  /**
+   * When the student's P lines were found numbered one too high and the check renumbered them:
+   * the constants of the fit of the lines as the student numbered them (SI wavenumbers).
+   */
+  asLabelledFit?: FittedConstants;
+  /** Reduced mass of the partner isotopologue, kg, and its band centre when measured (m⁻¹). */
+  partnerMu?: number;
+  partnerNu0?: number;
+}
+
+export interface FittedConstants {
+  nu0: number;
+  B0: number;
+  B1: number;
+  Be: number;
+  alphaE: number;
+  D?: number;
 }
 
 export interface SlipCandidate {
@@ -170,7 +199,7 @@ const hc = h * c;
 export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[] {
   const mu = x.species.reducedMassKg;
   const out: SlipCandidate[] = [];
-  const Be = x.B0 !== undefined && x.B1 !== undefined ? (3 * x.B0 - x.B1) / 2 : undefined;
+  const Be = x.Be ?? (x.B0 !== undefined && x.B1 !== undefined ? (3 * x.B0 - x.B1) / 2 : undefined);
   const BeSwapped = x.B0 !== undefined && x.B1 !== undefined ? (3 * x.B1 - x.B0) / 2 : undefined;
   switch (key) {
     case 'reducedMass':
@@ -181,10 +210,12 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
       break;
     case 'forceConstantE':
       if (x.omegaE !== undefined) pushForceConstantSlips(out, x.omegaE, mu, x.species, x.nu0, 'band-centre-instead-of-omega-e');
+      if (x.nu0 !== undefined && x.omegaExe !== undefined) out.push({ code: 'anharmonicity-not-halved', valueSI: forceConstantFromBand(x.nu0 + 4 * x.omegaExe, mu) });
       break;
     case 'bandCentre': {
       const f = x.misnumberedFit?.();
       if (f) out.push({ code: 'r-branch-numbered-from-j', valueSI: f.nu0 });
+      if (x.asLabelledFit) out.push({ code: 'p-branch-numbered-from-j-plus-1', valueSI: x.asLabelledFit.nu0 });
       if (x.nu0 !== undefined) pushPerMetre(out, x.nu0);
       break;
     }
@@ -196,6 +227,8 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
       const f = x.misnumberedFit?.();
       const v = f?.[key];
       if (v !== undefined) out.push({ code: 'r-branch-numbered-from-j', valueSI: v });
+      const labelled = x.asLabelledFit?.[key];
+      if (labelled !== undefined) out.push({ code: 'p-branch-numbered-from-j-plus-1', valueSI: labelled });
       if (x.B0 !== undefined && x.B1 !== undefined) {
         const swapped = { B0: x.B1, B1: x.B0, Be: BeSwapped, alphaE: x.B1 - x.B0, D: undefined }[key];
         if (swapped !== undefined) out.push({ code: 'b0-b1-swapped', valueSI: swapped });
@@ -211,6 +244,7 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
       {
         const f = x.misnumberedFit?.();
         if (f && f.Be > 0) out.push({ code: 'r-branch-numbered-from-j', valueSI: bondLengthFromB(f.Be, mu) });
+        if (x.asLabelledFit && x.asLabelledFit.Be > 0) out.push({ code: 'p-branch-numbered-from-j-plus-1', valueSI: bondLengthFromB(x.asLabelledFit.Be, mu) });
       }
       break;
     case 'r0':
@@ -219,13 +253,19 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
       {
         const f = x.misnumberedFit?.();
         if (f && f.B0 > 0) out.push({ code: 'r-branch-numbered-from-j', valueSI: bondLengthFromB(f.B0, mu) });
+        if (x.asLabelledFit && x.asLabelledFit.B0 > 0) out.push({ code: 'p-branch-numbered-from-j-plus-1', valueSI: bondLengthFromB(x.asLabelledFit.B0, mu) });
       }
       break;
     case 'omegaE':
       if (x.omegaE !== undefined) pushPerMetre(out, x.omegaE);
+      // ωₑ = ν̃₁←₀ + 2ωₑxₑ with the undivided difference 2ν̃₁←₀ − ν̃₂←₀ = 2ωₑxₑ taken as ωₑxₑ.
+      if (x.nu0 !== undefined && x.omegaExe !== undefined) out.push({ code: 'anharmonicity-not-halved', valueSI: x.nu0 + 4 * x.omegaExe });
       break;
     case 'omegaExe':
-      if (x.omegaExe !== undefined) pushPerMetre(out, x.omegaExe);
+      if (x.omegaExe !== undefined) {
+        pushPerMetre(out, x.omegaExe);
+        out.push({ code: 'anharmonicity-not-halved', valueSI: 2 * x.omegaExe });
+      }
       break;
     case 'zeroPointEnergy':
     case 'dissociationEnergy':
@@ -237,15 +277,26 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
         return hc * (key === 'zeroPointEnergy' ? zpe : key === 'dissociationEnergy' ? De : De - zpe);
       };
       pushPerMetre(out, energy(x.omegaE, x.omegaExe));
+      if (key === 'dissociationEnergy0') out.push({ code: 'zero-point-energy-omitted', valueSI: hc * ((x.omegaE * x.omegaE) / (4 * x.omegaExe)) });
+      // ωₑxₑ left undivided, with ωₑ taken from the student's ωₑ or redone from it.
+      out.push({ code: 'anharmonicity-not-halved', valueSI: energy(x.omegaE, 2 * x.omegaExe) });
       if (x.nu0 !== undefined) {
+        out.push({ code: 'anharmonicity-not-halved', valueSI: energy(x.nu0 + 4 * x.omegaExe, 2 * x.omegaExe) });
         out.push({ code: 'band-centre-instead-of-omega-e', valueSI: energy(x.nu0, x.omegaExe) });
         if (key === 'zeroPointEnergy') out.push({ code: 'band-centre-instead-of-omega-e', valueSI: (hc * x.nu0) / 2 });
       }
       break;
     }
     case 'isotopeShift':
+      if (x.nu0 !== undefined && x.partnerMu !== undefined) {
+        const shift = x.partnerNu0 !== undefined ? x.partnerNu0 - x.nu0 : x.nu0 * (Math.sqrt(mu / x.partnerMu) - 1);
+        out.push({ code: 'isotope-shift-sign', valueSI: -shift });
+        out.push({ code: 'ratio-without-square-root', valueSI: x.nu0 * (mu / x.partnerMu - 1) });
+        pushPerMetre(out, shift);
+      }
       break;
     case 'isotopeRatio':
+      if (x.partnerMu !== undefined) out.push({ code: 'ratio-without-square-root', valueSI: mu / x.partnerMu });
       break;
   }
   // A model that gives no finite number (a zero B, say) names nothing.
@@ -270,13 +321,27 @@ export interface DiagnoseInput {
   expectedSI: number;
   /** Half-width of the band the number failed (candidates inside it are indistinguishable from right). */
   bandHalfWidthSI: number;
-  /** Relative rounding window: max(minimum, half a unit in the last typed digit / value). */
+  /** Relative rounding of the typed number and of the inputs it was worked out from. */
   window: number;
   inputs?: SlipInputs;
 }
 
-/** Minimum relative window for "reproduces within rounding": intermediate rounding of a hand calculation. */
+/**
+ * Largest relative window for "reproduces within rounding", for intermediate rounding in a hand
+ * calculation. A slip that moves the number by less than twice this gets half its own size as
+ * the window, so a small slip (average atomic masses move μ(HCl) by 0.055 %) is still told apart
+ * from the right answer; and the number must always be nearer the slip than the right answer.
+ */
 export const MIN_SLIP_WINDOW = 0.003;
+
+/** Does the slip's value `candidate` reproduce `reported` (and better than the right value `expected` does)? */
+function reproduces(reported: number, candidate: number, expected: number, window: number): boolean {
+  const toCandidate = Math.abs(reported - candidate);
+  const toExpected = Math.abs(reported - expected);
+  if (!(toCandidate < toExpected)) return false;
+  const allowance = Math.max(window * Math.abs(candidate), Math.min(MIN_SLIP_WINDOW * Math.abs(candidate), 0.5 * Math.abs(candidate - expected)));
+  return toCandidate <= allowance;
+}
 
 function close(a: number, b: number, window: number): boolean {
   return Math.abs(a - b) <= window * Math.abs(b);
@@ -305,7 +370,7 @@ export function diagnose(d: DiagnoseInput): Diagnosis[] {
       // A candidate inside the band the number failed is indistinguishable from the right answer.
       const distinguishable = Math.abs(cand.valueSI - expectedSI) > d.bandHalfWidthSI;
       if (!distinguishable) continue;
-      if (close(reportedSI, cand.valueSI, window) && !found.has(cand.code)) found.set(cand.code, cand.detail);
+      if (reproduces(reportedSI, cand.valueSI, expectedSI, window) && !found.has(cand.code)) found.set(cand.code, cand.detail);
     }
   }
   if (found.size === 0) {
@@ -316,7 +381,7 @@ export function diagnose(d: DiagnoseInput): Diagnosis[] {
     for (let n = -30; n <= 30; n++) {
       if (n === 0) continue;
       const v = expectedSI * POWERS_OF_TEN[n - POWER_OF_TEN_MIN];
-      if (close(reportedSI, v, window)) {
+      if (close(reportedSI, v, Math.max(window, MIN_SLIP_WINDOW))) {
         found.set('power-of-ten', `out by a factor of 10${n < 0 ? '⁻' : ''}${String(Math.abs(n)).replace(/\d/g, toSuperscriptDigit)}`);
         break;
       }
@@ -336,7 +401,7 @@ function unitMismatch(d: DiagnoseInput): string | undefined {
     if (typed && def.display === typed.display && def.kind === typed.kind) continue;
     const conv = toSI(d.reportedValue, def.display, dim);
     if (!conv.ok) continue;
-    if (close(conv.valueSI, d.expectedSI, d.window)) {
+    if (close(conv.valueSI, d.expectedSI, Math.max(d.window, MIN_SLIP_WINDOW))) {
       return missing ? `the number is right in ${def.display}, but no unit was given` : `the number is right in ${def.display || 'no unit'}, not in ${d.reportedUnit}`;
     }
   }

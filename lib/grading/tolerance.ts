@@ -125,5 +125,21 @@ export function marksFor(verdict: Verdict, maxMarks: number, partialFraction = 0
   return 0;
 }
 
-/** Consistency bands are about arithmetic and rounding only (common practice: 0.1–0.5 %). */
-export const DEFAULT_CONSISTENCY_TOLERANCE: Tolerance = { relative: 0.003 };
+/**
+ * Default consistency bands, by how the value is recomputed (see CONSISTENCY_KIND):
+ * - arithmetic on typed or given numbers: to the precision the student typed, half a unit in the
+ *   last digit of the number and of the inputs they worked from, never wider than an uncertainty
+ *   they stated; no percentage floor (the slips worth naming are as small as 0.055 %);
+ * - fitted from their line list: within FITTED_CONSISTENCY_SIGMA standard errors of the fit,
+ *   plus the digits typed.
+ * An instructor's consistency band for a quantity replaces these.
+ */
+export const FITTED_CONSISTENCY_SIGMA = 3;
+
+/** Relative allowance for binary floating point and the last digits of constants (not a tolerance). */
+export const FLOATING_POINT_ALLOWANCE = 1e-9;
+
+export const DEFAULT_CONSISTENCY_WORDS = {
+  arithmetic: 'arithmetic: to the digits the student typed (half a unit in the last digit, never wider than a stated uncertainty)',
+  fitted: `fitted: within ${FITTED_CONSISTENCY_SIGMA} standard errors of the fit of the student's own lines, plus the digits typed`,
+} as const;

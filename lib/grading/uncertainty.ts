@@ -17,6 +17,11 @@ export interface TypedNumber {
   roundingHalfWidth: number;
   /** False when the digits carry no precision information (a binary float with 15+ digits). */
   precisionKnown: boolean;
+  /**
+   * Trailing zeros of a whole number written without a decimal point ("480" has one): they may
+   * or may not be significant. A stated uncertainty settles it (see effectiveLastDigitPower).
+   */
+  ambiguousZeros: number;
   /** Uncertainty given in the text, "2885.98(5)" or "481 ± 3", in the same unit. */
   uncertainty?: number;
 }
@@ -31,6 +36,7 @@ interface Mantissa {
   value: number;
   sigFigs: number;
   lastDigitPower: number;
+  ambiguousZeros: number;
   concise?: number; // the "(5)" of 2885.98(5), in units of the last digit
 }
 
@@ -48,6 +54,7 @@ function parseMantissa(text: string, exponent: number): Mantissa | string {
   const digits = (intPart + frac).replace(/^0+/, '');
   let sigFigs: number;
   let lastDigitPower: number;
+  let ambiguousZeros = 0;
   if (fracPart !== undefined) {
     sigFigs = Math.max(1, digits.length);
     lastDigitPower = -frac.length + exponent;
@@ -55,15 +62,16 @@ function parseMantissa(text: string, exponent: number): Mantissa | string {
     const trailingZeros = /0*$/.exec(intPart)?.[0].length ?? 0;
     const stripped = digits.replace(/0+$/, '');
     sigFigs = Math.max(1, stripped.length);
-    lastDigitPower = (digits.length === 0 ? 0 : trailingZeros) + exponent;
+    ambiguousZeros = digits.length === 0 ? 0 : trailingZeros;
+    lastDigitPower = ambiguousZeros + exponent;
   }
   const value = Number(`${sign}${intPart || '0'}.${frac || '0'}e${exponent}`);
-  return { value, sigFigs, lastDigitPower, concise: concise === undefined ? undefined : Number(concise) };
+  return { value, sigFigs, lastDigitPower, ambiguousZeros, concise: concise === undefined ? undefined : Number(concise) };
 }
 
 function splitExponent(text: string): { mantissa: string; exponent: number } | string {
-  // 1.23e-4, 1.23E-4, 1.23×10^-4, 1.23x10-4, 1.23*10^-4, 1.23·10⁻⁴
-  const m = /^(.*?)(?:[eE]([+-]?\d+)|[x×*·]10(?:\^)?\(?([+-]?\d+)\)?)$/.exec(text);
+  // 1.23e-4, 1.23E-4, 1.23×10^-4, 1.23x10-4, 1.23X10^-4, 1.23*10^-4, 1.23*10**-4, 1.23·10⁻⁴
+  const m = /^(.*?)(?:[eE]([+-]?\d+)|[xX×*·]10(?:\^|\*\*)?\(?([+-]?\d+)\)?)$/.exec(text);
   if (!m) return { mantissa: text, exponent: 0 };
   const exp = Number(m[2] ?? m[3]);
   if (!Number.isFinite(exp) || Math.abs(exp) > 300) return `The exponent in "${text}" is out of range.`;
@@ -83,7 +91,30 @@ function normalise(raw: string): string {
     .replace(/[⁰¹²³⁴⁵⁶⁷⁸⁹⁻⁺]/g, fromSuperscript)
     .replace(/[−–—]/g, '-')
     .replace(/\+\/-|\+-/g, '±')
+    .replace(/\*\*/g, '^')
     .replace(/[\s\u00a0\u2009\u202f']/g, '');
+}
+
+const SPACE = '[ \u00a0\u2009\u202f]';
+const SPACED_DIGITS = new RegExp(`\\d+(?:${SPACE}+\\d+)+`, 'g');
+const SPACE_RUN = new RegExp(`${SPACE}+`);
+
+/**
+ * Digits separated by spaces are read only as the SI grouping in threes ("2 885.98",
+ * "0.979 593"); anything else ("4 8 0") is more likely two numbers than one, so it is refused
+ * rather than silently joined.
+ */
+function badDigitSpacing(text: string): string | undefined {
+  for (const match of text.matchAll(SPACED_DIGITS)) {
+    const groups = match[0].split(SPACE_RUN);
+    const before = text[match.index - 1];
+    const fractional = before === '.' || before === ',';
+    const ok = fractional
+      ? groups.slice(0, -1).every((g) => g.length === 3) && groups[groups.length - 1].length <= 3
+      : groups[0].length <= 3 && groups.slice(1).every((g) => g.length === 3);
+    if (!ok) return `"${text}" has digits separated by spaces; type the number without spaces (digits may be grouped in threes, as in 2 885.98).`;
+  }
+  return undefined;
 }
 
 function parseSingle(text: string): Mantissa | string {
@@ -107,10 +138,12 @@ export function parseTypedNumber(input: unknown): ParseNumberResult {
   const text = input.trim();
   if (text === '') return { ok: false, message: 'The value is empty.' };
   if (text.length > 100) return { ok: false, message: 'The value is too long to be a number.' };
+  const spacing = badDigitSpacing(text);
+  if (spacing) return { ok: false, message: spacing };
   const s = normalise(text);
 
   // (a ± b) × 10^n
-  const grouped = /^\((.+)±(.+)\)(?:[eE]([+-]?\d+)|[x×*·]10\^?\(?([+-]?\d+)\)?)?$/.exec(s);
+  const grouped = /^\((.+)±(.+)\)(?:[eE]([+-]?\d+)|[xX×*·]10(?:\^|\*\*)?\(?([+-]?\d+)\)?)?$/.exec(s);
   if (grouped) {
     const exp = Number(grouped[3] ?? grouped[4] ?? 0);
     const a = parseMantissa(grouped[1], exp);
@@ -144,6 +177,7 @@ function finish(value: number, text: string, m: Mantissa, precisionKnown: boolea
     lastDigitPower: m.lastDigitPower,
     roundingHalfWidth: precisionKnown ? 0.5 * Math.pow(10, m.lastDigitPower) : 0,
     precisionKnown,
+    ambiguousZeros: m.ambiguousZeros,
     uncertainty: uncertainty !== undefined && Number.isFinite(uncertainty) ? uncertainty : undefined,
   };
 }
@@ -153,18 +187,49 @@ function finish(value: number, text: string, m: Mantissa, precisionKnown: boolea
 
 export type PrecisionVerdict = 'ok' | 'too-many-significant-figures' | 'too-few-significant-figures' | 'unknown';
 
+/** Power of ten of the leading digit of a positive number (0.05 → −2), robust to 0.1 = 0.09999…. */
+function leadingPower(x: number): number {
+  return Math.floor(Math.log10(x) + 1e-9);
+}
+
+/**
+ * Power of ten of the last significant digit, with the uncertainty settling trailing zeros of a
+ * whole number: "480 ± 5" is precise to units, "480 ± 50" to tens (common practice). The zeros
+ * count as far down as the uncertainty's leading digit and no further than the units.
+ */
+export function effectiveLastDigitPower(typed: TypedNumber, uncertainty?: number): number {
+  if (typed.ambiguousZeros === 0 || !(uncertainty !== undefined && uncertainty > 0 && Number.isFinite(uncertainty))) return typed.lastDigitPower;
+  const lowest = typed.lastDigitPower - typed.ambiguousZeros;
+  return Math.min(typed.lastDigitPower, Math.max(lowest, leadingPower(uncertainty)));
+}
+
 /**
  * Common practice: quote the uncertainty to one or two significant figures and the value to
- * the same decimal place. One digit beyond the uncertainty's leading digit is accepted (two-
- * figure uncertainty); more is spurious precision. A value rounded coarser than its own
- * uncertainty's leading digit throws information away.
+ * the same decimal place ("480 ± 5", "480.1 ± 0.5", "2885.98 ± 0.05"). A value quoted to one
+ * place beyond the uncertainty's leading digit goes with a two-figure uncertainty; further is
+ * spurious precision ("480.123 ± 5"). A value rounded coarser than its uncertainty's leading digit
+ * throws information away ("500 ± 0.1").
  */
 export function precisionAgainstUncertainty(typed: TypedNumber, uncertainty: number): PrecisionVerdict {
   if (!typed.precisionKnown || !(uncertainty > 0) || !Number.isFinite(uncertainty)) return 'unknown';
-  const leading = Math.floor(Math.log10(uncertainty));
-  if (typed.lastDigitPower < leading - 1) return 'too-many-significant-figures';
-  if (typed.lastDigitPower > leading) return 'too-few-significant-figures';
+  const leading = leadingPower(uncertainty);
+  const last = effectiveLastDigitPower(typed, uncertainty);
+  if (last < leading - 1) return 'too-many-significant-figures';
+  if (last > leading) return 'too-few-significant-figures';
   return 'ok';
+}
+
+/** Half a unit in the last significant digit, with trailing zeros read as effectiveLastDigitPower does. */
+export function roundingHalfWidth(typed: TypedNumber, uncertainty?: number): number {
+  if (!typed.precisionKnown) return 0;
+  return 0.5 * Math.pow(10, effectiveLastDigitPower(typed, uncertainty));
+}
+
+/** An uncertainty should carry one or two significant figures (common practice); more say nothing. */
+export function uncertaintyTooPrecise(uncertainty: number): boolean {
+  if (!(uncertainty > 0) || !Number.isFinite(uncertainty)) return false;
+  const digits = String(uncertainty).replace(/e.*$/, '').replace('.', '').replace(/^0+/, '');
+  return digits.length > 2;
 }
 
 // ---------------------------------------------------------------------------------------

@@ -45,7 +45,7 @@ function add(spellings: string[], ...defs: UnitDefinition[]) {
 }
 
 // Wavenumber (and energy expressed as a wavenumber, E = hc ν̃)
-add(['cm-1', '/cm', '1/cm', 'percm', 'kayser'], lin('cm⁻¹', 'wavenumber', 100), lin('cm⁻¹', 'energy', 100 * hc));
+add(['cm-1', '/cm', '1/cm', 'percm', 'kayser', 'wavenumber', 'wavenumbers'], lin('cm⁻¹', 'wavenumber', 100), lin('cm⁻¹', 'energy', 100 * hc));
 add(['m-1', '/m', '1/m'], lin('m⁻¹', 'wavenumber', 1), lin('m⁻¹', 'energy', hc));
 // Frequencies for a wavenumber: ν̃ = ν / c; for an energy E = hν.
 add(['Hz', 's-1', '/s', '1/s'], lin('Hz', 'wavenumber', 1 / c), lin('Hz', 'energy', h));
@@ -69,8 +69,10 @@ add(['kg/mol', 'kgmol-1'], lin('kg mol⁻¹', 'mass', perMole));
 // Force constant
 add(['N/m', 'Nm-1', 'kgs-2', 'kg/s2', 'J/m2', 'Jm-2'], lin('N m⁻¹', 'forceConstant', 1));
 add(['mdyn/Å', 'mdyn/A', 'mdynÅ-1', 'mdynA-1', 'mdyn/Angstrom', 'mdyn/angstrom', 'aJ/Å2', 'aJÅ-2'], lin('mdyn Å⁻¹', 'forceConstant', 100));
-add(['dyn/cm', 'dyncm-1', 'dyne/cm'], lin('dyn cm⁻¹', 'forceConstant', 1e-3));
+add(['dyn/cm', 'dyncm-1', 'dyne/cm', 'dynecm-1'], lin('dyn cm⁻¹', 'forceConstant', 1e-3));
 add(['kN/m', 'kNm-1'], lin('kN m⁻¹', 'forceConstant', 1e3));
+add(['N/cm', 'Ncm-1'], lin('N cm⁻¹', 'forceConstant', 100));
+add(['mN/m', 'mNm-1'], lin('mN m⁻¹', 'forceConstant', 1e-3));
 
 // Length
 add(['m'], lin('m', 'length', 1));
@@ -151,7 +153,9 @@ function lookupUnitUncached(unit: string, dimension?: Dimension): UnitDefinition
   const key = squashUnit(unit);
   let defs = UNIT_TABLE[key];
   if (!defs) {
-    // Forgive capitalisation ("CM-1", "n/m") when it is unambiguous.
+    // Forgive capitalisation ("CM-1", "n/m") when it is unambiguous and cannot change a prefix
+    // (Pm is the petametre, MeV a million eV: see caseConfusion).
+    if (caseConfusion(key)) return undefined;
     const lower = key.toLowerCase();
     const matches = Object.keys(UNIT_TABLE).filter((k) => k.toLowerCase() === lower);
     const all = matches.flatMap((k) => UNIT_TABLE[k]);
@@ -162,6 +166,37 @@ function lookupUnitUncached(unit: string, dimension?: Dimension): UnitDefinition
   }
   if (!dimension) return defs[0];
   return defs.find((d) => d.dimension === dimension);
+}
+
+/**
+ * A spelling that matches a known unit only by changing the case of a letter whose case carries
+ * meaning: m/M (milli, mega), p/P (pico, peta), and "a" for Å (a is atto, or nothing). Returns the
+ * unit it would have been read as, so the message can ask; undefined when the case is harmless.
+ */
+function caseConfusion(squashed: string): string | undefined {
+  if (squashed === 'a') return 'Å';
+  if (squashed.length < 2) return undefined;
+  const first = squashed[0];
+  if (!'mMpP'.includes(first)) return undefined;
+  const flipped = (first === first.toLowerCase() ? first.toUpperCase() : first.toLowerCase()) + squashed.slice(1);
+  if (UNIT_TABLE[flipped]) return flipped;
+  const lower = squashed.toLowerCase();
+  const match = Object.keys(UNIT_TABLE).find((k) => k.toLowerCase() === lower && k[0] !== first);
+  return match;
+}
+
+const PREFIX_NAMES: Record<string, string> = { m: 'milli', M: 'mega', p: 'pico', P: 'peta' };
+
+/** Why a spelling was refused when its case (or a lone "a") makes it ambiguous, for the message. */
+export function ambiguousUnitMessage(unit: string): string | undefined {
+  const squashed = squashUnit(unit);
+  const meant = caseConfusion(squashed);
+  if (!meant) return undefined;
+  const shown = UNIT_TABLE[meant]?.[0]?.display ?? meant;
+  if (squashed === 'a') return `"${unit.trim()}" is not a unit here: did you mean Å (ångström)?`;
+  const typedPrefix = PREFIX_NAMES[squashed[0]];
+  const meantPrefix = PREFIX_NAMES[meant[0]];
+  return `"${unit.trim()}": case matters in units${typedPrefix ? ` (${squashed[0]} is ${typedPrefix}${meantPrefix ? `, ${meant[0]} is ${meantPrefix}` : ''})` : ''}. Did you mean ${shown}?`;
 }
 
 /** Every unit spelling understood for a dimension, typeset and deduplicated (for help texts). */
@@ -199,6 +234,8 @@ export function toSI(value: number, unit: string, dimension: Dimension): ToSIRes
   if (!def) {
     const other = lookupUnit(unit);
     if (unit.trim() === '') return { ok: false, message: `No unit given; expected ${describe(dimension)}.` };
+    const ambiguous = ambiguousUnitMessage(unit);
+    if (ambiguous) return { ok: false, message: ambiguous };
     if (other) {
       return { ok: false, message: `"${unit}" is a unit of ${other.dimension === 'forceConstant' ? 'force constant' : other.dimension}, but this quantity is ${describe(dimension)}.` };
     }

@@ -10,7 +10,7 @@ import type { Practical } from '@/models/practical';
 import type { QuantityDefinition } from '@/models/quantity-definition';
 import { HttpError } from '@/lib/http-error';
 import { audit } from '@/lib/audit';
-import { QUANTITIES, fromSI, judge, marksFor, parseSpecies, referenceValues, toSI, formatUnit, type QuantityKey, type Verdict } from '@/lib/grading';
+import { QUANTITIES, CONSISTENCY_KIND, DEFAULT_CONSISTENCY_WORDS, FLOATING_POINT_ALLOWANCE, fromSI, judge, marksFor, parseSpecies, parseTypedNumber, referenceValues, roundingHalfWidth, toSI, formatUnit, type QuantityKey, type Verdict } from '@/lib/grading';
 import type { PracticalData, copySchema, bandSchema, previewSchema, quantitySchema } from '@/lib/schemas/instructor';
 import type { z } from 'zod';
 import { recheckPractical } from '@/lib/submissions/recheck';
@@ -282,10 +282,20 @@ export async function previewVerdict(practical: Practical, data: PreviewData) {
       return { basis, verdict: 'not-checked', marks: 0, maxMarks, band: band ? describeBand(band, formatUnit) : null, bandFrom: band ? (band.cohortId ? 'cohort' : 'course') : null, deviation: null, expected: null,
         reason: basis === 'consistency' ? 'Type the value the engine would recompute from the student’s data to see the consistency verdict.' : 'No reference value is known for this quantity.' };
     }
-    const j = judge(reported.valueSI, expectedSI, band ? toleranceFor(band) : undefined, { dimension: info.dimension, uncertaintySI });
+    const kind = CONSISTENCY_KIND[quantity.key as QuantityKey];
+    if (basis === 'consistency' && !band && kind === 'fitted') {
+      return { basis, verdict: 'not-checked', marks: 0, maxMarks, band: DEFAULT_CONSISTENCY_WORDS.fitted, bandFrom: null, deviation: null, expected: shown(expectedSI),
+        reason: 'By default a fitted quantity is judged with the standard errors of the student’s own fit, which need their line list.' };
+    }
+    // Without a band of the instructor's, consistency is judged to the digits typed (the default for arithmetic).
+    const typedDigits = parseTypedNumber(String(data.value));
+    const rounding = typedDigits.ok ? roundingHalfWidth(typedDigits, data.uncertainty ?? undefined) * Math.abs(reported.valueSI / (data.value || 1)) : 0;
+    const j = basis === 'consistency' && !band
+      ? judge(reported.valueSI, expectedSI, { absolute: 0 }, { dimension: info.dimension, roundingSI: Math.min(rounding, uncertaintySI ?? Infinity) + FLOATING_POINT_ALLOWANCE * Math.abs(expectedSI) })
+      : judge(reported.valueSI, expectedSI, band ? toleranceFor(band) : undefined, { dimension: info.dimension, uncertaintySI });
     return {
       basis, verdict: j.verdict, marks: marksFor(j.verdict, maxMarks), maxMarks,
-      band: band ? describeBand(band, formatUnit) : null, bandFrom: band ? (band.cohortId ? 'cohort' : 'course') : null,
+      band: band ? describeBand(band, formatUnit) : basis === 'consistency' ? DEFAULT_CONSISTENCY_WORDS.arithmetic : null, bandFrom: band ? (band.cohortId ? 'cohort' : 'course') : null,
       deviation: j.verdict === 'not-checked' ? null : shown(reported.valueSI) - shown(expectedSI), reason: j.reason, expected: shown(expectedSI),
     };
   };
@@ -372,6 +382,8 @@ export async function practicalDetail(practical: Practical) {
         dimension: info?.dimension,
         unitDisplay: formatUnit(q.unit),
         reference: referenceFor(q),
+        /** The consistency band that applies where the instructor sets none, in words. */
+        consistencyDefault: info ? DEFAULT_CONSISTENCY_WORDS[CONSISTENCY_KIND[q.key as QuantityKey]] : null,
         bands: bands.filter((b) => b.quantityDefinitionId === q.id).map((b) => ({ ...b.get({ plain: true }), text: describeBand(b, formatUnit) })),
       };
     }),

@@ -38,7 +38,9 @@ export function feedbackInputFromView(view: MarkingView, now = new Date()): Feed
       };
     }),
     slips: view.slips.map((s) => ({ title: s.title, quantity: s.quantityLabel, explanation: s.explanation, formula: s.formula })),
-    plots: view.fits.filter((f) => f.residuals.length > 0).map((f) => ({ species: speciesDisplay(f.species), fit: fitPlotModel(f), residuals: residualModel(f) })),
+    plots: view.fits
+      .filter((f) => f.residuals.length > 0)
+      .map((f) => ({ species: speciesDisplay(f.species), fit: fitPlotModel(f), residuals: residualModel(f), description: f.description, notices: f.notices.map((x) => x.message) })),
     rubric: view.marks.filter((m) => m.handMarked).map((m) => ({ label: m.label, marks: `${n(m.awarded)}/${n(m.maxMarks)}` })),
     comments,
     sum: n(rawSum(awarded)),

@@ -6,6 +6,8 @@ import { QUANTITIES, SLIPS, fromSI, formatNumber, formatTyped, isQuantityKey, sp
 import { models } from '@/models';
 import { HttpError } from '@/lib/http';
 import { worstVerdict, type VerdictKey } from './verdict';
+import { describeFit, noticesOf } from '@/lib/submissions/fit-words';
+import type { FitChoiceSummary } from '@/lib/grading';
 
 export type BasisRow = {
   basis: 'consistency' | 'accuracy';
@@ -42,7 +44,16 @@ export type MarkRow = {
 
 export type SlipRow = { key: string; code: string; title: string; explanation: string; formula: string; quantityLabel: string };
 
-export type FitData = { species: string; residuals: { m: number; observed: number; calculated: number; residual: number; branch: string; J: number }[]; coefficients: number[]; rms: number | null };
+export type FitData = {
+  species: string;
+  residuals: { m: number; observed: number; calculated: number; residual: number; branch: string; J: number }[];
+  coefficients: number[];
+  rms: number | null;
+  /** The model used and why, in words. */
+  description: string;
+  /** What the engine noticed about the line list (few lines, systematic residuals, renumbered P lines, …). */
+  notices: { code: string; message: string }[];
+};
 
 export type MarkingView = Awaited<ReturnType<typeof loadMarkingView>>;
 
@@ -78,6 +89,8 @@ export function fitsFromSummary(summary: unknown): FitData[] {
         residuals: (fit.residuals as FitData['residuals']).filter((r) => r && Number.isFinite(r.m) && Number.isFinite(r.residual)),
         coefficients: Array.isArray(fit.coefficients) ? (fit.coefficients as number[]) : [],
         rms: typeof fit.rms === 'number' ? fit.rms : null,
+        description: describeFit(fit, derived?.fitChoice as FitChoiceSummary | undefined),
+        notices: noticesOf(n),
       });
       return;
     }

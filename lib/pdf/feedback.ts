@@ -28,7 +28,7 @@ export type FeedbackInput = {
     marks: string;
   }[];
   slips: { title: string; quantity: string; explanation: string; formula: string }[];
-  plots: { fit: PlotModel; residuals: PlotModel; species: string }[];
+  plots: { fit: PlotModel; residuals: PlotModel; species: string; description?: string; notices?: string[] }[];
   rubric: { label: string; marks: string }[];
   comments: { label: string; text: string }[];
   sum: string;
@@ -231,6 +231,8 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
   for (const p of input.plots) {
     w.heading(`${fill(T.fitHeading, {})}${p.species ? ` (${p.species})` : ''}`);
     w.text(fill(T.fitIntro, {}), { size: 8.5, color: SOFT, gap: 4 });
+    if (p.description) w.text(p.description, { size: 9, gap: 2 });
+    for (const notice of p.notices ?? []) w.text(`• ${notice}`, { size: 9, gap: 2 });
     const scale = (A4.width - 2 * MARGIN) / p.fit.width;
     w.need(p.fit.height * scale + 6);
     drawPlot(w.page, p.fit, { left: MARGIN, top: w.y, scale, font: f.regular, mono: f.mono });

@@ -2,7 +2,7 @@
  * Demo data for the year-on-year comparison (fictional, Northmere University): last year's CHEM2041
  * cohort "Group A, 2025 Autumn" with a copy of "HCl/DCl fundamental band" and 20 alumni whose
  * submissions went through the real pipeline — line lists simulated from published constants
- * (simulateLineList) with seeded noise, values derived with the engine's own formulas (fitBand,
+ * (simulateLineList) with seeded noise, values derived with the engine's own formulas (fitBandModels,
  * forceConstantFromBand, bondLengthFromB), some with one named slip; checked by
  * checkStoredSubmission, marked by ta1 through saveMarks (the engine's proposal for most, a few
  * overrides with a comment), then released. Dates are moved back to autumn 2025.
@@ -10,7 +10,7 @@
  */
 import { Op } from 'sequelize';
 import { models } from '@/models';
-import { bondLengthFromB, fitBand, forceConstantFromBand, parseSpecies, simulateLineList } from '@/lib/grading';
+import { bondLengthFromB, fitBandModels, forceConstantFromBand, u as ATOMIC_MASS_KG, parseSpecies, simulateLineList } from '@/lib/grading';
 import { gaussian, mulberry32 } from '@/lib/spectrum';
 import { copyPractical } from '@/lib/instructor/practicals';
 import { saveMarks } from '@/lib/marking/marks';
@@ -119,14 +119,16 @@ function reportOf(speciesList: string[], plan: (typeof SLIP_PLAN)[number], seed:
     if (!parsed.ok) continue;
     const own = simulateLineList(sp, { jMax: 9 }).map((l) => ({ species: sp, branch: l.branch, J: l.J, wavenumber: Math.round((l.wavenumber + 0.04 * noise()) * 100) / 100 }));
     lines.push(...own);
-    const fit = fitBand(own);
-    if (!fit.ok) continue;
+    // The model the lines support (with −4Dm³ where they need it), as a careful student fits.
+    const models = fitBandModels(own);
+    if (!models.ok) continue;
+    const fit = models.fit;
     const nu0 = Math.round(fit.nu0.value * 10) / 10;
     const { reducedMassKg: muKg, reducedMassU: muU } = parsed.species;
     let kMu = muU;
     let k = forceConstantFromBand(nu0 * 100, muKg);
     if (sp === 'H35Cl') {
-      if (plan === 'mass-numbers-used') { kMu = 35 / 36; k = forceConstantFromBand(nu0 * 100, kMu * 1.6605390666e-27); }
+      if (plan === 'mass-numbers-used') { kMu = 35 / 36; k = forceConstantFromBand(nu0 * 100, kMu * ATOMIC_MASS_KG); }
       if (plan === 'missing-2pi') k /= 4 * Math.PI ** 2;
       if (plan === 'grams-not-kilograms') k *= 1000;
     }

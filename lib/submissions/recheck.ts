@@ -12,3 +12,25 @@ export async function recheckPractical(practicalId: number): Promise<{ rechecked
   for (const r of rows) await checkStoredSubmission(r.id);
   return { rechecked: rows.length };
 }
+
+/**
+ * Re-run the checks of every submitted attempt of every practical: after the grading engine
+ * changed, so that stored verdicts, proposed marks and the statistics follow the engine in use.
+ * Marks a TA awarded and their comments are kept; proposed marks follow the new verdicts.
+ * `onProgress` is called after each submission (for the command's output).
+ */
+export async function recheckAll(onProgress?: (done: number, total: number) => void): Promise<{ rechecked: number; failed: { id: number; message: string }[] }> {
+  const { Submission } = models();
+  const rows = await Submission.findAll({ where: { attempt: { [Op.gt]: 0 } }, attributes: ['id'], order: [['id', 'ASC']] });
+  const failed: { id: number; message: string }[] = [];
+  let done = 0;
+  for (const r of rows) {
+    try {
+      await checkStoredSubmission(r.id);
+    } catch (error) {
+      failed.push({ id: r.id, message: error instanceof Error ? error.message : String(error) });
+    }
+    onProgress?.(++done, rows.length);
+  }
+  return { rechecked: rows.length - failed.length, failed };
+}

@@ -9,7 +9,7 @@ import crypto from 'node:crypto';
 import fs from 'node:fs';
 import { models } from '@/models';
 import { uploadPath } from '@/lib/storage';
-import { fitBand, forceConstantFromBand, bondLengthFromB, parseSpecies, simulateLineList } from '@/lib/grading';
+import { fitBandModels, forceConstantFromBand, u as ATOMIC_MASS_KG, bondLengthFromB, parseSpecies, simulateLineList } from '@/lib/grading';
 import { mulberry32, gaussian, synthesizeSpectrum, toJcampDx } from '@/lib/spectrum';
 import { checkStoredSubmission } from './check';
 
@@ -52,8 +52,10 @@ export async function seedDemoSubmissions(): Promise<{ created: number; skipped:
       const sim = simulateLineList(sp, { jMax: 9 });
       const lines = sim.map((l) => ({ species: sp, branch: l.branch, J: l.J, wavenumber: Math.round((l.wavenumber + 0.03 * noise()) * 100) / 100, intensity: l.intensity }));
       allLines.push(...lines);
-      const fit = fitBand(lines);
-      if (!fit.ok) continue;
+      // The model the lines support (with −4Dm³ where they need it), as a careful student fits.
+      const models = fitBandModels(lines);
+      if (!models.ok) continue;
+      const fit = models.fit;
       const nu0 = Math.round(fit.nu0.value * 10) / 10;
       const muKg = species.species.reducedMassKg;
       const muU = species.species.reducedMassU;
@@ -61,7 +63,7 @@ export async function seedDemoSubmissions(): Promise<{ created: number; skipped:
       let kUnit = 'N m-1';
       let kMu = muU;
       if (sp === 'H35Cl') {
-        if (plan === 'mass-numbers-used') { kMu = 35 / 36; k = forceConstantFromBand(nu0 * 100, kMu * 1.6605390666e-27); }
+        if (plan === 'mass-numbers-used') { kMu = 35 / 36; k = forceConstantFromBand(nu0 * 100, kMu * ATOMIC_MASS_KG); }
         if (plan === 'missing-2pi') k /= 4 * Math.PI ** 2;
         if (plan === 'grams-not-kilograms') k *= 1000;
         if (plan === 'unit-mismatch') kUnit = 'mdyn/Å';

@@ -9,6 +9,7 @@ import { models } from '@/models';
 import type { Practical } from '@/models/practical';
 import type { Submission } from '@/models/submission';
 import type { CheckSummary, SpectrumCheckSummary } from './check';
+import { DATA_NOTICE_CODES, describeFit, noticesOf } from './fit-words';
 
 export interface StudentQuantityView {
   key: string;
@@ -33,13 +34,15 @@ export interface StudentAttemptView {
   showVerdicts: boolean;
   formatNotes: { species: string; message: string }[];
   quantities: StudentQuantityView[];
+  /** The fit of each line list in words, and what the check noticed about it (with the verdicts). */
+  fits: { species: string; description: string; notices: { code: string; message: string }[] }[];
   spectrum: SpectrumCheckSummary | null;
   marks: { label: string; maxMarks: number; awarded: number | null; comment: string | null }[] | null;
   total: { awarded: number | null; max: number | null } | null;
   feedbackUrl: string | null;
 }
 
-const FORMAT_CODES = new Set(['missing-uncertainty', 'too-many-significant-figures', 'too-few-significant-figures']);
+const FORMAT_CODES = new Set(['missing-uncertainty', 'too-many-significant-figures', 'too-few-significant-figures', 'uncertainty-too-precise']);
 
 export async function studentAttemptView(sub: Submission, practical: Practical): Promise<StudentAttemptView> {
   const { SubmittedValue, Mark, FeedbackDocument, QuantityDefinition } = models();
@@ -57,7 +60,11 @@ export async function studentAttemptView(sub: Submission, practical: Practical):
     }
   }
   const quantities: StudentQuantityView[] = [];
+  const fits: StudentAttemptView['fits'] = [];
   for (const [sp, r] of Object.entries(summary?.species ?? {})) {
+    const notices = noticesOf(r);
+    for (const n of notices) if (DATA_NOTICE_CODES.has(n.code)) formatNotes.push({ species: sp, message: `${speciesDisplay(sp)}: ${n.message}` });
+    if (showVerdicts && r.derived?.fit) fits.push({ species: sp, description: describeFit(r.derived.fit, r.derived.fitChoice), notices: notices.filter((n) => !DATA_NOTICE_CODES.has(n.code)) });
     for (const p of r.problems) {
       if (p.field === '' || p.field.startsWith('reported.') || p.field.startsWith('measured.')) formatNotes.push({ species: sp, message: `${speciesDisplay(sp)}: ${p.message}` });
     }
@@ -104,6 +111,7 @@ export async function studentAttemptView(sub: Submission, practical: Practical):
     showVerdicts,
     formatNotes,
     quantities,
+    fits,
     spectrum: summary?.spectrum ?? null,
     marks,
     total: released ? { awarded: sub.awardedTotal ?? sub.proposedTotal, max: sub.maxTotal } : null,

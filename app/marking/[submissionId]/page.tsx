@@ -34,6 +34,8 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
     .filter((f) => f.residuals.length)
     .map((f, i) => ({
       species: f.species,
+      description: f.description,
+      notices: f.notices,
       fit: renderSvg(fitPlotModel(f), { title: `Line positions against m with the fit${f.species ? `, ${f.species}` : ''}`, idPrefix: `fit-${i}` }),
       residuals: renderSvg(residualModel(f), { title: `Residuals of the fit${f.species ? `, ${f.species}` : ''}`, idPrefix: `res-${i}` }),
     }));
@@ -117,6 +119,14 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
       {plots.map((p, i) => (
         <section key={i} aria-labelledby={`fit-heading-${i}`} className="card mb-6">
           <h2 id={`fit-heading-${i}`} className="mb-2">Line fit and residuals{p.species ? ` (${p.species})` : ''}</h2>
+          <p className="mb-2 text-sm" data-testid="fit-description">{p.description}</p>
+          {p.notices.length > 0 && (
+            <ul className="mb-2 list-disc pl-5 text-sm" data-testid="fit-notices">
+              {p.notices.map((n) => (
+                <li key={n.code} data-notice={n.code}>{n.message}</li>
+              ))}
+            </ul>
+          )}
           <div className="overflow-x-auto text-ink" dangerouslySetInnerHTML={{ __html: p.fit }} />
           <div className="overflow-x-auto text-ink" dangerouslySetInnerHTML={{ __html: p.residuals }} />
         </section>
