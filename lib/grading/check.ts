@@ -528,7 +528,7 @@ function modelNotices(lines: LineAnalysis, matched: Partial<Record<QuantityKey, 
   const { fit, alternative, choice } = lines.models;
   const used = ROTATIONAL_KEYS.map((k) => matched[k]).filter((m) => m === 'fit-with-centrifugal' || m === 'fit-without-centrifugal');
   if (used.length === 0 || !alternative) return [];
-  const p = choice.fTest ? `F-test p = ${formatNumber(choice.fTest.p, 2)}` : '';
+  const p = choice.fTest ? `F-test p ${choice.fTest.p < 1e-4 ? '< 0.0001' : `= ${formatNumber(choice.fTest.p, 2)}`}` : '';
   if (choice.reason === 'significant' && used.includes('fit-without-centrifugal') && !used.includes('fit-with-centrifugal')) {
     return [{ code: 'centrifugal-term-needed', message: `Your rotational constants follow a fit without the centrifugal term −4Dm³, but your lines need it (${p}): without it the residuals form an arc (rms ${formatNumber(alternative.rms, 2)} cm⁻¹ against ${formatNumber(fit.rms, 2)} cm⁻¹ with it) and B₀ moves by ${formatNumber((100 * (alternative.B0.value - fit.B0.value)) / fit.B0.value, 2)} %.` }];
   }

@@ -522,8 +522,9 @@ export function fitBandModels(lines: unknown, options: { species?: string | Spec
   else if (Math.sqrt(quadratic.residualSumOfSquares / n) < EXACT_RMS) choice = { model: 'quadratic', reason: 'exact', fTest };
   else if (!fTest) choice = { model: 'quadratic', reason: 'too-few-lines' };
   else choice = { model: fTest.p < CENTRIFUGAL_TEST_LEVEL ? 'cubic' : 'quadratic', reason: fTest.p < CENTRIFUGAL_TEST_LEVEL ? 'significant' : 'not-significant', fTest };
-  const q = completeFit(constantsOf(list, m, y, quadratic), options.species);
-  const c = completeFit(constantsOf(list, m, y, cubic), options.species);
+  // The model not chosen is only compared with, so its residuals are not tested for runs.
+  const q = completeFit(constantsOf(list, m, y, quadratic), options.species, choice.model === 'quadratic');
+  const c = completeFit(constantsOf(list, m, y, cubic), options.species, choice.model === 'cubic');
   return choice.model === 'cubic' ? { ok: true, fit: c, alternative: q, choice } : { ok: true, fit: q, alternative: c, choice };
 }
 
@@ -534,7 +535,7 @@ export function fitBandModels(lines: unknown, options: { species?: string | Spec
 export const MIN_DEGREES_OF_FREEDOM_FOR_ERRORS = 3;
 
 /** Residuals, bond lengths, combination differences and warnings for fitted constants. */
-function completeFit(k: BandConstantsFit, speciesOption: string | Species | undefined): BandFit {
+function completeFit(k: BandConstantsFit, speciesOption: string | Species | undefined, testRuns = true): BandFit {
   const { cubic, lines: list, m, y, solution: sol, B0, B1, Be, alphaE, D } = k;
   const n = list.length;
   const a = sol.beta[0];
@@ -570,7 +571,7 @@ function completeFit(k: BandConstantsFit, speciesOption: string | Species | unde
     r0 = { value: r0V, stdError: (r0V * B0.stdError) / (2 * B0.value) };
   }
 
-  const systematic = rms > EXACT_RMS && n >= 10 ? runsTest(residualsInOrderOfM(residuals)) : undefined;
+  const systematic = testRuns && rms > EXACT_RMS && n >= 10 ? runsTest(residualsInOrderOfM(residuals)) : undefined;
   return {
     ok: true,
     model: cubic ? 'cubic' : 'quadratic',
@@ -596,6 +597,12 @@ function completeFit(k: BandConstantsFit, speciesOption: string | Species | unde
 }
 
 function residualsInOrderOfM(residuals: LineResidual[]): number[] {
+  // Line lists usually come in order of m (P branch down, then R up, or the reverse); sort only when not.
+  let ordered = true;
+  for (let i = 1; i < residuals.length && ordered; i++) ordered = residuals[i].m > residuals[i - 1].m;
+  let descending = !ordered;
+  for (let i = 1; i < residuals.length && descending; i++) descending = residuals[i].m < residuals[i - 1].m;
+  if (ordered || descending) return residuals.map((r) => r.residual);
   const sorted = residuals.slice().sort((p, q) => p.m - q.m);
   const out = new Array<number>(sorted.length);
   for (let i = 0; i < sorted.length; i++) out[i] = sorted[i].residual;

@@ -127,11 +127,14 @@ function fits(own: OwnData): BandFit[] {
   return out;
 }
 
-/** B₀ and B₁ from the combination differences of the preferred fit's lines (with D when that fit has it). */
-function combinationDifferenceBs(own: OwnData): { B0: Estimate; B1: Estimate } | undefined {
-  const cd = own.fit?.combinationDifferences;
-  if (!cd?.B0 || !cd.B1) return undefined;
-  return { B0: cd.B0, B1: cd.B1 };
+/** B₀ and B₁ from combination differences of the lines, with D and without (as each fit has it). */
+function combinationDifferenceBs(own: OwnData): { B0: Estimate; B1: Estimate }[] {
+  const out: { B0: Estimate; B1: Estimate }[] = [];
+  for (const f of fits(own)) {
+    const cd = f.combinationDifferences;
+    if (cd.B0 && cd.B1) out.push({ B0: cd.B0, B1: cd.B1 });
+  }
+  return out;
 }
 
 const CD_SOURCE = 'your line list through combination differences: R(J−1) − P(J+1) = 4B₀(J+½), R(J) − P(J) = 4B₁(J+½)';
@@ -180,10 +183,11 @@ export function recompute(key: QuantityKey, own: OwnData): Recomputed[] {
     case 'alphaE':
     case 'D': {
       for (const f of fits(own)) out.push(fitted(f[key], fitSource(f), fitMethod(f)));
-      const cd = combinationDifferenceBs(own);
-      if (cd && key !== 'D') {
-        const v = { B0: cd.B0, B1: cd.B1, Be: combine(cd.B0, cd.B1, 1.5, -0.5), alphaE: combine(cd.B0, cd.B1, 1, -1) }[key];
-        out.push(fitted(v, CD_SOURCE, 'combination-differences'));
+      if (key !== 'D') {
+        for (const cd of combinationDifferenceBs(own)) {
+          const v = { B0: cd.B0, B1: cd.B1, Be: combine(cd.B0, cd.B1, 1.5, -0.5), alphaE: combine(cd.B0, cd.B1, 1, -1) }[key];
+          out.push(fitted(v, CD_SOURCE, 'combination-differences'));
+        }
       }
       // Bₑ and αₑ are arithmetic on the student's own B₀ and B₁ (an error in those is carried forward).
       if ((key === 'Be' || key === 'alphaE') && rep.B0 && rep.B1) {

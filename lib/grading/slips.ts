@@ -35,6 +35,7 @@ export const SLIP_CODES = [
   'anharmonicity-not-halved',
   'isotope-shift-sign',
   'ratio-without-square-root',
+  'constants-rounded',
   'power-of-ten',
   'unit-mismatch',
 ] as const;
@@ -76,6 +77,7 @@ export const SLIPS: Record<SlipCode, SlipInfo> = {
   'anharmonicity-not-halved': slip('anharmonicity-not-halved', 'ωₑxₑ not divided by 2', 'From ν̃₁←₀ = ωₑ − 2ωₑxₑ and ν̃₂←₀ = 2ωₑ − 6ωₑxₑ it follows that 2ν̃₁←₀ − ν̃₂←₀ = 2ωₑxₑ: the difference is twice the anharmonicity constant.', 'ωₑxₑ = (2ν̃₁←₀ − ν̃₂←₀)/2, ωₑ = ν̃₁←₀ + 2ωₑxₑ'),
   'isotope-shift-sign': slip('isotope-shift-sign', 'Isotope shift with the wrong sign', 'The shift is defined as ν̃₀(partner) − ν̃₀(this isotopologue): the heavier isotopologue has the lower band centre, so the shift to a heavier partner is negative.', 'Δν̃₀ = ν̃₀′ − ν̃₀ = ν̃₀(√(μ/μ′) − 1)'),
   'ratio-without-square-root': slip('ratio-without-square-root', 'Ratio of reduced masses without the square root', 'With the same force constant the wavenumber goes as 1/√μ, so the band centres are in the ratio of the square roots of the reduced masses, not of the masses themselves.', 'ν̃₀′/ν̃₀ = √(μ/μ′)'),
+  'constants-rounded': slip('constants-rounded', 'Constants rounded more than the answer', 'The number follows from rounded constants or masses (such as c = 3.00 × 10⁸ m s⁻¹, h = 6.626 × 10⁻³⁴ J s or masses to four decimals), but it is quoted to more figures than those constants carry. Use the constants to at least as many figures as the answer (CODATA 2018, AME2020), or round the answer.', 'c = 2.99792458 × 10⁸ m s⁻¹, h = 6.62607015 × 10⁻³⁴ J s, u = 1.66053906660 × 10⁻²⁷ kg'),
   'power-of-ten': slip('power-of-ten', 'Out by a power of ten', 'The digits are right but the number is out by a power of ten: check unit prefixes and conversions.', 'check prefixes: 10⁻² m = 1 cm, 10⁻¹⁰ m = 1 Å, 10⁻³ kg = 1 g'),
   'unit-mismatch': slip('unit-mismatch', 'Unit missing or wrong', 'The number is right, but the unit given with it is wrong or missing.', 'a quantity = number × unit'),
 };
@@ -160,6 +162,28 @@ export function massVariants(species: Species): MassVariant[] {
   return out;
 }
 
+/** Constants as students round them (the values a calculation with them moves towards). */
+const ROUNDED_C = [3e8, 2.998e8];
+const ROUNDED_H = [6.626e-34, 6.63e-34];
+const ROUNDED_U = [1.6605e-27, 1.661e-27, 1.66e-27];
+
+/** k = 4π²c²ν̃²μ and r = √(h/(8π²cμB)) with one constant rounded (added to `out`). */
+function pushRoundedConstants(out: SlipCandidate[], exact: number, scaling: (c: number, h: number, u: number) => number): void {
+  for (const cr of ROUNDED_C) out.push({ code: 'constants-rounded', valueSI: exact * scaling(cr / c, 1, 1), detail: `c = ${+(cr / 1e8).toPrecision(6)} × 10⁸ m s⁻¹` });
+  for (const hr of ROUNDED_H) out.push({ code: 'constants-rounded', valueSI: exact * scaling(1, hr / h, 1), detail: `h = ${+(hr / 1e-34).toPrecision(6)} × 10⁻³⁴ J s` });
+  for (const ur of ROUNDED_U) out.push({ code: 'constants-rounded', valueSI: exact * scaling(1, 1, ur / u), detail: `u = ${+(ur / 1e-27).toPrecision(6)} × 10⁻²⁷ kg` });
+}
+
+/** μ from isotopic masses rounded to four or three decimals. */
+function pushRoundedMasses(out: SlipCandidate[], species: Species): void {
+  const [a, b] = species.atoms;
+  for (const places of [4, 3]) {
+    const f = 10 ** places;
+    const muU = reducedMass(Math.round(a.massU * f) / f, Math.round(b.massU * f) / f);
+    out.push({ code: 'constants-rounded', valueSI: muU * u, detail: `isotopic masses to ${places} decimals` });
+  }
+}
+
 /** A wavenumber-based value with cm⁻¹ and m⁻¹ confused, either way (added to `out`). */
 function pushPerMetre(out: SlipCandidate[], x: number): void {
   out.push({ code: 'per-metre-per-centimetre-confusion', valueSI: x * 100 });
@@ -178,6 +202,8 @@ function pushForceConstantSlips(out: SlipCandidate[], nu: number, mu: number, sp
   out.push({ code: 'speed-of-light-in-m-per-s', valueSI: k * 1e-4 });
   out.push({ code: 'per-metre-per-centimetre-confusion', valueSI: k * 1e4 });
   if (alternativeNu !== undefined && alternativeNu > 0) out.push({ code: alternativeCode, valueSI: forceConstantFromBand(alternativeNu, mu) });
+  // k ∝ c²·u (μ in kg from μ in u); h does not enter.
+  pushRoundedConstants(out, k, (cf, hf, uf) => (hf === 1 ? cf * cf * uf : NaN));
 }
 
 /** r = √(h/(8π²cμB)) redone under each slip (added to `out`). */
@@ -191,6 +217,8 @@ function pushBondLengthSlips(out: SlipCandidate[], B: number, species: Species):
   // 8π² written as 8 (π² lost) or as 2 ((2π)² lost).
   out.push({ code: 'missing-2pi', valueSI: r * Math.PI });
   out.push({ code: 'missing-2pi', valueSI: r * 2 * Math.PI });
+  // r ∝ √(h/(c·u)).
+  pushRoundedConstants(out, r, (cf, hf, uf) => Math.sqrt(hf / (cf * uf)));
 }
 
 const hc = h * c;
@@ -204,6 +232,7 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
   switch (key) {
     case 'reducedMass':
       for (const v of massVariants(x.species)) if (v.code !== 'unified-mass-not-converted') out.push({ code: v.code, valueSI: v.muKg, detail: v.detail });
+      pushRoundedMasses(out, x.species);
       break;
     case 'forceConstant':
       if (x.nu0 !== undefined) pushForceConstantSlips(out, x.nu0, mu, x.species, x.omegaE, 'omega-e-instead-of-band-centre');

@@ -376,3 +376,68 @@ describe('units and numbers as people type them', () => {
 // Silence "unused" for helpers only some describe blocks use.
 void vibrationalTerm;
 void H37Cl;
+
+describe('rounded constants are named, not silently accepted', () => {
+  it('rₑ typed to six figures but worked with c = 2.998 × 10⁸ m s⁻¹ is outside and names the rounded constant', () => {
+    const k = PUBLISHED.H35Cl;
+    const mu = speciesMassU(k);
+    // r ∝ c^−½: CODATA 2018 c = 299792458 m/s (exact) against the rounded 2.998 × 10⁸.
+    const re = bondLengthAngstrom(k.Be, mu) * Math.sqrt(C / 2.998e8);
+    const r = checkSubmission({ species: 'H35Cl', reported: { Be: cm(k.Be, 7), re: { value: typed(re, 7), unit: 'Å' } }, tolerances: {}, requireUncertainty: false });
+    const q = entry(r, 're', 'consistency');
+    expect(q.verdict).toBe('outside');
+    expect(codes(q)).toEqual(['constants-rounded']);
+    expect(q.diagnoses[0].message).toMatch(/2\.998/);
+  });
+});
+
+describe('noisy lines, as a teaching instrument gives them (±0.05 cm⁻¹ scatter, seeded)', () => {
+  let seed = 20261202;
+  const gauss = () => {
+    const u1 = (seed = (seed * 16807) % 2147483647) / 2147483647;
+    const u2 = (seed = (seed * 16807) % 2147483647) / 2147483647;
+    return Math.sqrt(-2 * Math.log(u1)) * Math.cos(2 * Math.PI * u2);
+  };
+  const k = PUBLISHED.H35Cl;
+  const lines = fundamentalLines(k, 10, 10).map((l) => ({ ...l, wavenumber: Math.round((l.wavenumber + 0.05 * gauss()) * 100) / 100 }));
+
+  it('B₀ from the student’s own ground-state combination differences (fitted through the origin with the D term) is consistent', () => {
+    // R(J−1) − P(J+1) = (4B₀ − 6D)(J+½) − 8D(J+½)³: least squares through the origin (mathjs, normal equations).
+    const R = new Map(lines.filter((l) => l.branch === 'R').map((l) => [l.J, l.wavenumber]));
+    const P = new Map(lines.filter((l) => l.branch === 'P').map((l) => [l.J, l.wavenumber]));
+    const xs: number[] = [];
+    const ds: number[] = [];
+    for (let J = 1; J <= 9; J++) if (R.has(J - 1) && P.has(J + 1)) {
+      xs.push(J + 0.5);
+      ds.push(R.get(J - 1)! - P.get(J + 1)!);
+    }
+    const s11 = xs.reduce((a, x) => a + x * x, 0);
+    const s13 = xs.reduce((a, x) => a + x ** 4, 0);
+    const s33 = xs.reduce((a, x) => a + x ** 6, 0);
+    const t1 = xs.reduce((a, x, i) => a + x * ds[i], 0);
+    const t3 = xs.reduce((a, x, i) => a + x ** 3 * ds[i], 0);
+    const det = s11 * s33 - s13 * s13;
+    const b1 = (t1 * s33 - t3 * s13) / det;
+    const b3 = (s11 * t3 - s13 * t1) / det;
+    const D = -b3 / 8;
+    const B0 = (b1 + 6 * D) / 4;
+    expect(B0).toBeCloseTo(Bv(k, 0), 2); // Huber & Herzberg B₀ = Bₑ − αₑ/2
+    const r = checkSubmission({ species: 'H35Cl', measured: { lines }, reported: { B0: { value: typed(B0, 5), unit: 'cm-1', uncertainty: 0.002 } }, tolerances: {} });
+    expect(entry(r, 'B0', 'consistency').verdict).toBe('within');
+  });
+
+  it('the student’s own cubic least-squares constants are consistent; swapped B₀ and B₁ are not, and are named', () => {
+    const theirs = studentFit(lines, 3);
+    const ok = checkSubmission({ species: 'H35Cl', measured: { lines }, reported: { B0: cm(theirs.B0, 5), B1: cm(theirs.B1, 5), bandCentre: cm(theirs.nu0, 6) }, tolerances: {}, requireUncertainty: false });
+    for (const key of ['B0', 'B1', 'bandCentre']) expect(entry(ok, key, 'consistency').verdict, key).toBe('within');
+    const swapped = checkSubmission({ species: 'H35Cl', measured: { lines }, reported: { B0: cm(theirs.B1, 5), B1: cm(theirs.B0, 5) }, tolerances: {}, requireUncertainty: false });
+    expect(codes(entry(swapped, 'B0', 'consistency'))).toContain('b0-b1-swapped');
+  });
+
+  it('P lines numbered one too high are still found in noisy lines', () => {
+    const slipped = lines.map((l) => (l.branch === 'P' ? { ...l, J: l.J + 1 } : l));
+    const r = checkSubmission({ species: 'H35Cl', measured: { lines: slipped }, reported: { B0: cm(10.4) }, tolerances: {}, requireUncertainty: false });
+    expect(r.notices.map((n) => n.code)).toContain('p-branch-numbered-from-j-plus-1');
+    expect(r.derived.fit!.rms).toBeLessThan(0.1);
+  });
+});

@@ -52,7 +52,7 @@ const kRight = forceConstantFromBand(NU0_HCL * 100, HCl.reducedMassKg);
 
 describe('slip diagnosis: each slip rebuilt reproduces exactly its code', () => {
   it('lists every code with a title, explanation and formula', () => {
-    expect(SLIP_CODES).toHaveLength(24);
+    expect(SLIP_CODES).toHaveLength(25);
     for (const code of SLIP_CODES) {
       expect(SLIPS[code].title.length).toBeGreaterThan(5);
       expect(SLIPS[code].explanation.length).toBeGreaterThan(20);
