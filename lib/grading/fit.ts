@@ -240,7 +240,7 @@ export function nestedPolynomialLeastSquares(x: ArrayLike<number>, y: ArrayLike<
   const Y = scratchObservations(n);
   for (let i = 0; i < n; i++) {
     const t = x[i] / scale;
-    for (let k = 0; k < p; k++) X[i * p + k] = powers[k] === 0 ? 1 : powers[k] === 1 ? t : Math.pow(t, powers[k]);
+    for (let k = 0; k < p; k++) X[i * p + k] = power(t, powers[k]);
     Y[i] = y[i];
   }
   // X and Y are scratch space, free to overwrite
@@ -253,6 +253,22 @@ export function nestedPolynomialLeastSquares(x: ArrayLike<number>, y: ArrayLike<
     out.push(unscale(sol, powers, scale));
   }
   return out;
+}
+
+/** tⁿ for the small whole powers of a polynomial design (Math.pow is several times slower for these). */
+function power(t: number, n: number): number {
+  switch (n) {
+    case 0:
+      return 1;
+    case 1:
+      return t;
+    case 2:
+      return t * t;
+    case 3:
+      return t * t * t;
+    default:
+      return Math.pow(t, n);
+  }
 }
 
 /** Undo the scaling of x: βₖ was fitted against (x/scale)^powₖ, so multiply it by scale^−powₖ, and the covariance entry (i, k) by scale^−powᵢ · scale^−powₖ. */

@@ -162,16 +162,23 @@ export function massVariants(species: Species): MassVariant[] {
   return out;
 }
 
-/** Constants as students round them (the values a calculation with them moves towards). */
-const ROUNDED_C = [3e8, 2.998e8];
-const ROUNDED_H = [6.626e-34, 6.63e-34];
-const ROUNDED_U = [1.6605e-27, 1.661e-27, 1.66e-27];
+/** Constants as students round them, as factors on the exact value, with the words for the message. */
+const ROUNDED_CONSTANTS: { c: number; h: number; u: number; detail: string }[] = [
+  { c: 3e8 / c, h: 1, u: 1, detail: 'c = 3 × 10⁸ m s⁻¹' },
+  { c: 2.998e8 / c, h: 1, u: 1, detail: 'c = 2.998 × 10⁸ m s⁻¹' },
+  { c: 1, h: 6.626e-34 / h, u: 1, detail: 'h = 6.626 × 10⁻³⁴ J s' },
+  { c: 1, h: 6.63e-34 / h, u: 1, detail: 'h = 6.63 × 10⁻³⁴ J s' },
+  { c: 1, h: 1, u: 1.6605e-27 / u, detail: 'u = 1.6605 × 10⁻²⁷ kg' },
+  { c: 1, h: 1, u: 1.661e-27 / u, detail: 'u = 1.661 × 10⁻²⁷ kg' },
+  { c: 1, h: 1, u: 1.66e-27 / u, detail: 'u = 1.66 × 10⁻²⁷ kg' },
+];
 
-/** k = 4π²c²ν̃²μ and r = √(h/(8π²cμB)) with one constant rounded (added to `out`). */
+/** k = 4π²c²ν̃²μ and r = √(h/(8π²cμB)) with one constant rounded (added to `out`); NaN scalings are skipped. */
 function pushRoundedConstants(out: SlipCandidate[], exact: number, scaling: (c: number, h: number, u: number) => number): void {
-  for (const cr of ROUNDED_C) out.push({ code: 'constants-rounded', valueSI: exact * scaling(cr / c, 1, 1), detail: `c = ${+(cr / 1e8).toPrecision(6)} × 10⁸ m s⁻¹` });
-  for (const hr of ROUNDED_H) out.push({ code: 'constants-rounded', valueSI: exact * scaling(1, hr / h, 1), detail: `h = ${+(hr / 1e-34).toPrecision(6)} × 10⁻³⁴ J s` });
-  for (const ur of ROUNDED_U) out.push({ code: 'constants-rounded', valueSI: exact * scaling(1, 1, ur / u), detail: `u = ${+(ur / 1e-27).toPrecision(6)} × 10⁻²⁷ kg` });
+  for (const r of ROUNDED_CONSTANTS) {
+    const f = scaling(r.c, r.h, r.u);
+    if (Number.isFinite(f)) out.push({ code: 'constants-rounded', valueSI: exact * f, detail: r.detail });
+  }
 }
 
 /** μ from isotopic masses rounded to four or three decimals. */

@@ -105,6 +105,7 @@ const SPACE_RUN = new RegExp(`${SPACE}+`);
  * rather than silently joined.
  */
 function badDigitSpacing(text: string): string | undefined {
+  if (ALREADY_NORMAL.test(text)) return undefined;
   for (const match of text.matchAll(SPACED_DIGITS)) {
     const groups = match[0].split(SPACE_RUN);
     const before = text[match.index - 1];
