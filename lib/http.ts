@@ -4,6 +4,7 @@
  */
 import { z, type ZodType } from 'zod';
 import { HttpError } from './http-error';
+import { requestHost, requestProtocol } from './client-address';
 
 export { HttpError };
 
@@ -34,8 +35,9 @@ export function assertSameOrigin(request: Request): void {
   const origin = request.headers.get('origin');
   if (!origin) throw new HttpError(403, 'Cross-site request refused: the Origin header is missing.');
   const url = new URL(request.url);
-  const host = request.headers.get('x-forwarded-host') ?? request.headers.get('host') ?? url.host;
-  const allowed = new Set([url.origin, `${url.protocol}//${host}`]);
+  // X-Forwarded-Host only counts when a trusted proxy set it (TRUSTED_PROXIES); a client can write it too.
+  const host = requestHost(request.headers) ?? url.host;
+  const allowed = new Set([url.origin, `${requestProtocol(request.headers, url.protocol)}//${host}`]);
   if (process.env.APP_ORIGIN) allowed.add(process.env.APP_ORIGIN);
   if (!allowed.has(origin)) throw new HttpError(403, 'Cross-site request refused.');
 }

@@ -3,14 +3,11 @@ import CredentialsProvider from 'next-auth/providers/credentials';
 import { signInSchema } from '@/lib/schemas/auth';
 import { models } from '@/models';
 import { DUMMY_HASH, verifyPassword } from './password';
-import { accountSubject, addressSubject, clearFailures, isBlocked, recordFailure } from './throttle';
+import { clearFailures, isBlocked, recordFailure, signInSubjects } from './throttle';
 import { sessionSecret } from './secret';
+import { clientAddress } from '@/lib/client-address';
 
-function clientAddress(headers: Record<string, string | string[] | undefined> | undefined): string {
-  const forwarded = headers?.['x-forwarded-for'];
-  const first = Array.isArray(forwarded) ? forwarded[0] : forwarded;
-  return first?.split(',')[0]?.trim() || 'local';
-}
+const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
 
 export const authOptions: NextAuthOptions = {
   get secret() {
@@ -26,16 +23,17 @@ export const authOptions: NextAuthOptions = {
         const parsed = signInSchema.safeParse(credentials ?? {});
         if (!parsed.success) return null;
         const { email, password } = parsed.data;
-        const subjects = [accountSubject(email), addressSubject(clientAddress(req?.headers as never))];
+        const subjects = signInSubjects(email, clientAddress(req?.headers as never));
         if (await isBlocked(subjects)) throw new Error('throttled');
 
         const user = await models().User.findOne({ where: { email } });
         const ok = await verifyPassword(password, user?.passwordHash ?? DUMMY_HASH);
         if (!user || !user.passwordHash || !ok) {
-          await recordFailure(subjects);
+          const delay = await recordFailure(subjects);
+          if (delay) await sleep(delay);
           return null;
         }
-        await clearFailures(subjects[0]);
+        await clearFailures(subjects.pair);
         return { id: String(user.id), email: user.email, name: user.name, sessionVersion: user.sessionVersion };
       },
     }),

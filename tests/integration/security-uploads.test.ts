@@ -71,7 +71,7 @@ describe('spectra that expand past the limit', () => {
   it('refuses the 188-byte DUP bomb at once, and the server goes on answering', async () => {
     expect(JCAMP_DUP_BOMB.length).toBe(188);
     await expectRefused('bomb.jdx', JCAMP_DUP_BOMB, 'spectrum', 422, /expand to more than 200000 points/);
-    expect((await health(new Request('http://localhost/api/health'))).status).toBe(200);
+    expect((await health(new Request('http://localhost/api/health'), {})).status).toBe(200);
   });
 
   it('refuses the 40-million-point variant the same way', async () => {
