@@ -5,6 +5,8 @@ import { models } from '@/models';
 import { DUMMY_HASH, verifyPassword } from './password';
 import { clearFailures, isBlocked, recordFailure, signInSubjects } from './throttle';
 import { sessionSecret } from './secret';
+import { endSession, SESSION_MAX_AGE_S } from './session';
+import crypto from 'node:crypto';
 import { clientAddress } from '@/lib/client-address';
 
 const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
@@ -13,7 +15,7 @@ export const authOptions: NextAuthOptions = {
   get secret() {
     return sessionSecret();
   },
-  session: { strategy: 'jwt', maxAge: 12 * 60 * 60 },
+  session: { strategy: 'jwt', maxAge: SESSION_MAX_AGE_S },
   pages: { signIn: '/signin', error: '/signin' },
   providers: [
     CredentialsProvider({
@@ -38,12 +40,19 @@ export const authOptions: NextAuthOptions = {
       },
     }),
   ],
+  events: {
+    // Signing out ends this session on the server too, so a copy of the cookie stops working.
+    async signOut({ token }) {
+      await endSession(token?.sid, token?.sub);
+    },
+  },
   callbacks: {
     async jwt({ token, user }) {
       // Set once at sign-in and kept as the token is renewed; lib/auth/session.ts compares it with the account's.
       if (user) {
         token.sub = user.id;
         token.sv = (user as { sessionVersion?: number }).sessionVersion ?? 0;
+        token.sid = crypto.randomBytes(16).toString('hex');
       }
       return token;
     },
