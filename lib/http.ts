@@ -5,6 +5,7 @@
 import { z, type ZodType } from 'zod';
 import { HttpError } from './http-error';
 import { requestHost, requestProtocol } from './client-address';
+import { oneLine } from './schemas/text';
 
 export { HttpError };
 
@@ -119,5 +120,5 @@ export function idParam(value: string | undefined): number {
 
 export const schemas = {
   id: z.number().int().positive().max(Number.MAX_SAFE_INTEGER),
-  shortText: (max = 200) => z.string().trim().min(1, 'Required.').max(max, `At most ${max} characters.`),
+  shortText: (max = 200) => oneLine(z.string().trim().min(1, 'Required.').max(max, `At most ${max} characters.`)),
 };

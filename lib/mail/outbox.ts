@@ -34,7 +34,9 @@ export async function queueEmail(mail: QueuedMail, transaction?: Transaction): P
     {
       dedupeKey: mail.dedupeKey,
       toAddress: mail.to,
-      subject: mail.subject,
+      // One line, whatever the caller built it from: a line break would end the header early.
+      // eslint-disable-next-line no-control-regex
+      subject: mail.subject.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]+/g, ' ').slice(0, 300),
       textBody: mail.text,
       htmlBody: mail.html ?? null,
       submissionId: mail.submissionId ?? null,
