@@ -28,7 +28,7 @@ export function AccountMenu({ name, email }: { name: string; email: string }) {
       <summary className="cursor-pointer list-none rounded px-1 font-bold text-ink-soft hover:text-accent" data-testid="signed-in-as" aria-label={`Account menu for ${name}`}>
         {name} <span aria-hidden="true">▾</span>
       </summary>
-      <div className="absolute right-0 z-20 mt-2 w-72 rounded border border-rule bg-paper-raised p-3 shadow-card">
+      <div className="fixed inset-x-4 top-14 z-20 rounded border border-rule bg-paper-raised p-3 shadow-card sm:absolute sm:inset-x-auto sm:right-0 sm:top-auto sm:mt-2 sm:w-72">
         <p className="mb-2 break-all text-ink-soft">Signed in as {email}</p>
         <button type="button" className="btn-quiet w-full justify-center" onClick={everywhere} disabled={busy}>
           {busy ? 'Signing out everywhere…' : 'Sign out everywhere'}

@@ -25,14 +25,18 @@ export function uploadParseLimits(): WorkerLimits {
 
 export type OffThreadReading = { ok: true; reading: UploadReading } | { ok: false; reason: 'timeout' | 'memory' | 'failed'; message: string };
 
-/** The worker entry lives beside the sources; the app runs from the repository root (next start, tests). */
-const ENTRY = path.join(process.cwd(), 'lib', 'spectrum', 'upload-worker.mjs');
+/**
+ * The worker entry lives beside the sources; the app runs from the repository root (next start,
+ * tests). The bundler is told to leave the path alone: the worker runs the sources through tsx,
+ * not a bundled copy.
+ */
+const ENTRY = path.join(/* turbopackIgnore: true */ process.cwd(), 'lib', 'spectrum', 'upload-worker.mjs');
 
 export function readUploadOffThread(bytes: Uint8Array, name: string, wantSpectrum: boolean, limits: WorkerLimits = uploadParseLimits()): Promise<OffThreadReading> {
   return new Promise((resolve) => {
     // A copy the worker owns: the caller keeps its bytes (it hashes and stores them afterwards).
     const copy = new Uint8Array(bytes);
-    const worker = new Worker(ENTRY, {
+    const worker = new Worker(/* turbopackIgnore: true */ ENTRY, {
       workerData: { bytes: copy, name, wantSpectrum },
       transferList: [copy.buffer as ArrayBuffer],
       resourceLimits: { maxOldGenerationSizeMb: limits.maxMemoryMb, maxYoungGenerationSizeMb: 32, stackSizeMb: 4 },
