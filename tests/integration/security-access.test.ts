@@ -17,6 +17,7 @@ import { loadActor } from '@/lib/auth/session';
 import { deliverOutbox, outboxMessageId, RESEND_WINDOW_MS } from '@/lib/mail/outbox';
 import { hashPassword } from '@/lib/auth/password';
 import { models } from '@/models';
+import { uploadPath } from '@/lib/storage';
 
 let w: FixtureWorld;
 let handlers: RouteHandler[];
@@ -46,9 +47,12 @@ describe('drafts are the student\'s own until submitted (item 9)', () => {
   });
 
   it('a file uploaded to a draft is not readable by staff either; once submitted, it is', async () => {
-    const draftUpload = await models().Upload.create({ ownerId: w.people.student.id, submissionId: w.draftB.id, kind: 'report', originalName: 'draft.pdf', storedName: `${'d'.repeat(32)}.pdf`, sha256: 'x'.repeat(64), size: 1, contentType: 'application/pdf' });
+    const storedName = `${'d'.repeat(32)}.pdf`;
+    fs.writeFileSync(uploadPath(storedName), '%PDF-1.4\n%%EOF\n');
+    const draftUpload = await models().Upload.create({ ownerId: w.people.student.id, submissionId: w.draftB.id, kind: 'report', originalName: 'draft.pdf', storedName, sha256: 'x'.repeat(64), size: 15, contentType: 'application/pdf' });
     const id = String(draftUpload.id);
     expect((await call('GET /api/uploads/[id]', `/api/uploads/${id}`, w.people.ta.id, { id })).status).toBe(404);
+    expect((await call('GET /api/uploads/[id]', `/api/uploads/${id}`, w.people.student.id, { id })).status).toBe(200);
     const submitted = String(w.spectrumUpload.id);
     expect((await call('GET /api/uploads/[id]', `/api/uploads/${submitted}`, w.people.ta.id, { id: submitted })).status).toBe(200);
   });
