@@ -284,17 +284,18 @@ function csvShapeProblem(body: string, maxPoints: number): string | null {
   const maxRows = maxPoints + CSV_EXTRA_ROWS;
   let rows = 0;
   let start = 0;
-  while (start < body.length) {
-    const lf = body.indexOf('\n', start);
-    const cr = body.indexOf('\r', start);
-    let end = lf === -1 ? cr : cr === -1 ? lf : Math.min(lf, cr);
-    if (end === -1) end = body.length;
+  // One pass over the characters (searching for \r and \n separately would rescan the rest of the file per line).
+  for (let i = 0; i <= body.length; i++) {
+    const c = i < body.length ? body.charCodeAt(i) : 10;
+    if (c !== 10 && c !== 13) continue;
+    if (i === body.length && start === i) break;
     rows++;
-    if (end - start > CSV_MAX_LINE_CHARS) {
-      return `Line ${rows} of the CSV file is ${end - start} characters long; a spectrum row is two numbers (at most ${CSV_MAX_LINE_CHARS} characters).`;
+    if (i - start > CSV_MAX_LINE_CHARS) {
+      return `Line ${rows} of the CSV file is ${i - start} characters long; a spectrum row is two numbers (at most ${CSV_MAX_LINE_CHARS} characters).`;
     }
     if (rows > maxRows) return `The CSV file has more than ${maxRows} lines; a spectrum of at most ${maxPoints} points needs fewer. Export it at a coarser spacing.`;
-    start = end + (body.startsWith('\r\n', end) ? 2 : 1);
+    if (c === 13 && body.charCodeAt(i + 1) === 10) i++;
+    start = i + 1;
   }
   return null;
 }
