@@ -24,11 +24,11 @@ export function AccountMenu({ name, email }: { name: string; email: string }) {
   }
 
   return (
-    <details className="relative">
+    <details className="sm:relative">
       <summary className="cursor-pointer list-none rounded px-1 font-bold text-ink-soft hover:text-accent" data-testid="signed-in-as" aria-label={`Account menu for ${name}`}>
         {name} <span aria-hidden="true">▾</span>
       </summary>
-      <div className="fixed inset-x-4 top-14 z-20 rounded border border-rule bg-paper-raised p-3 shadow-card sm:absolute sm:inset-x-auto sm:right-0 sm:top-auto sm:mt-2 sm:w-72">
+      <div className="absolute inset-x-4 z-20 mt-2 rounded border border-rule bg-paper-raised p-3 shadow-card sm:inset-x-auto sm:right-0 sm:w-72">
         <p className="mb-2 break-all text-ink-soft">Signed in as {email}</p>
         <button type="button" className="btn-quiet w-full justify-center" onClick={everywhere} disabled={busy}>
           {busy ? 'Signing out everywhere…' : 'Sign out everywhere'}
