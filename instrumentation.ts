@@ -1,6 +1,9 @@
-/** Runs once when the server starts: the outbox worker resumes any mail left queued, and files left without a row are swept. */
+/** Runs once when the server starts: forwarding headers are guarded (lib/client-address.ts), the outbox worker resumes any mail left queued, and files left without a row are swept. */
 export async function register() {
   if (process.env.NEXT_RUNTIME !== 'nodejs') return;
+  // First: forwarding headers a client wrote itself are dropped before any request is handled.
+  const { guardForwardedHeaders } = await import('./lib/client-address');
+  await guardForwardedHeaders();
   if (process.env.STORAGE_SWEEP !== 'off') {
     const { startStorageSweeper } = await import('./lib/storage-sweep');
     startStorageSweeper();

@@ -16,12 +16,32 @@ const securityHeaders = [
       "font-src 'self' data:",
       "connect-src 'self'",
       "frame-src 'self'",
-      "object-src 'self'",
+      "object-src 'none'",
       "frame-ancestors 'none'",
       "base-uri 'self'",
       "form-action 'self'",
     ].join('; '),
   },
+];
+
+/**
+ * Files people uploaded (and PDFs built from their text) get a policy of their own: sandboxed (no
+ * script, no plugins, an opaque origin), nothing loaded, never sniffed as another type. Headers set
+ * here replace those a route handler sets, so these rules, listed after the site-wide one, are what
+ * the browser gets. The student's report PDF is shown in a frame on the marking page, so those
+ * responses may be framed by this site (not by others); generated feedback PDFs open in a tab.
+ */
+const userFileHeaders = (framedByThisSite) => [
+  { key: 'X-Frame-Options', value: framedByThisSite ? 'SAMEORIGIN' : 'DENY' },
+  { key: 'Content-Security-Policy', value: `sandbox; default-src 'none'; object-src 'none'; frame-ancestors ${framedByThisSite ? "'self'" : "'none'"}` },
+  { key: 'X-Content-Type-Options', value: 'nosniff' },
+  { key: 'Cross-Origin-Resource-Policy', value: 'same-origin' },
+];
+export const USER_FILE_ROUTES = [
+  { source: '/api/marking/:submissionId/report', framed: true },
+  { source: '/api/uploads/:id', framed: true },
+  { source: '/api/marking/:submissionId/preview', framed: false },
+  { source: '/api/submissions/:id/feedback', framed: false },
 ];
 
 const nextConfig = {
@@ -32,16 +52,7 @@ const nextConfig = {
   async headers() {
     return [
       { source: '/:path*', headers: securityHeaders },
-      // A student's report PDF is shown in a frame on the marking page, so this one response may be
-      // framed by this site (not by others), and stays sandboxed with nothing else loaded. Headers set
-      // here replace those a route handler sets, so the route's own policy is repeated in full.
-      {
-        source: '/api/marking/:submissionId/report',
-        headers: [
-          { key: 'X-Frame-Options', value: 'SAMEORIGIN' },
-          { key: 'Content-Security-Policy', value: "sandbox; default-src 'none'; frame-ancestors 'self'" },
-        ],
-      },
+      ...USER_FILE_ROUTES.map(({ source, framed }) => ({ source, headers: userFileHeaders(framed) })),
     ];
   },
 };

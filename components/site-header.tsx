@@ -2,6 +2,7 @@ import Link from 'next/link';
 import { currentActor } from '@/lib/authz';
 import { homesFor } from '@/lib/homes';
 import { SignOutButton } from './sign-out-button';
+import { AccountMenu } from './account-menu';
 import { Wordmark } from './wordmark';
 
 export async function SiteHeader() {
@@ -24,7 +25,7 @@ export async function SiteHeader() {
         )}
         {actor && (
           <div className="ml-auto flex items-center gap-3 text-sm">
-            <span className="text-ink-soft" data-testid="signed-in-as">{actor.name}</span>
+            <AccountMenu name={actor.name} email={actor.email} />
             <SignOutButton />
           </div>
         )}

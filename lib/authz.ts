@@ -9,7 +9,16 @@ import { HttpError } from './http-error';
 
 export type { Actor };
 
-type SubmissionScope = { courseId: number; cohortId: number; studentId: number };
+type SubmissionScope = {
+  courseId: number;
+  cohortId: number;
+  studentId: number;
+  /**
+   * The row is an unsubmitted draft. A draft is the student's own until it is submitted: nobody
+   * else reads or marks it, staff and administrators included, and to them it does not exist (404).
+   */
+  draft?: boolean;
+};
 
 export type Access =
   | { kind: 'signed-in' }
@@ -52,6 +61,9 @@ export function can(actor: Actor | null, access: Access): boolean {
       actor.memberships.some((m) => m.courseId === access.courseId && m.role === 'student' && m.cohortId === access.cohortId)
     );
   }
+  if ((access.kind === 'submission-read' || access.kind === 'submission-mark') && access.draft) {
+    return access.kind === 'submission-read' && actor.id === access.studentId;
+  }
   if (actor.isAdmin) return true;
 
   const roles = rolesIn(actor, access.courseId);
@@ -76,16 +88,37 @@ export function can(actor: Actor | null, access: Access): boolean {
   }
 }
 
+/**
+ * The courses in which the actor may do a course-wide duty, page and API alike. The site
+ * administrator holds every duty in every course (README: "everything"), so moderation, set-up and
+ * staff views list every open course for them, not only courses they are a member of.
+ */
+export async function coursesWhere(actor: Actor, kind: 'moderate' | 'course-manage' | 'course-staff'): Promise<number[]> {
+  const { models } = await import('@/models');
+  const candidates = actor.isAdmin
+    ? (await models().Course.findAll({ where: { archivedAt: null }, attributes: ['id'], order: [['code', 'ASC']] })).map((c) => c.id)
+    : [...new Set(actor.memberships.map((m) => m.courseId))];
+  return candidates.filter((courseId) => can(actor, { kind, courseId }));
+}
+
 /** The signed-in person behind a request, or null. */
 export async function actorFromRequest(request: Request): Promise<Actor | null> {
   return actorFromSessionToken(sessionTokenFromCookieHeader(request.headers.get('cookie')));
 }
 
-/** For route handlers: returns the actor, or throws 401 (not signed in) / 403 (not allowed). */
-export async function authorize(request: Request, access: Access = { kind: 'signed-in' }): Promise<Actor> {
+/**
+ * For route handlers, before anything is looked up: the signed-in actor, or 401. A signed-out
+ * caller then learns nothing from the answer (no 404 for a missing id beside a 401 for an existing one).
+ */
+export async function authenticate(request: Request): Promise<Actor> {
   const actor = await actorFromRequest(request);
   if (!actor) throw new HttpError(401, 'Sign in to continue.');
-  return permit(actor, access);
+  return actor;
+}
+
+/** For route handlers: returns the actor, or throws 401 (not signed in) / 403 (not allowed). */
+export async function authorize(request: Request, access: Access = { kind: 'signed-in' }): Promise<Actor> {
+  return permit(await authenticate(request), access);
 }
 
 /**
@@ -93,19 +126,26 @@ export async function authorize(request: Request, access: Access = { kind: 'sign
  * request is about (the submission's cohort, each item of a batch): 403 unless allowed.
  */
 export function permit(actor: Actor, access: Access): Actor {
-  if (!can(actor, access)) throw new HttpError(403, 'You do not have permission for this.');
+  if (!can(actor, access)) {
+    // Someone else's draft is not there for the caller at all, as on the marking pages.
+    if ((access.kind === 'submission-read' || access.kind === 'submission-mark') && access.draft) throw new HttpError(404, 'Not found.');
+    throw new HttpError(403, 'You do not have permission for this.');
+  }
   return actor;
 }
 
 /** For pages and server actions: redirects to sign-in or to the not-permitted page. */
 export async function authorizePage(access: Access = { kind: 'signed-in' }): Promise<Actor> {
   const { cookies } = await import('next/headers');
-  const { redirect } = await import('next/navigation');
+  const { notFound, redirect } = await import('next/navigation');
   const jar = await cookies();
   const token = SESSION_COOKIES.map((n) => jar.get(n)?.value).find(Boolean) ?? null;
   const actor = await actorFromSessionToken(token);
   if (!actor) redirect('/signin');
-  if (!can(actor, access)) redirect('/not-permitted');
+  if (!can(actor, access)) {
+    if ((access.kind === 'submission-read' || access.kind === 'submission-mark') && access.draft) notFound();
+    redirect('/not-permitted');
+  }
   return actor as Actor;
 }
 

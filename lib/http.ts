@@ -4,6 +4,8 @@
  */
 import { z, type ZodType } from 'zod';
 import { HttpError } from './http-error';
+import { requestHost, requestProtocol } from './client-address';
+import { oneLine } from './schemas/text';
 
 export { HttpError };
 
@@ -34,8 +36,9 @@ export function assertSameOrigin(request: Request): void {
   const origin = request.headers.get('origin');
   if (!origin) throw new HttpError(403, 'Cross-site request refused: the Origin header is missing.');
   const url = new URL(request.url);
-  const host = request.headers.get('x-forwarded-host') ?? request.headers.get('host') ?? url.host;
-  const allowed = new Set([url.origin, `${url.protocol}//${host}`]);
+  // X-Forwarded-Host only counts when a trusted proxy set it (TRUSTED_PROXIES); a client can write it too.
+  const host = requestHost(request.headers) ?? url.host;
+  const allowed = new Set([url.origin, `${requestProtocol(request.headers, url.protocol)}//${host}`]);
   if (process.env.APP_ORIGIN) allowed.add(process.env.APP_ORIGIN);
   if (!allowed.has(origin)) throw new HttpError(403, 'Cross-site request refused.');
 }
@@ -117,5 +120,5 @@ export function idParam(value: string | undefined): number {
 
 export const schemas = {
   id: z.number().int().positive().max(Number.MAX_SAFE_INTEGER),
-  shortText: (max = 200) => z.string().trim().min(1, 'Required.').max(max, `At most ${max} characters.`),
+  shortText: (max = 200) => oneLine(z.string().trim().min(1, 'Required.').max(max, `At most ${max} characters.`)),
 };

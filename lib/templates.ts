@@ -24,9 +24,15 @@ export function fill(text: string, values: Record<string, string | number>): str
   });
 }
 
+/** A value as it may stand in a header: control characters and line breaks become one space. */
+// eslint-disable-next-line no-control-regex
+const oneLine = (v: string | number) => String(v).replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]+/g, ' ');
+
 export function renderEmail(name: string, values: Record<string, string | number>): { subject: string; text: string } {
-  const filled = fill(templateText(`email/${name}.txt`), values);
-  const [first, ...rest] = filled.split('\n');
+  // The subject line is split off before filling, and filled with one-line values: a title holding a
+  // line break (stored before such titles were refused) must not cut the subject short.
+  const [first, ...rest] = templateText(`email/${name}.txt`).split('\n');
   if (!first.startsWith('Subject: ')) throw new Error(`E-mail template ${name} must start with "Subject: "`);
-  return { subject: first.slice('Subject: '.length).trim(), text: rest.join('\n').replace(/^\n+/, '') };
+  const subject = fill(first.slice('Subject: '.length), Object.fromEntries(Object.entries(values).map(([k, v]) => [k, oneLine(v)])));
+  return { subject: subject.trim(), text: fill(rest.join('\n'), values).replace(/^\n+/, '') };
 }

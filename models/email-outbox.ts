@@ -21,6 +21,8 @@ export class EmailOutbox extends Model<InferAttributes<EmailOutbox>, InferCreati
   declare lastError: string | null;
   declare messageId: string | null;
   declare sentAt: Date | null;
+  /** When staff last asked for it to be sent again (one resend per row within RESEND_WINDOW_MS). */
+  declare resentAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -30,7 +32,7 @@ export class EmailOutbox extends Model<InferAttributes<EmailOutbox>, InferCreati
         id: col.id, dedupeKey: col.str(200), toAddress: col.str(254), subject: col.str(300), textBody: col.text(),
         htmlBody: col.text(true), feedbackDocumentId: col.fk(true), submissionId: col.fk(true),
         status: { ...col.str(20), defaultValue: 'queued' }, attempts: col.int(0), nextAttemptAt: col.date(false),
-        lockedUntil: col.date(), lastError: col.text(true), messageId: col.str(300, true), sentAt: col.date(),
+        lockedUntil: col.date(), lastError: col.text(true), messageId: col.str(300, true), sentAt: col.date(), resentAt: col.date(),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
       { sequelize, modelName: 'EmailOutbox', tableName: 'email_outbox' },

@@ -21,11 +21,12 @@ import { EmailOutbox } from './email-outbox';
 import { AuditEntry } from './audit-entry';
 import { OneTimeToken } from './one-time-token';
 import { SignInFailure } from './sign-in-failure';
+import { EndedSession } from './ended-session';
 
 const all = {
   User, Course, Cohort, CourseMembership, TaAssignment, Practical, PracticalCohort, QuantityDefinition,
   ToleranceBand, Submission, SubmittedValue, LineAssignment, Upload, CheckResult, SlipFinding, Mark,
-  Moderation, FeedbackDocument, EmailOutbox, AuditEntry, OneTimeToken, SignInFailure,
+  Moderation, FeedbackDocument, EmailOutbox, AuditEntry, OneTimeToken, SignInFailure, EndedSession,
 };
 
 let boundTo: unknown = null;
@@ -74,5 +75,5 @@ export function models() {
 export {
   User, Course, Cohort, CourseMembership, TaAssignment, Practical, PracticalCohort, QuantityDefinition,
   ToleranceBand, Submission, SubmittedValue, LineAssignment, Upload, CheckResult, SlipFinding, Mark,
-  Moderation, FeedbackDocument, EmailOutbox, AuditEntry, OneTimeToken, SignInFailure,
+  Moderation, FeedbackDocument, EmailOutbox, AuditEntry, OneTimeToken, SignInFailure, EndedSession,
 };

@@ -33,9 +33,11 @@ if (process.env.SKIP_BUILD !== '1') {
   run('npx', ['next', 'build'], env);
 }
 
+const DEMO_HOST = process.env.HOST || '127.0.0.1';
 const children = [
   spawn(process.execPath, ['scripts/maildev.mjs', '1025', '1080'], { stdio: ['ignore', 'ignore', 'inherit'] }),
-  spawn('npx', ['next', 'start', '-p', '3000'], { stdio: 'inherit', env: { ...process.env, ...env } }),
+  // Loopback only unless HOST says otherwise: the demo accounts share a published password.
+  spawn('npx', ['next', 'start', '-p', '3000', '-H', DEMO_HOST], { stdio: 'inherit', env: { ...process.env, ...env } }),
 ];
 const stop = () => { for (const c of children) c.kill('SIGTERM'); process.exit(0); };
 process.on('SIGINT', stop);
@@ -52,7 +54,7 @@ const accounts = [
 setTimeout(() => {
   console.log('\n────────────────────────────────────────────────────────────');
   console.log(' Oscillab demo is running');
-  console.log('   App:        http://localhost:3000   (sign in there)');
+  console.log(`   App:        http://localhost:3000   (sign in there; listening on ${DEMO_HOST} only)`);
   console.log('   Mail inbox: http://localhost:1080   (invitations and feedback land here)');
   console.log(`   Password for every demo account: ${DEMO_PASSWORD}`);
   for (const [role, email] of accounts) console.log(`   ${role.padEnd(44)} ${email}`);

@@ -1,5 +1,5 @@
 import { redirect } from 'next/navigation';
-import { authorizePage, can } from '@/lib/authz';
+import { authorizePage, coursesWhere } from '@/lib/authz';
 import { PageHeader } from '@/components/ui/page-header';
 import { ModerationBoard } from '@/components/marking/moderation-board';
 import { models } from '@/models';
@@ -9,7 +9,8 @@ export const dynamic = 'force-dynamic';
 
 export default async function ModerationPage({ searchParams }: { searchParams: Promise<{ courseId?: string }> }) {
   const actor = await authorizePage({ kind: 'signed-in' });
-  const ids = [...new Set(actor.memberships.map((m) => m.courseId))].filter((courseId) => can(actor, { kind: 'moderate', courseId }));
+  // The same rule as GET /api/moderation: lib/authz.ts decides, the administrator included.
+  const ids = await coursesWhere(actor, 'moderate');
   if (!ids.length) redirect('/not-permitted');
   const courses = await models().Course.findAll({ where: { id: ids }, order: [['code', 'ASC']] });
   const wanted = Number((await searchParams).courseId);

@@ -61,7 +61,7 @@ export function RosterImport({ courseId, onImported }: { courseId: number; onImp
                   <td className="num">{r.line}</td>
                   <td><span className={`inline-flex gap-1 rounded px-2 py-0.5 text-sm font-bold ${STATUS[r.status].cls}`}><span aria-hidden="true">{STATUS[r.status].symbol}</span>{STATUS[r.status].word}</span></td>
                   <td>{r.name}</td><td>{r.email}</td><td className="num">{r.studentNumber}</td><td>{r.cohort}</td>
-                  <td>{[r.reason, ...(r.notes ?? []), r.status === 'new' ? (r.newAccount ? 'New account, will be invited.' : 'Existing account.') : ''].filter(Boolean).join(' ')}</td>
+                  <td>{[r.reason, ...(r.notes ?? []), r.status === 'new' ? 'Will be enrolled; invited by e-mail if they have not set a password yet.' : ''].filter(Boolean).join(' ')}</td>
                 </tr>
               ))}
             </tbody>

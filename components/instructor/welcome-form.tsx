@@ -33,7 +33,7 @@ export function WelcomeForm({ token, email }: { token: string; email: string }) 
       <div>
         <label htmlFor="new-password" className="label">New password</label>
         <input id="new-password" type="password" autoComplete="new-password" className="field" aria-describedby="new-password-hint" {...register('password')} />
-        <p id="new-password-hint" className="hint">At least 10 characters, with at least 4 different characters.</p>
+        <p id="new-password-hint" className="hint">At least 12 characters, with at least 4 different characters, and not a commonly used password.</p>
       </div>
       <div>
         <label htmlFor="confirm-password" className="label">The same password again</label>

@@ -3,20 +3,19 @@ import CredentialsProvider from 'next-auth/providers/credentials';
 import { signInSchema } from '@/lib/schemas/auth';
 import { models } from '@/models';
 import { DUMMY_HASH, verifyPassword } from './password';
-import { accountSubject, addressSubject, clearFailures, isBlocked, recordFailure } from './throttle';
+import { clearFailures, isBlocked, recordFailure, signInSubjects } from './throttle';
 import { sessionSecret } from './secret';
+import { endSession, SESSION_MAX_AGE_S } from './session';
+import crypto from 'node:crypto';
+import { clientAddress } from '@/lib/client-address';
 
-function clientAddress(headers: Record<string, string | string[] | undefined> | undefined): string {
-  const forwarded = headers?.['x-forwarded-for'];
-  const first = Array.isArray(forwarded) ? forwarded[0] : forwarded;
-  return first?.split(',')[0]?.trim() || 'local';
-}
+const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
 
 export const authOptions: NextAuthOptions = {
   get secret() {
     return sessionSecret();
   },
-  session: { strategy: 'jwt', maxAge: 12 * 60 * 60 },
+  session: { strategy: 'jwt', maxAge: SESSION_MAX_AGE_S },
   pages: { signIn: '/signin', error: '/signin' },
   providers: [
     CredentialsProvider({
@@ -26,26 +25,34 @@ export const authOptions: NextAuthOptions = {
         const parsed = signInSchema.safeParse(credentials ?? {});
         if (!parsed.success) return null;
         const { email, password } = parsed.data;
-        const subjects = [accountSubject(email), addressSubject(clientAddress(req?.headers as never))];
+        const subjects = signInSubjects(email, clientAddress(req?.headers as never));
         if (await isBlocked(subjects)) throw new Error('throttled');
 
         const user = await models().User.findOne({ where: { email } });
         const ok = await verifyPassword(password, user?.passwordHash ?? DUMMY_HASH);
         if (!user || !user.passwordHash || !ok) {
-          await recordFailure(subjects);
+          const delay = await recordFailure(subjects);
+          if (delay) await sleep(delay);
           return null;
         }
-        await clearFailures(subjects[0]);
+        await clearFailures(subjects.pair);
         return { id: String(user.id), email: user.email, name: user.name, sessionVersion: user.sessionVersion };
       },
     }),
   ],
+  events: {
+    // Signing out ends this session on the server too, so a copy of the cookie stops working.
+    async signOut({ token }) {
+      await endSession(token?.sid, token?.sub);
+    },
+  },
   callbacks: {
     async jwt({ token, user }) {
       // Set once at sign-in and kept as the token is renewed; lib/auth/session.ts compares it with the account's.
       if (user) {
         token.sub = user.id;
         token.sv = (user as { sessionVersion?: number }).sessionVersion ?? 0;
+        token.sid = crypto.randomBytes(16).toString('hex');
       }
       return token;
     },

@@ -16,7 +16,8 @@ import { queueEmail } from '@/lib/mail/outbox';
 import { renderEmail } from '@/lib/templates';
 import { HttpError } from '@/lib/http-error';
 import { audit } from '@/lib/audit';
-import { accountSubject } from '@/lib/auth/throttle';
+import { accountSubject, countOne } from '@/lib/auth/throttle';
+import { clientAddress } from '@/lib/client-address';
 import { appOrigin, findLink, issueLink, linkState, setPasswordWithLink, type LinkState } from '@/lib/auth/one-time-link';
 
 export const RESET_MINUTES = 60;
@@ -41,9 +42,9 @@ export function minimumAnswerMs(): number {
 export const resetAccountSubject = (email: string) => `reset:${email.trim().toLowerCase()}`;
 export const resetClientSubject = (client: string) => `reset-from:${client}`;
 
-/** The client address as the sign-in throttle sees it (first X-Forwarded-For entry, set by the proxy in front). */
+/** The client address as the sign-in throttle sees it (lib/client-address.ts: the connection, or what a trusted proxy says). */
 export function clientOf(request: Request): string {
-  return request.headers.get('x-forwarded-for')?.split(',')[0]?.trim() || 'local';
+  return clientAddress(request.headers);
 }
 
 type Limit = { subject: string; allowed: number };
@@ -60,12 +61,8 @@ async function takeAllowance(limits: Limit[], now: Date): Promise<boolean> {
       return false;
     }
   }
-  for (const limit of limits) {
-    const row = rows.find((r) => r.subject === limit.subject);
-    if (!row) await SignInFailure.create({ subject: limit.subject, failures: 1, firstFailureAt: now, blockedUntil: null });
-    else if (!fresh(row)) await row.update({ failures: 1, firstFailureAt: now, blockedUntil: null });
-    else await row.update({ failures: row.failures + 1 });
-  }
+  // One atomic statement per counter, so parallel requests never lose a count.
+  for (const limit of limits) await countOne(limit.subject, now, WINDOW_MS);
   return true;
 }
 

@@ -1,8 +1,9 @@
 import { decode } from 'next-auth/jwt';
-import { QueryTypes } from 'sequelize';
+import { Op, QueryTypes } from 'sequelize';
 import { sequelize } from '@/lib/db';
 import type { CourseRole } from '@/models/course-membership';
 import { sessionSecret } from './secret';
+import { models } from '@/models';
 
 export const SESSION_COOKIES = ['__Secure-next-auth.session-token', 'next-auth.session-token'];
 
@@ -43,24 +44,54 @@ export async function actorFromSessionToken(token: string | null): Promise<Actor
   }
   const id = Number(payload?.sub);
   const version = payload?.sv;
-  if (!Number.isInteger(id) || id <= 0 || typeof version !== 'number') return null;
-  return loadActor(id, version);
+  const sid = payload?.sid;
+  // Every session token carries its own id (sid), so signing out can end exactly that session.
+  if (!Number.isInteger(id) || id <= 0 || typeof version !== 'number' || typeof sid !== 'string' || !SESSION_ID.test(sid)) return null;
+  return loadActor(id, version, sid);
+}
+
+/** A session id as issued at sign-in: 32 hex digits. */
+export const SESSION_ID = /^[a-f0-9]{32}$/;
+/** How long a session token lives (next-auth's maxAge); an ended session is remembered this long. */
+export const SESSION_MAX_AGE_S = 12 * 60 * 60;
+
+/**
+ * Ends one session: its id is recorded until the token would have expired, so the cookie (and any
+ * copy of it) no longer authorises anything. Old entries are removed on the way.
+ */
+export async function endSession(sid: unknown, userId: unknown, now = new Date()): Promise<void> {
+  if (typeof sid !== 'string' || !SESSION_ID.test(sid)) return;
+  const { EndedSession } = models();
+  const uid = Number(userId);
+  await EndedSession.destroy({ where: { expiresAt: { [Op.lt]: now } } });
+  await EndedSession.findOrCreate({
+    where: { sessionId: sid },
+    defaults: { sessionId: sid, userId: Number.isInteger(uid) && uid > 0 ? uid : null, expiresAt: new Date(now.getTime() + SESSION_MAX_AGE_S * 1000) },
+  });
+}
+
+/** "Sign out everywhere": raises the account's session version, which ends every session it has, on every instance. */
+export async function endAllSessions(userId: number): Promise<void> {
+  await models().User.increment('sessionVersion', { by: 1, where: { id: userId } });
 }
 
 /**
  * The actor for a user id. With `sessionVersion` (from a session token) a token signed in before
  * the account's sessions were ended (a password was set since) gives null.
  */
-export async function loadActor(userId: number, sessionVersion?: number): Promise<Actor | null> {
+export async function loadActor(userId: number, sessionVersion?: number, sessionId?: string): Promise<Actor | null> {
   // Runs on every request, so plain SELECTs of the few columns needed rather than model queries
   // (measured in-process on SQLite: a findByPk about 1.4 ms of CPU, a plain SELECT about 0.5 ms).
   const db = sequelize();
-  const select = <T extends object>(sql: string) => db.query<T>(sql, { replacements: { userId }, type: QueryTypes.SELECT });
-  const [user] = await select<{ id: number; email: string; name: string; isAdmin: number | boolean; sessionVersion: number }>(
-    'SELECT "id", "email", "name", "isAdmin", "sessionVersion" FROM "users" WHERE "id" = :userId',
+  const select = <T extends object>(sql: string) => db.query<T>(sql, { replacements: { userId, sessionId: sessionId ?? '' }, type: QueryTypes.SELECT });
+  const [user] = await select<{ id: number; email: string; name: string; isAdmin: number | boolean; sessionVersion: number; ended: number | null }>(
+    `SELECT "id", "email", "name", "isAdmin", "sessionVersion",
+       ${sessionId !== undefined ? '(SELECT 1 FROM "ended_sessions" WHERE "sessionId" = :sessionId)' : 'NULL'} AS "ended"
+     FROM "users" WHERE "id" = :userId`,
   );
   if (!user) return null;
   if (sessionVersion !== undefined && sessionVersion !== Number(user.sessionVersion)) return null;
+  if (user.ended !== null && user.ended !== undefined) return null;
   const [memberships, duties] = await Promise.all([
     select<Membership>('SELECT "courseId", "role", "cohortId" FROM "course_memberships" WHERE "userId" = :userId ORDER BY "id"'),
     select<TaDuty>('SELECT "cohortId", "studentId" FROM "ta_assignments" WHERE "taId" = :userId ORDER BY "id"'),

@@ -7,6 +7,8 @@
 import katex from 'katex';
 import { marked } from 'marked';
 import sanitizeHtml from 'sanitize-html';
+import crypto from 'node:crypto';
+import { instructionsProblem, MATH } from '@/lib/schemas/instructions';
 
 const MATHML = [
   'math', 'semantics', 'annotation', 'mrow', 'mi', 'mo', 'mn', 'ms', 'mtext', 'mspace', 'msup', 'msub', 'msubsup', 'mfrac',
@@ -20,6 +22,8 @@ const SANITIZE: sanitizeHtml.IOptions = {
     a: ['href', 'title'],
     img: ['src', 'alt', 'title'],
     span: ['class', 'style', 'aria-hidden'],
+    p: ['class', 'role'],
+    code: ['class', 'title'],
     svg: ['xmlns', 'width', 'height', 'viewbox', 'viewBox', 'preserveaspectratio', 'preserveAspectRatio', 'style'],
     path: ['d'],
     line: ['x1', 'x2', 'y1', 'y2', 'stroke-width'],
@@ -47,20 +51,60 @@ const SANITIZE: sanitizeHtml.IOptions = {
   },
 };
 
-const MATH = /\$\$([\s\S]+?)\$\$|(?<![\\$])\$(?!\s)((?:\\\$|[^$\n])+?)(?<!\s)\$/g;
-
-function renderFormula(tex: string, displayMode: boolean): string {
-  return katex.renderToString(tex, { displayMode, throwOnError: false, strict: 'ignore', trust: false, maxSize: 50, maxExpand: 500, output: 'htmlAndMathml' });
+function escapeHtml(text: string): string {
+  return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
 }
 
-/** Markdown + KaTeX → safe HTML. */
-export function renderInstructions(markdown: string): string {
+/** A notice in place of what could not be rendered, in words a reader can act on. */
+function notice(message: string): string {
+  return `<p class="render-problem" role="note"><strong>Not shown:</strong> ${escapeHtml(message)}</p>`;
+}
+
+function renderFormula(tex: string, displayMode: boolean): string {
+  try {
+    return katex.renderToString(tex, { displayMode, throwOnError: false, strict: 'ignore', trust: false, maxSize: 50, maxExpand: 500, output: 'htmlAndMathml' });
+  } catch {
+    // throwOnError covers syntax; anything else (a renderer limit) still must not fail the page.
+    return `<code class="render-problem" title="This formula could not be typeset">${escapeHtml(tex)}</code>`;
+  }
+}
+
+function render(markdown: string): string {
+  const problem = instructionsProblem(markdown);
+  if (problem) {
+    // Text stored before the bounds existed: shown as plain text with the reason, never a server error.
+    return `${notice(`the instructions could not be formatted. ${problem}`)}<pre class="whitespace-pre-wrap">${escapeHtml(markdown.slice(0, 50_000))}</pre>`;
+  }
   const formulas: string[] = [];
   const withSlots = markdown.replace(MATH, (_, display: string | undefined, inline: string | undefined) => {
     formulas.push(display !== undefined ? renderFormula(display.trim(), true) : renderFormula(inline!, false));
     return `OSCMATH${formulas.length - 1}END`;
   });
-  const html = marked.parse(withSlots, { async: false, gfm: true }) as string;
+  let html: string;
+  try {
+    html = marked.parse(withSlots, { async: false, gfm: true }) as string;
+  } catch {
+    return `${notice('the instructions could not be formatted; they are shown as plain text.')}<pre class="whitespace-pre-wrap">${escapeHtml(markdown)}</pre>`;
+  }
   const filled = html.replace(/OSCMATH(\d+)END/g, (_, i: string) => formulas[Number(i)] ?? '');
   return sanitizeHtml(filled, SANITIZE);
+}
+
+/** Rendered instructions by content: the same text is shown to every student of a practical. */
+const cache = new Map<string, string>();
+const CACHE_ENTRIES = 200;
+
+/** Markdown + KaTeX → safe HTML. Never throws: what cannot be rendered is shown as a readable notice. */
+export function renderInstructions(markdown: string): string {
+  const key = crypto.createHash('sha256').update(markdown).digest('base64');
+  const hit = cache.get(key);
+  if (hit !== undefined) {
+    cache.delete(key);
+    cache.set(key, hit); // most recently used last
+    return hit;
+  }
+  const html = render(markdown);
+  cache.set(key, html);
+  if (cache.size > CACHE_ENTRIES) cache.delete(cache.keys().next().value!);
+  return html;
 }

@@ -33,8 +33,6 @@ export type RosterRow = {
   studentNumber: string;
   cohort: string;
   status: RowStatus;
-  /** For 'new': whether an account is created (and invited) or an existing one enrolled. */
-  newAccount?: boolean;
   reason?: string;
   /** Cells that began like a spreadsheet formula and were neutralised. */
   notes?: string[];
@@ -117,6 +115,10 @@ export async function previewRoster(courseId: number, parsed: ParsedRow[], trans
   const numbers = [...new Set(parsed.map((r) => r.cells.studentNumber).filter(Boolean))];
   const users = await User.findAll({ where: { [Op.or]: [{ email: emails }, { studentNumber: numbers }] }, transaction });
   const memberships = await CourseMembership.findAll({ where: { courseId, userId: users.map((u) => u.id) }, transaction });
+  // The preview tells the course only about its own people: whether an address has an account
+  // elsewhere, and that account's student number, are not the course's to know.
+  const inCourse = new Set(memberships.map((m) => m.userId));
+  const MISMATCH = 'The e-mail and student number do not match the records held for this student; check both against the student record, or ask the site administrator.';
 
   const seen = new Map<string, number>();
   const seenNumber = new Map<string, number>();
@@ -146,9 +148,11 @@ export async function previewRoster(courseId: number, parsed: ParsedRow[], trans
     const cohort = matching[0];
     const user = users.find((u) => u.email.toLowerCase() === email);
     const byNumber = users.find((u) => u.studentNumber === r.cells.studentNumber);
-    if (byNumber && byNumber.id !== user?.id) return invalid(`Student number ${r.cells.studentNumber} belongs to another account.`);
+    if (byNumber && byNumber.id !== user?.id) {
+      return invalid(inCourse.has(byNumber.id) ? `Student number ${r.cells.studentNumber} belongs to someone else in this course.` : MISMATCH);
+    }
     if (user?.studentNumber && user.studentNumber !== r.cells.studentNumber) {
-      return invalid(`This e-mail's account has student number ${user.studentNumber}, not ${r.cells.studentNumber}.`);
+      return invalid(inCourse.has(user.id) ? `In this course this person has student number ${user.studentNumber}, not ${r.cells.studentNumber}.` : MISMATCH);
     }
     if (user) {
       const mine = memberships.filter((m) => m.userId === user.id);
@@ -159,9 +163,9 @@ export async function previewRoster(courseId: number, parsed: ParsedRow[], trans
         const other = cohorts.find((c) => c.id === enrolled.cohortId);
         return invalid(`Already enrolled in ${other ? `"${other.name}"` : 'another cohort'}; moving students between cohorts is not done by import.`);
       }
-      return { ...base, status: 'new', newAccount: false };
     }
-    return { ...base, status: 'new', newAccount: true };
+    // New to the course, with or without an account elsewhere: the preview says the same either way.
+    return { ...base, status: 'new' };
   });
   const counts = { new: 0, enrolled: 0, invalid: 0 };
   for (const row of rows) counts[row.status]++;

@@ -34,7 +34,9 @@ export async function queueEmail(mail: QueuedMail, transaction?: Transaction): P
     {
       dedupeKey: mail.dedupeKey,
       toAddress: mail.to,
-      subject: mail.subject,
+      // One line, whatever the caller built it from: a line break would end the header early.
+      // eslint-disable-next-line no-control-regex
+      subject: mail.subject.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]+/g, ' ').slice(0, 300),
       textBody: mail.text,
       htmlBody: mail.html ?? null,
       submissionId: mail.submissionId ?? null,
@@ -143,20 +145,28 @@ export async function deliverOutbox(options: { limit?: number; now?: () => Date 
   return { sent, failed, remaining };
 }
 
-/** Put a failed or sent row back in the queue (staff "resend"). */
-export async function requeue(id: number, dedupeSuffix?: string): Promise<void> {
+/** One resend per message within this window: repeated or simultaneous clicks send it once. */
+export const RESEND_WINDOW_MS = 60_000;
+
+/**
+ * Staff "resend": puts a sent or failed row back in the queue, in one conditional UPDATE, so of any
+ * number of simultaneous clicks exactly one succeeds, and no second resend is taken within
+ * RESEND_WINDOW_MS. The row itself goes again, so the message keeps its Message-ID (mailboxes show
+ * one message however often it was sent). Returns false when nothing was queued.
+ */
+export async function requeue(id: number, now = new Date()): Promise<boolean> {
   const { EmailOutbox } = models();
-  const row = await EmailOutbox.findByPk(id);
-  if (!row) return;
-  if (row.status === 'sent' && dedupeSuffix) {
-    await queueEmail({
-      dedupeKey: `${row.dedupeKey}:${dedupeSuffix}`,
-      to: row.toAddress, subject: row.subject, text: row.textBody, html: row.htmlBody,
-      submissionId: row.submissionId, feedbackDocumentId: row.feedbackDocumentId,
-    });
-  } else {
-    await EmailOutbox.update({ status: 'queued', nextAttemptAt: new Date(), attempts: 0, lockedUntil: null }, { where: { id } });
-  }
+  const [count] = await EmailOutbox.update(
+    { status: 'queued', nextAttemptAt: now, attempts: 0, lockedUntil: null, resentAt: now },
+    {
+      where: {
+        id,
+        status: ['sent', 'failed'],
+        [Op.or]: [{ resentAt: null }, { resentAt: { [Op.lte]: new Date(now.getTime() - RESEND_WINDOW_MS) } }],
+      },
+    },
+  );
+  return count === 1;
 }
 
 let timer: NodeJS.Timeout | null = null;

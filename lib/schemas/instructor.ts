@@ -6,9 +6,14 @@
 import { z } from 'zod';
 import { QUANTITY_KEYS } from '@/lib/grading/quantities';
 import { parseSpecies } from '@/lib/grading/species';
+import { multiLine, oneLine } from './text';
+import { instructionsProblem } from './instructions';
 
-const text = (max: number) => z.string().trim().min(1, 'Required.').max(max, `At most ${max} characters.`);
-const optionalText = (max: number) => z.string().trim().max(max, `At most ${max} characters.`);
+/** One-line text (titles, names): control characters and line breaks refused (lib/schemas/text.ts). */
+const text = (max: number) => oneLine(z.string().trim().min(1, 'Required.').max(max, `At most ${max} characters.`));
+const optionalText = (max: number) => oneLine(z.string().trim().max(max, `At most ${max} characters.`));
+/** Multi-line text (instructions, notes, guidance): line breaks and tabs allowed, other controls refused. */
+const longText = (max: number) => multiLine(z.string().trim().max(max, `At most ${max} characters.`));
 const id = z.number().int().positive().max(Number.MAX_SAFE_INTEGER);
 
 export const courseCreateSchema = z.object({
@@ -58,15 +63,15 @@ export const RUBRIC_ITEM = z.object({
   key: z.string().trim().min(1).max(60).regex(/^[a-z0-9-]+$/, 'Lower-case letters, digits and - only.'),
   title: text(200),
   marks: z.number().min(0).max(1000),
-  guidance: optionalText(2000).default(''),
+  guidance: longText(2000).default(''),
 });
 
 export const practicalSchema = z
   .object({
     title: text(200),
     species: z.array(speciesText).min(1, 'Give at least one isotopologue.').max(6),
-    instructions: optionalText(50_000).default(''),
-    hazardNotes: optionalText(5_000).default(''),
+    instructions: longText(50_000).refine((s) => instructionsProblem(s) === null, { error: (i) => instructionsProblem(String(i.input)) ?? 'The instructions cannot be shown.' }).default(''),
+    hazardNotes: longText(5_000).default(''),
     mode: z.enum(['practice', 'assessed']),
     maxAttempts: z.number().int().min(1, 'At least 1.').max(20, 'At most 20.'),
     lateRule: z.enum(['penalty', 'not-accepted', 'none']),
@@ -89,13 +94,13 @@ export const quantitySchema = z
   .object({
     key: z.enum(QUANTITY_KEYS, { message: 'Not a quantity the grading engine knows.' }),
     species: speciesText,
-    unit: z.string().trim().max(40),
+    unit: oneLine(z.string().trim().max(40)),
     marks: z.number().min(0).max(1000),
     uncertaintyRequired: z.boolean(),
     referenceKind: z.enum(['literature', 'department']),
     /** Department value in `unit` (not SI: the form shows what the instructor typed). */
     referenceValue: z.number().finite().nullable().optional(),
-    referenceNote: optionalText(1000).nullable().optional(),
+    referenceNote: longText(1000).nullable().optional(),
     position: z.number().int().min(0).max(1000).optional(),
   })
   .refine((q) => q.referenceKind === 'literature' || (typeof q.referenceValue === 'number' && !!q.referenceNote?.trim()), {
@@ -117,7 +122,7 @@ export const bandSchema = z
     /** absolute: in `unit`; relative: a fraction (0.005 = 0.5 %); sigma: a multiple of the standard uncertainty. */
     inner: z.number().finite().positive('Must be greater than zero.'),
     outer: z.number().finite().positive().nullable().optional(),
-    unit: z.string().trim().max(40).nullable().optional(),
+    unit: oneLine(z.string().trim().max(40)).nullable().optional(),
     /** When submissions exist: true re-checks them with the new band, false keeps their results. */
     recheck: z.boolean().optional(),
   })
@@ -131,7 +136,7 @@ export const previewSchema = z.object({
   quantityDefinitionId: id,
   cohortId: id.nullable(),
   value: z.number().finite(),
-  unit: z.string().trim().max(40),
+  unit: oneLine(z.string().trim().max(40)),
   uncertainty: z.number().finite().positive().nullable().optional(),
   /** What the engine would recompute from the student's own data, for the consistency band. */
   recomputed: z.number().finite().nullable().optional(),

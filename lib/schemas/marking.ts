@@ -1,5 +1,6 @@
 /** Zod schemas shared by the marking forms and their route handlers (no server-only imports). */
 import { z } from 'zod';
+import { multiLine, oneLine } from './text';
 
 export const QUEUE_STATUSES = ['submitted', 'marked', 'released', 'resubmission-requested'] as const;
 export const QUEUE_FLAGS = ['outside', 'slip', 'late', 'duplicate', 'spectrum'] as const;
@@ -24,16 +25,16 @@ export type QueueQuery = z.infer<typeof queueQuerySchema>;
 const marks = z.number({ error: 'Enter the marks as a number.' }).finite().min(0, 'Marks cannot be negative.').max(1000);
 
 export const markItemSchema = z.object({
-  itemKey: z.string().min(1).max(100),
+  itemKey: oneLine(z.string().min(1).max(100)),
   /** null: not marked yet (a hand-marked item the TA has not reached). */
   awarded: marks.nullable(),
-  comment: z.string().trim().max(2000, 'At most 2000 characters.').optional().nullable(),
+  comment: multiLine(z.string().trim().max(2000, 'At most 2000 characters.')).optional().nullable(),
 });
 
 export const saveMarksSchema = z.object({
   version: z.number().int().min(0),
   items: z.array(markItemSchema).max(200),
-  markerComment: z.string().trim().max(5000, 'At most 5000 characters.').optional().nullable(),
+  markerComment: multiLine(z.string().trim().max(5000, 'At most 5000 characters.')).optional().nullable(),
 });
 export type SaveMarksInput = z.infer<typeof saveMarksSchema>;
 
@@ -45,7 +46,7 @@ export const releaseSchema = z.object({
 
 export const resubmissionSchema = z.object({
   version: z.number().int().min(0).optional(),
-  message: z.string().trim().min(1, 'Write a message to the student.').max(5000, 'At most 5000 characters.'),
+  message: multiLine(z.string().trim().min(1, 'Write a message to the student.').max(5000, 'At most 5000 characters.')),
 });
 
 export const resendSchema = z.object({ outboxId: z.number().int().positive().max(Number.MAX_SAFE_INTEGER) });
@@ -54,7 +55,7 @@ export const moderationSchema = z
   .object({
     decision: z.enum(['confirmed', 'changed']),
     version: z.number().int().min(0),
-    items: z.array(z.object({ itemKey: z.string().min(1).max(100), awarded: marks })).max(200).default([]),
-    note: z.string().trim().max(5000).optional().nullable(),
+    items: z.array(z.object({ itemKey: oneLine(z.string().min(1).max(100)), awarded: marks })).max(200).default([]),
+    note: multiLine(z.string().trim().max(5000)).optional().nullable(),
   })
   .refine((v) => v.decision === 'confirmed' || (v.note && v.note.length > 0), { message: 'Say why the marks were changed.', path: ['note'] });

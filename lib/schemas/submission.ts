@@ -4,12 +4,14 @@
  * No server-only imports here.
  */
 import { z } from 'zod';
+import { multiLine, oneLine } from './text';
 
 /** More lines than any band has; the line-list parser uses the same limit. */
 export const MAX_DRAFT_LINES = 2000;
 export const MAX_LINE_TEXT = 400_000;
 
-const text = (max: number) => z.string().max(max, `At most ${max} characters.`);
+/** Typed values and pasted lists: tabs and line breaks are text (pasted from spreadsheets), other controls are refused. */
+const text = (max: number) => multiLine(z.string().max(max, `At most ${max} characters.`));
 
 /** A number as typed: raw text kept for the significant-figure check. */
 export const typedNumberSchema = z.object({
@@ -33,12 +35,12 @@ export const speciesDraftSchema = z.object({
   bandCentre: typedNumberSchema.default({ value: '', unit: 'cm-1', uncertainty: '' }),
   overtone: typedNumberSchema.optional(),
   /** Derived quantities by quantity key. */
-  values: z.record(z.string().max(40), typedNumberSchema).default({}),
+  values: z.record(oneLine(z.string().max(40)), typedNumberSchema).default({}),
 });
 export type SpeciesDraft = z.infer<typeof speciesDraftSchema>;
 
 export const draftSchema = z.object({
-  species: z.record(z.string().max(40), speciesDraftSchema).default({}),
+  species: z.record(oneLine(z.string().max(40)), speciesDraftSchema).default({}),
   spectrumUploadId: z.number().int().positive().nullable().default(null),
   reportUploadId: z.number().int().positive().nullable().default(null),
 });

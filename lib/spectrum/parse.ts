@@ -12,6 +12,10 @@ export type { Spectrum, YKind } from './types';
 
 export const SPECTRUM_MAX_POINTS = 200_000;
 const MIN_POINTS = 10;
+/** A CSV row of a spectrum is two numbers; a row this long is not one (and papaparse would build it whole). */
+export const CSV_MAX_LINE_CHARS = 1_000;
+/** Heading and comment rows allowed on top of the points. */
+const CSV_EXTRA_ROWS = 1_000;
 
 export type SpectrumParse =
   | { ok: true; spectrum: Spectrum; warnings: string[] }
@@ -142,6 +146,64 @@ function xydataProblem(text: string): string | null {
   return null;
 }
 
+/** Labels whose records hold numbers that the converter expands (ASDF compression included). */
+const DATA_LABEL = /^##\s*(XYDATA|XYPOINTS|PEAK\s*TABLE|DATA\s*TABLE|PEAKTABLE)\s*=/i;
+/**
+ * One token of a JCAMP-DX data line: SQZ or DIF value (a letter and its digits), DUP count (S–Z, s
+ * and digits), an AFFN number, or "?" for a missing value.
+ */
+const ASDF_TOKEN = /([@A-Ia-i%J-Rj-r])[\d.]*|([S-Zs])(\d*)|[+-]?(?:\d+\.?\d*|\.\d+)(?:[Ee][+-]?\d+)?|\?/g;
+const DUP_DIGIT: Record<string, number> = { S: 1, T: 2, U: 3, V: 4, W: 5, X: 6, Y: 7, Z: 8, s: 9 };
+
+/**
+ * Counts the values the data records will expand to, without expanding them. DUP compression lets
+ * one short line stand for any number of points ("A0T00000000" is 200 million zeros), and the
+ * converter builds every point before its length could be checked; so the count comes first, and
+ * stops as soon as it passes `limit`. Each line's first token is its abscissa and is not counted;
+ * the Y-check value that repeats across DIF lines is counted, so this errs on the high side by at
+ * most one point per line.
+ */
+export function countJcampValues(text: string, limit: number): number {
+  let total = 0;
+  let inData = false;
+  let start = 0;
+  while (start <= text.length) {
+    let end = text.indexOf('\n', start);
+    if (end === -1) end = text.length;
+    const line = text.slice(start, end);
+    start = end + 1;
+    const t = line.trimStart();
+    if (t.startsWith('##')) {
+      inData = DATA_LABEL.test(t);
+      continue;
+    }
+    if (!inData) continue;
+    const row = line.replace(/\$\$.*$/, '');
+    let first = true;
+    ASDF_TOKEN.lastIndex = 0;
+    for (let m = ASDF_TOKEN.exec(row); m; m = ASDF_TOKEN.exec(row)) {
+      if (m[0] === '') {
+        ASDF_TOKEN.lastIndex++;
+        continue;
+      }
+      if (first) {
+        first = false;
+        continue;
+      }
+      if (m[2] !== undefined) {
+        // DUP: the previous value appears this many times in all, so count - 1 more.
+        const digits = m[3].replace(/^0+(?=\d)/, '');
+        const count = digits.length > 12 ? Infinity : Number(`${DUP_DIGIT[m[2]]}${m[3]}`);
+        total += Math.max(0, count - 1);
+      } else {
+        total += 1;
+      }
+      if (total > limit) return total;
+    }
+  }
+  return total;
+}
+
 function headerValue(text: string, label: string): string | undefined {
   // [ \t]* rather than \s*: a pattern that may cross newlines turns quadratic on blank-line padding.
   const m = new RegExp(String.raw`^[ \t]*##[ \t]*${label}[ \t]*=[ \t]*(.*)$`, 'im').exec(text);
@@ -175,6 +237,12 @@ function parseJcamp(raw: string, maxPoints: number): SpectrumParse {
   }
   const bad = xydataProblem(raw); // line numbers as in the file the student has
   if (bad) return fail(bad);
+  // The data lines' own count, before anything is expanded (a checked Y value may repeat per line).
+  const lines = text.split('\n').length;
+  const counted = countJcampValues(text, maxPoints + lines);
+  if (counted > maxPoints + lines) {
+    return fail(`The spectrum's data expand to more than ${maxPoints} points (JCAMP-DX compression); at most ${maxPoints} are accepted. Export it at a coarser spacing.`);
+  }
   let result;
   try {
     result = convert(text);
@@ -211,8 +279,31 @@ function readCsvNumber(cell: string, decimalComma: boolean): number {
   return /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/.test(t) ? Number(t) : NaN;
 }
 
+/** Refuses, before any splitting, a file with rows too long or too many to be a spectrum. */
+function csvShapeProblem(body: string, maxPoints: number): string | null {
+  const maxRows = maxPoints + CSV_EXTRA_ROWS;
+  let rows = 0;
+  let start = 0;
+  // One pass over the characters (searching for \r and \n separately would rescan the rest of the file per line).
+  for (let i = 0; i <= body.length; i++) {
+    const c = i < body.length ? body.charCodeAt(i) : 10;
+    if (c !== 10 && c !== 13) continue;
+    if (i === body.length && start === i) break;
+    rows++;
+    if (i - start > CSV_MAX_LINE_CHARS) {
+      return `Line ${rows} of the CSV file is ${i - start} characters long; a spectrum row is two numbers (at most ${CSV_MAX_LINE_CHARS} characters).`;
+    }
+    if (rows > maxRows) return `The CSV file has more than ${maxRows} lines; a spectrum of at most ${maxPoints} points needs fewer. Export it at a coarser spacing.`;
+    if (c === 13 && body.charCodeAt(i + 1) === 10) i++;
+    start = i + 1;
+  }
+  return null;
+}
+
 function parseCsv(text: string, maxPoints: number): SpectrumParse {
   const body = text.replace(/^\uFEFF/, '');
+  const shape = csvShapeProblem(body, maxPoints);
+  if (shape) return fail(shape);
   // The separator is read from data rows only: headings and comments may hold any punctuation.
   const probe = body
     .slice(0, 16384)

@@ -3,6 +3,7 @@
  * every reason not to accept it. The caller rejects the upload when `problems` is
  * not empty; the name is only checked against the content.
  */
+import { inflateSync } from 'node:zlib';
 
 export type UploadKind = 'pdf' | 'jcamp' | 'csv' | 'unknown';
 
@@ -130,11 +131,79 @@ function sniffPdf(bytes: Uint8Array, problems: string[]): boolean {
   if (/##\s*TITLE\s*=/i.test(head)) {
     problems.push('The PDF also carries a JCAMP-DX header at its start; one file cannot be both.');
   }
-  // Compressed object streams can still hide these, so this is a best effort.
-  if (indexOfAscii(bytes, '/JavaScript') >= 0 || indexOfAscii(bytes, '/Launch') >= 0) {
-    problems.push('The PDF contains embedded JavaScript or a launch action; save the report again as a plain PDF.');
+  const active = activePdfName(bytes);
+  if (active) {
+    problems.push(`The PDF contains ${active === 'Launch' ? 'a launch action' : active === 'RichMedia' ? 'embedded media' : 'embedded JavaScript'}; save the report again as a plain PDF.`);
   }
   return true;
+}
+
+/** PDF names that make a document act rather than show: scripts, launching programs, embedded media. */
+const ACTIVE_PDF_NAMES = new Set(['JavaScript', 'JS', 'Launch', 'RichMedia']);
+/** Bytes that end a PDF name: white space and delimiters (PDF 32000-1, 7.2.2). */
+const PDF_NAME_END = new Set([0, 9, 10, 12, 13, 32, 0x28, 0x29, 0x3c, 0x3e, 0x5b, 0x5d, 0x7b, 0x7d, 0x2f, 0x25]);
+/** How much an object stream may inflate to in all while it is searched (a compression bomb stops there). */
+const PDF_INFLATE_BUDGET = 64 * 1024 * 1024;
+const hexDigit = (b: number) => (b >= 48 && b <= 57 ? b - 48 : b >= 65 && b <= 70 ? b - 55 : b >= 97 && b <= 102 ? b - 87 : -1);
+
+/**
+ * The first active name in the bytes, with #xx escapes decoded first: "/Java#53cript" is the same
+ * name as "/JavaScript" to a PDF reader (PDF 32000-1, 7.3.5), so it must be to this check too.
+ */
+function activeNameIn(bytes: Uint8Array): string | null {
+  for (let i = bytes.indexOf(0x2f); i !== -1; i = bytes.indexOf(0x2f, i + 1)) {
+    let name = '';
+    let j = i + 1;
+    for (; j < bytes.length && !PDF_NAME_END.has(bytes[j]) && name.length <= 12; j++) {
+      const b = bytes[j];
+      if (b === 0x23 && j + 2 < bytes.length && hexDigit(bytes[j + 1]) >= 0 && hexDigit(bytes[j + 2]) >= 0) {
+        name += String.fromCharCode(hexDigit(bytes[j + 1]) * 16 + hexDigit(bytes[j + 2]));
+        j += 2;
+      } else {
+        name += String.fromCharCode(b);
+      }
+    }
+    if (ACTIVE_PDF_NAMES.has(name)) return name;
+  }
+  return null;
+}
+
+/**
+ * Searches the file, and the inside of its compressed object streams (where objects, scripts
+ * included, can be stored out of sight of a plain byte search), for active names. Inflation is
+ * bounded, so a stream that expands without end is only read up to the budget.
+ */
+function activePdfName(bytes: Uint8Array): string | null {
+  const plain = activeNameIn(bytes);
+  if (plain) return plain;
+  let budget = PDF_INFLATE_BUDGET;
+  for (let at = indexOfAscii(bytes, 'stream'); at !== -1 && budget > 0; ) {
+    const dictStart = Math.max(0, at - 512);
+    const dict = latin1(bytes, dictStart, at);
+    let dataStart = at + 6;
+    if (bytes[dataStart] === 13) dataStart++;
+    if (bytes[dataStart] === 10) dataStart++;
+    const end = indexOfAsciiFrom(bytes, 'endstream', dataStart);
+    if (end === -1) break;
+    if (/\/ObjStm\b/.test(dict.slice(dict.lastIndexOf('<<'))) && /\/FlateDecode\b/.test(dict.slice(dict.lastIndexOf('<<')))) {
+      try {
+        const inflated = inflateSync(bytes.subarray(dataStart, end), { maxOutputLength: budget });
+        budget -= inflated.length;
+        const found = activeNameIn(inflated);
+        if (found) return found;
+      } catch (e) {
+        // Past the budget the stream is not searched further; a damaged stream is left to the reader.
+        if ((e as { code?: string }).code === 'ERR_BUFFER_TOO_LARGE') return null;
+      }
+    }
+    at = indexOfAsciiFrom(bytes, 'stream', end + 9);
+  }
+  return null;
+}
+
+function indexOfAsciiFrom(bytes: Uint8Array, needle: string, from: number): number {
+  const i = indexOfAscii(bytes.subarray(from), needle);
+  return i === -1 ? -1 : i + from;
 }
 
 function sniffText(text: string, problems: string[]): UploadKind {

@@ -3,7 +3,7 @@
  * database row (never from ids the client sent).
  */
 import { QueryTypes } from 'sequelize';
-import { authorize, type Actor } from '@/lib/authz';
+import { authenticate, permit, type Actor } from '@/lib/authz';
 import { sequelize } from '@/lib/db';
 import { HttpError } from '@/lib/http';
 import { models } from '@/models';
@@ -14,14 +14,15 @@ import type { PracticalCohort } from '@/models/practical-cohort';
 export async function scopeOf(submission: Submission) {
   const practical = await models().Practical.findByPk(submission.practicalId);
   if (!practical) throw new HttpError(404, 'Not found.');
-  return { practical, scope: { courseId: practical.courseId, cohortId: submission.cohortId, studentId: submission.studentId } };
+  return { practical, scope: { courseId: practical.courseId, cohortId: submission.cohortId, studentId: submission.studentId, draft: submission.status === 'draft' } };
 }
 
 export async function loadSubmissionFor(request: Request, id: number, kind: 'submission-read' | 'submission-write') {
+  const actor = await authenticate(request);
   const submission = await models().Submission.findByPk(id);
   if (!submission) throw new HttpError(404, 'No such submission.');
   const { practical, scope } = await scopeOf(submission);
-  const actor = await authorize(request, { kind, ...scope });
+  permit(actor, { kind, ...scope });
   return { actor, submission, practical };
 }
 

@@ -11,7 +11,8 @@ import type { IncomingMessage } from 'node:http';
 import formidable from 'formidable';
 import { HttpError } from '@/lib/http';
 import { uploadDir, uploadPath } from '@/lib/storage';
-import { parseSpectrumFile, sniffUpload, type UploadKind as SniffKind } from '@/lib/spectrum';
+import type { UploadKind as SniffKind } from '@/lib/spectrum/sniff';
+import { readUploadOffThread } from '@/lib/spectrum/worker';
 import type { UploadKind } from '@/lib/schemas/submission';
 
 const MB = 1024 * 1024;
@@ -195,20 +196,29 @@ export interface AcceptedFile {
   warnings: string[];
 }
 
-/** Checks the received bytes for the kind asked for and moves the file to its final random name. */
-export function acceptFile(file: ReceivedFile, kind: UploadKind): AcceptedFile {
+/**
+ * Checks the received bytes for the kind asked for and moves the file to its final random name.
+ * The content is read in a worker thread with its own memory and time limits (lib/spectrum/worker.ts),
+ * so no file can stall or end the process that serves everyone else.
+ */
+export async function acceptFile(file: ReceivedFile, kind: UploadKind): Promise<AcceptedFile> {
   const limits = uploadLimits();
   const originalName = checkOriginalName(file.originalName);
   if (file.size > limits[kind]) throw new HttpError(413, `A ${kind === 'report' ? 'report' : 'spectrum'} may be at most ${formatBytes(limits[kind])}; this file is ${formatBytes(file.size)}.`);
   const bytes = fs.readFileSync(file.tempPath);
   if (bytes.length === 0) throw new HttpError(400, 'The file is empty (0 bytes).');
-  const sniff = sniffUpload(new Uint8Array(bytes), originalName);
+  const read = await readUploadOffThread(new Uint8Array(bytes), originalName, kind === 'spectrum');
+  if (!read.ok) {
+    if (read.reason === 'failed') throw new HttpError(422, 'The file could not be read; check that it is a PDF report or a JCAMP-DX or CSV spectrum and upload it again.');
+    throw new HttpError(422, `${read.message} A ${kind === 'report' ? 'report PDF' : 'spectrum'} should read in well under a second; ${kind === 'report' ? 'save the report again as a plain PDF' : 'export the spectrum again at a coarser spacing'}.`);
+  }
+  const { sniff, parsed } = read.reading;
   if (!sniff.ok) throw new HttpError(415, sniff.problems.join(' '));
   const warnings: string[] = [];
   if (kind === 'report' && sniff.kind !== 'pdf') throw new HttpError(415, 'The report must be a PDF document.');
   if (kind === 'spectrum') {
     if (sniff.kind !== 'jcamp' && sniff.kind !== 'csv') throw new HttpError(415, 'The spectrum must be a JCAMP-DX (.jdx, .dx) or two-column CSV file.');
-    const parsed = parseSpectrumFile(bytes.toString('utf8'), sniff.kind);
+    if (!parsed) throw new HttpError(422, 'The spectrum could not be read.');
     if (!parsed.ok) throw new HttpError(422, `The spectrum could not be read: ${parsed.message}`);
     warnings.push(...parsed.warnings);
   }

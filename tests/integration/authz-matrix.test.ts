@@ -350,6 +350,15 @@ const MATRIX: Record<string, Case> = {
     expect: [401, 200, 403, 200, 403, 200, 403, 200],
     call: (w) => ({ url: `/api/uploads/${w.spectrumUpload.id}`, params: { id: String(w.spectrumUpload.id) } }),
   },
+  // Kept last: each call ends the caller's sessions (their cookies here carry session version 0), so
+  // the versions are put back before every call, and no later case runs with the last one raised.
+  'POST /api/me/sign-out-everywhere': {
+    expect: [401, 200, 200, 200, 200, 200, 200, 200],
+    call: async () => {
+      await models().User.update({ sessionVersion: 0 }, { where: {} });
+      return { url: '/api/me/sign-out-everywhere' };
+    },
+  },
 };
 
 let world: FixtureWorld;

@@ -7,6 +7,8 @@
  * byte-for-byte unchanged afterwards (a hash of every table, nothing excluded: sign_in_failures
  * and the outbox included, since refused input must not count or queue anything either).
  * The multipart upload route gets a few garbage bodies too, and the upload directory must not change.
+ * Issue 14 added the JCAMP-DX DUP bomb to the uploads and a formula nested 3,000 deep to the
+ * practical instructions, each of which once answered 500 or took the server down.
  */
 import { beforeAll, describe, expect, it } from 'vitest';
 import { apiRequest, params, sessionCookie } from '../helpers/session';
@@ -35,6 +37,11 @@ interface Entry {
    * point is that they neither crash the parser nor get written.
    */
   breakers?: Record<string, Json>;
+  /**
+   * Fields rendered as Markdown with formulas: a formula nested 3,000 braces deep there is refused
+   * on its own (issue 14, item 7), so it is sent alone, without a breaker.
+   */
+  formula?: string[];
 }
 
 const SQLI = "'; DROP TABLE users; --";
@@ -46,7 +53,16 @@ const INJECTIONS: [string, string][] = [
   ['zero-width joiners', 'a\u200D\u200Db\u200B\uFEFF'],
   ['emoji', '🧪👩‍🔬🏳️‍🌈'],
   ['NUL', 'a\u0000b'],
+  ['CR/LF', 'a\r\nBcc: someone@example.org'],
 ];
+/** Issue 14, item 7: a formula with 3,000 nested braces answered 500 on every page that showed it. */
+const NESTED_FORMULA = `Record the band: $${'{'.repeat(3000)}x${'}'.repeat(3000)}$.`;
+/**
+ * Issue 14, item 1: 188 bytes of JCAMP-DX whose DUP compression stands for 200 million points
+ * ("A0T00000000"); it took the whole server down before the points were counted first.
+ */
+const JCAMP_DUP_BOMB =
+  '##TITLE=bomb\n##JCAMP-DX=4.24\n##DATA TYPE=INFRARED SPECTRUM\n##XUNITS=1/CM\n##YUNITS=ABSORBANCE\n##XFACTOR=1\n##YFACTOR=1\n##FIRSTX=4000\n##LASTX=400\n##XYDATA=(X++(Y..Y))\n4000 A0T00000000\n##END=\n';
 /** Raw JSON string literals that JSON.stringify would not produce: lone surrogates. */
 const RAW_STRINGS: [string, string][] = [
   ['lone high surrogate', '"\\ud800"'],
@@ -152,6 +168,7 @@ function variants(e: Entry, valid: { [k: string]: Json }): Variant[] {
         for (const [label, s] of INJECTIONS) put(label, s);
         for (const [label, lit] of RAW_STRINGS) raw(`${name} = ${label}`, valid, path, lit);
       }
+      if ((e.formula ?? []).includes(name)) put('formula nested 3,000 braces deep', NESTED_FORMULA);
     } else if (v === null) {
       put('true', true);
       put('[]', []);
@@ -242,6 +259,7 @@ const BAD: Record<string, Entry> = {
     optional: ['instructions', 'hazardNotes', 'rubric', 'deadlines'],
     text: PRACTICAL_TEXT,
     breakers: { mode: 'sometimes', maxAttempts: 'three' },
+    formula: ['instructions'],
   },
   'POST /api/courses/[courseId]/staff': {
     as: 'admin',
@@ -323,6 +341,7 @@ const BAD: Record<string, Entry> = {
     optional: ['instructions', 'hazardNotes', 'rubric', 'deadlines'],
     text: PRACTICAL_TEXT,
     breakers: { mode: 'sometimes', maxAttempts: 'three' },
+    formula: ['instructions'],
   },
   'PUT /api/practicals/[practicalId]/bands': {
     as: 'admin',
@@ -500,6 +519,7 @@ describe('bad input', () => {
       ['html kind', `${part('submissionId', id)}${part('kind', '<script>alert(1)</script>')}${part('file', '##TITLE=x', 'a.jdx')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
       ['two files', `${part('submissionId', id)}${part('kind', 'spectrum')}${part('file', '##TITLE=x', 'a.jdx')}${part('file2', '##TITLE=y', 'b.jdx')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
       ['NUL and RTL in the file name', `${part('submissionId', id)}${part('kind', 'report')}${part('file', '%PDF-1.4 nonsense', 'a\u0000\u202Efdp.exe')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
+      ['JCAMP-DX DUP bomb (188 bytes, 200 million points)', `${part('submissionId', id)}${part('kind', 'spectrum')}${part('file', JCAMP_DUP_BOMB, 'bomb.jdx')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
       ['garbage bytes as a spectrum', `${part('submissionId', id)}${part('kind', 'spectrum')}${part('file', '\u0000\u0001\u0002\uFFFD'.repeat(100), 'x.jdx')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
       ['JSON body', JSON.stringify({ submissionId: Number(id), kind: 'spectrum' }), 'application/json'],
       ['text body', 'file contents', 'text/plain'],

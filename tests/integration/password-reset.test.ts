@@ -161,10 +161,19 @@ describe('using a reset link', () => {
 
     const short = await setPassword(token, 'short');
     expect(short.status).toBe(400);
-    expect((await short.json()).error).toMatch(/at least 10 characters/);
+    expect((await short.json()).error).toMatch(/at least 12 characters/);
     const repetitive = await setPassword(token, 'abababababab');
     expect(repetitive.status).toBe(400);
     expect((await repetitive.json()).error).toMatch(/at least 4 different characters/);
+    // Issue 14, item 10: common passwords, also with digits or symbols around them (the
+    // common-password list shipped in @zxcvbn-ts/language-common).
+    const issueExample = await setPassword(token, 'password123');
+    expect(issueExample.status).toBe(400);
+    for (const common of ['Password123!', 'qwertyuiop12', 'iloveyou2024', '!!sunshine2024', 'password1234']) {
+      const res = await setPassword(token, common);
+      expect(res.status, common).toBe(400);
+      expect((await res.json()).error, common).toMatch(/commonly used passwords/);
+    }
     const differ = await setPassword(token, 'rotational-lines-77', 'rotational-lines-78');
     expect(differ.status).toBe(400);
     expect((await differ.json()).error).toMatch(/two passwords differ/);

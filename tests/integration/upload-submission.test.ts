@@ -220,7 +220,8 @@ describe('uploads', () => {
   it('another student cannot read the file or upload to the draft by changing an id', async () => {
     const up = await models().Upload.findOne({ where: { ownerId: world.people.student.id } });
     const res = await getUpload(await apiRequest(`/api/uploads/${up!.id}`, { as: world.people.otherStudent.id }), params({ id: String(up!.id) }));
-    expect(res.status).toBe(403);
+    // A draft's file is its student's own: to anyone else it does not exist (issue 14, item 9).
+    expect(res.status).toBe(404);
     await expectRefused(world.people.otherStudent.id, 'report.pdf', PDF, 'report', 403, /permission/i);
     const missing = await getUpload(await apiRequest('/api/uploads/999999', { as: world.people.student.id }), params({ id: '999999' }));
     expect(missing.status).toBe(404);
@@ -238,9 +239,9 @@ describe('drafts and submits', () => {
     expect(after!.version).toBe(before!.version);
   });
 
-  it('another student cannot read or submit this draft (403) and unknown ids are 404', async () => {
+  it('another student cannot read (404: a draft is its student\'s own) or submit (403) this draft, and unknown ids are 404', async () => {
     const read = await getSubmission(await apiRequest(`/api/submissions/${draftId}`, { as: world.people.otherStudent.id }), params({ id: String(draftId) }));
-    expect(read.status).toBe(403);
+    expect(read.status).toBe(404);
     const write = await submit(await apiRequest(`/api/submissions/${draftId}/submit`, { as: world.people.otherStudent.id, body: { version: 1, draft: draftFor('H35Cl', {}) } }), params({ id: String(draftId) }));
     expect(write.status).toBe(403);
     const none = await getSubmission(await apiRequest('/api/submissions/424242', { as: world.people.student.id }), params({ id: '424242' }));

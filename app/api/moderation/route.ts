@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { authorize } from '@/lib/authz';
+import { authenticate, permit } from '@/lib/authz';
 import { json, route, validate } from '@/lib/http';
 import { moderationSample } from '@/lib/marking/moderation';
 
@@ -7,7 +7,8 @@ const query = z.object({ courseId: z.coerce.number().int().positive().max(Number
 
 /** GET /api/moderation?courseId=…&share=0.1: the sample of each marker's marked submissions. */
 export const GET = route(async (request) => {
+  const actor = await authenticate(request);
   const q = validate(query, Object.fromEntries(new URL(request.url).searchParams));
-  await authorize(request, { kind: 'moderate', courseId: q.courseId });
+  permit(actor, { kind: 'moderate', courseId: q.courseId });
   return json({ markers: await moderationSample(q.courseId, q.share) });
 });

@@ -7,8 +7,8 @@ import { releaseSchema } from '@/lib/schemas/marking';
 
 /** Release one or a batch: { submissionIds }. Every submission must be one the caller may mark. */
 export const POST = route(async (request) => {
-  const { submissionIds } = await readJson(request, releaseSchema);
   const actor = await authorize(request, { kind: 'signed-in' });
+  const { submissionIds } = await readJson(request, releaseSchema);
   for (const id of submissionIds) {
     const { scope } = await submissionScope(id);
     permit(actor, { kind: 'submission-mark', ...scope });

@@ -30,7 +30,7 @@ export const POST = route(async (request) => {
     const { practical, scope } = await scopeOf(draftRow);
     permit(actor, { kind: 'submission-write', ...scope });
     if (draftRow.attempt !== 0) throw new HttpError(409, 'Files can only be added to your draft, not to a submitted attempt.');
-    const accepted = acceptFile(received.file, fields.kind);
+    const accepted = await acceptFile(received.file, fields.kind);
     finalPath = accepted.finalPath;
     const upload = await sequelize().transaction(async (transaction) => {
       const up = await Upload.create(

@@ -1,4 +1,4 @@
-import { authorize } from '@/lib/authz';
+import { authenticate, permit } from '@/lib/authz';
 import { json, readJson, route, idParam } from '@/lib/http';
 import { submissionScope } from '@/lib/marking/access';
 import { moderate } from '@/lib/marking/moderation';
@@ -9,8 +9,9 @@ type Ctx = { params: Promise<{ submissionId: string }> };
 /** Confirm or change a marker's marks: { decision, version, items, note }. */
 export const POST = route<Ctx>(async (request, { params }) => {
   const id = idParam((await params).submissionId);
+  const actor = await authenticate(request);
   const { scope } = await submissionScope(id);
-  const actor = await authorize(request, { kind: 'moderate', courseId: scope.courseId });
+  permit(actor, { kind: 'moderate', courseId: scope.courseId });
   const input = await readJson(request, moderationSchema);
   return json(await moderate(actor.id, id, input));
 });

@@ -1,5 +1,5 @@
 import fs from 'node:fs';
-import { authorize } from '@/lib/authz';
+import { authenticate, permit } from '@/lib/authz';
 import { HttpError, idParam, route } from '@/lib/http';
 import { uploadPath } from '@/lib/storage';
 import { scopeOf } from '@/lib/submissions/access';
@@ -10,16 +10,16 @@ type Ctx = { params: Promise<{ id: string }> };
 /** An uploaded file, only for people who may read the submission it belongs to. */
 export const GET = route<Ctx>(async (request, { params }) => {
   const id = idParam((await params).id);
+  const actor = await authenticate(request);
   const { Upload, Submission } = models();
   const upload = await Upload.findByPk(id);
   if (!upload) throw new HttpError(404, 'No such file.');
   const sub = upload.submissionId ? await Submission.findByPk(upload.submissionId) : null;
   if (sub) {
     const { scope } = await scopeOf(sub);
-    await authorize(request, { kind: 'submission-read', ...scope });
-  } else {
-    const actor = await authorize(request, { kind: 'signed-in' });
-    if (actor.id !== upload.ownerId) throw new HttpError(403, 'You do not have permission for this.');
+    permit(actor, { kind: 'submission-read', ...scope });
+  } else if (actor.id !== upload.ownerId) {
+    throw new HttpError(403, 'You do not have permission for this.');
   }
   let bytes: Buffer;
   try {
@@ -34,7 +34,7 @@ export const GET = route<Ctx>(async (request, { params }) => {
       'Content-Type': pdf ? 'application/pdf' : 'text/plain; charset=utf-8',
       'Content-Disposition': `${pdf ? 'inline' : 'attachment'}; filename="${safeName}"; filename*=UTF-8''${encodeURIComponent(upload.originalName)}`,
       'X-Content-Type-Options': 'nosniff',
-      'Content-Security-Policy': "default-src 'none'; sandbox",
+      'Content-Security-Policy': "sandbox; default-src 'none'; object-src 'none'; frame-ancestors 'self'",
       'Cache-Control': 'private, no-store',
     },
   });

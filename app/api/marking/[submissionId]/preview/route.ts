@@ -16,6 +16,13 @@ export const GET = route<Ctx>(async (request, { params }) => {
   const doc = await models().FeedbackDocument.findOne({ where: { submissionId: id }, order: [['id', 'DESC']] });
   const pdf = doc ? new Uint8Array(await fs.readFile(feedbackPath(doc.storedName))) : await buildFeedbackPdf(feedbackInputFromView(await loadMarkingView(id)));
   return new Response(pdf as BodyInit, {
-    headers: { 'Content-Type': 'application/pdf', 'Content-Disposition': `inline; filename="feedback-${id}.pdf"`, 'Cache-Control': 'private, no-store' },
+    headers: {
+      'Content-Type': 'application/pdf',
+      'Content-Disposition': `inline; filename="feedback-${id}.pdf"`,
+      'Cache-Control': 'private, no-store',
+      'X-Content-Type-Options': 'nosniff',
+      // The full policy comes from next.config.mjs (user files); this is the same, for any other server.
+      'Content-Security-Policy': "sandbox; default-src 'none'; object-src 'none'; frame-ancestors 'none'",
+    },
   });
 });

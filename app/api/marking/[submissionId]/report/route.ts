@@ -20,7 +20,7 @@ export const GET = route<Ctx>(async (request, { params }) => {
       'Content-Disposition': `inline; filename="report-${id}.pdf"`,
       'Cache-Control': 'private, no-store',
       'X-Content-Type-Options': 'nosniff',
-      'Content-Security-Policy': "sandbox; default-src 'none'",
+      'Content-Security-Policy': "sandbox; default-src 'none'; object-src 'none'; frame-ancestors 'self'",
     },
   });
 });

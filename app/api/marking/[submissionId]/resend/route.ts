@@ -7,7 +7,10 @@ import { models } from '@/models';
 
 type Ctx = { params: Promise<{ submissionId: string }> };
 
-/** Staff "resend": a failed message goes back in the queue; a sent one is queued again as a new copy. */
+/**
+ * Staff "resend": a sent or failed message goes back in the queue, once per click window however
+ * many clicks arrive (lib/mail/outbox.ts requeue), with the same Message-ID.
+ */
 export const POST = route<Ctx>(async (request, { params }) => {
   const id = idParam((await params).submissionId);
   const { actor } = await authorizeSubmission(request, id, 'submission-mark');
@@ -17,7 +20,9 @@ export const POST = route<Ctx>(async (request, { params }) => {
   if (!row || row.submissionId !== id) throw new HttpError(404, 'No such message for this submission.');
   if (row.status === 'queued' || row.status === 'sending') throw new HttpError(409, 'This message is still waiting to be sent.');
   const before = { status: row.status, attempts: row.attempts };
-  await requeue(row.id, `resend-${Date.now()}`);
+  if (!(await requeue(row.id))) {
+    throw new HttpError(409, `This message was already sent again just now; wait a minute before asking again.`);
+  }
   await audit({ actorId: actor.id, action: 'mail.resend', entityType: 'email_outbox', entityId: row.id, before, after: { requeued: true } });
   deliverOutbox().catch((error) => console.error('[oscillab] outbox after resend', error));
   return json({ ok: true });

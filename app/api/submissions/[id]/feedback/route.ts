@@ -25,6 +25,7 @@ export const GET = route<Ctx>(async (request, { params }) => {
       'Content-Type': 'application/pdf',
       'Content-Disposition': `attachment; filename="feedback-${submission.id}-attempt-${submission.attempt}.pdf"`,
       'X-Content-Type-Options': 'nosniff',
+      'Content-Security-Policy': "sandbox; default-src 'none'; object-src 'none'; frame-ancestors 'none'",
       'Cache-Control': 'private, no-store',
     },
   });
