@@ -1,4 +1,4 @@
-/** Runs once when the server starts: the outbox worker resumes any mail left queued, and files left without a row are swept. */
+/** Runs once when the server starts: the outbox workers resume any mail and scores left queued, and files left without a row are swept. */
 export async function register() {
   if (process.env.NEXT_RUNTIME !== 'nodejs') return;
   if (process.env.STORAGE_SWEEP !== 'off') {
@@ -8,4 +8,7 @@ export async function register() {
   if (process.env.OUTBOX_WORKER === 'off') return;
   const { startOutboxWorker } = await import('./lib/mail/outbox');
   startOutboxWorker(Number(process.env.OUTBOX_INTERVAL_MS || 3000));
+  // Scores for a connected learning platform's gradebook go out the same way (lib/lti/scores.ts).
+  const { startScoreWorker } = await import('./lib/lti/scores');
+  startScoreWorker(Number(process.env.OUTBOX_INTERVAL_MS || 3000));
 }
