@@ -46,7 +46,7 @@ async function registrationOr404(id: number) {
   return row;
 }
 
-export async function createRegistration(data: z.output<typeof registrationSchema>, actorId: number) {
+export async function createRegistration(data: z.output<typeof registrationSchema>, actorId: number | null) {
   const { LtiRegistration, LtiDeployment } = models();
   return sequelize().transaction(async (t) => {
     if (await LtiRegistration.findOne({ where: { issuer: data.issuer, clientId: data.clientId }, transaction: t })) {
@@ -62,7 +62,7 @@ export async function createRegistration(data: z.output<typeof registrationSchem
   });
 }
 
-export async function updateRegistration(id: number, data: z.output<typeof registrationUpdateSchema>, actorId: number) {
+export async function updateRegistration(id: number, data: z.output<typeof registrationUpdateSchema>, actorId: number | null) {
   const { LtiRegistration, LtiDeployment } = models();
   const row = await registrationOr404(id);
   const before = row.toJSON();
@@ -83,7 +83,7 @@ export async function updateRegistration(id: number, data: z.output<typeof regis
   forgetPlatformKeys(before.keySetUrl);
 }
 
-export async function deleteRegistration(id: number, actorId: number) {
+export async function deleteRegistration(id: number, actorId: number | null) {
   const row = await registrationOr404(id);
   await sequelize().transaction(async (t) => {
     await row.destroy({ transaction: t });
@@ -99,7 +99,7 @@ async function checkCohort(courseId: number, cohortId: number | null | undefined
   if (cohort.archivedAt) throw new HttpError(400, 'The cohort is archived; choose an open one.');
 }
 
-export async function connectContext(data: z.output<typeof contextCreateSchema>, actorId: number) {
+export async function connectContext(data: z.output<typeof contextCreateSchema>, actorId: number | null) {
   const { LtiContext, Course } = models();
   await registrationOr404(data.registrationId);
   const course = await Course.findByPk(data.courseId);
@@ -124,7 +124,7 @@ export async function contextOr404(id: number) {
   return row;
 }
 
-export async function setDefaultCohort(id: number, cohortId: number | null, actorId: number) {
+export async function setDefaultCohort(id: number, cohortId: number | null, actorId: number | null) {
   const ctx = await contextOr404(id);
   await checkCohort(ctx.courseId, cohortId);
   const before = { defaultCohortId: ctx.defaultCohortId };
@@ -134,7 +134,7 @@ export async function setDefaultCohort(id: number, cohortId: number | null, acto
   });
 }
 
-export async function disconnectContext(id: number, actorId: number) {
+export async function disconnectContext(id: number, actorId: number | null) {
   const ctx = await contextOr404(id);
   await sequelize().transaction(async (t) => {
     await ctx.destroy({ transaction: t });

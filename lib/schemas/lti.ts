@@ -17,7 +17,7 @@ export const registrationSchema = z.object({
   authLoginUrl: platformUrl,
   authTokenUrl: platformUrl,
   keySetUrl: platformUrl,
-  tokenAudience: z.string().trim().max(1000).optional(),
+  tokenAudience: z.union([z.literal(''), text(1000).refine((v) => /^https?:\/\/[^\s]+$/.test(v) && URL.canParse(v), 'An address (the audience the platform expects in token requests).')]).optional(),
   active: z.boolean().optional(),
 });
 export type RegistrationInput = z.infer<typeof registrationSchema>;
