@@ -45,7 +45,7 @@ async function demoPracticalId() {
   const db = s.url ? new Sequelize(s.url, { logging: false }) : new Sequelize({ dialect: 'sqlite', storage: s.storage, logging: false });
   try {
     const rows = await db.query(
-      `SELECT p.id FROM practicals p JOIN courses c ON c.id = p."courseId" WHERE c.code = 'CHEM2041' AND p.title = 'HCl/DCl fundamental band'`,
+      `SELECT p.id FROM practicals p JOIN courses c ON c.id = p."courseId" WHERE c.code = 'CHEM2041' AND p.title = 'HCl/DCl fundamental band' AND p."copiedFromId" IS NULL ORDER BY p.id`,
       { type: QueryTypes.SELECT },
     );
     return rows[0] ? String(rows[0].id) : '';
@@ -57,7 +57,7 @@ async function demoPracticalId() {
 const children = [
   spawn(process.execPath, ['scripts/maildev.mjs', '1025', '1080'], { stdio: ['ignore', 'ignore', 'inherit'] }),
   spawn('npx', ['next', 'start', '-p', '3000'], { stdio: 'inherit', env: { ...process.env, ...env } }),
-  spawn('npx', ['tsx', 'scripts/fake-platform.ts'], {
+  spawn(process.execPath, ['--import', 'tsx', 'scripts/fake-platform.ts'], {
     stdio: 'inherit',
     env: {
       ...process.env,

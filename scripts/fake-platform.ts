@@ -80,8 +80,8 @@ type State = {
   down: { ags: boolean; jwks: boolean; token: boolean; roster: boolean };
 };
 
-const person = (id: string, given: string, family: string, email: string, roles: string[], status: User['status'] = 'Active'): User =>
-  ({ id, name: `${given} ${family}`.trim(), given_name: given, family_name: family, email, roles, status });
+const person = (id: string, given: string, family: string, email: string, roles: string[], status: User['status'] = 'Active', name = `${given} ${family}`.trim()): User =>
+  ({ id, name, given_name: given, family_name: family, email, roles, status });
 
 /** An invented course of the fictional Northmere University; the e-mails match Oscillab's demo accounts where one exists. */
 function initialState(): State {
@@ -89,14 +89,14 @@ function initialState(): State {
     keys: [],
     course: { id: 'nmu-chem2041-2026', label: 'CHEM2041', title: 'CHEM2041 Physical Chemistry Laboratory II (2026)' },
     users: [
-      person('nmu-8f31c0', 'Owen', 'Petrakis', 'instructor1@northmere.example', [`${M}Instructor`]),
+      person('nmu-8f31c0', 'Owen', 'Petrakis', 'instructor1@northmere.example', [`${M}Instructor`], 'Active', 'Dr Owen Petrakis'),
       person('nmu-2b77d4', 'Farid', 'Okonkwo-Lane', 'ta1@northmere.example', [`${M}Instructor`, TA]),
       person('nmu-5c09e2', 'Hollis', 'Brennan-Shaw', 'designer@northmere.example', [`${M}ContentDeveloper`]),
       person('nmu-91aa3f', 'Marguerite', 'Osei', 'courseadmin@northmere.example', [`${M}Administrator`]),
       person('nmu-40d1b8', 'Amara', 'Abernethy', 'student01@northmere.example', [`${M}Learner`]),
       person('nmu-40d1b9', 'Bram', 'Hartigan-Lowe', 'student02@northmere.example', [`${M}Learner`]),
       person('nmu-40d1ba', 'Celeste', 'Okafor', 'student03@northmere.example', [`${M}Learner`]),
-      person('nmu-40d1bc', 'Elin', 'Eskildsen', 'student05@northmere.example', [`${M}Learner`], 'Inactive'),
+      person('nmu-40d1bc', 'Elin', 'Dunmore', 'student05@northmere.example', [`${M}Learner`], 'Inactive'),
       person('nmu-77e0f5', 'Ottilie', 'Frane', 'student61@northmere.example', [`${M}Learner`]),
       person('nmu-c3b6a0', 'Casimir', 'Dorn', 'mentor@northmere.example', [`${M}Mentor`]),
     ],
@@ -130,11 +130,10 @@ async function init() {
   if (!state.keys.some((k) => k.active)) state.keys.push(await newKey());
   const demo = process.env.FAKE_PLATFORM_DEMO_PRACTICAL;
   if (demo && /^\d+$/.test(demo) && state.items.length === 0) {
-    // As if an instructor had placed it earlier through deep linking: the item carries Oscillab's custom parameter and a line item.
-    const item = placeItem('HCl/DCl fundamental band', { oscillab_practical: demo }, { scoreMaximum: 20, label: 'HCl/DCl fundamental band', resourceId: `oscillab-practical-${demo}`, tag: 'oscillab' });
+    // As if an instructor had placed it earlier through deep linking: the item carries Oscillab's custom
+    // parameter. It came without a gradebook column, so Oscillab makes one on the first release.
+    const item = placeItem('HCl/DCl fundamental band', { oscillab_practical: demo });
     item.id = 'nmu-item-hcl';
-    const li = state.lineItems.find((l) => l.id === item.lineItemId);
-    if (li) li.resourceLinkId = item.id;
   }
   save();
 }

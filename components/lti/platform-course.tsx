@@ -81,6 +81,7 @@ function Roster({ context, autoload }: { context: PlatformContextView; autoload:
   const [preview, setPreview] = useState<PlatformRosterPreview | null>(null);
   const [busy, setBusy] = useState(false);
   const [msg, setMsg] = useState<Message>(null);
+  const [confirmed, setConfirmed] = useState(false);
   const load = async () => {
     setBusy(true);
     setMsg(null);
@@ -100,6 +101,7 @@ function Roster({ context, autoload }: { context: PlatformContextView; autoload:
     const a = r.data.applied;
     setMsg({ ok: true, text: `Done: ${a.added} added, ${a.renamed} renamed, ${a.connected} connected, ${a.removed} role(s) ended.` });
     setPreview(null);
+    setConfirmed(true);
     router.refresh();
   };
   useEffect(() => {
@@ -111,7 +113,7 @@ function Roster({ context, autoload }: { context: PlatformContextView; autoload:
     <section aria-labelledby={`roster-${context.id}`} className="card">
       <h2 id={`roster-${context.id}`} className="mb-1">Roster from the learning platform</h2>
       <p className="hint mb-3">Compare the course with the platform’s list of participants. The comparison writes nothing; confirming writes every change shown, or none if the roster moved in between. Last confirmed: {when(context.rosterSyncedAt)}.</p>
-      {autoload && <p className="mb-2 font-bold" role="status">The learning platform’s roster differs from this course: review it below.</p>}
+      {autoload && !confirmed && <p className="mb-2 font-bold" role="status">The learning platform’s roster differs from this course: review it below.</p>}
       <div className="flex flex-wrap gap-2">
         <button type="button" className="btn-quiet" disabled={busy || !context.roster} onClick={load}>Compare with the platform</button>
         <button type="button" className="btn" disabled={busy || !preview || changes === 0} onClick={confirm}>Confirm {changes ? `${changes} change(s)` : 'changes'}</button>

@@ -59,7 +59,7 @@ export async function queueReleaseScores(view: ReleasedView, releaseNumber: numb
         platformUserId: target.sub,
         scoreGiven: view.submission.awardedTotal ?? 0,
         scoreMaximum: Math.max(scoreMaximum, 0),
-        comment: `Feedback: ${toolOrigin()}/api/submissions/${view.submission.id}/feedback`,
+        comment: `Feedback: ${toolOrigin()}/student/practicals/${view.practical.id}`,
         scoredAt: now,
         lineItemUrl: null,
         nextAttemptAt: now,

@@ -228,7 +228,7 @@ describe('the whole loop with the learning platform', () => {
     const results = state.results.filter((x) => x.userId === P.amara);
     expect(results).toHaveLength(1);
     expect(results[0]).toMatchObject({ scoreGiven: marked.awardedTotal, scoreMaximum: 8, activityProgress: 'Completed', gradingProgress: 'FullyGraded' });
-    expect(results[0].comment).toContain(`/api/submissions/${submissionId}/feedback`);
+    expect(results[0].comment).toBe(`Feedback: ${OSCILLAB}/student/practicals/${practicalId}`);
     const gradebook = await (await fetch(`${platform.url}/gradebook`)).text();
     expect(gradebook).toContain(`data-score="${marked.awardedTotal}"`);
     expect(await deliverScores()).toMatchObject({ sent: 0 });

@@ -23,12 +23,19 @@ export default async function DeepLinkChooser({ searchParams }: { searchParams: 
       </>
     );
   }
-  const { LtiContext, Course, Practical } = models();
+  const { LtiContext, Course, Practical, PracticalCohort, Cohort } = models();
   const ctx = await LtiContext.findByPk(ticket.ltiContextId);
   if (!ctx) return <p className="card" role="alert">✗ This learning-platform course is no longer connected to Oscillab.</p>;
   await authorizePage({ kind: 'course-manage', courseId: ctx.courseId });
   const course = (await Course.findByPk(ctx.courseId))!;
-  const practicals = await Practical.findAll({ where: { courseId: ctx.courseId, archivedAt: null }, order: [['title', 'ASC']] });
+  const practicals = await Practical.findAll({ where: { courseId: ctx.courseId, archivedAt: null }, order: [['title', 'ASC'], ['id', 'DESC']] });
+  // Practicals copied from year to year share a title: the cohorts they are set for tell them apart.
+  const placements = await PracticalCohort.findAll({ where: { practicalId: practicals.map((p) => p.id) } });
+  const cohorts = await Cohort.findAll({ where: { id: [...new Set(placements.map((p) => p.cohortId))] } });
+  const setFor = (practicalId: number) => {
+    const names = placements.filter((p) => p.practicalId === practicalId).map((p) => cohorts.find((c) => c.id === p.cohortId)).filter((c) => c !== undefined).map((c) => `${c.name}, ${c.term}`);
+    return names.length ? `for ${names.join('; ')}` : 'not set for any cohort';
+  };
   return (
     <>
       <PageHeader title="Choose a practical for the learning platform" lead={`The new item in “${ctx.title ?? ctx.contextId}” will open this practical of ${course.code}; its marks go to a gradebook column of the same name.`} />
@@ -44,7 +51,7 @@ export default async function DeepLinkChooser({ searchParams }: { searchParams: 
                 <li key={p.id}>
                   <label className="flex items-baseline gap-2">
                     <input type="radio" name="practicalId" value={p.id} defaultChecked={i === 0} />
-                    <span><span className="font-bold">{p.title}</span> <span className="text-sm text-ink-soft">· {p.mode === 'practice' ? 'practice' : 'assessed'} · {p.species.map(speciesDisplay).join(', ')}</span></span>
+                    <span><span className="font-bold">{p.title}</span> <span className="text-sm text-ink-soft">· {p.mode === 'practice' ? 'practice' : 'assessed'} · {p.species.map(speciesDisplay).join(', ')} · {setFor(p.id)}</span></span>
                   </label>
                 </li>
               ))}
