@@ -8,7 +8,7 @@
  * practical of that course. Any refusal rolls everything back.
  */
 import { decodeJwt, decodeProtectedHeader, errors, jwtVerify, type JWTPayload } from 'jose';
-import type { Transaction } from 'sequelize';
+import { UniqueConstraintError, type Transaction } from 'sequelize';
 import { sequelize } from '@/lib/db';
 import { audit } from '@/lib/audit';
 import { models } from '@/models';
@@ -271,6 +271,18 @@ export type LaunchOutcome = {
 
 /** The writes of a verified launch, all in one transaction; refusals roll back. */
 export async function completeLaunch(v: VerifiedLaunch): Promise<LaunchOutcome> {
+  try {
+    return await writeLaunch(v);
+  } catch (error) {
+    // Two first launches of the same person at the same moment: one makes the account, the other meets the unique index.
+    if (error instanceof UniqueConstraintError) {
+      throw refused(409, 'simultaneous-launch', 'Another sign-in of yours was happening at the same moment', 'Oscillab finished the other one first and left this one unused.', 'Open the item again from the learning platform.');
+    }
+    throw error;
+  }
+}
+
+async function writeLaunch(v: VerifiedLaunch): Promise<LaunchOutcome> {
   const { LtiContext, LtiLaunchState, LtiResourceLink, LtiLineItem, Practical, PracticalCohort, Course } = models();
   return sequelize().transaction(async (t) => {
     const [used] = await LtiLaunchState.update({ usedAt: new Date() }, { where: { id: v.stateId, usedAt: null }, transaction: t });

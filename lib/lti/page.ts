@@ -52,7 +52,7 @@ export function refusalPage(error: LaunchRefused, headers?: Record<string, strin
     status: error.status,
     className: 'refused',
     headers: { 'x-oscillab-refusal': error.code, ...headers },
-    body: `<h1>${escapeHtml(error.title)}</h1><p>${escapeHtml(error.message)}</p><p>${escapeHtml(error.advice)}</p><p class="soft">Code: <code>${escapeHtml(error.code)}</code>. Nothing was changed in Oscillab.</p>`,
+    body: `<h1>${escapeHtml(error.title)}</h1><p>${escapeHtml(error.message)}</p><p>${escapeHtml(error.advice)}</p><p class="soft">Code: <code>${escapeHtml(error.code)}</code>.${error.status < 500 || error.code === 'keyset-unreachable' ? ' Nothing was changed in Oscillab.' : ''}</p>`,
   });
 }
 
