@@ -153,7 +153,7 @@ function Scores({ context, rows }: { context: PlatformContextView; rows: ScoreRo
       {rows.length === 0 ? (
         <p className="text-ink-soft">No score has been queued yet: scores go out when marking is released, for students who came from the platform or its roster.</p>
       ) : (
-        <table className="data-table">
+        <div className="overflow-x-auto"><table className="data-table">
           <thead><tr><th scope="col">Student</th><th scope="col">Practical</th><th scope="col" className="num">Score</th><th scope="col">State</th><th scope="col" className="num">Attempts</th><th scope="col">Last error</th><th scope="col"><span className="sr-only">Actions</span></th></tr></thead>
           <tbody>
             {rows.map((r) => (
@@ -165,7 +165,7 @@ function Scores({ context, rows }: { context: PlatformContextView; rows: ScoreRo
               </tr>
             ))}
           </tbody>
-        </table>
+        </table></div>
       )}
       <Status message={msg} />
     </section>

@@ -129,14 +129,14 @@ export function RegistrationsAdmin({ registrations, keys, courses, cohorts }: { 
           <button type="button" className="btn-quiet" onClick={rotate}>Rotate the key</button>
         </div>
         <p className="hint mb-2">Oscillab signs its token requests and deep-linking answers with the active key; the platform reads the public half from the key set URL above. A retired key stays published for 24 hours.</p>
-        <table className="data-table">
+        <div className="overflow-x-auto"><table className="data-table">
           <thead><tr><th scope="col">Key id</th><th scope="col">State</th><th scope="col">Made</th><th scope="col">Retired</th></tr></thead>
           <tbody>
             {keys.map((k) => (
-              <tr key={k.kid}><td><code className="text-xs">{k.kid}</code></td><td>{k.status === 'active' ? '● active (signs)' : k.published ? '◐ retired, still published' : '○ retired'}</td><td>{when(k.createdAt)}</td><td>{when(k.retiredAt)}</td></tr>
+              <tr key={k.kid}><td><code className="text-xs break-all">{k.kid}</code></td><td>{k.status === 'active' ? '● active (signs)' : k.published ? '◐ retired, still published' : '○ retired'}</td><td>{when(k.createdAt)}</td><td>{when(k.retiredAt)}</td></tr>
             ))}
           </tbody>
-        </table>
+        </table></div>
         <Status message={keyMsg} />
       </section>
     </div>
@@ -170,19 +170,19 @@ function Contexts({ registration, courses, cohorts }: { registration: Registrati
       {registration.contexts.length === 0 ? (
         <p className="text-sm text-ink-soft">None yet. A launch from an unconnected course is refused with a page naming its context id.</p>
       ) : (
-        <table className="data-table mt-1">
+        <div className="overflow-x-auto"><table className="data-table mt-1">
           <thead><tr><th scope="col">Platform course (context id)</th><th scope="col">Oscillab course</th><th scope="col">Services offered</th><th scope="col"><span className="sr-only">Actions</span></th></tr></thead>
           <tbody>
             {registration.contexts.map((c) => (
               <tr key={c.id}>
-                <td>{c.title ?? '—'} <code className="text-xs">{c.contextId}</code></td>
+                <td>{c.title ?? '—'} <code className="text-xs break-all">{c.contextId}</code></td>
                 <td><a href={`/courses/${c.courseId}/learning-platform`}>{c.courseCode}</a></td>
                 <td>{c.services.roster ? '✓ roster' : '– roster'} · {c.services.gradebook ? '✓ gradebook' : '– gradebook'}</td>
                 <td><button type="button" className="btn-quiet" onClick={() => disconnect(c.id)}>Disconnect</button></td>
               </tr>
             ))}
           </tbody>
-        </table>
+        </table></div>
       )}
       <div className="mt-2 flex flex-wrap items-end gap-2">
         <div>

@@ -25,7 +25,7 @@ export function ScoreDeliveryTable({ submissionId, initial }: { submissionId: nu
       {rows.length === 0 ? (
         <p className="text-ink-soft">No score has been queued for this submission (it goes out on release, for a student known to the learning platform).</p>
       ) : (
-        <table className="data-table">
+        <div className="overflow-x-auto"><table className="data-table">
           <thead><tr><th scope="col">Platform course</th><th scope="col" className="num">Score</th><th scope="col">State</th><th scope="col" className="num">Attempts</th><th scope="col">Last error</th><th scope="col"><span className="sr-only">Actions</span></th></tr></thead>
           <tbody>
             {rows.map((d) => (
@@ -39,7 +39,7 @@ export function ScoreDeliveryTable({ submissionId, initial }: { submissionId: nu
               </tr>
             ))}
           </tbody>
-        </table>
+        </table></div>
       )}
       <p aria-live="polite" className="mt-2 text-sm">{msg ?? ''}</p>
     </section>

@@ -78,19 +78,19 @@ test('a refused launch (a role Oscillab has nothing for) shows a clear page in t
 
 test('a TA from the platform releases a marked submission; the score reaches the platform gradebook and shows as sent', async ({ page }) => {
   test.setTimeout(120_000);
-  // Celeste Okafor (student03) launches once, so Oscillab knows her platform id.
+  // Vesna Whitlock (student22, Group B: the other browser tests use Group A's queue) launches once, so Oscillab knows her platform id.
   await page.goto(`${PLATFORM}/launch?item=${encodeURIComponent(itemId)}`);
-  const [student] = await Promise.all([page.waitForEvent('popup'), page.getByRole('button', { name: 'Launch as Celeste Okafor in a new window' }).click()]);
+  const [student] = await Promise.all([page.waitForEvent('popup'), page.getByRole('button', { name: 'Launch as Vesna Whitlock in a new window' }).click()]);
   await student.waitForURL(/\/student\/practicals\/\d+$/, { timeout: 30_000 });
   await student.close();
   await page.context().clearCookies();
 
   await page.goto(`${PLATFORM}/launch?item=${encodeURIComponent(itemId)}`);
-  const [ta] = await Promise.all([page.waitForEvent('popup'), page.getByRole('button', { name: 'Launch as Farid Okonkwo-Lane in a new window' }).click()]);
+  const [ta] = await Promise.all([page.waitForEvent('popup'), page.getByRole('button', { name: 'Launch as Tomas Vey in a new window' }).click()]);
   await ta.waitForURL(/\/marking$/, { timeout: 30_000 });
   const origin = new URL(ta.url()).origin;
   const queue = await (await ta.request.get('/api/marking/queue?sort=student&pageSize=100')).json();
-  const row = queue.rows.find((r: { student: { name: string } }) => r.student.name === 'Celeste Okafor');
+  const row = queue.rows.find((r: { student: { name: string } }) => r.student.name === 'Vesna Whitlock');
   expect(row).toBeTruthy();
   const headers = { origin, 'content-type': 'application/json' };
   const accepted = await (await ta.request.post(`/api/marking/${row.id}/accept`, { headers, data: { version: row.version } })).json();
@@ -106,7 +106,7 @@ test('a TA from the platform releases a marked submission; the score reaches the
     await page.goto(`${PLATFORM}/gradebook`);
     await expect(page.locator('td[data-score]')).toHaveCount(1, { timeout: 1000 });
   }).toPass({ timeout: 30_000 });
-  const cell = page.locator('tr', { hasText: 'Celeste Okafor' }).locator('td[data-score]');
+  const cell = page.locator('tr', { hasText: 'Vesna Whitlock' }).locator('td[data-score]');
   const total = (await (await ta.request.get(`/api/marking/${row.id}`)).json()).submission.awardedTotal;
   await expect(cell).toHaveAttribute('data-score', String(total));
   await shoot(page, 'platform-gradebook');

@@ -164,7 +164,7 @@ describe('the whole loop with the learning platform', () => {
     expect(await tableChecksums()).toEqual(before);
     const status = (sub: string) => preview.rows.find((r: { sub: string }) => r.sub === sub)?.status;
     // Learners, the TA, the content developer and the course administrator are new; the instructor launched already.
-    expect(preview.counts).toMatchObject({ new: 7, changed: 0, leaving: 0, unchanged: 1 });
+    expect(preview.counts).toMatchObject({ new: 8, changed: 0, leaving: 0, unchanged: 1 });
     expect(status(P.instructor)).toBe('unchanged');
     expect(status(P.mentor)).toBe('not-taken');
     expect(status('nmu-40d1bc')).toBe('not-taken'); // inactive on the platform and not in the course
@@ -176,12 +176,12 @@ describe('the whole loop with the learning platform', () => {
     expect(await tableChecksums()).toEqual(before);
     const done = await confirm(preview.fingerprint);
     expect(done.status).toBe(200);
-    expect((await done.json()).applied).toMatchObject({ added: 7, removed: 0 });
+    expect((await done.json()).applied).toMatchObject({ added: 8, removed: 0 });
     const { User, CourseMembership } = models();
     const amara = (await User.findOne({ where: { email: 'student01@northmere.example' } }))!;
     expect(await CourseMembership.findOne({ where: { userId: amara.id, courseId: w.course.id } })).toMatchObject({ role: 'student', cohortId: w.cohort.id });
-    const farid = (await User.findOne({ where: { email: 'ta1@northmere.example' } }))!;
-    expect((await CourseMembership.findAll({ where: { userId: farid.id } })).map((m) => [m.courseId, m.role])).toEqual([[w.course.id, 'ta']]);
+    const tomas = (await User.findOne({ where: { email: 'ta3@northmere.example' } }))!;
+    expect((await CourseMembership.findAll({ where: { userId: tomas.id } })).map((m) => [m.courseId, m.role])).toEqual([[w.course.id, 'ta']]);
 
     // On the platform: Celeste withdraws, Bram's name changes.
     await platform.control('users', { set: { id: P.celeste, status: 'Inactive' } });
@@ -237,7 +237,7 @@ describe('the whole loop with the learning platform', () => {
 
   it('a launch never grants a role in another course', async () => {
     const { User, CourseMembership } = models();
-    const platformPeople = await User.findAll({ where: { email: ['instructor1@northmere.example', 'student01@northmere.example', 'ta1@northmere.example'] } });
+    const platformPeople = await User.findAll({ where: { email: ['instructor1@northmere.example', 'student01@northmere.example', 'ta3@northmere.example'] } });
     const courses = await CourseMembership.findAll({ where: { userId: platformPeople.map((u) => u.id) } });
     expect(new Set(courses.map((m) => m.courseId))).toEqual(new Set([w.course.id]));
   });

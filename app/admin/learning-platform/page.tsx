@@ -48,14 +48,14 @@ export default async function LearningPlatformAdmin() {
       <section aria-labelledby="roles-heading" className="card mt-6">
         <h2 id="roles-heading" className="mb-2">How the platform’s roles map</h2>
         <p className="hint mb-3">Only roles in the launch’s own course count, and only in the Oscillab course it is connected to. Any other role (Mentor, Observer …) gives nothing; the person sees a page saying so.</p>
-        <table className="data-table">
+        <div className="overflow-x-auto"><table className="data-table">
           <thead><tr><th scope="col">Platform role</th><th scope="col">Oscillab role</th><th scope="col">Note</th></tr></thead>
           <tbody>
             {ROLE_MAP.map((r) => (
-              <tr key={r.platform}><td><code className="text-xs">{r.platform}</code></td><td>{ROLE_WORDS[r.oscillab]}</td><td>{r.note || '—'}</td></tr>
+              <tr key={r.platform}><td><code className="text-xs break-all">{r.platform}</code></td><td>{ROLE_WORDS[r.oscillab]}</td><td>{r.note || '—'}</td></tr>
             ))}
           </tbody>
-        </table>
+        </table></div>
       </section>
     </>
   );
