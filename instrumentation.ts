@@ -1,4 +1,4 @@
-/** Runs once when the server starts: forwarding headers are guarded (lib/client-address.ts), the outbox worker resumes any mail left queued, and files left without a row are swept. */
+/** Runs once when the server starts: forwarding headers are guarded (lib/client-address.ts), the outbox workers resume any mail and scores left queued, and files left without a row are swept. */
 export async function register() {
   if (process.env.NEXT_RUNTIME !== 'nodejs') return;
   // First: forwarding headers a client wrote itself are dropped before any request is handled.
@@ -11,4 +11,7 @@ export async function register() {
   if (process.env.OUTBOX_WORKER === 'off') return;
   const { startOutboxWorker } = await import('./lib/mail/outbox');
   startOutboxWorker(Number(process.env.OUTBOX_INTERVAL_MS || 3000));
+  // Scores for a connected learning platform's gradebook go out the same way (lib/lti/scores.ts).
+  const { startScoreWorker } = await import('./lib/lti/scores');
+  startScoreWorker(Number(process.env.OUTBOX_INTERVAL_MS || 3000));
 }

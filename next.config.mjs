@@ -44,6 +44,23 @@ export const USER_FILE_ROUTES = [
   { source: '/api/submissions/:id/feedback', framed: false },
 ];
 
+/**
+ * The learning platform's endpoints answer with small pages of their own (lib/lti/page.ts). Login
+ * and launch pages may appear inside the platform's frame (they only offer to open Oscillab in a
+ * window of its own, or say why a launch was refused); the deep-linking answer is a form that posts
+ * itself back to the platform, so its form-action must reach the platform (https, or loopback for
+ * the local fake platform). CSP frame-ancestors takes precedence over X-Frame-Options.
+ */
+const ltiPolicy = (frameAncestors, formAction) =>
+  [
+    "default-src 'none'",
+    "script-src 'unsafe-inline'",
+    "style-src 'unsafe-inline'",
+    `form-action ${formAction}`,
+    `frame-ancestors ${frameAncestors}`,
+    "base-uri 'none'",
+  ].join('; ');
+
 const nextConfig = {
   serverExternalPackages: ['sequelize', 'sqlite3', 'pg', 'pg-hstore', 'jcampconverter', 'nodemailer', 'formidable'],
   poweredByHeader: false,
@@ -53,6 +70,9 @@ const nextConfig = {
     return [
       { source: '/:path*', headers: securityHeaders },
       ...USER_FILE_ROUTES.map(({ source, framed }) => ({ source, headers: userFileHeaders(framed) })),
+      { source: '/api/lti/login', headers: [{ key: 'Content-Security-Policy', value: ltiPolicy('*', "'self'") }] },
+      { source: '/api/lti/launch', headers: [{ key: 'Content-Security-Policy', value: ltiPolicy('*', "'self'") }] },
+      { source: '/api/lti/deep-link', headers: [{ key: 'Content-Security-Policy', value: ltiPolicy("'none'", "'self' https: http://localhost:* http://127.0.0.1:*") }] },
     ];
   },
 };

@@ -4,6 +4,9 @@ import { defineConfig } from '@playwright/test';
 const port = Number(process.env.E2E_PORT ?? 3100);
 const securePort = port + 1;
 process.env.E2E_SECURE_URL ??= `http://localhost:${securePort}`;
+// The learning-platform stand-in (tests/e2e/lti.spec.ts); scripts/e2e.sh seeds its registration with this address.
+const platformPort = Number(process.env.E2E_PLATFORM_PORT ?? port + 50);
+process.env.E2E_PLATFORM_URL ??= `http://127.0.0.1:${platformPort}`;
 
 export default defineConfig({
   testDir: 'tests/e2e',
@@ -40,6 +43,14 @@ export default defineConfig({
       reuseExistingServer: false,
       timeout: 120_000,
       env: { ...process.env, NEXTAUTH_URL: `https://localhost:${securePort}`, OUTBOX_WORKER: 'off', UPLOAD_IDLE_MS: '2000' } as Record<string, string>,
+    },
+    {
+      // A learning platform on loopback in its own process, for launches into the first server.
+      command: 'node --import tsx scripts/fake-platform.ts',
+      url: `http://127.0.0.1:${platformPort}/health`,
+      reuseExistingServer: false,
+      timeout: 60_000,
+      env: { ...process.env, FAKE_PLATFORM_PORT: String(platformPort), OSCILLAB_URL: `http://localhost:${port}`, FAKE_PLATFORM_STATE: '' } as Record<string, string>,
     },
   ],
 });

@@ -22,11 +22,22 @@ import { AuditEntry } from './audit-entry';
 import { OneTimeToken } from './one-time-token';
 import { SignInFailure } from './sign-in-failure';
 import { EndedSession } from './ended-session';
+import { LtiToolKey } from './lti-tool-key';
+import { LtiRegistration } from './lti-registration';
+import { LtiDeployment } from './lti-deployment';
+import { LtiContext } from './lti-context';
+import { LtiResourceLink } from './lti-resource-link';
+import { LtiLineItem } from './lti-line-item';
+import { LtiUserLink } from './lti-user-link';
+import { LtiLaunchState } from './lti-launch-state';
+import { LtiScoreOutbox } from './lti-score-outbox';
 
 const all = {
   User, Course, Cohort, CourseMembership, TaAssignment, Practical, PracticalCohort, QuantityDefinition,
   ToleranceBand, Submission, SubmittedValue, LineAssignment, Upload, CheckResult, SlipFinding, Mark,
   Moderation, FeedbackDocument, EmailOutbox, AuditEntry, OneTimeToken, SignInFailure, EndedSession,
+  // The learning-platform connection (lib/lti/).
+  LtiToolKey, LtiRegistration, LtiDeployment, LtiContext, LtiResourceLink, LtiLineItem, LtiUserLink, LtiLaunchState, LtiScoreOutbox,
 };
 
 let boundTo: unknown = null;
@@ -76,4 +87,5 @@ export {
   User, Course, Cohort, CourseMembership, TaAssignment, Practical, PracticalCohort, QuantityDefinition,
   ToleranceBand, Submission, SubmittedValue, LineAssignment, Upload, CheckResult, SlipFinding, Mark,
   Moderation, FeedbackDocument, EmailOutbox, AuditEntry, OneTimeToken, SignInFailure, EndedSession,
+  LtiToolKey, LtiRegistration, LtiDeployment, LtiContext, LtiResourceLink, LtiLineItem, LtiUserLink, LtiLaunchState, LtiScoreOutbox,
 };

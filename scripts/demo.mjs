@@ -1,5 +1,6 @@
 #!/usr/bin/env node
-// `npm run demo`: migrate, seed, build, then run the app on :3000 and the mail catcher on :1025/:1080.
+// `npm run demo`: migrate, seed, build, then run the app on :3000, the mail catcher on :1025/:1080 and
+// the learning-platform stand-in on 127.0.0.1:3030 (FAKE_PLATFORM_PORT), each in its own process.
 import { spawn, spawnSync } from 'node:child_process';
 import crypto from 'node:crypto';
 import fs from 'node:fs';
@@ -17,7 +18,10 @@ const run = (cmd, args, env = {}) => {
 fs.mkdirSync('data', { recursive: true });
 const secretFile = path.join('data', '.session-secret');
 if (!fs.existsSync(secretFile)) fs.writeFileSync(secretFile, crypto.randomBytes(32).toString('hex'), { mode: 0o600 });
+const platformPort = process.env.FAKE_PLATFORM_PORT || '3030';
+const platformUrl = `http://127.0.0.1:${platformPort}`;
 const env = {
+  LTI_DEMO_PLATFORM_URL: platformUrl,
   NEXTAUTH_SECRET: process.env.NEXTAUTH_SECRET || fs.readFileSync(secretFile, 'utf8').trim(),
   NEXTAUTH_URL: process.env.NEXTAUTH_URL || 'http://localhost:3000',
   SMTP_URL: process.env.SMTP_URL || 'smtp://127.0.0.1:1025',
@@ -33,11 +37,38 @@ if (process.env.SKIP_BUILD !== '1') {
   run('npx', ['next', 'build'], env);
 }
 
+/** The seeded practical the stand-in's first item opens (placed as deep linking would have placed it). */
+async function demoPracticalId() {
+  const { Sequelize, QueryTypes } = require('sequelize');
+  const { settings } = require('../lib/db/cli-config.cjs');
+  const s = settings();
+  const db = s.url ? new Sequelize(s.url, { logging: false }) : new Sequelize({ dialect: 'sqlite', storage: s.storage, logging: false });
+  try {
+    const rows = await db.query(
+      `SELECT p.id FROM practicals p JOIN courses c ON c.id = p."courseId" WHERE c.code = 'CHEM2041' AND p.title = 'HCl/DCl fundamental band' AND p."copiedFromId" IS NULL ORDER BY p.id`,
+      { type: QueryTypes.SELECT },
+    );
+    return rows[0] ? String(rows[0].id) : '';
+  } finally {
+    await db.close();
+  }
+}
+
 const DEMO_HOST = process.env.HOST || '127.0.0.1';
 const children = [
   spawn(process.execPath, ['scripts/maildev.mjs', '1025', '1080'], { stdio: ['ignore', 'ignore', 'inherit'] }),
   // Loopback only unless HOST says otherwise: the demo accounts share a published password.
   spawn('npx', ['next', 'start', '-p', '3000', '-H', DEMO_HOST], { stdio: 'inherit', env: { ...process.env, ...env } }),
+  spawn(process.execPath, ['--import', 'tsx', 'scripts/fake-platform.ts'], {
+    stdio: 'inherit',
+    env: {
+      ...process.env,
+      FAKE_PLATFORM_PORT: platformPort,
+      OSCILLAB_URL: env.NEXTAUTH_URL,
+      FAKE_PLATFORM_STATE: process.env.FAKE_PLATFORM_STATE || path.join('data', 'fake-platform.json'),
+      FAKE_PLATFORM_DEMO_PRACTICAL: await demoPracticalId(),
+    },
+  }),
 ];
 const stop = () => { for (const c of children) c.kill('SIGTERM'); process.exit(0); };
 process.on('SIGINT', stop);
@@ -56,6 +87,7 @@ setTimeout(() => {
   console.log(' Oscillab demo is running');
   console.log(`   App:        http://localhost:3000   (sign in there; listening on ${DEMO_HOST} only)`);
   console.log('   Mail inbox: http://localhost:1080   (invitations and feedback land here)');
+  console.log(`   Learning platform (local stand-in): ${platformUrl}   (launch into Oscillab as its instructor or students; scores come back to its gradebook)`);
   console.log(`   Password for every demo account: ${DEMO_PASSWORD}`);
   for (const [role, email] of accounts) console.log(`   ${role.padEnd(44)} ${email}`);
   console.log(' Stop with Ctrl+C.');

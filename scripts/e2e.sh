@@ -8,6 +8,9 @@ export UPLOAD_DIR="${E2E_DIR}/uploads"
 export NEXTAUTH_SECRET=${NEXTAUTH_SECRET:-oscillab-test-secret}
 export E2E_PORT=${E2E_PORT:-3100}
 export NEXTAUTH_URL=http://localhost:${E2E_PORT}
+# The learning-platform stand-in (playwright.config.ts starts it); the demo seed registers it at this address.
+export E2E_PLATFORM_PORT=${E2E_PLATFORM_PORT:-$((E2E_PORT + 50))}
+export LTI_DEMO_PLATFORM_URL=http://127.0.0.1:${E2E_PLATFORM_PORT}
 export NEXT_TELEMETRY_DISABLED=1
 npx sequelize-cli db:migrate > /dev/null
 npm run --silent db:seed > /dev/null

@@ -10,7 +10,9 @@ export default async function AdminHome() {
   const [courses, users, cohorts] = await Promise.all([Course.findAll({ order: [['code', 'ASC']] }), User.count(), Cohort.count()]);
   return (
     <>
-      <PageHeader title="Site administration" lead="Courses, people and their roles across the department." />
+      <PageHeader title="Site administration" lead="Courses, people and their roles across the department.">
+        <a className="btn-quiet" href="/admin/learning-platform">Learning platform</a>
+      </PageHeader>
       <div className="grid gap-4 md:grid-cols-3">
         <div className="card"><p className="text-sm text-ink-soft">People</p><p className="num text-2xl">{users}</p></div>
         <div className="card"><p className="text-sm text-ink-soft">Courses</p><p className="num text-2xl">{courses.length}</p></div>

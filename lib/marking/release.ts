@@ -10,6 +10,7 @@ import { sequelize } from '@/lib/db';
 import { audit } from '@/lib/audit';
 import { HttpError } from '@/lib/http';
 import { queueEmail } from '@/lib/mail/outbox';
+import { queueReleaseScores } from '@/lib/lti/scores';
 import { feedbackPath } from '@/lib/storage';
 import { renderEmail } from '@/lib/templates';
 import { buildFeedbackPdf } from '@/lib/pdf/feedback';
@@ -57,6 +58,8 @@ export async function releaseOne(actorId: number, submissionId: number): Promise
         { dedupeKey: `release:${submissionId}:${n}`, to: view.student.email, subject: mail.subject, text: mail.text, submissionId, feedbackDocumentId: doc.id },
         t,
       );
+      // The score for the learning platform's gradebook, if the course is connected to one.
+      await queueReleaseScores(view, n, t);
       await audit(
         { actorId, action: 'submission.release', entityType: 'submission', entityId: submissionId, before: { status: 'marked' }, after: { status: 'released', feedbackDocumentId: doc.id } },
         t,

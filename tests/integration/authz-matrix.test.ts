@@ -16,6 +16,7 @@ import { buildFixtureWorld, freshSubmission, JCAMP, type FixtureWorld } from '..
 import { hashPassword } from '@/lib/auth/password';
 import { models } from '@/models';
 import { deliverOutbox } from '@/lib/mail/outbox';
+import { connectContext, createRegistration } from '@/lib/lti/admin';
 
 const ROLES = ['anonymous', 'student', 'otherStudent', 'ta', 'otherTa', 'instructor', 'otherLead', 'admin'] as const;
 type Role = (typeof ROLES)[number];
@@ -49,6 +50,22 @@ async function spareTa(w: FixtureWorld, tag: string) {
   return { user: u, membership: m };
 }
 const version = async (id: number) => (await models().Submission.findByPk(id))!.version;
+
+
+const LTI_REGISTRATION = {
+  name: 'Matrix platform', issuer: 'https://matrix-platform.example', clientId: 'matrix-client', deploymentIds: ['matrix-deployment'],
+  authLoginUrl: 'https://matrix-platform.example/auth', authTokenUrl: 'https://matrix-platform.example/token', keySetUrl: 'https://matrix-platform.example/jwks',
+};
+let ltiMemo: { registrationId: number; contextId: number } | null = null;
+/** A registration and a connected context of the world's course, made once. */
+async function ltiRows(w: FixtureWorld) {
+  if (!ltiMemo) {
+    const reg = await createRegistration(LTI_REGISTRATION, w.people.admin.id);
+    const ctx = await connectContext({ registrationId: reg.id, contextId: 'matrix-context', courseId: w.course.id }, w.people.admin.id);
+    ltiMemo = { registrationId: reg.id, contextId: ctx.id };
+  }
+  return ltiMemo;
+}
 
 //                                                         anon student otherSt  ta  otherTa instr otherLead admin
 const MATRIX: Record<string, Case> = {
@@ -349,6 +366,114 @@ const MATRIX: Record<string, Case> = {
   'GET /api/uploads/[id]': {
     expect: [401, 200, 403, 200, 403, 200, 403, 200],
     call: (w) => ({ url: `/api/uploads/${w.spectrumUpload.id}`, params: { id: String(w.spectrumUpload.id) } }),
+  },
+  // The learning-platform connection (lib/lti). Login and launch are public by design (the platform
+  // calls them across sites; the token and the browser-bound state are the proof), so every caller
+  // gets the same refusal page for a request without a valid launch.
+  'GET /api/lti/jwks': {
+    expect: [200, 200, 200, 200, 200, 200, 200, 200],
+    call: () => ({ url: '/api/lti/jwks' }),
+  },
+  'GET /api/lti/login': {
+    expect: [400, 400, 400, 400, 400, 400, 400, 400],
+    call: () => ({ url: '/api/lti/login?login_hint=x' }),
+  },
+  'POST /api/lti/login': {
+    expect: [400, 400, 400, 400, 400, 400, 400, 400],
+    call: () => ({ url: '/api/lti/login', rawBody: 'login_hint=x', headers: { 'content-type': 'application/x-www-form-urlencoded' } }),
+  },
+  'POST /api/lti/launch': {
+    expect: [401, 401, 401, 401, 401, 401, 401, 401],
+    call: () => ({ url: '/api/lti/launch', rawBody: 'id_token=x.y.z&state=not-this-browsers&oscillab_relay=1', headers: { 'content-type': 'application/x-www-form-urlencoded' } }),
+  },
+  'POST /api/lti/deep-link': {
+    // Signed in, then the ticket (bound to the account that launched) decides: a forged one is a 400 for everyone.
+    expect: [401, 400, 400, 400, 400, 400, 400, 400],
+    call: () => ({ url: '/api/lti/deep-link', rawBody: 't=forged&practicalId=1', headers: { 'content-type': 'application/x-www-form-urlencoded' } }),
+  },
+  'GET /api/lti/registrations': {
+    expect: [401, 403, 403, 403, 403, 403, 403, 200],
+    call: () => ({ url: '/api/lti/registrations' }),
+  },
+  'POST /api/lti/registrations': {
+    expect: [401, 403, 403, 403, 403, 403, 403, 201],
+    call: (_w, role) => ({ url: '/api/lti/registrations', body: { ...LTI_REGISTRATION, issuer: `https://matrix-${uniq(role)}.example` } }),
+  },
+  'PATCH /api/lti/registrations/[registrationId]': {
+    expect: [401, 403, 403, 403, 403, 403, 403, 200],
+    call: async (w) => {
+      const { registrationId } = await ltiRows(w);
+      return { url: `/api/lti/registrations/${registrationId}`, params: { registrationId: String(registrationId) }, body: { name: LTI_REGISTRATION.name } };
+    },
+  },
+  'DELETE /api/lti/registrations/[registrationId]': {
+    expect: [401, 403, 403, 403, 403, 403, 403, 200],
+    call: async (_w, role) => {
+      const row = await createRegistration({ ...LTI_REGISTRATION, issuer: `https://matrix-del-${uniq(role)}.example` }, null);
+      return { url: `/api/lti/registrations/${row.id}`, params: { registrationId: String(row.id) } };
+    },
+  },
+  'GET /api/lti/keys': {
+    expect: [401, 403, 403, 403, 403, 403, 403, 200],
+    call: () => ({ url: '/api/lti/keys' }),
+  },
+  'POST /api/lti/keys': {
+    expect: [401, 403, 403, 403, 403, 403, 403, 201],
+    call: () => ({ url: '/api/lti/keys' }),
+  },
+  'POST /api/lti/contexts': {
+    expect: [401, 403, 403, 403, 403, 403, 403, 201],
+    call: async (w, role) => {
+      const { registrationId } = await ltiRows(w);
+      return { url: '/api/lti/contexts', body: { registrationId, contextId: `matrix-${uniq(role)}`, courseId: w.course.id } };
+    },
+  },
+  'PATCH /api/lti/contexts/[contextId]': {
+    // The cohort for arrivals is the course managers' choice.
+    expect: [401, 403, 403, 403, 403, 200, 403, 200],
+    call: async (w) => {
+      const { contextId } = await ltiRows(w);
+      return { url: `/api/lti/contexts/${contextId}`, params: { contextId: String(contextId) }, body: { defaultCohortId: w.cohort.id } };
+    },
+  },
+  'DELETE /api/lti/contexts/[contextId]': {
+    expect: [401, 403, 403, 403, 403, 403, 403, 200],
+    call: async (w, role) => {
+      const { registrationId } = await ltiRows(w);
+      const row = await models().LtiContext.create({ registrationId, contextId: `matrix-del-${uniq(role)}`, courseId: w.course.id, defaultCohortId: null, title: null, membershipsUrl: null, lineItemsUrl: null, agsScopes: null, rosterSyncedAt: null });
+      return { url: `/api/lti/contexts/${row.id}`, params: { contextId: String(row.id) } };
+    },
+  },
+  'GET /api/lti/contexts/[contextId]/roster': {
+    // Managers get past authorisation to "the platform has not offered its roster yet" (409).
+    expect: [401, 403, 403, 403, 403, 409, 403, 409],
+    call: async (w) => {
+      const { contextId } = await ltiRows(w);
+      return { url: `/api/lti/contexts/${contextId}/roster`, params: { contextId: String(contextId) } };
+    },
+  },
+  'POST /api/lti/contexts/[contextId]/roster': {
+    expect: [401, 403, 403, 403, 403, 409, 403, 409],
+    call: async (w) => {
+      const { contextId } = await ltiRows(w);
+      return { url: `/api/lti/contexts/${contextId}/roster`, params: { contextId: String(contextId) }, body: { fingerprint: '0'.repeat(32) } };
+    },
+  },
+  'GET /api/lti/submissions/[submissionId]/scores': {
+    expect: [401, 403, 403, 200, 403, 200, 403, 200],
+    call: (w) => ({ url: `/api/lti/submissions/${w.submission.id}/scores`, params: { submissionId: String(w.submission.id) } }),
+  },
+  'POST /api/lti/scores/[scoreId]/resend': {
+    expect: [401, 403, 403, 200, 403, 200, 403, 200],
+    call: async (w, role) => {
+      const { contextId } = await ltiRows(w);
+      const row = await models().LtiScoreOutbox.create({
+        dedupeKey: `matrix-score:${uniq(role)}`, ltiContextId: contextId, practicalId: w.submission.practicalId, submissionId: w.submission.id, userId: w.people.student.id,
+        platformUserId: 'matrix-user', scoreGiven: 1, scoreMaximum: 2, comment: null, scoredAt: new Date(), lineItemUrl: null, status: 'failed', attempts: 12,
+        nextAttemptAt: new Date(), lockedUntil: null, lastError: 'test', sentAt: null,
+      });
+      return { url: `/api/lti/scores/${row.id}/resend`, params: { scoreId: String(row.id) } };
+    },
   },
   // Kept last: each call ends the caller's sessions (their cookies here carry session version 0), so
   // the versions are put back before every call, and no later case runs with the last one raised.

@@ -16,6 +16,7 @@ import { dirListing, routeHandlers, tableChecksums, type RouteHandler } from '..
 import { buildFixtureWorld, correctValues, freshSubmission, type FixtureWorld } from '../helpers/fixture-world';
 import { draftFor } from '@/tests/fixtures/submissions/practical';
 import { models } from '@/models';
+import { connectContext, createRegistration } from '@/lib/lti/admin';
 
 type Role = 'anonymous' | 'student' | 'admin';
 type Json = null | boolean | number | string | Json[] | { [k: string]: Json };
@@ -194,7 +195,7 @@ function variants(e: Entry, valid: { [k: string]: Json }): Variant[] {
 }
 
 const version = async (id: number) => (await models().Submission.findByPk(id))!.version;
-let extra: { outboxId: number; marked: { id: number; version: number }; open: { id: number; version: number } };
+let extra: { outboxId: number; marked: { id: number; version: number }; open: { id: number; version: number }; lti: { registrationId: number; contextId: number } };
 
 const practicalBody = (w: FixtureWorld): { [k: string]: Json } => ({
   title: 'Bad input practical',
@@ -214,7 +215,46 @@ const draftText = ['lineText', 'bandCentre.value', 'bandCentre.unit', 'bandCentr
   (p) => `draft.species.H35Cl.${p}`,
 );
 
+const LTI_REGISTRATION = {
+  name: 'Bad input platform', issuer: 'https://bad-input-new.example', clientId: 'bad-input-client', deploymentIds: ['bad-input-deployment'],
+  authLoginUrl: 'https://bad-input-new.example/auth', authTokenUrl: 'https://bad-input-new.example/token', keySetUrl: 'https://bad-input-new.example/jwks', tokenAudience: 'https://bad-input-new.example/token',
+};
+
 const BAD: Record<string, Entry> = {
+  'POST /api/lti/registrations': {
+    as: 'admin',
+    call: () => ({ url: '/api/lti/registrations' }),
+    body: () => LTI_REGISTRATION,
+    optional: ['tokenAudience'],
+    text: ['name', 'clientId', 'deploymentIds.0'],
+    breakers: { issuer: 'not an address', keySetUrl: 5 },
+  },
+  'PATCH /api/lti/registrations/[registrationId]': {
+    as: 'admin',
+    call: () => ({ url: `/api/lti/registrations/${extra.lti.registrationId}`, params: { registrationId: String(extra.lti.registrationId) } }),
+    body: () => ({ ...LTI_REGISTRATION, issuer: 'https://bad-input-platform.example', active: true }),
+    optional: Object.keys({ ...LTI_REGISTRATION, active: true }),
+    text: ['name', 'clientId', 'deploymentIds.0'],
+    breakers: { issuer: 'not an address', active: 'yes' },
+  },
+  'POST /api/lti/contexts': {
+    as: 'admin',
+    call: () => ({ url: '/api/lti/contexts' }),
+    body: (w) => ({ registrationId: extra.lti.registrationId, contextId: 'bad-input-new-context', courseId: w.course.id, defaultCohortId: w.cohort.id }),
+    optional: ['defaultCohortId'],
+    text: ['contextId'],
+    breakers: { registrationId: 'first', courseId: 'this one' },
+  },
+  'PATCH /api/lti/contexts/[contextId]': {
+    as: 'admin',
+    call: () => ({ url: `/api/lti/contexts/${extra.lti.contextId}`, params: { contextId: String(extra.lti.contextId) } }),
+    body: (w) => ({ defaultCohortId: w.otherCohort.id }),
+  },
+  'POST /api/lti/contexts/[contextId]/roster': {
+    as: 'admin',
+    call: () => ({ url: `/api/lti/contexts/${extra.lti.contextId}/roster`, params: { contextId: String(extra.lti.contextId) } }),
+    body: () => ({ fingerprint: '0123456789abcdef0123456789abcdef' }),
+  },
   'POST /api/admin/memberships': {
     as: 'admin',
     call: () => ({ url: '/api/admin/memberships' }),
@@ -430,7 +470,9 @@ beforeAll(async () => {
     dedupeKey: 'bad-input:resend', toAddress: world.people.student.email, subject: 'Bad input resend', textBody: 'Test message.', htmlBody: null,
     submissionId: world.submission.id, feedbackDocumentId: null, status: 'failed', attempts: 5, nextAttemptAt: new Date(), lockedUntil: null, lastError: 'test', messageId: null, sentAt: null,
   });
-  extra = { outboxId: row.id, open: { id: open.id, version: open.version }, marked: { id: marked.id, version: marked.version } };
+  const registration = await createRegistration({ ...LTI_REGISTRATION, issuer: 'https://bad-input-platform.example' }, world.people.admin.id);
+  const context = await connectContext({ registrationId: registration.id, contextId: 'bad-input-context', courseId: world.course.id }, world.people.admin.id);
+  extra = { outboxId: row.id, open: { id: open.id, version: open.version }, marked: { id: marked.id, version: marked.version }, lti: { registrationId: registration.id, contextId: context.id } };
   extraDraftVersion = await version(world.draftB.id);
   world.submission = (await models().Submission.findByPk(world.submission.id))!;
   before = await tableChecksums();

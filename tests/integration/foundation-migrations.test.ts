@@ -11,6 +11,8 @@ const REQUIRED_TABLES = [
   'quantity_definitions', 'tolerance_bands', 'submissions', 'submitted_values', 'line_assignments', 'uploads',
   'check_results', 'slip_findings', 'marks', 'moderations', 'feedback_documents', 'email_outbox', 'audit_log',
   'one_time_tokens', 'sign_in_failures',
+  'lti_tool_keys', 'lti_registrations', 'lti_deployments', 'lti_contexts', 'lti_resource_links', 'lti_line_items',
+  'lti_user_links', 'lti_launch_states', 'lti_score_outbox',
 ];
 
 describe('migrations', () => {

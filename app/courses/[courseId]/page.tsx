@@ -28,7 +28,9 @@ export default async function CoursePage({ params }: { params: Promise<{ courseI
   return (
     <>
       <p className="mb-2 text-sm"><a href="/courses">← All courses</a></p>
-      <PageHeader title={`${course.code} · ${course.title}`} lead={course.archivedAt ? 'This course is archived.' : 'Cohorts, roster, staff, TA duties and practicals.'} />
+      <PageHeader title={`${course.code} · ${course.title}`} lead={course.archivedAt ? 'This course is archived.' : 'Cohorts, roster, staff, TA duties and practicals.'}>
+        {(await models().LtiContext.count({ where: { courseId: course.id } })) > 0 && <a className="btn-quiet" href={`/courses/${course.id}/learning-platform`}>Learning platform</a>}
+      </PageHeader>
       <CourseWorkspace course={summary} />
     </>
   );

@@ -3,6 +3,7 @@ import { authorizePage } from '@/lib/authz';
 import { PageHeader } from '@/components/ui/page-header';
 import { VerdictBadge } from '@/components/marking/verdict-badge';
 import { MarkingForm } from '@/components/marking/marking-form';
+import { ScoreDelivery } from '@/components/lti/score-delivery';
 import { HttpError } from '@/lib/http';
 import { submissionScope } from '@/lib/marking/access';
 import { loadMarkingView } from '@/lib/marking/view';
@@ -134,6 +135,7 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
       {plots.length === 0 && <p className="card mb-6 text-ink-soft">No line fit is available for this submission.</p>}
 
       <MarkingForm initial={view} />
+      <ScoreDelivery submissionId={id} courseId={view.course.id} />
 
       <section aria-labelledby="report-heading" className="card mb-6">
         <h2 id="report-heading" className="mb-2">Report</h2>
