@@ -137,7 +137,12 @@ describe('resend (item 8)', () => {
 });
 
 describe('informational items (item 11)', () => {
-  const PUBLIC = new Set(['GET /api/health', 'POST /api/password-reset', 'POST /api/invitations/accept', 'GET /api/auth/[...nextauth]', 'POST /api/auth/[...nextauth]']);
+  // Public by design: the learning platform calls login and launch across sites (the signed token and
+  // the browser-bound state are the proof) and fetches Oscillab's public keys.
+  const PUBLIC = new Set([
+    'GET /api/health', 'POST /api/password-reset', 'POST /api/invitations/accept', 'GET /api/auth/[...nextauth]', 'POST /api/auth/[...nextauth]',
+    'GET /api/lti/jwks', 'GET /api/lti/login', 'POST /api/lti/login', 'POST /api/lti/launch',
+  ]);
 
   it('signed out, every route answers 401 whether or not the id exists (never 404 first)', async () => {
     const wrong: string[] = [];
