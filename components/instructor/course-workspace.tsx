@@ -25,7 +25,7 @@ export function CourseWorkspace({ course }: { course: CourseSummary }) {
     <div className="space-y-6">
       <CourseSettings course={course} onChange={refresh} />
       <Cohorts course={course} onChange={refresh} />
-      <RosterImport courseId={course.id} onImported={refresh} />
+      <RosterImport courseId={course.id} cohorts={course.cohorts.filter((c) => !c.archived)} onImported={refresh} />
       <PeopleList course={course} people={people.data} onChange={refresh} />
       <TaDuties course={course} people={people.data} onChange={refresh} />
       <Practicals course={course} />
