@@ -7,6 +7,8 @@ import { QUANTITIES, QUANTITY_KEYS, type QuantityKey, type Verdict } from '@/lib
 import { practicalSchema, quantitySchema, type PracticalData, type PracticalInput, type QuantityInput } from '@/lib/schemas/instructor';
 import { HazardNotes } from '@/components/hazard-notes';
 import { VerdictLabel } from './verdict';
+import { TableScroll } from '@/components/ui/table-scroll';
+import { publishedSource } from '@/lib/display';
 import { fetcher, send } from './api';
 
 type Band = { id: number; quantityDefinitionId: number; cohortId: number | null; basis: 'consistency' | 'accuracy'; kind: 'absolute' | 'relative' | 'sigma'; inner: number; outer: number | null; unit: string | null; text: string };
@@ -216,7 +218,7 @@ function Quantities({ detail, onChange }: { detail: Detail; onChange: () => void
   return (
     <section aria-labelledby="quantities" className="card">
       <h2 id="quantities" className="mb-3">Quantities students report</h2>
-      <div className="overflow-x-auto">
+      <TableScroll label="Quantities, scrollable">
         <table className="data-table" aria-label="Quantities">
           <thead><tr><th>Quantity</th><th>Isotopologue</th><th>Unit</th><th className="num">Marks</th><th>Uncertainty</th><th>Reference value</th><th>Bands</th><th /></tr></thead>
           <tbody>
@@ -224,7 +226,7 @@ function Quantities({ detail, onChange }: { detail: Detail; onChange: () => void
               <tr key={q.id}>
                 <td>{q.label}</td><td>{q.species}</td><td>{q.unitDisplay}</td><td className="num">{q.marks}</td><td>{q.uncertaintyRequired ? 'required' : 'optional'}</td>
                 <td>
-                  {q.reference ? <><span className="num">{+q.reference.value.toPrecision(7)}</span> {q.reference.unit}<br /><span className="hint">{q.reference.kind === 'department' ? 'Department value: ' : 'Literature: '}{q.reference.source}</span></> : '—'}
+                  {q.reference ? <><span className="num">{+q.reference.value.toPrecision(7)}</span> {q.reference.unit}<br /><span className="hint">{q.reference.kind === 'department' ? 'Department value: ' : 'Literature: '}{publishedSource(q.reference.source)}</span></> : '—'}
                 </td>
                 <td className="text-sm">{q.bands.map((b) => <div key={b.id}>{b.basis}, {cohortLabel(detail.cohorts, b.cohortId)}: {b.text}</div>)}{q.bands.length === 0 && <span className="text-ink-soft">none yet</span>}</td>
                 <td><button type="button" className="btn-quiet" onClick={() => remove(q)}>Remove<span className="sr-only"> {q.label} {q.species}</span></button></td>
@@ -233,7 +235,7 @@ function Quantities({ detail, onChange }: { detail: Detail; onChange: () => void
             {detail.quantities.length === 0 && <tr><td colSpan={8} className="text-ink-soft">No quantities yet.</td></tr>}
           </tbody>
         </table>
-      </div>
+      </TableScroll>
       <h3 className="mb-2 mt-4">Add a quantity</h3>
       <form onSubmit={handleSubmit(onAdd)} noValidate className="grid gap-3 md:grid-cols-4">
         <div>
@@ -374,6 +376,7 @@ function Bands({ detail, onChange }: { detail: Detail; onChange: () => void }) {
       )}
       <Status message={msg} />
       <h3 className="mb-2 mt-4">Bands set</h3>
+      <TableScroll label="Tolerance bands, scrollable">
       <table className="data-table" aria-label="Tolerance bands">
         <thead><tr><th>Quantity</th><th>Applies to</th><th>Question</th><th>Band</th><th /></tr></thead>
         <tbody>
@@ -385,6 +388,7 @@ function Bands({ detail, onChange }: { detail: Detail; onChange: () => void }) {
           )))}
         </tbody>
       </table>
+      </TableScroll>
     </section>
   );
 }
@@ -453,8 +457,9 @@ function LivePreview({ detail }: { detail: Detail }) {
         {msg && <p className="error-text">{msg}</p>}
         {result && (
           <div>
-            {result.reference && <p className="text-sm">Reference: <span className="num">{+result.reference.value.toPrecision(7)}</span> {result.reference.unit} ({result.reference.kind}: {result.reference.source})</p>}
-            <table className="data-table mt-2" aria-label="Preview verdicts">
+            {result.reference && <p className="text-sm">Reference: <span className="num">{+result.reference.value.toPrecision(7)}</span> {result.reference.unit} ({result.reference.kind === 'department' ? 'department value' : 'literature'}: {publishedSource(result.reference.source)})</p>}
+            <TableScroll label="Preview verdicts, scrollable" className="mt-2">
+            <table className="data-table" aria-label="Preview verdicts">
               <thead><tr><th>Question</th><th>Verdict</th><th className="num">Marks</th><th>Band</th><th className="num">Deviation</th></tr></thead>
               <tbody>
                 {result.results.map((r) => (
@@ -463,11 +468,12 @@ function LivePreview({ detail }: { detail: Detail }) {
                     <td><VerdictLabel verdict={r.verdict} />{r.reason && <span className="hint block">{r.reason}</span>}</td>
                     <td className="num">{+r.marks.toFixed(2)} / {+r.maxMarks.toFixed(2)}</td>
                     <td>{r.band ? `${r.band} (${r.bandFrom === 'cohort' ? 'this cohort' : 'course default'})` : 'none set'}</td>
-                    <td className="num">{r.deviation === null ? '—' : `${r.deviation >= 0 ? '+' : '−'}${+Math.abs(r.deviation).toPrecision(4)} ${quantity?.unitDisplay ?? ''}`}</td>
+                    <td className="num nowrap">{r.deviation === null ? '—' : `${r.deviation >= 0 ? '+' : '−'}${+Math.abs(r.deviation).toPrecision(4)} ${quantity?.unitDisplay ?? ''}`}</td>
                   </tr>
                 ))}
               </tbody>
             </table>
+            </TableScroll>
           </div>
         )}
       </div>

@@ -10,6 +10,7 @@ import { HttpError } from '@/lib/http';
 import { submissionScope } from '@/lib/marking/access';
 import { nextToMark } from '@/lib/marking/next';
 import { loadMarkingView, type BasisRow } from '@/lib/marking/view';
+import { slipsByCode } from '@/lib/marking/feedback-input';
 
 export const metadata = { title: 'Mark a submission' };
 export const dynamic = 'force-dynamic';
@@ -92,9 +93,9 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
           <p className="text-ink-soft">No slip was recognised.</p>
         ) : (
           <ul className="space-y-3">
-            {view.slips.map((s) => (
-              <li key={`${s.key}-${s.code}`} data-slip={s.code}>
-                <p className="font-bold">{s.title} <span className="font-normal text-ink-soft">— {s.quantityLabel}</span></p>
+            {slipsByCode(view.slips).map((s) => (
+              <li key={s.title} data-slip={view.slips.find((x) => x.title === s.title)?.code}>
+                <p className="font-bold">{s.title} <span className="font-normal text-ink-soft">— {s.quantity}</span></p>
                 <p>{s.explanation}</p>
                 {s.formula && <p className="num text-sm">{s.formula}</p>}
               </li>
