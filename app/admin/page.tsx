@@ -31,9 +31,18 @@ function href(current: Search, patch: Partial<Search>) {
   return `/admin?${p.toString()}`;
 }
 
+/** Before/after of an entry: short ones inline, long ones folded (wrapped, never a scroll box). */
 function Json({ value }: { value: unknown }) {
   if (value === null || value === undefined) return <span className="text-ink-soft">—</span>;
-  return <pre className="num max-h-40 max-w-[28rem] overflow-auto whitespace-pre-wrap break-all text-xs">{JSON.stringify(value, null, 1)}</pre>;
+  const text = JSON.stringify(value);
+  if (text.length <= 100) return <code className="num break-all text-xs">{text}</code>;
+  const fields = value && typeof value === 'object' ? Object.keys(value as object).length : 0;
+  return (
+    <details className="max-w-[28rem] text-xs">
+      <summary className="cursor-pointer">{fields ? `${fields} fields` : 'Show'}</summary>
+      <pre className="num whitespace-pre-wrap break-all">{JSON.stringify(value, null, 1)}</pre>
+    </details>
+  );
 }
 
 export default async function AdminHome({ searchParams }: { searchParams: Promise<Search> }) {

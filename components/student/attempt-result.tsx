@@ -70,10 +70,10 @@ export function QuantityChecks({ quantities, caption }: { quantities: StudentQua
 }
 
 /** What the student may see of one attempt's checks (built by lib/submissions/view.ts). */
-export function AttemptResult({ view }: { view: StudentAttemptView }) {
+export function AttemptResult({ view, idPrefix = 'attempt' }: { view: StudentAttemptView; idPrefix?: string }) {
   return (
-    <section id={`attempt-${view.id}`} className="card scroll-mt-4 space-y-4" aria-labelledby={`attempt-${view.id}-h`} data-attempt={view.attempt}>
-      <h3 id={`attempt-${view.id}-h`}>
+    <section id={`${idPrefix}-${view.id}`} className="card scroll-mt-4 space-y-4" aria-labelledby={`${idPrefix}-${view.id}-h`} data-attempt={view.attempt}>
+      <h3 id={`${idPrefix}-${view.id}-h`}>
         Attempt {view.attempt}
         {view.submittedAt && <span className="ml-2 text-sm font-normal text-ink-soft">submitted {new Date(view.submittedAt).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' })}</span>}
         {view.isMarkedAttempt && <span className="ml-2 inline-block rounded bg-accent-soft px-1.5 text-xs font-bold text-accent" data-testid="marked-attempt">the attempt that is marked</span>}

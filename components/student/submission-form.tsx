@@ -371,7 +371,7 @@ export function SubmissionForm(props: Props) {
         {result && (
           <div className="space-y-2">
             <h2>Result of your submission</h2>
-            <AttemptResult view={result} />
+            <AttemptResult view={result} idPrefix="result" />
           </div>
         )}
       </div>

@@ -1,5 +1,0 @@
-import { LoadingBlock } from '@/components/ui/loading-block';
-
-export default function Loading() {
-  return <LoadingBlock label="Loading…" />;
-}
