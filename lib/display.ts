@@ -56,7 +56,7 @@ export function cohortName(c: { name: string; term?: string | null }): string {
 /**
  * An expected value shown to the precision that matters: one digit finer than the student typed
  * (consistency is judged to the precision they typed, half a unit in their last digit), at least
- * three and at most six significant figures. Without a typed number, four significant figures.
+ * three and at most six significant figures. Without a typed number, five significant figures.
  */
 export function expectedToPrecision(valueSI: number | null | undefined, key: string, typedValue?: string | null): string {
   if (valueSI === null || valueSI === undefined || !Number.isFinite(valueSI)) return '—';
@@ -72,7 +72,7 @@ export function expectedToPrecision(valueSI: number | null | undefined, key: str
   }
   if (value === 0) return joinUnit('0', unit);
   const magnitude = Math.floor(Math.log10(Math.abs(value)));
-  let sig = 4;
+  let sig = 5;
   const typed = typedValue ? parseTypedNumber(typedValue) : null;
   if (typed && typed.ok && typed.precisionKnown && Number.isFinite(typed.lastDigitPower)) {
     // Digits from the value's first digit down to one below the typed last digit.

@@ -121,5 +121,8 @@ test('a TA marks with an override, releases five, and the feedback arrives', asy
   const res = await student.request.get(`/api/submissions/${markedId}/feedback`);
   expect(res.status()).toBe(200);
   expect(Buffer.from(await res.body()).equals(fromMail)).toBe(true);
+  // Their home says the feedback is out, with the mark.
+  await student.goto('/student');
+  await expect(student.getByText(/Feedback released: [\d.]+ of \d+/).first()).toBeVisible();
   await ctx.close();
 });
