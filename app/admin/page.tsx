@@ -120,7 +120,7 @@ export default async function AdminHome({ searchParams }: { searchParams: Promis
                     <td>{p.subject}</td>
                     <td className="whitespace-nowrap">{p.status === 'failed' ? '✗ failed' : `↻ retrying${p.nextAttemptAt ? `, next ${when(p.nextAttemptAt)}` : ''}`}</td>
                     <td className="num">{p.attempts}</td>
-                    <td className="num text-xs">{p.lastError ?? '—'}</td>
+                    <td className="font-mono text-xs">{p.lastError ?? '—'}</td>
                     <td><RetryButton id={p.id} label={`the message to ${p.to}`} /></td>
                   </tr>
                 ))}
@@ -173,9 +173,9 @@ export default async function AdminHome({ searchParams }: { searchParams: Promis
             <tbody>
               {audit.rows.map((r) => (
                 <tr key={r.id} data-action={r.action}>
-                  <td className="num whitespace-nowrap text-xs">{when(r.at)}</td>
+                  <td className="whitespace-nowrap font-mono text-xs">{when(r.at)}</td>
                   <td className="text-sm">{r.actor}</td>
-                  <td className="num whitespace-nowrap text-xs">{r.action}</td>
+                  <td className="whitespace-nowrap font-mono text-xs">{r.action}</td>
                   <td className="whitespace-nowrap text-sm">{r.entity.replace(/_/g, ' ')}{r.entityId !== null ? ` ${r.entityId}` : ''}</td>
                   <td><Json value={r.before} /></td>
                   <td><Json value={r.after} /></td>

@@ -39,6 +39,33 @@ export function PeopleAdmin({ people, courses }: { people: AdminPerson[]; course
 
   return (
     <div className="space-y-4">
+      <form onSubmit={grant} className="rounded border border-rule bg-paper p-3" aria-labelledby="grant-h" noValidate>
+        <h3 id="grant-h" className="mb-2">Grant a course role</h3>
+        <div className="grid gap-3 md:grid-cols-2 lg:grid-cols-[minmax(0,1fr)_minmax(0,1.3fr)] md:items-end">
+          <Field id="grant-email" label="E-mail of the account">
+            <input type="email" className="field" value={email} onChange={(e) => setEmail(e.target.value)} autoComplete="off" />
+          </Field>
+          <Field id="grant-course" label="Course">
+            <select className="field" value={courseId} onChange={(e) => { setCourseId(Number(e.target.value)); setCohortId(''); }}>
+              {courses.map((c) => <option key={c.id} value={c.id}>{c.code} · {c.title}{c.archived ? ' (archived)' : ''}</option>)}
+            </select>
+          </Field>
+          <Field id="grant-role" label="Role">
+            <select className="field" value={role} onChange={(e) => setRole(e.target.value as (typeof ROLES)[number])}>
+              {ROLES.map((r) => <option key={r} value={r}>{ROLE_NAMES[r]}</option>)}
+            </select>
+          </Field>
+          <Field id="grant-cohort" label={role === 'student' ? 'Cohort (required)' : 'Cohort (students only)'}>
+            <select className="field" value={cohortId} onChange={(e) => setCohortId(e.target.value)} disabled={role !== 'student'}>
+              <option value="">—</option>
+              {course?.cohorts.map((c) => <option key={c.id} value={c.id}>{c.name} ({c.term})</option>)}
+            </select>
+          </Field>
+        </div>
+        <button type="submit" className="btn mt-3" disabled={busy || !email.trim()}>Grant the role</button>
+        <p aria-live="polite" className={msg?.ok ? 'mt-2 text-sm text-verdict-within' : 'error-text'} data-testid="admin-people-message">{msg ? `${msg.ok ? '✓' : '✗'} ${msg.text}` : ''}</p>
+        <p className="hint">Roles are granted to existing accounts; instructors invite new people from their course page.</p>
+      </form>
       <ul className="divide-y divide-rule" aria-label="People found">
         {people.map((p) => (
           <li key={p.id} className="py-3" data-person={p.email}>
@@ -49,8 +76,8 @@ export function PeopleAdmin({ people, courses }: { people: AdminPerson[]; course
                 {p.isAdmin && <span className="ml-2 rounded bg-accent-soft px-1.5 text-xs font-bold text-accent">site administrator</span>}
                 {p.invited && <span className="ml-2 text-xs text-ink-soft">(invited, no password yet)</span>}
               </p>
-              <button type="button" className="btn-quiet" onClick={() => { setEmail(p.email); document.getElementById('grant-email')?.focus(); }}>
-                Grant a role<span className="sr-only"> to {p.name}</span>…
+              <button type="button" className="btn-quiet" onClick={() => { setEmail(p.email); const el = document.getElementById('grant-email'); el?.scrollIntoView({ block: 'center' }); el?.focus(); }}>
+                Grant a role…<span className="sr-only"> to {p.name}</span>
               </button>
             </div>
             {p.roles.length === 0 ? (
@@ -72,33 +99,6 @@ export function PeopleAdmin({ people, courses }: { people: AdminPerson[]; course
         {people.length === 0 && <li className="py-3 text-ink-soft">Nobody matches.</li>}
       </ul>
 
-      <form onSubmit={grant} className="rounded border border-rule bg-paper p-3" aria-labelledby="grant-h" noValidate>
-        <h3 id="grant-h" className="mb-2">Grant a course role</h3>
-        <div className="grid gap-3 md:grid-cols-[minmax(0,1.4fr)_minmax(0,1fr)_minmax(12rem,auto)_minmax(0,1fr)_auto] md:items-end">
-          <Field id="grant-email" label="E-mail of the account">
-            <input type="email" className="field" value={email} onChange={(e) => setEmail(e.target.value)} autoComplete="off" />
-          </Field>
-          <Field id="grant-course" label="Course">
-            <select className="field" value={courseId} onChange={(e) => { setCourseId(Number(e.target.value)); setCohortId(''); }}>
-              {courses.map((c) => <option key={c.id} value={c.id}>{c.code} · {c.title}{c.archived ? ' (archived)' : ''}</option>)}
-            </select>
-          </Field>
-          <Field id="grant-role" label="Role">
-            <select className="field" value={role} onChange={(e) => setRole(e.target.value as (typeof ROLES)[number])}>
-              {ROLES.map((r) => <option key={r} value={r}>{ROLE_NAMES[r]}</option>)}
-            </select>
-          </Field>
-          <Field id="grant-cohort" label={role === 'student' ? 'Cohort (required)' : 'Cohort (students only)'}>
-            <select className="field" value={cohortId} onChange={(e) => setCohortId(e.target.value)} disabled={role !== 'student'}>
-              <option value="">—</option>
-              {course?.cohorts.map((c) => <option key={c.id} value={c.id}>{c.name} ({c.term})</option>)}
-            </select>
-          </Field>
-          <button type="submit" className="btn" disabled={busy || !email.trim()}>Grant</button>
-        </div>
-        <p aria-live="polite" className={msg?.ok ? 'mt-2 text-sm text-verdict-within' : 'error-text'} data-testid="admin-people-message">{msg ? `${msg.ok ? '✓' : '✗'} ${msg.text}` : ''}</p>
-        <p className="hint">Roles are granted to existing accounts; instructors invite new people from their course page.</p>
-      </form>
     </div>
   );
 }

@@ -11,6 +11,7 @@ import { fetcher, send } from './api';
 import { formatDate, type CourseSummary } from './courses-overview';
 import { RosterImport } from './roster-import';
 import { cohortName } from '@/lib/display';
+import { ROLE_NAMES } from '@/lib/homes';
 
 export type Person = { membershipId: number; userId: number; name: string; email: string; studentNumber: string | null; role: string; cohortId: number | null; invited: boolean };
 export type People = { people: Person[]; duties: { id: number; cohortId: number; taId: number; studentId: number | null }[] };
@@ -172,7 +173,7 @@ function PeopleList({ course, people, onChange }: { course: CourseSummary; peopl
     { accessorKey: 'name', header: 'Name' },
     { accessorKey: 'email', header: 'E-mail' },
     { accessorKey: 'studentNumber', header: 'Student number', cell: ({ getValue }) => <span className="num">{(getValue() as string) ?? ''}</span> },
-    { accessorKey: 'role', header: 'Role' },
+    { id: 'role', accessorFn: (p) => ROLE_NAMES[p.role as keyof typeof ROLE_NAMES] ?? p.role, header: 'Role' },
     { id: 'cohort', accessorFn: (p) => cohortOf(p.cohortId), header: 'Cohort' },
     { id: 'account', accessorFn: (p) => (p.invited ? 'invited' : 'active'), header: 'Account' },
   ];

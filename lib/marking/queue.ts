@@ -101,7 +101,7 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<{ rows: Qu
         id: s.id,
         student: { id: r.student.id, name: r.student.name, email: r.student.email, studentNumber: r.student.studentNumber },
         practical: { id: r.Practical.id, title: r.Practical.title },
-        cohort: { id: r.Cohort.id, name: `${r.Cohort.name}, ${r.Cohort.term}` },
+        cohort: { id: r.Cohort.id, name: `${r.Cohort.name} (${r.Cohort.term})` },
         status: s.status,
         attempt: s.attempt,
         submittedAt: s.submittedAt?.toISOString() ?? null,
@@ -136,5 +136,5 @@ export async function queueFilters(actor: Actor) {
   const cohorts = await Cohort.findAll({ where: { id: [...cohortIds] }, order: [['term', 'DESC'], ['name', 'ASC']] });
   const links = await PracticalCohort.findAll({ where: { cohortId: [...cohortIds] }, attributes: ['practicalId'] });
   const practicals = await Practical.findAll({ where: { id: [...new Set(links.map((l) => l.practicalId))] }, order: [['title', 'ASC']] });
-  return { practicals: practicals.map((p) => ({ id: p.id, title: p.title })), cohorts: cohorts.map((c) => ({ id: c.id, name: `${c.name}, ${c.term}` })) };
+  return { practicals: practicals.map((p) => ({ id: p.id, title: p.title })), cohorts: cohorts.map((c) => ({ id: c.id, name: `${c.name} (${c.term})` })) };
 }
