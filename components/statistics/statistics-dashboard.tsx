@@ -13,7 +13,7 @@ import { formatPercent, quantityLabel } from '@/lib/statistics/scale';
 import { TableScroll } from '@/components/ui/table-scroll';
 import { DEFAULT_MARKER_THRESHOLD } from '@/lib/statistics/definitions';
 import { BoxPlots } from './box-plot';
-import { HistogramChart } from './charts';
+import { Histogram } from './histogram';
 
 async function fetcher<T>(url: string): Promise<T> {
   const res = await fetch(url, { headers: { accept: 'application/json' } });
@@ -98,8 +98,9 @@ export function StatisticsDashboard({ practicalId, cohortId, canExportMarks, ini
             <BoxPlots title={`Box plots of relative deviation, ${basis}`} stats={stats} />
             <QuantityTable stats={stats} caption={`${title}: figures per quantity`} />
             <h3>Histograms</h3>
-            <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3">
-              {stats.filter((s) => s.histogram).map((s) => <HistogramChart key={`${s.key}-${s.species}`} stat={s} />)}
+            <p className="hint">Buckets of relative deviation in percent, narrow near zero (rounding) and wide outside (slips): below −10, −10 to −5, −5 to −2, −2 to −1, −1 to −0.5, −0.5 to −0.2, −0.2 to 0, and the same upwards; the outer buckets (plainer hatching) are open.</p>
+            <div className="grid gap-x-6 gap-y-5 sm:grid-cols-2 lg:grid-cols-3">
+              {stats.filter((s) => s.histogram).map((s) => <Histogram key={`${s.key}-${s.species}`} stat={s} />)}
             </div>
           </section>
         );

@@ -30,7 +30,7 @@ async function linkTo(page: Page, pattern: RegExp): Promise<string> {
 async function fits(page: Page, info: TestInfo, path: string, name: string, problems: string[]) {
   await page.goto(path);
   await page.waitForLoadState('networkidle');
-  await page.waitForTimeout(200); // charts measure their box after the data arrives
+  await page.waitForTimeout(200); // client parts (SWR tables) settle after the data arrives
   const { scrollWidth, innerWidth, wide } = await page.evaluate(() => ({
     scrollWidth: document.documentElement.scrollWidth,
     innerWidth: window.innerWidth,
