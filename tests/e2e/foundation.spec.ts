@@ -69,3 +69,16 @@ test('signing out returns to the sign-in page and closes the session', async ({ 
   await page.goto('/marking');
   await expect(page).toHaveURL(/\/signin\?next=%2Fmarking$/);
 });
+
+test('the header links every page a role works in: a course lead reaches courses and moderation, a student only their own', async ({ page }) => {
+  await signIn(page, 'lead@northmere.example');
+  const nav = page.getByRole('navigation', { name: 'Main' });
+  await expect(nav.getByRole('link', { name: 'Cohort statistics' })).toHaveAttribute('aria-current', 'page');
+  await nav.getByRole('link', { name: 'Moderation' }).click();
+  await expect(page.getByRole('heading', { level: 1, name: 'Moderation' })).toBeVisible();
+  await nav.getByRole('link', { name: 'Courses & practicals' }).click();
+  await expect(page.getByRole('heading', { level: 1, name: 'Courses & practicals' })).toBeVisible();
+  await page.getByRole('button', { name: 'Sign out' }).click();
+  await signIn(page, 'student05@northmere.example');
+  await expect(page.getByRole('navigation', { name: 'Main' }).getByRole('link')).toHaveText(['My practicals']);
+});
