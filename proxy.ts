@@ -1,4 +1,5 @@
 import { NextResponse, type NextRequest } from 'next/server';
+import { safeNextPath } from './lib/next-path';
 
 /**
  * Sends signed-out visitors of pages to the sign-in page. This is a convenience only: every page,
@@ -14,6 +15,8 @@ export function proxy(request: NextRequest) {
     const url = request.nextUrl.clone();
     url.pathname = '/signin';
     url.search = '';
+    // Back to the page asked for after signing in (a link in an e-mail, say); only same-site paths.
+    if (pathname !== '/' && safeNextPath(pathname + request.nextUrl.search)) url.searchParams.set('next', pathname + request.nextUrl.search);
     return NextResponse.redirect(url);
   }
   return NextResponse.next();

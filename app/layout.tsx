@@ -19,7 +19,7 @@ export default function RootLayout({ children }: { children: React.ReactNode }) 
           Skip to content
         </a>
         <SiteHeader />
-        <main id="main" className="mx-auto max-w-6xl px-5 py-6">
+        <main id="main" className="mx-auto min-w-0 max-w-6xl px-4 py-6 sm:px-5">
           {children}
         </main>
       </body>

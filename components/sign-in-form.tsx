@@ -5,7 +5,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { signIn } from 'next-auth/react';
 import { signInSchema, SIGN_IN_ERRORS, type SignInInput } from '@/lib/schemas/auth';
 
-export function SignInForm({ initialError }: { initialError?: string }) {
+export function SignInForm({ initialError, next = '/' }: { initialError?: string; next?: string }) {
   const [error, setError] = useState(initialError);
   const { register, handleSubmit, formState } = useForm<SignInInput>({ resolver: zodResolver(signInSchema) });
 
@@ -16,7 +16,7 @@ export function SignInForm({ initialError }: { initialError?: string }) {
       setError(SIGN_IN_ERRORS[result?.error ?? ''] ?? SIGN_IN_ERRORS.CredentialsSignin);
       return;
     }
-    window.location.assign('/');
+    window.location.assign(next);
   }
 
   return (

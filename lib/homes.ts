@@ -24,3 +24,21 @@ export function homesFor(actor: Actor) {
     h.role === 'admin' ? actor.isAdmin : actor.memberships.some((m) => m.role === h.role),
   );
 }
+
+export type NavLink = { href: string; label: string };
+
+/**
+ * The header's links: each role's home plus the other pages that role works in. A course lead or
+ * instructor sets up courses, moderates and reads statistics; moderation is offered to those who
+ * moderate a course they belong to (the page itself decides, through lib/authz.ts).
+ */
+export function navLinksFor(actor: Actor): NavLink[] {
+  const roles = new Set(actor.memberships.map((m) => m.role));
+  const manages = roles.has('lead') || roles.has('instructor');
+  const links: NavLink[] = [];
+  if (actor.isAdmin) links.push({ href: '/admin', label: 'Site administration' });
+  if (manages) links.push({ href: '/statistics', label: 'Cohort statistics' }, { href: '/courses', label: 'Courses & practicals' }, { href: '/moderation', label: 'Moderation' });
+  if (roles.has('ta')) links.push({ href: '/marking', label: 'Marking' });
+  if (roles.has('student')) links.push({ href: '/student', label: 'My practicals' });
+  return links;
+}

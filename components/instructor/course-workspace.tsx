@@ -10,6 +10,8 @@ import { DataTable } from './data-table';
 import { fetcher, send } from './api';
 import { formatDate, type CourseSummary } from './courses-overview';
 import { RosterImport } from './roster-import';
+import { cohortName } from '@/lib/display';
+import { ROLE_NAMES } from '@/lib/homes';
 
 export type Person = { membershipId: number; userId: number; name: string; email: string; studentNumber: string | null; role: string; cohortId: number | null; invited: boolean };
 export type People = { people: Person[]; duties: { id: number; cohortId: number; taId: number; studentId: number | null }[] };
@@ -25,7 +27,7 @@ export function CourseWorkspace({ course }: { course: CourseSummary }) {
     <div className="space-y-6">
       <CourseSettings course={course} onChange={refresh} />
       <Cohorts course={course} onChange={refresh} />
-      <RosterImport courseId={course.id} onImported={refresh} />
+      <RosterImport courseId={course.id} cohorts={course.cohorts.filter((c) => !c.archived)} onImported={refresh} />
       <PeopleList course={course} people={people.data} onChange={refresh} />
       <TaDuties course={course} people={people.data} onChange={refresh} />
       <Practicals course={course} />
@@ -53,7 +55,7 @@ function CourseSettings({ course, onChange }: { course: CourseSummary; onChange:
     <section aria-labelledby="course-settings" className="card">
       <h2 id="course-settings" className="mb-3">Course</h2>
       <div className="flex flex-wrap items-end gap-3">
-        <div className="grow">
+        <div className="min-w-0 grow basis-64">
           <label htmlFor="course-title-edit" className="label">Title</label>
           <input id="course-title-edit" className="field" value={title} onChange={(e) => setTitle(e.target.value)} />
         </div>
@@ -100,7 +102,7 @@ function Cohorts({ course, onChange }: { course: CourseSummary; onChange: () => 
     {
       id: 'actions', header: 'Actions', enableSorting: false,
       cell: ({ row }) => (
-        <span className="flex gap-2">
+        <span className="flex flex-wrap gap-2">
           <button type="button" className="btn-quiet" onClick={() => setEditing(row.original)}>Edit<span className="sr-only"> {row.original.name}</span></button>
           <button type="button" className="btn-quiet" onClick={() => patch(row.original, { archived: !row.original.archived }, row.original.archived ? 'Cohort restored.' : 'Cohort archived.')}>
             {row.original.archived ? 'Restore' : 'Archive'}<span className="sr-only"> {row.original.name}</span>
@@ -163,13 +165,16 @@ function PeopleList({ course, people, onChange }: { course: CourseSummary; peopl
     reset({ email: '', name: '', role: values.role });
     onChange();
   }
-  const cohortName = (id: number | null) => course.cohorts.find((c) => c.id === id)?.name ?? '';
+  const cohortOf = (id: number | null) => {
+    const c = course.cohorts.find((x) => x.id === id);
+    return c ? cohortName(c) : '';
+  };
   const columns: ColumnDef<Person, unknown>[] = [
     { accessorKey: 'name', header: 'Name' },
     { accessorKey: 'email', header: 'E-mail' },
     { accessorKey: 'studentNumber', header: 'Student number', cell: ({ getValue }) => <span className="num">{(getValue() as string) ?? ''}</span> },
-    { accessorKey: 'role', header: 'Role' },
-    { id: 'cohort', accessorFn: (p) => cohortName(p.cohortId), header: 'Cohort' },
+    { id: 'role', accessorFn: (p) => ROLE_NAMES[p.role as keyof typeof ROLE_NAMES] ?? p.role, header: 'Role' },
+    { id: 'cohort', accessorFn: (p) => cohortOf(p.cohortId), header: 'Cohort' },
     { id: 'account', accessorFn: (p) => (p.invited ? 'invited' : 'active'), header: 'Account' },
   ];
   return (
@@ -177,7 +182,7 @@ function PeopleList({ course, people, onChange }: { course: CourseSummary; peopl
       <h2 id="people" className="mb-3">People</h2>
       {people ? <DataTable data={people.people} columns={columns} label="People" filterPlaceholder="Filter by name, e-mail, cohort, role…" /> : <p className="text-ink-soft">Loading…</p>}
       <h3 className="mb-2 mt-4">Add staff</h3>
-      <form onSubmit={handleSubmit(onAdd)} noValidate className="grid gap-3 md:grid-cols-[1fr_1fr_10rem_auto] md:items-end">
+      <form onSubmit={handleSubmit(onAdd)} noValidate className="grid gap-3 md:grid-cols-[1fr_1fr_minmax(13rem,auto)_auto] md:items-end">
         <div>
           <label htmlFor="staff-email" className="label">E-mail</label>
           <input id="staff-email" type="email" className="field" {...register('email')} />
@@ -227,12 +232,17 @@ function TaDuties({ course, people, onChange }: { course: CourseSummary; people?
     <section aria-labelledby="ta-duties" className="card">
       <h2 id="ta-duties" className="mb-3">TA duties</h2>
       <ul className="mb-3 space-y-1 text-sm">
-        {people?.duties.map((d) => (
-          <li key={d.id} className="flex items-center gap-2">
-            <span>{nameOf(d.taId)} marks {d.studentId ? nameOf(d.studentId) : 'all of'} in {course.cohorts.find((c) => c.id === d.cohortId)?.name}</span>
-            <button type="button" className="btn-quiet" onClick={() => remove(d.id)}>Remove</button>
-          </li>
-        ))}
+        {people?.duties.map((d) => {
+          const c = course.cohorts.find((x) => x.id === d.cohortId);
+          const where = c ? cohortName(c) : 'a cohort no longer listed';
+          const text = d.studentId ? `${nameOf(d.taId)} marks ${nameOf(d.studentId)} in ${where}` : `${nameOf(d.taId)} marks all of ${where}`;
+          return (
+            <li key={d.id} className="flex flex-wrap items-center gap-2">
+              <span>{text}</span>
+              <button type="button" className="btn-quiet" onClick={() => remove(d.id)}>Remove<span className="sr-only">: {text}</span></button>
+            </li>
+          );
+        })}
         {people && people.duties.length === 0 && <li className="text-ink-soft">No TA has been assigned yet.</li>}
       </ul>
       <div className="grid gap-3 md:grid-cols-3">

@@ -21,7 +21,7 @@ export function CoursesOverview({ courses }: { courses: CourseSummary[] }) {
   const rows: PracticalRow[] = courses.flatMap((c) =>
     c.practicals.map((p) => ({
       courseId: c.id, course: c.code, id: p.id, title: p.title, species: p.species.join(', '), mode: p.mode,
-      cohorts: p.deadlines.map((d) => c.cohorts.find((h) => h.id === d.cohortId)?.name ?? '?').join(', '),
+      cohorts: p.deadlines.map((d) => { const h = c.cohorts.find((x) => x.id === d.cohortId); return h ? `${h.name} (${h.term})` : '?'; }).join(', '),
       next: p.deadlines.map((d) => d.deadline).sort()[0] ?? '',
     })),
   );
@@ -73,7 +73,7 @@ function NewCourse() {
   return (
     <section aria-labelledby="new-course" className="card">
       <h2 id="new-course" className="mb-3">New course</h2>
-      <form onSubmit={handleSubmit(onSubmit)} noValidate className="grid gap-3 md:grid-cols-[10rem_1fr_auto] md:items-end">
+      <form onSubmit={handleSubmit(onSubmit)} noValidate className="grid gap-3 md:grid-cols-[10rem_minmax(0,1fr)_auto] md:items-end">
         <div>
           <label htmlFor="course-code" className="label">Code</label>
           <input id="course-code" className="field" {...register('code')} />

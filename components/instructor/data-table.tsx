@@ -4,6 +4,7 @@ import {
   flexRender, getCoreRowModel, getFilteredRowModel, getSortedRowModel, useReactTable,
   type ColumnDef, type SortingState,
 } from '@tanstack/react-table';
+import { TableScroll } from '@/components/ui/table-scroll';
 
 /** A table that sorts by any column header and filters on a typed text, for staff lists. */
 export function DataTable<T>({ data, columns, label, filterPlaceholder = 'Filter…', numeric = [] }: {
@@ -24,7 +25,7 @@ export function DataTable<T>({ data, columns, label, filterPlaceholder = 'Filter
     <div>
       <label htmlFor={`${id}-filter`} className="sr-only">Filter {label}</label>
       <input id={`${id}-filter`} className="field mb-2 max-w-xs" placeholder={filterPlaceholder} value={filter} onChange={(e) => setFilter(e.target.value)} />
-      <div className="overflow-x-auto">
+      <TableScroll label={`${label}, scrollable`}>
         <table className="data-table" aria-label={label}>
           <thead>
             {table.getHeaderGroups().map((hg) => (
@@ -59,7 +60,7 @@ export function DataTable<T>({ data, columns, label, filterPlaceholder = 'Filter
             )}
           </tbody>
         </table>
-      </div>
+      </TableScroll>
     </div>
   );
 }

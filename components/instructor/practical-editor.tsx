@@ -7,6 +7,7 @@ import { QUANTITIES, QUANTITY_KEYS, type QuantityKey, type Verdict } from '@/lib
 import { practicalSchema, quantitySchema, type PracticalData, type PracticalInput, type QuantityInput } from '@/lib/schemas/instructor';
 import { HazardNotes } from '@/components/hazard-notes';
 import { VerdictLabel } from './verdict';
+import { publishedSource } from '@/lib/display';
 import { fetcher, send } from './api';
 
 type Band = { id: number; quantityDefinitionId: number; cohortId: number | null; basis: 'consistency' | 'accuracy'; kind: 'absolute' | 'relative' | 'sigma'; inner: number; outer: number | null; unit: string | null; text: string };
@@ -217,24 +218,26 @@ function Quantities({ detail, onChange }: { detail: Detail; onChange: () => void
   return (
     <section aria-labelledby="quantities" className="card">
       <h2 id="quantities" className="mb-3">Quantities students report</h2>
-      <div className="overflow-x-auto">
-        <table className="data-table" aria-label="Quantities">
-          <thead><tr><th>Quantity</th><th>Isotopologue</th><th>Unit</th><th className="num">Marks</th><th>Uncertainty</th><th>Reference value</th><th>Bands</th><th /></tr></thead>
-          <tbody>
-            {detail.quantities.map((q) => (
-              <tr key={q.id}>
-                <td>{q.label}</td><td>{q.species}</td><td>{q.unitDisplay}</td><td className="num">{q.marks}</td><td>{q.uncertaintyRequired ? 'required' : 'optional'}</td>
-                <td>
-                  {q.reference ? <><span className="num">{+q.reference.value.toPrecision(7)}</span> {q.reference.unit}<br /><span className="hint">{q.reference.kind === 'department' ? 'Department value: ' : 'Literature: '}{q.reference.source}</span></> : '—'}
-                </td>
-                <td className="text-sm">{q.bands.map((b) => <div key={b.id}>{b.basis}, {cohortLabel(detail.cohorts, b.cohortId)}: {b.text}</div>)}{q.bands.length === 0 && <span className="text-ink-soft">none yet</span>}</td>
-                <td><button type="button" className="btn-quiet" onClick={() => remove(q)}>Remove<span className="sr-only"> {q.label} {q.species}</span></button></td>
-              </tr>
-            ))}
-            {detail.quantities.length === 0 && <tr><td colSpan={8} className="text-ink-soft">No quantities yet.</td></tr>}
-          </tbody>
-        </table>
-      </div>
+      <table className="data-table stack-table" aria-label="Quantities">
+        <thead><tr><th>Quantity</th><th>Isotopologue</th><th>Unit</th><th className="num">Marks</th><th>Uncertainty</th><th>Reference value</th><th>Bands</th><th><span className="sr-only">Actions</span></th></tr></thead>
+        <tbody>
+          {detail.quantities.map((q) => (
+            <tr key={q.id}>
+              <td data-label=""><strong className="sm:font-normal">{q.label}</strong></td>
+              <td data-label="Isotopologue">{q.species}</td>
+              <td className="nowrap" data-label="Unit">{q.unitDisplay}</td>
+              <td className="num" data-label="Marks">{q.marks}</td>
+              <td data-label="Uncertainty">{q.uncertaintyRequired ? 'required' : 'optional'}</td>
+              <td data-label="Reference">
+                {q.reference ? <div><span className="num nowrap">{+q.reference.value.toPrecision(7)} {q.reference.unit}</span><br /><span className="hint">{q.reference.kind === 'department' ? 'Department value: ' : 'Literature: '}{publishedSource(q.reference.source)}</span></div> : '—'}
+              </td>
+              <td className="text-sm" data-label="Bands"><div>{q.bands.map((b) => <div key={b.id}>{b.basis}, {cohortLabel(detail.cohorts, b.cohortId)}: {b.text}</div>)}{q.bands.length === 0 && <span className="text-ink-soft">none yet</span>}</div></td>
+              <td data-label=""><button type="button" className="btn-quiet" onClick={() => remove(q)}>Remove<span className="sr-only"> {q.label} {q.species}</span></button></td>
+            </tr>
+          ))}
+          {detail.quantities.length === 0 && <tr><td colSpan={8} className="text-ink-soft">No quantities yet.</td></tr>}
+        </tbody>
+      </table>
       <h3 className="mb-2 mt-4">Add a quantity</h3>
       <form onSubmit={handleSubmit(onAdd)} noValidate className="grid gap-3 md:grid-cols-4">
         <div>
@@ -375,20 +378,27 @@ function Bands({ detail, onChange }: { detail: Detail; onChange: () => void }) {
       )}
       <Status message={msg} />
       <h3 className="mb-2 mt-4">Bands set</h3>
-      <table className="data-table" aria-label="Tolerance bands">
-        <thead><tr><th>Quantity</th><th>Applies to</th><th>Question</th><th>Band</th><th /></tr></thead>
+      <table className="data-table stack-table" aria-label="Tolerance bands">
+        <thead><tr><th>Quantity</th><th>Applies to</th><th>Question</th><th>Band</th><th><span className="sr-only">Actions</span></th></tr></thead>
         <tbody>
           {detail.quantities.flatMap((q) => [
             ...q.bands.map((b) => (
               <tr key={b.id}>
-                <td>{q.label} · {q.species}</td><td>{cohortLabel(detail.cohorts, b.cohortId)}</td><td>{b.basis}</td><td className="num">{b.text}</td>
-                <td><button type="button" className="btn-quiet" onClick={() => submit('DELETE', { bandId: b.id })}>Remove</button></td>
+                <td data-label=""><strong className="sm:font-normal">{q.label} · {q.species}</strong></td>
+                <td data-label="Applies to">{cohortLabel(detail.cohorts, b.cohortId)}</td>
+                <td data-label="Question">{b.basis}</td>
+                <td className="num" data-label="Band">{b.text}</td>
+                <td data-label=""><button type="button" className="btn-quiet" onClick={() => submit('DELETE', { bandId: b.id })}>Remove<span className="sr-only"> band {b.text} of {q.label}</span></button></td>
               </tr>
             )),
             ...(q.consistencyDefault && !q.bands.some((b) => b.basis === 'consistency' && b.cohortId === null)
               ? [
                   <tr key={`default-${q.id}`} data-testid="consistency-default">
-                    <td>{q.label} · {q.species}</td><td>Course default</td><td>consistency</td><td>Default — {q.consistencyDefault}</td><td />
+                    <td data-label=""><strong className="sm:font-normal">{q.label} · {q.species}</strong></td>
+                    <td data-label="Applies to">Course default</td>
+                    <td data-label="Question">consistency</td>
+                    <td data-label="Band">Default — {q.consistencyDefault}</td>
+                    <td data-label="" />
                   </tr>,
                 ]
               : []),
@@ -463,17 +473,17 @@ function LivePreview({ detail }: { detail: Detail }) {
         {msg && <p className="error-text">{msg}</p>}
         {result && (
           <div>
-            {result.reference && <p className="text-sm">Reference: <span className="num">{+result.reference.value.toPrecision(7)}</span> {result.reference.unit} ({result.reference.kind}: {result.reference.source})</p>}
-            <table className="data-table mt-2" aria-label="Preview verdicts">
+            {result.reference && <p className="text-sm">Reference: <span className="num">{+result.reference.value.toPrecision(7)}</span> {result.reference.unit} ({result.reference.kind === 'department' ? 'department value' : 'literature'}: {publishedSource(result.reference.source)})</p>}
+            <table className="data-table stack-table mt-2" aria-label="Preview verdicts">
               <thead><tr><th>Question</th><th>Verdict</th><th className="num">Marks</th><th>Band</th><th className="num">Deviation</th></tr></thead>
               <tbody>
                 {result.results.map((r) => (
                   <tr key={r.basis}>
-                    <td>{r.basis}</td>
-                    <td><VerdictLabel verdict={r.verdict} />{r.reason && <span className="hint block">{r.reason}</span>}</td>
-                    <td className="num">{+r.marks.toFixed(2)} / {+r.maxMarks.toFixed(2)}</td>
-                    <td>{r.band ? `${r.band} (${r.bandFrom === 'cohort' ? 'this cohort' : 'course default'})` : 'none set'}</td>
-                    <td className="num">{r.deviation === null ? '—' : `${r.deviation >= 0 ? '+' : '−'}${+Math.abs(r.deviation).toPrecision(4)} ${quantity?.unitDisplay ?? ''}`}</td>
+                    <td data-label=""><strong className="sm:font-normal">{r.basis}</strong></td>
+                    <td data-label="Verdict"><div><VerdictLabel verdict={r.verdict} />{r.reason && <span className="hint block">{r.reason}</span>}</div></td>
+                    <td className="num" data-label="Marks">{+r.marks.toFixed(2)} / {+r.maxMarks.toFixed(2)}</td>
+                    <td data-label="Band">{r.band ? `${r.band} (${r.bandFrom === 'cohort' ? 'this cohort' : 'course default'})` : 'none set'}</td>
+                    <td className="num nowrap" data-label="Deviation">{r.deviation === null ? '—' : `${r.deviation >= 0 ? '+' : '−'}${+Math.abs(r.deviation).toPrecision(4)} ${quantity?.unitDisplay ?? ''}`}</td>
                   </tr>
                 ))}
               </tbody>

@@ -11,7 +11,7 @@ const LOOK: Record<Verdict, { word: string; symbol: string; cls: string }> = {
 export function VerdictLabel({ verdict }: { verdict: Verdict }) {
   const l = LOOK[verdict];
   return (
-    <span className={`inline-flex items-center gap-1 rounded px-2 py-0.5 text-sm font-bold ${l.cls}`}>
+    <span className={`inline-flex items-center gap-1 whitespace-nowrap rounded px-2 py-0.5 text-sm font-bold ${l.cls}`}>
       <span aria-hidden="true">{l.symbol}</span> {l.word}
     </span>
   );

@@ -22,18 +22,20 @@ function SampleCard({ s, onDone }: { s: Sampled; onDone: () => void }) {
     <li className="card">
       <h3 className="mb-1">{s.student} <span className="font-normal text-ink-soft">— {s.practical}, {s.cohort}</span></h3>
       <p className="hint mb-2">Status {s.status}. {s.moderation ? `Moderated: ${s.moderation.decision}${s.moderation.note ? ` (${s.moderation.note})` : ''}.` : 'Not moderated yet.'} <a href={`/marking/${s.id}`}>Open the marking screen</a></p>
-      <table className="data-table mb-2">
+      <table className="data-table stack-table mb-2">
         <thead><tr><th scope="col">Item</th><th scope="col" className="num">Engine</th><th scope="col" className="num">Marker</th><th scope="col">Marker’s comment</th><th scope="col" className="num">Moderated</th></tr></thead>
         <tbody>
           {s.items.map((i) => (
             <tr key={i.itemKey}>
-              <th scope="row" className="text-left font-normal">{i.label}</th>
-              <td className="num">{i.proposed ?? '—'}</td>
-              <td className="num">{i.awarded ?? '—'} / {i.maxMarks}</td>
-              <td className="text-xs">{i.comment ?? ''}</td>
-              <td className="num">
-                <label className="sr-only" htmlFor={`mod-${s.id}-${i.itemKey}`}>Moderated marks for {i.label}</label>
-                <input id={`mod-${s.id}-${i.itemKey}`} className="field w-20 text-right" type="number" min={0} max={i.maxMarks} step="0.5" value={marks[i.itemKey]} disabled={s.status === 'released'} onChange={(e) => setMarks({ ...marks, [i.itemKey]: Number(e.target.value) })} />
+              <th scope="row" className="text-left font-bold sm:font-normal">{i.label}</th>
+              <td className="num" data-label="Engine">{i.proposed ?? '—'}</td>
+              <td className="num" data-label="Marker"><span className="nowrap">{i.awarded ?? '—'} / {i.maxMarks}</span></td>
+              <td className="text-xs" data-label={i.comment ? 'Comment' : ''}>{i.comment ?? ''}</td>
+              <td className="num" data-label="Moderated">
+                <div>
+                  <label className="sr-only" htmlFor={`mod-${s.id}-${i.itemKey}`}>Moderated marks for {i.label}</label>
+                  <input id={`mod-${s.id}-${i.itemKey}`} className="field w-20 text-right" type="number" min={0} max={i.maxMarks} step="0.5" value={marks[i.itemKey]} disabled={s.status === 'released'} onChange={(e) => setMarks({ ...marks, [i.itemKey]: Number(e.target.value) })} />
+                </div>
               </td>
             </tr>
           ))}
@@ -42,7 +44,7 @@ function SampleCard({ s, onDone }: { s: Sampled; onDone: () => void }) {
       <p className="num mb-2">Engine total {s.proposedTotal ?? '—'} · marker total {s.awardedTotal ?? '—'}</p>
       <label className="label" htmlFor={`note-${s.id}`}>Note (required when changing)</label>
       <input id={`note-${s.id}`} className="field mb-2" value={note} onChange={(e) => setNote(e.target.value)} />
-      <div className="flex gap-2">
+      <div className="flex flex-wrap gap-2">
         <button type="button" className="btn" onClick={() => submit('confirmed')}>Confirm marks</button>
         <button type="button" className="btn-quiet" disabled={changed.length === 0 || !note.trim()} onClick={() => submit('changed')}>Save changed marks</button>
       </div>

@@ -6,6 +6,7 @@ import useSWR from 'swr';
 import { createColumnHelper, flexRender, getCoreRowModel, useReactTable } from '@tanstack/react-table';
 import type { QueueRow } from '@/lib/marking/queue';
 import { QUEUE_FLAGS, QUEUE_STATUSES, QUEUE_SORTS } from '@/lib/schemas/marking';
+import { ConfirmDialog } from '@/components/ui/confirm-dialog';
 import { fetcher, send } from './fetcher';
 
 type Page = { rows: QueueRow[]; total: number; page: number; pageSize: number; pages: number };
@@ -23,6 +24,8 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
   const [cursor, setCursor] = useState(0);
   const [selected, setSelected] = useState<Set<number>>(new Set());
   const [message, setMessage] = useState('');
+  const [confirming, setConfirming] = useState(false);
+  const [known, setKnown] = useState<Map<number, QueueRow>>(new Map());
   const tableRef = useRef<HTMLTableSectionElement>(null);
   const regionRef = useRef<HTMLDivElement>(null);
   const query = useMemo(() => {
@@ -36,6 +39,10 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
     setF((old) => ({ ...old, page: 1, ...patch }));
     setCursor(0);
   };
+
+  useEffect(() => {
+    if (rows.length) setKnown((m) => { const n = new Map(m); for (const r of rows) n.set(r.id, r); return n; });
+  }, [rows]);
 
   const toggle = useCallback((id: number) => setSelected((s) => {
     const n = new Set(s);
@@ -65,9 +72,9 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
             {(Object.keys(row.original.flags) as (keyof QueueRow['flags'])[])
               .filter((k) => row.original.flags[k])
               .map((k) => (
-                <span key={k} className={`rounded px-1 text-xs ${k === 'outside' ? 'bg-verdict-outside-bg text-verdict-outside' : 'bg-paper-sunk text-ink'}`}>
-                  {k === 'outside' ? '✗ ' : '⚑ '}
-                  {FLAG_LABEL[k]}
+                <span key={k} className={`rounded px-1 text-xs ${k === 'outside' ? 'bg-verdict-outside-bg text-verdict-outside' : 'bg-paper-sunk text-ink'}`} data-flag={k}>
+                  <span aria-hidden="true">{k === 'outside' ? '✗ ' : '⚑ '}</span>
+                  {k === 'slip' && row.original.slips.length ? `${FLAG_LABEL[k]}: ${row.original.slips.join('; ')}` : FLAG_LABEL[k]}
                 </span>
               ))}
           </span>
@@ -132,6 +139,7 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
   }, [cursor]);
 
   const release = async () => {
+    setConfirming(false);
     const ids = [...selected];
     setMessage(`Releasing ${ids.length} submission(s)…`);
     const r = await send<{ released: number; results: { submissionId: number; ok: boolean; message?: string }[] }>('/api/release', 'POST', { submissionIds: ids });
@@ -191,8 +199,8 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
       </form>
 
       <div className="mb-3 flex flex-wrap items-center gap-3">
-        <button type="button" className="btn" disabled={selected.size === 0} onClick={release}>
-          Release selected ({selected.size})
+        <button type="button" className="btn" disabled={selected.size === 0} onClick={() => setConfirming(true)}>
+          Release selected ({selected.size})…
         </button>
         <button type="button" className="btn-quiet" onClick={() => setSelected(new Set(rows.filter((r) => r.status === 'marked').map((r) => r.id)))}>
           Select all marked on this page
@@ -229,6 +237,26 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
           </tbody>
         </table>
       </div>
+
+      <ConfirmDialog
+        open={confirming}
+        title={`Release feedback to ${selected.size} student${selected.size === 1 ? '' : 's'}?`}
+        confirmLabel={`Release ${selected.size} now`}
+        onCancel={() => setConfirming(false)}
+        onConfirm={() => void release()}
+      >
+        <p>For each, the feedback PDF is written and e-mailed to the student, who can then also download it. Released feedback cannot be withdrawn.</p>
+        <ul className="max-h-56 list-disc overflow-y-auto pl-5" data-testid="release-list">
+          {[...selected].map((id) => {
+            const r = known.get(id);
+            return (
+              <li key={id}>
+                {r ? <>{r.student.name} <span className="text-ink-soft">({r.student.email}) — {r.practical.title}, total {r.awardedTotal ?? '—'} of {r.maxTotal ?? '—'}{r.status !== 'marked' ? `; ${STATUS_LABEL[r.status] ?? r.status}, will be refused` : ''}</span></> : `Submission ${id}`}
+              </li>
+            );
+          })}
+        </ul>
+      </ConfirmDialog>
 
       {data && data.pages > 1 && (
         <nav className="mt-3 flex items-center gap-2" aria-label="Pages">

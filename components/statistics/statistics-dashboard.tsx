@@ -10,7 +10,10 @@ import type { Comparison } from '@/lib/statistics/compare';
 import type { PracticalReport } from '@/lib/statistics/report';
 import type { QuantityStat } from '@/lib/statistics/queries';
 import { formatPercent, quantityLabel } from '@/lib/statistics/scale';
-import { BoxPlotChart, HistogramChart } from './charts';
+import { TableScroll } from '@/components/ui/table-scroll';
+import { DEFAULT_MARKER_THRESHOLD } from '@/lib/statistics/definitions';
+import { BoxPlots } from './box-plot';
+import { Histogram } from './histogram';
 
 async function fetcher<T>(url: string): Promise<T> {
   const res = await fetch(url, { headers: { accept: 'application/json' } });
@@ -31,19 +34,28 @@ function Verdict({ kind, share, count }: { kind: 'within' | 'partial' | 'outside
     outside: { symbol: '✗', word: 'outside', cls: 'text-verdict-outside bg-verdict-outside-bg' },
   }[kind];
   return (
-    <span className={`inline-block rounded px-1.5 num text-xs ${look.cls}`}>
+    <span className={`inline-block whitespace-nowrap rounded px-1.5 num text-xs ${look.cls}`}>
       <span aria-hidden="true">{look.symbol}</span> {look.word} {formatPercent(share * 100, 0)} ({count})
     </span>
   );
 }
 
-export function StatisticsDashboard({ practicalId, cohortId, canExportMarks }: { practicalId: number; cohortId: number | null; canExportMarks: boolean }) {
-  const [threshold, setThreshold] = useState(10);
+/**
+ * `initial` is the report the page computed on the server (at the default marker threshold), so
+ * the figures and tables arrive with the page; only a changed threshold fetches again.
+ */
+export function StatisticsDashboard({ practicalId, cohortId, canExportMarks, initial }: { practicalId: number; cohortId: number | null; canExportMarks: boolean; initial?: PracticalReport }) {
+  const [threshold, setThreshold] = useState(DEFAULT_MARKER_THRESHOLD);
   const [by, setBy] = useState<'cohort' | 'instrument'>('cohort');
   const q = new URLSearchParams();
   if (cohortId) q.set('cohortId', String(cohortId));
   const base = `/api/statistics/practicals/${practicalId}`;
-  const { data, error, isLoading } = useSWR<PracticalReport>(`${base}?${q}&threshold=${threshold}`, fetcher, { keepPreviousData: true });
+  const { data, error, isLoading } = useSWR<PracticalReport>(`${base}?${q}&threshold=${threshold}`, fetcher, {
+    keepPreviousData: true,
+    fallbackData: threshold === DEFAULT_MARKER_THRESHOLD ? initial : undefined,
+    revalidateOnMount: !initial,
+    revalidateOnFocus: false,
+  });
   const compare = useSWR<Comparison>(`${base}/compare?by=${by}`, fetcher);
 
   if (error) return <p role="alert" className="card error-text">{error.message}</p>;
@@ -57,7 +69,7 @@ export function StatisticsDashboard({ practicalId, cohortId, canExportMarks }: {
         <h2 id="exports-h" className="sr-only">Exports</h2>
         {canExportMarks && <a className="btn" href={`${base}/export/marks?${qs}`} download>Marks CSV (student records)</a>}
         <a className="btn-quiet" href={`${base}/export/statistics?${qs}`} download>Statistics CSV</a>
-        <a className="btn-quiet" href={`${base}/export/summary?${qs}`} download>One-page PDF summary</a>
+        <a className="btn-quiet" href={`${base}/export/summary?${qs}`} download>PDF summary</a>
       </section>
 
       <section aria-labelledby="counts-h" className="card">
@@ -83,11 +95,12 @@ export function StatisticsDashboard({ practicalId, cohortId, canExportMarks }: {
               <h2 id={`${basis}-h`}>{title}: relative deviation per quantity</h2>
               <p className="text-ink-soft">{lead}</p>
             </div>
-            <BoxPlotChart title={`Box plots of relative deviation, ${basis}`} stats={stats} />
+            <BoxPlots title={`Box plots of relative deviation, ${basis}`} stats={stats} />
             <QuantityTable stats={stats} caption={`${title}: figures per quantity`} />
             <h3>Histograms</h3>
-            <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3">
-              {stats.filter((s) => s.histogram).map((s) => <HistogramChart key={`${s.key}-${s.species}`} stat={s} />)}
+            <p className="hint">Buckets of relative deviation in percent, narrow near zero (rounding) and wide outside (slips): below −10, −10 to −5, −5 to −2, −2 to −1, −1 to −0.5, −0.5 to −0.2, −0.2 to 0, and the same upwards; the outer buckets (plainer hatching) are open.</p>
+            <div className="grid gap-x-6 gap-y-5 sm:grid-cols-2 lg:grid-cols-3">
+              {stats.filter((s) => s.histogram).map((s) => <Histogram key={`${s.key}-${s.species}`} stat={s} />)}
             </div>
           </section>
         );
@@ -96,17 +109,17 @@ export function StatisticsDashboard({ practicalId, cohortId, canExportMarks }: {
       <section aria-labelledby="slips-h" className="card">
         <h2 id="slips-h">Most frequent slips</h2>
         {data.slips.length === 0 ? <p className="text-ink-soft">No slips named in this group.</p> : (
-          <table className="data-table mt-2">
+          <table className="data-table stack-table mt-2" data-testid="slip-table">
             <caption className="sr-only">Most frequent named slips, with an example submission each</caption>
-            <thead><tr><th scope="col">Slip</th><th scope="col">Quantities</th><th scope="col" className="num">Found</th><th scope="col" className="num">Submissions</th><th scope="col">Example</th></tr></thead>
+            <thead><tr><th scope="col">Slip</th><th scope="col">Found in</th><th scope="col" className="num">Times found</th><th scope="col" className="num">Submissions</th><th scope="col">Example</th></tr></thead>
             <tbody>
               {data.slips.map((s) => (
-                <tr key={s.code}>
-                  <td>{s.title}</td>
-                  <td className="text-ink-soft">{s.keys.join(', ')}</td>
-                  <td className="num">{s.count}</td>
-                  <td className="num">{s.submissions}</td>
-                  <td><Link href={s.exampleHref}>Submission {s.exampleSubmissionId}</Link></td>
+                <tr key={s.code} data-slip={s.code}>
+                  <td data-label=""><strong className="sm:font-normal">{s.title}</strong></td>
+                  <td data-label="Found in">{s.quantities.join(', ')}</td>
+                  <td className="num" data-label="Times found">{s.count}</td>
+                  <td className="num" data-label="Submissions">{s.submissions}</td>
+                  <td data-label="Example"><Link href={s.exampleHref}>{s.example}</Link></td>
                 </tr>
               ))}
             </tbody>
@@ -124,6 +137,7 @@ export function StatisticsDashboard({ practicalId, cohortId, canExportMarks }: {
         <input id="threshold" className="field max-w-32" type="number" min={0} max={100} step={1} value={threshold}
           onChange={(e) => { const v = Number(e.target.value); if (Number.isFinite(v) && v >= 0 && v <= 100) setThreshold(v); }} />
         {data.markers.rows.length === 0 ? <p className="text-ink-soft">Nothing marked yet.</p> : (
+          <TableScroll label="Marker consistency table">
           <table className="data-table">
             <caption className="sr-only">Marker consistency per marker</caption>
             <thead><tr>
@@ -148,6 +162,7 @@ export function StatisticsDashboard({ practicalId, cohortId, canExportMarks }: {
               ))}
             </tbody>
           </table>
+          </TableScroll>
         )}
       </section>
 
@@ -167,34 +182,41 @@ export function StatisticsDashboard({ practicalId, cohortId, canExportMarks }: {
   );
 }
 
+/**
+ * Centre and spread per quantity as median and interquartile range: one student's ×1000 slip
+ * would drag a mean far from every other student (a mean of 12 188 % from a single outlier),
+ * while the median and the middle half stay where the cohort is. The mean is in the CSV export.
+ */
 function QuantityTable({ stats, caption }: { stats: QuantityStat[]; caption: string }) {
   return (
-    <div className="overflow-x-auto">
-      <table className="data-table">
+    <div>
+      <table className="data-table stack-table">
         <caption className="sr-only">{caption}</caption>
         <thead><tr>
           <th scope="col">Quantity</th><th scope="col" className="num">n</th><th scope="col">Verdicts</th>
-          <th scope="col" className="num">Min</th><th scope="col" className="num">Q1</th><th scope="col" className="num">Median</th><th scope="col" className="num">Q3</th><th scope="col" className="num">Max</th><th scope="col" className="num">Mean</th>
+          <th scope="col" className="num">Median</th><th scope="col" className="num">Middle half (Q1 to Q3)</th><th scope="col" className="num">Range</th>
         </tr></thead>
         <tbody>
           {stats.map((s) => (
-            <tr key={`${s.key}-${s.species}`}>
-              <td>{quantityLabel(s.key, s.species)}</td>
-              <td className="num">{s.n}</td>
-              <td>{s.suppressed || !s.shares || !s.verdicts ? <span className="text-ink-soft">fewer than 5 students</span> : (
+            <tr key={`${s.key}-${s.species}`} data-quantity={`${s.key}:${s.species}`}>
+              <td data-label=""><span className="font-bold sm:font-normal">{quantityLabel(s.key, s.species)}</span></td>
+              <td className="num nowrap" data-label="n">{s.n}</td>
+              <td data-label="Verdicts">{s.suppressed || !s.shares || !s.verdicts ? <span className="text-ink-soft">fewer than 5 students</span> : (
                 <span className="flex flex-wrap gap-1">
                   <Verdict kind="within" share={s.shares.within} count={s.verdicts.within} />
                   <Verdict kind="partial" share={s.shares.partial} count={s.verdicts.partial} />
                   <Verdict kind="outside" share={s.shares.outside} count={s.verdicts.outside} />
-                  {s.verdicts.notChecked > 0 && <span className="inline-block rounded bg-verdict-unchecked-bg px-1.5 text-xs text-verdict-unchecked"><span aria-hidden="true">○</span> not checked {s.verdicts.notChecked}</span>}
+                  {s.verdicts.notChecked > 0 && <span className="inline-block whitespace-nowrap rounded bg-verdict-unchecked-bg px-1.5 text-xs text-verdict-unchecked"><span aria-hidden="true">○</span> not checked {s.verdicts.notChecked}</span>}
                 </span>
               )}</td>
-              {(['min', 'q1', 'median', 'q3', 'max'] as const).map((k) => <td key={k} className="num">{formatPercent(s.box?.[k])}</td>)}
-              <td className="num">{formatPercent(s.mean)}</td>
+              <td className="num" data-label="Median"><span className="nowrap">{formatPercent(s.box?.median)}</span></td>
+              <td className="num" data-label="Middle half">{s.box ? <span><span className="nowrap">{formatPercent(s.box.q1)}</span> to <span className="nowrap">{formatPercent(s.box.q3)}</span></span> : '—'}</td>
+              <td className="num" data-label="Range">{s.box ? <span><span className="nowrap">{formatPercent(s.box.min)}</span> to <span className="nowrap">{formatPercent(s.box.max)}</span></span> : '—'}</td>
             </tr>
           ))}
         </tbody>
       </table>
+      <p className="hint mt-2">Median and middle half (interquartile range) of the relative deviation; no mean is shown, because a single slip of ×1000 would move it further than all the other students together. The statistics CSV also has the mean.</p>
     </div>
   );
 }
@@ -203,7 +225,7 @@ function ComparisonTable({ data }: { data: Comparison }) {
   if (!data.groups.length) return <p className="text-ink-soft">No other cohorts ran this practical.</p>;
   const keys = [...new Map(data.groups.flatMap((g) => g.quantities).map((q) => [`${q.key}|${q.species}|${q.basis}`, q])).values()];
   return (
-    <div className="overflow-x-auto">
+    <TableScroll label="Comparison between cohorts">
       <table className="data-table">
         <caption className="text-left text-sm text-ink-soft">Practicals titled “{data.title}”: median relative deviation and share within tolerance per group</caption>
         <thead>
@@ -224,6 +246,6 @@ function ComparisonTable({ data }: { data: Comparison }) {
           ))}
         </tbody>
       </table>
-    </div>
+    </TableScroll>
   );
 }

@@ -2,17 +2,28 @@
 /**
  * The student's submission form: per isotopologue a line list (typed, pasted from a spreadsheet
  * or read from a CSV file), the band centre and each required quantity with unit and
- * uncertainty; spectrum and report uploads; autosave of the draft; submit.
+ * uncertainty; spectrum and report uploads; autosave of the draft.
+ *
+ * Nothing costs an attempt until the student confirms: each quantity is checked as it is typed
+ * (QuantityInput), "Check without submitting" runs the full format check (and, in practice mode,
+ * the verdicts) on the server without writing anything, and Submit first says what will be
+ * handed in and how many attempts remain.
  */
 import { useCallback, useEffect, useRef, useState } from 'react';
+import { useRouter } from 'next/navigation';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import useSWR from 'swr';
 import { draftSchema, type Draft } from '@/lib/schemas/submission';
 import { parseLineList, formatLineListCsv, type LineListIssue } from '@/lib/linelist';
 import { assignPeaks } from '@/lib/grading/assign';
+import type { Dimension } from '@/lib/grading/units';
 import type { StudentAttemptView } from '@/lib/submissions/view';
+import type { PrecheckView } from '@/lib/submissions/precheck';
+import { ConfirmDialog } from '@/components/ui/confirm-dialog';
 import { AttemptResult } from './attempt-result';
+import { QuantityInput } from './quantity-input';
+import { HandInSummary, PrecheckPanel } from './precheck-panel';
 
 export interface FormQuantity {
   key: string;
@@ -21,6 +32,7 @@ export interface FormQuantity {
   unit: string;
   unitOptions: string[];
   uncertaintyRequired: boolean;
+  dimension: Dimension;
 }
 
 interface Props {
@@ -32,6 +44,7 @@ interface Props {
   quantities: FormQuantity[];
   askOvertone: boolean;
   attemptsLeft: number;
+  mode: 'practice' | 'assessed';
   uploads: { spectrum: string | null; report: string | null };
 }
 
@@ -60,6 +73,10 @@ export function SubmissionForm(props: Props) {
   const [submitError, setSubmitError] = useState<string | null>(null);
   const [result, setResult] = useState<StudentAttemptView | null>(null);
   const [attemptsLeft, setAttemptsLeft] = useState(props.attemptsLeft);
+  const [precheck, setPrecheck] = useState<PrecheckView | null>(null);
+  const [checking, setChecking] = useState(false);
+  const [confirming, setConfirming] = useState<PrecheckView | null>(null);
+  const router = useRouter();
   const inFlight = useRef<Promise<unknown> | null>(null);
   const timer = useRef<ReturnType<typeof setTimeout> | null>(null);
 
@@ -160,7 +177,51 @@ export function SubmissionForm(props: Props) {
   const spectrumId = watch('spectrumUploadId');
   const plot = useSWR(draftId && spectrumId ? `/api/submissions/${draftId}/spectrum?v=${version}` : null, fetcher, { keepPreviousData: true });
 
+  /** The full check of the draft as it stands, on the server; writes nothing, uses no attempt. */
+  const runPrecheck = async (): Promise<PrecheckView | null> => {
+    if (timer.current) clearTimeout(timer.current);
+    if (inFlight.current) await inFlight.current;
+    const res = await fetch('/api/submissions/check', {
+      method: 'POST',
+      headers: { 'content-type': 'application/json' },
+      body: JSON.stringify({ practicalId: props.practicalId, draft: getValues() }),
+    });
+    const body = await res.json().catch(() => ({}));
+    if (!res.ok) {
+      setSubmitError(body.error ?? 'The draft could not be checked.');
+      return null;
+    }
+    return body as PrecheckView;
+  };
+
+  const onCheck = async () => {
+    if (checking) return;
+    setChecking(true);
+    setSubmitError(null);
+    try {
+      const view = await runPrecheck();
+      if (view) setPrecheck(view);
+    } finally {
+      setChecking(false);
+    }
+  };
+
+  /** Submit asks first: what goes in, what is missing, how many attempts are left after it. */
   const onSubmit = async () => {
+    if (submitting || checking) return;
+    setChecking(true);
+    setSubmitError(null);
+    try {
+      const view = await runPrecheck();
+      if (!view) return;
+      setPrecheck(view);
+      setConfirming(view);
+    } finally {
+      setChecking(false);
+    }
+  };
+
+  const submitNow = async () => {
     if (submitting) return;
     setSubmitting(true);
     setSubmitError(null);
@@ -182,9 +243,13 @@ export function SubmissionForm(props: Props) {
       versionRef.current = body.draftVersion;
       setVersion(body.draftVersion);
       setResult(body.result);
+      setPrecheck(null);
       setAttemptsLeft((n) => n - 1);
+      // The attempts listed below the form (which one is marked, attempts left) come from the server.
+      router.refresh();
     } finally {
       setSubmitting(false);
+      setConfirming(null);
     }
   };
 
@@ -255,11 +320,11 @@ export function SubmissionForm(props: Props) {
 
             <div className="grid gap-4 md:grid-cols-2">
               {!qs.some((q) => q.key === 'bandCentre') && (
-                <QuantityInput form={form} sp={s.name} name="bandCentre" label={`Band centre ν̃₀ (${s.display})`} options={['cm-1']} required={false} />
+                <QuantityInput form={form} sp={s.name} name="bandCentre" label={`Band centre ν̃₀ (${s.display})`} options={['cm-1']} required={false} dimension="wavenumber" />
               )}
-              {props.askOvertone && <QuantityInput form={form} sp={s.name} name="overtone" path="overtone" label={`First overtone band centre (${s.display})`} options={['cm-1']} required={false} />}
+              {props.askOvertone && <QuantityInput form={form} sp={s.name} name="overtone" path="overtone" label={`First overtone band centre (${s.display})`} options={['cm-1']} required={false} dimension="wavenumber" />}
               {qs.map((q) => (
-                <QuantityInput key={q.key} form={form} sp={s.name} name={q.key} label={`${q.label} (${s.display})`} options={q.unitOptions} required={q.uncertaintyRequired} defaultUnit={q.unit} />
+                <QuantityInput key={q.key} form={form} sp={s.name} name={q.key} label={`${q.label} (${s.display})`} options={q.unitOptions} required={q.uncertaintyRequired} dimension={q.dimension} defaultUnit={q.unit} />
               ))}
             </div>
           </fieldset>
@@ -280,7 +345,7 @@ export function SubmissionForm(props: Props) {
         </div>
         {plot.data && (
           <figure className="mt-2">
-            <div className="overflow-x-auto text-ink" data-testid="spectrum-plot" dangerouslySetInnerHTML={{ __html: plot.data.svg }} />
+            <div className="table-scroll text-ink" role="region" aria-label="Your spectrum with your lines (scrolls sideways on a narrow screen)" tabIndex={0} data-testid="spectrum-plot" dangerouslySetInnerHTML={{ __html: plot.data.svg }} />
             <figcaption className="hint">
               {plot.data.summary.ok ? `${plot.data.summary.matched} of ${plot.data.summary.reported} of your lines match a peak of your spectrum; ${plot.data.summary.missing} strong peaks are not in your list. Hollow markers match no peak.` : plot.data.summary.message}
             </figcaption>
@@ -289,61 +354,38 @@ export function SubmissionForm(props: Props) {
         {plot.error && <p className="error-text">The plot could not be drawn: {String(plot.error.message)}</p>}
       </fieldset>
 
-      <div className="flex flex-wrap items-center gap-4">
-        <button type="submit" className="btn" disabled={submitting || attemptsLeft <= 0}>
-          {submitting ? 'Submitting…' : 'Submit'}
+      <div className="card flex flex-wrap items-center gap-3" aria-labelledby="hand-in-h">
+        <h3 id="hand-in-h" className="sr-only">Check and submit</h3>
+        <button type="button" className="btn-quiet" onClick={() => void onCheck()} disabled={checking || submitting}>
+          {checking && !confirming ? 'Checking…' : 'Check without submitting'}
         </button>
-        <span className="text-sm text-ink-soft">{attemptsLeft > 0 ? `${attemptsLeft} attempt${attemptsLeft === 1 ? '' : 's'} left` : 'No attempts left'}</span>
+        <button type="submit" className="btn" disabled={submitting || checking || attemptsLeft <= 0}>
+          {submitting ? 'Submitting…' : 'Submit…'}
+        </button>
+        <span className="text-sm text-ink-soft" data-testid="attempts-left">{attemptsLeft > 0 ? `${attemptsLeft} attempt${attemptsLeft === 1 ? '' : 's'} left` : 'No attempts left'}</span>
+        <p className="hint w-full">“Check without submitting” costs nothing: it lists format problems{props.mode === 'practice' ? ' and shows the verdicts on your numbers' : ''} without using an attempt.</p>
       </div>
       <div aria-live="polite">
         {submitError && <p className="error-text" role="alert">{submitError}</p>}
+        {precheck && !result && <PrecheckPanel view={precheck} />}
         {result && (
           <div className="space-y-2">
             <h2>Result of your submission</h2>
-            <AttemptResult view={result} />
+            <AttemptResult view={result} idPrefix="result" />
           </div>
         )}
       </div>
+      <ConfirmDialog
+        open={confirming !== null}
+        title={`Submit attempt ${confirming ? confirming.attemptsTotal - confirming.attemptsLeft + 1 : ''}?`}
+        confirmLabel={submitting ? 'Submitting…' : 'Submit this attempt'}
+        cancelLabel="Not yet"
+        busy={submitting || (confirming !== null && !confirming.late.accepted)}
+        onCancel={() => setConfirming(null)}
+        onConfirm={() => void submitNow()}
+      >
+        {confirming && <HandInSummary view={confirming} attemptNumber={confirming.attemptsTotal - confirming.attemptsLeft + 1} />}
+      </ConfirmDialog>
     </form>
-  );
-}
-
-function QuantityInput({ form, sp, name, label, options, required, defaultUnit, path }: {
-  form: ReturnType<typeof useForm<Draft>>;
-  sp: string;
-  name: string;
-  label: string;
-  options: string[];
-  required: boolean;
-  defaultUnit?: string;
-  path?: 'overtone';
-}) {
-  const base = (path === 'overtone' ? `species.${sp}.overtone` : `species.${sp}.values.${name}`) as `species.${string}.values.${string}`;
-  const id = `q-${sp}-${name}`;
-  const listId = `${id}-units`;
-  useEffect(() => {
-    if (defaultUnit && !form.getValues(`${base}.unit`)) form.setValue(`${base}.unit`, defaultUnit);
-  }, [base, defaultUnit, form]);
-  return (
-    <div className="rounded border border-rule p-3">
-      <p className="label" id={`${id}-label`}>{label}</p>
-      <div className="grid grid-cols-3 gap-2">
-        <div>
-          <label className="hint" htmlFor={`${id}-value`}>Value</label>
-          <input id={`${id}-value`} className="field num" inputMode="decimal" autoComplete="off" {...form.register(`${base}.value`)} />
-        </div>
-        <div>
-          <label className="hint" htmlFor={`${id}-unit`}>Unit</label>
-          <input id={`${id}-unit`} className="field" list={listId} autoComplete="off" {...form.register(`${base}.unit`)} />
-          <datalist id={listId}>
-            {options.map((o) => <option key={o} value={o} />)}
-          </datalist>
-        </div>
-        <div>
-          <label className="hint" htmlFor={`${id}-unc`}>Uncertainty (±){required ? ' — required' : ''}</label>
-          <input id={`${id}-unc`} className="field num" inputMode="decimal" autoComplete="off" {...form.register(`${base}.uncertainty`)} />
-        </div>
-      </div>
-    </div>
   );
 }

@@ -11,7 +11,7 @@ const STYLE: Record<Verdict, { word: string; symbol: string; cls: string }> = {
 export function VerdictTag({ verdict }: { verdict: Verdict }) {
   const s = STYLE[verdict] ?? STYLE['not-checked'];
   return (
-    <span className={`inline-flex items-center gap-1 rounded px-1.5 py-0.5 text-xs font-bold ${s.cls}`}>
+    <span className={`inline-flex items-center gap-1 whitespace-nowrap rounded px-1.5 py-0.5 text-xs font-bold ${s.cls}`}>
       <span aria-hidden="true">{s.symbol}</span>
       {s.word}
     </span>

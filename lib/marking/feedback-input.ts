@@ -37,7 +37,7 @@ export function feedbackInputFromView(view: MarkingView, now = new Date()): Feed
         marks: mark ? `${n(mark.awarded ?? mark.proposed)}/${n(mark.maxMarks)}` : '',
       };
     }),
-    slips: view.slips.map((s) => ({ title: s.title, quantity: s.quantityLabel, explanation: s.explanation, formula: s.formula })),
+    slips: slipsByCode(view.slips),
     plots: view.fits
       .filter((f) => f.residuals.length > 0)
       .map((f) => ({ species: speciesDisplay(f.species), fit: fitPlotModel(f), residuals: residualModel(f), description: f.description, notices: f.notices.map((x) => x.message) })),
@@ -48,4 +48,15 @@ export function feedbackInputFromView(view: MarkingView, now = new Date()): Feed
     max: n(max),
     generatedAt: now.toISOString(),
   };
+}
+
+/** One entry per slip, naming every quantity it was found on: a slip is explained once, not once per quantity. */
+export function slipsByCode(slips: MarkingView['slips']): FeedbackInput['slips'] {
+  const out: (FeedbackInput['slips'][number] & { code: string })[] = [];
+  for (const s of slips) {
+    const seen = out.find((o) => o.code === s.code);
+    if (seen) seen.quantity = `${seen.quantity}, ${s.quantityLabel}`;
+    else out.push({ code: s.code, title: s.title, quantity: s.quantityLabel, explanation: s.explanation, formula: s.formula });
+  }
+  return out.map(({ code: _code, ...rest }) => rest);
 }

@@ -27,7 +27,7 @@ export async function moderationSample(courseId: number, share = DEFAULT_SHARE) 
   if (!practicals.length) return [];
   const subs = await Submission.findAll({
     where: { practicalId: practicals.map((p) => p.id), status: { [Op.in]: ['marked', 'released'] }, isMarkedAttempt: true, markedById: { [Op.ne]: null } },
-    include: [{ model: User, as: 'student', attributes: ['name'] }, { model: Cohort, attributes: ['name'] }],
+    include: [{ model: User, as: 'student', attributes: ['name'] }, { model: Cohort, attributes: ['name', 'term'] }],
     order: [['id', 'ASC']],
   });
   const byMarker = new Map<number, typeof subs>();
@@ -45,14 +45,14 @@ export async function moderationSample(courseId: number, share = DEFAULT_SHARE) 
     sample: picked
       .filter((s) => s.markedById === markerId)
       .map((s) => {
-        const r = s as typeof s & { student: { name: string }; Cohort: { name: string } };
+        const r = s as typeof s & { student: { name: string }; Cohort: { name: string; term: string } };
         const last = mods.filter((m) => m.submissionId === s.id).at(-1);
         return {
           id: s.id,
           version: s.version,
           status: s.status,
           student: r.student.name,
-          cohort: r.Cohort.name,
+          cohort: `${r.Cohort.name} (${r.Cohort.term})`,
           practical: title.get(s.practicalId) ?? '',
           proposedTotal: s.proposedTotal,
           awardedTotal: s.awardedTotal,

@@ -6,6 +6,7 @@ import { Op, type WhereOptions, type Order } from 'sequelize';
 import type { Actor } from '@/lib/authz';
 import { models } from '@/models';
 import type { QueueQuery } from '@/lib/schemas/marking';
+import { SLIPS } from '@/lib/grading';
 
 const FLAG_COLUMN = { outside: 'flagOutside', slip: 'flagSlip', late: 'flagLate', duplicate: 'flagDuplicate', spectrum: 'flagSpectrumMismatch' } as const;
 
@@ -34,7 +35,7 @@ export async function markingScope(actor: Actor): Promise<WhereOptions | null> {
 
 export type QueueRow = {
   id: number;
-  student: { id: number; name: string; studentNumber: string | null };
+  student: { id: number; name: string; email: string; studentNumber: string | null };
   practical: { id: number; title: string };
   cohort: { id: number; name: string };
   status: string;
@@ -45,11 +46,13 @@ export type QueueRow = {
   maxTotal: number | null;
   version: number;
   flags: { outside: boolean; slip: boolean; late: boolean; duplicate: boolean; spectrum: boolean };
+  /** The named slips' titles, so the flag can say which. */
+  slips: string[];
   delivery: string | null;
 };
 
 export async function queuePage(actor: Actor, q: QueueQuery): Promise<{ rows: QueueRow[]; total: number; page: number; pageSize: number; pages: number }> {
-  const { Submission, User, Practical, Cohort, EmailOutbox } = models();
+  const { Submission, User, Practical, Cohort, EmailOutbox, SlipFinding } = models();
   const scope = await markingScope(actor);
   if (!scope) return { rows: [], total: 0, page: q.page, pageSize: q.pageSize, pages: 0 };
   const where: WhereOptions[] = [scope, { isMarkedAttempt: true }];
@@ -69,7 +72,7 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<{ rows: Qu
   const { rows, count } = await Submission.findAndCountAll({
     where: { [Op.and]: where },
     include: [
-      { model: User, as: 'student', attributes: ['id', 'name', 'studentNumber'] },
+      { model: User, as: 'student', attributes: ['id', 'name', 'email', 'studentNumber'] },
       { model: Practical, attributes: ['id', 'title'] },
       { model: Cohort, attributes: ['id', 'name', 'term'] },
     ],
@@ -81,6 +84,14 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<{ rows: Qu
   const mail = ids.length
     ? await EmailOutbox.findAll({ where: { submissionId: ids }, attributes: ['submissionId', 'status', 'dedupeKey', 'id'], order: [['id', 'ASC']] })
     : [];
+  const findings = ids.length ? await SlipFinding.findAll({ where: { submissionId: ids }, attributes: ['submissionId', 'code'] }) : [];
+  const slipTitles = new Map<number, string[]>();
+  for (const f of findings) {
+    const title = (SLIPS as Record<string, { title: string } | undefined>)[f.code]?.title ?? f.code;
+    const list = slipTitles.get(f.submissionId) ?? [];
+    if (!list.includes(title)) list.push(title);
+    slipTitles.set(f.submissionId, list);
+  }
   const lastRelease = new Map<number, string>();
   for (const m of mail) if (m.dedupeKey.startsWith('release:') && m.submissionId) lastRelease.set(m.submissionId, m.status);
   return {
@@ -88,9 +99,9 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<{ rows: Qu
       const r = s as typeof s & { student: InstanceType<typeof User>; Practical: InstanceType<typeof Practical>; Cohort: InstanceType<typeof Cohort> };
       return {
         id: s.id,
-        student: { id: r.student.id, name: r.student.name, studentNumber: r.student.studentNumber },
+        student: { id: r.student.id, name: r.student.name, email: r.student.email, studentNumber: r.student.studentNumber },
         practical: { id: r.Practical.id, title: r.Practical.title },
-        cohort: { id: r.Cohort.id, name: `${r.Cohort.name}, ${r.Cohort.term}` },
+        cohort: { id: r.Cohort.id, name: `${r.Cohort.name} (${r.Cohort.term})` },
         status: s.status,
         attempt: s.attempt,
         submittedAt: s.submittedAt?.toISOString() ?? null,
@@ -99,6 +110,7 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<{ rows: Qu
         maxTotal: s.maxTotal,
         version: s.version,
         flags: { outside: s.flagOutside, slip: s.flagSlip, late: s.flagLate, duplicate: s.flagDuplicate, spectrum: s.flagSpectrumMismatch },
+        slips: slipTitles.get(s.id) ?? [],
         delivery: lastRelease.get(s.id) ?? null,
       };
     }),
@@ -124,5 +136,5 @@ export async function queueFilters(actor: Actor) {
   const cohorts = await Cohort.findAll({ where: { id: [...cohortIds] }, order: [['term', 'DESC'], ['name', 'ASC']] });
   const links = await PracticalCohort.findAll({ where: { cohortId: [...cohortIds] }, attributes: ['practicalId'] });
   const practicals = await Practical.findAll({ where: { id: [...new Set(links.map((l) => l.practicalId))] }, order: [['title', 'ASC']] });
-  return { practicals: practicals.map((p) => ({ id: p.id, title: p.title })), cohorts: cohorts.map((c) => ({ id: c.id, name: `${c.name}, ${c.term}` })) };
+  return { practicals: practicals.map((p) => ({ id: p.id, title: p.title })), cohorts: cohorts.map((c) => ({ id: c.id, name: `${c.name} (${c.term})` })) };
 }

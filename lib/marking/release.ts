@@ -14,6 +14,7 @@ import { queueReleaseScores } from '@/lib/lti/scores';
 import { feedbackPath } from '@/lib/storage';
 import { renderEmail } from '@/lib/templates';
 import { buildFeedbackPdf } from '@/lib/pdf/feedback';
+import { cohortName } from '@/lib/display';
 import { models } from '@/models';
 import { loadMarkingView } from './view';
 import { feedbackInputFromView } from './feedback-input';
@@ -49,10 +50,11 @@ export async function releaseOne(actorId: number, submissionId: number): Promise
         student: view.student.name,
         practical: view.practical.title,
         course: `${view.course.code} ${view.course.title}`,
-        cohort: view.cohort.name,
+        cohort: cohortName(view.cohort),
         total: view.submission.awardedTotal ?? '—',
         max: view.marks.reduce((s, m) => s + m.maxMarks, 0),
-        link: `${appUrl()}/student`,
+        // Straight to the released attempt on the practical's page (sign-in first brings them back here).
+        link: `${appUrl()}/student/practicals/${view.practical.id}#attempt-${submissionId}`,
       });
       await queueEmail(
         { dedupeKey: `release:${submissionId}:${n}`, to: view.student.email, subject: mail.subject, text: mail.text, submissionId, feedbackDocumentId: doc.id },

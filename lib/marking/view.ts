@@ -5,15 +5,20 @@
 import { QUANTITIES, SLIPS, fromSI, formatNumber, formatTyped, isQuantityKey, speciesDisplay, type SlipCode } from '@/lib/grading';
 import { models } from '@/models';
 import { HttpError } from '@/lib/http';
+import { expectedToPrecision, joinUnit, percentText } from '@/lib/display';
 import { worstVerdict, type VerdictKey } from './verdict';
 import { describeFit, noticesOf } from '@/lib/submissions/fit-words';
 import type { FitChoiceSummary } from '@/lib/grading';
+import type { Submission } from '@/models/submission';
+import type { Practical } from '@/models/practical';
 
 export type BasisRow = {
   basis: 'consistency' | 'accuracy';
   expectedDisplay: string;
   deviationDisplay: string;
   relativeDeviationPercent: number | null;
+  /** The relative deviation as text: "+0.012 %", "−2.6 %" (Unicode minus, no e-notation). */
+  relativeDeviationDisplay: string | null;
   verdict: VerdictKey;
   slipCodes: string[];
 };
@@ -40,6 +45,8 @@ export type MarkRow = {
   comment: string | null;
   guidance: string | null;
   handMarked: boolean;
+  /** Why the engine proposed what it did, when that is not a verdict (an unreported quantity: 0). */
+  reason: string | null;
 };
 
 export type SlipRow = { key: string; code: string; title: string; explanation: string; formula: string; quantityLabel: string };
@@ -65,7 +72,7 @@ function display(valueSI: number | null | undefined, key: string, signed = false
   const [v, unit] = r.ok ? [r.value, r.unit] : [valueSI, info.siUnit];
   const text = formatNumber(v, signed ? 3 : 6);
   const sign = signed && v > 0 ? '+' : '';
-  return unit ? `${sign}${text} ${unit}` : `${sign}${text}`;
+  return joinUnit(`${sign}${text}`, unit);
 }
 
 
@@ -100,22 +107,21 @@ export function fitsFromSummary(summary: unknown): FitData[] {
   return out;
 }
 
-export async function loadMarkingView(submissionId: number) {
-  const { Submission, Practical, Course, Cohort, User, SubmittedValue, CheckResult, Mark, Upload, FeedbackDocument, EmailOutbox, Moderation } =
+/**
+ * `loaded` passes the submission and practical rows a caller has already read (the marking page
+ * reads them to authorise), so they are not read twice; every other read goes out at once.
+ */
+export async function loadMarkingView(submissionId: number, loaded?: { submission: Submission; practical: Practical }) {
+  const { Submission: SubmissionModel, Practical: PracticalModel, Course, Cohort, User, SubmittedValue, CheckResult, Mark, Upload, FeedbackDocument, EmailOutbox, Moderation } =
     models();
-  const submission = await Submission.findByPk(submissionId);
+  const submission = loaded?.submission ?? (await SubmissionModel.findByPk(submissionId));
   if (!submission || submission.status === 'draft') throw new HttpError(404, 'Not found.');
-  const [practical, cohort, student, marker] = await Promise.all([
-    Practical.findByPk(submission.practicalId),
+  const where = { submissionId };
+  const [practical, cohort, student, marker, values, checks, marks, uploads, docs, outbox, moderations] = await Promise.all([
+    loaded?.practical ?? PracticalModel.findByPk(submission.practicalId),
     Cohort.findByPk(submission.cohortId),
     User.findByPk(submission.studentId),
     submission.markedById ? User.findByPk(submission.markedById) : Promise.resolve(null),
-  ]);
-  if (!practical || !cohort || !student) throw new HttpError(404, 'Not found.');
-  const course = await Course.findByPk(practical.courseId);
-  if (!course) throw new HttpError(404, 'Not found.');
-  const where = { submissionId };
-  const [values, checks, marks, uploads, docs, outbox, moderations] = await Promise.all([
     SubmittedValue.findAll({ where, order: [['id', 'ASC']] }),
     CheckResult.findAll({ where, order: [['id', 'ASC']] }),
     Mark.findAll({ where, order: [['id', 'ASC']] }),
@@ -124,6 +130,9 @@ export async function loadMarkingView(submissionId: number) {
     EmailOutbox.findAll({ where, order: [['id', 'ASC']] }),
     Moderation.findAll({ where, order: [['id', 'ASC']] }),
   ]);
+  if (!practical || !cohort || !student) throw new HttpError(404, 'Not found.');
+  const course = await Course.findByPk(practical.courseId);
+  if (!course) throw new HttpError(404, 'Not found.');
 
   const rows = new Map<string, QuantityRow>();
   const rowFor = (key: string, species: string) => {
@@ -143,9 +152,11 @@ export async function loadMarkingView(submissionId: number) {
     if (row.reportedDisplay === '—') row.reportedDisplay = display(c.reportedSI, c.key);
     const basis: BasisRow = {
       basis: c.basis,
-      expectedDisplay: display(c.expectedSI, c.key),
+      // To the precision that matters: one digit finer than the student typed.
+      expectedDisplay: expectedToPrecision(c.expectedSI, c.key, values.find((v) => v.key === c.key && v.species === c.species)?.valueText),
       deviationDisplay: display(c.deviation, c.key, true),
       relativeDeviationPercent: c.relativeDeviation === null ? null : c.relativeDeviation * 100,
+      relativeDeviationDisplay: c.relativeDeviation === null ? null : percentText(c.relativeDeviation * 100, { signed: true }),
       verdict: worstVerdict(c.verdict, undefined),
       slipCodes: c.slipCodes ? c.slipCodes.split(/[,\s]+/).filter(Boolean) : [],
     };
@@ -155,6 +166,7 @@ export async function loadMarkingView(submissionId: number) {
   for (const row of rows.values()) row.verdict = worstVerdict(row.consistency?.verdict, row.accuracy?.verdict);
 
   const rubric = Array.isArray(practical.rubric) ? practical.rubric : [];
+  const reportedKeys = new Set(values.filter((v) => v.valueText.trim() !== '').map((v) => `${v.key}:${v.species}`));
   const markRows: MarkRow[] = marks.map((m) => {
     const rubricKey = m.itemKey.startsWith('rubric:') ? m.itemKey.slice('rubric:'.length) : null;
     const item = rubricKey ? rubric.find((r) => r.key === rubricKey) : undefined;
@@ -167,6 +179,7 @@ export async function loadMarkingView(submissionId: number) {
       comment: m.comment,
       guidance: item?.guidance ?? null,
       handMarked: m.proposed === null,
+      reason: !rubricKey && !reportedKeys.has(m.itemKey) ? 'Not reported: proposed 0.' : null,
     };
   });
 

@@ -90,7 +90,8 @@ export function wrap(text: string, font: PDFFont, size: number, width: number): 
   for (const para of text.split('\n')) {
     let line = '';
     let lineWidth = 0;
-    for (const word of para.split(/\s+/).filter(Boolean)) {
+    // Split at ordinary spaces only: a no-break space keeps a number with its unit.
+    for (const word of para.split(/[ \t\r\f\v]+/).filter(Boolean)) {
       const ww = textWidth(word, font, size);
       if (!line) {
         line = word;
@@ -135,8 +136,12 @@ class Writer {
     }
     this.y -= opts.gap ?? 0;
   }
-  heading(t: string) {
-    this.need(40);
+  /**
+   * A heading never ends a page on its own: it moves to the next page unless `keepWith` points of
+   * what follows it (its first block) fit under it.
+   */
+  heading(t: string, keepWith = 40) {
+    this.need(10 + 12.5 * 1.35 + 4 + keepWith);
     this.y -= 10;
     this.text(t, { size: 12.5, font: this.f.bold, gap: 4 });
   }
@@ -183,7 +188,7 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
   w.rule();
 
   // Quantities.
-  w.heading(fill(T.quantitiesHeading, {}));
+  w.heading(fill(T.quantitiesHeading, {}), 90);
   w.text(fill(T.quantitiesIntro, {}), { size: 8.5, color: SOFT, gap: 4 });
   const header = [T.colQuantity, T.colReported, T.colExpected, T.colDeviation, T.colVerdict, T.colMarks];
   const drawRow = (cells: string[], opts: { bold?: boolean; size?: number; colours?: (ReturnType<typeof rgb> | undefined)[]; monoCols?: number[] }) => {
@@ -217,10 +222,13 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
   }
 
   // Named slips.
-  w.heading(fill(T.slipsHeading, {}));
+  // A slip block: title, "In:", a few lines of explanation and the formula.
+  const slipHeight = (s: FeedbackInput['slips'][number]) =>
+    10 * 1.35 + 8.5 * 1.35 + wrap(s.explanation, f.regular, 9, A4.width - 2 * MARGIN).length * 9 * 1.35 + (s.formula ? 9 * 1.35 + 4 : 0);
+  w.heading(fill(T.slipsHeading, {}), input.slips.length ? slipHeight(input.slips[0]) : 20);
   if (input.slips.length === 0) w.text(fill(T.slipsNone, {}));
   for (const s of input.slips) {
-    w.need(50);
+    w.need(slipHeight(s));
     w.text(s.title, { font: f.bold, size: 10 });
     w.text(fill(T.slipFor, { quantity: s.quantity }), { size: 8.5, color: SOFT });
     w.text(s.explanation, { size: 9 });
@@ -229,11 +237,11 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
 
   // Fit and residuals, as vector graphics from the same plot models as the marking screen.
   for (const p of input.plots) {
-    w.heading(`${fill(T.fitHeading, {})}${p.species ? ` (${p.species})` : ''}`);
+    const scale = (A4.width - 2 * MARGIN) / p.fit.width;
+    w.heading(`${fill(T.fitHeading, {})}${p.species ? ` (${p.species})` : ''}`, 2 * 8.5 * 1.35 + 4 + p.fit.height * scale + 6);
     w.text(fill(T.fitIntro, {}), { size: 8.5, color: SOFT, gap: 4 });
     if (p.description) w.text(p.description, { size: 9, gap: 2 });
     for (const notice of p.notices ?? []) w.text(`• ${notice}`, { size: 9, gap: 2 });
-    const scale = (A4.width - 2 * MARGIN) / p.fit.width;
     w.need(p.fit.height * scale + 6);
     drawPlot(w.page, p.fit, { left: MARGIN, top: w.y, scale, font: f.regular, mono: f.mono });
     w.y -= p.fit.height * scale + 6;
@@ -244,18 +252,19 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
   }
 
   if (input.rubric.length) {
-    w.heading(fill(T.rubricHeading, {}));
+    w.heading(fill(T.rubricHeading, {}), 14);
     for (const r of input.rubric) drawRow([r.label, '', '', '', '', r.marks], { monoCols: [5] });
   }
 
-  w.heading(fill(T.commentsHeading, {}));
+  w.heading(fill(T.commentsHeading, {}), input.comments.length ? 9 * 1.35 + wrap(input.comments[0].text, f.regular, 9.5, A4.width - 2 * MARGIN).slice(0, 3).length * 9.5 * 1.35 : 14);
   if (input.comments.length === 0) w.text(fill(T.commentsNone, {}));
   for (const c of input.comments) {
     if (c.label) w.text(c.label, { font: f.bold, size: 9 });
     w.text(c.text, { size: 9.5, gap: 3 });
   }
 
-  w.heading(fill(T.totalHeading, {}));
+  // The three lines of the total stay with their heading.
+  w.heading(fill(T.totalHeading, {}), 3 * 12 * 1.35 + 4);
   w.text(fill(T.sumLine, { sum: input.sum, max: input.max }), { font: f.mono });
   if (input.latePenalty > 0) w.text(fill(T.penaltyLine, { penalty: input.latePenalty }), { font: f.mono });
   w.text(fill(T.totalLine, { total: input.total, max: input.max }), { font: f.bold, size: 12 });

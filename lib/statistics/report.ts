@@ -1,11 +1,28 @@
 /** The statistics of one practical in one scope, shaped for the API, the page and the exports. */
 import { z } from 'zod';
-import { SLIPS } from '@/lib/grading';
+import { QUANTITIES, SLIPS } from '@/lib/grading';
+import { models } from '@/models';
 import { validate } from '@/lib/http';
 import { DEFAULT_MARKER_THRESHOLD, HISTOGRAM_EDGES_PERCENT, MIN_GROUP } from './definitions';
 import { frequentSlips, markerConsistency, quantityStatistics, submissionCounts, type Counts, type MarkerRow, type QuantityStat, type SlipStat } from './queries';
 import { cachedStatistics } from './cache';
 import { markerLabels, type StatisticsScope } from './scope';
+
+/** A quantity's name from its key ("forceConstant" → "Force constant k"). */
+export function quantityName(key: string): string {
+  return (QUANTITIES as Record<string, { label: string } | undefined>)[key]?.label ?? key;
+}
+
+/** "Student name, attempt n" for each example submission, in one read. */
+async function exampleLabels(ids: number[]): Promise<Map<number, string>> {
+  const out = new Map<number, string>();
+  if (!ids.length) return out;
+  const { Submission, User } = models();
+  const subs = await Submission.findAll({ where: { id: [...new Set(ids)] }, attributes: ['id', 'attempt', 'studentId'] });
+  const users = subs.length ? await User.findAll({ where: { id: [...new Set(subs.map((x) => x.studentId))] }, attributes: ['id', 'name'] }) : [];
+  for (const sub of subs) out.set(sub.id, `${users.find((u) => u.id === sub.studentId)?.name ?? 'A student'}, attempt ${sub.attempt}`);
+  return out;
+}
 
 export function slipTitle(code: string): string {
   return (SLIPS as Record<string, { title: string } | undefined>)[code]?.title ?? code;
@@ -32,7 +49,11 @@ export interface PracticalReport {
   counts: Omit<Counts, 'group'>;
   quantities: QuantityStat[];
   histogramEdgesPercent: readonly number[];
-  slips: (SlipStat & { title: string; exampleHref: string })[];
+  /**
+   * quantities: the names of the quantities the slip was found on (not their keys);
+   * example: whose submission the example is, for the link text ("Talia Ivers, attempt 1").
+   */
+  slips: (SlipStat & { title: string; exampleHref: string; quantities: string[]; example: string })[];
   markers: { threshold: number; namesShown: boolean; rows: MarkerView[] };
 }
 
@@ -46,7 +67,10 @@ export async function practicalReport(s: StatisticsScope, threshold: number): Pr
   ] as const);
   const counts = countRows[0] ?? { group: 'all', students: 0, submitted: 0, onTime: 0, late: 0, marked: 0, released: 0 };
   const suppressed = counts.students < MIN_GROUP;
-  const labels = await markerLabels(s.actor, s.manages, markers.map((m) => m.markerId));
+  const [labels, examples] = await Promise.all([
+    markerLabels(s.actor, s.manages, markers.map((m) => m.markerId)),
+    exampleLabels(slips.map((sl) => sl.exampleSubmissionId)),
+  ]);
   const { group: _g, ...plainCounts } = counts;
   void _g;
   return {
@@ -62,7 +86,13 @@ export async function practicalReport(s: StatisticsScope, threshold: number): Pr
     // A small group shows counts only, whatever size each quantity has.
     quantities: suppressed ? quantities.map((q) => ({ group: q.group, key: q.key, species: q.species, basis: q.basis, n: q.n, students: q.students, suppressed: true })) : quantities,
     histogramEdgesPercent: HISTOGRAM_EDGES_PERCENT,
-    slips: slips.map((sl) => ({ ...sl, title: slipTitle(sl.code), exampleHref: `/marking/${sl.exampleSubmissionId}` })),
+    slips: slips.map((sl) => ({
+      ...sl,
+      title: slipTitle(sl.code),
+      exampleHref: `/marking/${sl.exampleSubmissionId}`,
+      quantities: [...new Set(sl.keys.map(quantityName))],
+      example: examples.get(sl.exampleSubmissionId) ?? `Submission ${sl.exampleSubmissionId}`,
+    })),
     markers: {
       threshold,
       namesShown: s.manages,

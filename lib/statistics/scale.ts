@@ -4,6 +4,7 @@
  * drawing; every figure shown as text is the plain value.
  */
 import { QUANTITIES } from '@/lib/grading/quantities';
+import { isotopologueText, percentText } from '@/lib/display';
 
 export const SYMLOG_LINEAR = 0.1;
 
@@ -18,14 +19,13 @@ export function tickLabel(percent: number): string {
   return `${percent < 0 ? '−' : '+'}${Math.abs(percent)} %`;
 }
 
+/** A percentage as text: Unicode minus, no e-notation, a no-break space before % (lib/display.ts). */
 export function formatPercent(v: number | null | undefined, digits = 2): string {
-  if (v === null || v === undefined || !Number.isFinite(v)) return '—';
-  const abs = Math.abs(v);
-  const text = abs !== 0 && (abs < 0.01 || abs >= 1e5) ? abs.toExponential(1) : abs.toFixed(digits);
-  return `${v < 0 ? '−' : ''}${text} %`;
+  return percentText(v, { digits });
 }
 
+/** "Force constant k (H³⁵Cl)". */
 export function quantityLabel(key: string, species: string): string {
   const info = (QUANTITIES as Record<string, { label: string } | undefined>)[key];
-  return `${info?.label ?? key} (${species})`;
+  return `${info?.label ?? key} (${isotopologueText(species)})`;
 }

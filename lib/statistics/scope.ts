@@ -87,3 +87,23 @@ export async function markerLabels(actor: Actor, manages: boolean, markerIds: nu
   for (const id of markerIds) if (!labels.has(id)) labels.set(id, `Marker #${id}`);
   return labels;
 }
+
+/** cohortsOfPractical for many practicals at once (one query for the links, one for the cohorts). */
+export async function cohortsOfPracticals(practicalIds: number[]): Promise<Map<number, Cohort[]>> {
+  const out = new Map<number, Cohort[]>(practicalIds.map((id) => [id, []]));
+  if (!practicalIds.length) return out;
+  const rows = await sequelize().query<{ practicalId: number; cohortId: number }>(
+    `SELECT "practicalId", "cohortId" FROM practical_cohorts WHERE "practicalId" IN (:ids)
+     UNION SELECT DISTINCT "practicalId", "cohortId" FROM submissions WHERE "practicalId" IN (:ids)`,
+    { replacements: { ids: practicalIds }, type: QueryTypes.SELECT },
+  );
+  if (!rows.length) return out;
+  const cohorts = await models().Cohort.findAll({ where: { id: [...new Set(rows.map((r) => Number(r.cohortId)))] }, order: [['term', 'ASC'], ['name', 'ASC']] });
+  for (const r of rows) {
+    const c = cohorts.find((x) => x.id === Number(r.cohortId));
+    const list = out.get(Number(r.practicalId));
+    if (c && list && !list.includes(c)) list.push(c);
+  }
+  for (const list of out.values()) list.sort((a, b) => a.term.localeCompare(b.term) || a.name.localeCompare(b.name));
+  return out;
+}

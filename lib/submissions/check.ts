@@ -15,8 +15,9 @@
  * How one quantity's marks are proposed: the item's marks are shared equally between the bases
  * that received a verdict (consistency and accuracy: half each when both were checked, the
  * shares from BASIS_SHARE in lib/instructor/bands.ts); each share is marksFor(verdict) — full
- * within the inner band, half within the outer band, none outside. A quantity with no checked
- * basis (not reported, or no band) is proposed null: the marker decides.
+ * within the inner band, half within the outer band, none outside. A quantity the student did not
+ * report is proposed 0 (the marking screen says why); one that was reported but has no checked
+ * basis (no band applies) is proposed null: the marker decides.
  * proposedTotal is the sum of the proposed quantity marks (rubric items excluded), before any
  * late penalty; submissions.latePenalty holds the percentage to deduct from the total.
  */
@@ -98,22 +99,24 @@ async function flagDuplicates(ids: number[]): Promise<void> {
   }
 }
 
-async function run(submissionId: number, transaction: Transaction): Promise<CheckSummary> {
-  const { Submission, Practical, QuantityDefinition, ToleranceBand, SubmittedValue, LineAssignment, CheckResult, SlipFinding, Mark, Upload } = models();
-  const submission = await Submission.findByPk(submissionId, { transaction });
-  if (!submission) throw new Error(`Submission ${submissionId} does not exist`);
-  const practical = await Practical.findByPk(submission.practicalId, { transaction });
-  if (!practical) throw new Error(`Practical ${submission.practicalId} does not exist`);
-  const qdefs = await QuantityDefinition.findAll({ where: { practicalId: practical.id }, order: [['position', 'ASC'], ['id', 'ASC']], transaction });
-  const bandRows = qdefs.length
-    ? await ToleranceBand.findAll({
-        where: { quantityDefinitionId: qdefs.map((q) => q.id), [Op.or]: [{ cohortId: null }, { cohortId: submission.cohortId }] },
-        transaction,
-      })
-    : [];
-  const bands = pickBands(bandRows.map((r) => r.get({ plain: true }) as ResolvedBand), submission.cohortId);
-  const values = await SubmittedValue.findAll({ where: { submissionId }, transaction });
-  const lines = await LineAssignment.findAll({ where: { submissionId }, order: [['id', 'ASC']], transaction });
+/** A reported value as stored (submitted_values) or as in a draft: the text the student typed. */
+export type TypedValue = { key: string; species: string; valueText: string; unit: string; uncertaintyText: string | null };
+/** A line of the student's list, as stored (line_assignments) or as in a draft. */
+export type TypedLine = { species: string; branch: 'P' | 'R' | null; J: number | null; wavenumber: number };
+type QuantityDefinitionLike = { id: number; key: string; species: string; referenceKind: string; referenceValueSI: number | null; uncertaintyRequired: boolean };
+
+/**
+ * The grading engine over one submission's values and lines: checkSubmission once per
+ * isotopologue of the practical. Reads and writes nothing, so the stored check and the student's
+ * "check without submitting" give the same answers for the same numbers.
+ */
+export function runChecks(
+  practical: { species: unknown },
+  qdefs: QuantityDefinitionLike[],
+  bands: ReturnType<typeof pickBands>,
+  values: TypedValue[],
+  lines: TypedLine[],
+): Record<string, SubmissionResult> {
   const valueOf = (key: string, species: string) => values.find((v) => v.key === key && v.species === species);
   const asNum = (v: { valueText: string; unit: string; uncertaintyText: string | null }): Num => {
     const n: Num = { value: v.valueText, unit: v.unit };
@@ -163,6 +166,29 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
       requireUncertainty,
     });
   }
+  return results;
+}
+
+/** The bands that apply to a cohort, per quantity definition and basis. */
+export async function bandsForCohort(qdefIds: number[], cohortId: number, transaction?: Transaction) {
+  const bandRows = qdefIds.length
+    ? await models().ToleranceBand.findAll({ where: { quantityDefinitionId: qdefIds, [Op.or]: [{ cohortId: null }, { cohortId }] }, transaction })
+    : [];
+  return pickBands(bandRows.map((r) => r.get({ plain: true }) as ResolvedBand), cohortId);
+}
+
+async function run(submissionId: number, transaction: Transaction): Promise<CheckSummary> {
+  const { Submission, Practical, QuantityDefinition, SubmittedValue, LineAssignment, CheckResult, SlipFinding, Mark, Upload } = models();
+  const submission = await Submission.findByPk(submissionId, { transaction });
+  if (!submission) throw new Error(`Submission ${submissionId} does not exist`);
+  const practical = await Practical.findByPk(submission.practicalId, { transaction });
+  if (!practical) throw new Error(`Practical ${submission.practicalId} does not exist`);
+  const qdefs = await QuantityDefinition.findAll({ where: { practicalId: practical.id }, order: [['position', 'ASC'], ['id', 'ASC']], transaction });
+  const bands = await bandsForCohort(qdefs.map((q) => q.id), submission.cohortId, transaction);
+  const values = await SubmittedValue.findAll({ where: { submissionId }, transaction });
+  const lines = await LineAssignment.findAll({ where: { submissionId }, order: [['id', 'ASC']], transaction });
+  const speciesList: string[] = Array.isArray(practical.species) ? practical.species : [];
+  const results = runChecks(practical, qdefs, bands, values, lines);
 
   // --- The student's lines against the peaks of their own spectrum ----------------------
   const spectrumUpload = await Upload.findOne({ where: { submissionId, kind: 'spectrum' }, order: [['id', 'DESC']], transaction });
@@ -234,8 +260,9 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
   for (const q of qdefs) {
     if (!isQuantityKey(q.key) || !speciesList.includes(q.species)) continue;
     const checks = (results[q.species]?.quantities ?? []).filter((c) => c.key === q.key && c.verdict !== 'not-checked');
-    let proposed: number | null = null;
-    if (checks.length) {
+    const reported = values.some((v) => v.key === q.key && v.species === q.species && v.valueText.trim() !== '');
+    let proposed: number | null = reported ? null : 0;
+    if (reported && checks.length) {
       const shareTotal = checks.reduce((s, c) => s + BASIS_SHARE[c.basis], 0);
       proposed = checks.reduce((s, c) => s + marksFor(c.verdict, q.marks) * (BASIS_SHARE[c.basis] / shareTotal), 0);
       proposed = Math.round(proposed * 100) / 100;

@@ -23,7 +23,7 @@ import { models } from '@/models';
 import type { Practical } from '@/models/practical';
 import type { Submission } from '@/models/submission';
 import { draftSchema, emptyDraft, type Draft } from '@/lib/schemas/submission';
-import { checkStoredSubmission } from './check';
+import { checkStoredSubmission, type TypedLine, type TypedValue } from './check';
 
 const DAY_MS = 86_400_000;
 
@@ -59,7 +59,7 @@ export async function findDraft(practicalId: number, studentId: number, transact
 }
 
 /** Uploads named by the draft must be the student's own. */
-async function assertOwnUploads(draft: Draft, studentId: number, transaction?: Transaction) {
+export async function assertOwnUploads(draft: Draft, studentId: number, transaction?: Transaction) {
   for (const [field, kind] of [['spectrumUploadId', 'spectrum'], ['reportUploadId', 'report']] as const) {
     const id = draft[field];
     if (id === null) continue;
@@ -122,6 +122,27 @@ export function validateForSubmit(draft: Draft, practical: Practical, _qdefs: { 
   if (!anything) throw new HttpError(400, 'The submission is empty: enter your line list and the required values first.', { species: ['At least one line or one value is required.'] });
 }
 
+/** The values a draft reports, as they would be stored on submitting (blank values left out). */
+export function draftValues(draft: Draft, species: string[]): TypedValue[] {
+  const out: TypedValue[] = [];
+  for (const sp of species) {
+    const d = draft.species[sp];
+    if (!d) continue;
+    const put = (key: string, v: { value: string; unit: string; uncertainty: string } | undefined) => {
+      if (v && v.value.trim() !== '') out.push({ key, species: sp, valueText: v.value.trim(), unit: v.unit.trim(), uncertaintyText: v.uncertainty.trim() || null });
+    };
+    put('bandCentre', d.values.bandCentre ?? d.bandCentre);
+    put('overtone', d.overtone);
+    for (const [key, v] of Object.entries(d.values)) if (key !== 'bandCentre' && key !== 'overtone' && isQuantityKey(key)) put(key, v);
+  }
+  return out;
+}
+
+/** The lines of a draft, per isotopologue of the practical. */
+export function draftLines(draft: Draft, species: string[]): TypedLine[] {
+  return species.flatMap((sp) => (draft.species[sp]?.lines ?? []).map((l) => ({ species: sp, branch: l.branch, J: l.J, wavenumber: l.wavenumber })));
+}
+
 function randomName(ext: string) {
   return `${crypto.randomBytes(16).toString('hex')}${ext}`;
 }
@@ -178,19 +199,8 @@ async function submitDraftNow(actor: Actor, draftRow: Submission, practical: Pra
         },
         { transaction },
       );
-      const valueRows: { submissionId: number; key: string; species: string; valueText: string; unit: string; uncertaintyText: string | null; valueSI: number | null }[] = [];
-      const lineRows: { submissionId: number; species: string; branch: 'P' | 'R' | null; J: number | null; wavenumber: number; source: 'student' }[] = [];
-      for (const sp of practical.species) {
-        const d = draft.species[sp];
-        if (!d) continue;
-        const put = (key: string, v: { value: string; unit: string; uncertainty: string } | undefined) => {
-          if (v && v.value.trim() !== '') valueRows.push({ submissionId: attempt.id, key, species: sp, valueText: v.value.trim(), unit: v.unit.trim(), uncertaintyText: v.uncertainty.trim() || null, valueSI: null });
-        };
-        put('bandCentre', d.values.bandCentre ?? d.bandCentre);
-        put('overtone', d.overtone);
-        for (const [key, v] of Object.entries(d.values)) if (key !== 'bandCentre' && key !== 'overtone' && isQuantityKey(key)) put(key, v);
-        for (const l of d.lines) lineRows.push({ submissionId: attempt.id, species: sp, branch: l.branch, J: l.J, wavenumber: l.wavenumber, source: 'student' });
-      }
+      const valueRows = draftValues(draft, practical.species).map((v) => ({ ...v, submissionId: attempt.id, valueSI: null }));
+      const lineRows = draftLines(draft, practical.species).map((l) => ({ ...l, submissionId: attempt.id, source: 'student' as const }));
       if (valueRows.length) await SubmittedValue.bulkCreate(valueRows, { transaction });
       if (lineRows.length) await LineAssignment.bulkCreate(lineRows, { transaction });
 

@@ -1,5 +1,6 @@
 /** Reads for the student's pages: open practicals per cohort with deadline, attempts and latest status. */
 import type { Actor } from '@/lib/authz';
+import { cohortName } from '@/lib/display';
 import { models } from '@/models';
 
 export async function openPracticalsFor(actor: Actor) {
@@ -10,6 +11,12 @@ export async function openPracticalsFor(actor: Actor) {
   const pcs = await PracticalCohort.findAll({ where: { cohortId: cohortIds }, order: [['deadline', 'ASC']] });
   const practicals = await Practical.findAll({ where: { id: [...new Set(pcs.map((p) => p.practicalId))], archivedAt: null } });
   const cohorts = await Cohort.findAll({ where: { id: cohortIds } });
+  // Every attempt of every practical listed, in one query (not one per practical).
+  const subs = await Submission.findAll({
+    where: { practicalId: practicals.map((p) => p.id), studentId: actor.id },
+    attributes: ['practicalId', 'attempt', 'status', 'extraAttempts', 'releasedAt', 'awardedTotal', 'proposedTotal', 'maxTotal'],
+    order: [['attempt', 'DESC']],
+  });
   const now = new Date();
   const out = [];
   for (const pc of pcs) {
@@ -17,14 +24,16 @@ export async function openPracticalsFor(actor: Actor) {
     const practical = practicals.find((p) => p.id === pc.practicalId);
     if (!practical) continue;
     const cohort = cohorts.find((c) => c.id === pc.cohortId);
-    const subs = await Submission.findAll({ where: { practicalId: practical.id, studentId: actor.id }, order: [['attempt', 'DESC']] });
-    const used = subs.filter((s) => s.attempt > 0).length;
-    const extra = subs.reduce((m, s) => Math.max(m, s.extraAttempts), 0);
-    const latest = subs.find((s) => s.attempt > 0) ?? null;
+    const mine = subs.filter((s) => s.practicalId === practical.id);
+    const used = mine.filter((s) => s.attempt > 0).length;
+    const extra = mine.reduce((m, s) => Math.max(m, s.extraAttempts), 0);
+    const latest = mine.find((s) => s.attempt > 0) ?? null;
+    const released = Boolean(latest?.releasedAt);
     out.push({
-      practicalId: practical.id, title: practical.title, mode: practical.mode, cohortName: cohort?.name ?? '', deadline: pc.deadline,
+      practicalId: practical.id, title: practical.title, mode: practical.mode, cohortName: cohort ? cohortName(cohort) : '', deadline: pc.deadline,
       attemptsLeft: Math.max(0, practical.maxAttempts + extra - used), attemptsUsed: used,
-      hasDraft: subs.some((s) => s.attempt === 0), latestStatus: latest?.status ?? null, released: Boolean(latest?.releasedAt),
+      hasDraft: mine.some((s) => s.attempt === 0), latestStatus: latest?.status ?? null, released,
+      mark: released && latest ? { awarded: latest.awardedTotal ?? latest.proposedTotal, max: latest.maxTotal } : null,
     });
   }
   return out;

@@ -45,10 +45,20 @@ test('a student opening a staff URL gets the not-permitted page', async ({ page 
   await expect(page.getByRole('heading', { name: 'Not permitted' })).toBeVisible();
 });
 
-test('a signed-out visitor is sent to sign-in', async ({ page }) => {
+test('a signed-out visitor is sent to sign-in, and back to the page asked for after it', async ({ page }) => {
   await page.goto('/courses');
-  await expect(page).toHaveURL(/\/signin$/);
-  await expect(page.getByRole('heading', { name: 'Sign in' })).toBeVisible();
+  await expect(page).toHaveURL(/\/signin\?next=%2Fcourses$/);
+  await page.locator('#email').fill('instructor1@northmere.example');
+  await page.locator('#password').fill(PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await expect(page).toHaveURL(/\/courses$/);
+  // Only a path on this site is followed: another host is ignored and the person lands on their home.
+  await page.context().clearCookies();
+  await page.goto('/signin?next=//elsewhere.example/x');
+  await page.locator('#email').fill('ta2@northmere.example');
+  await page.locator('#password').fill(PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await expect(page).toHaveURL(/\/marking$/);
 });
 
 test('signing out returns to the sign-in page and closes the session', async ({ page }) => {
@@ -57,5 +67,18 @@ test('signing out returns to the sign-in page and closes the session', async ({ 
   await page.getByRole('button', { name: 'Sign out' }).click();
   await expect(page).toHaveURL(/\/signin/);
   await page.goto('/marking');
-  await expect(page).toHaveURL(/\/signin$/);
+  await expect(page).toHaveURL(/\/signin\?next=%2Fmarking$/);
+});
+
+test('the header links every page a role works in: a course lead reaches courses and moderation, a student only their own', async ({ page }) => {
+  await signIn(page, 'lead@northmere.example');
+  const nav = page.getByRole('navigation', { name: 'Main' });
+  await expect(nav.getByRole('link', { name: 'Cohort statistics' })).toHaveAttribute('aria-current', 'page');
+  await nav.getByRole('link', { name: 'Moderation' }).click();
+  await expect(page.getByRole('heading', { level: 1, name: 'Moderation' })).toBeVisible();
+  await nav.getByRole('link', { name: 'Courses & practicals' }).click();
+  await expect(page.getByRole('heading', { level: 1, name: 'Courses & practicals' })).toBeVisible();
+  await page.getByRole('button', { name: 'Sign out' }).click();
+  await signIn(page, 'student05@northmere.example');
+  await expect(page.getByRole('navigation', { name: 'Main' }).getByRole('link')).toHaveText(['My practicals']);
 });

@@ -32,6 +32,9 @@ test('a TA marks with an override, releases five, and the feedback arrives', asy
   await fetch(`${api()}/api/email/all`, { method: 'DELETE' }).catch(() => undefined);
   await signIn(page, 'ta1@northmere.example');
   await page.goto('/marking');
+  // A "named slip" flag says which slip.
+  await page.getByLabel('Flag').selectOption('slip');
+  await expect(page.locator('tbody tr[data-submission] [data-flag="slip"]').first()).toContainText(/Named slip: \S+/);
   await page.getByLabel('Flag').selectOption('outside');
   await page.getByLabel('Status').selectOption('submitted');
   const firstRow = page.locator('tbody tr[data-submission]').first();
@@ -50,10 +53,13 @@ test('a TA marks with an override, releases five, and the feedback arrives', asy
   await input.fill(String(proposed >= max ? max - 0.5 : proposed + 0.5));
   await page.getByRole('button', { name: 'Save marks' }).click();
   await expect(page.getByTestId('marking-problem')).toContainText(/comment/i);
-  await row.locator('input').nth(1).fill('The method is right; half a mark back for the working shown.');
+  await row.locator('textarea').fill('The method is right; half a mark back for the working shown.');
   for (const hand of await page.locator('tr[data-item^="rubric:"] input[type=number]').all()) if (!(await hand.inputValue())) await hand.fill('1');
   await page.getByRole('button', { name: 'Save marks' }).click();
   await expect(page.getByTestId('marking-status')).toContainText(/Saved/);
+  // The total reads as one sum, and the next submission is one click away.
+  await expect(page.getByTestId('marking-total')).toContainText(/Total [\d.]+ of \d+|− late penalty/);
+  await expect(page.getByTestId('next-after-save')).toHaveAttribute('href', /^\/marking\/\d+$/);
 
   // Four more from the queue: the proposal stands for every quantity, the hand-marked items get a mark.
   for (let i = 0; i < 4; i++) {
@@ -77,7 +83,13 @@ test('a TA marks with an override, releases five, and the feedback arrives', asy
   }
   expect(ids).toContain(markedId);
   expect(ids).toHaveLength(5);
+  // Release asks first, naming who gets what; it cannot be undone.
   await page.getByRole('button', { name: /Release selected/ }).click();
+  const dialog = page.getByRole('dialog');
+  await expect(dialog).toContainText('cannot be withdrawn');
+  await expect(dialog.getByTestId('release-list').locator('li')).toHaveCount(5);
+  await expect(dialog.getByTestId('release-list')).toContainText('@northmere.example');
+  await dialog.getByRole('button', { name: 'Release 5 now' }).click();
   await expect(page.getByTestId('queue-message')).toContainText('Released 5 of 5');
 
   // Five e-mails, each with a PDF attachment.
@@ -94,6 +106,9 @@ test('a TA marks with an override, releases five, and the feedback arrives', asy
   const typed: string = view.quantities.find((q: { key: string }) => q.key === 'forceConstant')?.reportedTyped ?? view.quantities[0].reportedTyped;
   const mail = mails.find((m) => m.to.some((t) => t.address.toLowerCase() === studentEmail.toLowerCase()))!;
   expect(mail).toBeTruthy();
+  // The e-mail links to the released attempt on the practical's page, not to the student home.
+  const full = (await (await fetch(`${api()}/api/email/${mail.id}`)).json()) as { text: string };
+  expect(full.text).toMatch(new RegExp(`/student/practicals/\\d+#attempt-${markedId}`));
   const fromMail = Buffer.from(await (await fetch(`${api()}/api/email/${mail.id}/attachment/${mail.attachments![0].generatedFileName}`)).arrayBuffer());
   const text = pdfText(fromMail);
   expect(text).toContain(typed.split(' ')[0]);
@@ -106,5 +121,8 @@ test('a TA marks with an override, releases five, and the feedback arrives', asy
   const res = await student.request.get(`/api/submissions/${markedId}/feedback`);
   expect(res.status()).toBe(200);
   expect(Buffer.from(await res.body()).equals(fromMail)).toBe(true);
+  // Their home says the feedback is out, with the mark.
+  await student.goto('/student');
+  await expect(student.getByText(/Feedback released: [\d.]+ of \d+/).first()).toBeVisible();
   await ctx.close();
 });

@@ -18,14 +18,23 @@ test('course lead sees cohort statistics and downloads the marks CSV', async ({ 
   await expect(page.getByRole('heading', { level: 1, name: /Statistics:/ })).toBeVisible();
   await expect(page.getByRole('heading', { name: /Submissions — Group A/ })).toBeVisible();
 
-  // Charts (recharts SVG) with accessible names, and the slip table.
-  await expect(page.getByRole('img', { name: /Box plots of relative deviation, consistency/ })).toBeVisible();
+  // Charts (drawn on the server in HTML) with accessible names, and the slip table.
+  await expect(page.getByRole('figure', { name: /Box plots of relative deviation, consistency/ })).toBeVisible();
   await expect(page.getByRole('img', { name: /Histogram of relative deviation/ }).first()).toBeVisible();
-  await expect(page.locator('figure svg.recharts-surface').first()).toBeVisible();
+  await expect(page.getByTestId('histogram').first()).toBeVisible();
   await expect(page.getByRole('heading', { name: 'Most frequent slips' })).toBeVisible();
   const slipRows = page.getByRole('table', { name: /Most frequent named slips/ }).locator('tbody tr');
   await expect(slipRows.first()).toBeVisible();
-  await expect(slipRows.first().getByRole('link', { name: /Submission \d+/ })).toHaveAttribute('href', /^\/marking\/\d+$/);
+  // Each slip names its quantities (not code keys) and an example student and attempt.
+  await expect(slipRows.first().getByRole('link', { name: /^.+, attempt \d+$/ })).toHaveAttribute('href', /^\/marking\/\d+$/);
+  const found = await slipRows.locator('td[data-label="Found in"]').allInnerTexts();
+  expect(found.length).toBeGreaterThan(0);
+  for (const cell of found) {
+    expect(cell).not.toMatch(/\b(forceConstant|reducedMass|bandCentre|alphaE|B0|B1|Be|re|r0)\b/);
+    expect(cell).toMatch(/Force constant|Reduced mass|Band centre|Rotational constant|Vibration–rotation|bond length|Isotope|Harmonic|Anharmonicity|Dissociation|Zero-point|Centrifugal/);
+  }
+  // Deviations read as people write them: no e-notation anywhere in the figures.
+  expect(await page.locator('main').innerText()).not.toMatch(/\d(\.\d+)?e[-+]?\d/);
 
   const download = page.waitForEvent('download');
   await page.getByRole('link', { name: /Marks CSV/ }).click();

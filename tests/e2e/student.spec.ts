@@ -62,8 +62,18 @@ test('student pastes a line list, uploads files, submits and sees a named slip',
   await expect(plot.locator('svg')).toBeVisible({ timeout: 20000 });
   await expect(page.getByText(/of your lines match a peak/)).toBeVisible();
 
-  await page.getByRole('button', { name: 'Submit' }).dblclick();
+  // Submit asks first (what is handed in, attempts left after it); a double click on the
+  // confirmation still makes one attempt.
+  await page.getByRole('button', { name: 'Submit…' }).click();
+  const dialog = page.getByRole('dialog');
+  await expect(dialog).toContainText(/afterwards you have \d+ attempts? left/);
+  await expect(dialog).toContainText('hcl-298k.jdx');
+  await dialog.getByRole('button', { name: 'Submit this attempt' }).dblclick();
   await expect(page.getByRole('heading', { name: 'Result of your submission' })).toBeVisible({ timeout: 30000 });
   await expect(page.locator('[data-slip="missing-2pi"]').first()).toBeVisible();
   await expect(page.getByText('Factor 2π missing').first()).toBeVisible();
+  // The list of attempts below is up to date without a reload: the new attempt is the marked one.
+  const list = page.locator('section[aria-labelledby="attempts"]');
+  await expect(list.locator('[data-attempt="1"] [data-testid="marked-attempt"]')).toBeVisible();
+  await expect(list.locator('[data-attempt]')).toHaveCount(1);
 });

@@ -73,6 +73,25 @@ const MATRIX: Record<string, Case> = {
     expect: [401, 403, 403, 403, 403, 403, 403, 201],
     call: (w) => ({ url: '/api/admin/memberships', body: { email: w.people.nobody.email, courseId: w.course.id, role: 'ta' } }),
   },
+  'DELETE /api/admin/memberships/[membershipId]': {
+    expect: [401, 403, 403, 403, 403, 403, 403, 200],
+    call: async (w, role) => {
+      const { membership } = await spareTa(w, `admin-remove-${uniq(role)}`);
+      return { url: `/api/admin/memberships/${membership.id}`, params: { membershipId: String(membership.id) } };
+    },
+  },
+  'POST /api/admin/outbox/[id]/retry': {
+    // A failed message per caller; the administrator's is queued again and sent.
+    expect: [401, 403, 403, 403, 403, 403, 403, 200],
+    mails: true,
+    call: async (_w, role) => {
+      const row = await models().EmailOutbox.create({
+        dedupeKey: `matrix-retry:${uniq(role)}`, toAddress: 'matrix.retry@test.example', subject: 'Matrix retry', textBody: 'Test message.', htmlBody: null,
+        submissionId: null, feedbackDocumentId: null, status: 'failed', attempts: 12, nextAttemptAt: new Date(), lockedUntil: null, lastError: 'test', messageId: null, sentAt: null,
+      });
+      return { url: `/api/admin/outbox/${row.id}/retry`, params: { id: String(row.id) }, body: {} };
+    },
+  },
   'GET /api/courses': {
     expect: [401, 200, 200, 200, 200, 200, 200, 200],
     call: () => ({ url: '/api/courses' }),
@@ -347,6 +366,11 @@ const MATRIX: Record<string, Case> = {
     // Only the student themself; not even an admin submits for them. One real submit (201).
     expect: [401, 201, 403, 403, 403, 403, 403, 403],
     call: async (w) => ({ url: `/api/submissions/${w.draftB.id}/submit`, params: { id: String(w.draftB.id) }, body: { version: await version(w.draftB.id), draft: w.draftB.draft } }),
+  },
+  'POST /api/submissions/check': {
+    // The same callers as autosave: only a student of a cohort the practical is set for. Writes nothing.
+    expect: [401, 200, 403, 403, 403, 403, 403, 403],
+    call: (w) => ({ url: '/api/submissions/check', body: { practicalId: w.draftC.practicalId, draft: { species: {}, spectrumUploadId: null, reportUploadId: null } } }),
   },
   'PUT /api/submissions/draft': {
     // Practical C is set only for `student`'s cohort: the other cohort's student is refused too.

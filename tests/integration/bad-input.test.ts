@@ -436,6 +436,13 @@ const BAD: Record<string, Entry> = {
     text: draftText,
     breakers: { version: 'latest' },
   },
+  'POST /api/submissions/check': {
+    as: 'student',
+    call: () => ({ url: '/api/submissions/check' }),
+    body: (w) => ({ practicalId: w.draftC.practicalId, draft: draftFor('H35Cl', correctValues()) as unknown as Json }),
+    text: draftText,
+    breakers: { practicalId: 'C' },
+  },
   'PUT /api/submissions/draft': {
     as: 'student',
     call: () => ({ url: '/api/submissions/draft' }),

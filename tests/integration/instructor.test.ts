@@ -31,8 +31,11 @@ beforeAll(async () => {
   w = await buildWorld();
 });
 
-const csvRequest = async (courseId: number, body: BodyInit, mode: 'preview' | 'import', as: number | null) =>
-  roster.POST(await apiRequest(`/api/courses/${courseId}/roster?mode=${mode}`, { as, method: 'POST', rawBody: body, headers: { 'content-type': 'text/csv' } }), params({ courseId: String(courseId) }));
+const csvRequest = async (courseId: number, body: BodyInit, mode: 'preview' | 'import', as: number | null, cohortId?: number | string) =>
+  roster.POST(
+    await apiRequest(`/api/courses/${courseId}/roster?mode=${mode}${cohortId !== undefined ? `&cohortId=${cohortId}` : ''}`, { as, method: 'POST', rawBody: body, headers: { 'content-type': 'text/csv' } }),
+    params({ courseId: String(courseId) }),
+  );
 
 async function counts() {
   const { User, CourseMembership, EmailOutbox, OneTimeToken } = models();
@@ -59,7 +62,7 @@ describe('roster import', () => {
     const before = await counts();
     const res = await csvRequest(w.course.id, 'name,mail,number\nA,a@test.example,1\n', 'import', w.people.instructor.id);
     expect(res.status).toBe(400);
-    expect((await res.json()).error).toMatch(/exactly name, email, student_number, cohort.*missing "email".*"cohort"/);
+    expect((await res.json()).error).toMatch(/name, email, student_number, and optionally cohort and term: missing "email"; unexpected "mail"/);
     expect(await counts()).toEqual(before);
   });
 
@@ -100,6 +103,65 @@ describe('roster import', () => {
     expect(body.rows[1]).toMatchObject({ name: 'Plus Person', studentNumber: 'F2', status: 'new' });
     expect(body.rows[2]).toMatchObject({ name: 'Minus Person', email: 'f3@test.example', status: 'new' });
     for (const row of body.rows) for (const cell of [row.name, row.email, row.studentNumber, row.cohort]) expect(cell).not.toMatch(/^[=+\-@]/);
+  });
+
+  describe('two open cohorts with the same name (last year\'s and this year\'s)', () => {
+    let lastYearId: number;
+    let thisYearId: number;
+    beforeAll(async () => {
+      const { Cohort } = models();
+      lastYearId = (await Cohort.create({ courseId: w.course.id, name: 'Group A', term: '2025 Autumn', instrument: null, archivedAt: null })).id;
+      thisYearId = (await Cohort.create({ courseId: w.course.id, name: 'Group A', term: '2026 Autumn', instrument: null, archivedAt: null })).id;
+    });
+    const file = (tag: string, extra = '') => `name,email,student_number,cohort${extra ? ',term' : ''}\nPia Okafor${tag},pia${tag}@test.example,G${tag}1,Group A${extra}\nRune Halvorsen${tag},rune${tag}@test.example,G${tag}2,Group A${extra}\n`;
+
+    it('without a choice, every "Group A" row says which two cohorts it could mean', async () => {
+      const before = await counts();
+      const body = await (await csvRequest(w.course.id, file('x'), 'preview', w.people.instructor.id)).json();
+      expect(body.counts).toEqual({ new: 0, enrolled: 0, invalid: 2 });
+      expect(body.rows[0].reasons[0]).toMatch(/Two open cohorts are called "Group A" \(2026 Autumn and 2025 Autumn\): choose the cohort/);
+      expect(await counts()).toEqual(before);
+    });
+
+    it('imports into the cohort chosen on the import screen', async () => {
+      const res = await csvRequest(w.course.id, file('y'), 'import', w.people.instructor.id, thisYearId);
+      expect(res.status).toBe(200);
+      expect(await res.json()).toMatchObject({ enrolled: 2, counts: { new: 2, invalid: 0 }, target: { id: thisYearId, term: '2026 Autumn' } });
+      const pia = (await models().User.findOne({ where: { email: 'piay@test.example' } }))!;
+      expect(await models().CourseMembership.findOne({ where: { userId: pia.id, courseId: w.course.id } })).toMatchObject({ role: 'student', cohortId: thisYearId });
+      const audit = await models().AuditEntry.findOne({ where: { action: 'roster.import' }, order: [['id', 'DESC']] });
+      expect((audit!.after as { cohortId: number }).cohortId).toBe(thisYearId);
+    });
+
+    it('or finds the cohort from an optional term column', async () => {
+      const res = await csvRequest(w.course.id, file('z', ',2025 Autumn'), 'import', w.people.instructor.id);
+      expect(res.status).toBe(200);
+      const pia = (await models().User.findOne({ where: { email: 'piaz@test.example' } }))!;
+      expect(await models().CourseMembership.findOne({ where: { userId: pia.id, courseId: w.course.id } })).toMatchObject({ cohortId: lastYearId });
+    });
+
+    it('refuses a row whose cohort disagrees with the chosen one, and a cohort of another course', async () => {
+      const before = await counts();
+      const body = await (await csvRequest(w.course.id, file('q').replace('Rune Halvorsenq,runeq@test.example,Gq2,Group A', 'Rune Halvorsenq,runeq@test.example,Gq2,Cohort 2'), 'preview', w.people.instructor.id, thisYearId)).json();
+      expect(body.rows[1].reasons[0]).toMatch(/The file puts this student in "Cohort 2", but the import is into Group A \(2026 Autumn\)/);
+      const foreign = await csvRequest(w.course.id, file('r'), 'preview', w.people.instructor.id, w.foreignCohort.id);
+      expect(foreign.status).toBe(400);
+      expect((await foreign.json()).error).toMatch(/not an open cohort of this course/);
+      expect((await csvRequest(w.course.id, file('r'), 'preview', w.people.instructor.id, 'abc')).status).toBe(400);
+      expect(await counts()).toEqual(before);
+    });
+  });
+
+  it('lists every problem of a row, not only the first', async () => {
+    const csv = 'name,email,student_number,cohort\n,not-an-address,,Cohort 9\n';
+    const body = await (await csvRequest(w.course.id, csv, 'preview', w.people.instructor.id)).json();
+    expect(body.rows[0].status).toBe('invalid');
+    expect(body.rows[0].reasons).toEqual([
+      'The name is empty.',
+      '"not-an-address" is not an e-mail address.',
+      'The student number is empty.',
+      expect.stringMatching(/^No open cohort "Cohort 9" in this course/),
+    ]);
   });
 
   it('imports all rows in one go, queues invitations, and a second import changes nothing', async () => {

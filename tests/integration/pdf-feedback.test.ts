@@ -18,6 +18,7 @@ import { SLIPS } from '@/lib/grading';
 
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'oscillab-pdf-'));
 let pdfFile = '';
+let submissionId = 0;
 
 /** Share of pixels darker than near-white in a binary PGM (P5) as written by pdftoppm -gray. */
 export function inkShare(pgm: Buffer): number {
@@ -37,6 +38,7 @@ beforeAll(async () => {
   const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: w.people.student.id, slip: true, latePenalty: 10 });
   const r = await acceptProposal(w.people.ta.id, sub.id, sub.version);
   await saveMarks(w.people.ta.id, sub.id, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 1, comment: 'Say which error dominates.' }], markerComment: 'Clear report; check μ.' });
+  submissionId = sub.id;
   const pdf = await buildFeedbackPdf(feedbackInputFromView(await loadMarkingView(sub.id)));
   pdfFile = path.join(dir, 'feedback.pdf');
   fs.writeFileSync(pdfFile, pdf);
@@ -56,6 +58,34 @@ describe('feedback PDF', () => {
     expect(text).toContain('Late penalty: 10 %');
     expect(text).toContain('Clear report; check μ.');
     expect(text).toContain('outside tolerance');
+  });
+
+  it('no page ends on a heading whose content is on the next page, however long the table before it', async () => {
+    // Headings as in templates/pdf/feedback.txt; the quantity table grows one row at a time, so
+    // every heading after it lands at every height of the page somewhere in the sweep.
+    const headings = fs
+      .readFileSync(path.resolve('templates/pdf/feedback.txt'), 'utf8')
+      .split('\n')
+      .filter((l) => /^(quantitiesHeading|slipsHeading|fitHeading|rubricHeading|commentsHeading|totalHeading):/.test(l))
+      .map((l) => l.slice(l.indexOf(':') + 1).trim());
+    const base = feedbackInputFromView(await loadMarkingView(submissionId));
+    const orphans: string[] = [];
+    for (let n = 14; n <= 40; n += 2) {
+      const input = { ...base, quantities: Array.from({ length: n }, (_, i) => ({ ...base.quantities[i % base.quantities.length], label: `Quantity ${i + 1}` })) };
+      const file = path.join(dir, `sweep-${n}.pdf`);
+      fs.writeFileSync(file, await buildFeedbackPdf(input));
+      const pages = Number(/Pages:\s+(\d+)/.exec(execFileSync('pdfinfo', [file]).toString('utf8'))![1]);
+      for (let p = 1; p < pages; p++) {
+        const lines = execFileSync('pdftotext', ['-layout', '-f', String(p), '-l', String(p), '-enc', 'UTF-8', file, '-'])
+          .toString('utf8')
+          .split('\n')
+          .map((l) => l.trim())
+          .filter((l) => l && !l.startsWith('Oscillab feedback ·'));
+        const last = lines.at(-1) ?? '';
+        if (headings.some((h) => last.startsWith(h))) orphans.push(`${n} quantities, page ${p} ends on "${last}"`);
+      }
+    }
+    expect(orphans).toEqual([]);
   });
 
   it('renders (pdftoppm) to a page that is not blank', () => {

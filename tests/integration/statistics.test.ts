@@ -4,6 +4,10 @@
  * Quantile definition: R type 7 (linear interpolation) = simple-statistics `quantileSorted`.
  * Spread: population standard deviation = simple-statistics `standardDeviation`.
  */
+import { execFileSync } from 'node:child_process';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import Papa from 'papaparse';
 import { PDFDocument } from 'pdf-lib';
@@ -16,13 +20,23 @@ import { GET as getPdf } from '@/app/api/statistics/practicals/[id]/export/summa
 import { HISTOGRAM_EDGES_PERCENT, MARKS_CSV_LEADING, MARKS_CSV_TRAILING, STATS_CSV_HEADER } from '@/lib/statistics/definitions';
 import type { PracticalReport } from '@/lib/statistics/report';
 import type { Comparison } from '@/lib/statistics/compare';
-import { SLIPS } from '@/lib/grading';
+import { QUANTITIES, SLIPS } from '@/lib/grading';
 import { models } from '@/models';
 import { apiRequest, params } from '../helpers/session';
 import { buildWorld, type World } from '../helpers/world';
 import { createPractical, seedSubmissions, SEED_QUANTITIES } from './statistics-seed';
 
 let world: World;
+
+/** The text of one page of a PDF, read with poppler's pdftotext (as the feedback PDF tests do). */
+function pdfPageText(bytes: Uint8Array, page: number): string {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'stats-pdf-'));
+  const file = path.join(dir, 'summary.pdf');
+  fs.writeFileSync(file, bytes);
+  const text = execFileSync('pdftotext', ['-f', String(page), '-l', String(page), '-enc', 'UTF-8', file, '-']).toString('utf8');
+  fs.rmSync(dir, { recursive: true, force: true });
+  return text.replace(/\s+/g, ' ');
+}
 let practicalId: number;
 let lastYearCohortId: number;
 let instructorUserId: number;
@@ -129,6 +143,15 @@ describe('statistics API against simple-statistics on the same rows', () => {
       expect(s.title).toBe((SLIPS as Record<string, { title: string }>)[s.code]?.title ?? s.code);
       expect(findings.some((f) => f.submissionId === s.exampleSubmissionId && f.code === s.code)).toBe(true);
       expect(s.exampleHref).toBe(`/marking/${s.exampleSubmissionId}`);
+      // Quantity names, not code keys ("Force constant k", not "forceConstant").
+      const keys = [...new Set(findings.filter((f) => f.code === s.code).map((f) => f.key))];
+      const names = keys.map((k) => (QUANTITIES as Record<string, { label: string } | undefined>)[k]?.label ?? k);
+      expect([...s.quantities].sort()).toEqual([...new Set(names)].sort());
+      for (const k of keys) if (k in QUANTITIES) expect(s.quantities).not.toContain(k);
+      // The example names the student and the attempt, not "Submission n".
+      const ex = (await models().Submission.findByPk(s.exampleSubmissionId))!;
+      const who = (await models().User.findByPk(ex.studentId))!;
+      expect(s.example).toBe(`${who.name}, attempt ${ex.attempt}`);
     }
     const counts = report.slips.map((s) => s.count);
     expect([...counts].sort((a, b) => b - a)).toEqual(counts);
@@ -281,12 +304,20 @@ describe('exports', () => {
     expect(Number(row.n)).toBe(q.n);
   });
 
-  it('one-page PDF summary', async () => {
+  it('PDF summary: every quantity and every listed slip on page 1, by name; histograms after', async () => {
+    const report: PracticalReport = await (await stats(world.people.lead.id, `?cohortId=${world.cohort.id}`)).json();
     const res = await getPdf(await apiRequest(`/api/statistics/practicals/${practicalId}/export/summary?cohortId=${world.cohort.id}`, { as: world.people.lead.id }), params({ id: String(practicalId) }));
     expect(res.status).toBe(200);
     expect(res.headers.get('content-type')).toBe('application/pdf');
-    const pdf = await PDFDocument.load(new Uint8Array(await res.arrayBuffer()));
-    expect(pdf.getPageCount()).toBe(1);
+    const bytes = new Uint8Array(await res.arrayBuffer());
+    const pdf = await PDFDocument.load(bytes);
+    expect(pdf.getPageCount()).toBe(2);
     expect(pdf.getTitle()).toContain('HCl fundamental band');
+    const page1 = pdfPageText(bytes, 1);
+    for (const q of report.quantities.filter((x) => x.box)) expect(page1).toContain((QUANTITIES as Record<string, { label: string } | undefined>)[q.key]?.label ?? q.key);
+    for (const sl of report.slips) {
+      expect(page1).toContain(sl.title.split(' ').slice(0, 3).join(' '));
+      expect(page1).toContain(sl.example.split(',')[0]);
+    }
   });
 });

@@ -1,63 +1,67 @@
+import { Suspense } from 'react';
 import { notFound } from 'next/navigation';
 import { authorizePage } from '@/lib/authz';
 import { PageHeader } from '@/components/ui/page-header';
 import { VerdictBadge } from '@/components/marking/verdict-badge';
 import { MarkingForm } from '@/components/marking/marking-form';
 import { ScoreDelivery } from '@/components/lti/score-delivery';
+import { FitPlots, SpectrumSection } from '@/components/marking/plots';
+import { cohortName } from '@/lib/display';
 import { HttpError } from '@/lib/http';
 import { submissionScope } from '@/lib/marking/access';
-import { loadMarkingView } from '@/lib/marking/view';
-import { fitPlotModel, residualModel } from '@/lib/marking/fit-plot';
-import { renderSvg } from '@/lib/spectrum';
-import { spectrumFigure } from '@/lib/submissions/spectrum-figure';
-import { models } from '@/models';
+import { nextToMark } from '@/lib/marking/next';
+import { loadMarkingView, type BasisRow } from '@/lib/marking/view';
+import { slipsByCode } from '@/lib/marking/feedback-input';
 
 export const metadata = { title: 'Mark a submission' };
 export const dynamic = 'force-dynamic';
 
+function deviation(b: BasisRow | null) {
+  if (!b) return '—';
+  return (
+    <span>
+      <span className="nowrap">{b.deviationDisplay}</span>
+      {b.relativeDeviationDisplay !== null && <span className="nowrap text-ink-soft"> ({b.relativeDeviationDisplay})</span>}
+    </span>
+  );
+}
+
+/**
+ * The marking screen. The values, slips and marks come with the first bytes; the spectrum and the
+ * fit plots, the slow part to draw, stream in after them (Suspense), so the marker can start at once.
+ */
 export default async function MarkSubmission({ params }: { params: Promise<{ submissionId: string }> }) {
   const raw = (await params).submissionId;
   const id = Number(raw);
   if (!/^\d{1,12}$/.test(raw)) notFound();
-  let scope;
+  let found;
   try {
-    scope = (await submissionScope(id)).scope;
+    found = await submissionScope(id);
   } catch (e) {
     if (e instanceof HttpError && e.status === 404) notFound();
     throw e;
   }
-  await authorizePage({ kind: 'submission-mark', ...scope });
-  const view = await loadMarkingView(id);
-  const { Submission, Practical } = models();
-  const submissionRow = (await Submission.findByPk(id))!;
-  const spectrum = await spectrumFigure(submissionRow, (await Practical.findByPk(submissionRow.practicalId))!, 'staff');
-  const plots = view.fits
-    .filter((f) => f.residuals.length)
-    .map((f, i) => ({
-      species: f.species,
-      description: f.description,
-      notices: f.notices,
-      fit: renderSvg(fitPlotModel(f), { title: `Line positions against m with the fit${f.species ? `, ${f.species}` : ''}`, idPrefix: `fit-${i}` }),
-      residuals: renderSvg(residualModel(f), { title: `Residuals of the fit${f.species ? `, ${f.species}` : ''}`, idPrefix: `res-${i}` }),
-    }));
+  const actor = await authorizePage({ kind: 'submission-mark', ...found.scope });
+  const [view, next] = await Promise.all([loadMarkingView(id, found), nextToMark(actor, id)]);
 
   return (
     <>
       <PageHeader
         title={`${view.student.name} — ${view.practical.title}`}
-        lead={`${view.course.code} · ${view.cohort.name} · attempt ${view.submission.attempt} · submitted ${view.submission.submittedAt ? new Date(view.submission.submittedAt).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' }) : '—'}${view.submission.daysLate ? ` · ${view.submission.daysLate} day(s) late, penalty ${view.submission.latePenalty} %` : ''}`}
+        lead={`${view.course.code} · ${cohortName(view.cohort)} · attempt ${view.submission.attempt} · submitted ${view.submission.submittedAt ? new Date(view.submission.submittedAt).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' }) : '—'}${view.submission.daysLate ? ` · ${view.submission.daysLate} day(s) late, penalty ${view.submission.latePenalty} %` : ''}`}
       >
         <a className="btn-quiet" href="/marking">Back to the queue</a>
         <a className="btn-quiet" href={`/api/marking/${id}/preview`} target="_blank" rel="noopener">Feedback PDF</a>
+        {next && <a className="btn-quiet" href={`/marking/${next.id}`} data-testid="next-submission">Next to mark: {next.student} →</a>}
       </PageHeader>
 
-      <section aria-labelledby="values-heading" className="card mb-6 overflow-x-auto">
+      <section aria-labelledby="values-heading" className="card mb-6">
         <h2 id="values-heading" className="mb-2">Reported, recomputed and reference values</h2>
-        <p className="hint mb-3">Recomputed: from the student’s own data (consistency). Reference: the accepted value (accuracy).</p>
-        <table className="data-table">
+        <p className="hint mb-3">Recomputed: from the student’s own data (consistency). Reference: the accepted value (accuracy). Deviation = reported − expected.</p>
+        <table className="data-table stack-table">
           <thead>
             <tr>
-              <th scope="col">Quantity</th>
+              <th scope="col" className="min-w-[10rem]">Quantity</th>
               <th scope="col">Reported (as typed)</th>
               <th scope="col" className="num">Recomputed</th>
               <th scope="col" className="num">Deviation</th>
@@ -69,15 +73,15 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
           </thead>
           <tbody>
             {view.quantities.map((q) => (
-              <tr key={q.itemKey}>
-                <th scope="row" className="text-left font-normal">{q.label}</th>
-                <td className="num">{q.reportedTyped}</td>
-                <td className="num">{q.consistency?.expectedDisplay ?? '—'}</td>
-                <td className="num">{q.consistency ? `${q.consistency.deviationDisplay}${q.consistency.relativeDeviationPercent !== null ? ` (${q.consistency.relativeDeviationPercent.toFixed(2)} %)` : ''}` : '—'}</td>
-                <td><VerdictBadge verdict={q.consistency?.verdict} /></td>
-                <td className="num">{q.accuracy?.expectedDisplay ?? '—'}</td>
-                <td className="num">{q.accuracy ? `${q.accuracy.deviationDisplay}${q.accuracy.relativeDeviationPercent !== null ? ` (${q.accuracy.relativeDeviationPercent.toFixed(2)} %)` : ''}` : '—'}</td>
-                <td><VerdictBadge verdict={q.accuracy?.verdict} /></td>
+              <tr key={q.itemKey} data-quantity={q.itemKey}>
+                <th scope="row" className="text-left font-bold sm:font-normal">{q.label}</th>
+                <td className="num" data-label="Reported"><span className="nowrap">{q.reportedTyped}</span></td>
+                <td className="num" data-label="Recomputed"><span className="nowrap">{q.consistency?.expectedDisplay ?? '—'}</span></td>
+                <td className="num" data-label="Deviation">{deviation(q.consistency)}</td>
+                <td data-label="Consistency"><VerdictBadge verdict={q.consistency?.verdict} /></td>
+                <td className="num" data-label="Reference"><span className="nowrap">{q.accuracy?.expectedDisplay ?? '—'}</span></td>
+                <td className="num" data-label="Deviation">{deviation(q.accuracy)}</td>
+                <td data-label="Accuracy"><VerdictBadge verdict={q.accuracy?.verdict} /></td>
               </tr>
             ))}
           </tbody>
@@ -90,57 +94,34 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
           <p className="text-ink-soft">No slip was recognised.</p>
         ) : (
           <ul className="space-y-3">
-            {view.slips.map((s) => (
-              <li key={`${s.key}-${s.code}`}>
-                <p className="font-bold">{s.title} <span className="font-normal text-ink-soft">— {s.quantityLabel}</span></p>
+            {slipsByCode(view.slips).map((s) => (
+              <li key={s.title} data-slip={view.slips.find((x) => x.title === s.title)?.code}>
+                <p className="font-bold">{s.title} <span className="font-normal text-ink-soft">— {s.quantity}</span></p>
                 <p>{s.explanation}</p>
-                <p className="num text-sm">{s.formula}</p>
+                {s.formula && <p className="num text-sm">{s.formula}</p>}
               </li>
             ))}
           </ul>
         )}
       </section>
 
-      <section aria-labelledby="spectrum-heading" className="card mb-6">
-        <h2 id="spectrum-heading" className="mb-2">Spectrum with the student’s lines</h2>
-        {spectrum.ok ? (
-          <>
-            <div className="overflow-x-auto text-ink" data-testid="marking-spectrum" dangerouslySetInnerHTML={{ __html: spectrum.svg }} />
-            <p className="mt-2 text-sm">
-              {spectrum.summary.ok
-                ? `${spectrum.summary.matched} of ${spectrum.summary.reported} reported lines match a peak (within ±${spectrum.summary.tolerance.toFixed(2)} cm⁻¹)${spectrum.summary.missing ? `; ${spectrum.summary.missing} strong peaks are not in the list` : ''}.`
-                : spectrum.summary.message}
-            </p>
-          </>
-        ) : (
-          <p className="text-ink-soft">{spectrum.message}</p>
-        )}
-      </section>
+      <Suspense fallback={<p className="card mb-6 text-ink-soft" role="status">Drawing the spectrum with the student’s lines…</p>}>
+        <SpectrumSection submissionId={id} />
+      </Suspense>
+      <Suspense fallback={<p className="card mb-6 text-ink-soft" role="status">Drawing the line fit…</p>}>
+        <FitPlots fits={view.fits} />
+      </Suspense>
 
-      {plots.map((p, i) => (
-        <section key={i} aria-labelledby={`fit-heading-${i}`} className="card mb-6">
-          <h2 id={`fit-heading-${i}`} className="mb-2">Line fit and residuals{p.species ? ` (${p.species})` : ''}</h2>
-          <p className="mb-2 text-sm" data-testid="fit-description">{p.description}</p>
-          {p.notices.length > 0 && (
-            <ul className="mb-2 list-disc pl-5 text-sm" data-testid="fit-notices">
-              {p.notices.map((n) => (
-                <li key={n.code} data-notice={n.code}>{n.message}</li>
-              ))}
-            </ul>
-          )}
-          <div className="overflow-x-auto text-ink" dangerouslySetInnerHTML={{ __html: p.fit }} />
-          <div className="overflow-x-auto text-ink" dangerouslySetInnerHTML={{ __html: p.residuals }} />
-        </section>
-      ))}
-      {plots.length === 0 && <p className="card mb-6 text-ink-soft">No line fit is available for this submission.</p>}
-
-      <MarkingForm initial={view} />
+      <MarkingForm initial={view} next={next} />
       <ScoreDelivery submissionId={id} courseId={view.course.id} />
 
       <section aria-labelledby="report-heading" className="card mb-6">
         <h2 id="report-heading" className="mb-2">Report</h2>
         {view.report ? (
-          <iframe title={`Report of ${view.student.name}`} src={`/api/marking/${id}/report`} className="h-[80vh] w-full border border-rule" />
+          <>
+            <p className="mb-2 text-sm"><a href={`/api/marking/${id}/report`} target="_blank" rel="noopener">Open {view.report.originalName} in a new tab</a></p>
+            <iframe title={`Report of ${view.student.name}`} src={`/api/marking/${id}/report`} loading="lazy" className="h-[80vh] w-full border border-rule" />
+          </>
         ) : (
           <p className="text-ink-soft">No report PDF was uploaded.</p>
         )}
@@ -148,3 +129,4 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
     </>
   );
 }
+

@@ -10,7 +10,7 @@ import { studentPlacement } from '@/lib/submissions/access';
 import { speciesDisplay } from '@/lib/grading';
 import { attemptsUsed, findDraft, readDraft } from '@/lib/submissions/service';
 import { timeLeft } from '@/lib/submissions/student-home';
-import { studentAttemptView } from '@/lib/submissions/view';
+import { studentAttemptViews } from '@/lib/submissions/view';
 import { models } from '@/models';
 
 export const dynamic = 'force-dynamic';
@@ -29,24 +29,31 @@ export default async function PracticalPage({ params }: { params: Promise<{ id: 
   if (!pc) notFound();
   await authorizePage({ kind: 'submission-write', courseId: practical.courseId, cohortId: pc.cohortId, studentId: actor.id });
 
-  const qdefs = await QuantityDefinition.findAll({ where: { practicalId: practical.id }, order: [['position', 'ASC'], ['id', 'ASC']] });
-  const draftRow = await findDraft(practical.id, actor.id);
+  // Independent reads together; the uploads the draft names in one query, not one per file.
+  const [qdefs, draftRow, { used, extra }, attempts] = await Promise.all([
+    QuantityDefinition.findAll({ where: { practicalId: practical.id }, order: [['position', 'ASC'], ['id', 'ASC']] }),
+    findDraft(practical.id, actor.id),
+    attemptsUsed(practical.id, actor.id),
+    Submission.findAll({ where: { practicalId: practical.id, studentId: actor.id }, order: [['attempt', 'DESC']] }),
+  ]);
   const draft = readDraft(draftRow?.draft, practical.species);
-  const { used, extra } = await attemptsUsed(practical.id, actor.id);
-  const attempts = await Submission.findAll({ where: { practicalId: practical.id, studentId: actor.id }, order: [['attempt', 'DESC']] });
-  const views = await Promise.all(attempts.filter((a) => a.attempt > 0).map((a) => studentAttemptView(a, practical)));
-  const uploadName = async (uid: number | null) => (uid ? ((await Upload.findByPk(uid))?.originalName ?? null) : null);
+  const uploadIds = [draft.spectrumUploadId, draft.reportUploadId].filter((x): x is number => x !== null);
+  const [views, uploadRows] = await Promise.all([
+    studentAttemptViews(attempts.filter((a) => a.attempt > 0), practical),
+    uploadIds.length ? Upload.findAll({ where: { id: uploadIds }, attributes: ['id', 'originalName'] }) : Promise.resolve([]),
+  ]);
+  const uploadName = (uid: number | null) => (uid ? (uploadRows.find((u) => u.id === uid)?.originalName ?? null) : null);
 
   const quantities: FormQuantity[] = qdefs.filter((q) => isQuantityKey(q.key)).map((q) => {
     const info = QUANTITIES[q.key as keyof typeof QUANTITIES];
     const options = Array.from(new Set([q.unit, ...unitsFor(info.dimension).map((u) => u.display)])).filter(Boolean);
-    return { key: q.key, species: q.species, label: info.label, unit: q.unit, unitOptions: options, uncertaintyRequired: q.uncertaintyRequired };
+    return { key: q.key, species: q.species, label: info.label, unit: q.unit, unitOptions: options, uncertaintyRequired: q.uncertaintyRequired, dimension: info.dimension };
   });
   const deadline = new Date(pc.deadline);
 
   return (
     <>
-      <PageHeader title={practical.title} lead={practical.mode === 'practice' ? 'Practice: the checks of your numbers are shown as soon as you submit.' : 'Assessed: you see format checks when you submit; verdicts and marks when the marking is released.'} />
+      <PageHeader title={practical.title} lead={practical.mode === 'practice' ? 'Practice: check your numbers at any time without using an attempt; each submitted attempt shows its checks at once.' : 'Assessed: check the format of your draft at any time without using an attempt; verdicts and marks come when the marking is released.'} />
       <div className="mb-6 grid gap-4 md:grid-cols-3">
         <div className="card">
           <h2 className="text-base">Deadline</h2>
@@ -80,11 +87,13 @@ export default async function PracticalPage({ params }: { params: Promise<{ id: 
         quantities={quantities}
         askOvertone={qdefs.some((q) => OVERTONE_KEYS.has(q.key))}
         attemptsLeft={Math.max(0, practical.maxAttempts + extra - used)}
-        uploads={{ spectrum: await uploadName(draft.spectrumUploadId), report: await uploadName(draft.reportUploadId) }}
+        mode={practical.mode}
+        uploads={{ spectrum: uploadName(draft.spectrumUploadId), report: uploadName(draft.reportUploadId) }}
       />
       {views.length > 0 && (
         <section className="mt-8 space-y-4" aria-labelledby="attempts">
           <h2 id="attempts">Your submitted attempts</h2>
+          <p className="text-sm text-ink-soft">Newest first. The last one you submitted is the one that is marked.</p>
           {views.map((v) => <AttemptResult key={v.id} view={v} />)}
         </section>
       )}

@@ -1,5 +1,5 @@
 import { authorize } from '@/lib/authz';
-import { idParam, json, route } from '@/lib/http';
+import { HttpError, idParam, json, route } from '@/lib/http';
 import { courseOr404, coursePeople } from '@/lib/instructor/courses';
 import { importRosterFile, previewRosterFile, readRosterBody } from '@/lib/instructor/roster';
 
@@ -15,14 +15,19 @@ export const GET = route<Ctx>(async (request, { params }) => {
 
 /**
  * The CSV file itself is the body. `?mode=preview` (the default) classifies each row and writes
- * nothing; `?mode=import` writes all rows or none.
+ * nothing; `?mode=import` writes all rows or none. `&cohortId=` puts every row in that open
+ * cohort of the course (the file's cohort and term columns are then optional and must agree).
  */
 export const POST = route<Ctx>(async (request, { params }) => {
   const courseId = idParam((await params).courseId);
   const actor = await authorize(request, { kind: 'course-manage', courseId });
   await courseOr404(courseId);
-  const mode = new URL(request.url).searchParams.get('mode') ?? 'preview';
+  const query = new URL(request.url).searchParams;
+  const mode = query.get('mode') ?? 'preview';
+  const rawCohort = query.get('cohortId');
+  if (rawCohort !== null && rawCohort !== '' && !/^\d{1,12}$/.test(rawCohort)) throw new HttpError(400, 'cohortId must be a cohort id.');
+  const options = { targetCohortId: rawCohort ? Number(rawCohort) : null };
   const bytes = await readRosterBody(request);
-  if (mode === 'import') return json(await importRosterFile(courseId, bytes, actor.id));
-  return json(await previewRosterFile(courseId, bytes));
+  if (mode === 'import') return json(await importRosterFile(courseId, bytes, actor.id, options));
+  return json(await previewRosterFile(courseId, bytes, options));
 });

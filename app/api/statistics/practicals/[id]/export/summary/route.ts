@@ -1,4 +1,4 @@
-/** GET /api/statistics/practicals/:id/export/summary[?cohortId=] — one-page PDF summary with vector charts. */
+/** GET /api/statistics/practicals/:id/export/summary[?cohortId=] — PDF summary with vector charts (every quantity and slip on page 1, histograms after). */
 import { idParam, route } from '@/lib/http';
 import { summaryPdf } from '@/lib/statistics/pdf';
 import { practicalReport, thresholdFrom } from '@/lib/statistics/report';
