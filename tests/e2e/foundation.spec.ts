@@ -79,6 +79,7 @@ test('the header links every page a role works in: a course lead reaches courses
   await nav.getByRole('link', { name: 'Courses & practicals' }).click();
   await expect(page.getByRole('heading', { level: 1, name: 'Courses & practicals' })).toBeVisible();
   await page.getByRole('button', { name: 'Sign out' }).click();
+  await expect(page).toHaveURL(/\/signin/);
   await signIn(page, 'student05@northmere.example');
   await expect(page.getByRole('navigation', { name: 'Main' }).getByRole('link')).toHaveText(['My practicals']);
 });

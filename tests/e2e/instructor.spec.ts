@@ -74,7 +74,12 @@ test('an instructor sets up a cohort, a roster and a practical with per-cohort b
   };
   await band('Course default (all cohorts)', '2', '5');
   await band(`Only ${cohort} (2027 Spring)`, '4', '8');
-  await expect(page.getByRole('table', { name: 'Tolerance bands' }).getByRole('row')).toHaveCount(3);
+  // A header, the two bands set, and for each of the three quantities the consistency default that
+  // applies without a band of the instructor's, in words (ν̃₀ and B₀ fitted, k arithmetic).
+  await expect(page.getByRole('table', { name: 'Tolerance bands' }).getByRole('row')).toHaveCount(6);
+  await expect(page.getByTestId('consistency-default')).toHaveCount(3);
+  await expect(page.getByTestId('consistency-default').nth(0)).toContainText('Default — fitted: within 3 standard errors');
+  await expect(page.getByTestId('consistency-default').nth(1)).toContainText('Default — arithmetic: to the digits the student typed');
 
   // Live preview: 2889.0 cm⁻¹ is 3.0 cm⁻¹ above the H³⁵Cl band origin 2885.98 cm⁻¹ (lib/grading reference table).
   await page.locator('#pv-quantity').selectOption({ label: 'Band centre ν̃₀ · H35Cl' });

@@ -48,7 +48,8 @@ test('a correct long line list without D reported: every rotational constant wit
   await fill('alphaE', typed(k.alphaE, 5), 'cm-1', '0.0001');
   await fill('re', typed(bondLengthAngstrom(k.Be, mu), 6), 'Å', '0.00001');
 
-  await page.getByRole('button', { name: 'Submit' }).dblclick();
+  await page.getByRole('button', { name: 'Submit…' }).click();
+  await page.getByRole('dialog').getByRole('button', { name: 'Submit this attempt' }).click();
   await expect(page.getByRole('heading', { name: 'Result of your submission' })).toBeVisible({ timeout: 30000 });
   for (const label of ['Rotational constant B₀', 'Rotational constant B₁', 'Equilibrium rotational constant Bₑ', 'Vibration–rotation constant αₑ', 'Equilibrium bond length rₑ']) {
     const row = page.locator('tr', { has: page.getByText(label, { exact: false }) }).first();
