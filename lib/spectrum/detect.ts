@@ -141,8 +141,12 @@ export function prepareSpectrum(spectrum: Spectrum): PreparedSpectrum {
   return { x, a, step, baseline: interpolateBlocks(n, bc, bv), noise, resampled: even.resampled, yKind: spectrum.yKind };
 }
 
-/** Local maxima of y above `threshold[i]` and higher than everything within ±halfWindow points. */
-function localMaxima(y: Float64Array, base: Float64Array, threshold: Float64Array, halfWindow: number): number[] {
+/**
+ * Local maxima of y above `threshold[i]` over the baseline, higher than everything within
+ * ±halfWindow points and, when `reach` is given, standing `threshold[i]` above the lowest point
+ * on each side within ±reach points (a wiggle of noise on the wing of a strong line is not a line).
+ */
+function localMaxima(y: Float64Array, base: Float64Array, threshold: Float64Array, halfWindow: number, reach = 0): number[] {
   const out: number[] = [];
   const n = y.length;
   for (let i = 1; i < n - 1; i++) {
@@ -152,7 +156,15 @@ function localMaxima(y: Float64Array, base: Float64Array, threshold: Float64Arra
     for (let j = Math.max(0, i - halfWindow); j <= Math.min(n - 1, i + halfWindow) && top; j++) {
       if (y[j] > v || (y[j] === v && j < i)) top = false;
     }
-    if (top) out.push(i);
+    if (!top) continue;
+    if (reach > 0) {
+      let left = v;
+      let right = v;
+      for (let j = i - 1; j >= Math.max(0, i - reach); j--) if (y[j] < left) left = y[j];
+      for (let j = i + 1; j <= Math.min(n - 1, i + reach); j++) if (y[j] < right) right = y[j];
+      if (!(v - Math.max(left, right) > threshold[i])) continue;
+    }
+    out.push(i);
   }
   return out;
 }
@@ -200,7 +212,7 @@ const SIDE_LOBE_REACH = 6;
 const SIDE_LOBE_SHARE = 1 / 30;
 
 /** Candidates at least this many local noise σ above the baseline are fitted. */
-export const DETECTION_SIGMA = 4;
+export const DETECTION_SIGMA = 5;
 
 /** Finds and measures every line the spectrum shows. */
 export function detectLines(prepared: PreparedSpectrum): LineSearch {
@@ -250,7 +262,7 @@ export function detectLines(prepared: PreparedSpectrum): LineSearch {
   const threshold = new Float64Array(n);
   for (let i = 0; i < n; i++) threshold[i] = DETECTION_SIGMA * noise[i] * noiseFactor;
   const halfWindow = Math.max(1, Math.round(fwhm / step / 4));
-  const candidates = localMaxima(smooth, baseline, threshold, halfWindow);
+  const candidates = localMaxima(smooth, baseline, threshold, halfWindow, Math.max(2, Math.round((1.5 * fwhm) / step)));
 
   const height = (i: number) => a[i] - baseline[i];
   // 3. The instrument's shape, measured on clean lines of good signal (not the very strongest:
@@ -298,7 +310,14 @@ export function detectLines(prepared: PreparedSpectrum): LineSearch {
   });
 
   // 5. Every candidate refined.
-  const lines = refineLines(p, profile, kept.map((i) => ({ wavenumber: p.x[i], probed: false })));
+  // Start each line at the vertex of the parabola through its top three samples.
+  const vertex = (i: number) => {
+    if (i <= 0 || i >= n - 1) return p.x[i];
+    const den = a[i - 1] - 2 * a[i] + a[i + 1];
+    const d = den < 0 ? (0.5 * (a[i - 1] - a[i + 1])) / den : 0;
+    return p.x[i] + Math.max(-0.5, Math.min(0.5, d)) * step;
+  };
+  const lines = refineLines(p, profile, kept.map((i) => ({ wavenumber: vertex(i), probed: false })));
   return { prepared: p, shape, profile, lines };
 }
 
@@ -394,6 +413,9 @@ function indexOf(p: PreparedSpectrum, w: number): number {
 /** Lines this many noise σ high get their own width in a cluster fit. */
 const WIDTH_FIT_SNR = 50;
 
+/** A fit is repeated in a window centred on its result when a centre moved more than this share of the point spacing. */
+const RECENTRE_SHARE = 0.15;
+
 /** The fit window reaches this many FWHM beyond the outer lines; samples fade out beyond TAPER_INNER FWHM. */
 const MARGIN = 2.5;
 const TAPER_INNER = 1.5;
@@ -426,7 +448,8 @@ export function fitGroup(p: PreparedSpectrum, profile: LineProfile, centresIn: n
     const lo = Math.min(...fit.centres.filter(Number.isFinite));
     const hi = Math.max(...fit.centres.filter(Number.isFinite));
     const win2 = Number.isFinite(lo) && Number.isFinite(hi) ? windowAround(p, lo, hi, MARGIN * fwhm) : undefined;
-    if (win2 && Math.abs(lo - Math.min(...centres)) < fwhm && Math.abs(hi - Math.max(...centres)) < fwhm) {
+    const moved = Math.max(...fit.centres.map((c, k) => Math.abs(c - centres[k])));
+    if (win2 && (moved > RECENTRE_SHARE * p.step || fixed.size) && Math.abs(lo - Math.min(...centres)) < fwhm && Math.abs(hi - Math.max(...centres)) < fwhm) {
       const refit = fitCluster({
         x: p.x,
         y: p.a,
