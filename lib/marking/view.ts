@@ -6,6 +6,7 @@ import { QUANTITIES, SLIPS, fromSI, formatNumber, formatTyped, isQuantityKey, sp
 import { models } from '@/models';
 import { HttpError } from '@/lib/http';
 import { worstVerdict, type VerdictKey } from './verdict';
+import { spectrumAnalysisView } from '@/lib/submissions/spectrum-analysis-view';
 
 export type BasisRow = {
   basis: 'consistency' | 'accuracy';
@@ -215,6 +216,7 @@ export async function loadMarkingView(submissionId: number) {
     marks: markRows,
     slips: slipRows,
     fits: fitsFromSummary(submission.checkSummary),
+    spectrumAnalysis: spectrumAnalysisView(submission.checkSummary),
     report: report ? { id: report.id, originalName: report.originalName } : null,
     spectrumUpload: spectrum ? { id: spectrum.id, storedName: spectrum.storedName, originalName: spectrum.originalName } : null,
     feedbackDocuments: docs.map((d) => ({ id: d.id, createdAt: d.createdAt.toISOString(), size: d.size })),

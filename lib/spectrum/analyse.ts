@@ -92,6 +92,8 @@ export interface BandFitReport {
   /** Root-mean-square residual, cm⁻¹. */
   rms: number;
   otherModelRms?: number;
+  /** The same constants from the model not chosen (with or without D), for comparison with a student who used it. */
+  alternative?: { model: 'quadratic' | 'cubic'; nu0: Estimate; B0: Estimate; Bupper: Estimate; Be: Estimate; alphaE: Estimate; D?: Estimate };
   lineCount: number;
   degreesOfFreedom: number;
 }
@@ -593,16 +595,26 @@ function estimate(value: number, variance: number): Estimate {
  * fundamental (B′ = B₁ = Bₑ − 3αₑ/2): αₑ = −c, Bₑ = b/2 − c;
  * overtone (B′ = B₂ = Bₑ − 5αₑ/2): αₑ = −c/2, Bₑ = b/2 − 3c/4.
  */
+/** ν̃₀, B₀, B′, Bₑ, αₑ (and D) from the polynomial coefficients [ν̃₀, b = B′+B₀, c = B′−B₀, −4D] and their covariance. */
+function constantsOf(coefficients: number[], V: number[][], overtone: boolean) {
+  const [a, b, c] = coefficients;
+  const ka = overtone ? 0.5 : 1;
+  const kc = overtone ? 0.75 : 1;
+  return {
+    nu0: estimate(a, V[0][0]),
+    B0: estimate((b - c) / 2, (V[1][1] + V[2][2] - 2 * V[1][2]) / 4),
+    Bupper: estimate((b + c) / 2, (V[1][1] + V[2][2] + 2 * V[1][2]) / 4),
+    alphaE: estimate(-ka * c, ka * ka * V[2][2]),
+    Be: estimate(b / 2 - kc * c, V[1][1] / 4 + kc * kc * V[2][2] - kc * V[1][2]),
+    D: coefficients.length > 3 ? estimate(-coefficients[3] / 4, V[3][3] / 16) : undefined,
+  };
+}
+
 function fitReport(w: Work): BandFitReport | null {
   const f = w.fit;
   if (!f) return null;
-  const V = f.covariance;
-  const [, b, c] = f.coefficients;
   const overtone = w.prediction.vUpper === 2;
-  const ka = overtone ? 0.5 : 1;
-  const kc = overtone ? 0.75 : 1;
-  const alphaE = estimate(-ka * c, ka * ka * V[2][2]);
-  const Be = estimate(b / 2 - kc * c, V[1][1] / 4 + kc * kc * V[2][2] - kc * V[1][2]);
+  const { alphaE, Be } = constantsOf(f.coefficients, f.covariance, overtone);
   let re: Estimate | undefined;
   if (f.r0 && Be.value > 0 && f.B0.value > 0) {
     const value = f.r0.value * Math.sqrt(f.B0.value / Be.value);
@@ -621,6 +633,7 @@ function fitReport(w: Work): BandFitReport | null {
     r0: f.r0,
     rms: f.rms,
     otherModelRms: f.otherModelRms,
+    alternative: f.otherModel ? { model: f.otherModel.model, ...constantsOf(f.otherModel.coefficients, f.otherModel.covariance, overtone) } : undefined,
     lineCount: f.lineCount,
     degreesOfFreedom: f.degreesOfFreedom,
   };

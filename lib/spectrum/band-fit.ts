@@ -56,6 +56,8 @@ export interface ChosenBandFit {
   lineCount: number;
   /** rms of the model not chosen, for comparison (cm⁻¹). */
   otherModelRms?: number;
+  /** The model not chosen: its coefficients and covariance (a student may defensibly have used it). */
+  otherModel?: { model: 'quadratic' | 'cubic'; coefficients: number[]; covariance: number[][] };
 }
 
 export type BandFitResult = ChosenBandFit | { ok: false; message: string };
@@ -119,7 +121,7 @@ function unweightedFit(lines: readonly FitLine[], p: number, species: Species | 
   return { beta: r.coefficients, cov: r.covariance, residuals: r.residuals.map((x) => x.residual), rms: r.rms, dof: r.degreesOfFreedom };
 }
 
-function report(lines: readonly FitLine[], raw: RawFit, species: Species | undefined, weighted: boolean): Omit<ChosenBandFit, 'modelNote' | 'otherModelRms'> {
+function report(lines: readonly FitLine[], raw: RawFit, species: Species | undefined, weighted: boolean): Omit<ChosenBandFit, 'modelNote' | 'otherModelRms' | 'otherModel'> {
   const [a, b, c] = raw.beta;
   const V = raw.cov;
   const cubic = raw.beta.length === 4;
@@ -168,12 +170,14 @@ export function fitAssignedLines(lines: readonly FitLine[], speciesIn: Species |
         ...report(lines, cubic, species, weighted),
         modelNote: `with the centrifugal term −4Dm³: D is ${Number.isFinite(t) ? `${t.toFixed(1)} standard errors` : 'well'} away from zero`,
         otherModelRms: quadratic?.rms,
+        otherModel: quadratic ? { model: 'quadratic', coefficients: quadratic.beta, covariance: quadratic.cov } : undefined,
       };
     }
     return {
       ...report(lines, quadratic, species, weighted),
       modelNote: `without the centrifugal term: D would be only ${t.toFixed(1)} standard errors from zero`,
       otherModelRms: cubic.rms,
+      otherModel: { model: 'cubic', coefficients: cubic.beta, covariance: cubic.cov },
     };
   }
   if (!quadratic) return { ok: false, message: `${lines.length} lines cannot be fitted (at least 3 are needed, in both branches).` };

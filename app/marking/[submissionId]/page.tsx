@@ -3,6 +3,7 @@ import { authorizePage } from '@/lib/authz';
 import { PageHeader } from '@/components/ui/page-header';
 import { VerdictBadge } from '@/components/marking/verdict-badge';
 import { MarkingForm } from '@/components/marking/marking-form';
+import { SpectrumAnalysisPanel } from '@/components/marking/spectrum-analysis';
 import { HttpError } from '@/lib/http';
 import { submissionScope } from '@/lib/marking/access';
 import { loadMarkingView } from '@/lib/marking/view';
@@ -113,6 +114,8 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
           <p className="text-ink-soft">{spectrum.message}</p>
         )}
       </section>
+
+      <SpectrumAnalysisPanel view={view.spectrumAnalysis} />
 
       {plots.map((p, i) => (
         <section key={i} aria-labelledby={`fit-heading-${i}`} className="card mb-6">
