@@ -34,7 +34,7 @@ export function SpectrumAnalysisPanel({ view }: { view: SpectrumAnalysisView | n
                   <th scope="col" className="num">Reported</th>
                   <th scope="col" className="num">From the spectrum</th>
                   <th scope="col" className="num">Deviation</th>
-                  <th scope="col">From the spectrum</th>
+                  <th scope="col">Verdict (spectrum)</th>
                 </tr>
               </thead>
               <tbody>

@@ -58,6 +58,9 @@ const fetcher = async (url: string) => {
   return body;
 };
 
+/** The first spectrum's input keeps the id it always had. */
+const fileId = (key: string, i: number) => (i === 0 ? 'spectrum-file' : `spectrum-file-${key}`);
+
 const range = (lines: { branch: string; J: number }[]) => {
   const p = lines.filter((l) => l.branch === 'P').map((l) => l.J);
   const r = lines.filter((l) => l.branch === 'R').map((l) => l.J);
@@ -124,13 +127,13 @@ export function SpectrumPanel(props: Props) {
   const fig = figure.data;
   return (
     <div className="space-y-4" data-testid="spectrum-panel">
-      {props.samples.map((s) => (
+      {props.samples.map((s, i) => (
         <div key={s.key}>
-          <label className="label" htmlFor={`spectrum-file-${s.key}`}>
+          <label className="label" htmlFor={fileId(s.key, i)}>
             {props.samples.length > 1 ? `Spectrum: ${s.label}` : 'Spectrum'} (JCAMP-DX .jdx/.dx, or two-column CSV)
           </label>
           <p className="hint" id={`spectrum-holds-${s.key}`}>Expected in it: {s.holds}.</p>
-          <input id={`spectrum-file-${s.key}`} type="file" accept=".jdx,.dx,.jcamp,.csv,.txt" aria-describedby={`spectrum-holds-${s.key}`} onChange={(e) => void upload(s, e.target.files?.[0])} />
+          <input id={fileId(s.key, i)} type="file" accept=".jdx,.dx,.jcamp,.csv,.txt" aria-describedby={`spectrum-holds-${s.key}`} onChange={(e) => void upload(s, e.target.files?.[0])} />
           <p className="hint" aria-live="polite">{messages[s.key] ?? (names[s.key] ? `Current: ${names[s.key]}` : 'No spectrum uploaded yet.')}</p>
         </div>
       ))}

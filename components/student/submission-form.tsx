@@ -261,7 +261,7 @@ export function SubmissionForm(props: Props) {
         );
       })}
 
-      <fieldset className="card space-y-3">
+      <fieldset className="card min-w-0 space-y-3">
         <legend className="px-1 text-lg font-bold">Files</legend>
         <SpectrumPanel
           draftId={draftId}

@@ -10,7 +10,7 @@ import type { Submission } from '@/models/submission';
 import type { Upload } from '@/models/upload';
 import { readDraft } from './service';
 import { loadSpectrum } from './check';
-import { analyseForSample, isCurrent, OVERTONE_QUANTITIES, samplesOf, type SpectrumSample, type StoredAnalysis } from './spectrum-analysis';
+import { analyseForSample, ANALYSIS_VERSION, isCurrent, OVERTONE_QUANTITIES, samplesOf, type SpectrumSample, type StoredAnalysis } from './spectrum-analysis';
 
 export async function samplesForPractical(practical: Pick<Practical, 'id' | 'species' | 'spectrumSamples'>, transaction?: Transaction): Promise<SpectrumSample[]> {
   const overtone = (await models().QuantityDefinition.count({ where: { practicalId: practical.id, key: [...OVERTONE_QUANTITIES] }, transaction })) > 0;
@@ -25,7 +25,7 @@ export function sampleOf(upload: Pick<Upload, 'sample'>, samples: SpectrumSample
 /** Analyses a spectrum file already stored (for an upload being created, or one without a current analysis). */
 export function analyseFile(file: { storedName: string; originalName: string }, uploadId: number, sample: SpectrumSample): StoredAnalysis {
   const loaded = loadSpectrum(file);
-  if (!loaded.ok) return { version: 1, ok: false, uploadId, sample: sample.key, molecules: sample.molecules, bands: sample.bands, message: loaded.message };
+  if (!loaded.ok) return { version: ANALYSIS_VERSION, ok: false, uploadId, sample: sample.key, molecules: sample.molecules, bands: sample.bands, message: loaded.message };
   return analyseForSample(loaded.spectrum, uploadId, sample);
 }
 

@@ -88,9 +88,15 @@ export interface StoredBand {
   warnings: string[];
 }
 
+/**
+ * Raised whenever the analysis changes what it finds, so analyses kept with uploads are made again
+ * the next time they are needed.
+ */
+export const ANALYSIS_VERSION = 2;
+
 export type StoredAnalysis =
   | {
-      version: 1;
+      version: typeof ANALYSIS_VERSION;
       ok: true;
       uploadId: number;
       sample: string;
@@ -106,7 +112,7 @@ export type StoredAnalysis =
       vibration: { isotopologue: string; omegaE: Estimate; omegaExe: Estimate; forceConstantE?: Estimate; zeroPointEnergy: Estimate; morseDe: Estimate; morseD0: Estimate }[];
       problems: string[];
     }
-  | { version: 1; ok: false; uploadId: number; sample: string; molecules: string[]; bands: BandKind[]; message: string };
+  | { version: typeof ANALYSIS_VERSION; ok: false; uploadId: number; sample: string; molecules: string[]; bands: BandKind[]; message: string };
 
 const round = (v: number, digits = 6) => Math.round(v * 10 ** digits) / 10 ** digits;
 
@@ -118,7 +124,7 @@ export function storeAnalysis(a: SpectrumAnalysis, uploadId: number, sample: Spe
   }
   for (const u of a.unassigned) found.add(round(u.wavenumber, 4));
   return {
-    version: 1,
+    version: ANALYSIS_VERSION,
     ok: true,
     uploadId,
     sample: sample.key,
@@ -178,7 +184,7 @@ export function analyseForSample(spectrum: Spectrum, uploadId: number, sample: S
   } catch (e) {
     // analyseSpectrum does not throw for any spectrum parse accepts; if it ever does, say so rather than fail the upload.
     console.error('[oscillab] spectrum analysis failed', e);
-    return { version: 1, ok: false, uploadId, sample: sample.key, molecules: sample.molecules, bands: sample.bands, message: 'Oscillab could not analyse this spectrum.' };
+    return { version: ANALYSIS_VERSION, ok: false, uploadId, sample: sample.key, molecules: sample.molecules, bands: sample.bands, message: 'Oscillab could not analyse this spectrum.' };
   }
 }
 
@@ -187,7 +193,7 @@ export function isCurrent(stored: unknown, uploadId: number, sample: SpectrumSam
   if (!stored || typeof stored !== 'object') return false;
   const s = stored as Partial<StoredAnalysis>;
   return (
-    s.version === 1 &&
+    s.version === ANALYSIS_VERSION &&
     s.uploadId === uploadId &&
     s.sample === sample.key &&
     JSON.stringify(s.molecules) === JSON.stringify(sample.molecules) &&
@@ -275,7 +281,7 @@ export function matchByBand(lines: ReportedLine[], analyses: StoredAnalysis[]): 
       const matched = g.lines.filter((l) => nearestDistance(found, l.wavenumber) <= tol).length;
       out.push({
         species: sp, display, band: g.r.band, label, reported: g.lines.length, matched, outsideRange: false, noSpectrum: false,
-        message: `${label}: ${matched} of your ${g.lines.length} line${g.lines.length === 1 ? '' : 's'} match a line of your spectrum (within ±${tol.toFixed(2)} cm⁻¹).`,
+        message: `${label}: ${matched} of ${g.lines.length} of your lines match a peak of your spectrum (within ±${tol.toFixed(2)} cm⁻¹).`,
       });
     }
   }

@@ -5,7 +5,7 @@
 import { models } from '@/models';
 import type { Practical } from '@/models/practical';
 import type { Submission } from '@/models/submission';
-import { bandPlotModel, compareLinesToPeaks, pickPeaks, renderSvg } from '@/lib/spectrum';
+import { bandPlotModel, compareLinesToPeaks, pickPeaks, renderSvg, toAbsorbance, type Peak, type Spectrum } from '@/lib/spectrum';
 import { compareWithSpectrum, loadSpectrum } from './check';
 import { readDraft } from './service';
 import { spectraOfSubmission } from './spectra';
@@ -45,7 +45,7 @@ export async function spectrumFigure(submission: Submission, practical: Practica
   const analyses = spectra.map((x) => x.analysis).filter((a): a is StoredAnalysis => a !== null);
   const loaded = loadSpectrum(upload);
   if (!loaded.ok) return { ok: false, status: 422, message: loaded.message };
-  const peaks = pickPeaks(loaded.spectrum);
+  const peaks = withAnalysedLines(pickPeaks(loaded.spectrum), loaded.spectrum, chosen.analysis);
   const reported = lines.map((l) => ({ wavenumber: l.wavenumber, branch: l.branch ?? undefined, J: l.J ?? undefined }));
   const comparison = compareLinesToPeaks(reported, peaks);
   const model = bandPlotModel({ spectrum: loaded.spectrum, lines: reported, peaks, comparison });
@@ -61,4 +61,23 @@ export async function spectrumFigure(submission: Submission, practical: Practica
     bands: chosen.analysis ? bandsFound([chosen.analysis]) : [],
     perBand: analyses.length ? matchByBand(lines, analyses) : [],
   };
+}
+
+/**
+ * The picked peaks plus the lines the analysis found that peak picking missed (weak edge lines,
+ * shoulders), so the plot's markers agree with the band-by-band counts beside it.
+ */
+function withAnalysedLines(peaks: Peak[], spectrum: Spectrum, analysis: StoredAnalysis | null): Peak[] {
+  if (!analysis?.ok || spectrum.x.length < 3) return peaks;
+  const a = toAbsorbance(spectrum);
+  const x = spectrum.x;
+  const step = (x[x.length - 1] - x[0]) / (x.length - 1);
+  const tol = Math.max(0.3, 0.6 * analysis.lineShape.fwhm);
+  const out = peaks.slice();
+  for (const w of analysis.found) {
+    if (out.some((p) => Math.abs(p.wavenumber - w) <= tol)) continue;
+    const i = Math.min(x.length - 1, Math.max(0, Math.round((w - x[0]) / step)));
+    out.push({ wavenumber: w, height: a[i], prominence: 0, index: i, spacing: Math.abs(step) });
+  }
+  return out.sort((p, q) => p.wavenumber - q.wavenumber);
 }
