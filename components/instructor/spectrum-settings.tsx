@@ -10,6 +10,11 @@ import { send } from './api';
 
 type Band = 'fundamental' | 'overtone';
 type Sample = { key: string; label: string; molecules: string[]; bands: Band[] };
+/** A sample as edited: the molecules as typed, read into a list only when saved. */
+type EditedSample = Omit<Sample, 'molecules'> & { moleculesText: string };
+
+const edited = (s: Sample): EditedSample => ({ key: s.key, label: s.label, bands: s.bands, moleculesText: s.molecules.join(', ') });
+const toSample = (s: EditedSample): Sample => ({ key: s.key, label: s.label, bands: s.bands, molecules: s.moleculesText.split(/[,;\s]+/).filter(Boolean) });
 type Settings = { spectrumAnalysis: boolean; samples: Sample[] | null; effective: Sample[] };
 
 const BAND_WORDS: Record<Band, string> = { fundamental: 'fundamental (1←0)', overtone: 'first overtone (2←0)' };
@@ -17,7 +22,7 @@ const BAND_WORDS: Record<Band, string> = { fundamental: 'fundamental (1←0)', o
 export function SpectrumSettings({ practicalId }: { practicalId: number }) {
   const [settings, setSettings] = useState<Settings | null>(null);
   const [perSample, setPerSample] = useState(false);
-  const [samples, setSamples] = useState<Sample[]>([]);
+  const [samples, setSamples] = useState<EditedSample[]>([]);
   const [analysis, setAnalysis] = useState(false);
   const [message, setMessage] = useState<string | null>(null);
   const [error, setError] = useState<string | null>(null);
@@ -32,24 +37,24 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
       setSettings(r.data);
       setAnalysis(r.data.spectrumAnalysis);
       setPerSample(r.data.samples !== null);
-      setSamples(r.data.samples ?? r.data.effective);
+      setSamples((r.data.samples ?? r.data.effective).map(edited));
     });
   }, [practicalId]);
 
-  const update = (i: number, patch: Partial<Sample>) => setSamples((list) => list.map((s, k) => (k === i ? { ...s, ...patch } : s)));
+  const update = (i: number, patch: Partial<EditedSample>) => setSamples((list) => list.map((s, k) => (k === i ? { ...s, ...patch } : s)));
 
   const save = async () => {
     setSaving(true);
     setError(null);
     setMessage(null);
-    const r = await send<Settings>('PUT', `/api/practicals/${practicalId}/spectrum-settings`, { spectrumAnalysis: analysis, samples: perSample ? samples : null });
+    const r = await send<Settings>('PUT', `/api/practicals/${practicalId}/spectrum-settings`, { spectrumAnalysis: analysis, samples: perSample ? samples.map(toSample) : null });
     setSaving(false);
     if (!r.ok) {
       setError(r.data.error ?? 'The settings were not saved.');
       return;
     }
     setSettings(r.data);
-    setSamples(r.data.samples ?? r.data.effective);
+    setSamples((r.data.samples ?? r.data.effective).map(edited));
     setMessage('Saved. The new settings apply to spectra uploaded and submissions checked from now on.');
   };
 
@@ -60,7 +65,7 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
       <fieldset>
         <legend className="label">What students upload</legend>
         <label className="flex items-center gap-2">
-          <input type="radio" name="spectrum-mode" checked={!perSample} onChange={() => { setPerSample(false); setSamples(settings?.effective ?? samples); }} />
+          <input type="radio" name="spectrum-mode" checked={!perSample} onChange={() => { setPerSample(false); if (settings) setSamples(settings.effective.map(edited)); }} />
           One spectrum holding every molecule of the practical
         </label>
         <label className="flex items-center gap-2">
@@ -85,7 +90,7 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
               </div>
               <div>
                 <label className="hint" htmlFor={`sample-molecules-${i}`}>Molecules in it (e.g. HCl, DCl)</label>
-                <input id={`sample-molecules-${i}`} className="field" value={s.molecules.join(', ')} onChange={(e) => update(i, { molecules: e.target.value.split(/[,;\s]+/).filter(Boolean) })} />
+                <input id={`sample-molecules-${i}`} className="field" value={s.moleculesText} onChange={(e) => update(i, { moleculesText: e.target.value })} />
               </div>
               <fieldset>
                 <legend className="hint">Bands expected</legend>
@@ -101,7 +106,7 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
               </div>
             </div>
           ))}
-          <button type="button" className="btn-quiet" onClick={() => setSamples((list) => [...list, { key: `sample-${list.length + 1}`, label: `Sample ${list.length + 1}`, molecules: [], bands: ['fundamental'] }])} disabled={samples.length >= 6}>
+          <button type="button" className="btn-quiet" onClick={() => setSamples((list) => [...list, { key: `sample-${list.length + 1}`, label: `Sample ${list.length + 1}`, moleculesText: '', bands: ['fundamental'] }])} disabled={samples.length >= 6}>
             Add a spectrum
           </button>
         </div>

@@ -27,7 +27,8 @@ export function SpectrumAnalysisPanel({ view }: { view: SpectrumAnalysisView | n
           {view.comparison.rows.length === 0 ? (
             <p className="text-ink-soft">No reported number could be compared with the spectrum (no band of that isotopologue was fitted).</p>
           ) : (
-            <table className="data-table">
+            <>
+            <table className="data-table hidden md:table">
               <thead>
                 <tr>
                   <th scope="col">Quantity</th>
@@ -49,6 +50,24 @@ export function SpectrumAnalysisPanel({ view }: { view: SpectrumAnalysisView | n
                 ))}
               </tbody>
             </table>
+            {/* On a phone: one short block per quantity, the verdict first in view. */}
+            <ul className="space-y-2 md:hidden">
+              {view.comparison.rows.map((r, i) => (
+                <li key={i} className="rounded border border-rule p-2 text-sm">
+                  <p className="font-bold">{r.label}</p>
+                  <p className="mt-1"><SpectrumVerdictBadge verdict={r.verdict} /></p>
+                  <dl className="mt-1 grid grid-cols-[auto_1fr] gap-x-3">
+                    <dt className="text-ink-soft">Reported</dt>
+                    <dd className="num">{r.reported}</dd>
+                    <dt className="text-ink-soft">From the spectrum</dt>
+                    <dd className="num">{r.fromSpectrum}</dd>
+                    <dt className="text-ink-soft">Deviation</dt>
+                    <dd className="num">{r.deviation}</dd>
+                  </dl>
+                </li>
+              ))}
+            </ul>
+            </>
           )}
         </div>
       )}
