@@ -28,10 +28,10 @@ export async function saveSpectrumSettings(practical: Practical, data: SpectrumS
     data.samples.forEach((s, i) => {
       if (keys.has(s.key)) (fields[`samples.${i}.key`] ??= []).push('Two spectra have the same name.');
       keys.add(s.key);
-      for (const m of s.molecules) {
+      s.molecules.forEach((m, j) => {
         const r = isotopologuesOf(m);
-        if (!r.ok) (fields[`samples.${i}.molecules`] ??= []).push(`${m}: ${r.message}`);
-      }
+        if (!r.ok) (fields[`samples.${i}.molecules`] ??= []).push(`Molecule ${j + 1} of spectrum ${i + 1} (${m}) is not one Oscillab can read: ${r.message}`);
+      });
     });
     const held = new Set(data.samples.flatMap((s) => s.molecules.map(moleculeOf)));
     const missing = practical.species.filter((sp) => !held.has(moleculeOf(sp)));

@@ -158,7 +158,16 @@ export const welcomeSchema = z
 export const spectrumSampleSchema = z.object({
   key: z.string().trim().min(1).max(40).regex(/^[a-z0-9-]+$/, 'Lower-case letters, digits and - only.'),
   label: text(80),
-  molecules: z.array(z.string().trim().min(1).max(40)).min(1, 'Name at least one molecule (e.g. HCl).').max(4),
+  molecules: z
+    .array(
+      z
+        .string()
+        .trim()
+        .min(1)
+        .max(40)
+        .regex(/^[A-Za-z0-9()\s\-^⁰¹²³⁴⁵⁶⁷⁸⁹]+$/u, 'Write a molecule with letters and digits only, like HCl, DCl or H35Cl.'),
+    )
+    .min(1, 'Name at least one molecule (e.g. HCl).').max(4),
   bands: z.array(z.enum(['fundamental', 'overtone'])).min(1, 'Expect at least one band.').max(2),
 });
 

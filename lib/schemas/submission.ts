@@ -42,7 +42,7 @@ export const draftSchema = z.object({
   /** The spectrum (of the practical's first sample, when it takes one per sample). */
   spectrumUploadId: z.number().int().positive().nullable().default(null),
   /** The spectra of the other samples, by sample key, when the practical takes one spectrum per sample. */
-  spectra: z.record(z.string().regex(/^[a-z0-9-]{1,40}$/), z.number().int().positive().nullable()).default({}),
+  spectra: z.record(z.string().regex(/^[a-z0-9-]{1,40}$/), z.number().int().positive().nullable()).optional(),
   reportUploadId: z.number().int().positive().nullable().default(null),
 });
 export type Draft = z.infer<typeof draftSchema>;
@@ -67,7 +67,6 @@ export function emptyDraft(species: string[]): Draft {
   return {
     species: Object.fromEntries(species.map((s) => [s, { lineText: '', lines: [], bandCentre: { value: '', unit: 'cm-1', uncertainty: '' }, values: {} }])),
     spectrumUploadId: null,
-    spectra: {},
     reportUploadId: null,
   };
 }

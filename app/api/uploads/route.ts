@@ -60,8 +60,8 @@ export const POST = route(async (request) => {
         previous = draft.spectrumUploadId;
         draft.spectrumUploadId = up.id;
       } else {
-        previous = draft.spectra[sample!.key] ?? null;
-        draft.spectra = { ...draft.spectra, [sample!.key]: up.id };
+        previous = draft.spectra?.[sample!.key] ?? null;
+        draft.spectra = { ...(draft.spectra ?? {}), [sample!.key]: up.id };
       }
       await fresh!.update({ draft, version: fresh!.version + 1 }, { transaction });
       // A replaced file that belonged only to the draft is removed.
