@@ -1,11 +1,16 @@
 /**
  * Line lists as students paste them from a spreadsheet or an instrument's peak table.
  *
- * Accepts tab-, semicolon-, comma- or whitespace-separated text, with or without a
- * header row; an assignment as two columns (branch, J), one label column ("P(3)",
- * "R 0", "p3"), or a running index m (header "m"); or just a column of positions
- * (unassigned peaks). Pure: text in, plain data out.
+ * Accepts tab-, semicolon-, comma- or whitespace-separated text (fields split by papaparse,
+ * so quoted fields such as "2906,25" keep their decimal comma), with or without a header
+ * row in English, German, French, Spanish, Italian or Dutch; an assignment as two columns
+ * (branch, J), one label column ("P(3)", "R 0", "p3"), or a running index m (header "m"); or
+ * just a column of positions (unassigned peaks). Without a header naming it, the position
+ * column is the one whose values lie in the wavenumber range (a "peak, intensity, position"
+ * table is read right). Positions in µm or nm are converted to cm⁻¹ when the header says so,
+ * and refused ("these look like wavelengths") when it does not. Pure: text in, plain data out.
  */
+import Papa from 'papaparse';
 
 export type Branch = 'P' | 'R';
 
@@ -32,7 +37,20 @@ export interface LineListParse {
   lines: LineListEntry[];
   warnings: LineListIssue[];
   errors: LineListIssue[];
-  format: { delimiter: LineListDelimiter; header: boolean };
+  format: { delimiter: LineListDelimiter; header: boolean; unit?: PositionUnit };
+}
+
+/** The unit the positions were given in (they are always returned in cm⁻¹). */
+export type PositionUnit = 'cm-1' | 'µm' | 'nm';
+
+export interface ParseLineListOptions {
+  maxRows?: number;
+  /**
+   * Where the lines of the practical's bands lie, cm⁻¹ (e.g. 1900–5900 for HCl/DCl with
+   * overtones). Positions outside it whose wavelength reading falls inside are refused as
+   * wavelengths; nothing else depends on it.
+   */
+  expected?: { from: number; to: number };
 }
 
 /** More rows than any band has lines (both isotopes, both branches, overtone): a paste gone wrong. */
@@ -46,7 +64,7 @@ export const WAVENUMBER_MIN = 200;
 export const WAVENUMBER_MAX = 15000;
 const J_MAX = 200;
 /** Header words for columns that are read past (intensities, peak numbers). */
-const KNOWN_OTHER_HEADER = /\b(intensity|absorbance|transmittance|height|area|width|fwhm|no|number|index|#|peak|isotope|isotopologue|species|y|%t)\b/i;
+const KNOWN_OTHER_HEADER = /\b(intensity|absorbance|transmittance|height|area|width|fwhm|no|number|index|#|peak|isotope|isotopologue|species|y|%t|intensität|intensitaet|höhe|fläche|breite|absorbanz|transmission|intensité|hauteur|aire|largeur|intensidad|altura|área|anchura|intensità|altezza|intensiteit|hoogte|oppervlak|nr|nummer|numéro|número|numero)\b/i;
 
 type Role = 'branch' | 'J' | 'm' | 'label' | 'wavenumber' | 'ignore';
 
@@ -68,6 +86,19 @@ interface RowResult {
   error?: string;
   warning?: string;
   decimalComma?: boolean;
+  /** The numbers of a row read by content (for choosing the position column). */
+  numbers?: number[];
+}
+
+/** How positions are read: the column to take (by content) and the unit they are in. */
+interface Reading {
+  pick?: number;
+  unit: PositionUnit;
+}
+
+/** cm⁻¹ from a position in the given unit: ν̃ = 10⁴/λ(µm) = 10⁷/λ(nm). */
+function toWavenumber(v: number, unit: PositionUnit): number {
+  return unit === 'µm' ? 1e4 / v : unit === 'nm' ? 1e7 / v : v;
 }
 
 const LABEL_PATTERN = /^([PpRr])\s*(?:\(\s*([+-]?\d+)\s*\)|\[\s*([+-]?\d+)\s*\]|([+-]?\d+))$/;
@@ -86,6 +117,8 @@ const THOUSANDS_COMMA_DOT_RE = /^[+-]?\d{1,3}(?:,\d{3})+\.\d+$/; // 2,906.25
 /** Reads one numeric token; `allowDecimalComma` is false when commas separate fields. */
 function readNumber(token: string, allowDecimalComma: boolean): NumberRead | null {
   let t = token.trim().replace(/\u2212/g, '-'); // typographic minus
+  // A comma still inside a field of a comma-separated row was quoted: a decimal comma after all.
+  if (!allowDecimalComma && t.includes(',') && !t.includes('.')) allowDecimalComma = true;
   if (t.length > 40) return null; // no number is this long; also keeps the patterns below cheap
   const unit = /(?:cm-1|cm\^-1|cm⁻¹|\/cm)$/i.exec(t);
   if (unit) t = t.slice(0, unit.index).trimEnd();
@@ -100,17 +133,21 @@ function readNumber(token: string, allowDecimalComma: boolean): NumberRead | nul
   return null;
 }
 
+/**
+ * Splits one row into fields. Delimited rows go through papaparse, so a quoted field keeps
+ * its delimiter ("2906,25" in a comma-separated row is one number with a decimal comma).
+ */
 function splitRow(row: string, delimiter: LineListDelimiter): string[] {
-  switch (delimiter) {
-    case 'tab':
-      return row.split('\t').map((f) => f.trim());
-    case 'semicolon':
-      return row.split(';').map((f) => f.trim());
-    case 'comma':
-      return row.split(',').map((f) => f.trim());
-    case 'whitespace':
-      return row.trim().split(/\s+/);
-  }
+  if (delimiter === 'whitespace') return row.trim().split(/\s+/).map(unquote);
+  const ch = delimiter === 'tab' ? '\t' : delimiter === 'semicolon' ? ';' : ',';
+  if (!row.includes('"')) return row.split(ch).map((f) => f.trim());
+  const parsed = Papa.parse<string[]>(row, { delimiter: ch, quoteChar: '"', escapeChar: '"' });
+  const fields = parsed.data[0] ?? [];
+  return fields.map((f) => f.trim());
+}
+
+function unquote(f: string): string {
+  return f.length >= 2 && f.startsWith('"') && f.endsWith('"') ? f.slice(1, -1) : f;
 }
 
 /** Splits delimited fields further on whitespace unless a field is one assignment label ("R 0"). */
@@ -138,22 +175,42 @@ function normaliseHeaderCell(cell: string): string[] {
     .filter(Boolean);
 }
 
+/** Header words, by role, in the lab languages met most (en, de, fr, es, it, pt, nl). */
+const BRANCH_HEADERS = /^(branch|br|p\/r|branch p\/r|zweig|ast|branche|rama|ramo|tak)$/;
+const LABEL_HEADERS = /^(line|lines|assignment|label|transition|line assignment|linie|zuordnung|übergang|raie|attribution|transition attribuée|línea|linea|asignación|asignacion|transición|riga|assegnazione|lijn|toekenning)$/;
+const WAVENUMBER_WORDS = new Set([
+  'wavenumber', 'wavenumbers', 'wave-number', 'nu', 'ν', 'ν̃', 'ṽ', 'v~', 'nu~', 'position', 'positions', 'peak',
+  'cm-1', 'cm^-1', 'cm⁻¹', '/cm', '1/cm', 'frequency', 'freq', 'centre', 'center',
+  // de, fr, es, it, pt, nl
+  'wellenzahl', 'wellenzahlen', 'lage', 'frequenz', 'fréquence', 'frecuencia', 'frequenza', 'frequência', 'posición', 'posicion',
+  'posizione', 'posição', 'positie', 'golfgetal', 'pic', 'pico', 'picco', 'piek',
+]);
+const WAVENUMBER_PHRASES = /wave ?number|nombre d.onde|número de onda|numero de onda|numero d.onda|número de onda/;
+const WAVELENGTH_WORDS = /wavelength|wellenlänge|wellenlaenge|longueur d.onde|longitud de onda|lunghezza d.onda|comprimento de onda|golflengte|^λ$|\bλ\b|lambda/;
+
+/** The position unit a header cell states, if any. */
+function unitOfHeader(cell: string): PositionUnit | 'wavelength' | undefined {
+  const t = cell.toLowerCase();
+  if (/(µm|μm|\bum\b|micron|mikrometer|micromet|micrómet)/.test(t)) return 'µm';
+  if (/(\bnm\b|nanomet)/.test(t)) return 'nm';
+  if (/(cm-1|cm\^-1|cm⁻¹|\/cm|1\/cm|cm\^\{-1\})/.test(t)) return 'cm-1';
+  if (WAVELENGTH_WORDS.test(t)) return 'wavelength';
+  return undefined;
+}
+
 function roleOfHeader(cell: string): Role {
   const words = normaliseHeaderCell(cell);
   const joined = words.join(' ');
   if (words.length === 0) return 'ignore';
-  if (/^(branch|br|p\/r|branch p\/r)$/.test(joined)) return 'branch';
-  if (/^(j|j''|j"|j″|j_lower|jlower|j lower|j initial|lower j|j0|j_0)$/.test(joined)) return 'J';
-  if (/^(m|running index|running index m|index m)$/.test(joined)) return 'm';
-  if (/^(line|assignment|label|transition|line assignment)$/.test(joined)) return 'label';
-  const wnWords = new Set([
-    'wavenumber', 'wavenumbers', 'wave-number', 'nu', 'ν', 'ν̃', 'ṽ', 'v~', 'nu~', 'position',
-    'positions', 'peak', 'cm-1', 'cm^-1', 'cm⁻¹', '/cm', '1/cm', 'frequency', 'freq', 'centre', 'center',
-  ]);
-  if (joined.includes('wave number') || words.some((w) => wnWords.has(w))) {
+  if (BRANCH_HEADERS.test(joined)) return 'branch';
+  if (/^(j|j''|j"|j″|j_lower|jlower|j lower|j initial|lower j|j0|j_0|j unten|j inférieur|j inferior)$/.test(joined)) return 'J';
+  if (/^(m|running index|running index m|index m|laufindex|indice courant)$/.test(joined)) return 'm';
+  if (LABEL_HEADERS.test(joined)) return 'label';
+  const unit = unitOfHeader(cell);
+  if (unit === 'µm' || unit === 'nm' || unit === 'wavelength') return 'wavenumber';
+  if (WAVENUMBER_PHRASES.test(joined) || words.some((w) => WAVENUMBER_WORDS.has(w))) {
     // "peak number" / "peak no" is an index column, not a position.
-    if (/\b(number|no\.?|#|index|nr)\b/.test(joined) && !/wave ?number/.test(joined)) return 'ignore';
-    if (words.length === 1 && words[0] === 'peak') return 'wavenumber';
+    if (/\b(number|no\.?|#|index|nr|nummer|numéro|número|numero|n°)\b/.test(joined) && !WAVENUMBER_PHRASES.test(joined)) return 'ignore';
     return 'wavenumber';
   }
   return 'ignore';
@@ -207,6 +264,7 @@ function parseRowByContent(
   allowDecimalComma: boolean,
   raw: string,
   lineNo: number,
+  reading: Reading = { unit: 'cm-1' },
 ): RowResult {
   let branch: Branch | undefined;
   let J: number | undefined;
@@ -244,21 +302,27 @@ function parseRowByContent(
   }
   if (branch !== undefined && J !== undefined) {
     const bad = checkAssignment(branch, J);
-    if (bad) return { error: bad };
+    if (bad) return { error: bad, numbers };
   }
-  const plausible = numbers.filter((v) => wavenumberProblem(v) === null);
+  const converted = numbers.map((v) => (v > 0 ? toWavenumber(v, reading.unit) : v));
+  const picked = reading.pick !== undefined ? converted[reading.pick] : undefined;
+  const plausible = converted.filter((v) => wavenumberProblem(v) === null);
+  if (picked !== undefined && wavenumberProblem(picked) !== null) {
+    return { error: `the position ${numbers[reading.pick!]} is not a wavenumber in cm⁻¹: ${wavenumberProblem(picked)}`, numbers };
+  }
   if (plausible.length === 0) {
-    if (numbers.length === 0) return { error: `no wavenumber found in ${quote(raw)}.` };
-    const problem = wavenumberProblem(numbers[numbers.length - 1]);
-    return { error: `no wavenumber in cm⁻¹ found: ${problem}` };
+    if (numbers.length === 0) return { error: `no wavenumber found in ${quote(raw)}.`, numbers };
+    const problem = wavenumberProblem(converted[converted.length - 1]);
+    return { error: `no wavenumber in cm⁻¹ found: ${problem}`, numbers };
   }
-  const entry: LineListEntry = { wavenumber: plausible[0], raw, line: lineNo };
+  const position = picked ?? plausible[0];
+  const entry: LineListEntry = { wavenumber: position, raw, line: lineNo };
   if (branch !== undefined) {
     entry.branch = branch;
     entry.J = J;
   }
-  const result: RowResult = { entry, decimalComma };
-  if (plausible.length > 1) {
+  const result: RowResult = { entry, decimalComma, numbers };
+  if (picked === undefined && plausible.length > 1) {
     result.warning = `more than one wavenumber-like value (${plausible.join(', ')}); used the first, ${plausible[0]}.`;
   }
   return result;
@@ -271,6 +335,7 @@ function parseRowByColumns(
   allowDecimalComma: boolean,
   raw: string,
   lineNo: number,
+  unit: PositionUnit = 'cm-1',
 ): RowResult {
   let decimalComma = false;
   const num = (idx: number | undefined): { n: NumberRead | null; cell: string } | undefined => {
@@ -283,9 +348,11 @@ function parseRowByColumns(
   const wn = num(cols.wavenumber)!;
   if (wn.cell === '') return { error: `the wavenumber cell is empty in ${quote(raw)}.` };
   if (!wn.n) return { error: `could not read the wavenumber ${quote(wn.cell)}.` };
-  const wProblem = wavenumberProblem(wn.n.value);
-  if (wProblem) return { error: wProblem };
-  const entry: LineListEntry = { wavenumber: wn.n.value, raw, line: lineNo };
+  if (unit !== 'cm-1' && !(wn.n.value > 0)) return { error: `the wavelength ${quote(wn.cell)} must be positive.` };
+  const position = toWavenumber(wn.n.value, unit);
+  const wProblem = wavenumberProblem(position);
+  if (wProblem) return { error: unit === 'cm-1' ? wProblem : `${wn.n.value} ${unit} is ${position.toFixed(2)} cm⁻¹: ${wProblem}`, numbers: [wn.n.value] };
+  const entry: LineListEntry = { wavenumber: position, raw, line: lineNo };
   let warning: string | undefined;
 
   let branch: Branch | undefined;
@@ -351,9 +418,34 @@ interface Attempt {
   delimiter: LineListDelimiter;
   result: LineListParse;
   decimalCommaRows: number[];
+  numberRows: number[][];
 }
 
-function attempt(rows: { text: string; line: number }[], delimiter: LineListDelimiter): Attempt {
+/**
+ * The column of a content-read table that holds the positions: the one whose values lie in the
+ * wavenumber range (or in the practical's expected range), leaving out a column that counts
+ * 1, 2, 3, … (peak numbers). Undefined when every row has one candidate anyway.
+ */
+function positionColumn(numberRows: number[][], expected?: { from: number; to: number }): number | undefined {
+  const lengths = new Map<number, number>();
+  for (const r of numberRows) lengths.set(r.length, (lengths.get(r.length) ?? 0) + 1);
+  const [width, count] = [...lengths].sort((a, b) => b[1] - a[1])[0] ?? [0, 0];
+  if (width < 2 || count < Math.max(2, 0.8 * numberRows.length)) return undefined;
+  const rows = numberRows.filter((r) => r.length === width);
+  let best: { k: number; score: number } | undefined;
+  for (let k = 0; k < width; k++) {
+    const col = rows.map((r) => r[k]);
+    const counting = col.every((v, i) => Number.isInteger(v) && (i === 0 || v - col[i - 1] === 1 || v - col[i - 1] === -1));
+    if (counting) continue;
+    const inRange = col.filter((v) => wavenumberProblem(v) === null).length / col.length;
+    const inExpected = expected ? col.filter((v) => v >= expected.from && v <= expected.to).length / col.length : 0;
+    const score = inRange + inExpected;
+    if (inRange >= 0.8 && (!best || score > best.score)) best = { k, score };
+  }
+  return best?.k;
+}
+
+function attempt(rows: { text: string; line: number }[], delimiter: LineListDelimiter, expected?: { from: number; to: number }): Attempt {
   const allowDecimalComma = delimiter !== 'comma';
   const lines: LineListEntry[] = [];
   const warnings: LineListIssue[] = [];
@@ -362,6 +454,7 @@ function attempt(rows: { text: string; line: number }[], delimiter: LineListDeli
   let cols: Columns | null = null;
   let header = false;
   let start = 0;
+  let unit: PositionUnit | 'wavelength' | undefined;
   // A title row may sit above the header ("Peak table", then "Branch  J  Position").
   while (start < Math.min(rows.length - 1, 5) && looksLikeHeader(splitRow(rows[start].text, delimiter), allowDecimalComma)) {
     start++;
@@ -392,6 +485,38 @@ function attempt(rows: { text: string; line: number }[], delimiter: LineListDeli
         message: 'The header names no wavenumber column; the positions were found from the values.',
       });
     }
+    // The unit the positions are in: the position column's, or (words not lined up) any the header states.
+    if (cols?.wavenumber !== undefined) unit = unitOfHeader(headerFields[cols.wavenumber]);
+    if (unit === undefined || unit === 'cm-1') {
+      const stated = headerFields.map(unitOfHeader).find((u) => u === 'µm' || u === 'nm' || u === 'wavelength');
+      if (stated && (cols === null || cols.wavenumber === undefined || unit === undefined)) unit = stated;
+    }
+  }
+  const data = rows.slice(start).filter((r) => r.text.length <= LINE_LIST_MAX_ROW_CHARS);
+  // A wavelength column with no unit: the values tell µm (infrared: 0.7–50) from nm.
+  let positionUnit: PositionUnit = unit === 'µm' || unit === 'nm' ? unit : 'cm-1';
+  let pick: number | undefined;
+  if (!cols) {
+    const numberRows = data.map((r) => parseRowByContent(tokensOf(splitRow(r.text, delimiter)), allowDecimalComma, r.text.trim(), r.line).numbers ?? []);
+    if (unit === 'wavelength') {
+      const all = numberRows.flat().filter((v) => v > 0);
+      positionUnit = all.length && all.filter((v) => v < 100).length > 0.5 * all.length ? 'µm' : 'nm';
+    }
+    if (positionUnit === 'cm-1') pick = positionColumn(numberRows, expected);
+    else {
+      // The wavelength column: the one whose converted values are wavenumbers.
+      const converted = numberRows.map((r) => r.map((v) => (v > 0 ? toWavenumber(v, positionUnit) : v)));
+      pick = positionColumn(converted, expected);
+    }
+  } else if (unit === 'wavelength') {
+    const values = data.map((r) => readNumber(splitRow(r.text, delimiter)[cols!.wavenumber!] ?? '', allowDecimalComma)?.value ?? NaN).filter((v) => v > 0);
+    positionUnit = values.filter((v) => v < 100).length > 0.5 * values.length ? 'µm' : 'nm';
+  }
+  if (positionUnit !== 'cm-1' && header) {
+    warnings.push({
+      line: rows[start - 1].line,
+      message: `The positions are wavelengths in ${positionUnit}${unit === 'wavelength' ? ' (read from their size; the header names no unit)' : ''}; they were converted to wavenumbers, ν̃/cm⁻¹ = ${positionUnit === 'µm' ? '10⁴ / (λ/µm)' : '10⁷ / (λ/nm)'}.`,
+    });
   }
   for (let r = start; r < rows.length; r++) {
     const { text, line } = rows[r];
@@ -402,8 +527,8 @@ function attempt(rows: { text: string; line: number }[], delimiter: LineListDeli
     const raw = text.trim();
     const fields = splitRow(text, delimiter);
     const res = cols
-      ? parseRowByColumns(fields, cols, allowDecimalComma, raw, line)
-      : parseRowByContent(tokensOf(fields), allowDecimalComma, raw, line);
+      ? parseRowByColumns(fields, cols, allowDecimalComma, raw, line, positionUnit)
+      : parseRowByContent(tokensOf(fields), allowDecimalComma, raw, line, { pick, unit: positionUnit });
     if (res.error) {
       errors.push({ line, message: `Line ${line}: ${res.error}` });
       continue;
@@ -412,7 +537,21 @@ function attempt(rows: { text: string; line: number }[], delimiter: LineListDeli
     if (res.decimalComma) decimalCommaRows.push(line);
     if (res.entry) lines.push(res.entry);
   }
-  return { delimiter, result: { lines, warnings, errors, format: { delimiter, header } }, decimalCommaRows };
+  return { delimiter, result: { lines, warnings, errors, format: { delimiter, header, ...(positionUnit !== 'cm-1' ? { unit: positionUnit } : {}) } }, decimalCommaRows, numberRows: collectNumbers(rows.slice(start), delimiter, allowDecimalComma, cols) };
+}
+
+/** Every data row's candidate position values as typed (for recognising wavelengths given without a unit). */
+function collectNumbers(rows: { text: string; line: number }[], delimiter: LineListDelimiter, allowDecimalComma: boolean, cols: Columns | null): number[][] {
+  return rows
+    .filter((r) => r.text.length <= LINE_LIST_MAX_ROW_CHARS)
+    .map((r) => {
+      const fields = splitRow(r.text, delimiter);
+      if (cols?.wavenumber !== undefined) {
+        const v = readNumber(fields[cols.wavenumber] ?? '', allowDecimalComma)?.value;
+        return v === undefined ? [] : [v];
+      }
+      return parseRowByContent(tokensOf(fields), allowDecimalComma, r.text.trim(), r.line).numbers ?? [];
+    });
 }
 
 function chooseDelimiters(rows: { text: string }[]): LineListDelimiter[] {
@@ -460,7 +599,7 @@ function emptyResult(error: LineListIssue): LineListParse {
  * Parses a pasted or uploaded line list. Never throws; problems come back as errors
  * (the row is unusable) or warnings (the row was read, but check it), each naming the row.
  */
-export function parseLineList(text: string, options: { maxRows?: number } = {}): LineListParse {
+export function parseLineList(text: string, options: ParseLineListOptions = {}): LineListParse {
   const maxRows = options.maxRows ?? LINE_LIST_MAX_ROWS;
   if (typeof text !== 'string') return emptyResult({ line: 0, message: 'No line list was given.' });
   // Checked before any splitting so a runaway paste fails at once.
@@ -486,11 +625,13 @@ export function parseLineList(text: string, options: { maxRows?: number } = {}):
 
   let best: Attempt | null = null;
   for (const d of chooseDelimiters(rows)) {
-    const a = attempt(rows, d);
+    const a = attempt(rows, d, options.expected);
     if (!best || a.result.errors.length < best.result.errors.length) best = a;
   }
   const chosen = best!;
   const { result } = chosen;
+  const wavelengths = wavelengthProblem(chosen, options.expected);
+  if (wavelengths) return { lines: [], warnings: [], errors: [{ line: 0, message: wavelengths }], format: result.format };
   if (chosen.decimalCommaRows.length > 0) {
     const first = chosen.decimalCommaRows[0];
     const n = chosen.decimalCommaRows.length;
@@ -513,6 +654,33 @@ export function parseLineList(text: string, options: { maxRows?: number } = {}):
   }
   result.warnings.sort((a, b) => a.line - b.line);
   return result;
+}
+
+/**
+ * Positions given as wavelengths without saying so: infrared wavelengths in µm (0.7–50) cannot
+ * be wavenumbers at all; wavelengths in nm can (2000–15000), so they are recognised only when
+ * the practical's expected range is known and the values miss it while 10⁷/value hits it.
+ */
+function wavelengthProblem(a: Attempt, expected?: { from: number; to: number }): string | null {
+  if (a.result.format.unit) return null;
+  const firsts = a.numberRows.map((r) => r.find((v) => v > 0)).filter((v): v is number => v !== undefined);
+  if (firsts.length === 0) return null;
+  const example = (v: number[]) => v.slice(0, 3).map((x) => String(x)).join(', ');
+  const advice = (unit: string) =>
+    `Give the positions as wavenumbers in cm⁻¹, or write the unit in the header (for example “wavelength (${unit})”) to have them converted.`;
+  const lines = a.result.lines;
+  const micro = a.numberRows.filter((r) => r.some((v) => v >= 0.7 && v <= 50) && !r.some((v) => wavenumberProblem(v) === null));
+  if (lines.length < 0.2 * firsts.length && micro.length >= 0.8 * a.numberRows.length) {
+    return `These look like wavelengths in µm (${example(micro.map((r) => r.find((v) => v >= 0.7 && v <= 50)!))}), not wavenumbers. ${advice('µm')}`;
+  }
+  if (expected && lines.length >= 3) {
+    const inside = (v: number) => v >= expected.from - 50 && v <= expected.to + 50;
+    const miss = lines.filter((l) => !inside(l.wavenumber));
+    if (miss.length >= 0.8 * lines.length && miss.filter((l) => inside(1e7 / l.wavenumber)).length >= 0.8 * miss.length) {
+      return `These look like wavelengths in nm (${example(miss.map((l) => l.wavenumber))}), not wavenumbers: the lines of this practical lie at ${Math.round(expected.from)}–${Math.round(expected.to)} cm⁻¹. ${advice('nm')}`;
+    }
+  }
+  return null;
 }
 
 /** Assignment label as the trade writes it: "P(3)", "R(0)". */

@@ -5,6 +5,8 @@ export type PracticalMode = 'practice' | 'assessed';
 export type LateRule = 'penalty' | 'not-accepted' | 'none';
 /** A hand-marked rubric item (report quality, discussion …): the engine cannot judge these. */
 export type RubricItem = { key: string; title: string; marks: number; guidance: string };
+/** One spectrum a practical takes: the molecules in that cell and the bands expected in it. */
+export type SpectrumSampleSetting = { key: string; label: string; molecules: string[]; bands: ('fundamental' | 'overtone')[] };
 
 export class Practical extends Model<InferAttributes<Practical>, InferCreationAttributes<Practical>> {
   declare id: CreationOptional<number>;
@@ -20,6 +22,10 @@ export class Practical extends Model<InferAttributes<Practical>, InferCreationAt
   declare latePenaltyPerDay: CreationOptional<number>;
   declare latePenaltyCap: CreationOptional<number>;
   declare rubric: RubricItem[];
+  /** The spectra the practical takes; null: one spectrum holding every molecule (see lib/submissions/spectrum-analysis.ts). */
+  declare spectrumSamples: CreationOptional<SpectrumSampleSetting[] | null>;
+  /** Show Oscillab's own analysis of the student's spectrum as a third comparison. */
+  declare spectrumAnalysis: CreationOptional<boolean>;
   declare copiedFromId: number | null;
   declare archivedAt: Date | null;
   declare createdAt: CreationOptional<Date>;
@@ -33,7 +39,7 @@ export class Practical extends Model<InferAttributes<Practical>, InferCreationAt
         mode: { ...col.str(20), defaultValue: 'practice' }, maxAttempts: col.int(3),
         lateRule: { ...col.str(20), defaultValue: 'penalty' },
         latePenaltyPerDay: { ...col.float(false), defaultValue: 10 }, latePenaltyCap: { ...col.float(false), defaultValue: 50 },
-        rubric: col.json(false), copiedFromId: col.fk(true), archivedAt: col.date(),
+        rubric: col.json(false), spectrumSamples: col.json(true), spectrumAnalysis: col.bool(false), copiedFromId: col.fk(true), archivedAt: col.date(),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
       { sequelize, modelName: 'Practical', tableName: 'practicals' },

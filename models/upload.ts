@@ -14,6 +14,10 @@ export class Upload extends Model<InferAttributes<Upload>, InferCreationAttribut
   declare sha256: string;
   declare size: number;
   declare contentType: string;
+  /** Which of the practical's spectra this is (spectra only). */
+  declare sample: CreationOptional<string | null>;
+  /** Oscillab's analysis of the spectrum, made when it was uploaded (lib/submissions/spectrum-analysis.ts). */
+  declare analysis: CreationOptional<Record<string, unknown> | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -22,6 +26,7 @@ export class Upload extends Model<InferAttributes<Upload>, InferCreationAttribut
       {
         id: col.id, ownerId: col.fk(), submissionId: col.fk(true), kind: col.str(20), originalName: col.str(255),
         storedName: col.str(100), sha256: col.str(64), size: { ...col.fk() }, contentType: col.str(100),
+        sample: col.str(40, true), analysis: col.json(true),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
       { sequelize, modelName: 'Upload', tableName: 'uploads' },

@@ -13,7 +13,6 @@ import { useCallback, useEffect, useRef, useState } from 'react';
 import { useRouter } from 'next/navigation';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import useSWR from 'swr';
 import { draftSchema, type Draft } from '@/lib/schemas/submission';
 import { parseLineList, formatLineListCsv, type LineListIssue } from '@/lib/linelist';
 import { assignPeaks } from '@/lib/grading/assign';
@@ -24,6 +23,7 @@ import { ConfirmDialog } from '@/components/ui/confirm-dialog';
 import { AttemptResult } from './attempt-result';
 import { QuantityInput } from './quantity-input';
 import { HandInSummary, PrecheckPanel } from './precheck-panel';
+import { SpectrumPanel, type PanelSample } from './spectrum-panel';
 
 export interface FormQuantity {
   key: string;
@@ -46,14 +46,12 @@ interface Props {
   attemptsLeft: number;
   mode: 'practice' | 'assessed';
   uploads: { spectrum: string | null; report: string | null };
+  /** The spectra the practical takes, and the names of those uploaded, by sample. */
+  samples: PanelSample[];
+  spectrumNames: Record<string, string | null>;
+  /** Where the practical's bands lie, cm⁻¹: lets the line-list reader recognise wavelengths. */
+  expectedRange?: { from: number; to: number };
 }
-
-const fetcher = async (url: string) => {
-  const r = await fetch(url);
-  const body = await r.json();
-  if (!r.ok) throw new Error(body.error ?? 'Request failed');
-  return body;
-};
 
 type SaveState = 'idle' | 'saving' | 'saved' | 'error';
 
@@ -122,7 +120,7 @@ export function SubmissionForm(props: Props) {
   }, [watch, save]);
 
   const readLines = (sp: string, text: string) => {
-    const parsed = parseLineList(text);
+    const parsed = parseLineList(text, { expected: props.expectedRange });
     setIssues((m) => ({ ...m, [sp]: { warnings: parsed.warnings, errors: parsed.errors } }));
     setValue(`species.${sp}.lines`, parsed.lines.map((l) => ({ branch: l.branch ?? null, J: l.J ?? null, wavenumber: l.wavenumber })), { shouldDirty: true });
   };
@@ -152,7 +150,7 @@ export function SubmissionForm(props: Props) {
     setProposals((m) => ({ ...m, [sp]: null }));
   };
 
-  const uploadFile = async (kind: 'spectrum' | 'report', file: File | undefined) => {
+  const uploadFile = async (kind: 'report', file: File | undefined) => {
     if (!file) return;
     setUploadMsg((m) => ({ ...m, [kind]: `Uploading ${file.name}…` }));
     const id = draftId ?? (await save());
@@ -167,15 +165,12 @@ export function SubmissionForm(props: Props) {
       setUploadMsg((m) => ({ ...m, [kind]: `Not accepted: ${body.error}` }));
       return;
     }
-    setValue(kind === 'spectrum' ? 'spectrumUploadId' : 'reportUploadId', body.id);
+    setValue('reportUploadId', body.id);
     versionRef.current = body.version;
     setVersion(body.version);
     setUploadNames((u) => ({ ...u, [kind]: body.originalName }));
     setUploadMsg((m) => ({ ...m, [kind]: `Uploaded ${body.originalName}.${body.warnings?.length ? ` ${body.warnings.join(' ')}` : ''}` }));
   };
-
-  const spectrumId = watch('spectrumUploadId');
-  const plot = useSWR(draftId && spectrumId ? `/api/submissions/${draftId}/spectrum?v=${version}` : null, fetcher, { keepPreviousData: true });
 
   /** The full check of the draft as it stands, on the server; writes nothing, uses no attempt. */
   const runPrecheck = async (): Promise<PrecheckView | null> => {
@@ -331,27 +326,33 @@ export function SubmissionForm(props: Props) {
         );
       })}
 
-      <fieldset className="card space-y-3">
+      <fieldset className="card min-w-0 space-y-3">
         <legend className="px-1 text-lg font-bold">Files</legend>
-        <div>
-          <label className="label" htmlFor="spectrum-file">Spectrum (JCAMP-DX .jdx/.dx, or two-column CSV)</label>
-          <input id="spectrum-file" type="file" accept=".jdx,.dx,.jcamp,.csv,.txt" onChange={(e) => void uploadFile('spectrum', e.target.files?.[0])} />
-          <p className="hint" aria-live="polite">{uploadMsg.spectrum ?? (uploadNames.spectrum ? `Current: ${uploadNames.spectrum}` : 'No spectrum uploaded yet.')}</p>
-        </div>
+        <SpectrumPanel
+          draftId={draftId}
+          version={version}
+          samples={props.samples}
+          uploaded={props.spectrumNames}
+          ensureDraft={save}
+          onUploaded={(u) => {
+            if (u.first) setValue('spectrumUploadId', u.id);
+            else setValue(`spectra.${u.sample}`, u.id);
+            versionRef.current = u.version;
+            setVersion(u.version);
+          }}
+          onUseLines={(texts) => {
+            for (const [sp, text] of Object.entries(texts)) {
+              if (!props.species.some((x) => x.name === sp)) continue;
+              setValue(`species.${sp}.lineText`, text, { shouldDirty: true });
+              readLines(sp, text);
+            }
+          }}
+        />
         <div>
           <label className="label" htmlFor="report-file">Report (PDF)</label>
           <input id="report-file" type="file" accept=".pdf,application/pdf" onChange={(e) => void uploadFile('report', e.target.files?.[0])} />
           <p className="hint" aria-live="polite">{uploadMsg.report ?? (uploadNames.report ? `Current: ${uploadNames.report}` : 'No report uploaded yet.')}</p>
         </div>
-        {plot.data && (
-          <figure className="mt-2">
-            <div className="table-scroll text-ink" role="region" aria-label="Your spectrum with your lines (scrolls sideways on a narrow screen)" tabIndex={0} data-testid="spectrum-plot" dangerouslySetInnerHTML={{ __html: plot.data.svg }} />
-            <figcaption className="hint">
-              {plot.data.summary.ok ? `${plot.data.summary.matched} of ${plot.data.summary.reported} of your lines match a peak of your spectrum; ${plot.data.summary.missing} strong peaks are not in your list. Hollow markers match no peak.` : plot.data.summary.message}
-            </figcaption>
-          </figure>
-        )}
-        {plot.error && <p className="error-text">The plot could not be drawn: {String(plot.error.message)}</p>}
       </fieldset>
 
       <div className="card flex flex-wrap items-center gap-3" aria-labelledby="hand-in-h">

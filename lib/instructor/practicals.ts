@@ -321,7 +321,8 @@ export async function copyPractical(source: Practical, data: CopyData, actorId: 
       {
         courseId: source.courseId, title: data.title, species: plain.species, instructions: plain.instructions, hazardNotes: plain.hazardNotes,
         mode: plain.mode, maxAttempts: plain.maxAttempts, lateRule: plain.lateRule, latePenaltyPerDay: plain.latePenaltyPerDay,
-        latePenaltyCap: plain.latePenaltyCap, rubric: plain.rubric, copiedFromId: source.id, archivedAt: null,
+        latePenaltyCap: plain.latePenaltyCap, rubric: plain.rubric, spectrumSamples: plain.spectrumSamples ?? null, spectrumAnalysis: plain.spectrumAnalysis ?? false,
+        copiedFromId: source.id, archivedAt: null,
       },
       { transaction },
     );

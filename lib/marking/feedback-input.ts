@@ -3,6 +3,7 @@ import type { MarkingView } from './view';
 import { fitPlotModel, residualModel } from './fit-plot';
 import { rawSum, totalAfterPenalty } from './totals';
 import { speciesDisplay } from '@/lib/grading';
+import { SPECTRUM_VERDICT } from '@/lib/submissions/spectrum-analysis-view';
 
 const n = (v: number | null) => (v === null ? '—' : String(Math.round(v * 100) / 100));
 
@@ -41,6 +42,13 @@ export function feedbackInputFromView(view: MarkingView, now = new Date()): Feed
     plots: view.fits
       .filter((f) => f.residuals.length > 0)
       .map((f) => ({ species: speciesDisplay(f.species), fit: fitPlotModel(f), residuals: residualModel(f), description: f.description, notices: f.notices.map((x) => x.message) })),
+    fromSpectrum: view.spectrumAnalysis?.comparison
+      ? {
+          legend: view.spectrumAnalysis.comparison.legend,
+          verdicts: Object.values(SPECTRUM_VERDICT),
+          rows: view.spectrumAnalysis.comparison.rows.map((r) => ({ label: r.label, reported: r.reported, fromSpectrum: r.fromSpectrum, deviation: r.deviation, verdict: SPECTRUM_VERDICT[r.verdict] })),
+        }
+      : null,
     rubric: view.marks.filter((m) => m.handMarked).map((m) => ({ label: m.label, marks: `${n(m.awarded)}/${n(m.maxMarks)}` })),
     comments,
     sum: n(rawSum(awarded)),

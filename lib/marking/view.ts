@@ -11,6 +11,7 @@ import { describeFit, noticesOf } from '@/lib/submissions/fit-words';
 import type { FitChoiceSummary } from '@/lib/grading';
 import type { Submission } from '@/models/submission';
 import type { Practical } from '@/models/practical';
+import { spectrumAnalysisView } from '@/lib/submissions/spectrum-analysis-view';
 
 export type BasisRow = {
   basis: 'consistency' | 'accuracy';
@@ -241,6 +242,7 @@ export async function loadMarkingView(submissionId: number, loaded?: { submissio
     marks: markRows,
     slips: slipRows,
     fits: fitsFromSummary(submission.checkSummary),
+    spectrumAnalysis: spectrumAnalysisView(submission.checkSummary),
     report: report ? { id: report.id, originalName: report.originalName } : null,
     spectrumUpload: spectrum ? { id: spectrum.id, storedName: spectrum.storedName, originalName: spectrum.originalName } : null,
     feedbackDocuments: docs.map((d) => ({ id: d.id, createdAt: d.createdAt.toISOString(), size: d.size })),

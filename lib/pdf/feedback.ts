@@ -29,6 +29,12 @@ export type FeedbackInput = {
   }[];
   slips: { title: string; quantity: string; explanation: string; formula: string }[];
   plots: { fit: PlotModel; residuals: PlotModel; species: string; description?: string; notices?: string[] }[];
+  /** The third comparison, "from your spectrum", when the practical shows it. */
+  fromSpectrum?: {
+    legend: string;
+    verdicts: { word: string; symbol: string; rgb: [number, number, number] }[];
+    rows: { label: string; reported: string; fromSpectrum: string; deviation: string; verdict: { word: string; symbol: string; rgb: [number, number, number] } }[];
+  } | null;
   rubric: { label: string; marks: string }[];
   comments: { label: string; text: string }[];
   sum: string;
@@ -249,6 +255,23 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
     w.text(fill(T.residualsCaption, {}), { size: 8.5, font: f.bold });
     drawPlot(w.page, p.residuals, { left: MARGIN, top: w.y, scale, font: f.regular, mono: f.mono });
     w.y -= p.residuals.height * scale + 6;
+  }
+
+  // The third comparison: the student's numbers against Oscillab's reading of their own spectrum.
+  if (input.fromSpectrum) {
+    const fs = input.fromSpectrum;
+    w.heading(fill(T.spectrumHeading, {}));
+    w.text(fill(T.spectrumIntro, { legend: fs.legend }), { size: 8.5, color: SOFT, gap: 2 });
+    w.text(fill(T.spectrumVerdicts, { verdicts: fs.verdicts.map((v) => `${v.symbol} ${v.word}`).join(' · ') }), { size: 8.5, color: SOFT, gap: 4 });
+    if (fs.rows.length === 0) w.text(fill(T.spectrumNone, {}));
+    else {
+      drawRow([T.colQuantity, T.colReported, T.colFromSpectrum, T.colDeviation, T.colVerdict, ''], { bold: true, size: 8 });
+      w.rule();
+      for (const r of fs.rows) {
+        drawRow([r.label, r.reported, r.fromSpectrum, r.deviation, `${r.verdict.symbol} ${r.verdict.word}`, ''], { size: 7.5, monoCols: [1, 2, 3], colours: [undefined, undefined, undefined, undefined, rgb(...r.verdict.rgb)] });
+      }
+      w.rule();
+    }
   }
 
   if (input.rubric.length) {

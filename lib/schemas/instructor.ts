@@ -158,3 +158,27 @@ export const welcomeSchema = z
     confirm: z.string().max(200),
   })
   .refine((w) => w.password === w.confirm, { message: 'The two passwords differ.', path: ['confirm'] });
+
+/** The spectra a practical takes and the third comparison's switch (lib/submissions/spectrum-analysis.ts). */
+export const spectrumSampleSchema = z.object({
+  key: z.string().trim().min(1).max(40).regex(/^[a-z0-9-]+$/, 'Lower-case letters, digits and - only.'),
+  label: text(80),
+  molecules: z
+    .array(
+      z
+        .string()
+        .trim()
+        .min(1)
+        .max(40)
+        .regex(/^[A-Za-z0-9()\s\-^⁰¹²³⁴⁵⁶⁷⁸⁹]+$/u, 'Write a molecule with letters and digits only, like HCl, DCl or H35Cl.'),
+    )
+    .min(1, 'Name at least one molecule (e.g. HCl).').max(4),
+  bands: z.array(z.enum(['fundamental', 'overtone'])).min(1, 'Expect at least one band.').max(2),
+});
+
+export const spectrumSettingsSchema = z.object({
+  spectrumAnalysis: z.boolean(),
+  /** null: one spectrum holding every molecule of the practical. */
+  samples: z.array(spectrumSampleSchema).min(1).max(6).nullable(),
+});
+export type SpectrumSettingsData = z.output<typeof spectrumSettingsSchema>;

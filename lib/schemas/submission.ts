@@ -41,7 +41,10 @@ export type SpeciesDraft = z.infer<typeof speciesDraftSchema>;
 
 export const draftSchema = z.object({
   species: z.record(oneLine(z.string().max(40)), speciesDraftSchema).default({}),
+  /** The spectrum (of the practical's first sample, when it takes one per sample). */
   spectrumUploadId: z.number().int().positive().nullable().default(null),
+  /** The spectra of the other samples, by sample key, when the practical takes one spectrum per sample. */
+  spectra: z.record(z.string().regex(/^[a-z0-9-]{1,40}$/), z.number().int().positive().nullable()).optional(),
   reportUploadId: z.number().int().positive().nullable().default(null),
 });
 export type Draft = z.infer<typeof draftSchema>;
@@ -58,6 +61,8 @@ export const submitSchema = z.object({
 });
 
 export const UPLOAD_KINDS = ['spectrum', 'report'] as const;
+/** Which of the practical's spectra an upload is (a sample key). */
+export const sampleKeySchema = z.string().regex(/^[a-z0-9-]{1,40}$/, 'A sample is named by lower-case letters, digits and dashes.');
 export type UploadKind = (typeof UPLOAD_KINDS)[number];
 
 export function emptyDraft(species: string[]): Draft {

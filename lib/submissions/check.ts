@@ -43,6 +43,8 @@ import { pickBands, toleranceFor, BASIS_SHARE, type ResolvedBand } from '@/lib/i
 import { uploadPath } from '@/lib/storage';
 import { compareLinesToPeaks, parseSpectrumFile, pickPeaks, sniffUpload } from '@/lib/spectrum';
 import type { LinePeakComparison } from '@/lib/spectrum/peaks';
+import { spectraOfSubmission } from './spectra';
+import { compareWithAnalysis, FROM_SPECTRUM_LEGEND, matchByBand, type BandMatch, type FromSpectrumRow, type StoredAnalysis } from './spectrum-analysis';
 
 type LineComparisonSummary = LinePeakComparison['summary'];
 
@@ -55,11 +57,20 @@ export interface SpectrumCheckSummary extends LineComparisonSummary {
   missingPeaks: number[];
 }
 
+/** Oscillab's analyses of the submission's spectra, and the student's lines counted against them per band. */
+export interface SpectraCheckSummary {
+  samples: { key: string; label: string; uploadId: number | null; originalName: string | null; analysis: StoredAnalysis | null }[];
+  perBand: BandMatch[];
+}
+
 export interface CheckSummary {
   version: 1;
   checkedAt: string;
   species: Record<string, SubmissionResult>;
   spectrum: SpectrumCheckSummary | null;
+  spectra?: SpectraCheckSummary;
+  /** The third comparison, when the practical has it switched on. */
+  fromSpectrum?: { legend: string; rows: FromSpectrumRow[] } | null;
   duplicate: { lineList: boolean; spectrum: boolean; otherSubmissionIds: number[] };
 }
 
@@ -195,6 +206,25 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
   let spectrum: SpectrumCheckSummary | null = null;
   if (spectrumUpload) spectrum = compareWithSpectrum(spectrumUpload, lines);
 
+  // --- Oscillab's own analysis of each spectrum: lines per band, and the third comparison ---
+  const spectraRows = await spectraOfSubmission(submission, practical, { transaction });
+  const analyses = spectraRows.map((r) => r.analysis).filter((a): a is StoredAnalysis => a !== null);
+  const spectra: SpectraCheckSummary = {
+    samples: spectraRows.map((r) => ({ key: r.sample.key, label: r.sample.label, uploadId: r.upload?.id ?? null, originalName: r.upload?.originalName ?? null, analysis: r.analysis })),
+    perBand: analyses.length ? matchByBand(lines.map((l) => ({ species: l.species, branch: l.branch, J: l.J, wavenumber: l.wavenumber })), analyses) : [],
+  };
+  let fromSpectrum: CheckSummary['fromSpectrum'] = null;
+  if (practical.spectrumAnalysis && analyses.length) {
+    const reportedForComparison = values
+      .filter((v) => v.valueText.trim() !== '' && speciesList.includes(v.species))
+      .map((v) => {
+        const q = qdefs.find((d) => d.key === v.key && d.species === v.species);
+        const band = q ? bands.get(q.id)?.accuracy : undefined;
+        return { key: v.key, species: v.species, valueText: v.valueText, unit: v.unit, uncertaintyText: v.uncertaintyText, accuracy: band ? toleranceFor(band) : undefined };
+      });
+    fromSpectrum = { legend: FROM_SPECTRUM_LEGEND, rows: compareWithAnalysis(reportedForComparison, analyses) };
+  }
+
   // --- Duplicate data (for staff only) ---------------------------------------------------
   const hash = lineListHash(lines);
   const others = new Set<number>();
@@ -291,6 +321,8 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
     checkedAt: new Date().toISOString(),
     species: results,
     spectrum,
+    spectra,
+    fromSpectrum,
     duplicate: { lineList: dupLines, spectrum: dupSpectrum, otherSubmissionIds: [...others] },
   };
   await submission.update(
@@ -301,13 +333,25 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
       flagSlip: anySlip,
       flagLate: submission.daysLate > 0,
       flagDuplicate: others.size > 0,
-      flagSpectrumMismatch: spectrum ? !spectrum.ok || spectrum.unmatched > Math.max(1, SPECTRUM_MISMATCH_SHARE * spectrum.reported) : false,
+      flagSpectrumMismatch: spectrumMismatch(spectrum, spectra),
       proposedTotal,
       maxTotal,
     },
     { transaction },
   );
   return summary;
+}
+
+/**
+ * A spectrum mismatch is flagged for a marker when the student's lines of a band the spectrum
+ * covers do not match it (more than one line and more than a tenth unmatched). Lines of a band the
+ * uploaded spectrum does not cover are not a mismatch (the form tells the student so plainly).
+ */
+function spectrumMismatch(spectrum: SpectrumCheckSummary | null, spectra: SpectraCheckSummary): boolean {
+  const covered = spectra.perBand.filter((b) => !b.outsideRange && !b.noSpectrum);
+  if (covered.length) return covered.some((b) => b.reported - b.matched > Math.max(1, SPECTRUM_MISMATCH_SHARE * b.reported));
+  if (spectra.perBand.length) return false;
+  return spectrum ? !spectrum.ok || spectrum.unmatched > Math.max(1, SPECTRUM_MISMATCH_SHARE * spectrum.reported) : false;
 }
 
 function finite(x: number): number | null {

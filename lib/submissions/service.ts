@@ -58,11 +58,18 @@ export async function findDraft(practicalId: number, studentId: number, transact
   return models().Submission.findOne({ where: { practicalId, studentId, attempt: 0 }, transaction });
 }
 
+/** Every upload a draft names: the spectrum, the spectra of further samples, the report. */
+function draftUploads(draft: Draft): { field: string; kind: 'spectrum' | 'report'; id: number }[] {
+  const out: { field: string; kind: 'spectrum' | 'report'; id: number }[] = [];
+  if (draft.spectrumUploadId !== null) out.push({ field: 'spectrumUploadId', kind: 'spectrum', id: draft.spectrumUploadId });
+  for (const [key, id] of Object.entries(draft.spectra ?? {})) if (id !== null) out.push({ field: `spectra.${key}`, kind: 'spectrum', id });
+  if (draft.reportUploadId !== null) out.push({ field: 'reportUploadId', kind: 'report', id: draft.reportUploadId });
+  return out;
+}
+
 /** Uploads named by the draft must be the student's own. */
 export async function assertOwnUploads(draft: Draft, studentId: number, transaction?: Transaction) {
-  for (const [field, kind] of [['spectrumUploadId', 'spectrum'], ['reportUploadId', 'report']] as const) {
-    const id = draft[field];
-    if (id === null) continue;
+  for (const { field, kind, id } of draftUploads(draft)) {
     const up = await models().Upload.findByPk(id, { transaction });
     if (!up || up.ownerId !== studentId || up.kind !== kind) throw new HttpError(400, `The ${kind} file named in the draft is not one of your uploads.`, { [field]: ['Upload the file again.'] });
   }
@@ -204,8 +211,7 @@ async function submitDraftNow(actor: Actor, draftRow: Submission, practical: Pra
       if (valueRows.length) await SubmittedValue.bulkCreate(valueRows, { transaction });
       if (lineRows.length) await LineAssignment.bulkCreate(lineRows, { transaction });
 
-      for (const id of [draft.spectrumUploadId, draft.reportUploadId]) {
-        if (id === null) continue;
+      for (const id of [...new Set(draftUploads(draft).map((u) => u.id))]) {
         const up = await Upload.findByPk(id, { transaction });
         if (!up) continue;
         if (up.submissionId === draftRow.id || up.submissionId === null) {
@@ -216,7 +222,9 @@ async function submitDraftNow(actor: Actor, draftRow: Submission, practical: Pra
           const storedName = randomName(ext);
           fs.copyFileSync(uploadPath(up.storedName), uploadPath(storedName));
           copied.push(storedName);
-          await Upload.create({ ownerId: up.ownerId, submissionId: attempt.id, kind: up.kind, originalName: up.originalName, storedName, sha256: up.sha256, size: up.size, contentType: up.contentType }, { transaction });
+          const copy = await Upload.create({ ownerId: up.ownerId, submissionId: attempt.id, kind: up.kind, originalName: up.originalName, storedName, sha256: up.sha256, size: up.size, contentType: up.contentType, sample: up.sample }, { transaction });
+          // The same bytes: the analysis made at upload holds for the copy too.
+          if (up.analysis) await copy.update({ analysis: { ...up.analysis, uploadId: copy.id } }, { transaction });
         }
       }
       await checkStoredSubmission(attempt.id, { transaction });

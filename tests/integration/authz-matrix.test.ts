@@ -290,6 +290,14 @@ const MATRIX: Record<string, Case> = {
       return { url: `/api/practicals/${w.setup.id}/bands`, params: { practicalId: String(w.setup.id) }, body: { bandId: band.id } };
     },
   },
+  'GET /api/practicals/[practicalId]/spectrum-settings': {
+    expect: [401, 403, 403, 403, 403, 200, 403, 200],
+    call: (w) => ({ url: `/api/practicals/${w.practical.id}/spectrum-settings`, params: { practicalId: String(w.practical.id) } }),
+  },
+  'PUT /api/practicals/[practicalId]/spectrum-settings': {
+    expect: [401, 403, 403, 403, 403, 200, 403, 200],
+    call: (w) => ({ url: `/api/practicals/${w.setup.id}/spectrum-settings`, params: { practicalId: String(w.setup.id) }, body: { spectrumAnalysis: true, samples: null } }),
+  },
   'POST /api/practicals/[practicalId]/copy': {
     expect: [401, 403, 403, 403, 403, 201, 403, 201],
     call: (w) => ({ url: `/api/practicals/${w.setup.id}/copy`, params: { practicalId: String(w.setup.id) }, body: { title: 'Matrix copy', cohortMap: {}, deadlines: [] } }),
@@ -361,6 +369,11 @@ const MATRIX: Record<string, Case> = {
   'GET /api/submissions/[id]/spectrum': {
     expect: [401, 200, 403, 200, 403, 200, 403, 200],
     call: (w) => ({ url: `/api/submissions/${w.submission.id}/spectrum`, params: { id: String(w.submission.id) } }),
+  },
+  'GET /api/submissions/[id]/spectrum-lines': {
+    // The student's own draft only ('allowed': 200 once a spectrum is uploaded, 404 before).
+    expect: [401, 'allowed', 403, 403, 403, 403, 403, 403],
+    call: (w) => ({ url: `/api/submissions/${w.draftC.id}/spectrum-lines`, params: { id: String(w.draftC.id) } }),
   },
   'POST /api/submissions/[id]/submit': {
     // Only the student themself; not even an admin submits for them. One real submit (201).

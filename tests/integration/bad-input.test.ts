@@ -391,6 +391,13 @@ const BAD: Record<string, Entry> = {
     text: ['unit'],
     breakers: { basis: 'both' },
   },
+  'PUT /api/practicals/[practicalId]/spectrum-settings': {
+    as: 'admin',
+    call: (w) => ({ url: `/api/practicals/${w.setup.id}/spectrum-settings`, params: { practicalId: String(w.setup.id) } }),
+    body: () => ({ spectrumAnalysis: true, samples: [{ key: 'cell', label: 'HCl cell', molecules: ['HCl'], bands: ['fundamental'] }] }),
+    text: ['samples.0.label'],
+    breakers: { spectrumAnalysis: 'yes' },
+  },
   'DELETE /api/practicals/[practicalId]/bands': {
     as: 'admin',
     call: (w) => ({ url: `/api/practicals/${w.setup.id}/bands`, params: { practicalId: String(w.setup.id) } }),

@@ -203,3 +203,84 @@ describe('parseLineList: hostile rows stay fast', () => {
     expect(performance.now() - t0).toBeLessThan(1000);
   });
 });
+
+describe('parseLineList: files from real instruments and other languages', () => {
+  // Positions are illustrative H³⁵Cl values (from memory, common practice); conversions by
+  // ν̃/cm⁻¹ = 10⁴/(λ/µm) = 10⁷/(λ/nm), the definition of the wavenumber.
+  it('keeps a quoted decimal comma in a comma-separated row, and reads quoted semicolon rows', () => {
+    const a = parseLineList('R,0,"2906,25"\nP,1,"2865,10"');
+    expect(a.errors).toEqual([]);
+    expect(a.lines.map((l) => [l.branch, l.J, l.wavenumber])).toEqual([
+      ['R', 0, 2906.25],
+      ['P', 1, 2865.1],
+    ]);
+    const b = parseLineList('"Zweig";"J";"Wellenzahl / cm-1"\n"R";"0";"2906,25"\n"P";"1";"2865,10"');
+    expect(b.errors).toEqual([]);
+    expect(b.format.header).toBe(true);
+    expect(b.lines.map((l) => [l.branch, l.J, l.wavenumber])).toEqual([
+      ['R', 0, 2906.25],
+      ['P', 1, 2865.1],
+    ]);
+  });
+
+  it.each([
+    ['German', 'Zweig;J;Wellenzahl (cm-1);Intensität\nR;0;2906,25;0,41\nP;1;2865,10;0,44'],
+    ['French', "branche,J,nombre d'onde (cm-1),intensité\nR,0,2906.25,0.41\nP,1,2865.10,0.44"],
+    ['Spanish', 'rama\tJ\tnúmero de onda (cm-1)\tintensidad\nR\t0\t2906.25\t0.41\nP\t1\t2865.10\t0.44'],
+    ['Italian', 'ramo;J;numero d’onda;intensità\nR;0;2906,25;0,41\nP;1;2865,10;0,44'],
+  ])('reads a %s header', (_lang, text) => {
+    const r = parseLineList(text);
+    expect(r.errors).toEqual([]);
+    expect(r.warnings.filter((w) => !/decimal comma/i.test(w.message))).toEqual([]);
+    expect(r.lines.map((l) => [l.branch, l.J, l.wavenumber])).toEqual([
+      ['R', 0, 2906.25],
+      ['P', 1, 2865.1],
+    ]);
+  });
+
+  it('finds the position column of a "peak, intensity, position" table by its range, not its order', () => {
+    // Peak numbers 250, 251, 252 lie in the wavenumber range too; they count up by one, so they are not positions.
+    const r = parseLineList('250\t0.31\t2906.25\n251\t0.44\t2925.90\n252\t0.12\t2944.91');
+    expect(r.errors).toEqual([]);
+    expect(r.lines.map((l) => l.wavenumber)).toEqual([2906.25, 2925.9, 2944.91]);
+    expect(r.warnings).toEqual([]);
+    // With an unfamiliar header the values still decide.
+    const h = parseLineList('Nr.;Höhe;Pos.\n250;0,31;2906,25\n251;0,44;2925,90\n252;0,12;2944,91');
+    expect(h.lines.map((l) => l.wavenumber)).toEqual([2906.25, 2925.9, 2944.91]);
+  });
+
+  it('converts wavelengths in µm or nm when the header says so, and says it did', () => {
+    const um = parseLineList('branch\tJ\twavelength (µm)\nR\t0\t3.44086\nP\t1\t3.49028');
+    expect(um.errors).toEqual([]);
+    expect(um.format.unit).toBe('µm');
+    expect(um.lines.map((l) => [l.branch, l.J, Number(l.wavenumber.toFixed(2))])).toEqual([
+      ['R', 0, Number((1e4 / 3.44086).toFixed(2))],
+      ['P', 1, Number((1e4 / 3.49028).toFixed(2))],
+    ]);
+    expect(um.warnings[0].message).toMatch(/wavelengths in µm.*converted/);
+    const nm = parseLineList('Wellenlänge / nm;Intensität\n3440,86;0,41\n3490,28;0,44');
+    expect(nm.errors).toEqual([]);
+    expect(nm.format.unit).toBe('nm');
+    expect(nm.lines.map((l) => Number(l.wavenumber.toFixed(2)))).toEqual([Number((1e7 / 3440.86).toFixed(2)), Number((1e7 / 3490.28).toFixed(2))]);
+    // A wavelength header without a unit: µm told from the size of the values.
+    const bare = parseLineList('lambda\n3.44086\n3.49028');
+    expect(bare.format.unit).toBe('µm');
+    expect(bare.warnings[0].message).toMatch(/read from their size/);
+  });
+
+  it('refuses wavelengths given without a unit: "these look like wavelengths"', () => {
+    const um = parseLineList('R(0)\t3.44086\nR(1)\t3.41764\nP(1)\t3.49028');
+    expect(um.lines).toEqual([]);
+    expect(um.errors).toHaveLength(1);
+    expect(um.errors[0].message).toMatch(/^These look like wavelengths in µm \(3\.44086, 3\.41764, 3\.49028\)/);
+    expect(um.errors[0].message).toMatch(/wavelength \(µm\)/);
+    // In nm the values could be wavenumbers; the practical's range (the H³⁵Cl/H³⁷Cl fundamental, 2500–3150 cm⁻¹) tells them apart.
+    const nm = parseLineList('3440.86\n3417.64\n3490.28', { expected: { from: 2500, to: 3150 } });
+    expect(nm.lines).toEqual([]);
+    expect(nm.errors[0].message).toMatch(/^These look like wavelengths in nm/);
+    // The same numbers without the practical's range are read as they are.
+    expect(parseLineList('3440.86\n3417.64\n3490.28').errors).toEqual([]);
+    // And real wavenumbers inside the range are never taken for wavelengths.
+    expect(parseLineList('2906.25\n2925.9\n2865.1', { expected: { from: 2500, to: 3150 } }).errors).toEqual([]);
+  });
+});

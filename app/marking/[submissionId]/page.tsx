@@ -7,6 +7,7 @@ import { MarkingForm } from '@/components/marking/marking-form';
 import { ScoreDelivery } from '@/components/lti/score-delivery';
 import { FitPlots, SpectrumSection } from '@/components/marking/plots';
 import { cohortName } from '@/lib/display';
+import { SpectrumAnalysisPanel } from '@/components/marking/spectrum-analysis';
 import { HttpError } from '@/lib/http';
 import { submissionScope } from '@/lib/marking/access';
 import { nextToMark } from '@/lib/marking/next';
@@ -111,6 +112,8 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
       <Suspense fallback={<p className="card mb-6 text-ink-soft" role="status">Drawing the line fit…</p>}>
         <FitPlots fits={view.fits} />
       </Suspense>
+
+      <SpectrumAnalysisPanel view={view.spectrumAnalysis} />
 
       <MarkingForm initial={view} next={next} />
       <ScoreDelivery submissionId={id} courseId={view.course.id} />

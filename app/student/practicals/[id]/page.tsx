@@ -12,6 +12,7 @@ import { attemptsUsed, findDraft, readDraft } from '@/lib/submissions/service';
 import { timeLeft } from '@/lib/submissions/student-home';
 import { studentAttemptViews } from '@/lib/submissions/view';
 import { models } from '@/models';
+import { spectrumFormProps } from '@/lib/submissions/spectrum-form';
 
 export const dynamic = 'force-dynamic';
 export const metadata = { title: 'Practical' };
@@ -89,6 +90,7 @@ export default async function PracticalPage({ params }: { params: Promise<{ id: 
         attemptsLeft={Math.max(0, practical.maxAttempts + extra - used)}
         mode={practical.mode}
         uploads={{ spectrum: uploadName(draft.spectrumUploadId), report: uploadName(draft.reportUploadId) }}
+        {...await spectrumFormProps(practical, draft)}
       />
       {views.length > 0 && (
         <section className="mt-8 space-y-4" aria-labelledby="attempts">

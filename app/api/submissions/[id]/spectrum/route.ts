@@ -1,4 +1,5 @@
 import { HttpError, idParam, json, route } from '@/lib/http';
+import { sampleKeySchema } from '@/lib/schemas/submission';
 import { loadSubmissionFor } from '@/lib/submissions/access';
 import { spectrumFigure } from '@/lib/submissions/spectrum-figure';
 
@@ -8,7 +9,10 @@ type Ctx = { params: Promise<{ id: string }> };
 export const GET = route<Ctx>(async (request, { params }) => {
   const id = idParam((await params).id);
   const { submission, practical } = await loadSubmissionFor(request, id, 'submission-read');
-  const figure = await spectrumFigure(submission, practical);
+  const raw = new URL(request.url).searchParams.get('sample');
+  const sample = raw === null ? undefined : sampleKeySchema.safeParse(raw);
+  if (sample && !sample.success) throw new HttpError(400, 'The sample is named by lower-case letters, digits and dashes.');
+  const figure = await spectrumFigure(submission, practical, 'student', sample?.data);
   if (!figure.ok) throw new HttpError(figure.status, figure.message);
-  return json({ svg: figure.svg, description: figure.description, summary: figure.summary });
+  return json({ svg: figure.svg, description: figure.description, summary: figure.summary, samples: figure.samples, sample: figure.sample, bands: figure.bands, perBand: figure.perBand });
 });

@@ -3,6 +3,7 @@ import { authorizePage } from '@/lib/authz';
 import { PageHeader } from '@/components/ui/page-header';
 import { models } from '@/models';
 import { PracticalEditor } from '@/components/instructor/practical-editor';
+import { SpectrumSettings } from '@/components/instructor/spectrum-settings';
 
 export const dynamic = 'force-dynamic';
 export const metadata = { title: 'Practical definition' };
@@ -19,6 +20,7 @@ export default async function PracticalPage({ params }: { params: Promise<{ cour
       <p className="mb-2 text-sm"><a href={`/courses/${course.id}`}>← {course.code}</a></p>
       <PageHeader title={practical.title} lead="Definition, quantities and tolerance bands. Changes apply to new checks; you are asked before existing submissions are re-checked." />
       <PracticalEditor practicalId={practical.id} courseId={course.id} />
+      <SpectrumSettings practicalId={practical.id} />
     </>
   );
 }

@@ -1,0 +1,130 @@
+'use client';
+/**
+ * Spectra of a practical, for the instructor: one spectrum holding every molecule (the default)
+ * or one spectrum per sample, the bands expected in each, and the switch for the third
+ * comparison — Oscillab's own reading of the student's spectrum on the marking screen and in
+ * the feedback.
+ */
+import { useEffect, useState } from 'react';
+import { send } from './api';
+
+type Band = 'fundamental' | 'overtone';
+type Sample = { key: string; label: string; molecules: string[]; bands: Band[] };
+/** A sample as edited: the molecules as typed, read into a list only when saved. */
+type EditedSample = Omit<Sample, 'molecules'> & { moleculesText: string };
+
+const edited = (s: Sample): EditedSample => ({ key: s.key, label: s.label, bands: s.bands, moleculesText: s.molecules.join(', ') });
+const toSample = (s: EditedSample): Sample => ({ key: s.key, label: s.label, bands: s.bands, molecules: s.moleculesText.split(/[,;\s]+/).filter(Boolean) });
+type Settings = { spectrumAnalysis: boolean; samples: Sample[] | null; effective: Sample[] };
+
+const BAND_WORDS: Record<Band, string> = { fundamental: 'fundamental (1←0)', overtone: 'first overtone (2←0)' };
+
+export function SpectrumSettings({ practicalId }: { practicalId: number }) {
+  const [settings, setSettings] = useState<Settings | null>(null);
+  const [perSample, setPerSample] = useState(false);
+  const [samples, setSamples] = useState<EditedSample[]>([]);
+  const [analysis, setAnalysis] = useState(false);
+  const [message, setMessage] = useState<string | null>(null);
+  const [error, setError] = useState<string | null>(null);
+  const [saving, setSaving] = useState(false);
+
+  useEffect(() => {
+    void send<Settings>('GET', `/api/practicals/${practicalId}/spectrum-settings`).then((r) => {
+      if (!r.ok) {
+        setError(r.data.error ?? 'The settings could not be loaded.');
+        return;
+      }
+      setSettings(r.data);
+      setAnalysis(r.data.spectrumAnalysis);
+      setPerSample(r.data.samples !== null);
+      setSamples((r.data.samples ?? r.data.effective).map(edited));
+    });
+  }, [practicalId]);
+
+  const update = (i: number, patch: Partial<EditedSample>) => setSamples((list) => list.map((s, k) => (k === i ? { ...s, ...patch } : s)));
+
+  const save = async () => {
+    setSaving(true);
+    setError(null);
+    setMessage(null);
+    const r = await send<Settings>('PUT', `/api/practicals/${practicalId}/spectrum-settings`, { spectrumAnalysis: analysis, samples: perSample ? samples.map(toSample) : null });
+    setSaving(false);
+    if (!r.ok) {
+      setError(r.data.error ?? 'The settings were not saved.');
+      return;
+    }
+    setSettings(r.data);
+    setSamples((r.data.samples ?? r.data.effective).map(edited));
+    setMessage('Saved. The new settings apply to spectra uploaded and submissions checked from now on.');
+  };
+
+  if (!settings && !error) return <section className="card mt-6"><p className="text-ink-soft">Loading the spectrum settings…</p></section>;
+  return (
+    <section className="card mt-6 space-y-4" aria-labelledby="spectra-settings-heading">
+      <h2 id="spectra-settings-heading">Spectra</h2>
+      <fieldset>
+        <legend className="label">What students upload</legend>
+        <label className="flex items-center gap-2">
+          <input type="radio" name="spectrum-mode" checked={!perSample} onChange={() => { setPerSample(false); if (settings) setSamples(settings.effective.map(edited)); }} />
+          One spectrum holding every molecule of the practical
+        </label>
+        <label className="flex items-center gap-2">
+          <input type="radio" name="spectrum-mode" checked={perSample} onChange={() => setPerSample(true)} />
+          One spectrum per sample
+        </label>
+      </fieldset>
+      {!perSample && settings && (
+        <p className="hint">Expected: {settings.effective.map((s) => `${s.molecules.join(' and ')} — ${s.bands.map((b) => BAND_WORDS[b]).join(', ')}`).join('; ')} (the overtone when a quantity needs it).</p>
+      )}
+      {perSample && (
+        <div className="space-y-3">
+          {samples.map((s, i) => (
+            <div key={i} className="grid gap-2 rounded border border-rule p-3 md:grid-cols-4">
+              <div>
+                <label className="hint" htmlFor={`sample-label-${i}`}>Spectrum</label>
+                <input id={`sample-label-${i}`} className="field" value={s.label} onChange={(e) => update(i, { label: e.target.value })} />
+              </div>
+              <div>
+                <label className="hint" htmlFor={`sample-key-${i}`}>Short name (a–z, 0–9, -)</label>
+                <input id={`sample-key-${i}`} className="field" value={s.key} onChange={(e) => update(i, { key: e.target.value.toLowerCase() })} />
+              </div>
+              <div>
+                <label className="hint" htmlFor={`sample-molecules-${i}`}>Molecules in it (e.g. HCl, DCl)</label>
+                <input id={`sample-molecules-${i}`} className="field" value={s.moleculesText} onChange={(e) => update(i, { moleculesText: e.target.value })} />
+              </div>
+              <fieldset>
+                <legend className="hint">Bands expected</legend>
+                {(['fundamental', 'overtone'] as Band[]).map((b) => (
+                  <label key={b} className="flex items-center gap-2 text-sm">
+                    <input type="checkbox" checked={s.bands.includes(b)} onChange={(e) => update(i, { bands: e.target.checked ? [...s.bands, b] : s.bands.filter((x) => x !== b) })} />
+                    {BAND_WORDS[b]}
+                  </label>
+                ))}
+              </fieldset>
+              <div className="md:col-span-4">
+                <button type="button" className="btn-quiet" onClick={() => setSamples((list) => list.filter((_, k) => k !== i))} disabled={samples.length <= 1}>Remove this spectrum</button>
+              </div>
+            </div>
+          ))}
+          <button type="button" className="btn-quiet" onClick={() => setSamples((list) => [...list, { key: `sample-${list.length + 1}`, label: `Sample ${list.length + 1}`, moleculesText: '', bands: ['fundamental'] }])} disabled={samples.length >= 6}>
+            Add a spectrum
+          </button>
+        </div>
+      )}
+      <label className="flex items-start gap-2">
+        <input type="checkbox" className="mt-1" checked={analysis} onChange={(e) => setAnalysis(e.target.checked)} />
+        <span>
+          Show Oscillab’s own reading of each student’s spectrum as a third comparison, “from your spectrum”, on the marking screen and in the feedback.
+          <span className="hint block">It finds, assigns and fits the lines of the uploaded spectrum itself and compares the student’s numbers with the result: it catches misread or misnumbered lines. Its verdicts are advice and do not change marks.</span>
+        </span>
+      </label>
+      <div className="flex items-center gap-3">
+        <button type="button" className="btn" onClick={() => void save()} disabled={saving}>{saving ? 'Saving…' : 'Save spectrum settings'}</button>
+        <span aria-live="polite" className="text-sm">
+          {message}
+          {error && <span className="error-text">{error}</span>}
+        </span>
+      </div>
+    </section>
+  );
+}
