@@ -9,6 +9,14 @@ import { createRequire } from 'node:module';
 const require = createRequire(import.meta.url);
 const { DEMO_PASSWORD } = require('../seeders/data/demo-cast.cjs');
 
+// The demo seeds through tsx and catches mail with maildev, both development dependencies.
+for (const tool of ['tsx', 'maildev']) {
+  if (!fs.existsSync(path.join('node_modules', tool, 'package.json'))) {
+    console.error(`The demo needs ${tool}, a development dependency: run \`npm install\` (a production install, \`npm ci --omit=dev\`, leaves it out).`);
+    process.exit(1);
+  }
+}
+
 const run = (cmd, args, env = {}) => {
   const r = spawnSync(cmd, args, { stdio: 'inherit', env: { ...process.env, ...env } });
   if (r.status !== 0) process.exit(r.status ?? 1);
@@ -30,7 +38,7 @@ console.log('\n▸ Seeding the demo (Northmere University, a fictional universit
 run('npm', ['run', '--silent', 'db:seed'], env);
 if (process.env.SKIP_BUILD !== '1') {
   console.log('\n▸ Building the app');
-  run('npx', ['next', 'build'], env);
+  run('npm', ['run', '--silent', 'build'], env);
 }
 
 const DEMO_HOST = process.env.HOST || '127.0.0.1';
