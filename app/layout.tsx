@@ -3,7 +3,6 @@ import './globals.css';
 import 'katex/dist/katex.min.css';
 import { textFont, figureFont } from './fonts';
 import { SiteHeader } from '@/components/site-header';
-import { ZodJitless } from '@/components/zod-jitless';
 
 export const metadata: Metadata = {
   title: { default: 'Oscillab', template: '%s · Oscillab' },
@@ -14,7 +13,6 @@ export default function RootLayout({ children }: { children: React.ReactNode }) 
   return (
     <html lang="en-GB" className={`${textFont.variable} ${figureFont.variable}`}>
       <body className="min-h-screen">
-        <ZodJitless />
         <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:z-50 focus:bg-paper-raised focus:p-2">
           Skip to content
         </a>

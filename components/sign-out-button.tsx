@@ -1,10 +1,10 @@
-'use client';
-import { signOut } from 'next-auth/react';
-
+/** A plain form POST (no client script): the route ends the session, removes the cookie and goes to sign-in. */
 export function SignOutButton() {
   return (
-    <button type="button" className="btn-quiet" onClick={() => signOut({ callbackUrl: '/signin' })}>
-      Sign out
-    </button>
+    <form method="post" action="/api/me/sign-out">
+      <button type="submit" className="btn-quiet">
+        Sign out
+      </button>
+    </form>
   );
 }

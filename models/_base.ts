@@ -1,6 +1,10 @@
 import { DataTypes } from 'sequelize';
 
-/** Column shorthands shared by the model files; the tables themselves are defined in migrations/. */
+/**
+ * Column shorthands shared by the model files. The tables themselves are defined in migrations/;
+ * each model mirrors its table's columns and indexes, and tests/integration/schema-drift.test.ts
+ * fails when the two differ.
+ */
 export const col = {
   id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
   fk: (allowNull = false) => ({ type: DataTypes.INTEGER, allowNull }),

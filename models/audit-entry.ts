@@ -17,7 +17,7 @@ export class AuditEntry extends Model<InferAttributes<AuditEntry>, InferCreation
         id: col.id, actorId: col.fk(true), action: col.str(80), entityType: col.str(60), entityId: col.fk(true),
         before: col.json(), after: col.json(), createdAt: col.date(false),
       },
-      { sequelize, modelName: 'AuditEntry', tableName: 'audit_log', updatedAt: false },
+      { sequelize, modelName: 'AuditEntry', tableName: 'audit_log', updatedAt: false, indexes: [{ fields: ['entityType', 'entityId'] }] },
     );
   }
 }

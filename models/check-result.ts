@@ -26,7 +26,14 @@ export class CheckResult extends Model<InferAttributes<CheckResult>, InferCreati
         verdict: col.str(20), slipCodes: { ...col.str(400), defaultValue: '' },
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'CheckResult', tableName: 'check_results' },
+      {
+        sequelize, modelName: 'CheckResult', tableName: 'check_results',
+        indexes: [
+          { fields: ['submissionId'] },
+          { fields: ['key', 'basis'] },
+          { name: 'check_results_statistics_covering', fields: ['submissionId', 'key', 'species', 'basis', 'verdict', 'relativeDeviation', 'updatedAt'] },
+        ],
+      },
     );
   }
 }

@@ -29,13 +29,13 @@ export class EmailOutbox extends Model<InferAttributes<EmailOutbox>, InferCreati
   static initModel(sequelize: Sequelize) {
     EmailOutbox.init(
       {
-        id: col.id, dedupeKey: col.str(200), toAddress: col.str(254), subject: col.str(300), textBody: col.text(),
+        id: col.id, dedupeKey: { ...col.str(200), unique: true }, toAddress: col.str(254), subject: col.str(300), textBody: col.text(),
         htmlBody: col.text(true), feedbackDocumentId: col.fk(true), submissionId: col.fk(true),
         status: { ...col.str(20), defaultValue: 'queued' }, attempts: col.int(0), nextAttemptAt: col.date(false),
         lockedUntil: col.date(), lastError: col.text(true), messageId: col.str(300, true), sentAt: col.date(), resentAt: col.date(),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'EmailOutbox', tableName: 'email_outbox' },
+      { sequelize, modelName: 'EmailOutbox', tableName: 'email_outbox', indexes: [{ fields: ['status', 'nextAttemptAt'] }] },
     );
   }
 }

@@ -20,7 +20,7 @@ export class LineAssignment extends Model<InferAttributes<LineAssignment>, Infer
         wavenumber: col.float(false), source: { ...col.str(20), defaultValue: 'student' },
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'LineAssignment', tableName: 'line_assignments' },
+      { sequelize, modelName: 'LineAssignment', tableName: 'line_assignments', indexes: [{ fields: ['submissionId'] }] },
     );
   }
 }

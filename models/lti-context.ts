@@ -27,7 +27,7 @@ export class LtiContext extends Model<InferAttributes<LtiContext>, InferCreation
         title: col.str(300, true), membershipsUrl: col.str(1000, true), lineItemsUrl: col.str(1000, true),
         agsScopes: col.text(true), rosterSyncedAt: col.date(), createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'LtiContext', tableName: 'lti_contexts' },
+      { sequelize, modelName: 'LtiContext', tableName: 'lti_contexts', indexes: [{ name: 'lti_contexts_registration_context', unique: true, fields: ['registrationId', 'contextId'] }, { name: 'lti_contexts_course', fields: ['courseId'] }] },
     );
   }
 }

@@ -23,7 +23,7 @@ export class LtiRegistration extends Model<InferAttributes<LtiRegistration>, Inf
         authTokenUrl: col.str(1000), keySetUrl: col.str(1000), tokenAudience: col.str(1000, true), active: col.bool(true),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'LtiRegistration', tableName: 'lti_registrations' },
+      { sequelize, modelName: 'LtiRegistration', tableName: 'lti_registrations', indexes: [{ name: 'lti_registrations_issuer_client', unique: true, fields: ['issuer', 'clientId'] }] },
     );
   }
 }

@@ -17,7 +17,7 @@ export class LtiResourceLink extends Model<InferAttributes<LtiResourceLink>, Inf
         id: col.id, ltiContextId: col.fk(), resourceLinkId: col.str(255), practicalId: col.fk(), title: col.str(300, true),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'LtiResourceLink', tableName: 'lti_resource_links' },
+      { sequelize, modelName: 'LtiResourceLink', tableName: 'lti_resource_links', indexes: [{ name: 'lti_resource_links_context_link', unique: true, fields: ['ltiContextId', 'resourceLinkId'] }] },
     );
   }
 }

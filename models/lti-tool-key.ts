@@ -18,7 +18,7 @@ export class LtiToolKey extends Model<InferAttributes<LtiToolKey>, InferCreation
   static initModel(sequelize: Sequelize) {
     LtiToolKey.init(
       {
-        id: col.id, kid: col.str(100), publicJwk: col.text(), privateKeyPem: col.text(),
+        id: col.id, kid: { ...col.str(100), unique: true }, publicJwk: col.text(), privateKeyPem: col.text(),
         status: { ...col.str(20), defaultValue: 'active' }, retiredAt: col.date(),
         createdAt: col.date(false), updatedAt: col.date(false),
       },

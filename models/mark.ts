@@ -23,7 +23,10 @@ export class Mark extends Model<InferAttributes<Mark>, InferCreationAttributes<M
         proposed: col.float(), awarded: col.float(), comment: col.text(true), markerId: col.fk(true),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'Mark', tableName: 'marks' },
+      {
+        sequelize, modelName: 'Mark', tableName: 'marks',
+        indexes: [{ unique: true, fields: ['submissionId', 'itemKey'] }, { name: 'marks_submission_updated', fields: ['submissionId', 'updatedAt'] }],
+      },
     );
   }
 }

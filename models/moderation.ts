@@ -20,7 +20,10 @@ export class Moderation extends Model<InferAttributes<Moderation>, InferCreation
         totalBefore: col.float(), totalAfter: col.float(), note: col.text(true),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'Moderation', tableName: 'moderations' },
+      {
+        sequelize, modelName: 'Moderation', tableName: 'moderations',
+        indexes: [{ name: 'moderations_statistics_covering', fields: ['submissionId', 'markerId', 'decision', 'updatedAt'] }],
+      },
     );
   }
 }

@@ -15,7 +15,7 @@ export class OneTimeToken extends Model<InferAttributes<OneTimeToken>, InferCrea
   static initModel(sequelize: Sequelize) {
     OneTimeToken.init(
       {
-        id: col.id, userId: col.fk(), purpose: col.str(20), tokenHash: col.str(64), expiresAt: col.date(false), usedAt: col.date(),
+        id: col.id, userId: col.fk(), purpose: col.str(20), tokenHash: { ...col.str(64), unique: true }, expiresAt: col.date(false), usedAt: col.date(),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
       { sequelize, modelName: 'OneTimeToken', tableName: 'one_time_tokens' },

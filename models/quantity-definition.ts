@@ -26,7 +26,7 @@ export class QuantityDefinition extends Model<InferAttributes<QuantityDefinition
         referenceKind: { ...col.str(20), defaultValue: 'literature' }, referenceValueSI: col.float(), referenceNote: col.text(true),
         position: col.int(0), createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'QuantityDefinition', tableName: 'quantity_definitions' },
+      { sequelize, modelName: 'QuantityDefinition', tableName: 'quantity_definitions', indexes: [{ unique: true, fields: ['practicalId', 'key', 'species'] }] },
     );
   }
 }

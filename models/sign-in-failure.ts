@@ -14,7 +14,7 @@ export class SignInFailure extends Model<InferAttributes<SignInFailure>, InferCr
   static initModel(sequelize: Sequelize) {
     SignInFailure.init(
       {
-        id: col.id, subject: col.str(300), failures: col.int(0), firstFailureAt: col.date(false), blockedUntil: col.date(),
+        id: col.id, subject: { ...col.str(300), unique: true }, failures: col.int(0), firstFailureAt: col.date(false), blockedUntil: col.date(),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
       { sequelize, modelName: 'SignInFailure', tableName: 'sign_in_failures' },

@@ -12,7 +12,10 @@ export class SlipFinding extends Model<InferAttributes<SlipFinding>, InferCreati
   static initModel(sequelize: Sequelize) {
     SlipFinding.init(
       { id: col.id, submissionId: col.fk(), key: col.str(40), code: col.str(60), createdAt: col.date(false), updatedAt: col.date(false) },
-      { sequelize, modelName: 'SlipFinding', tableName: 'slip_findings' },
+      {
+        sequelize, modelName: 'SlipFinding', tableName: 'slip_findings',
+        indexes: [{ fields: ['code'] }, { fields: ['submissionId'] }, { name: 'slip_findings_statistics_covering', fields: ['submissionId', 'code', 'key'] }],
+      },
     );
   }
 }

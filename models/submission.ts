@@ -53,7 +53,17 @@ export class Submission extends Model<InferAttributes<Submission>, InferCreation
         resubmissionMessage: col.text(true), markerComment: col.text(true), version: col.int(0),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'Submission', tableName: 'submissions' },
+      {
+        sequelize, modelName: 'Submission', tableName: 'submissions',
+        indexes: [
+          { unique: true, fields: ['practicalId', 'studentId', 'attempt'] },
+          { fields: ['cohortId', 'status'] },
+          { fields: ['lineListHash'] },
+          // Cohort statistics (migrations/20261201000700-statistics-indexes.cjs).
+          { name: 'submissions_statistics_scope', fields: ['practicalId', 'isMarkedAttempt', 'cohortId', 'status', 'submittedAt', 'studentId'] },
+          { name: 'submissions_practical_cohort_updated', fields: ['practicalId', 'cohortId', 'updatedAt'] },
+        ],
+      },
     );
   }
 }

@@ -21,7 +21,7 @@ export class SubmittedValue extends Model<InferAttributes<SubmittedValue>, Infer
         unit: { ...col.str(40), defaultValue: '' }, uncertaintyText: col.str(60, true), valueSI: col.float(),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'SubmittedValue', tableName: 'submitted_values' },
+      { sequelize, modelName: 'SubmittedValue', tableName: 'submitted_values', indexes: [{ unique: true, fields: ['submissionId', 'key', 'species'] }] },
     );
   }
 }

@@ -27,7 +27,7 @@ export class ToleranceBand extends Model<InferAttributes<ToleranceBand>, InferCr
         inner: col.float(false), outer: col.float(), unit: col.str(40, true), updatedById: col.fk(true),
         createdAt: col.date(false), updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'ToleranceBand', tableName: 'tolerance_bands' },
+      { sequelize, modelName: 'ToleranceBand', tableName: 'tolerance_bands', indexes: [{ unique: true, fields: ['quantityDefinitionId', 'cohortId', 'basis'] }] },
     );
   }
 }

@@ -17,7 +17,7 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
     User.init(
       {
         id: col.id,
-        email: col.str(254),
+        email: { ...col.str(254), unique: true },
         name: col.str(200),
         passwordHash: col.str(100, true),
         isAdmin: col.bool(false),

@@ -1,7 +1,7 @@
 /**
  * HTTP load benchmark (issue 8, item 9): `npx tsx scripts/bench-http.ts [seconds=5]`.
  *
- * Needs a production build (`npx next build`; with NEXT_DIST_DIR set, that folder is used). It
+ * Needs a production build (`npm run build`; with NEXT_DIST_DIR set, that folder is used). It
  * makes a fresh temporary database (migrated and seeded with the Northmere demo), starts
  * `next start` on a free port, signs in as demo users through next-auth's own credentials flow,
  * and drives with autocannon at 20 and 100 connections:
@@ -141,7 +141,7 @@ async function signIn(base: string, email: string): Promise<string> {
 
 async function main() {
   if (!fs.existsSync(path.join(distDir, 'BUILD_ID'))) {
-    console.error(`No production build in ${distDir}/. Run \`${process.env.NEXT_DIST_DIR ? `NEXT_DIST_DIR=${distDir} ` : ''}npx next build\` first.`);
+    console.error(`No production build in ${distDir}/. Run \`${process.env.NEXT_DIST_DIR ? `NEXT_DIST_DIR=${distDir} ` : ''}npm run build\` first.`);
     process.exit(2);
   }
   const port = await freePort();

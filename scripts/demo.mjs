@@ -10,6 +10,14 @@ import { createRequire } from 'node:module';
 const require = createRequire(import.meta.url);
 const { DEMO_PASSWORD } = require('../seeders/data/demo-cast.cjs');
 
+// The demo seeds through tsx and catches mail with maildev, both development dependencies.
+for (const tool of ['tsx', 'maildev']) {
+  if (!fs.existsSync(path.join('node_modules', tool, 'package.json'))) {
+    console.error(`The demo needs ${tool}, a development dependency: run \`npm install\` (a production install, \`npm ci --omit=dev\`, leaves it out).`);
+    process.exit(1);
+  }
+}
+
 const run = (cmd, args, env = {}) => {
   const r = spawnSync(cmd, args, { stdio: 'inherit', env: { ...process.env, ...env } });
   if (r.status !== 0) process.exit(r.status ?? 1);
@@ -34,7 +42,7 @@ console.log('\n▸ Seeding the demo (Northmere University, a fictional universit
 run('npm', ['run', '--silent', 'db:seed'], env);
 if (process.env.SKIP_BUILD !== '1') {
   console.log('\n▸ Building the app');
-  run('npx', ['next', 'build'], env);
+  run('npm', ['run', '--silent', 'build'], env);
 }
 
 /** The seeded practical the stand-in's first item opens (placed as deep linking would have placed it). */

@@ -14,5 +14,7 @@ export LTI_DEMO_PLATFORM_URL=http://127.0.0.1:${E2E_PLATFORM_PORT}
 export NEXT_TELEMETRY_DISABLED=1
 npx sequelize-cli db:migrate > /dev/null
 npm run --silent db:seed > /dev/null
-npx next build > "${E2E_DIR}/build.log" 2>&1 || { tail -50 "${E2E_DIR}/build.log"; exit 1; }
+npm run --silent build > "${E2E_DIR}/build.log" 2>&1 || { tail -50 "${E2E_DIR}/build.log"; exit 1; }
+# First-load JS per route; fails when what every page loads is over the budget (scripts/size.mjs).
+node scripts/size.mjs
 npx playwright test "$@"

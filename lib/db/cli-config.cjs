@@ -2,6 +2,13 @@
 const path = require('path');
 const fs = require('fs');
 
+// The .env files `next build` and `next start` read (.env.production.local, .env.local,
+// .env.production, .env), read here too, so migrations, seeders, db:recheck and the backup scripts
+// see the same configuration as the app. Variables set in the environment win; tests set their own.
+if (process.env.NODE_ENV !== 'test') {
+  require('@next/env').loadEnvConfig(process.cwd(), false, { info: () => {}, error: console.error });
+}
+
 function settings() {
   const url = process.env.DATABASE_URL;
   if (url && !url.startsWith('sqlite:')) {

@@ -1,3 +1,4 @@
+import './jitless';
 import { z } from 'zod';
 
 /** The sign-in form's schema: the form and the server validate with the same rules. */

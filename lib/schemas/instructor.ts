@@ -3,6 +3,7 @@
  * (react-hook-form + zodResolver) and the bodies of the route handlers, so nothing here may
  * import server-only code.
  */
+import './jitless';
 import { z } from 'zod';
 import { QUANTITY_KEYS } from '@/lib/grading/quantities';
 import { parseSpecies } from '@/lib/grading/species';

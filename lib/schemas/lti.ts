@@ -2,6 +2,7 @@
  * Forms of the learning-platform screens (administration and the course's platform page). The
  * same schemas check the forms in the browser and the bodies of the route handlers.
  */
+import './jitless';
 import { z } from 'zod';
 import { isAcceptablePlatformUrl } from '@/lib/lti/config';
 

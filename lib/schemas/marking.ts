@@ -1,4 +1,5 @@
 /** Zod schemas shared by the marking forms and their route handlers (no server-only imports). */
+import './jitless';
 import { z } from 'zod';
 import { multiLine, oneLine } from './text';
 

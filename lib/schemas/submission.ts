@@ -3,6 +3,7 @@
  * Shared by the submission form (react-hook-form + zodResolver) and the route handlers.
  * No server-only imports here.
  */
+import './jitless';
 import { z } from 'zod';
 import { multiLine, oneLine } from './text';
 

@@ -4,6 +4,7 @@
  * (a course title) ends up cutting an e-mail header. Shared by the browser forms and the routes,
  * so nothing here may import server-only code.
  */
+import './jitless';
 import { z } from 'zod';
 
 /** One-line fields: no C0 or C1 controls at all (tabs and line breaks included), no DEL, no Unicode line separators. */

@@ -1,9 +1,10 @@
-// Worker-thread entry for lib/spectrum/worker.ts: reads one uploaded file (sniff, and parse a
-// spectrum) and posts the result back. Plain JavaScript so Node can start it directly; the
-// TypeScript reader is loaded through tsx, which the app ships as a dependency.
-import { parentPort, workerData } from 'node:worker_threads';
-import { tsImport } from 'tsx/esm/api';
-
-const { readUpload } = await tsImport('./read-upload.ts', import.meta.url);
-const { bytes, name, wantSpectrum } = workerData;
-parentPort.postMessage(readUpload(new Uint8Array(bytes), name, wantSpectrum));
+// Development and test entry of the upload reader's worker thread (lib/spectrum/worker.ts): runs
+// upload-worker.ts from source through tsx, a development dependency. A production server runs the
+// compiled copy `npm run build` writes into the build folder instead (scripts/build-worker.mjs).
+let tsImport;
+try {
+  ({ tsImport } = await import('tsx/esm/api'));
+} catch {
+  throw new Error('The upload reader is not compiled and tsx (a development dependency) is not installed: run `npm run build`, which compiles it into the build folder.');
+}
+await tsImport('./upload-worker.ts', import.meta.url);

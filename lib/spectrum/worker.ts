@@ -5,6 +5,7 @@
  * Each file gets a fresh worker (uploads are rare next to other requests, and a worker that was
  * stopped or ran out of memory must not be reused).
  */
+import fs from 'node:fs';
 import path from 'node:path';
 import { Worker } from 'node:worker_threads';
 import type { UploadReading } from './read-upload';
@@ -26,17 +27,27 @@ export function uploadParseLimits(): WorkerLimits {
 export type OffThreadReading = { ok: true; reading: UploadReading } | { ok: false; reason: 'timeout' | 'memory' | 'failed'; message: string };
 
 /**
- * The worker entry lives beside the sources; the app runs from the repository root (next start,
- * tests). The bundler is told to leave the path alone: the worker runs the sources through tsx,
- * not a bundled copy.
+ * Which file the worker runs. Under `next start` (production): the compiled copy `npm run build`
+ * writes into the build folder (scripts/build-worker.mjs), plain JavaScript that starts quickly
+ * and needs no TypeScript loader. Otherwise (next dev, tests, scripts), or when that copy is missing
+ * because the app was built with a bare `next build`: upload-worker.mjs beside the sources, which
+ * runs them through tsx. The app runs from the repository root (next start, tests); the paths are
+ * marked so the bundler leaves them alone.
  */
-const ENTRY = path.join(/* turbopackIgnore: true */ process.cwd(), 'lib', 'spectrum', 'upload-worker.mjs');
+export function uploadWorkerEntry(): string {
+  const root = /* turbopackIgnore: true */ process.cwd();
+  if (process.env.NODE_ENV === 'production') {
+    const compiled = path.resolve(/* turbopackIgnore: true */ root, process.env.NEXT_DIST_DIR || '.next', 'oscillab', 'upload-worker.mjs');
+    if (fs.existsSync(/* turbopackIgnore: true */ compiled)) return compiled;
+  }
+  return path.join(/* turbopackIgnore: true */ root, 'lib', 'spectrum', 'upload-worker.mjs');
+}
 
 export function readUploadOffThread(bytes: Uint8Array, name: string, wantSpectrum: boolean, limits: WorkerLimits = uploadParseLimits()): Promise<OffThreadReading> {
   return new Promise((resolve) => {
     // A copy the worker owns: the caller keeps its bytes (it hashes and stores them afterwards).
     const copy = new Uint8Array(bytes);
-    const worker = new Worker(/* turbopackIgnore: true */ ENTRY, {
+    const worker = new Worker(/* turbopackIgnore: true */ uploadWorkerEntry(), {
       workerData: { bytes: copy, name, wantSpectrum },
       transferList: [copy.buffer as ArrayBuffer],
       resourceLimits: { maxOldGenerationSizeMb: limits.maxMemoryMb, maxYoungGenerationSizeMb: 32, stackSizeMb: 4 },

@@ -512,6 +512,12 @@ const MATRIX: Record<string, Case> = {
       return { url: `/api/lti/scores/${row.id}/resend`, params: { scoreId: String(row.id) } };
     },
   },
+  // Signing out needs no session (signed out already, it just clears the cookie); each caller's
+  // session id is random, so ending it here does not touch the sessions of later calls.
+  'POST /api/me/sign-out': {
+    expect: [303, 303, 303, 303, 303, 303, 303, 303],
+    call: () => ({ url: '/api/me/sign-out', rawBody: '', headers: { 'content-type': 'application/x-www-form-urlencoded' } }),
+  },
   // Kept last: each call ends the caller's sessions (their cookies here carry session version 0), so
   // the versions are put back before every call, and no later case runs with the last one raised.
   'POST /api/me/sign-out-everywhere': {

@@ -138,10 +138,11 @@ describe('resend (item 8)', () => {
 
 describe('informational items (item 11)', () => {
   // Public by design: the learning platform calls login and launch across sites (the signed token and
-  // the browser-bound state are the proof) and fetches Oscillab's public keys.
+  // the browser-bound state are the proof) and fetches Oscillab's public keys; signing out when
+  // already signed out just clears the cookie and goes to sign-in (it looks nothing up).
   const PUBLIC = new Set([
     'GET /api/health', 'POST /api/password-reset', 'POST /api/invitations/accept', 'GET /api/auth/[...nextauth]', 'POST /api/auth/[...nextauth]',
-    'GET /api/lti/jwks', 'GET /api/lti/login', 'POST /api/lti/login', 'POST /api/lti/launch',
+    'GET /api/lti/jwks', 'GET /api/lti/login', 'POST /api/lti/login', 'POST /api/lti/launch', 'POST /api/me/sign-out',
   ]);
 
   it('signed out, every route answers 401 whether or not the id exists (never 404 first)', async () => {
