@@ -15,7 +15,6 @@ import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { draftSchema, type Draft } from '@/lib/schemas/submission';
 import { parseLineList, formatLineListCsv, type LineListIssue } from '@/lib/linelist';
-import { assignPeaks } from '@/lib/grading/assign';
 import type { Dimension } from '@/lib/grading/units';
 import type { StudentAttemptView } from '@/lib/submissions/view';
 import type { PrecheckView } from '@/lib/submissions/precheck';
@@ -133,8 +132,10 @@ export function SubmissionForm(props: Props) {
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, []);
 
-  const propose = (sp: string) => {
+  const propose = async (sp: string) => {
     const lines = getValues(`species.${sp}.lines`) ?? [];
+    // Loaded when asked for: the assignment brings the band fit and its statistics with it.
+    const { assignPeaks } = await import('@/lib/grading/assign');
     const r = assignPeaks(lines.map((l) => l.wavenumber), sp);
     setProposals((m) => ({
       ...m,
@@ -291,7 +292,7 @@ export function SubmissionForm(props: Props) {
                     readLines(s.name, t);
                   }}
                 />
-                <button type="button" className="btn-quiet" onClick={() => propose(s.name)} disabled={lines.length === 0}>Propose assignment</button>
+                <button type="button" className="btn-quiet" onClick={() => void propose(s.name)} disabled={lines.length === 0}>Propose assignment</button>
               </div>
               <div id={`lines-${s.name}-status`} aria-live="polite" className="mt-2 text-sm">
                 <p>{lines.length} line{lines.length === 1 ? '' : 's'} read, {lines.filter((l) => l.branch).length} assigned.</p>

@@ -1,16 +1,24 @@
 /**
- * Proposes a branch and J for each peak of a plain peak list, so a student or TA can check
- * an assignment.
+ * Proposes a branch and J for each peak of a plain peak list (wavenumbers only), so a student or
+ * TA can check an assignment.
  *
- * How: the band gap (the P(1)–R(0) spacing, about twice the line spacing) is found near the
- * reference band centre; its two edges are P(1) and R(0). From there the reference B₀ and B₁
- * predict every line; each peak takes the nearest running number m, the predictions are
- * refitted to the assigned peaks, and the assignment is repeated. With chlorine or bromine the
- * weaker partner isotopologue (H³⁷Cl beside H³⁵Cl) makes close doublets; the member on the
- * expected side of the doublet is kept and the other reported as the partner's.
+ * How: the reference constants of the species predict every line of the fundamental,
+ *   ν̃(m) = ν̃₀ + (B₁+B₀)m + (B₁−B₀)m² − 4Dm³,  m = J+1 for R(J), m = −J for P(J);
+ * the calibration offset of the list (up to `maxOffset`, ±25 cm⁻¹ by default) is found by trying
+ * every offset that puts some peak on some predicted line, and keeping the one under which most
+ * peaks fall on a line and fewest predicted lines inside the list's range find no peak. Lines
+ * numbered one too high or too low fail that test: the band gap (no line at m = 0) and the
+ * curvature of the branches (B₁ ≠ B₀) both move against them. Then the assigned lines are fitted
+ * (fitBandModels), the fit predicts again, and the lines are assigned again. No line is needed at
+ * any particular place: P(1) and R(0) may be missing like any other.
+ *
+ * Doublets of a heavier-atom isotopologue (H³⁷Cl beside H³⁵Cl, ≈ 2 cm⁻¹ apart): each predicted
+ * line takes the peak nearest to it; a peak the partner's prediction (same offset) explains better
+ * is left unassigned and named as the partner's. A lone peak goes to this species when this
+ * species' prediction explains it (the more abundant one, in natural abundance).
  */
-import { fitBand, MAX_LINES, type Branch } from './fit';
-import { bandConstants } from './simulate';
+import { fitBandModels, MAX_LINES, type Branch } from './fit';
+import { bandConstants, type BandConstants } from './simulate';
 import { defaultPartner } from './referenceValues';
 import { parseSpecies, type Species } from './species';
 
@@ -19,7 +27,7 @@ export interface PeakAssignment {
   branch: Branch;
   J: number;
   m: number;
-  /** 1 = on the predicted position, 0 = half a line spacing away. */
+  /** 1 = on the predicted position, 0 = at the edge of the acceptance window. */
   confidence: number;
   /** observed − predicted, cm⁻¹. */
   residual: number;
@@ -29,19 +37,83 @@ export interface AssignmentResult {
   ok: boolean;
   assignments: PeakAssignment[];
   unassigned: { wavenumber: number; reason: string; likelyIsotopologue?: string }[];
-  /** Band centre of the final model, cm⁻¹. */
+  /** Band centre of the final model, cm⁻¹ (as measured: the calibration offset is included). */
   bandCentreEstimate?: number;
+  /** The calibration offset found against the reference constants, cm⁻¹ (reported, not corrected). */
+  offset?: number;
   problems: { field: string; message: string }[];
 }
 
-function median(xs: number[]): number {
-  if (xs.length === 0) return NaN;
-  const s = [...xs].sort((a, b) => a - b);
-  const mid = s.length >> 1;
-  return s.length % 2 ? s[mid] : (s[mid - 1] + s[mid]) / 2;
+export interface AssignOptions {
+  /** Largest calibration offset to look for, cm⁻¹ (default 25). */
+  maxOffset?: number;
 }
 
-export function assignPeaks(peaks: unknown, speciesInput: string | Species): AssignmentResult {
+/** Coefficients of ν̃(m) = c₀ + c₁m + c₂m² + c₃m³. */
+type Polynomial = [number, number, number, number];
+
+const polynomialOf = (k: BandConstants): Polynomial => [k.nu0, k.B1 + k.B0, k.B1 - k.B0, -4 * k.D];
+const positionAt = (c: Polynomial, m: number) => c[0] + c[1] * m + c[2] * m * m + c[3] * m * m * m;
+const spacingAt = (c: Polynomial, m: number) => Math.abs(c[1] + 2 * c[2] * m + 3 * c[3] * m * m);
+const lineOf = (m: number): { branch: Branch; J: number } => (m > 0 ? { branch: 'R', J: m - 1 } : { branch: 'P', J: -m });
+
+interface Predicted {
+  m: number;
+  position: number;
+}
+
+/** The predicted lines from m = −mMax … mMax (no m = 0), in order of position. */
+function predictLines(c: Polynomial, mMax: number): Predicted[] {
+  const out: Predicted[] = [];
+  for (let m = -mMax; m <= mMax; m++) if (m !== 0) out.push({ m, position: positionAt(c, m) });
+  return out.sort((a, b) => a.position - b.position);
+}
+
+/** Index of the predicted line nearest to x (lines sorted by position). */
+function nearest(lines: Predicted[], x: number): number {
+  let lo = 0;
+  let hi = lines.length - 1;
+  while (hi - lo > 1) {
+    const mid = (lo + hi) >> 1;
+    if (lines[mid].position < x) lo = mid;
+    else hi = mid;
+  }
+  return Math.abs(lines[lo].position - x) <= Math.abs(lines[hi].position - x) ? lo : hi;
+}
+
+interface Match {
+  m: number;
+  peak: number;
+  residual: number;
+}
+
+/** Each predicted line takes the nearest peak within its window (a fraction of the local line spacing). */
+function match(peaks: number[], lines: Predicted[], c: Polynomial, offset: number, window: (m: number) => number): Map<number, Match> {
+  const byM = new Map<number, Match>();
+  for (const p of peaks) {
+    const i = nearest(lines, p - offset);
+    const { m, position } = lines[i];
+    const residual = p - offset - position;
+    if (Math.abs(residual) > window(m)) continue;
+    const prev = byM.get(m);
+    if (!prev || Math.abs(residual) < Math.abs(prev.residual)) byM.set(m, { m, peak: p, residual });
+  }
+  return byM;
+}
+
+/** How well an offset explains the list: peaks on lines, less half a point per predicted line in range without a peak. */
+function score(byM: Map<number, Match>, lines: Predicted[], offset: number, lo: number, hi: number): { score: number; sumSquares: number } {
+  let missing = 0;
+  for (const l of lines) {
+    const x = l.position + offset;
+    if (x > lo && x < hi && !byM.has(l.m)) missing++;
+  }
+  let sumSquares = 0;
+  for (const v of byM.values()) sumSquares += v.residual * v.residual;
+  return { score: byM.size - 0.5 * missing, sumSquares };
+}
+
+export function assignPeaks(peaks: unknown, speciesInput: string | Species, options: AssignOptions = {}): AssignmentResult {
   const fail = (message: string, field = 'peaks'): AssignmentResult => ({ ok: false, assignments: [], unassigned: [], problems: [{ field, message }] });
   if (!Array.isArray(peaks)) return fail('The peaks must be a list of wavenumbers in cm⁻¹.');
   if (peaks.length > MAX_LINES) return fail(`${peaks.length} peaks is more than a band has (limit ${MAX_LINES}).`);
@@ -51,116 +123,113 @@ export function assignPeaks(peaks: unknown, speciesInput: string | Species): Ass
   if (!species) return fail('The species is not known.', 'species');
   const sorted = [...new Set(peaks as number[])].sort((a, b) => a - b);
   if (sorted.length < 3) return fail('At least three peaks are needed to find the band.');
-
   const ref = bandConstants(species);
-  const spacingsAll = sorted.slice(1).map((p, i) => p - sorted[i]);
-  const B = ref ? ref.B0 : median(spacingsAll) / 2;
-  const unassigned: AssignmentResult['unassigned'] = [];
+  if (!ref) return fail(`Oscillab has no reference constants for ${species.display}, so it cannot propose an assignment; assign the lines by hand.`, 'species');
 
-  // Isotopic doublets: keep the member on this species' side.
+  const maxOffset = Math.max(0, Math.min(100, options.maxOffset ?? 25));
+  const lo = sorted[0];
+  const hi = sorted[sorted.length - 1];
+  let c = polynomialOf(ref);
+  // Enough lines to cover the list on both sides, whatever the offset.
+  // (and short of the R-branch head, where the lines turn back).
+  const head = c[2] < 0 ? Math.floor((0.8 * c[1]) / (-2 * c[2])) : 150;
+  let mMax = 1;
+  while (mMax < Math.min(150, head) && (positionAt(c, -mMax) + maxOffset > lo - 2 * ref.B0 || positionAt(c, mMax) - maxOffset < hi + 2 * ref.B0)) mMax++;
+  const lines = predictLines(c, mMax);
+  const coarse = (m: number) => 0.2 * spacingAt(c, m);
+
+  // The heavier-atom partner in natural abundance (H³⁷Cl beside H³⁵Cl): its lines, at the same
+  // calibration offset, explain the other member of each doublet.
   const partner = defaultPartner(species);
-  const heavyPartner = partner && partner.atoms.some((a, i) => a.symbol !== 'H' && a.massNumber !== species.atoms[i].massNumber) ? partner : undefined;
-  const lighter = heavyPartner ? species.reducedMassKg < heavyPartner.reducedMassKg : true;
-  const reps: number[] = [];
-  // Doublets are as far apart as the isotope shift (≈ ν̃₀|1 − √(μ/μ′)|, 2 cm⁻¹ for HCl, 0.4 cm⁻¹ for HBr);
-  // merging only that close keeps converging high-J lines apart.
-  const splitting = heavyPartner && ref ? ref.nu0 * Math.abs(1 - Math.sqrt(species.reducedMassKg / heavyPartner.reducedMassKg)) : 0;
-  const clusterGap = heavyPartner ? Math.min(0.35 * 2 * B, 3 * splitting) : 0.1 * 2 * B;
-  for (let i = 0; i < sorted.length; ) {
-    let j = i;
-    while (j + 1 < sorted.length && sorted[j + 1] - sorted[j] < clusterGap) j++;
-    const group = sorted.slice(i, j + 1);
-    const keep = group.length === 1 ? group[0] : lighter ? group[group.length - 1] : group[0];
-    reps.push(keep);
-    for (const g of group) {
-      if (g === keep) continue;
-      unassigned.push(heavyPartner ? { wavenumber: g, reason: `close doublet partner of ${keep.toFixed(2)} cm⁻¹`, likelyIsotopologue: heavyPartner.formula } : { wavenumber: g, reason: `too close to the peak at ${keep.toFixed(2)} cm⁻¹ to be a separate line` });
-    }
-    i = j + 1;
-  }
-  if (reps.length < 3) return fail('After merging close doublets fewer than three peaks are left.');
+  const partnerConstants = partner && partner.atoms.some((a, i) => a.symbol !== 'H' && a.massNumber !== species.atoms[i].massNumber) ? bandConstants(partner) : undefined;
+  const partnerPolynomial = partnerConstants ? polynomialOf(partnerConstants) : undefined;
+  const partnerLines = partnerPolynomial ? predictLines(partnerPolynomial, mMax) : [];
+  const isotopeShift = partnerConstants ? Math.abs(partnerConstants.nu0 - ref.nu0) : 0;
+  const partnerWindow = (m: number) => Math.min(0.1 * spacingAt(c, m), 0.4 * isotopeShift);
+  /** Peaks the partner explains at this offset, among those this species' lines did not take. */
+  const partnerMatches = (byM: Map<number, Match>, offset: number) => {
+    if (!partnerPolynomial) return 0;
+    const taken = new Set([...byM.values()].map((v) => v.peak));
+    return match(sorted.filter((p) => !taken.has(p)), partnerLines, partnerPolynomial, offset, partnerWindow).size;
+  };
 
-  // The band gap: a spacing about twice its neighbours', nearest the reference band centre.
-  const s = reps.slice(1).map((p, i) => p - reps[i]);
-  let gapIndex = -1;
-  let bestScore = Infinity;
-  for (let i = 0; i < s.length; i++) {
-    const neighbours = [s[i - 1], s[i + 1]].filter((x): x is number => x !== undefined);
-    const local = neighbours.length ? median(neighbours) : median(s);
-    if (!(s[i] > 1.5 * local) || s[i] < 2.5 * B) continue;
-    const mid = (reps[i] + reps[i + 1]) / 2;
-    const score = ref ? Math.abs(mid - ref.nu0) : -s[i] / local;
-    if (ref && Math.abs(mid - ref.nu0) > 8 * B) continue;
-    if (score < bestScore) {
-      bestScore = score;
-      gapIndex = i;
+  // Every offset that puts a peak on a line, within ±maxOffset; the best explains most of the list.
+  let best: { offset: number; score: number; sumSquares: number } | undefined;
+  const tried = new Set<number>();
+  for (const p of sorted) {
+    for (const l of lines) {
+      const offset = p - l.position;
+      if (Math.abs(offset) > maxOffset) continue;
+      const key = Math.round(offset * 20);
+      if (tried.has(key)) continue;
+      tried.add(key);
+      const byM = match(sorted, lines, c, offset, coarse);
+      const s = score(byM, lines, offset, lo, hi);
+      // The partner's lines count half: they confirm the offset, but are not this species' band.
+      s.score += 0.5 * partnerMatches(byM, offset);
+      if (!best || s.score > best.score || (s.score === best.score && s.sumSquares < best.sumSquares)) best = { offset, ...s };
     }
   }
-  let B0 = ref?.B0 ?? B;
-  let B1 = ref?.B1 ?? B;
-  let a: number;
-  if (gapIndex >= 0) a = (reps[gapIndex] + 2 * B0 + (reps[gapIndex + 1] - 2 * B1)) / 2;
-  else if (ref) a = ref.nu0;
-  else return fail('No band gap was found and the species has no reference band centre.');
-  let coef = [a, B1 + B0, B1 - B0, -4 * (ref?.D ?? 0)];
-  const predict = (m: number) => coef[0] + coef[1] * m + coef[2] * m * m + coef[3] * m * m * m;
-
-  let chosen = new Map<number, number>(); // m → peak
-  for (let iter = 0; iter < 4; iter++) {
-    const byM = new Map<number, { peak: number; resid: number }>();
-    for (const p of reps) {
-      // Start from the root of the quadratic nearest the linear guess, then look at neighbours.
-      const lin = (p - coef[0]) / coef[1];
-      let guess = lin;
-      if (coef[2] !== 0) {
-        const disc = coef[1] * coef[1] - 4 * coef[2] * (coef[0] - p);
-        if (disc >= 0) {
-          const r1 = (-coef[1] + Math.sqrt(disc)) / (2 * coef[2]);
-          const r2 = (-coef[1] - Math.sqrt(disc)) / (2 * coef[2]);
-          guess = Math.abs(r1 - lin) < Math.abs(r2 - lin) ? r1 : r2;
-        }
-      }
-      let m0 = Math.round(guess);
-      let best = { m: 0, r: Infinity };
-      for (let m = m0 - 4; m <= m0 + 4; m++) {
-        if (m === 0) continue;
-        const r = p - predict(m);
-        if (Math.abs(r) < Math.abs(best.r)) best = { m, r };
-      }
-      m0 = best.m;
-      const prev = byM.get(m0);
-      if (!prev || Math.abs(best.r) < Math.abs(prev.resid)) byM.set(m0, { peak: p, resid: best.r });
-    }
-    chosen = new Map([...byM].map(([m, v]) => [m, v.peak]));
-    const lines = [...chosen].map(([m, wn]) => ({ branch: (m > 0 ? 'R' : 'P') as Branch, J: m > 0 ? m - 1 : -m, wavenumber: wn }));
-    const spacing = (m: number) => Math.abs(coef[1] + 2 * coef[2] * m);
-    const good = lines.filter((l) => Math.abs(l.wavenumber - predict(l.branch === 'R' ? l.J + 1 : -l.J)) < 0.3 * spacing(l.branch === 'R' ? l.J + 1 : -l.J));
-    const f = fitBand(good, { centrifugal: good.length >= 12 });
-    if (!f.ok) break;
-    coef = [f.coefficients[0], f.coefficients[1], f.coefficients[2], f.coefficients[3] ?? coef[3]];
-    B0 = f.B0.value;
-    B1 = f.B1.value;
+  if (!best || best.score < 3) {
+    return fail(`No ${species.display} band was found among these peaks: the reference constants put it near ${Math.round(ref.nu0)} cm⁻¹ (within ±${maxOffset} cm⁻¹ of calibration), and fewer than three peaks fall on its lines there.`);
   }
 
+  /** This species' matches, less the peaks its partner's line (at the same calibration) explains better. */
+  const ownMatches = (poly: Polynomial, predicted: Predicted[], shift: number, calibration: number, window: (m: number) => number) => {
+    const byM = match(sorted, predicted, poly, shift, window);
+    if (!partnerPolynomial) return byM;
+    for (const [m, v] of byM) {
+      const j = nearest(partnerLines, v.peak - calibration);
+      if (Math.abs(v.peak - calibration - partnerLines[j].position) < Math.abs(v.residual) / 2) byM.delete(m);
+    }
+    return byM;
+  };
+
+  // Refine: fit the assigned lines, predict again from the fit, assign again with a tighter window.
+  let offset = best.offset;
+  let byM = ownMatches(c, lines, offset, offset, coarse);
+  let rms = Infinity;
+  for (let iteration = 0; iteration < 3; iteration++) {
+    const assigned = [...byM.values()].map((v) => ({ ...lineOf(v.m), wavenumber: v.peak }));
+    const fitted = assigned.length >= 4 ? fitBandModels(assigned) : undefined;
+    if (!fitted || !fitted.ok) break;
+    const k = fitted.fit.coefficients;
+    c = [k[0], k[1], k[2], k[3] ?? c[3]];
+    offset = 0;
+    rms = fitted.fit.rms;
+    const floor = rms;
+    const refined = predictLines(c, mMax);
+    byM = ownMatches(c, refined, 0, c[0] - ref.nu0, (m) => Math.max(0.05 * spacingAt(c, m), 4 * floor, 0.05) + (iteration === 0 ? 0.1 * spacingAt(c, m) : 0));
+  }
+
+  // What is left: the partner isotopologue's lines (same offset), or nothing of this band.
+  const calibration = c[0] + offset - ref.nu0; // the list's offset against the reference, carried to the partner
+  const partnerOffset = calibration;
   const assignments: PeakAssignment[] = [];
   const used = new Set<number>();
-  for (const [m, wn] of chosen) {
-    const resid = wn - predict(m);
-    const spacing = Math.abs(coef[1] + 2 * coef[2] * m) || 2 * B;
-    if (Math.abs(resid) > 0.3 * spacing) continue;
-    used.add(wn);
-    assignments.push({
-      wavenumber: wn,
-      branch: m > 0 ? 'R' : 'P',
-      J: m > 0 ? m - 1 : -m,
-      m,
-      confidence: Math.round(Math.max(0, 1 - Math.abs(resid) / (0.5 * spacing)) * 100) / 100,
-      residual: resid,
-    });
+  for (const v of byM.values()) {
+    const predicted = positionAt(c, v.m) + offset;
+    const residual = v.peak - predicted;
+    const window = Math.max(0.05 * spacingAt(c, v.m), 4 * (Number.isFinite(rms) ? rms : 0), 0.05) + 0.1 * spacingAt(c, v.m);
+    used.add(v.peak);
+    assignments.push({ wavenumber: v.peak, ...lineOf(v.m), m: v.m, confidence: Math.round(Math.max(0, 1 - Math.abs(residual) / window) * 100) / 100, residual });
   }
-  for (const p of reps) if (!used.has(p)) unassigned.push({ wavenumber: p, reason: 'no line of this band is predicted here' });
+  const unassigned: AssignmentResult['unassigned'] = [];
+  for (const p of sorted) {
+    if (used.has(p)) continue;
+    if (partnerLines.length && partner) {
+      const j = nearest(partnerLines, p - partnerOffset);
+      const m = partnerLines[j].m;
+      if (Math.abs(p - partnerOffset - partnerLines[j].position) < 0.2 * spacingAt(partnerPolynomial!, m)) {
+        const l = lineOf(m);
+        unassigned.push({ wavenumber: p, reason: `the ${partner.display} line ${l.branch}(${l.J}) of the same band`, likelyIsotopologue: partner.formula });
+        continue;
+      }
+    }
+    unassigned.push({ wavenumber: p, reason: `no line of the ${species.display} fundamental is predicted here` });
+  }
   assignments.sort((x, y) => x.wavenumber - y.wavenumber);
-  unassigned.sort((x, y) => x.wavenumber - y.wavenumber);
-  void B1;
-  return { ok: assignments.length > 0, assignments, unassigned, bandCentreEstimate: coef[0], problems: [] };
+  const problems: AssignmentResult['problems'] = [];
+  if (assignments.length < 3) problems.push({ field: 'peaks', message: `Only ${assignments.length} peaks could be assigned to the ${species.display} band.` });
+  return { ok: assignments.length >= 3, assignments, unassigned, bandCentreEstimate: c[0] + offset, offset: calibration, problems };
 }
