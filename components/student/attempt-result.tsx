@@ -1,6 +1,6 @@
 import type { StudentAttemptView, StudentQuantityView } from '@/lib/submissions/view';
 import { VerdictTag } from './verdict';
-import { speciesDisplay } from '@/lib/grading';
+import { speciesDisplay } from '@/lib/grading/species';
 
 function SlipNote({ s }: { s: StudentQuantityView['slips'][number] }) {
   if (s.explainedWith) {
