@@ -22,8 +22,9 @@ import { POST as submitRoute } from '@/app/api/submissions/[id]/submit/route';
 import { PUT as saveMarksRoute } from '@/app/api/marking/[submissionId]/route';
 import { POST as releaseRoute } from '@/app/api/release/route';
 
-const SMTP = 1725;
-const WEB = 1780;
+// A catcher of this file's own, beside the suite's; moved with the suite's ports so two checkouts' runs cannot collide.
+const SMTP = Number(process.env.OSCILLAB_TEST_SMTP_PORT ?? 1125) + 600;
+const WEB = Number(process.env.OSCILLAB_TEST_WEB_PORT ?? 1180) + 600;
 let catcher: Catcher;
 let w: World;
 

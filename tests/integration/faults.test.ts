@@ -28,8 +28,9 @@ import { PUT as saveDraftRoute } from '@/app/api/submissions/draft/route';
 import { POST as submitRoute } from '@/app/api/submissions/[id]/submit/route';
 import { PUT as saveMarksRoute } from '@/app/api/marking/[submissionId]/route';
 
-const SMTP = 1725;
-const WEB = 1780;
+// A catcher of this file's own, beside the suite's; moved with the suite's ports so two checkouts' runs cannot collide.
+const SMTP = Number(process.env.OSCILLAB_TEST_SMTP_PORT ?? 1125) + 600;
+const WEB = Number(process.env.OSCILLAB_TEST_WEB_PORT ?? 1180) + 600;
 let catcher: Catcher | null = null;
 let w: World;
 const children = new Set<ChildProcess>();
