@@ -21,11 +21,14 @@ import { EmailOutbox } from './email-outbox';
 import { AuditEntry } from './audit-entry';
 import { OneTimeToken } from './one-time-token';
 import { SignInFailure } from './sign-in-failure';
+import { StatisticsGroup, StatisticsQuantity, StatisticsMarker, StatisticsSlip, StatisticsSlipCode, StatisticsSubmission, StatisticsValue, StatisticsSlipFinding } from './statistics';
+import { keepStatisticsHooks } from '@/lib/statistics/keep-hooks';
 
 const all = {
   User, Course, Cohort, CourseMembership, TaAssignment, Practical, PracticalCohort, QuantityDefinition,
   ToleranceBand, Submission, SubmittedValue, LineAssignment, Upload, CheckResult, SlipFinding, Mark,
   Moderation, FeedbackDocument, EmailOutbox, AuditEntry, OneTimeToken, SignInFailure,
+  StatisticsGroup, StatisticsQuantity, StatisticsMarker, StatisticsSlip, StatisticsSlipCode, StatisticsSubmission, StatisticsValue, StatisticsSlipFinding,
 };
 
 let boundTo: unknown = null;
@@ -66,6 +69,8 @@ export function models() {
   Submission.hasMany(FeedbackDocument, { foreignKey: 'submissionId' });
   Submission.hasMany(EmailOutbox, { foreignKey: 'submissionId' });
   Moderation.belongsTo(Submission, { foreignKey: 'submissionId' });
+  // The kept statistics follow every change made through these models (lib/statistics/keep.ts).
+  keepStatisticsHooks(all as never);
 
   boundTo = s;
   return all;
