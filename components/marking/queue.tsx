@@ -8,8 +8,9 @@ import type { QueueRow } from '@/lib/marking/queue';
 import { QUEUE_FLAGS, QUEUE_STATUSES, QUEUE_SORTS } from '@/lib/schemas/marking';
 import { fetcher, send } from './fetcher';
 
-type Page = { rows: QueueRow[]; total: number; page: number; pageSize: number; pages: number };
-type Filters = { practicalId: string; cohortId: string; status: string; flag: string; sort: string; dir: string; page: number };
+type Page = { rows: QueueRow[]; total: number; page: number; pageSize: number; pages: number; next: string | null; prev: string | null };
+/** page is shown only; the server pages by the cursor (after / before a row). */
+type Filters = { practicalId: string; cohortId: string; status: string; flag: string; sort: string; dir: string; page: number; after?: string; before?: string };
 
 const FLAG_LABEL: Record<string, string> = { outside: 'Outside tolerance', slip: 'Named slip', late: 'Late', duplicate: 'Duplicate data', spectrum: 'Spectrum mismatch' };
 const STATUS_LABEL: Record<string, string> = { submitted: 'Submitted', marked: 'Marked', released: 'Released', 'resubmission-requested': 'Resubmission requested' };
@@ -33,7 +34,7 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
   const { data, error, isLoading, mutate } = useSWR<Page>(`/api/marking/queue?${query}`, fetcher, { keepPreviousData: true });
   const rows = useMemo(() => data?.rows ?? [], [data]);
   const set = (patch: Partial<Filters>) => {
-    setF((old) => ({ ...old, page: 1, ...patch }));
+    setF((old) => ({ ...old, page: 1, after: undefined, before: undefined, ...patch }));
     setCursor(0);
   };
 
@@ -232,9 +233,9 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
 
       {data && data.pages > 1 && (
         <nav className="mt-3 flex items-center gap-2" aria-label="Pages">
-          <button type="button" className="btn-quiet" disabled={f.page <= 1} onClick={() => setF((o) => ({ ...o, page: o.page - 1 }))}>Previous page</button>
+          <button type="button" className="btn-quiet" disabled={!data.prev} onClick={() => setF((o) => ({ ...o, page: Math.max(1, o.page - 1), before: data.prev ?? undefined, after: undefined }))}>Previous page</button>
           <span className="text-sm">Page {data.page} of {data.pages}</span>
-          <button type="button" className="btn-quiet" disabled={f.page >= data.pages} onClick={() => setF((o) => ({ ...o, page: o.page + 1 }))}>Next page</button>
+          <button type="button" className="btn-quiet" disabled={!data.next} onClick={() => setF((o) => ({ ...o, page: o.page + 1, after: data.next ?? undefined, before: undefined }))}>Next page</button>
         </nav>
       )}
     </div>

@@ -205,7 +205,7 @@ describe('kept statistics', () => {
             status: 'marked', draft: null, submittedAt: new Date(), isMarkedAttempt: true, checkSummary: null, lineListHash: null, proposedTotal: 5, awardedTotal: 7, maxTotal: 12,
             markedById: world.people.otherTa.id, markedAt: new Date(), releasedAt: null, resubmissionMessage: null,
           });
-          await CheckResult.bulkCreate(['consistency', 'accuracy'].map((basis) => ({ submissionId: twin.id, key: 'forceConstant', species: 'H35Cl', basis, reportedSI: 1, expectedSI: 1, deviation: 0, relativeDeviation: (r() - 0.5) / 50, verdict: 'partial', slipCodes: '' })));
+          await CheckResult.bulkCreate((['consistency', 'accuracy'] as const).map((basis) => ({ submissionId: twin.id, key: 'forceConstant', species: 'H35Cl', basis, reportedSI: 1, expectedSI: 1, deviation: 0, relativeDeviation: (r() - 0.5) / 50, verdict: 'partial', slipCodes: '' })));
           break;
         }
         case 'moderate':
