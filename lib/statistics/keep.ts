@@ -385,14 +385,26 @@ function cellFilter(keys: Iterable<string>, sep = SEP) {
   return { practicals: [...practicals], cohorts: [...cohorts] };
 }
 
+/**
+ * Multi-row INSERT with positional parameters, so doubles reach the database bit for bit (SQLite's
+ * own text-to-double parsing is off by an ulp now and then). On SQLite the statement goes straight
+ * to the transaction's connection: Sequelize binds by name, and SQLite looks every name up in a
+ * list, which made a 500-row insert quadratic.
+ */
 async function insertRows(table: string, columns: string[], rows: unknown[][], t: Transaction, conflict?: { keys: string[]; update: string[] }) {
+  const sqlite = !isPostgres();
   const per = Math.max(1, Math.floor(30000 / columns.length));
   for (const part of chunks(rows, Math.min(per, CHUNK))) {
-    const bind: unknown[] = [];
-    const tuples = part.map((r) => `(${r.map((v) => { bind.push(v); return `$${bind.length}`; }).join(', ')})`);
+    const params: unknown[] = [];
+    const tuples = part.map((r) => `(${r.map((v) => { params.push(v); return sqlite ? '?' : `$${params.length}`; }).join(', ')})`);
     let sql = `INSERT INTO ${table} (${columns.map((c) => `"${c}"`).join(', ')}) VALUES ${tuples.join(', ')}`;
     if (conflict) sql += ` ON CONFLICT (${conflict.keys.map((c) => `"${c}"`).join(', ')}) DO UPDATE SET ${conflict.update.map((c) => `"${c}" = excluded."${c}"`).join(', ')}`;
-    await run(sql, { bind, transaction: t });
+    if (sqlite) {
+      const connection = (t as unknown as { connection: { run: (sql: string, params: unknown[], cb: (err: Error | null) => void) => void } }).connection;
+      await new Promise<void>((resolve, reject) => connection.run(sql, params.map((v) => (typeof v === 'boolean' ? (v ? 1 : 0) : v)), (err) => (err ? reject(err) : resolve())));
+    } else {
+      await run(sql, { bind: params, transaction: t });
+    }
   }
 }
 
