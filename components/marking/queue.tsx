@@ -135,7 +135,34 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
   const release = async () => {
     const ids = [...selected];
     setMessage(`Releasing ${ids.length} submission(s)…`);
-    const r = await send<{ released: number; results: { submissionId: number; ok: boolean; message?: string }[] }>('/api/release', 'POST', { submissionIds: ids });
+    type Summary = { released: number; results: { submissionId: number; ok: boolean; message?: string }[]; error?: string };
+    let r: { ok: boolean; body: Summary };
+    try {
+      // The server reports each release as it happens (one JSON line each), then the summary.
+      const res = await fetch('/api/release', { method: 'POST', headers: { 'content-type': 'application/json', accept: 'application/x-ndjson' }, body: JSON.stringify({ submissionIds: ids }) });
+      if (!res.ok || !res.body || !(res.headers.get('content-type') ?? '').includes('ndjson')) {
+        r = { ok: res.ok, body: await res.json().catch(() => ({ error: `Request failed (${res.status})` })) };
+      } else {
+        const reader = res.body.pipeThrough(new TextDecoderStream()).getReader();
+        let buffered = '';
+        let last: Summary = { released: 0, results: [], error: 'The release stopped before it finished; reload to see what was released.' };
+        for (;;) {
+          const { value, done } = await reader.read();
+          if (done) break;
+          buffered += value;
+          const lines = buffered.split('\n');
+          buffered = lines.pop() ?? '';
+          for (const l of lines.filter(Boolean)) {
+            const m = JSON.parse(l);
+            if (typeof m.done === 'number') setMessage(`Releasing… ${m.done} of ${m.total} done.`);
+            else last = m;
+          }
+        }
+        r = { ok: !last.error, body: last };
+      }
+    } catch {
+      r = { ok: false, body: { released: 0, results: [], error: 'The connection was lost; reload to see what was released.' } };
+    }
     if (!r.ok) setMessage(`Release refused: ${r.body.error}`);
     else {
       const failed = r.body.results.filter((x) => !x.ok);

@@ -7,17 +7,37 @@ export function smtpUrl(): string {
 
 export const MAIL_FROM = () => process.env.MAIL_FROM || 'Oscillab <no-reply@oscillab.invalid>';
 
+/** How many SMTP connections the pool keeps open at most (SMTP_POOL_SIZE, default 4). */
+export function smtpPoolSize(): number {
+  const n = Math.floor(Number(process.env.SMTP_POOL_SIZE ?? 4));
+  return Number.isFinite(n) && n >= 1 ? Math.min(n, 32) : 4;
+}
+
 let cached: { url: string; transporter: Transporter } | null = null;
 
+/**
+ * One pooled transport per process: messages go over a few kept-open connections instead of a
+ * new connection (and greeting) each, and several can be under way at once.
+ */
 export function transporter(): Transporter {
   const url = smtpUrl();
   if (!cached || cached.url !== url) {
+    cached?.transporter.close();
     cached = {
       url,
-      transporter: nodemailer.createTransport(url, { connectionTimeout: 5000, greetingTimeout: 5000, socketTimeout: 10000 }),
+      transporter: nodemailer.createTransport(url, {
+        pool: true, maxConnections: smtpPoolSize(), maxMessages: 500,
+        connectionTimeout: 5000, greetingTimeout: 5000, socketTimeout: 10000,
+      } as Parameters<typeof nodemailer.createTransport>[1]),
     };
   }
   return cached.transporter;
+}
+
+/** Close the pooled connections (scripts and tests that end the process cleanly). */
+export function closeTransport(): void {
+  cached?.transporter.close();
+  cached = null;
 }
 
 export type MailMessage = {

@@ -3,6 +3,10 @@
  * submission released and queue the e-mail that carries the PDF. If anything fails the
  * transaction rolls back and the file is removed, so a release is all or nothing; the outbox
  * then delivers at most once per dedupe key.
+ *
+ * A batch is a pipeline: the next submissions are read while earlier PDFs render on the worker
+ * threads (lib/pdf/pool.ts) and finished ones are committed one transaction each, in the order
+ * their PDFs come back. Progress is reported per submission.
  */
 import crypto from 'node:crypto';
 import fs from 'node:fs/promises';
@@ -12,7 +16,7 @@ import { HttpError } from '@/lib/http';
 import { queueEmail } from '@/lib/mail/outbox';
 import { feedbackPath } from '@/lib/storage';
 import { renderEmail } from '@/lib/templates';
-import { buildFeedbackPdf } from '@/lib/pdf/feedback';
+import { pdfWorkerCount, renderFeedbackPdf } from '@/lib/pdf/pool';
 import { models } from '@/models';
 import { loadMarkingView } from './view';
 import { feedbackInputFromView } from './feedback-input';
@@ -23,11 +27,12 @@ export function appUrl(): string {
 
 export type ReleaseOutcome = { submissionId: number; ok: boolean; message?: string; feedbackDocumentId?: number };
 
-export async function releaseOne(actorId: number, submissionId: number): Promise<ReleaseOutcome> {
-  const view = await loadMarkingView(submissionId);
-  if (view.submission.status === 'released') return { submissionId, ok: false, message: 'Already released.' };
-  if (view.submission.status !== 'marked') return { submissionId, ok: false, message: 'Only marked submissions can be released: finish marking first.' };
-  const pdf = await buildFeedbackPdf(feedbackInputFromView(view));
+/** Where the time of a release went (ms, summed over submissions; wall is the whole batch). */
+export type ReleaseTimings = { load: number; render: number; commit: number; wall: number };
+
+type Loaded = Awaited<ReturnType<typeof loadMarkingView>>;
+
+async function commitRelease(actorId: number, submissionId: number, view: Loaded, pdf: Uint8Array): Promise<ReleaseOutcome> {
   const storedName = `${crypto.randomBytes(16).toString('hex')}.pdf`;
   const file = feedbackPath(storedName);
   const { Submission, FeedbackDocument } = models();
@@ -70,8 +75,49 @@ export async function releaseOne(actorId: number, submissionId: number): Promise
   }
 }
 
-export async function releaseMany(actorId: number, submissionIds: number[]): Promise<ReleaseOutcome[]> {
-  const out: ReleaseOutcome[] = [];
-  for (const id of [...new Set(submissionIds)]) out.push(await releaseOne(actorId, id));
+async function releaseWith(actorId: number, submissionId: number, batchSize: number, timings?: ReleaseTimings): Promise<ReleaseOutcome> {
+  let t0 = performance.now();
+  const view = await loadMarkingView(submissionId);
+  if (timings) timings.load += performance.now() - t0;
+  if (view.submission.status === 'released') return { submissionId, ok: false, message: 'Already released.' };
+  if (view.submission.status !== 'marked') return { submissionId, ok: false, message: 'Only marked submissions can be released: finish marking first.' };
+  t0 = performance.now();
+  const pdf = await renderFeedbackPdf(feedbackInputFromView(view), batchSize);
+  if (timings) timings.render += performance.now() - t0;
+  t0 = performance.now();
+  const outcome = await commitRelease(actorId, submissionId, view, pdf);
+  if (timings) timings.commit += performance.now() - t0;
+  return outcome;
+}
+
+export async function releaseOne(actorId: number, submissionId: number): Promise<ReleaseOutcome> {
+  return releaseWith(actorId, submissionId, 1);
+}
+
+/**
+ * Release a batch. Several submissions are under way at once (as many as there are PDF threads,
+ * twice over); outcomes come back in the order asked. onProgress is called after each one.
+ */
+export async function releaseMany(
+  actorId: number,
+  submissionIds: number[],
+  options: { onProgress?: (done: number, total: number, outcome: ReleaseOutcome) => void; timings?: ReleaseTimings } = {},
+): Promise<ReleaseOutcome[]> {
+  const ids = [...new Set(submissionIds)];
+  const wall = performance.now();
+  const out: ReleaseOutcome[] = new Array(ids.length);
+  const lanes = Math.max(1, Math.min(ids.length, 2 * Math.max(1, pdfWorkerCount())));
+  let next = 0;
+  let done = 0;
+  await Promise.all(
+    Array.from({ length: lanes }, async () => {
+      while (next < ids.length) {
+        const i = next++;
+        out[i] = await releaseWith(actorId, ids[i], ids.length, options.timings);
+        options.onProgress?.(++done, ids.length, out[i]);
+      }
+    }),
+  );
+  if (options.timings) options.timings.wall += performance.now() - wall;
   return out;
 }
