@@ -77,6 +77,8 @@ export interface Contribution {
 }
 
 const COUNTED = `s.status <> 'draft' AND s."submittedAt" IS NOT NULL AND s."isMarkedAttempt" = :yes`;
+/** The same test as COUNTED, on a row read back (definitions.ts: not a draft, submitted, the marked attempt). */
+const counted = (r: Row) => r.status !== 'draft' && r.submittedAt !== null && r.submittedAt !== undefined && bool(r.isMarkedAttempt);
 
 const scalarSignature = (c: Contribution) =>
   JSON.stringify([c.practicalId, c.cohortId, c.studentId, c.spans, c.late, c.marked, c.released, c.markedById, c.markPercent, c.differencePercent, c.overrides, c.moderations]);
@@ -97,16 +99,19 @@ const pairKey = (p: Pair) => `${p.practicalId}|${p.studentId}`;
 async function currentContributions(pairs: Pair[], t: Transaction): Promise<Contribution[]> {
   if (!pairs.length) return [];
   const wanted = new Set(pairs.map(pairKey));
+  // All the students' attempts, found through the (practical, student, attempt) index, and the
+  // counted ones picked here: asking SQL for them invites the statistics index, which would read
+  // every counted submission of the practical to find a student's few.
   const subs = (
     await sel(
-      `SELECT s.id, s."practicalId", s."cohortId", s."studentId", s.status, s."daysLate", s."releasedAt",
+      `SELECT s.id, s."practicalId", s."cohortId", s."studentId", s.status, s."submittedAt", s."isMarkedAttempt", s."daysLate", s."releasedAt",
               s."awardedTotal", s."proposedTotal", s."maxTotal", s."markedById"
        FROM submissions s
-       WHERE s."studentId" IN (:students) AND s."practicalId" IN (:practicals) AND ${COUNTED}`,
+       WHERE s."studentId" IN (:students) AND s."practicalId" IN (:practicals)`,
       { students: [...new Set(pairs.map((p) => p.studentId))], practicals: [...new Set(pairs.map((p) => p.practicalId))] },
       t,
     )
-  ).filter((r) => wanted.has(`${r.practicalId}|${r.studentId}`));
+  ).filter((r) => wanted.has(`${r.practicalId}|${r.studentId}`) && counted(r));
   if (!subs.length) return [];
   const ids = subs.map((r) => Number(r.id));
   const [values, slips, overrides, moderations] = await Promise.all([
