@@ -8,7 +8,7 @@ import type { QueueRow } from '@/lib/marking/queue';
 import { QUEUE_FLAGS, QUEUE_STATUSES, QUEUE_SORTS } from '@/lib/schemas/marking';
 import { fetcher, send } from './fetcher';
 
-type Page = { rows: QueueRow[]; total: number; page: number; pageSize: number; pages: number; next: string | null; prev: string | null };
+type Page = { rows: QueueRow[]; total: number; totalExact: boolean; page: number; pageSize: number; pages: number; next: string | null; prev: string | null };
 /** page is shown only; the server pages by the cursor (after / before a row). */
 type Filters = { practicalId: string; cohortId: string; status: string; flag: string; sort: string; dir: string; page: number; after?: string; before?: string };
 
@@ -225,7 +225,7 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
         <button type="button" className="btn-quiet" onClick={() => setSelected(new Set(rows.filter((r) => r.status === 'marked').map((r) => r.id)))}>
           Select all marked on this page
         </button>
-        <p className="text-sm text-ink-soft" aria-live="polite" role="status">{isLoading ? 'Loading…' : data ? `${data.total} submission(s)` : ''}</p>
+        <p className="text-sm text-ink-soft" aria-live="polite" role="status">{isLoading ? 'Loading…' : data ? `${data.total.toLocaleString('en-GB')}${data.totalExact ? '' : ' or more'} submission(s)` : ''}</p>
       </div>
       <p className="mb-3 text-sm" aria-live="polite" role="status" data-testid="queue-message">{message}</p>
       {error && <p className="error-text" role="alert">{String(error.message ?? error)}</p>}
@@ -258,10 +258,10 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
         </table>
       </div>
 
-      {data && data.pages > 1 && (
+      {data && (data.pages > 1 || data.next || data.prev) && (
         <nav className="mt-3 flex items-center gap-2" aria-label="Pages">
           <button type="button" className="btn-quiet" disabled={!data.prev} onClick={() => setF((o) => ({ ...o, page: Math.max(1, o.page - 1), before: data.prev ?? undefined, after: undefined }))}>Previous page</button>
-          <span className="text-sm">Page {data.page} of {data.pages}</span>
+          <span className="text-sm">Page {data.page}{data.totalExact ? ` of ${data.pages}` : ''}</span>
           <button type="button" className="btn-quiet" disabled={!data.next} onClick={() => setF((o) => ({ ...o, page: o.page + 1, after: data.next ?? undefined, before: undefined }))}>Next page</button>
         </nav>
       )}

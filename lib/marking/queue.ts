@@ -67,7 +67,9 @@ export type QueueRow = {
 
 export type QueuePage = {
   rows: QueueRow[];
+  /** Matching submissions, counted up to COUNT_LIMIT (totalExact false beyond: "10,000 or more"). */
   total: number;
+  totalExact: boolean;
   page: number;
   pageSize: number;
   pages: number;
@@ -75,6 +77,8 @@ export type QueuePage = {
   next: string | null;
   prev: string | null;
 };
+
+export const COUNT_LIMIT = 10_000;
 
 const SORT_COLUMN: Record<QueueQuery['sort'], string> = {
   submittedAt: 's."submittedAt"',
@@ -107,23 +111,24 @@ function decodeCursor(text: string): { value: unknown; id: number } {
 }
 
 /**
- * Rows strictly after (value, id) in the order (col asc|desc, id asc|desc), NULL sorting as the
- * greatest value (last ascending, first descending) on every database.
+ * Rows strictly after (value, id) in the order (col asc|desc, id asc|desc). NULL sorts where the
+ * database's own index puts it — smallest on SQLite, largest on PostgreSQL — so ORDER BY needs no
+ * NULLS FIRST/LAST and an index in the sort column's order serves it (SQLite cannot use an index
+ * for NULLS LAST, and would sort every row of the queue).
  */
-function keysetAfter(col: string, ascending: boolean, idAscending: boolean, value: unknown, replacements: Record<string, unknown>): string {
+function keysetAfter(col: string, ascending: boolean, idAscending: boolean, value: unknown, nullsLargest: boolean, replacements: Record<string, unknown>): string {
   replacements.kv = value;
-  replacements.ki = replacements.ki ?? 0;
   const idCmp = `s.id ${idAscending ? '>' : '<'} :ki`;
-  if (value === null) return ascending ? `(${col} IS NULL AND ${idCmp})` : `(${col} IS NOT NULL OR (${col} IS NULL AND ${idCmp}))`;
-  return ascending
-    ? `(${col} > :kv OR ${col} IS NULL OR (${col} = :kv AND ${idCmp}))`
-    : `(${col} < :kv OR (${col} = :kv AND ${idCmp}))`;
+  const nullsAfter = ascending === nullsLargest; // in this direction, do NULLs come after every value?
+  if (value === null) return nullsAfter ? `(${col} IS NULL AND ${idCmp})` : `(${col} IS NOT NULL OR (${col} IS NULL AND ${idCmp}))`;
+  const beyond = `${col} ${ascending ? '>' : '<'} :kv`;
+  return nullsAfter ? `(${beyond} OR ${col} IS NULL OR (${col} = :kv AND ${idCmp}))` : `(${beyond} OR (${col} = :kv AND ${idCmp}))`;
 }
 
 const slipTitle = (code: string) => (SLIPS as Record<string, { title: string } | undefined>)[code]?.title ?? code;
 
 export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage> {
-  const empty: QueuePage = { rows: [], total: 0, page: 1, pageSize: q.pageSize, pages: 0, next: null, prev: null };
+  const empty: QueuePage = { rows: [], total: 0, totalExact: true, page: 1, pageSize: q.pageSize, pages: 0, next: null, prev: null };
   const cells = await markingCells(actor);
   if (!cells) return empty;
   const replacements: Record<string, unknown> = { yes: true };
@@ -154,6 +159,7 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage>
   if (q.flag) where.push(`s."${FLAG_COLUMN[q.flag]}" = :yes`);
 
   const col = SORT_COLUMN[q.sort];
+  const nullsLargest = sequelize().getDialect() === 'postgres';
   const ascending = q.dir !== 'desc';
   const backwards = Boolean(q.before && !q.after);
   const cursor = q.after ?? q.before;
@@ -162,10 +168,10 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage>
     const { value, id } = decodeCursor(cursor);
     replacements.ki = id;
     // Before a row: the rows after it in the reversed order, read in that order and turned round.
-    page.push(keysetAfter(col, backwards ? !ascending : ascending, !backwards, value, replacements));
+    page.push(keysetAfter(col, backwards ? !ascending : ascending, !backwards, value, nullsLargest, replacements));
   }
   const orderAsc = backwards ? !ascending : ascending;
-  const order = `${col} ${orderAsc ? 'ASC NULLS LAST' : 'DESC NULLS FIRST'}, s.id ${backwards ? 'DESC' : 'ASC'}`;
+  const order = `${col} ${orderAsc ? 'ASC' : 'DESC'}, s.id ${backwards ? 'DESC' : 'ASC'}`;
   const offset = !cursor && q.page > 1 ? (q.page - 1) * q.pageSize : 0;
   const needsUser = q.sort === 'student';
   const needsPractical = q.sort === 'practical';
@@ -182,9 +188,15 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage>
        LIMIT ${q.pageSize + 1}${offset ? ` OFFSET ${offset}` : ''}`,
       { replacements, type: QueryTypes.SELECT },
     ),
-    sequelize().query<{ n: number }>(`SELECT COUNT(*) AS n FROM submissions s WHERE ${where.join(' AND ')}`, { replacements, type: QueryTypes.SELECT }),
+    // Counting stops at the limit: keyset pages need no total, and a department-wide queue would
+    // otherwise pay for reading every matching row on every page.
+    sequelize().query<{ n: number }>(
+      `SELECT COUNT(*) AS n FROM (SELECT 1 AS one FROM submissions s WHERE ${where.join(' AND ')} LIMIT ${COUNT_LIMIT + 1}) c`,
+      { replacements, type: QueryTypes.SELECT },
+    ),
   ]);
-  const total = Number(counted[0]?.n ?? 0);
+  const totalExact = Number(counted[0]?.n ?? 0) <= COUNT_LIMIT;
+  const total = Math.min(COUNT_LIMIT, Number(counted[0]?.n ?? 0));
   const more = rows.length > q.pageSize;
   const pageRows = rows.slice(0, q.pageSize);
   if (backwards) pageRows.reverse();
@@ -245,6 +257,7 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage>
   return {
     rows: out,
     total,
+    totalExact,
     page: atStart ? 1 : pageNumber,
     pageSize: q.pageSize,
     pages: Math.ceil(total / q.pageSize),

@@ -747,9 +747,16 @@ const KEPT_TABLES = [
  * tables, in one transaction. Call after changing rows behind the models' back, e.g. a bulk
  * re-check done with raw SQL or a restored backup. Writers wait while it runs.
  */
-export async function rebuildStatistics(options: { practicalIds?: number[]; onProgress?: (done: number, total: number) => void } = {}): Promise<{ students: number; submissions: number }> {
+export async function rebuildStatistics(
+  options: { practicalIds?: number[]; onProgress?: (done: number, total: number) => void; onlyIfStale?: boolean } = {},
+): Promise<{ students: number; submissions: number; skipped?: true }> {
   return sequelize().transaction(async (t) => {
     if (isPostgres()) await sel('SELECT pg_advisory_xact_lock(40210, 0) AS ok', {}, t);
+    if (options.onlyIfStale) {
+      // Another instance may have built them while this one waited for the lock.
+      const [meta] = await sel<{ keptVersion: number }>('SELECT "keptVersion" FROM statistics_meta WHERE id = 1', {}, t);
+      if (meta && Number(meta.keptVersion) >= KEPT_VERSION) return { students: 0, submissions: 0, skipped: true as const };
+    }
     const only = options.practicalIds;
     for (const table of KEPT_TABLES) {
       if (only) {
@@ -784,8 +791,8 @@ export function ensureKeptStatistics(): Promise<void> {
     const rows = await sel<{ keptVersion: number }>('SELECT "keptVersion" FROM statistics_meta WHERE id = 1', {});
     if (rows.length && Number(rows[0].keptVersion) >= KEPT_VERSION) return;
     console.log('[oscillab] building the kept statistics from the check results…');
-    const r = await rebuildStatistics();
-    console.log(`[oscillab] kept statistics built: ${r.submissions} submissions of ${r.students} students`);
+    const r = await rebuildStatistics({ onlyIfStale: true });
+    if (!r.skipped) console.log(`[oscillab] kept statistics built: ${r.submissions} submissions of ${r.students} students`);
   })().catch((error) => {
     keptChecked = null;
     throw error;

@@ -51,7 +51,7 @@ describe('queue', () => {
     expect(inst.pages).toBe(2);
   });
 
-  it('pages by cursor (keyset) forwards and back in every sort, NULLs last ascending; rows carry the kept verdict counts and slip names', async () => {
+  it('pages by cursor (keyset) forwards and back in every sort, NULLs included; rows carry the kept verdict counts and slip names', async () => {
     const get = async (query: string) => (await queueGET(await apiRequest(`/api/marking/queue?${query}`, { as: w.people.instructor.id }), {})).json();
     for (const sort of ['submittedAt', 'student', 'practical', 'status', 'proposedTotal', 'awardedTotal']) {
       for (const dir of ['asc', 'desc']) {
