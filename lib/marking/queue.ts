@@ -173,16 +173,15 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage>
   const orderAsc = backwards ? !ascending : ascending;
   const order = `${col} ${orderAsc ? 'ASC' : 'DESC'}, s.id ${backwards ? 'DESC' : 'ASC'}`;
   const offset = !cursor && q.page > 1 ? (q.page - 1) * q.pageSize : 0;
-  const needsUser = q.sort === 'student';
-  const needsPractical = q.sort === 'practical';
 
   const [rows, counted] = await Promise.all([
     sequelize().query<Record<string, unknown>>(
       `SELECT s.id, s.status, s.attempt, s."submittedAt", s."proposedTotal", s."awardedTotal", s."maxTotal", s.version,
               s."flagOutside", s."flagSlip", s."flagLate", s."flagDuplicate", s."flagSpectrumMismatch",
               s."verdictsWithin", s."verdictsPartial", s."verdictsOutside", s."verdictsNotChecked", s."slipCodes",
-              s."studentId", s."practicalId", s."cohortId"${needsUser ? ', u.name AS "studentName"' : ''}${needsPractical ? ', p.title AS "practicalTitle"' : ''}
-       FROM submissions s${needsUser ? ' JOIN users u ON u.id = s."studentId"' : ''}${needsPractical ? ' JOIN practicals p ON p.id = s."practicalId"' : ''}
+              s."studentId", s."practicalId", s."cohortId", u.name AS "studentName", u."studentNumber" AS "studentNumber",
+              p.title AS "practicalTitle", c.name AS "cohortName", c.term AS "cohortTerm"
+       FROM submissions s JOIN users u ON u.id = s."studentId" JOIN practicals p ON p.id = s."practicalId" JOIN cohorts c ON c.id = s."cohortId"
        WHERE ${page.join(' AND ')}
        ORDER BY ${order}
        LIMIT ${q.pageSize + 1}${offset ? ` OFFSET ${offset}` : ''}`,
@@ -201,21 +200,12 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage>
   const pageRows = rows.slice(0, q.pageSize);
   if (backwards) pageRows.reverse();
 
-  // Names for the page's rows only: a few primary-key reads.
-  const { User, Practical, Cohort, EmailOutbox } = models();
+  // The e-mail state of the page's rows only.
+  const { EmailOutbox } = models();
   const ids = pageRows.map((r) => Number(r.id));
-  const uniq = (k: string) => [...new Set(pageRows.map((r) => Number(r[k])))];
-  const [users, practicals, cohorts, mail] = ids.length
-    ? await Promise.all([
-        User.findAll({ where: { id: uniq('studentId') }, attributes: ['id', 'name', 'studentNumber'], raw: true }),
-        Practical.findAll({ where: { id: uniq('practicalId') }, attributes: ['id', 'title'], raw: true }),
-        Cohort.findAll({ where: { id: uniq('cohortId') }, attributes: ['id', 'name', 'term'], raw: true }),
-        EmailOutbox.findAll({ where: { submissionId: ids, dedupeKey: { [Op.like]: 'release:%' } }, attributes: ['submissionId', 'status', 'id'], order: [['id', 'ASC']], raw: true }),
-      ])
-    : [[], [], [], []];
-  const userById = new Map(users.map((u) => [u.id, u]));
-  const practicalById = new Map(practicals.map((p) => [p.id, p]));
-  const cohortById = new Map(cohorts.map((c) => [c.id, c]));
+  const mail = ids.length
+    ? await EmailOutbox.findAll({ where: { submissionId: ids, dedupeKey: { [Op.like]: 'release:%' } }, attributes: ['submissionId', 'status', 'id'], order: [['id', 'ASC']], raw: true })
+    : [];
   const lastRelease = new Map<number, string>();
   for (const m of mail) if (m.submissionId) lastRelease.set(m.submissionId, m.status);
 
@@ -223,15 +213,12 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage>
   const numOrNull = (v: unknown) => (v === null || v === undefined ? null : Number(v));
   const out: QueueRow[] = pageRows.map((r) => {
     const id = Number(r.id);
-    const student = userById.get(Number(r.studentId));
-    const practical = practicalById.get(Number(r.practicalId));
-    const cohort = cohortById.get(Number(r.cohortId));
     const submittedAt = r.submittedAt === null || r.submittedAt === undefined ? null : new Date(r.submittedAt instanceof Date ? r.submittedAt : String(r.submittedAt).replace(' ', 'T').replace(' ', ''));
     return {
       id,
-      student: { id: Number(r.studentId), name: student?.name ?? '', studentNumber: student?.studentNumber ?? null },
-      practical: { id: Number(r.practicalId), title: practical?.title ?? '' },
-      cohort: { id: Number(r.cohortId), name: cohort ? `${cohort.name}, ${cohort.term}` : '' },
+      student: { id: Number(r.studentId), name: String(r.studentName), studentNumber: r.studentNumber === null || r.studentNumber === undefined ? null : String(r.studentNumber) },
+      practical: { id: Number(r.practicalId), title: String(r.practicalTitle) },
+      cohort: { id: Number(r.cohortId), name: `${r.cohortName}, ${r.cohortTerm}` },
       status: String(r.status),
       attempt: Number(r.attempt),
       submittedAt: submittedAt && !Number.isNaN(submittedAt.getTime()) ? submittedAt.toISOString() : null,
