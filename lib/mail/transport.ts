@@ -13,6 +13,14 @@ export function smtpPoolSize(): number {
   return Number.isFinite(n) && n >= 1 ? Math.min(n, 32) : 4;
 }
 
+/** The URL with these parameters added, unless the URL sets them itself. */
+function withParameters(url: string, parameters: Record<string, string>): string {
+  const [head, query = ''] = url.split('?');
+  const q = new URLSearchParams(query);
+  for (const [k, v] of Object.entries(parameters)) if (!q.has(k)) q.set(k, v);
+  return `${head}?${q.toString()}`;
+}
+
 let cached: { url: string; transporter: Transporter } | null = null;
 
 /**
@@ -25,10 +33,12 @@ export function transporter(): Transporter {
     cached?.transporter.close();
     cached = {
       url,
-      transporter: nodemailer.createTransport(url, {
-        pool: true, maxConnections: smtpPoolSize(), maxMessages: 500,
-        connectionTimeout: 5000, greetingTimeout: 5000, socketTimeout: 10000,
-      } as Parameters<typeof nodemailer.createTransport>[1]),
+      // Pool and time limits as URL parameters: nodemailer reads a connection URL for the whole
+      // configuration (options passed beside it are taken as message defaults, or dropped).
+      transporter: nodemailer.createTransport(withParameters(url, {
+        pool: 'true', maxConnections: String(smtpPoolSize()), maxMessages: '500',
+        connectionTimeout: '5000', greetingTimeout: '5000', socketTimeout: '10000',
+      })),
     };
   }
   return cached.transporter;
