@@ -95,8 +95,9 @@ export async function releaseOne(actorId: number, submissionId: number): Promise
 }
 
 /**
- * Release a batch. Several submissions are under way at once (as many as there are PDF threads,
- * twice over); outcomes come back in the order asked. onProgress is called after each one.
+ * Release a batch. Several submissions are under way at once (four per PDF thread, so a thread
+ * never waits for the reads and commits of this thread); outcomes come back in the order asked.
+ * onProgress is called after each one.
  */
 export async function releaseMany(
   actorId: number,
@@ -106,7 +107,7 @@ export async function releaseMany(
   const ids = [...new Set(submissionIds)];
   const wall = performance.now();
   const out: ReleaseOutcome[] = new Array(ids.length);
-  const lanes = Math.max(1, Math.min(ids.length, 2 * Math.max(1, pdfWorkerCount())));
+  const lanes = Math.max(1, Math.min(ids.length, 4 * Math.max(1, pdfWorkerCount())));
   let next = 0;
   let done = 0;
   await Promise.all(
