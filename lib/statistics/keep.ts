@@ -114,18 +114,17 @@ async function currentContributions(pairs: Pair[], t: Transaction): Promise<Cont
   ).filter((r) => wanted.has(`${r.practicalId}|${r.studentId}`) && counted(r));
   if (!subs.length) return [];
   const ids = subs.map((r) => Number(r.id));
-  const [values, slips, overrides, moderations] = await Promise.all([
-    sel(`SELECT "submissionId", key, species, basis, verdict, "relativeDeviation" FROM check_results WHERE "submissionId" IN (:ids)`, { ids }, t),
-    sel(`SELECT "submissionId", key, code FROM slip_findings WHERE "submissionId" IN (:ids)`, { ids }, t),
-    sel(
-      `SELECT "submissionId", COUNT(*) AS n FROM marks
-       WHERE "submissionId" IN (:ids) AND awarded IS NOT NULL AND proposed IS NOT NULL AND ABS(awarded - proposed) > 0.000001
-       GROUP BY "submissionId"`,
-      { ids },
-      t,
-    ),
-    sel(`SELECT "submissionId", "markerId", decision FROM moderations WHERE "submissionId" IN (:ids) AND "markerId" IS NOT NULL`, { ids }, t),
-  ]);
+  // One after another: a transaction has one connection (pg would queue them anyway).
+  const values = await sel(`SELECT "submissionId", key, species, basis, verdict, "relativeDeviation" FROM check_results WHERE "submissionId" IN (:ids)`, { ids }, t);
+  const slips = await sel(`SELECT "submissionId", key, code FROM slip_findings WHERE "submissionId" IN (:ids)`, { ids }, t);
+  const overrides = await sel(
+    `SELECT "submissionId", COUNT(*) AS n FROM marks
+     WHERE "submissionId" IN (:ids) AND awarded IS NOT NULL AND proposed IS NOT NULL AND ABS(awarded - proposed) > 0.000001
+     GROUP BY "submissionId"`,
+    { ids },
+    t,
+  );
+  const moderations = await sel(`SELECT "submissionId", "markerId", decision FROM moderations WHERE "submissionId" IN (:ids) AND "markerId" IS NOT NULL`, { ids }, t);
   const by = <T extends Row>(rows: T[]) => {
     const m = new Map<number, T[]>();
     for (const r of rows) {
@@ -189,10 +188,8 @@ async function appliedContributions(pairs: Pair[], t: Transaction): Promise<Cont
   ).filter((r) => wanted.has(`${r.practicalId}|${r.studentId}`));
   if (!subs.length) return [];
   const ids = subs.map((r) => Number(r.submissionId));
-  const [values, slips] = await Promise.all([
-    sel(`SELECT "submissionId", key, species, basis, verdict, x, bin FROM statistics_values WHERE "submissionId" IN (:ids)`, { ids }, t),
-    sel(`SELECT "submissionId", key, code FROM statistics_slip_findings WHERE "submissionId" IN (:ids)`, { ids }, t),
-  ]);
+  const values = await sel(`SELECT "submissionId", key, species, basis, verdict, x, bin FROM statistics_values WHERE "submissionId" IN (:ids)`, { ids }, t);
+  const slips = await sel(`SELECT "submissionId", key, code FROM statistics_slip_findings WHERE "submissionId" IN (:ids)`, { ids }, t);
   const valuesBy = new Map<number, ValueRow[]>();
   for (const v of values) {
     const k = Number(v.submissionId);
