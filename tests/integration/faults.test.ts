@@ -174,7 +174,7 @@ describe('the app process killed mid-release', () => {
     for (const d of docs) expect(fs.existsSync(path.join(feedbackDir(), d.storedName))).toBe(true);
 
     // 2. The batch is released again (what the marker does after the crash), now with an SMTP
-    // relay that passes two connections and then hangs; killed while the third message is being sent.
+    // relay that passes two messages and then hangs; killed while the third is being sent.
     const relay = await stallingRelay(SMTP, 2);
     const second = spawnReleaseChild(ids, `smtp://127.0.0.1:${relay.port}`);
     await Promise.race([relay.stalled, second.exited.then(() => { throw new Error(`child ended before delivery stalled:\n${second.output()}`); })]);
