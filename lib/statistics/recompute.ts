@@ -1,7 +1,7 @@
 /**
  * The cohort statistics recomputed from scratch, straight from the source tables — the reference
- * the kept statistics (queries.ts over keep.ts) are tested against, and what `npm run
- * stats:rebuild -- --check` compares with. The pages do not use it.
+ * the kept statistics (queries.ts over keep.ts) are tested against (statistics-kept.test.ts) and
+ * that bench:stats checks them with at every size. The pages do not use it.
  *
  * Computed in the database with portable SQL (SQLite ≥ 3.25 and PostgreSQL):
  * COUNT / SUM / AVG / MIN / MAX with GROUP BY, histogram buckets with CASE, quartiles from
