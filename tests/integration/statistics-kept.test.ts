@@ -242,4 +242,20 @@ describe('kept statistics', () => {
     await compareWithRecomputation();
     await expectKeptEqualsRebuilt();
   });
+
+  it('stay equal when many changes to one practical commit at the same time (on PostgreSQL, in parallel transactions)', async () => {
+    const { Submission, Mark } = models();
+    const subs = await Submission.findAll({ where: { practicalId: practicalA, isMarkedAttempt: true, attempt: { [Op.gt]: 0 } }, order: [['id', 'ASC']], limit: 24 });
+    await Promise.all(
+      subs.map(async (s, i) => {
+        if (i % 3 === 0) return checkStoredSubmission(s.id);
+        return sequelize().transaction(async (t) => {
+          await Mark.update({ awarded: (i % 4) / 2 }, { where: { submissionId: s.id }, transaction: t });
+          await Submission.update({ status: i % 2 ? 'released' : 'marked', releasedAt: i % 2 ? new Date() : null, markedById: world.people.ta.id, awardedTotal: i % 12 }, { where: { id: s.id }, transaction: t });
+        });
+      }),
+    );
+    await compareWithRecomputation();
+    await expectKeptEqualsRebuilt();
+  });
 });
