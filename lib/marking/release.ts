@@ -94,6 +94,11 @@ export async function releaseOne(actorId: number, submissionId: number): Promise
   return releaseWith(actorId, submissionId, 1);
 }
 
+/** How many releases of a batch are under way at once (each may be inside its own transaction). */
+export function releaseLanes(): number {
+  return 4 * Math.max(1, pdfWorkerCount());
+}
+
 /**
  * Release a batch. Several submissions are under way at once (four per PDF thread, so a thread
  * never waits for the reads and commits of this thread); outcomes come back in the order asked.
@@ -107,7 +112,7 @@ export async function releaseMany(
   const ids = [...new Set(submissionIds)];
   const wall = performance.now();
   const out: ReleaseOutcome[] = new Array(ids.length);
-  const lanes = Math.max(1, Math.min(ids.length, 4 * Math.max(1, pdfWorkerCount())));
+  const lanes = Math.min(ids.length, releaseLanes());
   let next = 0;
   let done = 0;
   await Promise.all(
