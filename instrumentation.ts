@@ -1,4 +1,8 @@
-/** Runs once when the server starts: forwarding headers are guarded (lib/client-address.ts), the outbox workers resume any mail and scores left queued, and files left without a row are swept. */
+/**
+ * Runs once when the server starts: forwarding headers are guarded (lib/client-address.ts), the
+ * outbox workers resume any mail and scores left queued, files left without a row are swept, and
+ * the kept statistics are built if a migration asked for it.
+ */
 export async function register() {
   if (process.env.NEXT_RUNTIME !== 'nodejs') return;
   // First: forwarding headers a client wrote itself are dropped before any request is handled.
@@ -8,6 +12,9 @@ export async function register() {
     const { startStorageSweeper } = await import('./lib/storage-sweep');
     startStorageSweeper();
   }
+  // Build the kept statistics now if a migration left them to be built, not on the first page view.
+  const { ensureKeptStatistics } = await import('./lib/statistics/keep');
+  ensureKeptStatistics().catch((error) => console.error('[oscillab] kept statistics', error));
   if (process.env.OUTBOX_WORKER === 'off') return;
   const { startOutboxWorker } = await import('./lib/mail/outbox');
   startOutboxWorker(Number(process.env.OUTBOX_INTERVAL_MS || 3000));

@@ -31,6 +31,8 @@ import { LtiLineItem } from './lti-line-item';
 import { LtiUserLink } from './lti-user-link';
 import { LtiLaunchState } from './lti-launch-state';
 import { LtiScoreOutbox } from './lti-score-outbox';
+import { StatisticsGroup, StatisticsQuantity, StatisticsMarker, StatisticsSlip, StatisticsSlipCode, StatisticsSubmission, StatisticsValue, StatisticsSlipFinding, StatisticsMeta } from './statistics';
+import { keepStatisticsHooks } from '@/lib/statistics/keep-hooks';
 
 const all = {
   User, Course, Cohort, CourseMembership, TaAssignment, Practical, PracticalCohort, QuantityDefinition,
@@ -38,6 +40,8 @@ const all = {
   Moderation, FeedbackDocument, EmailOutbox, AuditEntry, OneTimeToken, SignInFailure, EndedSession,
   // The learning-platform connection (lib/lti/).
   LtiToolKey, LtiRegistration, LtiDeployment, LtiContext, LtiResourceLink, LtiLineItem, LtiUserLink, LtiLaunchState, LtiScoreOutbox,
+  // Kept statistics (lib/statistics/keep.ts).
+  StatisticsGroup, StatisticsQuantity, StatisticsMarker, StatisticsSlip, StatisticsSlipCode, StatisticsSubmission, StatisticsValue, StatisticsSlipFinding, StatisticsMeta,
 };
 
 let boundTo: unknown = null;
@@ -78,6 +82,8 @@ export function models() {
   Submission.hasMany(FeedbackDocument, { foreignKey: 'submissionId' });
   Submission.hasMany(EmailOutbox, { foreignKey: 'submissionId' });
   Moderation.belongsTo(Submission, { foreignKey: 'submissionId' });
+  // The kept statistics follow every change made through these models (lib/statistics/keep.ts).
+  keepStatisticsHooks(all as never);
 
   boundTo = s;
   return all;

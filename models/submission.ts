@@ -35,6 +35,13 @@ export class Submission extends Model<InferAttributes<Submission>, InferCreation
   declare resubmissionMessage: string | null;
   /** The marker's overall comment, printed in the feedback (migration 20261201000600). */
   declare markerComment: CreationOptional<string | null>;
+  /** What the queue shows, kept when the submission is checked (migration 20261202200100): verdict counts over its check results… */
+  declare verdictsWithin: CreationOptional<number>;
+  declare verdictsPartial: CreationOptional<number>;
+  declare verdictsOutside: CreationOptional<number>;
+  declare verdictsNotChecked: CreationOptional<number>;
+  /** …and the codes of its named slips, comma-separated. */
+  declare slipCodes: CreationOptional<string>;
   /** Optimistic-lock counter: a save names the version it started from. */
   declare version: CreationOptional<number>;
   declare createdAt: CreationOptional<Date>;
@@ -51,6 +58,8 @@ export class Submission extends Model<InferAttributes<Submission>, InferCreation
         proposedTotal: col.float(), awardedTotal: col.float(), maxTotal: col.float(),
         markedById: col.fk(true), markedAt: col.date(), releasedAt: col.date(), extraAttempts: col.int(0),
         resubmissionMessage: col.text(true), markerComment: col.text(true), version: col.int(0),
+        verdictsWithin: col.int(0), verdictsPartial: col.int(0), verdictsOutside: col.int(0), verdictsNotChecked: col.int(0),
+        slipCodes: { ...col.str(400), defaultValue: '' },
         createdAt: col.date(false), updatedAt: col.date(false),
       },
       {
@@ -61,6 +70,9 @@ export class Submission extends Model<InferAttributes<Submission>, InferCreation
           { fields: ['lineListHash'] },
           // Cohort statistics (migrations/20261201000700-statistics-indexes.cjs).
           { name: 'submissions_statistics_scope', fields: ['practicalId', 'isMarkedAttempt', 'cohortId', 'status', 'submittedAt', 'studentId'] },
+          // The marking queue's filters and keyset pages (migrations/20261202200100-queue-summary.cjs).
+          { name: 'submissions_queue_practical', fields: ['practicalId', 'isMarkedAttempt', 'submittedAt', 'id'] },
+          { name: 'submissions_queue_cohort', fields: ['cohortId', 'isMarkedAttempt', 'submittedAt', 'id'] },
           { name: 'submissions_practical_cohort_updated', fields: ['practicalId', 'cohortId', 'updatedAt'] },
         ],
       },

@@ -9,8 +9,9 @@ import { QUEUE_FLAGS, QUEUE_STATUSES, QUEUE_SORTS } from '@/lib/schemas/marking'
 import { ConfirmDialog } from '@/components/ui/confirm-dialog';
 import { fetcher, send } from './fetcher';
 
-type Page = { rows: QueueRow[]; total: number; page: number; pageSize: number; pages: number };
-type Filters = { practicalId: string; cohortId: string; status: string; flag: string; sort: string; dir: string; page: number };
+type Page = { rows: QueueRow[]; total: number; totalExact: boolean; page: number; pageSize: number; pages: number; next: string | null; prev: string | null };
+/** page is shown only; the server pages by the cursor (after / before a row). */
+type Filters = { practicalId: string; cohortId: string; status: string; flag: string; sort: string; dir: string; page: number; after?: string; before?: string };
 
 const FLAG_LABEL: Record<string, string> = { outside: 'Outside tolerance', slip: 'Named slip', late: 'Late', duplicate: 'Duplicate data', spectrum: 'Spectrum mismatch' };
 const STATUS_LABEL: Record<string, string> = { submitted: 'Submitted', marked: 'Marked', released: 'Released', 'resubmission-requested': 'Resubmission requested' };
@@ -36,7 +37,7 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
   const { data, error, isLoading, mutate } = useSWR<Page>(`/api/marking/queue?${query}`, fetcher, { keepPreviousData: true });
   const rows = useMemo(() => data?.rows ?? [], [data]);
   const set = (patch: Partial<Filters>) => {
-    setF((old) => ({ ...old, page: 1, ...patch }));
+    setF((old) => ({ ...old, page: 1, after: undefined, before: undefined, ...patch }));
     setCursor(0);
   };
 
@@ -74,7 +75,7 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
               .map((k) => (
                 <span key={k} className={`rounded px-1 text-xs ${k === 'outside' ? 'bg-verdict-outside-bg text-verdict-outside' : 'bg-paper-sunk text-ink'}`} data-flag={k}>
                   <span aria-hidden="true">{k === 'outside' ? '✗ ' : '⚑ '}</span>
-                  {k === 'slip' && row.original.slips.length ? `${FLAG_LABEL[k]}: ${row.original.slips.join('; ')}` : FLAG_LABEL[k]}
+                  {k === 'slip' && row.original.summary.slips.length ? `${FLAG_LABEL[k]}: ${row.original.summary.slips.map((s) => s.title).join('; ')}` : FLAG_LABEL[k]}
                 </span>
               ))}
           </span>
@@ -142,7 +143,34 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
     setConfirming(false);
     const ids = [...selected];
     setMessage(`Releasing ${ids.length} submission(s)…`);
-    const r = await send<{ released: number; results: { submissionId: number; ok: boolean; message?: string }[] }>('/api/release', 'POST', { submissionIds: ids });
+    type Summary = { released: number; results: { submissionId: number; ok: boolean; message?: string }[]; error?: string };
+    let r: { ok: boolean; body: Summary };
+    try {
+      // The server reports each release as it happens (one JSON line each), then the summary.
+      const res = await fetch('/api/release', { method: 'POST', headers: { 'content-type': 'application/json', accept: 'application/x-ndjson' }, body: JSON.stringify({ submissionIds: ids }) });
+      if (!res.ok || !res.body || !(res.headers.get('content-type') ?? '').includes('ndjson')) {
+        r = { ok: res.ok, body: await res.json().catch(() => ({ error: `Request failed (${res.status})` })) };
+      } else {
+        const reader = res.body.pipeThrough(new TextDecoderStream()).getReader();
+        let buffered = '';
+        let last: Summary = { released: 0, results: [], error: 'The release stopped before it finished; reload to see what was released.' };
+        for (;;) {
+          const { value, done } = await reader.read();
+          if (done) break;
+          buffered += value;
+          const lines = buffered.split('\n');
+          buffered = lines.pop() ?? '';
+          for (const l of lines.filter(Boolean)) {
+            const m = JSON.parse(l);
+            if (typeof m.done === 'number') setMessage(`Releasing… ${m.done} of ${m.total} done.`);
+            else last = m;
+          }
+        }
+        r = { ok: !last.error, body: last };
+      }
+    } catch {
+      r = { ok: false, body: { released: 0, results: [], error: 'The connection was lost; reload to see what was released.' } };
+    }
     if (!r.ok) setMessage(`Release refused: ${r.body.error}`);
     else {
       const failed = r.body.results.filter((x) => !x.ok);
@@ -205,7 +233,7 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
         <button type="button" className="btn-quiet" onClick={() => setSelected(new Set(rows.filter((r) => r.status === 'marked').map((r) => r.id)))}>
           Select all marked on this page
         </button>
-        <p className="text-sm text-ink-soft" aria-live="polite" role="status">{isLoading ? 'Loading…' : data ? `${data.total} submission(s)` : ''}</p>
+        <p className="text-sm text-ink-soft" aria-live="polite" role="status">{isLoading ? 'Loading…' : data ? `${data.total.toLocaleString('en-GB')}${data.totalExact ? '' : ' or more'} submission(s)` : ''}</p>
       </div>
       <p className="mb-3 text-sm" aria-live="polite" role="status" data-testid="queue-message">{message}</p>
       {error && <p className="error-text" role="alert">{String(error.message ?? error)}</p>}
@@ -258,11 +286,11 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
         </ul>
       </ConfirmDialog>
 
-      {data && data.pages > 1 && (
+      {data && (data.pages > 1 || data.next || data.prev) && (
         <nav className="mt-3 flex items-center gap-2" aria-label="Pages">
-          <button type="button" className="btn-quiet" disabled={f.page <= 1} onClick={() => setF((o) => ({ ...o, page: o.page - 1 }))}>Previous page</button>
-          <span className="text-sm">Page {data.page} of {data.pages}</span>
-          <button type="button" className="btn-quiet" disabled={f.page >= data.pages} onClick={() => setF((o) => ({ ...o, page: o.page + 1 }))}>Next page</button>
+          <button type="button" className="btn-quiet" disabled={!data.prev} onClick={() => setF((o) => ({ ...o, page: Math.max(1, o.page - 1), before: data.prev ?? undefined, after: undefined }))}>Previous page</button>
+          <span className="text-sm">Page {data.page}{data.totalExact ? ` of ${data.pages}` : ''}</span>
+          <button type="button" className="btn-quiet" disabled={!data.next} onClick={() => setF((o) => ({ ...o, page: o.page + 1, after: data.next ?? undefined, before: undefined }))}>Next page</button>
         </nav>
       )}
     </div>

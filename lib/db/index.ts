@@ -38,8 +38,17 @@ export function createSequelize(): Sequelize {
  * before they reach SQLite; the busy timeout is left for writers in other processes.
  * Re-entrant: a query issued inside a transaction's callback runs at once.
  */
+const holding = new AsyncLocalStorage<true>();
+
+/** True while this async context holds SQLite's writer turn in this process (see oneWriterAtATime). */
+export const holdsWriterTurn = (): boolean => holding.getStore() === true;
+
+/** Run fn outside the current writer turn, so it queues behind it instead of re-entering it. */
+export function outsideWriterTurn<T>(fn: () => T): T {
+  return holding.exit(fn);
+}
+
 function oneWriterAtATime(sequelize: Sequelize): void {
-  const holding = new AsyncLocalStorage<true>();
   let tail: Promise<unknown> = Promise.resolve();
   const exclusive = <T>(fn: () => Promise<T>): Promise<T> => {
     if (holding.getStore()) return fn();
@@ -164,6 +173,50 @@ function reuseTransactionConnections(sequelize: Sequelize): void {
     await Promise.all(spare.splice(0).map((c) => new Promise<void>((resolve) => c.close(() => resolve()))));
     return exit();
   };
+}
+
+type BeforeCommit = (t: Transaction) => Promise<void>;
+const beforeCommitWork = new WeakMap<Transaction, BeforeCommit[]>();
+
+/** The outermost transaction (a savepoint's work commits with it). */
+export function rootTransaction(t: Transaction): Transaction {
+  let root = t;
+  while ((root as unknown as { parent?: Transaction }).parent) root = (root as unknown as { parent: Transaction }).parent;
+  return root;
+}
+
+/**
+ * Work that must run inside a transaction, after everything else in it and just before COMMIT
+ * (the kept statistics are brought up to date there, once per transaction, whatever changed).
+ * If the work fails, the transaction is rolled back and the error reaches the caller.
+ */
+export function beforeCommit(t: Transaction, fn: BeforeCommit): void {
+  const root = rootTransaction(t);
+  const list = beforeCommitWork.get(root);
+  if (list) list.push(fn);
+  else beforeCommitWork.set(root, [fn]);
+}
+
+const transactionProto = Transaction.prototype as unknown as { commit: () => Promise<void>; rollback: () => Promise<void>; __oscillabBeforeCommit?: true; finished?: string; parent?: unknown };
+if (!transactionProto.__oscillabBeforeCommit) {
+  const commit = transactionProto.commit;
+  transactionProto.commit = async function (this: Transaction & { finished?: string; parent?: unknown; rollback: () => Promise<void> }) {
+    if (!this.parent) {
+      // Work may queue more work (rarely): run until none is left.
+      for (let list = beforeCommitWork.get(this); list && list.length; list = beforeCommitWork.get(this)) {
+        beforeCommitWork.delete(this);
+        try {
+          for (const fn of list) await fn(this);
+        } catch (error) {
+          beforeCommitWork.delete(this);
+          if (!this.finished) await this.rollback().catch(() => undefined);
+          throw error;
+        }
+      }
+    }
+    return commit.call(this);
+  };
+  transactionProto.__oscillabBeforeCommit = true;
 }
 
 const globalForDb = globalThis as unknown as { oscillabSequelize?: Sequelize };

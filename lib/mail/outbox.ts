@@ -8,7 +8,7 @@
 import fs from 'node:fs/promises';
 import { Op, type Transaction } from 'sequelize';
 import { models } from '@/models';
-import { MAIL_FROM, sendMail, type MailMessage } from './transport';
+import { MAIL_FROM, sendMail, smtpPoolSize, type MailMessage } from './transport';
 import { feedbackPath } from '@/lib/storage';
 
 const LEASE_MS = 60_000;
@@ -119,8 +119,8 @@ export async function deliverOutbox(options: { limit?: number; now?: () => Date 
   });
   let sent = 0;
   let failed = 0;
-  for (const row of due) {
-    if (!(await claim(row.id, now()))) continue;
+  const deliver = async (row: OutboxRow) => {
+    if (!(await claim(row.id, now()))) return;
     try {
       const { messageId } = await sendMail(await messageFor(row));
       // Written by id, not through the stale instance: claim() changed the row behind its back.
@@ -140,7 +140,14 @@ export async function deliverOutbox(options: { limit?: number; now?: () => Date 
       );
       failed++;
     }
-  }
+  };
+  // As many messages under way as the SMTP pool has connections, each row claimed on its own.
+  let next = 0;
+  await Promise.all(
+    Array.from({ length: Math.min(due.length, smtpPoolSize()) }, async () => {
+      while (next < due.length) await deliver(due[next++]);
+    }),
+  );
   const remaining = await EmailOutbox.count({ where: { status: ['queued', 'sending'] } });
   return { sent, failed, remaining };
 }

@@ -1,18 +1,25 @@
 /**
  * The marking queue: the marked attempts of the cohorts (or students) the actor marks, or of
- * every cohort of the courses they teach. Filtering, sorting and paging happen in SQL.
+ * every cohort of the courses they teach. Filtering, sorting and paging happen in SQL, over the
+ * narrow columns a row shows (flags, verdict counts and slip codes are kept on the submission
+ * when it is checked; the engine's whole result is never read here), with keyset pages: a page
+ * continues after (or before) the sort value and id of a row, so page 400 costs what page 1 does.
+ * Indexes: migration 20261202200100 (a practical's or a cohort's attempts in submission order).
  */
-import { Op, type WhereOptions, type Order } from 'sequelize';
+import { Op, QueryTypes, type WhereOptions } from 'sequelize';
 import type { Actor } from '@/lib/authz';
+import { sequelize } from '@/lib/db';
+import { SLIPS } from '@/lib/grading';
+import { HttpError } from '@/lib/http';
+import { cohortName } from '@/lib/display';
 import { models } from '@/models';
 import type { QueueQuery } from '@/lib/schemas/marking';
-import { SLIPS } from '@/lib/grading';
 
 const FLAG_COLUMN = { outside: 'flagOutside', slip: 'flagSlip', late: 'flagLate', duplicate: 'flagDuplicate', spectrum: 'flagSpectrumMismatch' } as const;
 
-/** Which submissions the actor may mark, as a WHERE clause (null: none at all). */
-export async function markingScope(actor: Actor): Promise<WhereOptions | null> {
-  if (actor.isAdmin) return {};
+/** Which submissions the actor may mark: everything, whole cohorts, or named students of a cohort (null: none at all). */
+export async function markingCells(actor: Actor): Promise<{ all: boolean; cohorts: number[]; students: { cohortId: number; studentId: number }[] } | null> {
+  if (actor.isAdmin) return { all: true, cohorts: [], students: [] };
   const { Cohort } = models();
   const managed = [...new Set(actor.memberships.filter((m) => m.role === 'instructor' || m.role === 'lead').map((m) => m.courseId))];
   const taCourses = new Set(actor.memberships.filter((m) => m.role === 'ta').map((m) => m.courseId));
@@ -24,12 +31,20 @@ export async function markingScope(actor: Actor): Promise<WhereOptions | null> {
     const ok = new Set(cohorts.filter((c) => taCourses.has(c.courseId)).map((c) => c.id));
     duties = duties.filter((d) => ok.has(d.cohortId));
   }
-  const whole = [...new Set([...managedCohorts, ...duties.filter((d) => d.studentId === null).map((d) => d.cohortId)])];
-  const named = duties.filter((d) => d.studentId !== null);
+  const cohorts = [...new Set([...managedCohorts, ...duties.filter((d) => d.studentId === null).map((d) => d.cohortId)])];
+  const students = duties.filter((d) => d.studentId !== null).map((d) => ({ cohortId: d.cohortId, studentId: d.studentId! }));
+  if (!cohorts.length && !students.length) return null;
+  return { all: false, cohorts, students };
+}
+
+/** The same, as a WHERE clause for the models (null: none at all). */
+export async function markingScope(actor: Actor): Promise<WhereOptions | null> {
+  const cells = await markingCells(actor);
+  if (!cells) return null;
+  if (cells.all) return {};
   const or: WhereOptions[] = [];
-  if (whole.length) or.push({ cohortId: { [Op.in]: whole } });
-  for (const d of named) or.push({ cohortId: d.cohortId, studentId: d.studentId! });
-  if (!or.length) return null;
+  if (cells.cohorts.length) or.push({ cohortId: { [Op.in]: cells.cohorts } });
+  for (const d of cells.students) or.push({ cohortId: d.cohortId, studentId: d.studentId });
   return { [Op.or]: or };
 }
 
@@ -46,78 +61,196 @@ export type QueueRow = {
   maxTotal: number | null;
   version: number;
   flags: { outside: boolean; slip: boolean; late: boolean; duplicate: boolean; spectrum: boolean };
-  /** The named slips' titles, so the flag can say which. */
-  slips: string[];
+  /** Verdict counts over the submission's check results, and its named slips. */
+  summary: { within: number; partial: number; outside: number; notChecked: number; slips: { code: string; title: string }[] };
   delivery: string | null;
 };
 
-export async function queuePage(actor: Actor, q: QueueQuery): Promise<{ rows: QueueRow[]; total: number; page: number; pageSize: number; pages: number }> {
-  const { Submission, User, Practical, Cohort, EmailOutbox, SlipFinding } = models();
-  const scope = await markingScope(actor);
-  if (!scope) return { rows: [], total: 0, page: q.page, pageSize: q.pageSize, pages: 0 };
-  const where: WhereOptions[] = [scope, { isMarkedAttempt: true }];
-  where.push({ status: q.status ? q.status : { [Op.in]: ['submitted', 'marked', 'released', 'resubmission-requested'] } });
-  if (q.practicalId) where.push({ practicalId: q.practicalId });
-  if (q.cohortId) where.push({ cohortId: q.cohortId });
-  if (q.flag) where.push({ [FLAG_COLUMN[q.flag]]: true });
-  const dir = q.dir === 'desc' ? 'DESC' : 'ASC';
-  const order: Order = {
-    submittedAt: [['submittedAt', dir]],
-    student: [[{ model: User, as: 'student' }, 'name', dir]],
-    practical: [[Practical, 'title', dir]],
-    status: [['status', dir]],
-    proposedTotal: [['proposedTotal', dir]],
-    awardedTotal: [['awardedTotal', dir]],
-  }[q.sort] as Order;
-  const { rows, count } = await Submission.findAndCountAll({
-    where: { [Op.and]: where },
-    include: [
-      { model: User, as: 'student', attributes: ['id', 'name', 'email', 'studentNumber'] },
-      { model: Practical, attributes: ['id', 'title'] },
-      { model: Cohort, attributes: ['id', 'name', 'term'] },
-    ],
-    order: [...(order as unknown[]), ['id', 'ASC']] as Order,
-    limit: q.pageSize,
-    offset: (q.page - 1) * q.pageSize,
-  });
-  const ids = rows.map((r) => r.id);
-  const mail = ids.length
-    ? await EmailOutbox.findAll({ where: { submissionId: ids }, attributes: ['submissionId', 'status', 'dedupeKey', 'id'], order: [['id', 'ASC']] })
-    : [];
-  const findings = ids.length ? await SlipFinding.findAll({ where: { submissionId: ids }, attributes: ['submissionId', 'code'] }) : [];
-  const slipTitles = new Map<number, string[]>();
-  for (const f of findings) {
-    const title = (SLIPS as Record<string, { title: string } | undefined>)[f.code]?.title ?? f.code;
-    const list = slipTitles.get(f.submissionId) ?? [];
-    if (!list.includes(title)) list.push(title);
-    slipTitles.set(f.submissionId, list);
+export type QueuePage = {
+  rows: QueueRow[];
+  /** Matching submissions, counted up to COUNT_LIMIT (totalExact false beyond: "10,000 or more"). */
+  total: number;
+  totalExact: boolean;
+  page: number;
+  pageSize: number;
+  pages: number;
+  /** Cursors for the next and previous pages (pass as `after` / `before`), null at either end. */
+  next: string | null;
+  prev: string | null;
+};
+
+export const COUNT_LIMIT = 10_000;
+
+const SORT_COLUMN: Record<QueueQuery['sort'], string> = {
+  submittedAt: 's."submittedAt"',
+  student: 'u.name',
+  practical: 'p.title',
+  status: 's.status',
+  proposedTotal: 's."proposedTotal"',
+  awardedTotal: 's."awardedTotal"',
+};
+const SORT_ALIAS: Record<QueueQuery['sort'], string> = {
+  submittedAt: 'submittedAt', student: 'studentName', practical: 'practicalTitle', status: 'status', proposedTotal: 'proposedTotal', awardedTotal: 'awardedTotal',
+};
+
+type Cursor = { v: string | number | null; d?: 1; i: number };
+
+function encodeCursor(value: unknown, id: number): string {
+  const c: Cursor = value instanceof Date ? { v: value.toISOString(), d: 1, i: id } : { v: (value ?? null) as string | number | null, i: id };
+  return Buffer.from(JSON.stringify(c)).toString('base64url');
+}
+
+function decodeCursor(text: string): { value: unknown; id: number } {
+  try {
+    const c = JSON.parse(Buffer.from(text, 'base64url').toString('utf8')) as Cursor;
+    const okValue = c.v === null || typeof c.v === 'number' || (typeof c.v === 'string' && c.v.length <= 300);
+    if (!okValue || !Number.isSafeInteger(c.i) || c.i <= 0 || (c.d && (typeof c.v !== 'string' || Number.isNaN(Date.parse(c.v))))) throw new Error('bad');
+    return { value: c.d ? new Date(c.v as string) : c.v, id: c.i };
+  } catch {
+    throw new HttpError(400, 'The page link is not valid any more: go back to the first page of the queue.');
   }
+}
+
+/**
+ * Rows strictly after (value, id) in the order (col asc|desc, id asc|desc). NULL sorts where the
+ * database's own index puts it — smallest on SQLite, largest on PostgreSQL — so ORDER BY needs no
+ * NULLS FIRST/LAST and an index in the sort column's order serves it (SQLite cannot use an index
+ * for NULLS LAST, and would sort every row of the queue).
+ */
+function keysetAfter(col: string, ascending: boolean, idAscending: boolean, value: unknown, nullsLargest: boolean, replacements: Record<string, unknown>): string {
+  replacements.kv = value;
+  const idCmp = `s.id ${idAscending ? '>' : '<'} :ki`;
+  const nullsAfter = ascending === nullsLargest; // in this direction, do NULLs come after every value?
+  if (value === null) return nullsAfter ? `(${col} IS NULL AND ${idCmp})` : `(${col} IS NOT NULL OR (${col} IS NULL AND ${idCmp}))`;
+  const beyond = `${col} ${ascending ? '>' : '<'} :kv`;
+  return nullsAfter ? `(${beyond} OR ${col} IS NULL OR (${col} = :kv AND ${idCmp}))` : `(${beyond} OR (${col} = :kv AND ${idCmp}))`;
+}
+
+const slipTitle = (code: string) => (SLIPS as Record<string, { title: string } | undefined>)[code]?.title ?? code;
+
+export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage> {
+  const empty: QueuePage = { rows: [], total: 0, totalExact: true, page: 1, pageSize: q.pageSize, pages: 0, next: null, prev: null };
+  const cells = await markingCells(actor);
+  if (!cells) return empty;
+  const replacements: Record<string, unknown> = { yes: true };
+  const where: string[] = ['s."isMarkedAttempt" = :yes'];
+  if (!cells.all) {
+    const or: string[] = [];
+    if (cells.cohorts.length) {
+      replacements.scopeCohorts = cells.cohorts;
+      or.push('s."cohortId" IN (:scopeCohorts)');
+    }
+    cells.students.forEach((d, i) => {
+      replacements[`sc${i}`] = d.cohortId;
+      replacements[`ss${i}`] = d.studentId;
+      or.push(`(s."cohortId" = :sc${i} AND s."studentId" = :ss${i})`);
+    });
+    where.push(`(${or.join(' OR ')})`);
+  }
+  replacements.statuses = q.status ? [q.status] : ['submitted', 'marked', 'released', 'resubmission-requested'];
+  where.push('s.status IN (:statuses)');
+  if (q.practicalId) {
+    replacements.practicalId = q.practicalId;
+    where.push('s."practicalId" = :practicalId');
+  }
+  if (q.cohortId) {
+    replacements.cohortId = q.cohortId;
+    where.push('s."cohortId" = :cohortId');
+  }
+  if (q.flag) where.push(`s."${FLAG_COLUMN[q.flag]}" = :yes`);
+
+  const col = SORT_COLUMN[q.sort];
+  const nullsLargest = sequelize().getDialect() === 'postgres';
+  const ascending = q.dir !== 'desc';
+  const backwards = Boolean(q.before && !q.after);
+  const cursor = q.after ?? q.before;
+  const page = [...where];
+  if (cursor) {
+    const { value, id } = decodeCursor(cursor);
+    replacements.ki = id;
+    // Before a row: the rows after it in the reversed order, read in that order and turned round.
+    page.push(keysetAfter(col, backwards ? !ascending : ascending, !backwards, value, nullsLargest, replacements));
+  }
+  const orderAsc = backwards ? !ascending : ascending;
+  const order = `${col} ${orderAsc ? 'ASC' : 'DESC'}, s.id ${backwards ? 'DESC' : 'ASC'}`;
+  const offset = !cursor && q.page > 1 ? (q.page - 1) * q.pageSize : 0;
+
+  const [rows, counted] = await Promise.all([
+    sequelize().query<Record<string, unknown>>(
+      `SELECT s.id, s.status, s.attempt, s."submittedAt", s."proposedTotal", s."awardedTotal", s."maxTotal", s.version,
+              s."flagOutside", s."flagSlip", s."flagLate", s."flagDuplicate", s."flagSpectrumMismatch",
+              s."verdictsWithin", s."verdictsPartial", s."verdictsOutside", s."verdictsNotChecked", s."slipCodes",
+              s."studentId", s."practicalId", s."cohortId", u.name AS "studentName", u.email AS "studentEmail", u."studentNumber" AS "studentNumber",
+              p.title AS "practicalTitle", c.name AS "cohortName", c.term AS "cohortTerm"
+       FROM submissions s JOIN users u ON u.id = s."studentId" JOIN practicals p ON p.id = s."practicalId" JOIN cohorts c ON c.id = s."cohortId"
+       WHERE ${page.join(' AND ')}
+       ORDER BY ${order}
+       LIMIT ${q.pageSize + 1}${offset ? ` OFFSET ${offset}` : ''}`,
+      { replacements, type: QueryTypes.SELECT },
+    ),
+    // Counting stops at the limit: keyset pages need no total, and a department-wide queue would
+    // otherwise pay for reading every matching row on every page.
+    sequelize().query<{ n: number }>(
+      `SELECT COUNT(*) AS n FROM (SELECT 1 AS one FROM submissions s WHERE ${where.join(' AND ')} LIMIT ${COUNT_LIMIT + 1}) c`,
+      { replacements, type: QueryTypes.SELECT },
+    ),
+  ]);
+  const totalExact = Number(counted[0]?.n ?? 0) <= COUNT_LIMIT;
+  const total = Math.min(COUNT_LIMIT, Number(counted[0]?.n ?? 0));
+  const more = rows.length > q.pageSize;
+  const pageRows = rows.slice(0, q.pageSize);
+  if (backwards) pageRows.reverse();
+
+  // The e-mail state of the page's rows only.
+  const { EmailOutbox } = models();
+  const ids = pageRows.map((r) => Number(r.id));
+  const mail = ids.length
+    ? await EmailOutbox.findAll({ where: { submissionId: ids, dedupeKey: { [Op.like]: 'release:%' } }, attributes: ['submissionId', 'status', 'id'], order: [['id', 'ASC']], raw: true })
+    : [];
   const lastRelease = new Map<number, string>();
-  for (const m of mail) if (m.dedupeKey.startsWith('release:') && m.submissionId) lastRelease.set(m.submissionId, m.status);
+  for (const m of mail) if (m.submissionId) lastRelease.set(m.submissionId, m.status);
+
+  const bool = (v: unknown) => v === true || v === 1 || v === '1';
+  const numOrNull = (v: unknown) => (v === null || v === undefined ? null : Number(v));
+  const out: QueueRow[] = pageRows.map((r) => {
+    const id = Number(r.id);
+    const submittedAt = r.submittedAt === null || r.submittedAt === undefined ? null : new Date(r.submittedAt instanceof Date ? r.submittedAt : String(r.submittedAt).replace(' ', 'T').replace(' ', ''));
+    return {
+      id,
+      student: { id: Number(r.studentId), name: String(r.studentName), email: String(r.studentEmail), studentNumber: r.studentNumber === null || r.studentNumber === undefined ? null : String(r.studentNumber) },
+      practical: { id: Number(r.practicalId), title: String(r.practicalTitle) },
+      cohort: { id: Number(r.cohortId), name: cohortName({ name: String(r.cohortName), term: r.cohortTerm === null || r.cohortTerm === undefined ? null : String(r.cohortTerm) }) },
+      status: String(r.status),
+      attempt: Number(r.attempt),
+      submittedAt: submittedAt && !Number.isNaN(submittedAt.getTime()) ? submittedAt.toISOString() : null,
+      proposedTotal: numOrNull(r.proposedTotal),
+      awardedTotal: numOrNull(r.awardedTotal),
+      maxTotal: numOrNull(r.maxTotal),
+      version: Number(r.version),
+      flags: { outside: bool(r.flagOutside), slip: bool(r.flagSlip), late: bool(r.flagLate), duplicate: bool(r.flagDuplicate), spectrum: bool(r.flagSpectrumMismatch) },
+      summary: {
+        within: Number(r.verdictsWithin), partial: Number(r.verdictsPartial), outside: Number(r.verdictsOutside), notChecked: Number(r.verdictsNotChecked),
+        slips: String(r.slipCodes ?? '').split(',').filter(Boolean).map((code) => ({ code, title: slipTitle(code) })),
+      },
+      delivery: lastRelease.get(id) ?? null,
+    };
+  });
+
+  const sortValue = (r: Record<string, unknown>) => r[SORT_ALIAS[q.sort]];
+  const first = pageRows[0];
+  const last = pageRows[pageRows.length - 1];
+  const atStart = backwards ? !more : !cursor && offset === 0;
+  const atEnd = backwards ? false : !more;
+  const pageNumber = Math.max(1, Math.min(q.page, Math.max(1, Math.ceil(total / q.pageSize))));
   return {
-    rows: rows.map((s) => {
-      const r = s as typeof s & { student: InstanceType<typeof User>; Practical: InstanceType<typeof Practical>; Cohort: InstanceType<typeof Cohort> };
-      return {
-        id: s.id,
-        student: { id: r.student.id, name: r.student.name, email: r.student.email, studentNumber: r.student.studentNumber },
-        practical: { id: r.Practical.id, title: r.Practical.title },
-        cohort: { id: r.Cohort.id, name: `${r.Cohort.name} (${r.Cohort.term})` },
-        status: s.status,
-        attempt: s.attempt,
-        submittedAt: s.submittedAt?.toISOString() ?? null,
-        proposedTotal: s.proposedTotal,
-        awardedTotal: s.awardedTotal,
-        maxTotal: s.maxTotal,
-        version: s.version,
-        flags: { outside: s.flagOutside, slip: s.flagSlip, late: s.flagLate, duplicate: s.flagDuplicate, spectrum: s.flagSpectrumMismatch },
-        slips: slipTitles.get(s.id) ?? [],
-        delivery: lastRelease.get(s.id) ?? null,
-      };
-    }),
-    total: count,
-    page: q.page,
+    rows: out,
+    total,
+    totalExact,
+    page: atStart ? 1 : pageNumber,
     pageSize: q.pageSize,
-    pages: Math.ceil(count / q.pageSize),
+    pages: Math.ceil(total / q.pageSize),
+    next: !atEnd && last ? encodeCursor(sortValue(last), Number(last.id)) : null,
+    prev: !atStart && first ? encodeCursor(sortValue(first), Number(first.id)) : null,
   };
 }
 
@@ -136,5 +269,5 @@ export async function queueFilters(actor: Actor) {
   const cohorts = await Cohort.findAll({ where: { id: [...cohortIds] }, order: [['term', 'DESC'], ['name', 'ASC']] });
   const links = await PracticalCohort.findAll({ where: { cohortId: [...cohortIds] }, attributes: ['practicalId'] });
   const practicals = await Practical.findAll({ where: { id: [...new Set(links.map((l) => l.practicalId))] }, order: [['title', 'ASC']] });
-  return { practicals: practicals.map((p) => ({ id: p.id, title: p.title })), cohorts: cohorts.map((c) => ({ id: c.id, name: `${c.name} (${c.term})` })) };
+  return { practicals: practicals.map((p) => ({ id: p.id, title: p.title })), cohorts: cohorts.map((c) => ({ id: c.id, name: cohortName(c) })) };
 }

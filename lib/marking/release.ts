@@ -3,6 +3,10 @@
  * submission released and queue the e-mail that carries the PDF. If anything fails the
  * transaction rolls back and the file is removed, so a release is all or nothing; the outbox
  * then delivers at most once per dedupe key.
+ *
+ * A batch is a pipeline: the next submissions are read while earlier PDFs render on the worker
+ * threads (lib/pdf/pool.ts) and finished ones are committed one transaction each, in the order
+ * their PDFs come back. Progress is reported per submission.
  */
 import crypto from 'node:crypto';
 import fs from 'node:fs/promises';
@@ -13,7 +17,7 @@ import { queueEmail } from '@/lib/mail/outbox';
 import { queueReleaseScores } from '@/lib/lti/scores';
 import { feedbackPath } from '@/lib/storage';
 import { renderEmail } from '@/lib/templates';
-import { buildFeedbackPdf } from '@/lib/pdf/feedback';
+import { pdfWorkerCount, renderFeedbackPdf } from '@/lib/pdf/pool';
 import { cohortName } from '@/lib/display';
 import { models } from '@/models';
 import { loadMarkingView } from './view';
@@ -25,11 +29,12 @@ export function appUrl(): string {
 
 export type ReleaseOutcome = { submissionId: number; ok: boolean; message?: string; feedbackDocumentId?: number };
 
-export async function releaseOne(actorId: number, submissionId: number): Promise<ReleaseOutcome> {
-  const view = await loadMarkingView(submissionId);
-  if (view.submission.status === 'released') return { submissionId, ok: false, message: 'Already released.' };
-  if (view.submission.status !== 'marked') return { submissionId, ok: false, message: 'Only marked submissions can be released: finish marking first.' };
-  const pdf = await buildFeedbackPdf(feedbackInputFromView(view));
+/** Where the time of a release went (ms, summed over submissions; wall is the whole batch). */
+export type ReleaseTimings = { load: number; render: number; commit: number; wall: number };
+
+type Loaded = Awaited<ReturnType<typeof loadMarkingView>>;
+
+async function commitRelease(actorId: number, submissionId: number, view: Loaded, pdf: Uint8Array): Promise<ReleaseOutcome> {
   const storedName = `${crypto.randomBytes(16).toString('hex')}.pdf`;
   const file = feedbackPath(storedName);
   const { Submission, FeedbackDocument } = models();
@@ -75,8 +80,55 @@ export async function releaseOne(actorId: number, submissionId: number): Promise
   }
 }
 
-export async function releaseMany(actorId: number, submissionIds: number[]): Promise<ReleaseOutcome[]> {
-  const out: ReleaseOutcome[] = [];
-  for (const id of [...new Set(submissionIds)]) out.push(await releaseOne(actorId, id));
+async function releaseWith(actorId: number, submissionId: number, batchSize: number, timings?: ReleaseTimings): Promise<ReleaseOutcome> {
+  let t0 = performance.now();
+  const view = await loadMarkingView(submissionId);
+  if (timings) timings.load += performance.now() - t0;
+  if (view.submission.status === 'released') return { submissionId, ok: false, message: 'Already released.' };
+  if (view.submission.status !== 'marked') return { submissionId, ok: false, message: 'Only marked submissions can be released: finish marking first.' };
+  t0 = performance.now();
+  const pdf = await renderFeedbackPdf(feedbackInputFromView(view), batchSize);
+  if (timings) timings.render += performance.now() - t0;
+  t0 = performance.now();
+  const outcome = await commitRelease(actorId, submissionId, view, pdf);
+  if (timings) timings.commit += performance.now() - t0;
+  return outcome;
+}
+
+export async function releaseOne(actorId: number, submissionId: number): Promise<ReleaseOutcome> {
+  return releaseWith(actorId, submissionId, 1);
+}
+
+/** How many releases of a batch are under way at once (each may be inside its own transaction). */
+export function releaseLanes(): number {
+  return 4 * Math.max(1, pdfWorkerCount());
+}
+
+/**
+ * Release a batch. Several submissions are under way at once (four per PDF thread, so a thread
+ * never waits for the reads and commits of this thread); outcomes come back in the order asked.
+ * onProgress is called after each one.
+ */
+export async function releaseMany(
+  actorId: number,
+  submissionIds: number[],
+  options: { onProgress?: (done: number, total: number, outcome: ReleaseOutcome) => void; timings?: ReleaseTimings } = {},
+): Promise<ReleaseOutcome[]> {
+  const ids = [...new Set(submissionIds)];
+  const wall = performance.now();
+  const out: ReleaseOutcome[] = new Array(ids.length);
+  const lanes = Math.min(ids.length, releaseLanes());
+  let next = 0;
+  let done = 0;
+  await Promise.all(
+    Array.from({ length: lanes }, async () => {
+      while (next < ids.length) {
+        const i = next++;
+        out[i] = await releaseWith(actorId, ids[i], ids.length, options.timings);
+        options.onProgress?.(++done, ids.length, out[i]);
+      }
+    }),
+  );
+  if (options.timings) options.timings.wall += performance.now() - wall;
   return out;
 }

@@ -104,6 +104,12 @@ export async function createCheckedSubmission(opts: {
   }
   await Mark.create({ submissionId: sid, itemKey: 'rubric:discussion', label: 'Discussion of errors', maxMarks: 2, proposed: null, awarded: null, comment: null, markerId: null });
   maxTotal += 2;
-  await submission.update({ proposedTotal, maxTotal });
+  const count = (v: string) => quantities.filter((q) => q.verdict === v).length;
+  await submission.update({
+    proposedTotal, maxTotal,
+    verdictsWithin: count('within'), verdictsPartial: count('partial'), verdictsOutside: count('outside'),
+    verdictsNotChecked: quantities.length - count('within') - count('partial') - count('outside'),
+    slipCodes: [...new Set(slips.map((s) => s.code))].sort().join(','),
+  });
   return submission;
 }

@@ -1,16 +1,16 @@
 /**
  * The feedback PDF, built with pdf-lib. Fonts are DejaVu (shipped in public/fonts), embedded
- * as subsets, because the built-in PDF fonts carry none of ν̃, μ, ω, Å or ⁻¹. All wording
- * comes from templates/pdf/feedback.txt.
+ * as subsets, because the built-in PDF fonts carry none of ν̃, μ, ω, Å or ⁻¹: one subset prepared
+ * once per process and reused (fonts.ts), or pdf-lib's own per-document subset when the text has
+ * a character outside it. All wording comes from templates/pdf/feedback.txt.
  */
-import fs from 'node:fs';
-import path from 'node:path';
 import fontkit from '@pdf-lib/fontkit';
 import { PDFDocument, rgb, type PDFFont, type PDFPage } from 'pdf-lib';
 import { fill, templateText } from '@/lib/templates';
 import type { PlotModel } from '@/lib/spectrum';
 import { drawPlot } from './draw-plot';
 import { verdictInfo } from '@/lib/marking/verdict';
+import { coversText, embedSharedFont, isSharedFont, loadFontBytes } from './fonts';
 
 export type FeedbackInput = {
   course: string;
@@ -45,18 +45,7 @@ export type FeedbackInput = {
 
 type Fonts = { regular: PDFFont; bold: PDFFont; mono: PDFFont };
 
-let fontBytes: { regular: Buffer; bold: Buffer; mono: Buffer } | null = null;
-export function loadFontBytes() {
-  if (!fontBytes) {
-    const dir = path.join(/*turbopackIgnore: true*/ process.cwd(), 'public', 'fonts');
-    fontBytes = {
-      regular: fs.readFileSync(path.join(dir, 'DejaVuSans.ttf')),
-      bold: fs.readFileSync(path.join(dir, 'DejaVuSans-Bold.ttf')),
-      mono: fs.readFileSync(path.join(dir, 'DejaVuSansMono.ttf')),
-    };
-  }
-  return fontBytes;
-}
+export { loadFontBytes } from './fonts';
 
 function texts(): Record<string, string> {
   const out: Record<string, string> = {};
@@ -80,6 +69,7 @@ const RULE = rgb(0.85, 0.84, 0.78);
  */
 const widthCache = new Map<string, number>();
 export function textWidth(text: string, font: PDFFont, size: number): number {
+  if (isSharedFont(font)) return font.widthOfTextAtSize(text, size); // a table lookup per character
   const key = `${font.name}|${text}`;
   let w = widthCache.get(key);
   if (w === undefined) {
@@ -171,12 +161,16 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
   const T = texts();
   const doc = await PDFDocument.create();
   doc.registerFontkit(fontkit);
+  // The fonts prepared once per process (fonts.ts), unless some text needs a character they lack.
+  const shared = await coversText(JSON.stringify(input) + Object.values(T).join(''));
   const bytes = loadFontBytes();
-  const f: Fonts = {
-    regular: await doc.embedFont(bytes.regular, { subset: true }),
-    bold: await doc.embedFont(bytes.bold, { subset: true }),
-    mono: await doc.embedFont(bytes.mono, { subset: true }),
-  };
+  const f: Fonts = shared
+    ? { regular: await embedSharedFont(doc, 'regular'), bold: await embedSharedFont(doc, 'bold'), mono: await embedSharedFont(doc, 'mono') }
+    : {
+        regular: await doc.embedFont(bytes.regular, { subset: true }),
+        bold: await doc.embedFont(bytes.bold, { subset: true }),
+        mono: await doc.embedFont(bytes.mono, { subset: true }),
+      };
   doc.setTitle(`${fill(T.title, {})}: ${input.practical}`);
   doc.setAuthor('Oscillab');
   doc.setSubject(`${input.course} · ${input.student}`);

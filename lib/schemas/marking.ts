@@ -20,6 +20,9 @@ export const queueQuerySchema = z.object({
   dir: optionalEnum(['asc', 'desc'] as const).default('asc'),
   page: z.preprocess((v) => (v === '' || v === null ? undefined : v), z.coerce.number().int().min(1).max(100000).default(1)),
   pageSize: z.preprocess((v) => (v === '' || v === null ? undefined : v), z.coerce.number().int().min(1).max(100).default(25)),
+  /** Keyset cursors from the previous answer's `next` / `prev`: the page after or before that row. */
+  after: z.preprocess((v) => (v === '' || v === null ? undefined : v), z.string().max(600).regex(/^[A-Za-z0-9_-]+$/, 'Not a page link.').optional()),
+  before: z.preprocess((v) => (v === '' || v === null ? undefined : v), z.string().max(600).regex(/^[A-Za-z0-9_-]+$/, 'Not a page link.').optional()),
 });
 export type QueueQuery = z.infer<typeof queueQuerySchema>;
 

@@ -1,11 +1,10 @@
 /**
- * A small in-process cache of the statistics aggregates, keyed by what was asked (function,
- * practicals, cohorts, options) and by a change stamp read from the database first:
- * row counts and the latest updatedAt of the submissions, check results, marks and moderations of
- * those practicals and cohorts (every aggregate is restricted to them), and of the cohorts
- * themselves (instrument, term). Any insert, update or delete of those rows
- * changes the stamp, so a stale entry is never served — also when another process wrote. The stamp
- * is read before the aggregates, so a write landing in between makes the next request recompute.
+ * A small in-process cache of the statistics, keyed by what was asked (function, practicals,
+ * cohorts, options) and by a change stamp read from the database first: the change tokens of
+ * the kept statistics of those practicals and cohorts, and the cohorts' own latest change
+ * (instrument, term). Any change to the kept figures renews a token in the same transaction, so
+ * a stale entry is never served — also when another process wrote. The stamp is read before the
+ * aggregates, so a write landing in between makes the next request recompute.
  * Set STATS_CACHE=off to disable (the benchmark reports both).
  */
 import { QueryTypes } from 'sequelize';
@@ -17,24 +16,24 @@ const entries = new Map<string, { stamp: string; value: unknown }>();
 
 export const statisticsCacheEnabled = () => process.env.STATS_CACHE !== 'off';
 
-/** One row of counts and latest change times; each part reads an index only (migration 20261201000700). */
+/**
+ * The change tokens of the kept statistics of every practical and cohort in the scope (a new random
+ * token whenever anything kept for that cell changes, lib/statistics/keep.ts) and the latest
+ * change to the cohorts themselves, in one statement: an indexed read of a row per cell.
+ */
 export async function changeStamp(scope: Scope): Promise<string> {
-  const rows = await sequelize().query<Record<string, unknown>>(
-    `SELECT
-       (SELECT COUNT(*) FROM submissions s WHERE s."practicalId" IN (:practicalIds) AND s."cohortId" IN (:cohortIds)) AS s_n,
-       (SELECT MAX(s."updatedAt") FROM submissions s WHERE s."practicalId" IN (:practicalIds) AND s."cohortId" IN (:cohortIds)) AS s_t,
-       (SELECT COUNT(*) FROM check_results cr JOIN submissions s ON s.id = cr."submissionId" WHERE s."practicalId" IN (:practicalIds) AND s."cohortId" IN (:cohortIds)) AS c_n,
-       (SELECT MAX(cr."updatedAt") FROM check_results cr JOIN submissions s ON s.id = cr."submissionId" WHERE s."practicalId" IN (:practicalIds) AND s."cohortId" IN (:cohortIds)) AS c_t,
-       (SELECT COUNT(*) FROM slip_findings sf JOIN submissions s ON s.id = sf."submissionId" WHERE s."practicalId" IN (:practicalIds) AND s."cohortId" IN (:cohortIds)) AS f_n,
-       (SELECT COUNT(*) FROM marks m JOIN submissions s ON s.id = m."submissionId" WHERE s."practicalId" IN (:practicalIds) AND s."cohortId" IN (:cohortIds)) AS m_n,
-       (SELECT MAX(m."updatedAt") FROM marks m JOIN submissions s ON s.id = m."submissionId" WHERE s."practicalId" IN (:practicalIds) AND s."cohortId" IN (:cohortIds)) AS m_t,
-       (SELECT COUNT(*) FROM moderations mo JOIN submissions s ON s.id = mo."submissionId" WHERE s."practicalId" IN (:practicalIds) AND s."cohortId" IN (:cohortIds)) AS o_n,
-       (SELECT MAX(mo."updatedAt") FROM moderations mo JOIN submissions s ON s.id = mo."submissionId" WHERE s."practicalId" IN (:practicalIds) AND s."cohortId" IN (:cohortIds)) AS o_t,
-       (SELECT MAX(c."updatedAt") FROM cohorts c WHERE c.id IN (:cohortIds)) AS h_t`,
+  const cells = await sequelize().query<Record<string, unknown>>(
+    `SELECT "practicalId", "cohortId", "changeToken", (SELECT MAX("updatedAt") FROM cohorts WHERE id IN (:cohortIds)) AS "cohortsChanged"
+     FROM statistics_groups WHERE "practicalId" IN (:practicalIds) AND "cohortId" IN (:cohortIds)
+     UNION ALL SELECT 0, 0, '', (SELECT MAX("updatedAt") FROM cohorts WHERE id IN (:cohortIds))`,
     { replacements: { practicalIds: scope.practicalIds, cohortIds: scope.cohortIds }, type: QueryTypes.SELECT },
   );
-  const r = rows[0] ?? {};
-  return Object.keys(r).sort().map((k) => `${k}=${r[k] instanceof Date ? (r[k] as Date).toISOString() : String(r[k])}`).join(';');
+  const cohorts = [{ t: cells[cells.length - 1]?.cohortsChanged }];
+  const t = cohorts[0]?.t;
+  return [
+    ...cells.filter((r) => Number(r.practicalId) > 0).map((r) => `${r.practicalId}/${r.cohortId}=${r.changeToken}`).sort(),
+    `cohorts=${t instanceof Date ? t.toISOString() : String(t)}`,
+  ].join(';');
 }
 
 /** compute() unless the same question was answered at the same change stamp. */

@@ -63,9 +63,11 @@ export async function statisticsScope(request: Request, practicalId: number): Pr
 /** Cohorts the practical is set for, plus any that have submissions to it. */
 export async function cohortsOfPractical(practicalId: number): Promise<Cohort[]> {
   const { Cohort } = models();
+  // One index probe per cohort (submissions_practical_cohort_updated) rather than a pass over
+  // every submission of the practical.
   const rows = await sequelize().query<{ id: number }>(
     `SELECT "cohortId" AS id FROM practical_cohorts WHERE "practicalId" = :p
-     UNION SELECT DISTINCT "cohortId" AS id FROM submissions WHERE "practicalId" = :p`,
+     UNION SELECT c.id AS id FROM cohorts c WHERE EXISTS (SELECT 1 FROM submissions s WHERE s."practicalId" = :p AND s."cohortId" = c.id)`,
     { replacements: { p: practicalId }, type: QueryTypes.SELECT },
   );
   if (!rows.length) return [];

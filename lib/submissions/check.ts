@@ -8,7 +8,8 @@
  *   - check_results  (one row per quantity, species and basis),
  *   - slip_findings  (one row per named slip: key = quantity key, code = slip code),
  *   - submissions.checkSummary (the whole engine output per species + spectrum comparison),
- *   - the flags (flagOutside, flagSlip, flagLate, flagDuplicate, flagSpectrumMismatch),
+ *   - the flags (flagOutside, flagSlip, flagLate, flagDuplicate, flagSpectrumMismatch) and the
+ *     marking queue's summary (verdict counts, slip codes),
  *   - proposed marks: one row per quantity item (itemKey `${key}:${species}`) and one per rubric
  *     item (`rubric:${key}`, proposed null), keeping any `awarded` and `comment` a marker set.
  *
@@ -18,6 +19,9 @@
  * within the inner band, half within the outer band, none outside. A quantity the student did not
  * report is proposed 0 (the marking screen says why); one that was reported but has no checked
  * basis (no band applies) is proposed null: the marker decides.
+ * The kept statistics (lib/statistics/keep.ts) follow these writes through the model hooks and
+ * are brought up to date before the transaction commits, so a re-check keeps them right.
+ *
  * proposedTotal is the sum of the proposed quantity marks (rubric items excluded), before any
  * late penalty; submissions.latePenalty holds the percentage to deduct from the total.
  */
@@ -316,6 +320,16 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
   const proposedTotal = quantityItems.some((i) => i.proposed !== null) ? Math.round(quantityItems.reduce((s, i) => s + (i.proposed ?? 0), 0) * 100) / 100 : null;
   const maxTotal = items.reduce((s, i) => s + i.maxMarks, 0);
 
+  // What the marking queue shows, kept on the row so the queue never reads the summary above.
+  const verdicts = { verdictsWithin: 0, verdictsPartial: 0, verdictsOutside: 0, verdictsNotChecked: 0 };
+  for (const row of checkRows) {
+    if (row.verdict === 'within') verdicts.verdictsWithin++;
+    else if (row.verdict === 'partial') verdicts.verdictsPartial++;
+    else if (row.verdict === 'outside') verdicts.verdictsOutside++;
+    else verdicts.verdictsNotChecked++;
+  }
+  const slipCodes = [...new Set(slipRows.map((r) => r.code))].sort().join(',').slice(0, 400);
+
   const summary: CheckSummary = {
     version: 1,
     checkedAt: new Date().toISOString(),
@@ -336,6 +350,8 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
       flagSpectrumMismatch: spectrumMismatch(spectrum, spectra),
       proposedTotal,
       maxTotal,
+      ...verdicts,
+      slipCodes,
     },
     { transaction },
   );

@@ -82,12 +82,13 @@ export async function closedPort(): Promise<number> {
 }
 
 /**
- * An SMTP relay to the catcher that passes the first `passFirst` connections (nodemailer uses
- * one connection per message) and holds every later one open without a greeting, so a sender
- * is stuck mid-delivery with its outbox row in 'sending' until its greeting timeout.
+ * An SMTP relay to the catcher that passes the first `passFirst` messages and holds every later
+ * one at its DATA command (nothing more of it reaches the catcher, no answer comes back), so a
+ * sender is stuck mid-delivery with its outbox row in 'sending'. Counted by message, not by
+ * connection: the app's SMTP transport is pooled and sends many messages over one connection.
  */
 export async function stallingRelay(upstreamPort: number, passFirst: number) {
-  let n = 0;
+  let messages = 0;
   const sockets = new Set<net.Socket>();
   let onStall: (() => void) | null = null;
   const stalled = new Promise<void>((r) => (onStall = r));
@@ -95,19 +96,35 @@ export async function stallingRelay(upstreamPort: number, passFirst: number) {
     sockets.add(client);
     client.on('error', () => undefined);
     client.on('close', () => sockets.delete(client));
-    if (n++ < passFirst) {
-      const up = net.connect(upstreamPort, '127.0.0.1');
-      up.on('error', () => client.destroy());
-      client.pipe(up).pipe(client);
-      sockets.add(up);
-    } else {
-      onStall?.();
-    }
+    const up = net.connect(upstreamPort, '127.0.0.1');
+    up.on('error', () => client.destroy());
+    sockets.add(up);
+    up.pipe(client);
+    let held = false;
+    let line = '';
+    client.on('data', (chunk: Buffer) => {
+      if (held) return;
+      // Forward line by line while looking for the DATA command of each message.
+      const text = line + chunk.toString('latin1');
+      const parts = text.split('\r\n');
+      line = parts.pop() ?? '';
+      let forward = '';
+      for (const part of parts) {
+        if (/^DATA$/i.test(part) && ++messages > passFirst) {
+          held = true;
+          if (forward) up.write(Buffer.from(forward, 'latin1'));
+          onStall?.();
+          return;
+        }
+        forward += `${part}\r\n`;
+      }
+      if (forward) up.write(Buffer.from(forward, 'latin1'));
+    });
   });
   await new Promise<void>((r) => server.listen(0, '127.0.0.1', () => r()));
   return {
     port: (server.address() as net.AddressInfo).port,
-    connections: () => n,
+    messages: () => messages,
     stalled,
     close: async () => {
       for (const s of sockets) s.destroy();

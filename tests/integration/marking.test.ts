@@ -51,6 +51,44 @@ describe('queue', () => {
     expect(inst.pages).toBe(2);
   });
 
+  it('pages by cursor (keyset) forwards and back in every sort, NULLs included; rows carry the kept verdict counts and slip names', async () => {
+    const get = async (query: string) => (await queueGET(await apiRequest(`/api/marking/queue?${query}`, { as: w.people.instructor.id }), {})).json();
+    for (const sort of ['submittedAt', 'student', 'practical', 'status', 'proposedTotal', 'awardedTotal']) {
+      for (const dir of ['asc', 'desc']) {
+        const all = (await get(`sort=${sort}&dir=${dir}&pageSize=100`)).rows.map((r: { id: number }) => r.id);
+        expect(all).toHaveLength(3);
+        const forwards: number[] = [];
+        let page = await get(`sort=${sort}&dir=${dir}&pageSize=1`);
+        const cursors: string[] = [];
+        for (;;) {
+          forwards.push(page.rows[0].id);
+          if (!page.next) break;
+          cursors.push(page.next);
+          page = await get(`sort=${sort}&dir=${dir}&pageSize=1&after=${page.next}`);
+        }
+        expect(forwards).toEqual(all); // the same order as one long page
+        const backwards: number[] = [page.rows[0].id];
+        while (page.prev) {
+          page = await get(`sort=${sort}&dir=${dir}&pageSize=1&before=${page.prev}`);
+          backwards.unshift(page.rows[0].id);
+        }
+        expect(backwards).toEqual(all);
+        expect(page.prev).toBeNull();
+      }
+    }
+    // awardedTotal is NULL for all three (none marked yet): ties fall back to the id, ascending.
+    const byAwarded = await get('sort=awardedTotal&dir=asc&pageSize=100');
+    expect(byAwarded.rows.map((r: { id: number }) => r.id)).toEqual([...byAwarded.rows.map((r: { id: number }) => r.id)].sort((a, b) => a - b));
+    const own = (await get('pageSize=100')).rows.find((r: { id: number }) => r.id === ownId);
+    const { CheckResult } = models();
+    const checks = await CheckResult.findAll({ where: { submissionId: ownId } });
+    expect(own.summary.within + own.summary.partial + own.summary.outside + own.summary.notChecked).toBe(checks.length);
+    expect(own.summary.outside).toBe(checks.filter((c) => c.verdict === 'outside').length);
+    expect(own.summary.slips.length).toBeGreaterThan(0); // the mass-number slip, by its title
+    expect(own.summary.slips[0].title).not.toBe(own.summary.slips[0].code);
+    expect((await queueGET(await apiRequest('/api/marking/queue?after=bm90LWpzb24', { as: w.people.instructor.id }), {})).status).toBe(400);
+  });
+
   it('refuses a bad filter with 400 and answers an unknown person with an empty queue', async () => {
     expect((await queueGET(await apiRequest('/api/marking/queue?flag=nonsense', { as: w.people.ta.id }), {})).status).toBe(400);
     const none = await (await queueGET(await apiRequest('/api/marking/queue', { as: w.people.nobody.id }), {})).json();

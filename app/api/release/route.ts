@@ -2,10 +2,15 @@ import { authorize, permit } from '@/lib/authz';
 import { json, readJson, route } from '@/lib/http';
 import { deliverOutbox } from '@/lib/mail/outbox';
 import { submissionScope } from '@/lib/marking/access';
-import { releaseMany } from '@/lib/marking/release';
+import { releaseMany, type ReleaseOutcome } from '@/lib/marking/release';
 import { releaseSchema } from '@/lib/schemas/marking';
 
-/** Release one or a batch: { submissionIds }. Every submission must be one the caller may mark. */
+/**
+ * Release one or a batch: { submissionIds }. Every submission must be one the caller may mark.
+ * Answers { results, released } as JSON; a client that accepts application/x-ndjson instead gets
+ * one line per released submission ({ done, total, submissionId, ok }) as it happens, then the
+ * same { results, released } as the last line, so the release screen can show progress.
+ */
 export const POST = route(async (request) => {
   const actor = await authorize(request, { kind: 'signed-in' });
   const { submissionIds } = await readJson(request, releaseSchema);
@@ -13,8 +18,31 @@ export const POST = route(async (request) => {
     const { scope } = await submissionScope(id);
     permit(actor, { kind: 'submission-mark', ...scope });
   }
-  const results = await releaseMany(actor.id, submissionIds);
   // Send now rather than wait for the worker's next tick; failures stay queued and are retried.
-  deliverOutbox().catch((error) => console.error('[oscillab] outbox after release', error));
-  return json({ results, released: results.filter((r) => r.ok).length });
+  const deliver = () => deliverOutbox().catch((error) => console.error('[oscillab] outbox after release', error));
+  const summary = (results: ReleaseOutcome[]) => ({ results, released: results.filter((r) => r.ok).length });
+
+  if (!(request.headers.get('accept') ?? '').includes('application/x-ndjson')) {
+    const results = await releaseMany(actor.id, submissionIds);
+    deliver();
+    return json(summary(results));
+  }
+  const encoder = new TextEncoder();
+  const stream = new ReadableStream<Uint8Array>({
+    async start(controller) {
+      const line = (v: unknown) => controller.enqueue(encoder.encode(`${JSON.stringify(v)}\n`));
+      try {
+        const results = await releaseMany(actor.id, submissionIds, {
+          onProgress: (done, total, o) => line({ done, total, submissionId: o.submissionId, ok: o.ok }),
+        });
+        deliver();
+        line(summary(results));
+      } catch (error) {
+        console.error('[oscillab] release', error);
+        line({ error: 'Something went wrong on our side while releasing; the submissions released so far stay released. The error has been logged.' });
+      }
+      controller.close();
+    },
+  });
+  return new Response(stream, { headers: { 'Content-Type': 'application/x-ndjson; charset=utf-8', 'Cache-Control': 'no-store', 'X-Content-Type-Options': 'nosniff' } });
 });

@@ -1,7 +1,7 @@
 /**
  * GET /api/statistics/practicals/:id[?cohortId=&threshold=] — counts, per-quantity deviation
  * distributions (consistency and accuracy apart), frequent slips and marker consistency for one
- * practical, computed in the database. Definitions: lib/statistics/definitions.ts.
+ * practical, read from the kept statistics (lib/statistics/keep.ts). Definitions: lib/statistics/definitions.ts.
  */
 import { idParam, json, route } from '@/lib/http';
 import { practicalReport, thresholdFrom } from '@/lib/statistics/report';
