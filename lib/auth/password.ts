@@ -28,7 +28,7 @@ export const passwordSchema = z
   .max(72, 'Use at most 72 characters.')
   .refine((p) => new Set(p).size >= 4, 'Use a mix of at least 4 different characters.')
   .refine((p) => Buffer.byteLength(p, 'utf8') <= 72, 'Use at most 72 bytes (fewer accented or special characters).')
-  // eslint-disable-next-line no-control-regex
+  // eslint-disable-next-line no-control-regex -- refusing control characters is the point of this pattern
   .refine((p) => !/[\u0000-\u001f\u007f]/.test(p), 'Use letters, digits, spaces and punctuation only (no control characters).')
   .refine((p) => !isCommonPassword(p), 'That password is on the list of commonly used passwords, which are guessed first; choose another.');
 

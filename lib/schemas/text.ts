@@ -8,10 +8,10 @@ import './jitless';
 import { z } from 'zod';
 
 /** One-line fields: no C0 or C1 controls at all (tabs and line breaks included), no DEL, no Unicode line separators. */
-// eslint-disable-next-line no-control-regex
+// eslint-disable-next-line no-control-regex -- refusing control characters is the point of this pattern
 export const LINE_CONTROL = /[\u0000-\u001f\u007f-\u009f\u2028\u2029]/;
 /** Multi-line fields: tab, line feed and carriage return are text; every other control is refused. */
-// eslint-disable-next-line no-control-regex
+// eslint-disable-next-line no-control-regex -- refusing control characters is the point of this pattern
 export const TEXT_CONTROL = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f-\u009f]/;
 
 export const LINE_MESSAGE = 'Keep this to one line, without tabs or control characters.';
