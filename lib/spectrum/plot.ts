@@ -6,10 +6,10 @@
  */
 import type { LinePeakComparison, Peak, ReportedLine } from './peaks';
 import { toAbsorbance } from './peaks';
+import { isOutlined, MARKER_SHAPE, MARKER_SIZE, markerPath, plotColourCss, type MarkerGroup, type MarkerShape } from './plot-style';
 import type { Spectrum } from './types';
 
-export type MarkerShape = 'triangle-down' | 'circle' | 'diamond' | 'tick';
-export type MarkerGroup = 'P' | 'R' | 'unassigned' | 'peak';
+export type { MarkerGroup, MarkerShape } from './plot-style';
 
 export interface PlotTick {
   value: number;
@@ -79,8 +79,6 @@ export interface PlotModel {
   /** A plain-language summary for screen readers. */
   description: string;
 }
-
-const MARKER_SIZE = 7;
 
 /** Tick values at 1, 2 or 5 × 10ⁿ, about `target` of them. */
 export function niceTicks(min: number, max: number, target = 6): { values: number[]; decimals: number } {
@@ -281,7 +279,7 @@ export function bandPlotModel(input: BandPlotInput): PlotModel {
     markers.push({
       x,
       y: markerY,
-      shape: group === 'P' ? 'triangle-down' : group === 'R' ? 'circle' : 'diamond',
+      shape: MARKER_SHAPE[group],
       group,
       fill: hollow ? 'hollow' : 'solid',
       value: l.wavenumber,
@@ -303,7 +301,7 @@ export function bandPlotModel(input: BandPlotInput): PlotModel {
     markers.push({
       x: round2(px(p.wavenumber)),
       y: round2(Math.max(area.top, Math.min(area.top + area.height, py(h) + (yIsAbsorbance ? -6 : 6)))),
-      shape: 'tick',
+      shape: MARKER_SHAPE.peak,
       group: 'peak',
       fill: 'solid',
       value: p.wavenumber,
@@ -315,12 +313,12 @@ export function bandPlotModel(input: BandPlotInput): PlotModel {
   if (legendHeight > 0) {
     const items: Omit<LegendItem, 'x' | 'y'>[] = [];
     const groups = new Set(markers.map((m) => m.group));
-    if (groups.has('P')) items.push({ shape: 'triangle-down', group: 'P', fill: 'solid', text: 'P branch' });
-    if (groups.has('R')) items.push({ shape: 'circle', group: 'R', fill: 'solid', text: 'R branch' });
-    if (groups.has('unassigned')) items.push({ shape: 'diamond', group: 'unassigned', fill: 'solid', text: 'unassigned' });
-    if (groups.has('peak')) items.push({ shape: 'tick', group: 'peak', fill: 'solid', text: 'picked peak' });
+    const LEGEND_TEXT: Record<MarkerGroup, string> = { P: 'P branch', R: 'R branch', unassigned: 'unassigned', peak: 'picked peak' };
+    for (const group of ['P', 'R', 'unassigned', 'peak'] as const) {
+      if (groups.has(group)) items.push({ shape: MARKER_SHAPE[group], group, fill: 'solid', text: LEGEND_TEXT[group] });
+    }
     if (markers.some((m) => m.fill === 'hollow')) {
-      items.push({ shape: 'diamond', group: 'unassigned', fill: 'hollow', text: 'hollow marker: no peak within tolerance' });
+      items.push({ shape: MARKER_SHAPE.unassigned, group: 'unassigned', fill: 'hollow', text: 'hollow marker: no peak within tolerance' });
     }
     let lx = area.left;
     const ly = height - 10;
@@ -391,7 +389,7 @@ export function residualPlotModel(residuals: Residual[], options: { width?: numb
     return {
       x: round2(px(r.m)),
       y: round2(py(r.residual)),
-      shape: group === 'P' ? 'triangle-down' : 'circle',
+      shape: MARKER_SHAPE[group],
       group,
       fill: 'solid',
       value: r.m,
@@ -400,8 +398,8 @@ export function residualPlotModel(residuals: Residual[], options: { width?: numb
   });
   const ly = height - 10;
   const legend: LegendItem[] = [
-    { x: area.left, y: ly, shape: 'triangle-down', group: 'P', fill: 'solid', text: 'P branch (m < 0)' },
-    { x: area.left + 140, y: ly, shape: 'circle', group: 'R', fill: 'solid', text: 'R branch (m > 0)' },
+    { x: area.left, y: ly, shape: MARKER_SHAPE.P, group: 'P', fill: 'solid', text: 'P branch (m < 0)' },
+    { x: area.left + 140, y: ly, shape: MARKER_SHAPE.R, group: 'R', fill: 'solid', text: 'R branch (m > 0)' },
   ];
   const rms = residuals.length ? Math.sqrt(residuals.reduce((s, r) => s + r.residual ** 2, 0) / residuals.length) : 0;
   const description = `Residuals of ${residuals.length} lines against m, largest ${absMax.toFixed(3)} cm⁻¹, root mean square ${rms.toFixed(3)} cm⁻¹.`;
@@ -431,36 +429,21 @@ export interface RenderSvgOptions {
 const DEFAULT_COLOURS: PlotColours = {
   curve: 'currentColor',
   axis: 'currentColor',
-  grid: 'var(--plot-grid, #d4d4d4)',
-  P: 'var(--plot-branch-p, #a3400b)',
-  R: 'var(--plot-branch-r, #1d5a9e)',
-  unassigned: 'var(--plot-unassigned, #4d4d4d)',
-  peak: 'var(--plot-peak, #5c5c5c)',
+  grid: plotColourCss('grid'),
+  P: plotColourCss('P'),
+  R: plotColourCss('R'),
+  unassigned: plotColourCss('unassigned'),
+  peak: plotColourCss('peak'),
 };
 
 function esc(s: string): string {
   return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
 }
 
-function shapePath(shape: MarkerShape, x: number, y: number, s = MARKER_SIZE): string {
-  const h = s / 2;
-  switch (shape) {
-    case 'triangle-down':
-      return `M${round2(x - h)} ${round2(y - h)}H${round2(x + h)}L${round2(x)} ${round2(y + h)}Z`;
-    case 'diamond':
-      return `M${round2(x)} ${round2(y - h)}L${round2(x + h)} ${round2(y)}L${round2(x)} ${round2(y + h)}L${round2(x - h)} ${round2(y)}Z`;
-    case 'tick':
-      return `M${round2(x)} ${round2(y - h)}V${round2(y + h)}`;
-    case 'circle':
-      // Two arcs make a circle as a path, so every marker is one <path>.
-      return `M${round2(x - h)} ${round2(y)}a${h} ${h} 0 1 0 ${s} 0a${h} ${h} 0 1 0 ${-s} 0Z`;
-  }
-}
-
 function markerStyle(m: { group: MarkerGroup; fill: 'solid' | 'hollow'; shape: MarkerShape }, c: PlotColours): string {
   const colour = c[m.group];
   if (m.shape === 'tick') return `stroke:${colour};stroke-width:1.5;fill:none`;
-  return m.fill === 'solid' ? `fill:${colour};stroke:${colour};stroke-width:1` : `fill:none;stroke:${colour};stroke-width:1.5`;
+  return !isOutlined(m) ? `fill:${colour};stroke:${colour};stroke-width:1` : `fill:none;stroke:${colour};stroke-width:1.5`;
 }
 
 /** An accessible SVG string: role="img", a <title> and <desc>, shapes that differ without colour. */
@@ -509,7 +492,7 @@ export function renderSvg(model: PlotModel, options: RenderSvgOptions): string {
     if (m.guide) {
       o.push(`<line x1="${m.x}" y1="${m.guide.y1}" x2="${m.x}" y2="${m.guide.y2}" style="stroke:${colour};stroke-width:0.75;${m.fill === 'hollow' ? 'stroke-dasharray:3 2;' : ''}opacity:0.8"/>`);
     }
-    o.push(`<path d="${shapePath(m.shape, m.x, m.y)}" style="${markerStyle(m, c)}"/>`);
+    o.push(`<path d="${markerPath(m.shape, m.x, m.y)}" style="${markerStyle(m, c)}"/>`);
     if (m.label && m.labelX !== undefined && m.labelY !== undefined) {
       const angle = -(m.labelAngle ?? 0);
       o.push(`<text x="${m.labelX}" y="${m.labelY}" transform="rotate(${angle} ${m.labelX} ${m.labelY})" style="fill:${colour};font-size:10px">${esc(m.label)}</text>`);
@@ -520,7 +503,7 @@ export function renderSvg(model: PlotModel, options: RenderSvgOptions): string {
   if (model.legend.length > 0) {
     o.push('<g class="legend" aria-hidden="true">');
     for (const l of model.legend) {
-      o.push(`<path d="${shapePath(l.shape, l.x + 5, l.y - 4)}" style="${markerStyle(l, c)}"/>`);
+      o.push(`<path d="${markerPath(l.shape, l.x + 5, l.y - 4)}" style="${markerStyle(l, c)}"/>`);
       o.push(`<text x="${l.x + 14}" y="${l.y}" style="fill:${c.axis}">${esc(l.text)}</text>`);
     }
     o.push('</g>');
