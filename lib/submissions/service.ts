@@ -18,7 +18,7 @@ import { audit } from '@/lib/audit';
 import { sequelize } from '@/lib/db';
 import { HttpError } from '@/lib/http';
 import { uploadPath } from '@/lib/storage';
-import { isQuantityKey, QUANTITIES } from '@/lib/grading';
+import { isQuantityKey } from '@/lib/grading';
 import { models } from '@/models';
 import type { Practical } from '@/models/practical';
 import type { Submission } from '@/models/submission';
