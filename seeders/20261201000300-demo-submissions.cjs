@@ -1,13 +1,13 @@
 'use strict';
 /**
- * Demo submissions (fictional) for CHEM2041, made by lib/submissions/seed-demo.ts from simulated
+ * Demo submissions (fictional) for CHEM2041, made by seeders/generators/submissions.ts from simulated
  * line lists; each is checked by checkStoredSubmission. Skips quietly when the demo practicals
  * are not there. Idempotent.
  */
 module.exports = {
   async up() {
     // db:seed runs under `node --import tsx`, so the TypeScript module can be required directly.
-    const { seedDemoSubmissions } = require('../lib/submissions/seed-demo.ts');
+    const { seedDemoSubmissions } = require('./generators/submissions.ts');
     const result = await seedDemoSubmissions();
     if (result.skipped) console.log(`[demo-submissions] skipped: ${result.skipped}`);
     else console.log(`[demo-submissions] ${result.created} submissions created`);

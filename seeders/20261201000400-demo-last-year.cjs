@@ -2,13 +2,13 @@
 /**
  * Demo (fictional): last year's CHEM2041 cohort "Group A, 2025 Autumn" with a copy of "HCl/DCl
  * fundamental band" and 20 alumni's checked, marked and released submissions, so the statistics
- * page can compare 2025 with 2026. Built by lib/statistics/demo-last-year.ts with the real engine
+ * page can compare 2025 with 2026. Built by seeders/generators/last-year.ts with the real engine
  * and marking code. Idempotent.
  */
 module.exports = {
   async up() {
     // db:seed runs under `node --import tsx`, so the TypeScript module can be required directly.
-    const { seedLastYearDemo } = require('../lib/statistics/demo-last-year.ts');
+    const { seedLastYearDemo } = require('./generators/last-year.ts');
     const result = await seedLastYearDemo();
     if (result.skipped) console.log(`[demo-last-year] skipped: ${result.skipped}`);
     else console.log(`[demo-last-year] ${result.created} submissions created`);

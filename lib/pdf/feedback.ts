@@ -10,7 +10,8 @@ import { fill, templateText } from '@/lib/templates';
 import type { PlotModel } from '@/lib/spectrum';
 import { drawPlot } from './draw-plot';
 import { verdictInfo } from '@/lib/marking/verdict';
-import { coversText, embedSharedFont, isSharedFont, loadFontBytes } from './fonts';
+import { embedFonts, wrap } from './fonts';
+import { A4, INK, SOFT } from './style';
 
 export type FeedbackInput = {
   course: string;
@@ -45,8 +46,6 @@ export type FeedbackInput = {
 
 type Fonts = { regular: PDFFont; bold: PDFFont; mono: PDFFont };
 
-export { loadFontBytes } from './fonts';
-
 function texts(): Record<string, string> {
   const out: Record<string, string> = {};
   for (const line of templateText('pdf/feedback.txt').split('\n')) {
@@ -57,54 +56,8 @@ function texts(): Record<string, string> {
   return out;
 }
 
-const A4 = { width: 595.28, height: 841.89 };
 const MARGIN = 42;
-const INK = rgb(0.11, 0.15, 0.19);
-const SOFT = rgb(0.29, 0.33, 0.38);
 const RULE = rgb(0.85, 0.84, 0.78);
-
-/**
- * Text widths at size 1, cached across documents per font: fontkit's layout is the slow part
- * of pdf-lib, and the same words recur in every feedback document of a batch.
- */
-const widthCache = new Map<string, number>();
-export function textWidth(text: string, font: PDFFont, size: number): number {
-  if (isSharedFont(font)) return font.widthOfTextAtSize(text, size); // a table lookup per character
-  const key = `${font.name}|${text}`;
-  let w = widthCache.get(key);
-  if (w === undefined) {
-    w = font.widthOfTextAtSize(text, 1);
-    if (widthCache.size > 50_000) widthCache.clear();
-    widthCache.set(key, w);
-  }
-  return w * size;
-}
-
-export function wrap(text: string, font: PDFFont, size: number, width: number): string[] {
-  const out: string[] = [];
-  const space = textWidth(' ', font, size);
-  for (const para of text.split('\n')) {
-    let line = '';
-    let lineWidth = 0;
-    // Split at ordinary spaces only: a no-break space keeps a number with its unit.
-    for (const word of para.split(/[ \t\r\f\v]+/).filter(Boolean)) {
-      const ww = textWidth(word, font, size);
-      if (!line) {
-        line = word;
-        lineWidth = ww;
-      } else if (lineWidth + space + ww <= width) {
-        line = `${line} ${word}`;
-        lineWidth += space + ww;
-      } else {
-        out.push(line);
-        line = word;
-        lineWidth = ww;
-      }
-    }
-    out.push(line);
-  }
-  return out;
-}
 
 class Writer {
   page!: PDFPage;
@@ -162,15 +115,7 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
   const doc = await PDFDocument.create();
   doc.registerFontkit(fontkit);
   // The fonts prepared once per process (fonts.ts), unless some text needs a character they lack.
-  const shared = await coversText(JSON.stringify(input) + Object.values(T).join(''));
-  const bytes = loadFontBytes();
-  const f: Fonts = shared
-    ? { regular: await embedSharedFont(doc, 'regular'), bold: await embedSharedFont(doc, 'bold'), mono: await embedSharedFont(doc, 'mono') }
-    : {
-        regular: await doc.embedFont(bytes.regular, { subset: true }),
-        bold: await doc.embedFont(bytes.bold, { subset: true }),
-        mono: await doc.embedFont(bytes.mono, { subset: true }),
-      };
+  const f: Fonts = await embedFonts(doc, ['regular', 'bold', 'mono'], JSON.stringify(input) + Object.values(T).join(''));
   doc.setTitle(`${fill(T.title, {})}: ${input.practical}`);
   doc.setAuthor('Oscillab');
   doc.setSubject(`${input.course} · ${input.student}`);

@@ -185,3 +185,71 @@ export async function embedSharedFont(doc: PDFDocument, name: FontName): Promise
   (doc as unknown as { fonts: PDFFont[] }).fonts.push(font);
   return font;
 }
+
+/**
+ * The named fonts embedded into a document: from the shared subset when every character of
+ * `text` (all the document will say) is in it, else as pdf-lib's per-document subsets.
+ */
+export async function embedFonts<N extends FontName>(doc: PDFDocument, names: readonly N[], text: string): Promise<Record<N, PDFFont>> {
+  const shared = await coversText(text);
+  const bytes = loadFontBytes();
+  const out = {} as Record<N, PDFFont>;
+  for (const name of names) out[name] = shared ? await embedSharedFont(doc, name) : await doc.embedFont(bytes[name], { subset: true });
+  return out;
+}
+
+/**
+ * Text widths at size 1, cached across documents per font: fontkit's layout is the slow part
+ * of pdf-lib, and the same words recur in every document of a batch.
+ */
+const widthCache = new Map<string, number>();
+export function textWidth(text: string, font: PDFFont, size: number): number {
+  if (isSharedFont(font)) return font.widthOfTextAtSize(text, size); // a table lookup per character
+  const key = `${font.name}|${text}`;
+  let w = widthCache.get(key);
+  if (w === undefined) {
+    w = font.widthOfTextAtSize(text, 1);
+    if (widthCache.size > 50_000) widthCache.clear();
+    widthCache.set(key, w);
+  }
+  return w * size;
+}
+
+/** A word wider than the line, cut into pieces that fit (the last piece returned on its own). */
+function cutWord(word: string, font: PDFFont, size: number, width: number, out: string[]): string {
+  let w = word;
+  while (textWidth(w, font, size) > width && w.length > 1) {
+    let cut = w.length - 1;
+    while (cut > 1 && textWidth(w.slice(0, cut), font, size) > width) cut--;
+    out.push(w.slice(0, cut));
+    w = w.slice(cut);
+  }
+  return w;
+}
+
+/**
+ * Text into lines no wider than `width`: each paragraph (split at newlines) on its own, words
+ * split at ordinary spaces only, so a no-break space keeps a number with its unit. With
+ * `breakWords`, a word longer than the line is cut by characters; otherwise it overflows.
+ */
+export function wrap(text: string, font: PDFFont, size: number, width: number, options: { breakWords?: boolean } = {}): string[] {
+  const out: string[] = [];
+  const space = textWidth(' ', font, size);
+  for (const para of text.split('\n')) {
+    let line = '';
+    let lineWidth = 0;
+    for (const word of para.split(/[ \t\r\f\v]+/).filter(Boolean)) {
+      const ww = textWidth(word, font, size);
+      if (line && lineWidth + space + ww <= width) {
+        line = `${line} ${word}`;
+        lineWidth += space + ww;
+        continue;
+      }
+      if (line) out.push(line);
+      line = options.breakWords && ww > width ? cutWord(word, font, size, width, out) : word;
+      lineWidth = line === word ? ww : textWidth(line, font, size);
+    }
+    out.push(line);
+  }
+  return out;
+}

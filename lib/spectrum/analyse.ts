@@ -42,106 +42,10 @@ import {
 import { detectLines, fitGroup, prepareSpectrum, refineLines, remeasureShape, type DetectedLine, type LineShapeReport, type PreparedSpectrum } from './detect';
 import type { LineProfile } from './lineshape';
 import type { Spectrum } from './types';
+import type { AnalyseOptions, AssignedLine, BandAnalysis, BandFitReport, BandStatus, CalibrationReport, ExcludedLine, UnassignedLine } from './analysis-types';
 import { analyseVibration, type VibrationalAnalysis } from './vibration';
 
-export interface AnalyseOptions {
-  /** Molecules in the cell: "HCl", "DCl", "HBr", "CO", or single isotopologues such as "H35Cl". */
-  species: readonly string[];
-  /** Largest calibration offset looked for, cm⁻¹ (default 25). */
-  maxOffset?: number;
-  /** Bands looked for (default both). */
-  bands?: readonly BandKind[];
-}
-
-export interface AssignedLine {
-  branch: 'P' | 'R';
-  J: number;
-  /** Position from the line-shape fit, cm⁻¹. */
-  wavenumber: number;
-  /** Height above the local baseline, absorbance. */
-  intensity: number;
-  /** Standard error of the position from the line-shape fit, cm⁻¹. */
-  stdError: number;
-  /** Observed − fitted, cm⁻¹ (0 until fitted). */
-  residual: number;
-  /** Found by looking where the band predicts a line (a weak line or a shoulder). */
-  probed: boolean;
-}
-
-export interface ExcludedLine {
-  branch: 'P' | 'R';
-  J: number;
-  wavenumber: number;
-  reason: string;
-}
-
-export interface BandFitReport {
-  model: 'quadratic' | 'cubic';
-  modelNote: string;
-  /** Band origin ν̃₀ as recorded (no calibration correction), cm⁻¹. */
-  nu0: Estimate;
-  B0: Estimate;
-  /** B of the upper level: B₁ for the fundamental, B₂ for the overtone. */
-  Bupper: Estimate;
-  Be: Estimate;
-  alphaE: Estimate;
-  D?: Estimate;
-  /** Bond lengths, Å. */
-  re?: Estimate;
-  r0?: Estimate;
-  /** Root-mean-square residual, cm⁻¹. */
-  rms: number;
-  otherModelRms?: number;
-  /** The same constants from the model not chosen (with or without D), for comparison with a student who used it. */
-  alternative?: { model: 'quadratic' | 'cubic'; nu0: Estimate; B0: Estimate; Bupper: Estimate; Be: Estimate; alphaE: Estimate; D?: Estimate };
-  lineCount: number;
-  degreesOfFreedom: number;
-}
-
-export type BandStatus = 'fitted' | 'too-few-lines' | 'not-found' | 'outside-range' | 'unresolved';
-
-export interface BandAnalysis {
-  isotopologue: string;
-  display: string;
-  molecule: string;
-  band: BandKind;
-  /** "H³⁵Cl fundamental (1←0)". */
-  label: string;
-  status: BandStatus;
-  predictedOrigin: number;
-  /** Where the band's lines lie (lines at least 1 % of its strongest), cm⁻¹. */
-  predictedRange: [number, number];
-  lines: AssignedLine[];
-  /** Predicted lines within the recorded range, as strong as lines that were found, not seen. */
-  missing: string[];
-  excluded: ExcludedLine[];
-  fit: BandFitReport | null;
-  warnings: string[];
-}
-
-export interface UnassignedLine {
-  wavenumber: number;
-  intensity: number;
-  snr: number;
-}
-
-export interface CalibrationReport {
-  /**
-   * The calibration error found: ν̃(recorded) = ν̃(published) + offset + scale·(ν̃(published) − referenceWavenumber).
-   * The scale is part of it only when it is clearly there (else null, and the offset is the weighted mean difference).
-   */
-  offset: Estimate;
-  scale: Estimate | null;
-  referenceWavenumber: number;
-  /** The scale as fitted even when it is not clear (bands spread over ≥ 1000 cm⁻¹ only). */
-  fittedScale?: Estimate;
-  bandsCompared: number;
-  /** True when the offset or the scale is clearly more than the published origins' own uncertainty. */
-  detected: boolean;
-  message: string;
-  /** Each band's fitted origin minus the published one, cm⁻¹. */
-  perBand: { label: string; difference: number; stdError: number }[];
-}
+export type { AnalyseOptions, AssignedLine, BandAnalysis, BandFitReport, BandStatus, CalibrationReport, ExcludedLine, UnassignedLine } from './analysis-types';
 
 export interface SpectrumAnalysis {
   ok: boolean;
@@ -722,22 +626,8 @@ function assignGroups(ctx: Context, active: Group[], maxOffset: number): { group
   return out;
 }
 
-export function analyseSpectrum(spectrum: Spectrum, options: AnalyseOptions): SpectrumAnalysis {
-  const problems: string[] = [];
-  const names = [...new Set((options.species ?? []).map((s) => String(s).trim()).filter(Boolean))];
-  const { isotopologues, problems: nameProblems } = isotopologuesOfAll(names);
-  problems.push(...nameProblems);
-  const bandKinds = options.bands?.length ? [...new Set(options.bands)] : (['fundamental', 'overtone'] as BandKind[]);
-  const maxOffset = Math.min(100, Math.max(0, options.maxOffset ?? 25));
-
-  const prep = prepareSpectrum(spectrum);
-  const search = detectLines(prep);
-  const x0 = prep.x[0];
-  const x1 = prep.x[prep.x.length - 1];
-  const ctx: Context = { prep, shape: search.shape, profile: search.profile, found: search.lines.slice(), x0, x1 };
-  if (prep.resampled) problems.push('The spectrum’s points are not evenly spaced; they were put on an even grid before the analysis.');
-
-  // Groups: one per named molecule and band, isotopologues most abundant first.
+/** One group per named molecule and band, its isotopologues most abundant first. */
+function bandGroups(isotopologues: Isotopologue[], bandKinds: BandKind[]): Group[] {
   const groups: Group[] = [];
   const byMolecule = new Map<string, Isotopologue[]>();
   for (const iso of isotopologues) byMolecule.set(iso.molecule, [...(byMolecule.get(iso.molecule) ?? []), iso]);
@@ -748,15 +638,16 @@ export function analyseSpectrum(spectrum: Spectrum, options: AnalyseOptions): Sp
       groups.push({ molecule, band, members, extent: bandExtent(members[0]) });
     }
   }
+  return groups;
+}
 
-  const analyses: BandAnalysis[] = [];
-  const works: { group: Group; works: Work[] }[] = [];
-  const covered = (g: Group) => g.extent[1] + maxOffset > x0 && g.extent[0] - maxOffset < x1;
-  const active = groups.filter(covered);
-  works.push(...assignGroups(ctx, active, maxOffset));
-  // A blended isotope doublet (a resolution of 1–2 cm⁻¹ puts H³⁷Cl on the flank of H³⁵Cl) makes the
-  // instrument's shape look broader than it is and hides the weaker line. With the first assignment
-  // the partners' places are known: measure the shape again with them, look for them there, assign again.
+type GroupWorks = { group: Group; works: Work[] }[];
+
+/**
+ * Where the first assignment puts the partners of blended isotope doublets: every partner's
+ * place, and the strong main lines whose partner is not assigned yet (main line, partner).
+ */
+function blendedPartners(works: GroupWorks, ctx: Context): { pairs: { main: number; partner: number }[]; partnerPlaces: number[] } {
   const pairs: { main: number; partner: number }[] = [];
   const partnerPlaces: number[] = [];
   for (const { works: ws } of works) {
@@ -772,23 +663,34 @@ export function analyseSpectrum(spectrum: Spectrum, options: AnalyseOptions): Sp
       }
     }
   }
-  if (pairs.length >= 3) {
-    pairs.sort((u, v) => Math.abs(u.main - u.partner) - Math.abs(v.main - v.partner));
-    const again = remeasureShape(prep, pairs.slice(0, 12), ctx.shape.fwhm);
-    if (again) {
-      const at = ctx.found.filter((l) => !l.probed).map((l) => ({ wavenumber: l.wavenumber, probed: false }));
-      for (const w of partnerPlaces) if (!at.some((x) => Math.abs(x.wavenumber - w) < 0.35 * again.shape.fwhm)) at.push({ wavenumber: w, probed: true });
-      ctx.found = refineLines(prep, again.profile, at);
-      ctx.shape = again.shape;
-      ctx.profile = again.profile;
-      works.length = 0;
-      works.push(...assignGroups(ctx, active, maxOffset));
-    }
-  }
+  return { pairs, partnerPlaces };
+}
+
+/**
+ * Every active group assigned. A blended isotope doublet (a resolution of 1–2 cm⁻¹ puts H³⁷Cl on
+ * the flank of H³⁵Cl) makes the instrument's shape look broader than it is and hides the weaker
+ * line. With the first assignment the partners' places are known: measure the shape again with
+ * them, look for them there, assign again (ctx then holds the new shape and lines).
+ */
+function assignAll(ctx: Context, active: Group[], maxOffset: number): GroupWorks {
+  const first = assignGroups(ctx, active, maxOffset);
+  const { pairs, partnerPlaces } = blendedPartners(first, ctx);
+  if (pairs.length < 3) return first;
+  pairs.sort((u, v) => Math.abs(u.main - u.partner) - Math.abs(v.main - v.partner));
+  const again = remeasureShape(ctx.prep, pairs.slice(0, 12), ctx.shape.fwhm);
+  if (!again) return first;
+  const at = ctx.found.filter((l) => !l.probed).map((l) => ({ wavenumber: l.wavenumber, probed: false }));
+  for (const w of partnerPlaces) if (!at.some((x) => Math.abs(x.wavenumber - w) < 0.35 * again.shape.fwhm)) at.push({ wavenumber: w, probed: true });
+  ctx.found = refineLines(ctx.prep, again.profile, at);
+  ctx.shape = again.shape;
+  ctx.profile = again.profile;
+  return assignGroups(ctx, active, maxOffset);
+}
+
+/** A line claimed by two bands belongs to neither: it is left out of both, with the reason. */
+function leaveOutSharedLines(works: GroupWorks): void {
   const claimedBy = new Map<DetectedLine, Work[]>();
   for (const { works: ws } of works) for (const w of ws) for (const l of w.assigned.values()) claimedBy.set(l, [...(claimedBy.get(l) ?? []), w]);
-
-  // A line claimed by two bands belongs to neither.
   for (const [line, owners] of claimedBy) {
     if (owners.length < 2) continue;
     for (const w of owners) {
@@ -802,11 +704,10 @@ export function analyseSpectrum(spectrum: Spectrum, options: AnalyseOptions): Sp
       }
     }
   }
+}
 
-  // Final fits and reports.
-  const fittedOrigins: { label: string; fitted: Estimate; reference: number; referenceUncertainty: number }[] = [];
-  const claimed = new Set<DetectedLine>();
-  // Final fits first (all of them, so every band's predictions are its best), then the reports.
+/** Final fits of every band (all of them first, so every band's predictions are its best), and each band's status. */
+function fitAll(works: GroupWorks, ctx: Context): void {
   for (const { works: ws } of works) {
     for (const w of ws) {
       if (w.status === 'unresolved') continue;
@@ -814,111 +715,134 @@ export function analyseSpectrum(spectrum: Spectrum, options: AnalyseOptions): Sp
       w.status = w.fit ? 'fitted' : w.assigned.size > 0 ? 'too-few-lines' : 'not-found';
     }
   }
-  nameBlends(works.flatMap((g) => g.works), ctx);
-  for (const { group, works: ws } of works) {
-    for (const w of ws) {
-      const iso = w.prediction.isotopologue;
-      for (const l of w.assigned.values()) claimed.add(l);
-      for (const l of w.excludedLines) claimed.add(l);
-      const report = w.status === 'fitted' ? fitReport(w) : null;
-      const residualOf = new Map<number, number>();
-      if (w.fit) for (const r of w.fit.residuals) residualOf.set(r.m, r.residual);
-      const lines: AssignedLine[] = [...w.assigned]
-        .sort((a, b) => a[1].wavenumber - b[1].wavenumber)
-        .map(([m, l]) => ({
-          branch: m > 0 ? 'R' : 'P',
-          J: m > 0 ? m - 1 : -m,
-          wavenumber: l.wavenumber,
-          intensity: peakAbsorbance(ctx, l),
-          stdError: l.sigma,
-          residual: residualOf.get(m) ?? 0,
-          probed: l.probed,
-        }));
-      const bandLabel = `${iso.display} ${BAND_LABEL[w.prediction.band]}`;
-      const extent = bandExtent(w.prediction);
-      const warnings = [...w.warnings];
-      // Lines the band should show here that were not found.
-      const missing: string[] = [];
-      updateHeightScale(w);
-      if (w.status === 'fitted' || w.status === 'too-few-lines') {
-        const weakestFound = Math.min(...[...w.assigned].map(([m]) => w.prediction.lines.find((p) => p.m === m)?.intensity ?? Infinity));
-        for (const p of w.prediction.lines) {
-          if (w.assigned.has(p.m) || w.excluded.some((e) => (e.branch === 'R' ? e.J + 1 : -e.J) === p.m)) continue;
-          const c = linePosition(w.constants, p.m);
-          if (!inRange(ctx, c) || p.intensity < weakestFound) continue;
-          missing.push(label({ branch: p.m > 0 ? 'R' : 'P', J: p.m > 0 ? p.m - 1 : -p.m }));
-        }
-        if (missing.length) warnings.push(`Not found although as strong as lines that were: ${missing.join(', ')}.`);
-      }
-      let status: BandStatus = w.status;
-      if (extent[1] < x0 || extent[0] > x1) {
-        status = 'outside-range';
-        warnings.length = 0;
-      } else if (extent[0] < x0 || extent[1] > x1) {
-        warnings.push(`Part of the band (${fmt(extent[0], 0)}–${fmt(extent[1], 0)} cm⁻¹) lies outside the recorded range (${fmt(x0, 0)}–${fmt(x1, 0)} cm⁻¹).`);
-      }
-      if (status === 'fitted' && report) {
-        if (report.lineCount < 8) warnings.push(`Only ${report.lineCount} lines were fitted: the standard errors are rough.`);
-        const probedCount = lines.filter((l) => l.probed).length;
-        if (probedCount) warnings.push(`${probedCount} weak line${probedCount === 1 ? ' was' : 's were'} found by looking where the band predicts ${probedCount === 1 ? 'it' : 'them'}.`);
-        if (w.excluded.length) warnings.push(`Left out of the fit: ${w.excluded.map((e) => `${label(e)} at ${fmt(e.wavenumber, 3)} cm⁻¹ (${e.reason})`).join('; ')}.`);
-        fittedOrigins.push({
-          label: bandLabel,
-          fitted: report.nu0,
-          reference: w.prediction.termOrigin.value,
-          referenceUncertainty: w.prediction.termOrigin.uncertainty,
-        });
-      }
-      if (status === 'not-found' && w.prediction.isotopologue.rank > 0) {
-        const main = ws[0];
-        updateHeightScale(main);
-        const strongestMinor = Math.max(...w.prediction.lines.map((l) => l.intensity));
-        const expected = main.heightScale * strongestMinor;
-        const noise = noiseAt(ctx, w.prediction.constants.origin);
-        if (main.assigned.size > 0 && expected < 3 * noise) {
-          warnings.push(`Its strongest lines would be about ${fmt(expected / noise, 1)} times the noise, too weak to be found.`);
-        }
-      }
-      analyses.push({
-        isotopologue: iso.formula,
-        display: iso.display,
-        molecule: iso.molecule,
-        band: w.prediction.band,
-        label: bandLabel,
-        status,
-        predictedOrigin: w.prediction.constants.origin,
-        predictedRange: extent,
-        lines: status === 'outside-range' ? [] : lines,
-        missing: status === 'outside-range' ? [] : missing,
-        excluded: w.excluded,
-        fit: status === 'fitted' ? report : null,
-        warnings,
-      });
-    }
-    void group;
+}
+
+/** The band's assigned lines in wavenumber order, with their residuals from the final fit. */
+function assignedLinesOf(w: Work, ctx: Context): AssignedLine[] {
+  const residualOf = new Map<number, number>();
+  if (w.fit) for (const r of w.fit.residuals) residualOf.set(r.m, r.residual);
+  return [...w.assigned]
+    .sort((a, b) => a[1].wavenumber - b[1].wavenumber)
+    .map(([m, l]) => ({
+      branch: m > 0 ? 'R' : 'P',
+      J: m > 0 ? m - 1 : -m,
+      wavenumber: l.wavenumber,
+      intensity: peakAbsorbance(ctx, l),
+      stdError: l.sigma,
+      residual: residualOf.get(m) ?? 0,
+      probed: l.probed,
+    }));
+}
+
+/** Lines the band should show within the recorded range, as strong as lines that were found, but not found. */
+function missingLines(w: Work, ctx: Context): string[] {
+  const missing: string[] = [];
+  if (w.status !== 'fitted' && w.status !== 'too-few-lines') return missing;
+  const weakestFound = Math.min(...[...w.assigned].map(([m]) => w.prediction.lines.find((p) => p.m === m)?.intensity ?? Infinity));
+  for (const p of w.prediction.lines) {
+    if (w.assigned.has(p.m) || w.excluded.some((e) => (e.branch === 'R' ? e.J + 1 : -e.J) === p.m)) continue;
+    const c = linePosition(w.constants, p.m);
+    if (!inRange(ctx, c) || p.intensity < weakestFound) continue;
+    missing.push(label({ branch: p.m > 0 ? 'R' : 'P', J: p.m > 0 ? p.m - 1 : -p.m }));
   }
-  // Groups left out of the search because they lie far outside the range.
-  for (const g of groups) {
-    if (active.includes(g)) continue;
-    for (const p of g.members) {
-      analyses.push({
-        isotopologue: p.isotopologue.formula,
-        display: p.isotopologue.display,
-        molecule: p.isotopologue.molecule,
-        band: p.band,
-        label: `${p.isotopologue.display} ${BAND_LABEL[p.band]}`,
-        status: 'outside-range',
-        predictedOrigin: p.constants.origin,
-        predictedRange: bandExtent(p),
-        lines: [],
-        missing: [],
-        excluded: [],
-        fit: null,
-        warnings: [],
-      });
-    }
+  return missing;
+}
+
+/** What a fitted band's report adds to its warnings: few lines, lines found by probing, lines left out. */
+function fitWarnings(w: Work, report: BandFitReport, lines: AssignedLine[]): string[] {
+  const warnings: string[] = [];
+  if (report.lineCount < 8) warnings.push(`Only ${report.lineCount} lines were fitted: the standard errors are rough.`);
+  const probedCount = lines.filter((l) => l.probed).length;
+  if (probedCount) warnings.push(`${probedCount} weak line${probedCount === 1 ? ' was' : 's were'} found by looking where the band predicts ${probedCount === 1 ? 'it' : 'them'}.`);
+  if (w.excluded.length) warnings.push(`Left out of the fit: ${w.excluded.map((e) => `${label(e)} at ${fmt(e.wavenumber, 3)} cm⁻¹ (${e.reason})`).join('; ')}.`);
+  return warnings;
+}
+
+/** For a minor isotopologue not found: whether its lines would have been too weak to find, beside the main one's. */
+function tooWeakWarning(w: Work, main: Work, ctx: Context): string | null {
+  updateHeightScale(main);
+  const strongestMinor = Math.max(...w.prediction.lines.map((l) => l.intensity));
+  const expected = main.heightScale * strongestMinor;
+  const noise = noiseAt(ctx, w.prediction.constants.origin);
+  if (main.assigned.size > 0 && expected < 3 * noise) return `Its strongest lines would be about ${fmt(expected / noise, 1)} times the noise, too weak to be found.`;
+  return null;
+}
+
+type FittedOrigin = { label: string; fitted: Estimate; reference: number; referenceUncertainty: number };
+
+/**
+ * One band's analysis from its work, after the final fits. Adds the lines it used or left out to
+ * `claimed`, and its fitted origin (when fitted) to `fittedOrigins` for the calibration report.
+ */
+function bandAnalysisOf(w: Work, main: Work, ctx: Context, claimed: Set<DetectedLine>, fittedOrigins: FittedOrigin[]): BandAnalysis {
+  const iso = w.prediction.isotopologue;
+  for (const l of w.assigned.values()) claimed.add(l);
+  for (const l of w.excludedLines) claimed.add(l);
+  const report = w.status === 'fitted' ? fitReport(w) : null;
+  const lines = assignedLinesOf(w, ctx);
+  const bandLabel = `${iso.display} ${BAND_LABEL[w.prediction.band]}`;
+  const extent = bandExtent(w.prediction);
+  const warnings = [...w.warnings];
+  updateHeightScale(w);
+  const missing = missingLines(w, ctx);
+  if (missing.length) warnings.push(`Not found although as strong as lines that were: ${missing.join(', ')}.`);
+  let status: BandStatus = w.status;
+  if (extent[1] < ctx.x0 || extent[0] > ctx.x1) {
+    status = 'outside-range';
+    warnings.length = 0;
+  } else if (extent[0] < ctx.x0 || extent[1] > ctx.x1) {
+    warnings.push(`Part of the band (${fmt(extent[0], 0)}–${fmt(extent[1], 0)} cm⁻¹) lies outside the recorded range (${fmt(ctx.x0, 0)}–${fmt(ctx.x1, 0)} cm⁻¹).`);
   }
-  // Plain words for bands the spectrum does not show.
+  if (status === 'fitted' && report) {
+    warnings.push(...fitWarnings(w, report, lines));
+    fittedOrigins.push({ label: bandLabel, fitted: report.nu0, reference: w.prediction.termOrigin.value, referenceUncertainty: w.prediction.termOrigin.uncertainty });
+  }
+  if (status === 'not-found' && iso.rank > 0) {
+    const weak = tooWeakWarning(w, main, ctx);
+    if (weak) warnings.push(weak);
+  }
+  const outside = status === 'outside-range';
+  return {
+    isotopologue: iso.formula,
+    display: iso.display,
+    molecule: iso.molecule,
+    band: w.prediction.band,
+    label: bandLabel,
+    status,
+    predictedOrigin: w.prediction.constants.origin,
+    predictedRange: extent,
+    lines: outside ? [] : lines,
+    missing: outside ? [] : missing,
+    excluded: w.excluded,
+    fit: status === 'fitted' ? report : null,
+    warnings,
+  };
+}
+
+/** The bands of groups left out of the search because they lie far outside the range. */
+function outsideRangeAnalyses(groups: Group[]): BandAnalysis[] {
+  return groups.flatMap((g) =>
+    g.members.map((p): BandAnalysis => ({
+      isotopologue: p.isotopologue.formula,
+      display: p.isotopologue.display,
+      molecule: p.isotopologue.molecule,
+      band: p.band,
+      label: `${p.isotopologue.display} ${BAND_LABEL[p.band]}`,
+      status: 'outside-range',
+      predictedOrigin: p.constants.origin,
+      predictedRange: bandExtent(p),
+      lines: [],
+      missing: [],
+      excluded: [],
+      fit: null,
+      warnings: [],
+    })),
+  );
+}
+
+/** Plain words for bands the spectrum does not show. */
+function bandProblems(analyses: BandAnalysis[], x0: number, x1: number): string[] {
+  const problems: string[] = [];
   for (const b of analyses) {
     if (b.status === 'outside-range') {
       problems.push(`The ${b.label} lies near ${fmt(b.predictedOrigin, 0)} cm⁻¹, outside the recorded range (${fmt(x0, 0)}–${fmt(x1, 0)} cm⁻¹).`);
@@ -928,7 +852,42 @@ export function analyseSpectrum(spectrum: Spectrum, options: AnalyseOptions): Sp
       problems.push(`Only ${b.lines.length} line${b.lines.length === 1 ? '' : 's'} of the ${b.label} ${b.lines.length === 1 ? 'was' : 'were'} found; at least ${MIN_FIT_LINES} are needed for a fit.`);
     }
   }
+  return problems;
+}
 
+export function analyseSpectrum(spectrum: Spectrum, options: AnalyseOptions): SpectrumAnalysis {
+  const problems: string[] = [];
+  const names = [...new Set((options.species ?? []).map((s) => String(s).trim()).filter(Boolean))];
+  const { isotopologues, problems: nameProblems } = isotopologuesOfAll(names);
+  problems.push(...nameProblems);
+  const bandKinds = options.bands?.length ? [...new Set(options.bands)] : (['fundamental', 'overtone'] as BandKind[]);
+  const maxOffset = Math.min(100, Math.max(0, options.maxOffset ?? 25));
+
+  // 1. Lines found and measured on the spectrum.
+  const prep = prepareSpectrum(spectrum);
+  const search = detectLines(prep);
+  const x0 = prep.x[0];
+  const x1 = prep.x[prep.x.length - 1];
+  const ctx: Context = { prep, shape: search.shape, profile: search.profile, found: search.lines.slice(), x0, x1 };
+  if (prep.resampled) problems.push('The spectrum’s points are not evenly spaced; they were put on an even grid before the analysis.');
+
+  // 2–5. Bands predicted, assigned near the recorded range, fitted.
+  const groups = bandGroups(isotopologues, bandKinds);
+  const active = groups.filter((g) => g.extent[1] + maxOffset > x0 && g.extent[0] - maxOffset < x1);
+  const works = assignAll(ctx, active, maxOffset);
+  leaveOutSharedLines(works);
+  fitAll(works, ctx);
+  nameBlends(works.flatMap((g) => g.works), ctx);
+
+  // Reports, band by band.
+  const fittedOrigins: FittedOrigin[] = [];
+  const claimed = new Set<DetectedLine>();
+  const analyses: BandAnalysis[] = [];
+  for (const { works: ws } of works) for (const w of ws) analyses.push(bandAnalysisOf(w, ws[0], ctx, claimed, fittedOrigins));
+  analyses.push(...outsideRangeAnalyses(groups.filter((g) => !active.includes(g))));
+  problems.push(...bandProblems(analyses, x0, x1));
+
+  // 6. Calibration; 7. vibrational constants.
   const calibration = calibrationReport(fittedOrigins);
   if (calibration?.detected) problems.push(calibration.message);
 

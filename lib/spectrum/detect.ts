@@ -438,7 +438,6 @@ export function fitGroup(p: PreparedSpectrum, profile: LineProfile, centresIn: n
     if (!win) return [];
     const taper: [number, number] = [TAPER_INNER * fwhm, MARGIN * fwhm];
     const localNoise = p.noise[indexOf(p, centres[0])];
-    const strongest = Math.max(...tops.map((t, k) => t - p.baseline[indexOf(p, centres[k])]));
     // Strong lines get their own width (saturation broadens them); weak ones keep the instrument's.
     const fitShapes = tops.map((t, k) => t - p.baseline[indexOf(p, centres[k])] > WIDTH_FIT_SNR * localNoise);
     let fit = fitCluster({ x: p.x, y: p.a, lo: win[0], hi: win[1], centres, heights: tops, profile, fitShapes, fixedCentres: [...fixed], taper });

@@ -3,6 +3,7 @@ export * from './sniff';
 export * from './parse';
 export * from './peaks';
 export * from './plot';
+export * from './plot-style';
 export * from './synthesize';
 export * from './jcamp-write';
 export * from './random';

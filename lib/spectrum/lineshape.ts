@@ -400,59 +400,75 @@ function inverseDiagonal(A: Float64Array, p: number): Float64Array | undefined {
 }
 
 /**
- * Fits the lines of one cluster. Parameters: per line centre and height, then the baseline
- * (offset at the window middle, slope), then the width scales that are fitted.
+ * The model of one cluster fit: the data window, the lines' parameter layout and the sample
+ * weights. Parameters: per line centre and height, then the baseline (offset at the window
+ * middle, slope), then the width scales that are fitted.
  */
-export function fitCluster(input: ClusterFitInput): ClusterFit {
-  const { x, y, lo, hi, profile } = input;
-  const k = input.centres.length;
-  const fixed = new Set(input.fixedCentres ?? []);
-  const fixedFlag = input.centres.map((_, i) => fixed.has(i));
-  const e3 = new Float64Array(3);
-  const nPts = hi - lo + 1;
-  const xm = (x[lo] + x[hi]) / 2;
-  // Index of each line's width parameter, or −1 when its width is held.
-  const wIdx: number[] = [];
-  let p = 2 * k + 2;
-  for (let i = 0; i < k; i++) wIdx.push(input.fitShapes?.[i] ? p++ : -1);
-  const par = new Float64Array(p);
-  const yEnd = Math.min(y[lo], y[hi]);
-  const held = input.centres.map((_, i) => input.shapes?.[i] ?? profile.uStart);
-  for (let i = 0; i < k; i++) {
-    par[2 * i] = input.centres[i];
-    par[2 * i + 1] = Math.max(input.heights[i] - yEnd, 1e-9);
-    if (wIdx[i] >= 0) par[wIdx[i]] = held[i];
-  }
-  par[2 * k] = yEnd;
-  par[2 * k + 1] = 0;
+class ClusterModel {
+  readonly x: ArrayLike<number>;
+  readonly y: ArrayLike<number>;
+  readonly lo: number;
+  readonly hi: number;
+  readonly profile: LineProfile;
+  /** Number of lines. */
+  readonly k: number;
+  /** Number of parameters. */
+  readonly p: number;
+  readonly nPts: number;
+  /** The window's middle, where the baseline offset is taken. */
+  readonly xm: number;
+  readonly fixed: Set<number>;
+  readonly fixedFlag: boolean[];
+  /** Index of each line's width parameter, or −1 when its width is held. */
+  readonly wIdx: number[];
+  /** Each line's held (or starting) width parameter. */
+  readonly held: number[];
+  /** Sample weights (the taper), and their sum of squares: the effective number of samples. */
+  readonly sw: Float64Array;
+  readonly effective: number;
+  private readonly e3 = new Float64Array(3);
 
-  const sw = new Float64Array(nPts).fill(1);
-  if (input.taper) {
-    const [inner, outer] = input.taper;
-    for (let t = 0; t < nPts; t++) {
-      let d = Infinity;
-      for (const c of input.centres) d = Math.min(d, Math.abs(x[lo + t] - c));
-      sw[t] = d <= inner ? 1 : d >= outer ? 0 : Math.cos(((d - inner) / (outer - inner)) * (Math.PI / 2));
+  constructor(readonly input: ClusterFitInput) {
+    const { x, y, lo, hi, profile } = input;
+    this.x = x;
+    this.y = y;
+    this.lo = lo;
+    this.hi = hi;
+    this.profile = profile;
+    this.k = input.centres.length;
+    this.fixed = new Set(input.fixedCentres ?? []);
+    this.fixedFlag = input.centres.map((_, i) => this.fixed.has(i));
+    this.nPts = hi - lo + 1;
+    this.xm = (x[lo] + x[hi]) / 2;
+    this.wIdx = [];
+    let p = 2 * this.k + 2;
+    for (let i = 0; i < this.k; i++) this.wIdx.push(input.fitShapes?.[i] ? p++ : -1);
+    this.p = p;
+    this.held = input.centres.map((_, i) => input.shapes?.[i] ?? profile.uStart);
+    this.sw = taperWeights(input, this.nPts);
+    let effective = 0;
+    for (let t = 0; t < this.nPts; t++) effective += this.sw[t] * this.sw[t];
+    this.effective = effective;
+  }
+
+  /** Starting parameters: the given centres, heights above the lower window end, a flat baseline there. */
+  start(): Float64Array {
+    const { input, k, wIdx, held } = this;
+    const par = new Float64Array(this.p);
+    const yEnd = Math.min(this.y[this.lo], this.y[this.hi]);
+    for (let i = 0; i < k; i++) {
+      par[2 * i] = input.centres[i];
+      par[2 * i + 1] = Math.max(input.heights[i] - yEnd, 1e-9);
+      if (wIdx[i] >= 0) par[wIdx[i]] = held[i];
     }
+    par[2 * k] = yEnd;
+    par[2 * k + 1] = 0;
+    return par;
   }
-  let effective = 0;
-  for (let t = 0; t < nPts; t++) effective += sw[t] * sw[t];
 
-  // Two sets of Jacobian and residuals: a trial step is evaluated into the spare set, which
-  // becomes the current one when the step is taken (no second evaluation of an accepted step).
-  let J = new Float64Array(nPts * p);
-  let r = new Float64Array(nPts);
-  let Jspare = new Float64Array(nPts * p);
-  let rSpare = new Float64Array(nPts);
-  const swap = () => {
-    const tJ = J;
-    J = Jspare;
-    Jspare = tJ;
-    const tr = r;
-    r = rSpare;
-    rSpare = tr;
-  };
-  const evaluateInto = (q: Float64Array, J: Float64Array, r: Float64Array, withJacobian: boolean): number => {
+  /** Weighted residuals of parameters q into r (and the Jacobian into J); returns their sum of squares. */
+  evaluateInto(q: Float64Array, J: Float64Array, r: Float64Array, withJacobian: boolean): number {
+    const { x, y, lo, nPts, p, k, xm, wIdx, held, fixedFlag, sw, profile, e3 } = this;
     let ss = 0;
     for (let t = 0; t < nPts; t++) {
       const wt = sw[t];
@@ -485,15 +501,71 @@ export function fitCluster(input: ClusterFitInput): ClusterFit {
       ss += res * res;
     }
     return ss;
-  };
-  const evaluate = (q: Float64Array, withJacobian: boolean) => evaluateInto(q, J, r, withJacobian);
-  const evaluateSpare = (q: Float64Array) => evaluateInto(q, Jspare, rSpare, true);
+  }
+}
 
-  const JtJ = new Float64Array(p * p);
-  const Jtr = new Float64Array(p);
-  const trial = new Float64Array(p);
-  const step = new Float64Array(p);
-  const buildNormal = () => {
+/** Sample weights of the window: 1 near the starting centres, fading (cos) to 0 across the taper. */
+function taperWeights(input: ClusterFitInput, nPts: number): Float64Array {
+  const sw = new Float64Array(nPts).fill(1);
+  if (!input.taper) return sw;
+  const [inner, outer] = input.taper;
+  for (let t = 0; t < nPts; t++) {
+    let d = Infinity;
+    for (const c of input.centres) d = Math.min(d, Math.abs(input.x[input.lo + t] - c));
+    sw[t] = d <= inner ? 1 : d >= outer ? 0 : Math.cos(((d - inner) / (outer - inner)) * (Math.PI / 2));
+  }
+  return sw;
+}
+
+/**
+ * The fit's working state: parameters, two sets of Jacobian and residuals (a trial step is
+ * evaluated into the spare set, which becomes the current one when the step is taken, so an
+ * accepted step is never evaluated twice), the normal equations and the sum of squares.
+ */
+class ClusterState {
+  J: Float64Array;
+  r: Float64Array;
+  private Jspare: Float64Array;
+  private rSpare: Float64Array;
+  readonly JtJ: Float64Array;
+  readonly Jtr: Float64Array;
+  ss: number;
+
+  constructor(
+    readonly m: ClusterModel,
+    readonly par: Float64Array,
+  ) {
+    const { nPts, p } = m;
+    this.J = new Float64Array(nPts * p);
+    this.r = new Float64Array(nPts);
+    this.Jspare = new Float64Array(nPts * p);
+    this.rSpare = new Float64Array(nPts);
+    this.JtJ = new Float64Array(p * p);
+    this.Jtr = new Float64Array(p);
+    this.ss = m.evaluateInto(par, this.J, this.r, true);
+  }
+
+  /** Sum of squares at q, evaluated into the spare set. */
+  evaluateSpare(q: Float64Array): number {
+    return this.m.evaluateInto(q, this.Jspare, this.rSpare, true);
+  }
+
+  /** Takes q (evaluated into the spare set, with sum of squares ss) as the current parameters. */
+  accept(q: Float64Array, ss: number): void {
+    this.par.set(q);
+    this.ss = ss;
+    const tJ = this.J;
+    this.J = this.Jspare;
+    this.Jspare = tJ;
+    const tr = this.r;
+    this.r = this.rSpare;
+    this.rSpare = tr;
+  }
+
+  /** JᵀJ and Jᵀr at the current parameters. */
+  buildNormal(): void {
+    const { JtJ, Jtr, J, r } = this;
+    const { nPts, p } = this.m;
     JtJ.fill(0);
     Jtr.fill(0);
     for (let t = 0; t < nPts; t++) {
@@ -510,61 +582,65 @@ export function fitCluster(input: ClusterFitInput): ClusterFit {
       for (let j = 0; j < i; j++) JtJ[j * p + i] = JtJ[i * p + j];
       if (JtJ[i * p + i] === 0) JtJ[i * p + i] = 1; // a held centre: keep the system solvable
     }
-  };
+  }
+}
 
-  let ss = evaluate(par, true);
-  // Heights and baseline are linear: one Gauss–Newton step on them alone gives a start close
-  // to the optimum, so the full search needs few iterations.
-  {
-    const q = 2 * k + 2;
-    const M = new Float64Array(q * q);
-    const v = new Float64Array(q);
-    const col = (i: number) => (i < k ? 2 * i + 1 : 2 * k + (i - k));
-    for (let t = 0; t < nPts; t++) {
-      const row = t * p;
-      for (let i = 0; i < q; i++) {
-        const ji = J[row + col(i)];
-        if (ji === 0) continue;
-        v[i] += ji * r[t];
-        for (let j = 0; j < q; j++) M[i * q + j] += ji * J[row + col(j)];
-      }
-    }
-    for (let i = 0; i < q; i++) M[i * q + i] = M[i * q + i] * (1 + 1e-9) || 1;
-    const delta = solveSpd(M, v, q);
-    if (delta) {
-      const start = par.slice();
-      for (let i = 0; i < q; i++) start[col(i)] += delta[i];
-      const ssStart = evaluateSpare(start);
-      if (ssStart < ss) {
-        par.set(start);
-        ss = ssStart;
-        swap();
-      }
+/**
+ * Heights and baseline are linear: one Gauss–Newton step on them alone gives a start close to
+ * the optimum, so the full search needs few iterations. Taken when it lowers the sum of squares.
+ */
+function linearStart(s: ClusterState): void {
+  const { k, p, nPts } = s.m;
+  const { J, r } = s;
+  const q = 2 * k + 2;
+  const M = new Float64Array(q * q);
+  const v = new Float64Array(q);
+  const col = (i: number) => (i < k ? 2 * i + 1 : 2 * k + (i - k));
+  for (let t = 0; t < nPts; t++) {
+    const row = t * p;
+    for (let i = 0; i < q; i++) {
+      const ji = J[row + col(i)];
+      if (ji === 0) continue;
+      v[i] += ji * r[t];
+      for (let j = 0; j < q; j++) M[i * q + j] += ji * J[row + col(j)];
     }
   }
-  let lambda = 1e-4;
+  for (let i = 0; i < q; i++) M[i * q + i] = M[i * q + i] * (1 + 1e-9) || 1;
+  const delta = solveSpd(M, v, q);
+  if (!delta) return;
+  const start = s.par.slice();
+  for (let i = 0; i < q; i++) start[col(i)] += delta[i];
+  const ssStart = s.evaluateSpare(start);
+  if (ssStart < s.ss) s.accept(start, ssStart);
+}
+
+/** Levenberg–Marquardt steps on all parameters until the fit settles (at most 12). */
+function levenbergMarquardt(s: ClusterState): void {
+  const { k, p, wIdx, profile } = s.m;
+  const par = s.par;
+  const trial = new Float64Array(p);
+  const step = new Float64Array(p);
   const A = new Float64Array(p * p);
+  let lambda = 1e-4;
   for (let iter = 0; iter < 12; iter++) {
-    buildNormal();
+    s.buildNormal();
     let improved = false;
     for (let tries = 0; tries < 8; tries++) {
-      A.set(JtJ);
+      A.set(s.JtJ);
       for (let i = 0; i < p; i++) A[i * p + i] *= 1 + lambda;
-      if (!solveSpd(A, Jtr, p, step)) {
+      if (!solveSpd(A, s.Jtr, p, step)) {
         lambda *= 10;
         continue;
       }
       for (let i = 0; i < p; i++) trial[i] = par[i] + step[i];
       for (const w of wIdx) if (w >= 0) trial[w] = Math.min(profile.uMax, Math.max(profile.uMin, trial[w]));
-      const ssTrial = evaluateSpare(trial);
-      if (ssTrial < ss) {
-        const relative = (ss - ssTrial) / Math.max(ss, 1e-300);
+      const ssTrial = s.evaluateSpare(trial);
+      if (ssTrial < s.ss) {
+        const relative = (s.ss - ssTrial) / Math.max(s.ss, 1e-300);
         // Settled: the centres moved by a negligible share of the width, and the fit hardly improved.
         let centreStep = 0;
         for (let i = 0; i < k; i++) centreStep = Math.max(centreStep, Math.abs(trial[2 * i] - par[2 * i]));
-        par.set(trial);
-        ss = ssTrial;
-        swap();
+        s.accept(trial, ssTrial);
         lambda = Math.max(lambda / 10, 1e-9);
         improved = relative > 1e-6 && !(centreStep < 1e-5 * profile.fwhm && relative < 1e-3);
         break;
@@ -573,10 +649,16 @@ export function fitCluster(input: ClusterFitInput): ClusterFit {
     }
     if (!improved) break;
   }
-  buildNormal();
+}
+
+/** The fitted lines with standard errors from the final normal equations; not ok when singular or a centre left the window. */
+function clusterResult(s: ClusterState): ClusterFit {
+  const { k, p, x, lo, hi, wIdx, held, fixed, effective } = s.m;
+  const { par, ss } = s;
+  s.buildNormal();
   const dof = Math.max(1, effective - p);
   const s2 = ss / dof;
-  const diag = inverseDiagonal(JtJ, p);
+  const diag = inverseDiagonal(s.JtJ, p);
   const centres: number[] = [];
   const heights: number[] = [];
   const centreErrors: number[] = [];
@@ -601,6 +683,18 @@ export function fitCluster(input: ClusterFitInput): ClusterFit {
     rms: Math.sqrt(ss / Math.max(1, effective)),
     baseline: [par[2 * k], par[2 * k + 1]],
   };
+}
+
+/**
+ * Fits the lines of one cluster (ClusterModel): a linear start for heights and baseline, then
+ * Levenberg–Marquardt on every parameter, then standard errors.
+ */
+export function fitCluster(input: ClusterFitInput): ClusterFit {
+  const model = new ClusterModel(input);
+  const state = new ClusterState(model, model.start());
+  linearStart(state);
+  levenbergMarquardt(state);
+  return clusterResult(state);
 }
 
 // ------------------------------------------------------------------------------------------

@@ -6,10 +6,10 @@
  */
 import type { LinePeakComparison, Peak, ReportedLine } from './peaks';
 import { toAbsorbance } from './peaks';
+import { isOutlined, MARKER_SHAPE, MARKER_SIZE, markerPath, plotColourCss, type MarkerGroup, type MarkerShape } from './plot-style';
 import type { Spectrum } from './types';
 
-export type MarkerShape = 'triangle-down' | 'circle' | 'diamond' | 'tick';
-export type MarkerGroup = 'P' | 'R' | 'unassigned' | 'peak';
+export type { MarkerGroup, MarkerShape } from './plot-style';
 
 export interface PlotTick {
   value: number;
@@ -79,8 +79,6 @@ export interface PlotModel {
   /** A plain-language summary for screen readers. */
   description: string;
 }
-
-const MARKER_SIZE = 7;
 
 /** Tick values at 1, 2 or 5 × 10ⁿ, about `target` of them. */
 export function niceTicks(min: number, max: number, target = 6): { values: number[]; decimals: number } {
@@ -161,17 +159,10 @@ export interface BandPlotInput {
   asAbsorbance?: boolean;
 }
 
-export function bandPlotModel(input: BandPlotInput): PlotModel {
-  const width = input.width ?? 720;
-  const height = input.height ?? 380;
+/** Wavenumber range shown: as asked, else the reported lines with a margin, else the whole spectrum. */
+function bandXRange(input: BandPlotInput, lines: ReportedLine[]): [number, number] {
   const { spectrum } = input;
-  const lines = input.lines ?? [];
-  const peaks = input.peaks ?? [];
   const n = spectrum.x.length;
-  const useAbsorbance = input.asAbsorbance === true && spectrum.yKind === 'transmittance';
-  const yValues = useAbsorbance ? toAbsorbance(spectrum) : spectrum.y;
-  const yIsAbsorbance = useAbsorbance || spectrum.yKind === 'absorbance';
-
   let [xmin, xmax] = input.xRange ?? [spectrum.x[0], spectrum.x[n - 1]];
   if (!input.xRange && lines.length > 0) {
     const lo = lines.reduce((m, l) => Math.min(m, l.wavenumber), Infinity);
@@ -186,11 +177,15 @@ export function bandPlotModel(input: BandPlotInput): PlotModel {
     xmin -= 1;
     xmax += 1;
   }
+  return [xmin, xmax];
+}
 
+/** The y range of the points within [xmin, xmax], with 5 % room above and below. */
+function bandYRange(x: ArrayLike<number>, yValues: ArrayLike<number>, xmin: number, xmax: number): [number, number] {
   let ymin = Infinity;
   let ymax = -Infinity;
-  for (let i = 0; i < n; i++) {
-    if (spectrum.x[i] < xmin || spectrum.x[i] > xmax) continue;
+  for (let i = 0; i < x.length; i++) {
+    if (x[i] < xmin || x[i] > xmax) continue;
     ymin = Math.min(ymin, yValues[i]);
     ymax = Math.max(ymax, yValues[i]);
   }
@@ -203,21 +198,25 @@ export function bandPlotModel(input: BandPlotInput): PlotModel {
     ymax += 0.5;
   }
   const ypad = 0.05 * (ymax - ymin);
-  ymin -= ypad;
-  ymax += ypad;
+  return [ymin - ypad, ymax + ypad];
+}
 
-  const hasMarkers = lines.length > 0;
-  const legendHeight = hasMarkers || peaks.length > 0 ? 22 : 0;
-  const area: PlotArea = {
-    left: 68,
-    top: hasMarkers ? 16 + 58 : 16,
-    width: width - 68 - 18,
-    height: 0,
-  };
-  area.height = height - area.top - 48 - legendHeight;
-  const px = (v: number) => area.left + ((xmax - v) / (xmax - xmin)) * area.width; // decreasing to the right
-  const py = (v: number) => area.top + ((ymax - v) / (ymax - ymin)) * area.height;
+/** Where a band plot draws: the plotting area and the data-to-pixel maps (wavenumber decreasing to the right). */
+interface BandFrame {
+  width: number;
+  height: number;
+  area: PlotArea;
+  xmin: number;
+  xmax: number;
+  px: (v: number) => number;
+  py: (v: number) => number;
+  yIsAbsorbance: boolean;
+  yValues: ArrayLike<number>;
+  legendHeight: number;
+}
 
+function bandAxes(f: BandFrame, ymin: number, ymax: number): { xAxis: PlotAxis; yAxis: PlotAxis } {
+  const { area, xmin, xmax, px, py } = f;
   const xt = niceTicks(xmin, xmax, Math.max(3, Math.round(area.width / 90)));
   const yt = niceTicks(ymin, ymax, Math.max(3, Math.round(area.height / 50)));
   const xAxis: PlotAxis = {
@@ -228,48 +227,57 @@ export function bandPlotModel(input: BandPlotInput): PlotModel {
     ticks: xt.values.map((v) => ({ value: v, pos: round2(px(v)), label: formatTick(v, xt.decimals) })),
   };
   const yAxis: PlotAxis = {
-    label: yIsAbsorbance ? 'Absorbance' : 'Transmittance',
+    label: f.yIsAbsorbance ? 'Absorbance' : 'Transmittance',
     min: ymin,
     max: ymax,
     reversed: false,
     ticks: yt.values.map((v) => ({ value: v, pos: round2(py(v)), label: formatTick(v, yt.decimals) })),
   };
+  return { xAxis, yAxis };
+}
 
-  // Points inside the range, drawn left to right (high wavenumber first).
+/** The spectrum's points inside the range, drawn left to right (high wavenumber first). */
+function bandCurve(spectrum: Spectrum, f: BandFrame): [number, number][] {
+  const n = spectrum.x.length;
   let iHi = n - 1;
-  while (iHi >= 0 && spectrum.x[iHi] > xmax) iHi--;
+  while (iHi >= 0 && spectrum.x[iHi] > f.xmax) iHi--;
   let iLo = 0;
-  while (iLo < n && spectrum.x[iLo] < xmin) iLo++;
+  while (iLo < n && spectrum.x[iLo] < f.xmin) iLo++;
   const count = Math.max(0, iHi - iLo + 1);
-  const curve = polyline(count, (k) => px(spectrum.x[iHi - k]), (k) => py(yValues[iHi - k]), Math.ceil(area.width));
+  return polyline(count, (k) => f.px(spectrum.x[iHi - k]), (k) => f.py(f.yValues[iHi - k]), Math.ceil(f.area.width));
+}
 
-  // Curve height at a wavenumber, for the guide lines.
-  const curveAt = (w: number): number => {
-    const xs = spectrum.x;
-    let lo = 0;
-    let hi = n - 1;
-    if (w <= xs[0]) return py(yValues[0]);
-    if (w >= xs[hi]) return py(yValues[hi]);
-    while (hi - lo > 1) {
-      const mid = (lo + hi) >> 1;
-      if (xs[mid] <= w) lo = mid;
-      else hi = mid;
-    }
-    const t = (w - xs[lo]) / (xs[hi] - xs[lo]);
-    return py(yValues[lo] + t * (yValues[hi] - yValues[lo]));
-  };
+/** Pixel height of the curve at a wavenumber (linear between points), for the guide lines. */
+function curveHeightAt(spectrum: Spectrum, f: BandFrame, w: number): number {
+  const xs = spectrum.x;
+  const yValues = f.yValues;
+  let lo = 0;
+  let hi = xs.length - 1;
+  if (w <= xs[0]) return f.py(yValues[0]);
+  if (w >= xs[hi]) return f.py(yValues[hi]);
+  while (hi - lo > 1) {
+    const mid = (lo + hi) >> 1;
+    if (xs[mid] <= w) lo = mid;
+    else hi = mid;
+  }
+  const t = (w - xs[lo]) / (xs[hi] - xs[lo]);
+  return f.py(yValues[lo] + t * (yValues[hi] - yValues[lo]));
+}
 
+/** A marker above the plot per reported line in range, hollow when the comparison found no peak for it. */
+function reportedLineMarkers(input: BandPlotInput, lines: ReportedLine[], f: BandFrame): PlotMarker[] {
+  const { area } = f;
   const checkOf = new Map<ReportedLine, { matched: boolean; distance: number | null }>();
   for (const c of input.comparison?.lines ?? []) checkOf.set(c.line, c);
   const markerY = area.top - 10;
   const markers: PlotMarker[] = [];
   for (const l of lines) {
-    if (l.wavenumber < xmin || l.wavenumber > xmax) continue;
+    if (l.wavenumber < f.xmin || l.wavenumber > f.xmax) continue;
     const label = lineLabelOf(l);
     const group: MarkerGroup = l.branch === 'P' ? 'P' : l.branch === 'R' ? 'R' : 'unassigned';
     const check = checkOf.get(l);
     const hollow = check ? !check.matched : false;
-    const x = round2(px(l.wavenumber));
+    const x = round2(f.px(l.wavenumber));
     const name = label || 'Unassigned line';
     const note =
       `${name} at ${l.wavenumber} cm⁻¹` +
@@ -281,7 +289,7 @@ export function bandPlotModel(input: BandPlotInput): PlotModel {
     markers.push({
       x,
       y: markerY,
-      shape: group === 'P' ? 'triangle-down' : group === 'R' ? 'circle' : 'diamond',
+      shape: MARKER_SHAPE[group],
       group,
       fill: hollow ? 'hollow' : 'solid',
       value: l.wavenumber,
@@ -289,56 +297,107 @@ export function bandPlotModel(input: BandPlotInput): PlotModel {
       labelAngle: label ? 90 : undefined,
       labelX: label ? x + 3.5 : undefined,
       labelY: label ? markerY - MARKER_SIZE - 3 : undefined,
-      guide: { y1: round2(area.top), y2: round2(Math.min(area.top + area.height, Math.max(area.top, curveAt(l.wavenumber)))) },
+      guide: { y1: round2(area.top), y2: round2(Math.min(area.top + area.height, Math.max(area.top, curveHeightAt(input.spectrum, f, l.wavenumber)))) },
       note,
     });
   }
+  return markers;
+}
+
+/** A tick at each picked peak in range, just off the curve. */
+function peakMarkers(spectrum: Spectrum, peaks: Peak[], f: BandFrame): PlotMarker[] {
+  const { area } = f;
   let yTop = -Infinity;
   for (const v of spectrum.y) if (v > yTop) yTop = v;
   const percent = spectrum.yKind === 'transmittance' && yTop > 1.5 ? 100 : 1;
+  const markers: PlotMarker[] = [];
   for (const p of peaks) {
-    if (p.wavenumber < xmin || p.wavenumber > xmax) continue;
+    if (p.wavenumber < f.xmin || p.wavenumber > f.xmax) continue;
     // Peak heights are absorbance; draw them on the axis shown.
-    const h = yIsAbsorbance ? p.height : 10 ** -p.height * percent;
+    const h = f.yIsAbsorbance ? p.height : 10 ** -p.height * percent;
     markers.push({
-      x: round2(px(p.wavenumber)),
-      y: round2(Math.max(area.top, Math.min(area.top + area.height, py(h) + (yIsAbsorbance ? -6 : 6)))),
-      shape: 'tick',
+      x: round2(f.px(p.wavenumber)),
+      y: round2(Math.max(area.top, Math.min(area.top + area.height, f.py(h) + (f.yIsAbsorbance ? -6 : 6)))),
+      shape: MARKER_SHAPE.peak,
       group: 'peak',
       fill: 'solid',
       value: p.wavenumber,
       note: `Peak picked at ${p.wavenumber.toFixed(2)} cm⁻¹`,
     });
   }
+  return markers;
+}
 
+/** One legend entry per marker group shown (and one for hollow markers), in a row under the plot. */
+function bandLegend(markers: PlotMarker[], f: BandFrame): LegendItem[] {
   const legend: LegendItem[] = [];
-  if (legendHeight > 0) {
-    const items: Omit<LegendItem, 'x' | 'y'>[] = [];
-    const groups = new Set(markers.map((m) => m.group));
-    if (groups.has('P')) items.push({ shape: 'triangle-down', group: 'P', fill: 'solid', text: 'P branch' });
-    if (groups.has('R')) items.push({ shape: 'circle', group: 'R', fill: 'solid', text: 'R branch' });
-    if (groups.has('unassigned')) items.push({ shape: 'diamond', group: 'unassigned', fill: 'solid', text: 'unassigned' });
-    if (groups.has('peak')) items.push({ shape: 'tick', group: 'peak', fill: 'solid', text: 'picked peak' });
-    if (markers.some((m) => m.fill === 'hollow')) {
-      items.push({ shape: 'diamond', group: 'unassigned', fill: 'hollow', text: 'hollow marker: no peak within tolerance' });
-    }
-    let lx = area.left;
-    const ly = height - 10;
-    for (const it of items) {
-      legend.push({ ...it, x: lx, y: ly });
-      lx += 22 + it.text.length * 6.2;
-    }
+  if (f.legendHeight === 0) return legend;
+  const items: Omit<LegendItem, 'x' | 'y'>[] = [];
+  const groups = new Set(markers.map((m) => m.group));
+  const LEGEND_TEXT: Record<MarkerGroup, string> = { P: 'P branch', R: 'R branch', unassigned: 'unassigned', peak: 'picked peak' };
+  for (const group of ['P', 'R', 'unassigned', 'peak'] as const) {
+    if (groups.has(group)) items.push({ shape: MARKER_SHAPE[group], group, fill: 'solid', text: LEGEND_TEXT[group] });
   }
+  if (markers.some((m) => m.fill === 'hollow')) {
+    items.push({ shape: MARKER_SHAPE.unassigned, group: 'unassigned', fill: 'hollow', text: 'hollow marker: no peak within tolerance' });
+  }
+  let lx = f.area.left;
+  const ly = f.height - 10;
+  for (const it of items) {
+    legend.push({ ...it, x: lx, y: ly });
+    lx += 22 + it.text.length * 6.2;
+  }
+  return legend;
+}
 
+function bandDescription(input: BandPlotInput, markers: PlotMarker[], f: BandFrame, hasMarkers: boolean, peakCount: number): string {
   const countOf = (g: MarkerGroup) => markers.filter((m) => m.group === g).length;
   const unmatched = markers.filter((m) => m.fill === 'hollow').length;
-  const description =
-    `${yIsAbsorbance ? 'Absorbance' : 'Transmittance'} from ${xmax.toFixed(0)} to ${xmin.toFixed(0)} cm⁻¹` +
+  return (
+    `${f.yIsAbsorbance ? 'Absorbance' : 'Transmittance'} from ${f.xmax.toFixed(0)} to ${f.xmin.toFixed(0)} cm⁻¹` +
     (hasMarkers ? `, with ${countOf('P')} P-branch, ${countOf('R')} R-branch and ${countOf('unassigned')} unassigned reported lines` : '') +
     (input.comparison ? `; ${unmatched} reported line${unmatched === 1 ? ' matches' : 's match'} no peak` : '') +
-    (peaks.length > 0 ? `; ${countOf('peak')} picked peaks shown` : '') +
-    '.';
+    (peakCount > 0 ? `; ${countOf('peak')} picked peaks shown` : '') +
+    '.'
+  );
+}
 
+export function bandPlotModel(input: BandPlotInput): PlotModel {
+  const width = input.width ?? 720;
+  const height = input.height ?? 380;
+  const { spectrum } = input;
+  const lines = input.lines ?? [];
+  const peaks = input.peaks ?? [];
+  const useAbsorbance = input.asAbsorbance === true && spectrum.yKind === 'transmittance';
+  const yValues = useAbsorbance ? toAbsorbance(spectrum) : spectrum.y;
+  const yIsAbsorbance = useAbsorbance || spectrum.yKind === 'absorbance';
+
+  const [xmin, xmax] = bandXRange(input, lines);
+  const [ymin, ymax] = bandYRange(spectrum.x, yValues, xmin, xmax);
+
+  // The area leaves room above for the line markers and their labels, below for the legend.
+  const hasMarkers = lines.length > 0;
+  const legendHeight = hasMarkers || peaks.length > 0 ? 22 : 0;
+  const area: PlotArea = { left: 68, top: hasMarkers ? 16 + 58 : 16, width: width - 68 - 18, height: 0 };
+  area.height = height - area.top - 48 - legendHeight;
+  const frame: BandFrame = {
+    width,
+    height,
+    area,
+    xmin,
+    xmax,
+    px: (v) => area.left + ((xmax - v) / (xmax - xmin)) * area.width, // decreasing to the right
+    py: (v) => area.top + ((ymax - v) / (ymax - ymin)) * area.height,
+    yIsAbsorbance,
+    yValues,
+    legendHeight,
+  };
+
+  const { xAxis, yAxis } = bandAxes(frame, ymin, ymax);
+  const curve = bandCurve(spectrum, frame);
+  const markers = [...reportedLineMarkers(input, lines, frame), ...peakMarkers(spectrum, peaks, frame)];
+  const legend = bandLegend(markers, frame);
+  const description = bandDescription(input, markers, frame, hasMarkers, peaks.length);
   return { kind: 'band', width, height, area, xAxis, yAxis, curve, markers, zeroLine: null, legend, description };
 }
 
@@ -391,7 +450,7 @@ export function residualPlotModel(residuals: Residual[], options: { width?: numb
     return {
       x: round2(px(r.m)),
       y: round2(py(r.residual)),
-      shape: group === 'P' ? 'triangle-down' : 'circle',
+      shape: MARKER_SHAPE[group],
       group,
       fill: 'solid',
       value: r.m,
@@ -400,8 +459,8 @@ export function residualPlotModel(residuals: Residual[], options: { width?: numb
   });
   const ly = height - 10;
   const legend: LegendItem[] = [
-    { x: area.left, y: ly, shape: 'triangle-down', group: 'P', fill: 'solid', text: 'P branch (m < 0)' },
-    { x: area.left + 140, y: ly, shape: 'circle', group: 'R', fill: 'solid', text: 'R branch (m > 0)' },
+    { x: area.left, y: ly, shape: MARKER_SHAPE.P, group: 'P', fill: 'solid', text: 'P branch (m < 0)' },
+    { x: area.left + 140, y: ly, shape: MARKER_SHAPE.R, group: 'R', fill: 'solid', text: 'R branch (m > 0)' },
   ];
   const rms = residuals.length ? Math.sqrt(residuals.reduce((s, r) => s + r.residual ** 2, 0) / residuals.length) : 0;
   const description = `Residuals of ${residuals.length} lines against m, largest ${absMax.toFixed(3)} cm⁻¹, root mean square ${rms.toFixed(3)} cm⁻¹.`;
@@ -431,36 +490,21 @@ export interface RenderSvgOptions {
 const DEFAULT_COLOURS: PlotColours = {
   curve: 'currentColor',
   axis: 'currentColor',
-  grid: 'var(--plot-grid, #d4d4d4)',
-  P: 'var(--plot-branch-p, #a3400b)',
-  R: 'var(--plot-branch-r, #1d5a9e)',
-  unassigned: 'var(--plot-unassigned, #4d4d4d)',
-  peak: 'var(--plot-peak, #5c5c5c)',
+  grid: plotColourCss('grid'),
+  P: plotColourCss('P'),
+  R: plotColourCss('R'),
+  unassigned: plotColourCss('unassigned'),
+  peak: plotColourCss('peak'),
 };
 
 function esc(s: string): string {
   return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
 }
 
-function shapePath(shape: MarkerShape, x: number, y: number, s = MARKER_SIZE): string {
-  const h = s / 2;
-  switch (shape) {
-    case 'triangle-down':
-      return `M${round2(x - h)} ${round2(y - h)}H${round2(x + h)}L${round2(x)} ${round2(y + h)}Z`;
-    case 'diamond':
-      return `M${round2(x)} ${round2(y - h)}L${round2(x + h)} ${round2(y)}L${round2(x)} ${round2(y + h)}L${round2(x - h)} ${round2(y)}Z`;
-    case 'tick':
-      return `M${round2(x)} ${round2(y - h)}V${round2(y + h)}`;
-    case 'circle':
-      // Two arcs make a circle as a path, so every marker is one <path>.
-      return `M${round2(x - h)} ${round2(y)}a${h} ${h} 0 1 0 ${s} 0a${h} ${h} 0 1 0 ${-s} 0Z`;
-  }
-}
-
 function markerStyle(m: { group: MarkerGroup; fill: 'solid' | 'hollow'; shape: MarkerShape }, c: PlotColours): string {
   const colour = c[m.group];
   if (m.shape === 'tick') return `stroke:${colour};stroke-width:1.5;fill:none`;
-  return m.fill === 'solid' ? `fill:${colour};stroke:${colour};stroke-width:1` : `fill:none;stroke:${colour};stroke-width:1.5`;
+  return !isOutlined(m) ? `fill:${colour};stroke:${colour};stroke-width:1` : `fill:none;stroke:${colour};stroke-width:1.5`;
 }
 
 /** An accessible SVG string: role="img", a <title> and <desc>, shapes that differ without colour. */
@@ -509,7 +553,7 @@ export function renderSvg(model: PlotModel, options: RenderSvgOptions): string {
     if (m.guide) {
       o.push(`<line x1="${m.x}" y1="${m.guide.y1}" x2="${m.x}" y2="${m.guide.y2}" style="stroke:${colour};stroke-width:0.75;${m.fill === 'hollow' ? 'stroke-dasharray:3 2;' : ''}opacity:0.8"/>`);
     }
-    o.push(`<path d="${shapePath(m.shape, m.x, m.y)}" style="${markerStyle(m, c)}"/>`);
+    o.push(`<path d="${markerPath(m.shape, m.x, m.y)}" style="${markerStyle(m, c)}"/>`);
     if (m.label && m.labelX !== undefined && m.labelY !== undefined) {
       const angle = -(m.labelAngle ?? 0);
       o.push(`<text x="${m.labelX}" y="${m.labelY}" transform="rotate(${angle} ${m.labelX} ${m.labelY})" style="fill:${colour};font-size:10px">${esc(m.label)}</text>`);
@@ -520,7 +564,7 @@ export function renderSvg(model: PlotModel, options: RenderSvgOptions): string {
   if (model.legend.length > 0) {
     o.push('<g class="legend" aria-hidden="true">');
     for (const l of model.legend) {
-      o.push(`<path d="${shapePath(l.shape, l.x + 5, l.y - 4)}" style="${markerStyle(l, c)}"/>`);
+      o.push(`<path d="${markerPath(l.shape, l.x + 5, l.y - 4)}" style="${markerStyle(l, c)}"/>`);
       o.push(`<text x="${l.x + 14}" y="${l.y}" style="fill:${c.axis}">${esc(l.text)}</text>`);
     }
     o.push('</g>');

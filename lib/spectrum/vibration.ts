@@ -19,7 +19,7 @@
  * numbers are also given from origins corrected for it (and labelled so).
  */
 import { anharmonicFromOvertone, leastSquares, type Estimate } from '@/lib/grading';
-import type { BandAnalysis, CalibrationReport } from './analyse';
+import type { BandAnalysis, CalibrationReport } from './analysis-types';
 import type { Isotopologue } from './bands';
 
 export interface AnharmonicNumbers {

@@ -8,51 +8,20 @@
  * in the report, with quantity names; labels wrap rather than being cut. The histograms follow on
  * the next page. Figures are median and middle half (see the dashboard's QuantityTable).
  */
-import fs from 'node:fs';
-import path from 'node:path';
 import fontkit from '@pdf-lib/fontkit';
 import { PDFDocument, rgb, type PDFFont, type PDFPage } from 'pdf-lib';
+import { embedFonts, textWidth, wrap as wrapText } from '@/lib/pdf/fonts';
+import { A4, INK, SOFT } from '@/lib/pdf/style';
 import type { PracticalReport } from './report';
 import { formatPercent, quantityLabel, symlog, SYMLOG_TICKS, tickLabel } from './scale';
 
-const A4 = { width: 595.28, height: 841.89 };
 const M = 40;
-const INK = rgb(0.11, 0.15, 0.19);
-const SOFT = rgb(0.29, 0.33, 0.38);
 const RULE = rgb(0.75, 0.73, 0.66);
 const ACCENT = rgb(0.12, 0.37, 0.45);
 
-let fonts: { regular: Buffer; bold: Buffer } | null = null;
-function fontBytes() {
-  if (!fonts) {
-    const dir = path.join(/*turbopackIgnore: true*/ process.cwd(), 'public', 'fonts');
-    fonts = { regular: fs.readFileSync(path.join(dir, 'DejaVuSans.ttf')), bold: fs.readFileSync(path.join(dir, 'DejaVuSans-Bold.ttf')) };
-  }
-  return fonts;
-}
-
 /** Words into lines no wider than `width` (a word longer than the line is split by characters). */
 function wrap(t: string, width: number, size: number, font: PDFFont): string[] {
-  const out: string[] = [];
-  let line = '';
-  for (const word of t.split(/\s+/).filter(Boolean)) {
-    const next = line ? `${line} ${word}` : word;
-    if (font.widthOfTextAtSize(next, size) <= width) {
-      line = next;
-      continue;
-    }
-    if (line) out.push(line);
-    let w = word;
-    while (font.widthOfTextAtSize(w, size) > width && w.length > 1) {
-      let cut = w.length - 1;
-      while (cut > 1 && font.widthOfTextAtSize(w.slice(0, cut), size) > width) cut--;
-      out.push(w.slice(0, cut));
-      w = w.slice(cut);
-    }
-    line = w;
-  }
-  if (line) out.push(line);
-  return out.length ? out : [''];
+  return wrapText(t, font, size, width, { breakWords: true });
 }
 
 class Pages {
@@ -84,9 +53,9 @@ class Pages {
 export async function summaryPdf(report: PracticalReport, generatedAt = new Date()): Promise<Uint8Array> {
   const doc = await PDFDocument.create();
   doc.registerFontkit(fontkit);
-  const bytes = fontBytes();
-  const regular = await doc.embedFont(bytes.regular, { subset: true });
-  const bold = await doc.embedFont(bytes.bold, { subset: true });
+  // Everything the summary prints beyond the report's own strings: quantity names (with ₑ …) and the axis's ticks.
+  const printed = [JSON.stringify(report), ...report.quantities.map((q) => quantityLabel(q.key, q.species)), ...SYMLOG_TICKS.map(tickLabel)].join('');
+  const { regular, bold } = await embedFonts(doc, ['regular', 'bold'], printed);
   doc.setTitle(`Cohort statistics: ${report.practical.title}, ${report.scope.label}`);
   doc.setCreator('Oscillab');
   const w = new Pages(doc, regular, bold);
@@ -138,7 +107,7 @@ function boxPlots(w: Pages, report: PracticalReport, basis: 'consistency' | 'acc
   const drawAxis = () => {
     for (const t of SYMLOG_TICKS) {
       const l = tickLabel(t);
-      w.text(l, px(t) - w.regular.widthOfTextAtSize(l, 6.5) / 2, w.y - 8, 6.5, w.regular, SOFT);
+      w.text(l, px(t) - textWidth(l, w.regular, 6.5) / 2, w.y - 8, 6.5, w.regular, SOFT);
     }
     w.y -= 12;
   };
@@ -234,12 +203,12 @@ function histograms(w: Pages, report: PracticalReport) {
       if (b.count > 0) {
         w.page.drawRectangle({ x: x + j * bw + 0.5, y: base, width: bw - 1, height: bh, color: j === 0 || j === bins.length - 1 ? RULE : ACCENT });
         const t = String(b.count);
-        w.text(t, x + j * bw + (bw - w.regular.widthOfTextAtSize(t, 5)) / 2, base + bh + 1.5, 5);
+        w.text(t, x + j * bw + (bw - textWidth(t, w.regular, 5)) / 2, base + bh + 1.5, 5);
       }
     });
     w.text('−10 %', x, base - 8, 5.5, w.regular, SOFT);
     w.text('0', x + cw / 2 - 1.5, base - 8, 5.5, w.regular, SOFT);
-    w.text('+10 %', x + cw - w.regular.widthOfTextAtSize('+10 %', 5.5), base - 8, 5.5, w.regular, SOFT);
+    w.text('+10 %', x + cw - textWidth('+10 %', w.regular, 5.5), base - 8, 5.5, w.regular, SOFT);
     if (col === cols - 1 || i === items.length - 1) w.y = base - 22;
   });
 }

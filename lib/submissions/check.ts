@@ -26,7 +26,6 @@
  * late penalty; submissions.latePenalty holds the percentage to deduct from the total.
  */
 import crypto from 'node:crypto';
-import fs from 'node:fs';
 import { Op, type Transaction } from 'sequelize';
 import { sequelize } from '@/lib/db';
 import { models } from '@/models';
@@ -44,10 +43,12 @@ import {
   type Tolerance,
 } from '@/lib/grading';
 import { pickBands, toleranceFor, BASIS_SHARE, type ResolvedBand } from '@/lib/instructor/bands';
-import { uploadPath } from '@/lib/storage';
-import { compareLinesToPeaks, parseSpectrumFile, pickPeaks, sniffUpload } from '@/lib/spectrum';
+import { compareLinesToPeaks, pickPeaks } from '@/lib/spectrum';
 import type { LinePeakComparison } from '@/lib/spectrum/peaks';
+import { loadSpectrum } from './load-spectrum';
 import { spectraOfSubmission } from './spectra';
+
+export { loadSpectrum } from './load-spectrum';
 import { compareWithAnalysis, FROM_SPECTRUM_LEGEND, matchByBand, type BandMatch, type FromSpectrumRow, type StoredAnalysis } from './spectrum-analysis';
 
 type LineComparisonSummary = LinePeakComparison['summary'];
@@ -395,14 +396,3 @@ export function compareWithSpectrum(
   };
 }
 
-export function loadSpectrum(upload: { storedName: string; originalName: string }) {
-  let bytes: Buffer;
-  try {
-    bytes = fs.readFileSync(uploadPath(upload.storedName));
-  } catch {
-    return { ok: false as const, message: 'The spectrum file could not be read.' };
-  }
-  const sniff = sniffUpload(new Uint8Array(bytes), upload.originalName);
-  if (sniff.kind !== 'jcamp' && sniff.kind !== 'csv') return { ok: false as const, message: 'The stored file is not a spectrum.' };
-  return parseSpectrumFile(bytes.toString('utf8'), sniff.kind);
-}

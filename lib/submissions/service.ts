@@ -22,8 +22,9 @@ import { isQuantityKey } from '@/lib/grading';
 import { models } from '@/models';
 import type { Practical } from '@/models/practical';
 import type { Submission } from '@/models/submission';
-import { draftSchema, emptyDraft, type Draft } from '@/lib/schemas/submission';
+import type { Draft } from '@/lib/schemas/submission';
 import { checkStoredSubmission, type TypedLine, type TypedValue } from './check';
+export { readDraft } from './draft';
 
 const DAY_MS = 86_400_000;
 
@@ -45,13 +46,6 @@ export async function attemptsUsed(practicalId: number, studentId: number, trans
   const lastAttempt = rows.reduce((m, r) => Math.max(m, r.attempt), 0);
   const extra = rows.reduce((m, r) => Math.max(m, r.extraAttempts), 0);
   return { used, lastAttempt, extra };
-}
-
-export function readDraft(raw: unknown, species: string[]): Draft {
-  const parsed = draftSchema.safeParse(raw ?? {});
-  const base = emptyDraft(species);
-  if (!parsed.success) return base;
-  return { ...base, ...parsed.data, species: { ...base.species, ...parsed.data.species } };
 }
 
 export async function findDraft(practicalId: number, studentId: number, transaction?: Transaction) {

@@ -8,8 +8,8 @@ import { models } from '@/models';
 import type { Practical } from '@/models/practical';
 import type { Submission } from '@/models/submission';
 import type { Upload } from '@/models/upload';
-import { readDraft } from './service';
-import { loadSpectrum } from './check';
+import { readDraft } from './draft';
+import { loadSpectrum } from './load-spectrum';
 import { analyseForSample, ANALYSIS_VERSION, isCurrent, OVERTONE_QUANTITIES, samplesOf, type SpectrumSample, type StoredAnalysis } from './spectrum-analysis';
 
 export async function samplesForPractical(practical: Pick<Practical, 'id' | 'species' | 'spectrumSamples'>, transaction?: Transaction): Promise<SpectrumSample[]> {

@@ -10,17 +10,18 @@
  */
 import { Op } from 'sequelize';
 import { models } from '@/models';
-import { bondLengthFromB, fitBandModels, forceConstantFromBand, u as ATOMIC_MASS_KG, parseSpecies, simulateLineList } from '@/lib/grading';
 import { gaussian, mulberry32 } from '@/lib/spectrum';
 import { copyPractical } from '@/lib/instructor/practicals';
 import { saveMarks } from '@/lib/marking/marks';
 import { checkStoredSubmission } from '@/lib/submissions/check';
+import { DEMO_PASSWORD, FIRST_NAMES, LAST_NAMES } from '../data/demo-cast.cjs';
+import { noisyLineList, reportedValues, type DemoLine, type DemoSlip, type DemoValue } from './report';
 
 export const LAST_YEAR = { term: '2025 Autumn', name: 'Group A', instrument: 'FTIR bench 1 (0.5 cm⁻¹)', deadline: '2025-11-14T17:00:00.000Z' };
 const TITLE = 'HCl/DCl fundamental band';
 const ALUMNI = 20;
 // Last year's briefing did not stress 2π in ν = (1/2π)√(k/μ) or SI masses: more of those slips.
-const SLIP_PLAN = ['correct', 'missing-2pi', 'correct', 'mass-numbers-used', 'correct', 'grams-not-kilograms', 'missing-2pi', 'correct', 'r0-reported-as-re', 'correct'] as const;
+const SLIP_PLAN: readonly DemoSlip[] = ['correct', 'missing-2pi', 'correct', 'mass-numbers-used', 'correct', 'grams-not-kilograms', 'missing-2pi', 'correct', 'r0-reported-as-re', 'correct'];
 const OVERRIDES: Record<number, { delta: number; comment: string }> = {
   3: { delta: 0.5, comment: 'Method fully correct; only the masses were taken as mass numbers — some credit restored.' },
   9: { delta: -1, comment: 'Band centre read from the strongest line, not the band origin.' },
@@ -56,8 +57,6 @@ export async function seedLastYearDemo(): Promise<{ created: number; skipped: st
   void taDuty;
 
   const { hashSync } = await import('bcryptjs');
-  // eslint-disable-next-line @typescript-eslint/no-require-imports
-  const cast = require('../../seeders/data/demo-cast.cjs') as { DEMO_PASSWORD: string; FIRST_NAMES: string[]; LAST_NAMES: string[] };
   let hash: string | null = null;
   const deadline = new Date(LAST_YEAR.deadline);
   let created = 0;
@@ -65,9 +64,9 @@ export async function seedLastYearDemo(): Promise<{ created: number; skipped: st
     const email = `alumni${String(n).padStart(2, '0')}@northmere.example`;
     let student = await User.findOne({ where: { email } });
     if (!student) {
-      hash ??= hashSync(cast.DEMO_PASSWORD, 10);
+      hash ??= hashSync(DEMO_PASSWORD, 10);
       // Offsets into the invented name lists that the 2026 students do not use together.
-      const name = `${cast.FIRST_NAMES[(n * 5 + 3) % cast.FIRST_NAMES.length]} ${cast.LAST_NAMES[(n * 11 + 4) % cast.LAST_NAMES.length]}`;
+      const name = `${FIRST_NAMES[(n * 5 + 3) % FIRST_NAMES.length]} ${LAST_NAMES[(n * 11 + 4) % LAST_NAMES.length]}`;
       student = await User.create({ email, name, passwordHash: hash, isAdmin: false, studentNumber: `NM25${String(3800 + n)}` });
     }
     await CourseMembership.findOrCreate({ where: { userId: student.id, courseId: course.id, role: 'student' }, defaults: { userId: student.id, courseId: course.id, role: 'student', cohortId: cohort.id } });
@@ -109,41 +108,15 @@ export async function seedLastYearDemo(): Promise<{ created: number; skipped: st
   return { created, skipped: null };
 }
 
-/** A student's reported values and assigned lines, from a simulated line list with seeded noise. */
-function reportOf(speciesList: string[], plan: (typeof SLIP_PLAN)[number], seed: number) {
+/** A student's reported values and assigned lines, from a simulated line list with seeded noise (slips in H³⁵Cl only). */
+function reportOf(speciesList: string[], plan: DemoSlip, seed: number): { values: DemoValue[]; lines: DemoLine[] } {
   const noise = gaussian(mulberry32(seed));
-  const values: { key: string; species: string; valueText: string; unit: string; uncertaintyText: string | null }[] = [];
-  const lines: { species: string; branch: 'P' | 'R'; J: number; wavenumber: number }[] = [];
+  const values: DemoValue[] = [];
+  const lines: DemoLine[] = [];
   for (const sp of speciesList) {
-    const parsed = parseSpecies(sp);
-    if (!parsed.ok) continue;
-    const own = simulateLineList(sp, { jMax: 9 }).map((l) => ({ species: sp, branch: l.branch, J: l.J, wavenumber: Math.round((l.wavenumber + 0.04 * noise()) * 100) / 100 }));
+    const own = noisyLineList(sp, 0.04, noise);
     lines.push(...own);
-    // The model the lines support (with −4Dm³ where they need it), as a careful student fits.
-    const models = fitBandModels(own);
-    if (!models.ok) continue;
-    const fit = models.fit;
-    const nu0 = Math.round(fit.nu0.value * 10) / 10;
-    const { reducedMassKg: muKg, reducedMassU: muU } = parsed.species;
-    let kMu = muU;
-    let k = forceConstantFromBand(nu0 * 100, muKg);
-    if (sp === 'H35Cl') {
-      if (plan === 'mass-numbers-used') { kMu = 35 / 36; k = forceConstantFromBand(nu0 * 100, kMu * ATOMIC_MASS_KG); }
-      if (plan === 'missing-2pi') k /= 4 * Math.PI ** 2;
-      if (plan === 'grams-not-kilograms') k *= 1000;
-    }
-    const B0 = fit.B0.value;
-    const B1 = fit.B1.value;
-    const re = sp === 'H35Cl' && plan === 'r0-reported-as-re' ? bondLengthFromB(B0 * 100, muKg) : bondLengthFromB(fit.Be.value * 100, muKg);
-    const put = (key: string, valueText: string, unit: string, unc: string | null) => values.push({ key, species: sp, valueText, unit, uncertaintyText: unc });
-    put('bandCentre', nu0.toFixed(1), 'cm-1', '0.3');
-    put('reducedMass', kMu.toFixed(5), 'u', null);
-    put('forceConstant', k.toPrecision(4), 'N m-1', (k * 0.002).toPrecision(1));
-    put('B0', B0.toFixed(3), 'cm-1', '0.005');
-    put('B1', B1.toFixed(3), 'cm-1', '0.005');
-    put('Be', ((3 * B0 - B1) / 2).toFixed(3), 'cm-1', null);
-    put('alphaE', (B0 - B1).toFixed(3), 'cm-1', null);
-    put('re', (re * 1e10).toFixed(4), 'Å', '0.0005');
+    values.push(...(reportedValues(sp, own, plan, { r0OnlyInH35Cl: true }) ?? []));
   }
   return { values, lines };
 }

@@ -9,11 +9,11 @@ import crypto from 'node:crypto';
 import fs from 'node:fs';
 import { models } from '@/models';
 import { uploadPath } from '@/lib/storage';
-import { fitBandModels, forceConstantFromBand, u as ATOMIC_MASS_KG, bondLengthFromB, parseSpecies, simulateLineList } from '@/lib/grading';
 import { mulberry32, gaussian, synthesizeSpectrum, toJcampDx } from '@/lib/spectrum';
-import { checkStoredSubmission } from './check';
+import { checkStoredSubmission } from '@/lib/submissions/check';
+import { noisyLineList, reportedValues, type DemoLine, type DemoSlip, type DemoValue } from './report';
 
-const SLIP_PLAN = ['correct', 'mass-numbers-used', 'missing-2pi', 'correct', 'grams-not-kilograms', 'r0-reported-as-re', 'b0-b1-swapped', 'unit-mismatch', 'correct', 'correct'] as const;
+const SLIP_PLAN: readonly DemoSlip[] = ['correct', 'mass-numbers-used', 'missing-2pi', 'correct', 'grams-not-kilograms', 'r0-reported-as-re', 'b0-b1-swapped', 'unit-mismatch', 'correct', 'correct'];
 const SKIP = new Set([1, 21, 15, 35]);
 
 export async function seedDemoSubmissions(): Promise<{ created: number; skipped: string | null }> {
@@ -44,43 +44,12 @@ export async function seedDemoSubmissions(): Promise<{ created: number; skipped:
       flagLate: late > 0, isMarkedAttempt: true, checkSummary: null, lineListHash: null, proposedTotal: null, awardedTotal: null, maxTotal: null,
       markedById: null, markedAt: null, releasedAt: null, resubmissionMessage: null, version: 0,
     });
-    const values: { key: string; species: string; valueText: string; unit: string; uncertaintyText: string | null }[] = [];
-    const allLines: { species: string; branch: 'P' | 'R'; J: number; wavenumber: number; intensity: number }[] = [];
+    const values: DemoValue[] = [];
+    const allLines: DemoLine[] = [];
     for (const sp of practical.species) {
-      const species = parseSpecies(sp);
-      if (!species.ok) continue;
-      const sim = simulateLineList(sp, { jMax: 9 });
-      const lines = sim.map((l) => ({ species: sp, branch: l.branch, J: l.J, wavenumber: Math.round((l.wavenumber + 0.03 * noise()) * 100) / 100, intensity: l.intensity }));
+      const lines = noisyLineList(sp, 0.03, noise);
       allLines.push(...lines);
-      // The model the lines support (with −4Dm³ where they need it), as a careful student fits.
-      const models = fitBandModels(lines);
-      if (!models.ok) continue;
-      const fit = models.fit;
-      const nu0 = Math.round(fit.nu0.value * 10) / 10;
-      const muKg = species.species.reducedMassKg;
-      const muU = species.species.reducedMassU;
-      let k = forceConstantFromBand(nu0 * 100, muKg);
-      let kUnit = 'N m-1';
-      let kMu = muU;
-      if (sp === 'H35Cl') {
-        if (plan === 'mass-numbers-used') { kMu = 35 / 36; k = forceConstantFromBand(nu0 * 100, kMu * ATOMIC_MASS_KG); }
-        if (plan === 'missing-2pi') k /= 4 * Math.PI ** 2;
-        if (plan === 'grams-not-kilograms') k *= 1000;
-        if (plan === 'unit-mismatch') kUnit = 'mdyn/Å';
-      }
-      let B0 = fit.B0.value;
-      let B1 = fit.B1.value;
-      if (sp === 'H35Cl' && plan === 'b0-b1-swapped') [B0, B1] = [B1, B0];
-      const re = plan === 'r0-reported-as-re' ? bondLengthFromB(fit.B0.value * 100, muKg) : bondLengthFromB(fit.Be.value * 100, muKg);
-      const put = (key: string, valueText: string, unit: string, unc: string | null) => values.push({ key, species: sp, valueText, unit, uncertaintyText: unc });
-      put('bandCentre', nu0.toFixed(1), 'cm-1', '0.3');
-      put('reducedMass', kMu.toFixed(5), 'u', null);
-      put('forceConstant', k.toPrecision(4), kUnit, (k * 0.002).toPrecision(1));
-      put('B0', B0.toFixed(3), 'cm-1', '0.005');
-      put('B1', B1.toFixed(3), 'cm-1', '0.005');
-      put('Be', ((3 * B0 - B1) / 2).toFixed(3), 'cm-1', null);
-      put('alphaE', (B0 - B1).toFixed(3), 'cm-1', null);
-      put('re', (re * 1e10).toFixed(4), 'Å', '0.0005');
+      values.push(...(reportedValues(sp, lines, plan) ?? []));
     }
     await SubmittedValue.bulkCreate(values.map((v) => ({ ...v, submissionId: sub.id, valueSI: null })));
     await LineAssignment.bulkCreate(allLines.map((l) => ({ submissionId: sub.id, species: l.species, branch: l.branch, J: l.J, wavenumber: l.wavenumber, source: 'student' as const })));
