@@ -1,7 +1,9 @@
 import { defineConfig } from 'vitest/config';
 import path from 'node:path';
 
-const alias = { '@': path.resolve(__dirname) };
+// `server-only` throws outside Next's server build; tests load the server modules directly, so it
+// resolves to the package's empty module here (DEVELOPERS.md, "Server-only modules").
+const alias = { '@': path.resolve(__dirname), 'server-only': path.resolve(__dirname, 'node_modules/server-only/empty.js') };
 
 export default defineConfig({
   resolve: { alias },

@@ -1,7 +1,7 @@
 import { authorize, permit } from '@/lib/authz';
 import { json, readJson, route } from '@/lib/http';
 import { deliverOutbox } from '@/lib/mail/outbox';
-import { submissionScope } from '@/lib/marking/access';
+import { submissionScope } from '@/lib/authz/submission';
 import { releaseMany, type ReleaseOutcome } from '@/lib/marking/release';
 import { releaseSchema } from '@/lib/schemas/marking';
 

@@ -1,7 +1,7 @@
 import { audit } from '@/lib/audit';
 import { json, readJson, route, idParam, HttpError } from '@/lib/http';
 import { deliverOutbox, requeue } from '@/lib/mail/outbox';
-import { authorizeSubmission } from '@/lib/marking/access';
+import { authorizeSubmission } from '@/lib/authz/submission';
 import { resendSchema } from '@/lib/schemas/marking';
 import { models } from '@/models';
 

@@ -1,6 +1,6 @@
 import { json, readJson, route, idParam } from '@/lib/http';
 import { deliverOutbox } from '@/lib/mail/outbox';
-import { authorizeSubmission } from '@/lib/marking/access';
+import { authorizeSubmission } from '@/lib/authz/submission';
 import { requestResubmission } from '@/lib/marking/resubmission';
 import { resubmissionSchema } from '@/lib/schemas/marking';
 

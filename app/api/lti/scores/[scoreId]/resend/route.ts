@@ -1,7 +1,7 @@
 import { audit } from '@/lib/audit';
 import { authorize } from '@/lib/authz';
 import { HttpError, idParam, json, route } from '@/lib/http';
-import { authorizeSubmission } from '@/lib/marking/access';
+import { authorizeSubmission } from '@/lib/authz/submission';
 import { deliverScores, resendScore } from '@/lib/lti/scores';
 import { models } from '@/models';
 
