@@ -5,6 +5,7 @@
  * grace period long enough for any upload or release still in progress. Only names Oscillab
  * itself gives (random hex, or a formidable `.part`) are considered; anything else is left alone.
  */
+import 'server-only';
 import fs from 'node:fs';
 import path from 'node:path';
 import { models } from '@/models';

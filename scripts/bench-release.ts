@@ -1,5 +1,5 @@
 /**
- * Release benchmark: `npx tsx scripts/bench-release.ts [count=300]`.
+ * Release benchmark: `npm run bench:release -- [count=300]`.
  *
  * Builds a temporary SQLite database with `count` checked, marked submissions, then in one run:
  *   1. releases them all through the app (releaseMany: read, render the PDF on the worker threads,

@@ -1,5 +1,5 @@
 /**
- * Benchmark of the statistics API at growing size: `npx tsx scripts/bench-stats.ts [iterations=40]`
+ * Benchmark of the statistics API at growing size: `npm run bench:stats -- [iterations=40]`
  * with BENCH_SIZES=1000,10000,100000 (the default) — counted submissions in one practical, over
  * 20 cohorts (8 check results and 5 marks each, a third with a superseded earlier attempt).
  *

@@ -6,7 +6,7 @@
  */
 module.exports = {
   async up() {
-    // db:seed runs under `node --import tsx`, so the TypeScript module can be required directly.
+    // db:seed runs under `node --conditions=react-server --import tsx`, so the TypeScript module can be required directly.
     const { seedDemoSubmissions } = require('../lib/submissions/seed-demo.ts');
     const result = await seedDemoSubmissions();
     if (result.skipped) console.log(`[demo-submissions] skipped: ${result.skipped}`);

@@ -7,7 +7,7 @@
  */
 module.exports = {
   async up() {
-    // db:seed runs under `node --import tsx`, so the TypeScript module can be required directly.
+    // db:seed runs under `node --conditions=react-server --import tsx`, so the TypeScript module can be required directly.
     const { seedLastYearDemo } = require('../lib/statistics/demo-last-year.ts');
     const result = await seedLastYearDemo();
     if (result.skipped) console.log(`[demo-last-year] skipped: ${result.skipped}`);

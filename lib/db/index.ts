@@ -1,3 +1,4 @@
+import 'server-only';
 import { AsyncLocalStorage } from 'node:async_hooks';
 import { QueryTypes, Sequelize, Transaction, type Options } from 'sequelize';
 // eslint-disable-next-line @typescript-eslint/no-require-imports

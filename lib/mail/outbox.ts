@@ -5,6 +5,7 @@
  * instances) never send the same row twice; a worker that dies mid-send leaves the lease to
  * expire and the row is retried. Failed sends back off exponentially.
  */
+import 'server-only';
 import fs from 'node:fs/promises';
 import { Op, type Transaction } from 'sequelize';
 import { models } from '@/models';
