@@ -5,18 +5,22 @@ import path from 'node:path';
 // resolves to the package's empty module here (DEVELOPERS.md, "Server-only modules").
 const alias = { '@': path.resolve(__dirname), 'server-only': path.resolve(__dirname, 'node_modules/server-only/empty.js') };
 
+// Server logs (lib/log.ts) at warn and above only, unless asked: a line per request would bury the report.
+const env = { LOG_LEVEL: process.env.LOG_LEVEL ?? 'warn' };
+
 export default defineConfig({
   resolve: { alias },
   test: {
     projects: [
       {
         resolve: { alias },
-        test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node' },
+        test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node', env },
       },
       {
         resolve: { alias },
         test: {
           name: 'integration',
+          env,
           include: ['tests/integration/**/*.test.ts'],
           environment: 'node',
           setupFiles: ['tests/integration/setup.ts'],
