@@ -27,6 +27,8 @@ import { performance } from 'node:perf_hooks';
 
 process.env.NEXTAUTH_SECRET ||= 'bench-secret';
 process.env.OUTBOX_WORKER = 'off';
+// The statistics route logs a line per request (lib/log.ts); only warnings and errors here, unless asked.
+process.env.LOG_LEVEL ??= 'warn';
 
 const N = Number(process.argv[2] ?? 40);
 const SIZES = (process.env.BENCH_SIZES ?? '1000,10000,100000').split(',').map((s) => Number(s.trim())).filter((n) => n > 0);
