@@ -76,23 +76,35 @@ export function assertSameOrigin(request: Request): void {
 
 type Handler<C> = (request: Request, context: C) => Promise<Response>;
 
+/**
+ * Runs one API request under its id: `log()` inside carries it, the answer carries it in
+ * X-Request-Id, one closing `request` line logs the status and time, and anything thrown becomes
+ * the JSON answer `errorResponse` gives (a 500 naming the id, unless it is an HttpError).
+ * `route` uses it for every API route; handlers of their own (next-auth's, the learning platform's
+ * pages) call it directly.
+ */
+export function inRequest(request: Request, handle: (requestId: string, logger: Logger) => Promise<Response>): Promise<Response> {
+  const requestId = requestIdOf(request);
+  const logger = requestLogger(request, requestId);
+  const started = performance.now();
+  return withLogger(logger, async () => {
+    let response: Response;
+    try {
+      response = await handle(requestId, logger);
+    } catch (error) {
+      response = errorResponse(error, requestId);
+    }
+    logger.info({ status: response.status, ms: Math.round(performance.now() - started) }, 'request');
+    return withRequestId(response, requestId);
+  });
+}
+
 export function route<C = unknown>(handler: Handler<C>): Handler<C> {
-  return async (request, context) => {
-    const requestId = requestIdOf(request);
-    const logger = requestLogger(request, requestId);
-    const started = performance.now();
-    return withLogger(logger, async () => {
-      let response: Response;
-      try {
-        assertSameOrigin(request);
-        response = await handler(request, context);
-      } catch (error) {
-        response = errorResponse(error, requestId);
-      }
-      logger.info({ status: response.status, ms: Math.round(performance.now() - started) }, 'request');
-      return withRequestId(response, requestId);
+  return (request, context) =>
+    inRequest(request, async () => {
+      assertSameOrigin(request);
+      return handler(request, context);
     });
-  };
 }
 
 function depth(value: unknown, level = 0): number {

@@ -5,8 +5,7 @@
  * Oscillab's tokens (tailwind.config.ts) without needing the app's layout.
  */
 import { HttpError } from '@/lib/http-error';
-import { requestIdOf, requestLogger, withRequestId } from '@/lib/http';
-import { withLogger } from '@/lib/log';
+import { inRequest } from '@/lib/http';
 
 export function escapeHtml(value: unknown): string {
   return String(value ?? '').replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
@@ -76,23 +75,15 @@ type Handler<C> = (request: Request, context: C) => Promise<Response>;
  * Every refusal is a page, never a stack trace.
  */
 export function ltiRoute<C = unknown>(handler: Handler<C>): Handler<C> {
-  return async (request, context) => {
-    const requestId = requestIdOf(request);
-    const logger = requestLogger(request, requestId);
-    return withLogger(logger, async () => {
-      let response: Response;
+  return (request, context) =>
+    inRequest(request, async (requestId, logger) => {
       try {
-        response = await handler(request, context);
+        return await handler(request, context);
       } catch (error) {
-        if (error instanceof LaunchRefused) response = refusalPage(error);
-        else if (error instanceof HttpError) response = refusalPage(new LaunchRefused(error.status, 'bad-request', 'Oscillab could not use this request', error.message));
-        else {
-          logger.error({ err: error }, 'unhandled error in learning-platform endpoint');
-          response = refusalPage(new LaunchRefused(500, 'server-error', 'Something went wrong on our side', `The error has been logged; quote request id ${requestId} when you report it.`));
-        }
+        if (error instanceof LaunchRefused) return refusalPage(error);
+        if (error instanceof HttpError) return refusalPage(new LaunchRefused(error.status, 'bad-request', 'Oscillab could not use this request', error.message));
+        logger.error({ err: error }, 'unhandled error in learning-platform endpoint');
+        return refusalPage(new LaunchRefused(500, 'server-error', 'Something went wrong on our side', `The error has been logged; quote request id ${requestId} when you report it.`));
       }
-      logger.info({ status: response.status }, 'request');
-      return withRequestId(response, requestId);
     });
-  };
 }
