@@ -14,7 +14,8 @@ export async function register() {
   }
   // Build the kept statistics now if a migration left them to be built, not on the first page view.
   const { ensureKeptStatistics } = await import('./lib/statistics/keep');
-  ensureKeptStatistics().catch((error) => console.error('[oscillab] kept statistics', error));
+  const { log } = await import('./lib/log');
+  ensureKeptStatistics().catch((error) => log().error({ err: error }, 'building the kept statistics failed'));
   if (process.env.OUTBOX_WORKER === 'off') return;
   const { startOutboxWorker } = await import('./lib/mail/outbox');
   startOutboxWorker(Number(process.env.OUTBOX_INTERVAL_MS || 3000));

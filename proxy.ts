@@ -3,7 +3,7 @@ import { safeNextPath } from './lib/next-path';
 
 /**
  * Sends signed-out visitors of pages to the sign-in page. This is a convenience only: every page,
- * route handler and server action still authorises the caller itself through lib/authz.ts.
+ * route handler and server action still authorises the caller itself through lib/authz/.
  */
 const PUBLIC = [/^\/signin/, /^\/welcome/, /^\/reset(\/|$)/, /^\/not-permitted/, /^\/_next\//, /^\/fonts\//, /^\/favicon/];
 

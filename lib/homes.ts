@@ -30,7 +30,7 @@ export type NavLink = { href: string; label: string };
 /**
  * The header's links: each role's home plus the other pages that role works in. A course lead or
  * instructor sets up courses, moderates and reads statistics; moderation is offered to those who
- * moderate a course they belong to (the page itself decides, through lib/authz.ts).
+ * moderate a course they belong to (the page itself decides, through lib/authz/).
  */
 export function navLinksFor(actor: Actor): NavLink[] {
   const roles = new Set(actor.memberships.map((m) => m.role));

@@ -1,9 +1,12 @@
 /**
- * Route-handler plumbing: every API route is wrapped in `route`, which refuses cross-site writes,
- * turns HttpError and validation failures into JSON 4xx answers, and logs anything else as a 500.
+ * Route-handler plumbing: every API route is wrapped in `route`, which gives the request an id
+ * (X-Request-Id, on every answer and every log line of the request), refuses cross-site writes,
+ * turns HttpError and validation failures into JSON 4xx answers, and logs anything else as a 500
+ * that names the request id.
  */
 import { z, type ZodType } from 'zod';
 import { HttpError } from './http-error';
+import { log, newRunId, rootLogger, withLogger, type Logger } from './log';
 import { requestHost, requestProtocol } from './client-address';
 import { oneLine } from './schemas/text';
 
@@ -17,12 +20,40 @@ export function json(body: unknown, status = 200, headers?: HeadersInit): Respon
   return Response.json(body, { status, headers: { 'Cache-Control': 'no-store', ...headers } });
 }
 
-export function errorResponse(error: unknown): Response {
+export const REQUEST_ID_HEADER = 'x-request-id';
+/** What an incoming X-Request-Id (from a proxy in front) must look like to be kept: a UUID or similar token. */
+const WELL_FORMED_REQUEST_ID = /^[A-Za-z0-9][A-Za-z0-9._:-]{7,127}$/;
+
+/** The request's id: the caller's X-Request-Id when well-formed, else a fresh one. */
+export function requestIdOf(request: Request): string {
+  const given = request.headers.get(REQUEST_ID_HEADER)?.trim();
+  return given && WELL_FORMED_REQUEST_ID.test(given) ? given : newRunId();
+}
+
+/** The response with the request id in its headers (copied first when its headers are immutable, as a redirect's are). */
+export function withRequestId(response: Response, requestId: string): Response {
+  try {
+    response.headers.set(REQUEST_ID_HEADER, requestId);
+    return response;
+  } catch {
+    const headers = new Headers(response.headers);
+    headers.set(REQUEST_ID_HEADER, requestId);
+    return new Response(response.body, { status: response.status, statusText: response.statusText, headers });
+  }
+}
+
+/** The logger of one request: its lines carry the request id, method and path. */
+export function requestLogger(request: Request, requestId: string): Logger {
+  return rootLogger().child({ requestId, method: request.method, path: new URL(request.url).pathname });
+}
+
+export function errorResponse(error: unknown, requestId?: string): Response {
   if (error instanceof HttpError) {
     return json({ error: error.message, ...(error.fields ? { fields: error.fields } : {}) }, error.status);
   }
-  console.error('[oscillab] unhandled error in route handler', error);
-  return json({ error: 'Something went wrong on our side. The error has been logged.' }, 500);
+  log().error({ err: error }, 'unhandled error in route handler');
+  const quote = requestId ? ` Quote request id ${requestId} when you report it.` : '';
+  return json({ error: `Something went wrong on our side. The error has been logged.${quote}`, ...(requestId ? { requestId } : {}) }, 500);
 }
 
 /**
@@ -45,15 +76,35 @@ export function assertSameOrigin(request: Request): void {
 
 type Handler<C> = (request: Request, context: C) => Promise<Response>;
 
-export function route<C = unknown>(handler: Handler<C>): Handler<C> {
-  return async (request, context) => {
+/**
+ * Runs one API request under its id: `log()` inside carries it, the answer carries it in
+ * X-Request-Id, one closing `request` line logs the status and time, and anything thrown becomes
+ * the JSON answer `errorResponse` gives (a 500 naming the id, unless it is an HttpError).
+ * `route` uses it for every API route; handlers of their own (next-auth's, the learning platform's
+ * pages) call it directly.
+ */
+export function inRequest(request: Request, handle: (requestId: string, logger: Logger) => Promise<Response>): Promise<Response> {
+  const requestId = requestIdOf(request);
+  const logger = requestLogger(request, requestId);
+  const started = performance.now();
+  return withLogger(logger, async () => {
+    let response: Response;
     try {
-      assertSameOrigin(request);
-      return await handler(request, context);
+      response = await handle(requestId, logger);
     } catch (error) {
-      return errorResponse(error);
+      response = errorResponse(error, requestId);
     }
-  };
+    logger.info({ status: response.status, ms: Math.round(performance.now() - started) }, 'request');
+    return withRequestId(response, requestId);
+  });
+}
+
+export function route<C = unknown>(handler: Handler<C>): Handler<C> {
+  return (request, context) =>
+    inRequest(request, async () => {
+      assertSameOrigin(request);
+      return handler(request, context);
+    });
 }
 
 function depth(value: unknown, level = 0): number {

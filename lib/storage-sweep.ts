@@ -5,6 +5,8 @@
  * grace period long enough for any upload or release still in progress. Only names Oscillab
  * itself gives (random hex, or a formidable `.part`) are considered; anything else is left alone.
  */
+import 'server-only';
+import { log, withRun, type Logger } from '@/lib/log';
 import fs from 'node:fs';
 import path from 'node:path';
 import { models } from '@/models';
@@ -17,7 +19,11 @@ export function sweepGraceMs(): number {
 
 export type SweepReport = { removed: string[]; kept: number };
 
-export async function sweepOrphanFiles(options: { now?: Date; graceMs?: number } = {}): Promise<SweepReport> {
+export function sweepOrphanFiles(options: { now?: Date; graceMs?: number } = {}): Promise<SweepReport> {
+  return withRun('storage-sweep', (logger) => sweep(logger, options));
+}
+
+async function sweep(logger: Logger, options: { now?: Date; graceMs?: number }): Promise<SweepReport> {
   const now = (options.now ?? new Date()).getTime();
   const grace = options.graceMs ?? sweepGraceMs();
   const { Upload, FeedbackDocument } = models();
@@ -47,7 +53,7 @@ export async function sweepOrphanFiles(options: { now?: Date; graceMs?: number }
       removed.push(path.relative(uploadDir(), file));
     }
   }
-  if (removed.length) console.log(`[oscillab] storage sweep removed ${removed.length} file(s) without a row: ${removed.join(', ')}`);
+  logger[removed.length ? 'warn' : 'info']({ removed, kept }, removed.length ? `storage sweep removed ${removed.length} file(s) without a row` : 'storage sweep found nothing to remove');
   return { removed, kept };
 }
 
@@ -56,7 +62,7 @@ let timer: NodeJS.Timeout | null = null;
 /** Sweep a minute after start and then every six hours (started by instrumentation.ts). */
 export function startStorageSweeper(intervalMs = 6 * 60 * 60_000): void {
   if (timer) return;
-  const run = () => sweepOrphanFiles().catch((error) => console.error('[oscillab] storage sweep', error));
+  const run = () => sweepOrphanFiles().catch((error) => log().error({ err: error }, 'storage sweep failed'));
   setTimeout(run, 60_000).unref?.();
   timer = setInterval(run, intervalMs);
   timer.unref?.();

@@ -1,5 +1,5 @@
 /**
- * HTTP load benchmark: `npx tsx scripts/bench-http.ts [seconds=5]`.
+ * HTTP load benchmark: `npm run bench:http -- [seconds=5]`.
  *
  * Needs a production build (`npm run build`; with NEXT_DIST_DIR set, that folder is used). For
  * each size in BENCH_SIZES (default 1000,10000,100000 submissions) it makes a fresh database
@@ -213,7 +213,7 @@ async function prepareDatabase(size: number, dir: string): Promise<string> {
   const env = { ...process.env, DATABASE_URL: url, UPLOAD_DIR: path.join(dir, 'uploads'), OUTBOX_WORKER: 'off' };
   const sequelizeCli = path.resolve('node_modules/sequelize-cli/lib/sequelize');
   execFileSync(process.execPath, [sequelizeCli, 'db:migrate'], { env, stdio: 'pipe' });
-  execFileSync(process.execPath, ['--import', 'tsx', sequelizeCli, 'db:seed:all'], { env, stdio: 'pipe' });
+  execFileSync(process.execPath, ['--conditions=react-server', '--import', 'tsx', sequelizeCli, 'db:seed:all'], { env, stdio: 'pipe' });
 
   Object.assign(process.env, { DATABASE_URL: url, UPLOAD_DIR: env.UPLOAD_DIR });
   const { closeDatabase } = await import('@/lib/db');

@@ -166,7 +166,7 @@ async function main() {
   console.log(`build ${distDir}/, database ${env.DATABASE_URL}, port ${port}`);
   const sequelizeCli = path.resolve('node_modules/sequelize-cli/lib/sequelize');
   execFileSync(process.execPath, [sequelizeCli, 'db:migrate'], { env, stdio: 'pipe' });
-  execFileSync(process.execPath, ['--import', 'tsx', sequelizeCli, 'db:seed:all'], { env, stdio: 'pipe' });
+  execFileSync(process.execPath, ['--conditions=react-server', '--import', 'tsx', sequelizeCli, 'db:seed:all'], { env, stdio: 'pipe' });
 
   // Ids from the seeded demo: the practical students work on, a submission ta1 marks, the course.
   const { models } = await import('@/models');

@@ -1,5 +1,5 @@
 /**
- * Release benchmark: `npx tsx scripts/bench-release.ts [count=300]`.
+ * Release benchmark: `npm run bench:release -- [count=300]`.
  *
  * Builds a temporary SQLite database with `count` checked, marked submissions, then in one run:
  *   1. releases them all through the app (releaseMany: read, render the PDF on the worker threads,
@@ -58,6 +58,8 @@ async function main() {
   process.env.UPLOAD_DIR = path.join(dir, 'uploads');
   process.env.SMTP_URL = `smtp://127.0.0.1:${SMTP}`;
   process.env.OUTBOX_WORKER = 'off';
+  // Outbox runs log a line each (lib/log.ts); only warnings and errors here, unless asked.
+  process.env.LOG_LEVEL ??= 'warn';
   execFileSync(process.execPath, [path.resolve('node_modules/sequelize-cli/lib/sequelize'), 'db:migrate'], { env: process.env, stdio: 'pipe' });
   const catcher = spawn(process.execPath, [path.resolve('scripts/maildev.mjs'), String(SMTP), String(WEB)], { stdio: 'ignore' });
   const api = `http://127.0.0.1:${WEB}`;

@@ -1,5 +1,5 @@
 /**
- * Benchmark of the statistics API at growing size: `npx tsx scripts/bench-stats.ts [iterations=40]`
+ * Benchmark of the statistics API at growing size: `npm run bench:stats -- [iterations=40]`
  * with BENCH_SIZES=1000,10000,100000 (the default) — counted submissions in one practical, over
  * 20 cohorts (8 check results and 5 marks each, a third with a superseded earlier attempt).
  *
@@ -27,6 +27,8 @@ import { performance } from 'node:perf_hooks';
 
 process.env.NEXTAUTH_SECRET ||= 'bench-secret';
 process.env.OUTBOX_WORKER = 'off';
+// The statistics route logs a line per request (lib/log.ts); only warnings and errors here, unless asked.
+process.env.LOG_LEVEL ??= 'warn';
 
 const N = Number(process.argv[2] ?? 40);
 const SIZES = (process.env.BENCH_SIZES ?? '1000,10000,100000').split(',').map((s) => Number(s.trim())).filter((n) => n > 0);

@@ -24,6 +24,8 @@ await build({
   // Self-contained (the readers' few small libraries included), so it runs wherever the build folder is.
   packages: 'bundle',
   tsconfig: path.join(root, 'tsconfig.json'),
+  // `server-only` throws outside Next's server build: here it is the package's empty module (DEVELOPERS.md).
+  alias: { 'server-only': path.join(root, 'node_modules', 'server-only', 'empty.js') },
   legalComments: 'inline',
   logLevel: 'warning',
 });

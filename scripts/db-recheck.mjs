@@ -22,6 +22,8 @@ await build({
   target: 'node20',
   packages: 'external',
   tsconfig: path.join(root, 'tsconfig.json'),
+  // `server-only` throws outside Next's server build: here it is the package's empty module (DEVELOPERS.md).
+  alias: { 'server-only': path.join(root, 'node_modules', 'server-only', 'empty.js') },
   sourcemap: 'inline',
   logLevel: 'warning',
 });

@@ -6,12 +6,12 @@
  */
 module.exports = {
   async up() {
-    // db:seed runs under `node --import tsx`, so the TypeScript module can be required directly.
+    // db:seed runs under `node --conditions=react-server --import tsx`, so the TypeScript module can be required directly.
     const { seedDemoSubmissions } = require('./generators/submissions.ts');
     const result = await seedDemoSubmissions();
     if (result.skipped) console.log(`[demo-submissions] skipped: ${result.skipped}`);
     else console.log(`[demo-submissions] ${result.created} submissions created`);
-    const { closeDatabase } = require('../lib/db/index.ts');
+    const { closeDatabase } = require('./generators/submissions.ts');
     if (closeDatabase) await closeDatabase();
   },
   async down(q) {

@@ -7,12 +7,12 @@
  */
 module.exports = {
   async up() {
-    // db:seed runs under `node --import tsx`, so the TypeScript module can be required directly.
+    // db:seed runs under `node --conditions=react-server --import tsx`, so the TypeScript module can be required directly.
     const { seedLastYearDemo } = require('./generators/last-year.ts');
     const result = await seedLastYearDemo();
     if (result.skipped) console.log(`[demo-last-year] skipped: ${result.skipped}`);
     else console.log(`[demo-last-year] ${result.created} submissions created`);
-    const { closeDatabase } = require('../lib/db/index.ts');
+    const { closeDatabase } = require('./generators/last-year.ts');
     if (closeDatabase) await closeDatabase();
   },
   async down(q) {

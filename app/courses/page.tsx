@@ -1,5 +1,4 @@
-import { redirect } from 'next/navigation';
-import { authorizePage, hasRole } from '@/lib/authz';
+import { authorizePage } from '@/lib/authz';
 import { PageHeader } from '@/components/ui/page-header';
 import { managedCourses } from '@/lib/instructor/courses';
 import { CoursesOverview } from '@/components/instructor/courses-overview';
@@ -8,8 +7,7 @@ export const metadata = { title: 'Courses & practicals' };
 export const dynamic = 'force-dynamic';
 
 export default async function CoursesHome() {
-  const actor = await authorizePage();
-  if (!actor.isAdmin && !hasRole(actor, 'instructor') && !hasRole(actor, 'lead')) redirect('/not-permitted');
+  const actor = await authorizePage({ kind: 'course-manager' });
   const courses = await managedCourses(actor);
   return (
     <>

@@ -1,10 +1,10 @@
 import Link from 'next/link';
 import { redirect } from 'next/navigation';
-import { authorizePage, can } from '@/lib/authz';
+import { authorizePage, can, managesCourse } from '@/lib/authz';
 import { PageHeader } from '@/components/ui/page-header';
 import { cohortName } from '@/lib/display';
 import { MIN_GROUP } from '@/lib/statistics/definitions';
-import { cohortsOfPracticals, managesCourse } from '@/lib/statistics/scope';
+import { cohortsOfPracticals } from '@/lib/statistics/scope';
 import { models } from '@/models';
 
 export const metadata = { title: 'Cohort statistics' };

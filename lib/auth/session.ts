@@ -1,3 +1,4 @@
+import 'server-only';
 import { decode } from 'next-auth/jwt';
 import { Op, QueryTypes } from 'sequelize';
 import { sequelize } from '@/lib/db';

@@ -1,6 +1,6 @@
+import 'server-only';
 import { AsyncLocalStorage } from 'node:async_hooks';
 import { QueryTypes, Sequelize, Transaction, type Options } from 'sequelize';
-// eslint-disable-next-line @typescript-eslint/no-require-imports
 import cliConfig from './cli-config.cjs';
 
 type Settings = Options & { url?: string };

@@ -15,6 +15,7 @@ import type { PracticalData, copySchema, bandSchema, previewSchema, quantitySche
 import type { z } from 'zod';
 import { recheckPractical } from '@/lib/submissions/recheck';
 import { BASIS_SHARE, pickBands, toleranceFor, describeBand, type ResolvedBand } from './bands';
+import { log } from '@/lib/log';
 
 export async function practicalOr404(practicalId: number, transaction?: Transaction): Promise<Practical> {
   const practical = await models().Practical.findByPk(practicalId, { transaction });
@@ -173,7 +174,7 @@ async function recheckAfterChange(practicalId: number, actorId: number, count: n
     await audit({ actorId, action: 'practical.recheck', entityType: 'practical', entityId: practicalId, after: { submissions: count, rechecked } });
     return { rechecked };
   } catch (error) {
-    console.error('[oscillab] re-check after a band change failed', error);
+    log().error({ err: error, practicalId }, 're-check after a band change failed');
     await audit({ actorId, action: 'practical.recheck-pending', entityType: 'practical', entityId: practicalId, after: { submissions: count, error: String(error).slice(0, 300) } });
     return { rechecked: null };
   }

@@ -5,6 +5,7 @@
  */
 import type { LtiContext } from '@/models/lti-context';
 import { previewPlatformRoster } from './roster';
+import { log } from '@/lib/log';
 
 export async function instructorLandingAfterRoster(ctx: LtiContext, next: string): Promise<string> {
   if (!ctx.membershipsUrl) return next;
@@ -14,7 +15,7 @@ export async function instructorLandingAfterRoster(ctx: LtiContext, next: string
     if (added + changed + leaving === 0) return next;
     return `/courses/${ctx.courseId}/learning-platform?review=${ctx.id}&next=${encodeURIComponent(next)}`;
   } catch (error) {
-    console.warn('[oscillab] roster check at instructor launch', error instanceof Error ? error.message : error);
+    log().warn({ err: error, ltiContextId: ctx.id }, 'roster check at instructor launch failed');
     return next;
   }
 }

@@ -5,6 +5,7 @@
  * Oscillab's tokens (tailwind.config.ts) without needing the app's layout.
  */
 import { HttpError } from '@/lib/http-error';
+import { inRequest } from '@/lib/http';
 
 export function escapeHtml(value: unknown): string {
   return String(value ?? '').replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
@@ -74,14 +75,15 @@ type Handler<C> = (request: Request, context: C) => Promise<Response>;
  * Every refusal is a page, never a stack trace.
  */
 export function ltiRoute<C = unknown>(handler: Handler<C>): Handler<C> {
-  return async (request, context) => {
-    try {
-      return await handler(request, context);
-    } catch (error) {
-      if (error instanceof LaunchRefused) return refusalPage(error);
-      if (error instanceof HttpError) return refusalPage(new LaunchRefused(error.status, 'bad-request', 'Oscillab could not use this request', error.message));
-      console.error('[oscillab] unhandled error in learning-platform endpoint', error);
-      return refusalPage(new LaunchRefused(500, 'server-error', 'Something went wrong on our side', 'The error has been logged.'));
-    }
-  };
+  return (request, context) =>
+    inRequest(request, async (requestId, logger) => {
+      try {
+        return await handler(request, context);
+      } catch (error) {
+        if (error instanceof LaunchRefused) return refusalPage(error);
+        if (error instanceof HttpError) return refusalPage(new LaunchRefused(error.status, 'bad-request', 'Oscillab could not use this request', error.message));
+        logger.error({ err: error }, 'unhandled error in learning-platform endpoint');
+        return refusalPage(new LaunchRefused(500, 'server-error', 'Something went wrong on our side', `The error has been logged; quote request id ${requestId} when you report it.`));
+      }
+    });
 }

@@ -15,6 +15,7 @@ import { models } from '@/models';
 import { toolOrigin } from './config';
 import { PlatformAnswered } from './fetch';
 import { lineItemFor, postScore } from './services';
+import { log, withRun, type Logger } from '@/lib/log';
 
 const LEASE_MS = 60_000;
 const MAX_ATTEMPTS = 12;
@@ -71,7 +72,7 @@ export async function queueReleaseScores(view: ReleasedView, releaseNumber: numb
     );
     queued++;
   }
-  if (queued && process.env.OUTBOX_WORKER !== 'off') transaction.afterCommit(() => void deliverScores().catch((e) => console.error('[oscillab] score delivery', e)));
+  if (queued && process.env.OUTBOX_WORKER !== 'off') transaction.afterCommit(() => void deliverScores().catch((e) => log().error({ err: e }, 'score delivery failed')));
   return queued;
 }
 
@@ -100,7 +101,11 @@ function retryable(error: unknown): boolean {
 export type ScoreReport = { sent: number; failed: number; remaining: number };
 
 /** Send every due score once. Safe to run in several processes at the same time. */
-export async function deliverScores(options: { limit?: number; now?: () => Date } = {}): Promise<ScoreReport> {
+export function deliverScores(options: { limit?: number; now?: () => Date } = {}): Promise<ScoreReport> {
+  return withRun('score-outbox', (logger) => deliverDueScores(logger, options));
+}
+
+async function deliverDueScores(logger: Logger, options: { limit?: number; now?: () => Date }): Promise<ScoreReport> {
   const { LtiScoreOutbox, LtiContext, Practical } = models();
   const now = options.now ?? (() => new Date());
   const due = await LtiScoreOutbox.findAll({
@@ -147,9 +152,11 @@ export async function deliverScores(options: { limit?: number; now?: () => Date 
         { where: { id: row.id } },
       );
       failed++;
+      logger.warn({ err: error, scoreOutboxId: row.id, attempts, willRetry: !final }, 'score not sent');
     }
   }
   const remaining = await LtiScoreOutbox.count({ where: { status: ['queued', 'sending'] } });
+  if (due.length) logger.info({ due: due.length, sent, failed, remaining }, 'score outbox run');
   return { sent, failed, remaining };
 }
 
@@ -210,7 +217,7 @@ export function startScoreWorker(intervalMs = 3000): void {
     try {
       await deliverScores();
     } catch (error) {
-      console.error('[oscillab] score worker', error);
+      log().error({ err: error }, 'score worker failed');
     } finally {
       running = false;
     }

@@ -5,6 +5,8 @@
  * instances) never send the same row twice; a worker that dies mid-send leaves the lease to
  * expire and the row is retried. Failed sends back off exponentially.
  */
+import 'server-only';
+import { log, withRun, type Logger } from '@/lib/log';
 import fs from 'node:fs/promises';
 import { Op, type Transaction } from 'sequelize';
 import { models } from '@/models';
@@ -104,7 +106,11 @@ async function messageFor(row: OutboxRow): Promise<MailMessage> {
 export type DeliveryReport = { sent: number; failed: number; remaining: number };
 
 /** Send every due row once. Safe to run in several processes at the same time. */
-export async function deliverOutbox(options: { limit?: number; now?: () => Date } = {}): Promise<DeliveryReport> {
+export function deliverOutbox(options: { limit?: number; now?: () => Date } = {}): Promise<DeliveryReport> {
+  return withRun('outbox', (logger) => deliverDue(logger, options));
+}
+
+async function deliverDue(logger: Logger, options: { limit?: number; now?: () => Date }): Promise<DeliveryReport> {
   const { EmailOutbox } = models();
   const now = options.now ?? (() => new Date());
   const due = await EmailOutbox.findAll({
@@ -139,6 +145,7 @@ export async function deliverOutbox(options: { limit?: number; now?: () => Date 
         { where: { id: row.id } },
       );
       failed++;
+      logger.warn({ err: error, outboxId: row.id, attempts, willRetry: attempts < MAX_ATTEMPTS }, 'message not sent');
     }
   };
   // As many messages under way as the SMTP pool has connections, each row claimed on its own.
@@ -149,6 +156,7 @@ export async function deliverOutbox(options: { limit?: number; now?: () => Date 
     }),
   );
   const remaining = await EmailOutbox.count({ where: { status: ['queued', 'sending'] } });
+  if (due.length) logger.info({ due: due.length, sent, failed, remaining }, 'outbox run');
   return { sent, failed, remaining };
 }
 
@@ -188,7 +196,7 @@ export function startOutboxWorker(intervalMs = 3000): void {
     try {
       await deliverOutbox();
     } catch (error) {
-      console.error('[oscillab] outbox worker', error);
+      log().error({ err: error }, 'outbox worker failed');
     } finally {
       running = false;
     }

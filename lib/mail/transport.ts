@@ -1,3 +1,4 @@
+import 'server-only';
 import nodemailer, { type Transporter } from 'nodemailer';
 
 /** SMTP_URL (smtp://host:port), by default the local mail catcher on loopback. */

@@ -9,6 +9,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { buildFeedbackPdf, type FeedbackInput } from './feedback';
+import { log } from '@/lib/log';
 
 const IDLE_MS = 30_000;
 
@@ -71,7 +72,7 @@ class RenderPool {
         this.broken = true;
         this.drainHere();
       }
-      console.error('[oscillab] PDF worker stopped:', error.message);
+      log().error({ err: error }, 'PDF worker stopped');
     };
     worker.on('error', lost);
     worker.on('exit', (code) => {

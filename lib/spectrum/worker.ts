@@ -9,6 +9,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { Worker } from 'node:worker_threads';
 import type { UploadReading } from './read-upload';
+import { log } from '@/lib/log';
 
 export interface WorkerLimits {
   /** Wall-clock limit for one file, start-up included. */
@@ -70,7 +71,7 @@ export function readUploadOffThread(bytes: Uint8Array, name: string, wantSpectru
     worker.once('error', (error: Error & { code?: string }) => {
       if (error.code === 'ERR_WORKER_OUT_OF_MEMORY') finish({ ok: false, reason: 'memory', message: `Reading the file needed more than ${limits.maxMemoryMb} MB of memory and was stopped.` });
       else {
-        console.error('[oscillab] upload reader failed', error);
+        log().error({ err: error, file: name }, 'upload reader failed');
         finish({ ok: false, reason: 'failed', message: 'The file could not be read.' });
       }
     });

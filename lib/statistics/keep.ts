@@ -29,6 +29,7 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import { beforeCommit, holdsWriterTurn, outsideWriterTurn, rootTransaction, sequelize } from '@/lib/db';
 import { add, exactOf, isZero, negate, parse, serialise, ZERO, type Exact } from './exact';
 import { fineBin, histogramText, parseHistogram, type FineHistogram } from './bins';
+import { log } from '@/lib/log';
 
 /** Version of the kept tables' contents; statistics_meta.keptVersion below this means "rebuild". */
 export const KEPT_VERSION = 1;
@@ -712,7 +713,7 @@ export async function noteChangedSubmissions(ids: number[], transaction?: Transa
     // A write outside any transaction, made while this process's SQLite writer turn is held (an
     // afterCommit callback, say): a transaction now would wait for that turn, which waits for us.
     // Queue it behind the turn instead.
-    outsideWriterTurn(() => work()).catch((error) => console.error('[oscillab] kept statistics', error));
+    outsideWriterTurn(() => work()).catch((error) => log().error({ err: error }, 'keeping statistics failed'));
     return;
   }
   await work();
@@ -787,9 +788,9 @@ export function ensureKeptStatistics(): Promise<void> {
   keptChecked ??= (async () => {
     const rows = await sel<{ keptVersion: number }>('SELECT "keptVersion" FROM statistics_meta WHERE id = 1', {});
     if (rows.length && Number(rows[0].keptVersion) >= KEPT_VERSION) return;
-    console.log('[oscillab] building the kept statistics from the check results…');
+    log().info('building the kept statistics from the check results');
     const r = await rebuildStatistics({ onlyIfStale: true });
-    if (!r.skipped) console.log(`[oscillab] kept statistics built: ${r.submissions} submissions of ${r.students} students`);
+    if (!r.skipped) log().info({ submissions: r.submissions, students: r.students }, 'kept statistics built');
   })().catch((error) => {
     keptChecked = null;
     throw error;

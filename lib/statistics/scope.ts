@@ -1,14 +1,10 @@
 /**
- * Who may see which statistics. The practical (and cohort, when one is asked for) is looked up
- * first so the course comes from the database row, then lib/authz decides:
- * leads and instructors see every cohort of their course, TAs only cohorts they mark (they must
- * name one), students nothing. Anonymous callers get 401 before any id is looked up.
+ * What a statistics request covers once lib/authz/statistics.ts has allowed it: the cohorts a
+ * practical was run for, the practicals compared with it, and how markers are named to the viewer.
  */
 import { QueryTypes } from 'sequelize';
-import { z } from 'zod';
-import { actorFromRequest, can, rolesIn, type Actor } from '@/lib/authz';
+import type { Actor } from '@/lib/authz/decision';
 import { sequelize } from '@/lib/db';
-import { HttpError, validate } from '@/lib/http';
 import { models } from '@/models';
 import type { Practical } from '@/models/practical';
 import type { Cohort } from '@/models/cohort';
@@ -25,39 +21,15 @@ export interface StatisticsScope {
   scope: Scope;
 }
 
-export function managesCourse(actor: Actor, courseId: number): boolean {
-  const roles = rolesIn(actor, courseId);
-  return actor.isAdmin || roles.includes('lead') || roles.includes('instructor');
-}
-
-const cohortQuery = z.object({
-  cohortId: z.string().regex(/^\d{1,12}$/, 'cohortId must be a positive whole number.').transform(Number).optional(),
-});
-
-export async function statisticsScope(request: Request, practicalId: number): Promise<StatisticsScope> {
-  const actor = await actorFromRequest(request);
-  if (!actor) throw new HttpError(401, 'Sign in to continue.');
-  const url = new URL(request.url);
-  const { cohortId } = validate(cohortQuery, { cohortId: url.searchParams.get('cohortId') ?? undefined });
-
-  const { Practical, Cohort } = models();
-  const practical = await Practical.findByPk(practicalId);
-  if (!practical) throw new HttpError(404, 'No such practical.');
-  let cohort: Cohort | null = null;
-  if (cohortId !== undefined) {
-    cohort = await Cohort.findByPk(cohortId);
-    if (!cohort || cohort.courseId !== practical.courseId) throw new HttpError(404, 'No such cohort for this practical.');
-  }
-  if (!can(actor, { kind: 'statistics', courseId: practical.courseId, cohortId: cohort?.id })) {
-    throw new HttpError(403, cohort || managesCourse(actor, practical.courseId) || !rolesIn(actor, practical.courseId).includes('ta')
-      ? 'You do not have permission to see these statistics.'
-      : 'Choose one of the cohorts you mark.');
-  }
-  const cohorts = cohort ? [cohort] : await cohortsOfPractical(practical.id);
-  return {
-    actor, practical, cohort, cohorts, manages: managesCourse(actor, practical.courseId),
-    scope: { practicalIds: [practical.id], cohortIds: cohorts.length ? cohorts.map((c) => c.id) : [-1] },
-  };
+/** The practicals of the same title in the same course (this year's and earlier years'), and every cohort that ran one of them. */
+export async function comparableCohorts(practical: Practical): Promise<{ practicalIds: number[]; cohorts: Cohort[] }> {
+  const same = await sequelize().query<{ id: number }>(
+    `SELECT id FROM practicals WHERE "courseId" = :courseId AND LOWER(TRIM(title)) = LOWER(TRIM(:title)) ORDER BY id`,
+    { replacements: { courseId: practical.courseId, title: practical.title }, type: QueryTypes.SELECT },
+  );
+  const practicalIds = same.map((r) => Number(r.id));
+  const all = (await Promise.all(practicalIds.map(cohortsOfPractical))).flat();
+  return { practicalIds, cohorts: [...new Map(all.map((c) => [c.id, c])).values()] };
 }
 
 /** Cohorts the practical is set for, plus any that have submissions to it. */

@@ -50,6 +50,7 @@ import { spectraOfSubmission } from './spectra';
 
 export { loadSpectrum } from './load-spectrum';
 import { compareWithAnalysis, FROM_SPECTRUM_LEGEND, matchByBand, type BandMatch, type FromSpectrumRow, type StoredAnalysis } from './spectrum-analysis';
+import { log } from '@/lib/log';
 
 type LineComparisonSummary = LinePeakComparison['summary'];
 
@@ -108,7 +109,7 @@ async function flagDuplicates(ids: number[]): Promise<void> {
       return;
     } catch (error) {
       if (attempt >= 3) {
-        console.error('[oscillab] could not flag duplicate submissions', ids, error);
+        log().error({ err: error, submissionIds: ids }, 'could not flag duplicate submissions');
         return;
       }
     }

@@ -31,6 +31,7 @@ import {
 } from '@/lib/grading';
 import { analyseSpectrum, BAND_LABEL, type BandKind, type Spectrum, type SpectrumAnalysis } from '@/lib/spectrum';
 import type { SpectrumSampleSetting } from '@/models/practical';
+import { log } from '@/lib/log';
 
 /** Quantities that need the first overtone: a practical asking for them expects the 2←0 band. */
 export const OVERTONE_QUANTITIES = new Set(['omegaE', 'omegaExe', 'forceConstantE', 'zeroPointEnergy', 'dissociationEnergy', 'dissociationEnergy0']);
@@ -183,7 +184,7 @@ export function analyseForSample(spectrum: Spectrum, uploadId: number, sample: S
     return storeAnalysis(analyseSpectrum(spectrum, { species: sample.molecules, bands: sample.bands }), uploadId, sample);
   } catch (e) {
     // analyseSpectrum does not throw for any spectrum parse accepts; if it ever does, say so rather than fail the upload.
-    console.error('[oscillab] spectrum analysis failed', e);
+    log().error({ err: e, uploadId, sample: sample.key }, 'spectrum analysis failed');
     return { version: ANALYSIS_VERSION, ok: false, uploadId, sample: sample.key, molecules: sample.molecules, bands: sample.bands, message: 'Oscillab could not analyse this spectrum.' };
   }
 }

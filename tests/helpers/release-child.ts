@@ -1,6 +1,6 @@
 /**
  * A stand-in for the app process in the "killed mid-release" fault test, run as
- * `node --import tsx tests/helpers/release-child.ts <actorId> <id,id,…>` with the test's
+ * `node --conditions=react-server --import tsx tests/helpers/release-child.ts <actorId> <id,id,…>` with the test's
  * DATABASE_URL, UPLOAD_DIR, NEXTAUTH_SECRET and SMTP_URL. It does what the server does: the real
  * release route (release the batch, then start delivery), then keeps the outbox worker going
  * until nothing is left. The test SIGKILLs it part-way; nothing here cleans up on purpose.

@@ -90,7 +90,7 @@ async function assertReleaseConsistent(ids: number[]) {
 }
 
 function spawnReleaseChild(ids: number[], smtpUrl: string) {
-  const child = spawn(process.execPath, ['--import', 'tsx', path.resolve('tests/helpers/release-child.ts'), String(w.people.ta.id), ids.join(',')], {
+  const child = spawn(process.execPath, ['--conditions=react-server', '--import', 'tsx', path.resolve('tests/helpers/release-child.ts'), String(w.people.ta.id), ids.join(',')], {
     cwd: process.cwd(),
     env: { ...process.env, SMTP_URL: smtpUrl, OUTBOX_WORKER: 'off' },
     stdio: ['ignore', 'pipe', 'pipe'],

@@ -57,7 +57,7 @@ describe('drafts are the student\'s own until submitted (item 9)', () => {
     expect((await call('GET /api/uploads/[id]', `/api/uploads/${submitted}`, w.people.ta.id, { id: submitted })).status).toBe(200);
   });
 
-  it('the rule lives in lib/authz.ts: can() says no to everyone but the student for a draft scope', async () => {
+  it('the rule lives in lib/authz/decision.ts: can() says no to everyone but the student for a draft scope', async () => {
     const scope = { courseId: w.course.id, cohortId: w.cohort.id, studentId: w.people.student.id, draft: true };
     const admin = (await loadActor(w.people.admin.id))!;
     const student = (await loadActor(w.people.student.id))!;

@@ -1,4 +1,4 @@
-import { authorize, hasRole } from '@/lib/authz';
+import { authorize, permit } from '@/lib/authz';
 import { json, readJson, route, HttpError } from '@/lib/http';
 import { models } from '@/models';
 import { sequelize } from '@/lib/db';
@@ -15,7 +15,7 @@ export const GET = route(async (request) => {
 /** An instructor or course lead (of any course) starts a new course and becomes its instructor. */
 export const POST = route(async (request) => {
   const actor = await authorize(request);
-  if (!actor.isAdmin && !hasRole(actor, 'instructor') && !hasRole(actor, 'lead')) throw new HttpError(403, 'Only instructors and course leads create courses.');
+  permit(actor, { kind: 'course-manager' }, 'Only instructors and course leads create courses.');
   const data = await readJson(request, courseCreateSchema);
   const { Course, CourseMembership } = models();
   const course = await sequelize().transaction(async (transaction) => {

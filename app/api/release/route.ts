@@ -1,7 +1,8 @@
 import { authorize, permit } from '@/lib/authz';
+import { log } from '@/lib/log';
 import { json, readJson, route } from '@/lib/http';
 import { deliverOutbox } from '@/lib/mail/outbox';
-import { submissionScope } from '@/lib/marking/access';
+import { submissionScope } from '@/lib/authz/submission';
 import { releaseMany, type ReleaseOutcome } from '@/lib/marking/release';
 import { releaseSchema } from '@/lib/schemas/marking';
 
@@ -19,7 +20,8 @@ export const POST = route(async (request) => {
     permit(actor, { kind: 'submission-mark', ...scope });
   }
   // Send now rather than wait for the worker's next tick; failures stay queued and are retried.
-  const deliver = () => deliverOutbox().catch((error) => console.error('[oscillab] outbox after release', error));
+  const logger = log();
+  const deliver = () => deliverOutbox().catch((error) => logger.error({ err: error }, 'outbox after release failed'));
   const summary = (results: ReleaseOutcome[]) => ({ results, released: results.filter((r) => r.ok).length });
 
   if (!(request.headers.get('accept') ?? '').includes('application/x-ndjson')) {
@@ -38,8 +40,8 @@ export const POST = route(async (request) => {
         deliver();
         line(summary(results));
       } catch (error) {
-        console.error('[oscillab] release', error);
-        line({ error: 'Something went wrong on our side while releasing; the submissions released so far stay released. The error has been logged.' });
+        logger.error({ err: error }, 'release failed');
+        line({ error: `Something went wrong on our side while releasing; the submissions released so far stay released. The error has been logged (request id ${logger.bindings().requestId}).` });
       }
       controller.close();
     },

@@ -4,7 +4,7 @@ import { HttpError, json, route, validate } from '@/lib/http';
 import { authorize, permit } from '@/lib/authz';
 import { sequelize } from '@/lib/db';
 import { sampleKeySchema, UPLOAD_KINDS } from '@/lib/schemas/submission';
-import { scopeOf } from '@/lib/submissions/access';
+import { scopeOf } from '@/lib/authz/submission';
 import { readDraft } from '@/lib/submissions/service';
 import { analyseFile, samplesForPractical } from '@/lib/submissions/spectra';
 import { acceptFile, receiveMultipart, uploadLimits } from '@/lib/submissions/uploads';

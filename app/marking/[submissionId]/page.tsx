@@ -9,7 +9,7 @@ import { FitPlots, SpectrumSection } from '@/components/marking/plots';
 import { cohortName } from '@/lib/display';
 import { SpectrumAnalysisPanel } from '@/components/marking/spectrum-analysis';
 import { HttpError } from '@/lib/http';
-import { submissionScope } from '@/lib/marking/access';
+import { submissionScope } from '@/lib/authz/submission';
 import { nextToMark } from '@/lib/marking/next';
 import { loadMarkingView, type BasisRow } from '@/lib/marking/view';
 import { slipsByCode } from '@/lib/marking/feedback-input';

@@ -1,13 +1,13 @@
 import { Suspense } from 'react';
 import Link from 'next/link';
 import { notFound } from 'next/navigation';
-import { authorizePage, type Actor } from '@/lib/authz';
+import { authorizePage, managesCourse, type Actor } from '@/lib/authz';
 import { PageHeader } from '@/components/ui/page-header';
 import { LoadingBlock } from '@/components/ui/loading-block';
 import { StatisticsDashboard } from '@/components/statistics/statistics-dashboard';
 import { DEFAULT_MARKER_THRESHOLD } from '@/lib/statistics/definitions';
 import { practicalReport } from '@/lib/statistics/report';
-import { cohortsOfPractical, managesCourse } from '@/lib/statistics/scope';
+import { cohortsOfPractical } from '@/lib/statistics/scope';
 import { cohortName } from '@/lib/display';
 import { models } from '@/models';
 import type { Cohort } from '@/models/cohort';

@@ -1,24 +1,24 @@
 import NextAuth from 'next-auth';
 import { authOptions } from '@/lib/auth/options';
 import { signInSchema } from '@/lib/schemas/auth';
-import { errorResponse, HttpError, validate } from '@/lib/http';
+import { HttpError, inRequest, validate } from '@/lib/http';
 
 const nextAuth = NextAuth(authOptions);
 
 type Context = { params: Promise<{ nextauth: string[] }> };
 
-export async function GET(request: Request, context: Context) {
-  return nextAuth(request, context);
+export function GET(request: Request, context: Context) {
+  return inRequest(request, () => nextAuth(request, context));
 }
 
 /**
  * next-auth answers a malformed sign-in with a redirect; we first check the body ourselves so a
  * bad request gets a plain 4xx with a reason, and nothing is counted or written.
  */
-export async function POST(request: Request, context: Context) {
-  const { nextauth } = await context.params;
-  if (nextauth.join('/') === 'callback/credentials') {
-    try {
+export function POST(request: Request, context: Context) {
+  return inRequest(request, async () => {
+    const { nextauth } = await context.params;
+    if (nextauth.join('/') === 'callback/credentials') {
       const type = request.headers.get('content-type') ?? '';
       if (!type.includes('application/x-www-form-urlencoded')) throw new HttpError(415, 'Send the sign-in form as form data.');
       const length = Number(request.headers.get('content-length') ?? 0);
@@ -27,9 +27,7 @@ export async function POST(request: Request, context: Context) {
       if (text.length > 10_000) throw new HttpError(413, 'The sign-in request is too large.');
       const form = new URLSearchParams(text);
       validate(signInSchema, { email: form.get('email') ?? undefined, password: form.get('password') ?? undefined });
-    } catch (error) {
-      return errorResponse(error);
     }
-  }
-  return nextAuth(request, context);
+    return nextAuth(request, context);
+  });
 }

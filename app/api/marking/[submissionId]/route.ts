@@ -1,5 +1,5 @@
 import { json, readJson, route, idParam } from '@/lib/http';
-import { authorizeSubmission } from '@/lib/marking/access';
+import { authorizeSubmission } from '@/lib/authz/submission';
 import { loadMarkingView } from '@/lib/marking/view';
 import { saveMarks } from '@/lib/marking/marks';
 import { saveMarksSchema } from '@/lib/schemas/marking';

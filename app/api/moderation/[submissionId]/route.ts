@@ -1,6 +1,6 @@
 import { authenticate, permit } from '@/lib/authz';
 import { json, readJson, route, idParam } from '@/lib/http';
-import { submissionScope } from '@/lib/marking/access';
+import { submissionScope } from '@/lib/authz/submission';
 import { moderate } from '@/lib/marking/moderation';
 import { moderationSchema } from '@/lib/schemas/marking';
 

@@ -1,6 +1,6 @@
 import { idParam, json, readJson, route } from '@/lib/http';
 import { practicalSchema } from '@/lib/schemas/instructor';
-import { authorizePractical } from '@/lib/instructor/access';
+import { authorizePractical } from '@/lib/authz/practical';
 import { practicalDetail, updatePractical } from '@/lib/instructor/practicals';
 import { renderInstructions } from '@/lib/instructor/markdown';
 

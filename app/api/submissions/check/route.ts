@@ -1,7 +1,7 @@
 import { authorize, permit } from '@/lib/authz';
 import { HttpError, json, readJson, route } from '@/lib/http';
 import { saveDraftSchema } from '@/lib/schemas/submission';
-import { autosaveTarget } from '@/lib/submissions/access';
+import { autosaveTarget } from '@/lib/authz/placement';
 import { precheckDraft } from '@/lib/submissions/precheck';
 import { models } from '@/models';
 

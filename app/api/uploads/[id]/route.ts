@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import { authenticate, permit } from '@/lib/authz';
 import { HttpError, idParam, route } from '@/lib/http';
 import { uploadPath } from '@/lib/storage';
-import { scopeOf } from '@/lib/submissions/access';
+import { scopeOf } from '@/lib/authz/submission';
 import { models } from '@/models';
 
 type Ctx = { params: Promise<{ id: string }> };

@@ -6,7 +6,7 @@ import { AttemptResult } from '@/components/student/attempt-result';
 import { HazardNotes } from '@/components/hazard-notes';
 import { renderInstructions } from '@/lib/instructor/markdown';
 import { isQuantityKey, QUANTITIES, unitsFor } from '@/lib/grading';
-import { studentPlacement } from '@/lib/submissions/access';
+import { studentPlacement } from '@/lib/authz/placement';
 import { speciesDisplay } from '@/lib/grading';
 import { attemptsUsed, findDraft, readDraft } from '@/lib/submissions/service';
 import { timeLeft } from '@/lib/submissions/student-home';

@@ -1,5 +1,5 @@
 import { json, readJson, route, idParam } from '@/lib/http';
-import { authorizeSubmission } from '@/lib/marking/access';
+import { authorizeSubmission } from '@/lib/authz/submission';
 import { acceptProposal } from '@/lib/marking/marks';
 import { acceptSchema } from '@/lib/schemas/marking';
 

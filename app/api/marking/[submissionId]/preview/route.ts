@@ -1,6 +1,6 @@
 import fs from 'node:fs/promises';
 import { route, idParam } from '@/lib/http';
-import { authorizeSubmission } from '@/lib/marking/access';
+import { authorizeSubmission } from '@/lib/authz/submission';
 import { loadMarkingView } from '@/lib/marking/view';
 import { feedbackInputFromView } from '@/lib/marking/feedback-input';
 import { buildFeedbackPdf } from '@/lib/pdf/feedback';

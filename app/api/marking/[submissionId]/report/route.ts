@@ -1,6 +1,6 @@
 import fs from 'node:fs/promises';
 import { route, idParam, HttpError } from '@/lib/http';
-import { authorizeSubmission } from '@/lib/marking/access';
+import { authorizeSubmission } from '@/lib/authz/submission';
 import { uploadPath } from '@/lib/storage';
 import { models } from '@/models';
 

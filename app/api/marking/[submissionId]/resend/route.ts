@@ -1,7 +1,8 @@
 import { audit } from '@/lib/audit';
+import { log } from '@/lib/log';
 import { json, readJson, route, idParam, HttpError } from '@/lib/http';
 import { deliverOutbox, requeue } from '@/lib/mail/outbox';
-import { authorizeSubmission } from '@/lib/marking/access';
+import { authorizeSubmission } from '@/lib/authz/submission';
 import { resendSchema } from '@/lib/schemas/marking';
 import { models } from '@/models';
 
@@ -24,6 +25,6 @@ export const POST = route<Ctx>(async (request, { params }) => {
     throw new HttpError(409, `This message was already sent again just now; wait a minute before asking again.`);
   }
   await audit({ actorId: actor.id, action: 'mail.resend', entityType: 'email_outbox', entityId: row.id, before, after: { requeued: true } });
-  deliverOutbox().catch((error) => console.error('[oscillab] outbox after resend', error));
+  deliverOutbox().catch((error) => log().error({ err: error }, 'outbox after resend failed'));
   return json({ ok: true });
 });

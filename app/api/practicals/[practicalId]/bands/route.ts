@@ -1,6 +1,6 @@
 import { idParam, json, readJson, route } from '@/lib/http';
 import { bandDeleteSchema, bandSchema } from '@/lib/schemas/instructor';
-import { authorizePractical } from '@/lib/instructor/access';
+import { authorizePractical } from '@/lib/authz/practical';
 import { deleteBand, NeedsRecheckDecision, saveBand } from '@/lib/instructor/practicals';
 
 type Ctx = { params: Promise<{ practicalId: string }> };

@@ -1,6 +1,6 @@
 import { idParam, json, readJson, route } from '@/lib/http';
 import { previewSchema } from '@/lib/schemas/instructor';
-import { authorizePractical } from '@/lib/instructor/access';
+import { authorizePractical } from '@/lib/authz/practical';
 import { previewVerdict } from '@/lib/instructor/practicals';
 
 type Ctx = { params: Promise<{ practicalId: string }> };

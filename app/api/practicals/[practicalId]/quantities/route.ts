@@ -1,6 +1,6 @@
 import { idParam, json, readJson, route } from '@/lib/http';
 import { quantitySchema } from '@/lib/schemas/instructor';
-import { authorizePractical } from '@/lib/instructor/access';
+import { authorizePractical } from '@/lib/authz/practical';
 import { addQuantity } from '@/lib/instructor/practicals';
 
 type Ctx = { params: Promise<{ practicalId: string }> };

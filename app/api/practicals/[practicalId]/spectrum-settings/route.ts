@@ -1,6 +1,6 @@
 import { idParam, json, readJson, route } from '@/lib/http';
 import { spectrumSettingsSchema } from '@/lib/schemas/instructor';
-import { authorizePractical } from '@/lib/instructor/access';
+import { authorizePractical } from '@/lib/authz/practical';
 import { saveSpectrumSettings, spectrumSettings } from '@/lib/instructor/spectrum-settings';
 
 type Ctx = { params: Promise<{ practicalId: string }> };

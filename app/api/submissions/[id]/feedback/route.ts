@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import { HttpError, idParam, route } from '@/lib/http';
 import { feedbackPath } from '@/lib/storage';
-import { loadSubmissionFor } from '@/lib/submissions/access';
+import { authorizeSubmission } from '@/lib/authz/submission';
 import { models } from '@/models';
 
 type Ctx = { params: Promise<{ id: string }> };
@@ -9,7 +9,7 @@ type Ctx = { params: Promise<{ id: string }> };
 /** The feedback PDF of a released submission (404 until released). */
 export const GET = route<Ctx>(async (request, { params }) => {
   const id = idParam((await params).id);
-  const { actor, submission } = await loadSubmissionFor(request, id, 'submission-read');
+  const { actor, submission } = await authorizeSubmission(request, id, 'submission-read');
   const released = submission.releasedAt !== null || submission.status === 'released';
   if (!released && actor.id === submission.studentId) throw new HttpError(404, 'Feedback for this attempt has not been released yet.');
   const doc = await models().FeedbackDocument.findOne({ where: { submissionId: submission.id }, order: [['id', 'DESC']] });

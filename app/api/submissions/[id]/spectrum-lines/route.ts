@@ -1,7 +1,7 @@
 import { HttpError, idParam, json, route } from '@/lib/http';
 import { speciesDisplay } from '@/lib/grading';
 import { formatLineListCsv } from '@/lib/linelist';
-import { loadSubmissionFor } from '@/lib/submissions/access';
+import { authorizeSubmission } from '@/lib/authz/submission';
 import { spectraOfSubmission } from '@/lib/submissions/spectra';
 import { bandsFound, linesForSpecies, type StoredAnalysis } from '@/lib/submissions/spectrum-analysis';
 
@@ -14,7 +14,7 @@ type Ctx = { params: Promise<{ id: string }> };
  */
 export const GET = route<Ctx>(async (request, { params }) => {
   const id = idParam((await params).id);
-  const { submission, practical } = await loadSubmissionFor(request, id, 'submission-write');
+  const { submission, practical } = await authorizeSubmission(request, id, 'submission-write');
   if (submission.attempt !== 0) throw new HttpError(409, 'Lines can only be taken into your draft, not into a submitted attempt.');
   const spectra = await spectraOfSubmission(submission, practical);
   const analyses = spectra.map((s) => s.analysis).filter((a): a is StoredAnalysis => a !== null);

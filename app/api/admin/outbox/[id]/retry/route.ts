@@ -2,6 +2,7 @@ import { authorize } from '@/lib/authz';
 import { idParam, json, route } from '@/lib/http';
 import { retryOutbox } from '@/lib/admin/outbox-health';
 import { deliverOutbox } from '@/lib/mail/outbox';
+import { log } from '@/lib/log';
 
 type Ctx = { params: Promise<{ id: string }> };
 
@@ -10,6 +11,6 @@ export const POST = route<Ctx>(async (request, { params }) => {
   const actor = await authorize(request, { kind: 'admin' });
   const id = idParam((await params).id);
   await retryOutbox(id, actor.id);
-  deliverOutbox().catch((error) => console.error('[oscillab] outbox after retry', error));
+  deliverOutbox().catch((error) => log().error({ err: error }, 'outbox after retry failed'));
   return json({ ok: true });
 });

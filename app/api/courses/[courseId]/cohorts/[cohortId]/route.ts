@@ -2,7 +2,7 @@ import { idParam, json, readJson, route, HttpError } from '@/lib/http';
 import { models } from '@/models';
 import { cohortUpdateSchema } from '@/lib/schemas/instructor';
 import { updateCohort } from '@/lib/instructor/courses';
-import { authorizeManageOf } from '@/lib/instructor/access';
+import { authorizeManageOf } from '@/lib/authz/practical';
 
 type Ctx = { params: Promise<{ courseId: string; cohortId: string }> };
 

@@ -1,9 +1,10 @@
 import { audit } from '@/lib/audit';
 import { authorize } from '@/lib/authz';
 import { HttpError, idParam, json, route } from '@/lib/http';
-import { authorizeSubmission } from '@/lib/marking/access';
+import { authorizeSubmission } from '@/lib/authz/submission';
 import { deliverScores, resendScore } from '@/lib/lti/scores';
 import { models } from '@/models';
+import { log } from '@/lib/log';
 
 type Ctx = { params: Promise<{ scoreId: string }> };
 
@@ -17,6 +18,6 @@ export const POST = route<Ctx>(async (request, { params }) => {
   if (row.status === 'queued' || row.status === 'sending') throw new HttpError(409, 'This score is still waiting to be sent.');
   await resendScore(id);
   await audit({ actorId: actor.id, action: 'lti.score.resend', entityType: 'lti_score_outbox', entityId: id, before: { status: row.status }, after: { requeued: true } });
-  if (process.env.OUTBOX_WORKER !== 'off') deliverScores().catch((error) => console.error('[oscillab] score delivery after resend', error));
+  if (process.env.OUTBOX_WORKER !== 'off') deliverScores().catch((error) => log().error({ err: error }, 'score delivery after resend failed'));
   return json({ ok: true });
 });

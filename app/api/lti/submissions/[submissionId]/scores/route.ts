@@ -1,5 +1,5 @@
 import { idParam, json, route } from '@/lib/http';
-import { authorizeSubmission } from '@/lib/marking/access';
+import { authorizeSubmission } from '@/lib/authz/submission';
 import { scoreDeliveries } from '@/lib/lti/scores';
 
 type Ctx = { params: Promise<{ submissionId: string }> };

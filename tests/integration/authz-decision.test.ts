@@ -1,7 +1,10 @@
+/** The decision (lib/authz/decision.ts) as a table of roles and accesses, and the request entry points of lib/authz/. */
 import { beforeAll, describe, expect, it } from 'vitest';
 import { apiRequest, params } from '../helpers/session';
 import { buildWorld, type World } from '../helpers/world';
-import { can, authorize } from '@/lib/authz';
+import { execFileSync } from 'node:child_process';
+import fs from 'node:fs';
+import { can, authorize, managesCourse } from '@/lib/authz';
 import { loadActor } from '@/lib/auth/session';
 import { GET as getMe } from '@/app/api/me/route';
 import { GET as getCourse } from '@/app/api/courses/[courseId]/route';
@@ -49,11 +52,31 @@ describe('authorisation helper', () => {
       ['lead', { kind: 'admin' }, false],
       ['student', { kind: 'role', role: 'student' }, true],
       ['student', { kind: 'role', role: 'ta' }, false],
+      ['instructor', { kind: 'course-manager' }, true],
+      ['otherLead', { kind: 'course-manager' }, true],
+      ['admin', { kind: 'course-manager' }, true],
+      ['ta', { kind: 'course-manager' }, false],
+      ['student', { kind: 'course-manager' }, false],
     ];
     for (const [who, access, allowed] of table) {
       expect({ who, access, allowed: can(await actor(people[who]), access) }).toEqual({ who, access, allowed });
     }
     expect(can(null, { kind: 'signed-in' })).toBe(false);
+    // The manager test statistics and set-up use is the decision's own.
+    expect(managesCourse(await actor(people.lead), course.id)).toBe(true);
+    expect(managesCourse(await actor(people.otherLead), course.id)).toBe(false);
+    expect(managesCourse(await actor(people.ta), course.id)).toBe(false);
+    expect(managesCourse(await actor(people.admin), course.id)).toBe(true);
+  });
+
+  it('decides in lib/authz/ only: no loader or manager test repeated elsewhere', () => {
+    const files = execFileSync('git', ['ls-files', 'lib', 'app'], { encoding: 'utf8' }).split('\n').filter((f) => /\.tsx?$/.test(f) && !f.startsWith('lib/authz/'));
+    const repeats = files.filter((f) => {
+      const text = fs.readFileSync(f, 'utf8');
+      // The manager test written out by hand, or an access module of its own beside lib/authz/.
+      return /hasRole\(actor, '(instructor|lead)'\)/.test(text) || /roles\.includes\('(lead|instructor)'\)/.test(text) || /\/access\.ts$/.test(f);
+    });
+    expect(repeats).toEqual([]);
   });
 
   it('authorize throws 401 without a session and 403 when not allowed', async () => {

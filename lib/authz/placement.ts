@@ -1,30 +1,14 @@
 /**
- * Loading a submission or practical for a request, with the access decision taken from the
- * database row (never from ids the client sent).
+ * Where a student takes a practical: the cohort through which they may write a submission to it,
+ * read from their memberships and the practical's cohorts (never from ids the client sent).
  */
+import 'server-only';
 import { QueryTypes } from 'sequelize';
-import { authenticate, permit, type Actor } from '@/lib/authz';
 import { sequelize } from '@/lib/db';
-import { HttpError } from '@/lib/http';
 import { models } from '@/models';
-import type { Submission } from '@/models/submission';
 import type { Practical } from '@/models/practical';
 import type { PracticalCohort } from '@/models/practical-cohort';
-
-export async function scopeOf(submission: Submission) {
-  const practical = await models().Practical.findByPk(submission.practicalId);
-  if (!practical) throw new HttpError(404, 'Not found.');
-  return { practical, scope: { courseId: practical.courseId, cohortId: submission.cohortId, studentId: submission.studentId, draft: submission.status === 'draft' } };
-}
-
-export async function loadSubmissionFor(request: Request, id: number, kind: 'submission-read' | 'submission-write') {
-  const actor = await authenticate(request);
-  const submission = await models().Submission.findByPk(id);
-  if (!submission) throw new HttpError(404, 'No such submission.');
-  const { practical, scope } = await scopeOf(submission);
-  permit(actor, { kind, ...scope });
-  return { actor, submission, practical };
-}
+import type { Actor } from './decision';
 
 /** The cohort through which a student takes a practical: their student membership in its course, if the practical is set for that cohort. */
 export async function studentPlacement(actor: Actor, practical: Practical): Promise<PracticalCohort | null> {
@@ -56,10 +40,4 @@ export async function autosaveTarget(actor: Actor, practicalId: number): Promise
   // A cohort of another course the student belongs to does not count.
   const inCourse = row.cohortId !== null && actor.memberships.some((m) => m.courseId === courseId && m.role === 'student' && m.cohortId === Number(row.cohortId));
   return { practical: { id: Number(row.id), courseId, species }, cohortId: inCourse ? Number(row.cohortId) : null };
-}
-
-export function isOpen(pc: PracticalCohort, practical: Practical, now = new Date()): boolean {
-  if (practical.archivedAt) return false;
-  if (pc.opensAt && pc.opensAt > now) return false;
-  return true;
 }
