@@ -1,24 +1,24 @@
 'use client';
 import { useMemo, useState } from 'react';
 import { useRouter } from 'next/navigation';
-import useSWR from 'swr';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import type { ColumnDef } from '@tanstack/react-table';
 import { cohortCreateSchema, staffAddSchema, type CohortCreateInput, type StaffAddInput } from '@/lib/schemas/instructor';
 import { DataTable } from './data-table';
-import { fetcher, send } from './api';
+import { api, useApi } from '@/lib/api-client';
+import type { CoursePeople } from '@/lib/instructor/courses';
 import { formatDate, type CourseSummary } from './courses-overview';
 import { RosterImport } from './roster-import';
 import { cohortName } from '@/lib/display';
 import { ROLE_NAMES } from '@/lib/homes';
 
-export type Person = { membershipId: number; userId: number; name: string; email: string; studentNumber: string | null; role: string; cohortId: number | null; invited: boolean };
-export type People = { people: Person[]; duties: { id: number; cohortId: number; taId: number; studentId: number | null }[] };
+type People = CoursePeople;
+type Person = People['people'][number];
 
 export function CourseWorkspace({ course }: { course: CourseSummary }) {
   const router = useRouter();
-  const people = useSWR<People>(`/api/courses/${course.id}/roster`, fetcher);
+  const people = useApi<People>(`/api/courses/${course.id}/roster`);
   const refresh = () => {
     router.refresh();
     void people.mutate();
@@ -47,8 +47,8 @@ function CourseSettings({ course, onChange }: { course: CourseSummary; onChange:
   const [title, setTitle] = useState(course.title);
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   const save = async (body: object, done: string) => {
-    const r = await send('PATCH', `/api/courses/${course.id}`, body);
-    setMsg(r.ok ? { ok: true, text: done } : { ok: false, text: r.data.error ?? 'Not saved.' });
+    const r = await api.patch(`/api/courses/${course.id}`, body);
+    setMsg(r.ok ? { ok: true, text: done } : { ok: false, text: r.error.message });
     if (r.ok) onChange();
   };
   return (
@@ -76,10 +76,10 @@ function Cohorts({ course, onChange }: { course: CourseSummary; onChange: () => 
   const [editing, setEditing] = useState<CohortRow | null>(null);
   const { register, handleSubmit, formState, reset, setError } = useForm<CohortCreateInput>({ resolver: zodResolver(cohortCreateSchema) });
   async function onCreate(values: CohortCreateInput) {
-    const r = await send('POST', `/api/courses/${course.id}/cohorts`, values);
+    const r = await api.post(`/api/courses/${course.id}/cohorts`, values);
     if (!r.ok) {
-      for (const [k, v] of Object.entries(r.data.fields ?? {})) setError(k as keyof CohortCreateInput, { message: v[0] });
-      setMsg({ ok: false, text: r.data.error ?? 'Not saved.' });
+      for (const [k, v] of Object.entries(r.error.fields)) setError(k as keyof CohortCreateInput, { message: v[0] });
+      setMsg({ ok: false, text: r.error.message });
       return;
     }
     setMsg({ ok: true, text: `Cohort "${values.name}" created.` });
@@ -87,8 +87,8 @@ function Cohorts({ course, onChange }: { course: CourseSummary; onChange: () => 
     onChange();
   }
   const patch = async (c: CohortRow, body: object, done: string) => {
-    const r = await send('PATCH', `/api/courses/${course.id}/cohorts/${c.id}`, body);
-    setMsg(r.ok ? { ok: true, text: done } : { ok: false, text: r.data.error ?? 'Not saved.' });
+    const r = await api.patch(`/api/courses/${course.id}/cohorts/${c.id}`, body);
+    setMsg(r.ok ? { ok: true, text: done } : { ok: false, text: r.error.message });
     if (r.ok) {
       setEditing(null);
       onChange();
@@ -159,8 +159,8 @@ function PeopleList({ course, people, onChange }: { course: CourseSummary; peopl
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   const { register, handleSubmit, formState, reset } = useForm<StaffAddInput>({ resolver: zodResolver(staffAddSchema), defaultValues: { role: 'ta' } });
   async function onAdd(values: StaffAddInput) {
-    const r = await send<{ invited: boolean; created: boolean }>('POST', `/api/courses/${course.id}/staff`, values);
-    if (!r.ok) return setMsg({ ok: false, text: r.data.error ?? 'Not added.' });
+    const r = await api.post<{ invited: boolean; created: boolean }>(`/api/courses/${course.id}/staff`, values);
+    if (!r.ok) return setMsg({ ok: false, text: r.error.message });
     setMsg({ ok: true, text: r.data.created ? `Added ${values.email} as ${values.role}${r.data.invited ? '; an invitation e-mail is on its way' : ''}.` : `${values.email} already holds that role.` });
     reset({ email: '', name: '', role: values.role });
     onChange();
@@ -216,16 +216,16 @@ function TaDuties({ course, people, onChange }: { course: CourseSummary; people?
   const students = useMemo(() => people?.people.filter((p) => p.role === 'student' && String(p.cohortId) === cohortId) ?? [], [people, cohortId]);
   const nameOf = (id: number | null) => people?.people.find((p) => p.userId === id)?.name ?? `#${id}`;
   async function assign() {
-    const r = await send('POST', `/api/courses/${course.id}/ta-assignments`, { taId: Number(taId), cohortId: Number(cohortId), studentIds });
-    setMsg(r.ok ? { ok: true, text: 'TA assigned.' } : { ok: false, text: r.data.error ?? 'Not assigned.' });
+    const r = await api.post(`/api/courses/${course.id}/ta-assignments`, { taId: Number(taId), cohortId: Number(cohortId), studentIds });
+    setMsg(r.ok ? { ok: true, text: 'TA assigned.' } : { ok: false, text: r.error.message });
     if (r.ok) {
       setStudentIds([]);
       onChange();
     }
   }
   async function remove(id: number) {
-    const r = await send('DELETE', `/api/courses/${course.id}/ta-assignments/${id}`);
-    setMsg(r.ok ? { ok: true, text: 'Assignment removed.' } : { ok: false, text: r.data.error ?? 'Not removed.' });
+    const r = await api.delete(`/api/courses/${course.id}/ta-assignments/${id}`);
+    setMsg(r.ok ? { ok: true, text: 'Assignment removed.' } : { ok: false, text: r.error.message });
     if (r.ok) onChange();
   }
   return (
@@ -278,11 +278,11 @@ function Practicals({ course }: { course: CourseSummary }) {
   const [species, setSpecies] = useState('H35Cl');
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   async function create() {
-    const r = await send<{ practical: { id: number } }>('POST', `/api/courses/${course.id}/practicals`, {
+    const r = await api.post<{ practical: { id: number } }>(`/api/courses/${course.id}/practicals`, {
       title, species: species.split(/[,\s]+/).filter(Boolean), instructions: '', hazardNotes: '', mode: 'practice', maxAttempts: 3,
       lateRule: 'penalty', latePenaltyPerDay: 10, latePenaltyCap: 50, rubric: [], deadlines: [],
     });
-    if (!r.ok) return setMsg({ ok: false, text: r.data.error ?? 'Not created.' });
+    if (!r.ok) return setMsg({ ok: false, text: r.error.message });
     window.location.assign(`/courses/${course.id}/practicals/${r.data.practical.id}`);
   }
   const name = (id: number) => course.cohorts.find((c) => c.id === id)?.name ?? '?';

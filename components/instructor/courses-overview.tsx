@@ -5,7 +5,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import type { ColumnDef } from '@tanstack/react-table';
 import { courseCreateSchema, type CourseCreateInput } from '@/lib/schemas/instructor';
 import { DataTable } from './data-table';
-import { send } from './api';
+import { api } from '@/lib/api-client';
 
 export type CourseSummary = {
   id: number; code: string; title: string; archived: boolean;
@@ -62,10 +62,10 @@ function NewCourse() {
   const [message, setMessage] = useState<string | null>(null);
   const { register, handleSubmit, formState, setError } = useForm<CourseCreateInput>({ resolver: zodResolver(courseCreateSchema) });
   async function onSubmit(values: CourseCreateInput) {
-    const r = await send<{ course: { id: number } }>('POST', '/api/courses', values);
+    const r = await api.post<{ course: { id: number } }>('/api/courses', values);
     if (!r.ok) {
-      for (const [k, v] of Object.entries(r.data.fields ?? {})) setError(k as keyof CourseCreateInput, { message: v[0] });
-      setMessage(r.data.error ?? 'Not saved.');
+      for (const [k, v] of Object.entries(r.error.fields)) setError(k as keyof CourseCreateInput, { message: v[0] });
+      setMessage(r.error.message);
       return;
     }
     window.location.assign(`/courses/${r.data.course.id}`);

@@ -2,7 +2,7 @@
 import { useState } from 'react';
 import type { RosterPreview, RosterRow } from '@/lib/instructor/roster';
 import { TableScroll } from '@/components/ui/table-scroll';
-import { send } from './api';
+import { api } from '@/lib/api-client';
 
 const STATUS: Record<RosterRow['status'], { word: string; symbol: string; cls: string }> = {
   new: { word: 'New', symbol: '+', cls: 'text-verdict-within bg-verdict-within-bg' },
@@ -29,11 +29,11 @@ export function RosterImport({ courseId, cohorts, onImported }: { courseId: numb
     if (!file) return;
     setBusy(true);
     setMsg(null);
-    const r = await send<RosterPreview & { created?: number; enrolled?: number; invited?: number }>('POST', `/api/courses/${courseId}/roster?mode=${mode}${target ? `&cohortId=${target}` : ''}`, undefined, { body: file, type: 'text/csv' });
+    const r = await api.post<RosterPreview & { created?: number; enrolled?: number; invited?: number }>(`/api/courses/${courseId}/roster?mode=${mode}${target ? `&cohortId=${target}` : ''}`, { raw: file, type: 'text/csv' });
     setBusy(false);
     if (!r.ok) {
       setPreview(null);
-      return setMsg({ ok: false, text: r.data.error ?? 'The file was refused.' });
+      return setMsg({ ok: false, text: r.error.message });
     }
     setPreview(r.data);
     if (mode === 'import') {

@@ -4,7 +4,7 @@ import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import type { z } from 'zod';
 import { welcomeSchema } from '@/lib/schemas/instructor';
-import { send } from './api';
+import { api } from '@/lib/api-client';
 
 type Input = z.input<typeof welcomeSchema>;
 
@@ -14,8 +14,8 @@ export function WelcomeForm({ token, email }: { token: string; email: string }) 
   const { register, handleSubmit, formState } = useForm<Input>({ resolver: zodResolver(welcomeSchema), defaultValues: { token } });
   async function onSubmit(values: Input) {
     setError(null);
-    const r = await send('POST', '/api/invitations/accept', values);
-    if (!r.ok) return setError(r.data.error ?? 'The password was not set.');
+    const r = await api.post('/api/invitations/accept', values);
+    if (!r.ok) return setError(r.error.message);
     setDone(true);
   }
   if (done) {

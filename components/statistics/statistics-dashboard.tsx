@@ -1,26 +1,19 @@
 'use client';
 /**
- * The statistics of one practical, fetched from /api/statistics/… with SWR. Every figure is
+ * The statistics of one practical, fetched from /api/statistics/… through useApi (SWR). Every figure is
  * computed in the database by the API; this component only lays it out.
  */
 import Link from 'next/link';
 import { useState } from 'react';
-import useSWR from 'swr';
 import type { Comparison } from '@/lib/statistics/compare';
 import type { PracticalReport } from '@/lib/statistics/report';
 import type { QuantityStat } from '@/lib/statistics/queries';
+import { useApi } from '@/lib/api-client';
 import { formatPercent, quantityLabel } from '@/lib/statistics/scale';
 import { TableScroll } from '@/components/ui/table-scroll';
 import { DEFAULT_MARKER_THRESHOLD } from '@/lib/statistics/definitions';
 import { BoxPlots } from './box-plot';
 import { Histogram } from './histogram';
-
-async function fetcher<T>(url: string): Promise<T> {
-  const res = await fetch(url, { headers: { accept: 'application/json' } });
-  const body = await res.json();
-  if (!res.ok) throw new Error(body?.error ?? `Request failed (${res.status}).`);
-  return body as T;
-}
 
 const BASES = [
   { basis: 'consistency', title: 'Consistency', lead: 'Is each derived number right from the student’s own measurements? (method and arithmetic)' },
@@ -50,13 +43,13 @@ export function StatisticsDashboard({ practicalId, cohortId, canExportMarks, ini
   const q = new URLSearchParams();
   if (cohortId) q.set('cohortId', String(cohortId));
   const base = `/api/statistics/practicals/${practicalId}`;
-  const { data, error, isLoading } = useSWR<PracticalReport>(`${base}?${q}&threshold=${threshold}`, fetcher, {
+  const { data, error, isLoading } = useApi<PracticalReport>(`${base}?${q}&threshold=${threshold}`, {
     keepPreviousData: true,
     fallbackData: threshold === DEFAULT_MARKER_THRESHOLD ? initial : undefined,
     revalidateOnMount: !initial,
     revalidateOnFocus: false,
   });
-  const compare = useSWR<Comparison>(`${base}/compare?by=${by}`, fetcher);
+  const compare = useApi<Comparison>(`${base}/compare?by=${by}`);
 
   if (error) return <p role="alert" className="card error-text">{error.message}</p>;
   if (isLoading || !data) return <p className="card text-ink-soft" aria-live="polite">Loading statistics…</p>;

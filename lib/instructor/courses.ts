@@ -11,6 +11,7 @@ import { HttpError } from '@/lib/http-error';
 import { audit } from '@/lib/audit';
 import type { cohortCreateSchema, cohortUpdateSchema, staffAddSchema, taAssignmentSchema } from '@/lib/schemas/instructor';
 import { inviteUser } from './invitations';
+import type { Serialized } from '@/lib/serialized';
 
 export async function courseOr404(courseId: number) {
   const course = await models().Course.findByPk(courseId);
@@ -74,6 +75,9 @@ export async function updateCohort(cohortId: number, courseId: number, data: z.o
     return cohort;
   });
 }
+
+/** GET /api/courses/[id]/roster's answer. */
+export type CoursePeople = Serialized<Awaited<ReturnType<typeof coursePeople>>>;
 
 /** Everyone in the course with their roles, cohort and TA duties. */
 export async function coursePeople(courseId: number) {
