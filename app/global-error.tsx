@@ -19,6 +19,7 @@ export default function GlobalError({ error, retry }: { error: unknown; retry: (
             {digest && <p className="mt-2 text-sm">Reference: <span className="num">{digest}</span></p>}
             <div className="mt-4 flex flex-wrap gap-2">
               <button type="button" className="btn" onClick={() => retry()}>Try again</button>
+              {/* eslint-disable-next-line @next/next/no-html-link-for-pages -- the app failed: a full page load starts it afresh */}
               <a className="btn-quiet" href="/">Your home page</a>
             </div>
           </div>

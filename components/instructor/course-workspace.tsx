@@ -274,6 +274,7 @@ function TaDuties({ course, people, onChange }: { course: CourseSummary; people?
 }
 
 function Practicals({ course }: { course: CourseSummary }) {
+  const router = useRouter();
   const [title, setTitle] = useState('');
   const [species, setSpecies] = useState('H35Cl');
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
@@ -283,7 +284,7 @@ function Practicals({ course }: { course: CourseSummary }) {
       lateRule: 'penalty', latePenaltyPerDay: 10, latePenaltyCap: 50, rubric: [], deadlines: [],
     });
     if (!r.ok) return setMsg({ ok: false, text: r.error.message });
-    window.location.assign(`/courses/${course.id}/practicals/${r.data.practical.id}`);
+    router.push(`/courses/${course.id}/practicals/${r.data.practical.id}`);
   }
   const name = (id: number) => course.cohorts.find((c) => c.id === id)?.name ?? '?';
   return (

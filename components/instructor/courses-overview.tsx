@@ -1,4 +1,5 @@
 'use client';
+import { useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
@@ -59,6 +60,7 @@ export function CoursesOverview({ courses }: { courses: CourseSummary[] }) {
 }
 
 function NewCourse() {
+  const router = useRouter();
   const [message, setMessage] = useState<string | null>(null);
   const { register, handleSubmit, formState, setError } = useForm<CourseCreateInput>({ resolver: zodResolver(courseCreateSchema) });
   async function onSubmit(values: CourseCreateInput) {
@@ -68,7 +70,7 @@ function NewCourse() {
       setMessage(r.error.message);
       return;
     }
-    window.location.assign(`/courses/${r.data.course.id}`);
+    router.push(`/courses/${r.data.course.id}`);
   }
   return (
     <section aria-labelledby="new-course" className="card">

@@ -105,8 +105,9 @@ function Roster({ context, autoload }: { context: PlatformContextView; autoload:
     router.refresh();
   };
   useEffect(() => {
+    // eslint-disable-next-line react-hooks/set-state-in-effect -- the roster is fetched once when the page opens for a review (?review)
     if (autoload && context.roster) void load();
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- once on mount, as above; later changes of `load` must not fetch again
   }, [autoload]);
   const changes = preview ? preview.counts.new + preview.counts.changed + preview.counts.leaving : 0;
   return (

@@ -6,7 +6,8 @@
  * e-mail). The view is read through SWR from /api/marking/[id], starting from the page's copy.
  */
 import { useState } from 'react';
-import { useForm, type UseFormReturn } from 'react-hook-form';
+import Link from 'next/link';
+import { useForm, useWatch, type UseFormReturn } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { saveMarksSchema, type SaveMarksInput } from '@/lib/schemas/marking';
 import type { MarkingView } from '@/lib/marking/view';
@@ -44,7 +45,7 @@ export function MarkingForm({ initial, next = null }: { initial: MarkingView; ne
   const [status, setStatus] = useState('');
   const [problem, setProblem] = useState('');
   const form = useForm<SaveMarksInput>({ resolver: zodResolver(saveMarksSchema) as never, defaultValues: formValues(initial) });
-  const items = form.watch('items');
+  const items = useWatch({ control: form.control, name: 'items' });
   const awardedSum = items.reduce((s, i) => s + (Number.isFinite(Number(i.awarded)) ? Number(i.awarded) : 0), 0);
   const max = view.marks.reduce((s, m) => s + m.maxMarks, 0);
   const total = round2(awardedSum * (1 - view.submission.latePenalty / 100));
@@ -232,8 +233,8 @@ function MarkRow({ mark: m, i, form, editable, changed }: { mark: MarkingView['m
 function AfterSave({ next }: { next: { id: number; student: string } | null }) {
   return (
     <p className="mt-2">
-      {next ? <a className="btn" href={`/marking/${next.id}`} data-testid="next-after-save">Next submission: {next.student} →</a> : <span className="text-ink-soft">Nothing else is waiting to be marked in your queue.</span>}{' '}
-      <a className="btn-quiet" href="/marking">Back to the queue</a>
+      {next ? <Link className="btn" href={`/marking/${next.id}`} data-testid="next-after-save">Next submission: {next.student} →</Link> : <span className="text-ink-soft">Nothing else is waiting to be marked in your queue.</span>}{' '}
+      <Link className="btn-quiet" href="/marking">Back to the queue</Link>
     </p>
   );
 }

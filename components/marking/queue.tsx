@@ -55,6 +55,7 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
   }), []);
 
   const columns = useQueueColumns(selected, toggle);
+  // eslint-disable-next-line react-hooks/incompatible-library -- TanStack Table keeps its own state; this component is left unmemoised by the compiler
   const table = useReactTable({ data: rows, columns, getCoreRowModel: getCoreRowModel(), getRowId: (r) => String(r.id) });
 
   const accept = useCallback(async (row: QueueRow) => {

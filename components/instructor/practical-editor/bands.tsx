@@ -3,7 +3,7 @@
  * Tolerance bands per quantity, course default or per cohort. With submissions already checked,
  * the server answers 409 with their count and the instructor chooses whether to re-check them.
  */
-import { useEffect, useState } from 'react';
+import { useState } from 'react';
 import { api } from '@/lib/api-client';
 import type { BandChange } from '@/lib/instructor/practicals';
 import { cohortLabel, Status, type Detail, type Msg } from './shared';
@@ -13,9 +13,8 @@ export function Bands({ detail, onChange }: { detail: Detail; onChange: () => vo
   const [f, setF] = useState({ quantityId: '', scope: 'course', basis: 'accuracy', kind: 'absolute', inner: '', outer: '', unit: '' });
   const [pending, setPending] = useState<{ body: Record<string, unknown>; count: number; method: 'PUT' | 'DELETE' } | null>(null);
   const quantity = detail.quantities.find((q) => String(q.id) === f.quantityId);
-  useEffect(() => {
-    if (quantity && f.kind === 'absolute' && !f.unit) setF((x) => ({ ...x, unit: quantity.unit }));
-  }, [quantity, f.kind, f.unit]);
+  // An absolute band is in the quantity's unit unless the instructor types another.
+  const unit = f.unit || (quantity && f.kind === 'absolute' ? quantity.unit : '');
   const scale = f.kind === 'relative' ? 0.01 : 1;
   async function submit(method: 'PUT' | 'DELETE', body: Record<string, unknown>) {
     const url = `/api/practicals/${detail.practical.id}/bands`;
@@ -29,7 +28,7 @@ export function Bands({ detail, onChange }: { detail: Detail; onChange: () => vo
   function save() {
     submit('PUT', {
       quantityDefinitionId: Number(f.quantityId), cohortId: f.scope === 'course' ? null : Number(f.scope), basis: f.basis, kind: f.kind,
-      inner: Number(f.inner) * scale, outer: f.outer === '' ? null : Number(f.outer) * scale, unit: f.kind === 'absolute' ? f.unit : null,
+      inner: Number(f.inner) * scale, outer: f.outer === '' ? null : Number(f.outer) * scale, unit: f.kind === 'absolute' ? unit : null,
     });
   }
   const set = (k: keyof typeof f) => (e: React.ChangeEvent<HTMLInputElement | HTMLSelectElement>) => setF({ ...f, [k]: e.target.value });
@@ -78,7 +77,7 @@ export function Bands({ detail, onChange }: { detail: Detail; onChange: () => vo
         {f.kind === 'absolute' && (
           <div>
             <label htmlFor="b-unit" className="label">Unit</label>
-            <input id="b-unit" className="field" value={f.unit} onChange={set('unit')} />
+            <input id="b-unit" className="field" value={unit} onChange={set('unit')} />
           </div>
         )}
       </div>

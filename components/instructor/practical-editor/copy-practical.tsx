@@ -1,10 +1,12 @@
 'use client';
 /** Copies the practical for a new term: cohort bands move to the cohort chosen, or are dropped. */
 import { useState } from 'react';
+import { useRouter } from 'next/navigation';
 import { api } from '@/lib/api-client';
 import { cohortLabel, fromLocal, Status, type Detail, type Msg } from './shared';
 
 export function CopyPractical({ detail, courseId }: { detail: Detail; courseId: number }) {
+  const router = useRouter();
   const overridden = [...new Set(detail.quantities.flatMap((q) => q.bands.map((b) => b.cohortId)).filter((x): x is number => x !== null))];
   const [title, setTitle] = useState(`${detail.practical.title} (copy)`);
   const [map, setMap] = useState<Record<string, string>>({});
@@ -17,7 +19,7 @@ export function CopyPractical({ detail, courseId }: { detail: Detail; courseId: 
       deadlines: Object.entries(deadlines).filter(([, v]) => v).map(([k, v]) => ({ cohortId: Number(k), deadline: fromLocal(v) })),
     });
     if (!r.ok) return setMsg({ ok: false, text: r.error.message });
-    window.location.assign(`/courses/${courseId}/practicals/${r.data.practical.id}`);
+    router.push(`/courses/${courseId}/practicals/${r.data.practical.id}`);
   }
   const open = detail.cohorts.filter((c) => !c.archived);
   return (

@@ -1,7 +1,7 @@
 'use client';
 /** The practical's definition: title, isotopologues, mode, attempts, late rule, deadlines, instructions, hazards, hand-marked items. */
 import { useEffect, useState } from 'react';
-import { useForm, useFieldArray, type UseFormReturn } from 'react-hook-form';
+import { useForm, useFieldArray, useWatch, type UseFormReturn } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { practicalSchema, type PracticalData, type PracticalInput } from '@/lib/schemas/instructor';
 import { HazardNotes } from '@/components/hazard-notes';
@@ -20,9 +20,9 @@ export function Details({ detail, onSaved }: { detail: Detail; onSaved: () => vo
     resolver: zodResolver(practicalSchema),
     defaultValues: { ...p, deadlines: detail.deadlines },
   });
-  const { register, handleSubmit, formState, watch, setValue } = form;
-  const instructions = watch('instructions') ?? '';
-  const hazard = watch('hazardNotes') ?? '';
+  const { register, handleSubmit, formState, setValue, control } = form;
+  const instructions = useWatch({ control, name: 'instructions' }) ?? '';
+  const hazard = useWatch({ control, name: 'hazardNotes' }) ?? '';
   useEffect(() => {
     const t = setTimeout(async () => {
       const r = await api.post<InstructionsPreview>('/api/practicals/markdown', { markdown: instructions });
@@ -86,9 +86,9 @@ type DetailsForm = UseFormReturn<PracticalInput, unknown, PracticalData>;
 
 /** Mode, attempts and what happens to a late submission. */
 function RuleFields({ form }: { form: DetailsForm }) {
-  const { register, formState, watch } = form;
+  const { register, formState, control } = form;
   const err = formState.errors;
-  const penalty = watch('lateRule') === 'penalty';
+  const penalty = useWatch({ control, name: 'lateRule' }) === 'penalty';
   return (
     <div className="grid gap-3 md:grid-cols-5">
       <Field id="p-mode" label="Mode">

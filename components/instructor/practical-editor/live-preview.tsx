@@ -12,8 +12,9 @@ export function LivePreview({ detail }: { detail: Detail }) {
   const [result, setResult] = useState<VerdictPreview | null>(null);
   const [msg, setMsg] = useState<string | null>(null);
   const quantity = detail.quantities.find((q) => String(q.id) === f.quantityId);
+  const ready = quantity !== undefined && f.value !== '' && !Number.isNaN(Number(f.value));
   useEffect(() => {
-    if (!quantity || f.value === '' || Number.isNaN(Number(f.value))) return setResult(null);
+    if (!quantity || !ready) return;
     const t = setTimeout(async () => {
       const r = await api.post<VerdictPreview>(`/api/practicals/${detail.practical.id}/preview`, {
         quantityDefinitionId: quantity.id, cohortId: f.cohort === 'course' ? null : Number(f.cohort), value: Number(f.value), unit: f.unit || quantity.unit,
@@ -28,7 +29,9 @@ export function LivePreview({ detail }: { detail: Detail }) {
       }
     }, 300);
     return () => clearTimeout(t);
-  }, [f, quantity, detail]);
+  }, [f, quantity, ready, detail]);
+  // Without a value to try there is no verdict to show (the last one would mislead).
+  const shown = ready ? result : null;
   const set = (k: keyof typeof f) => (e: React.ChangeEvent<HTMLInputElement | HTMLSelectElement>) => setF({ ...f, [k]: e.target.value });
   return (
     <section aria-labelledby="live-preview" className="card">
@@ -64,13 +67,13 @@ export function LivePreview({ detail }: { detail: Detail }) {
       </div>
       <div aria-live="polite" className="mt-3">
         {msg && <p className="error-text">{msg}</p>}
-        {result && (
+        {shown && (
           <div>
-            {result.reference && <p className="text-sm">Reference: <span className="num">{+result.reference.value.toPrecision(7)}</span> {result.reference.unit} ({result.reference.kind === 'department' ? 'department value' : 'literature'}: {publishedSource(result.reference.source)})</p>}
+            {shown.reference && <p className="text-sm">Reference: <span className="num">{+shown.reference.value.toPrecision(7)}</span> {shown.reference.unit} ({shown.reference.kind === 'department' ? 'department value' : 'literature'}: {publishedSource(shown.reference.source)})</p>}
             <table className="data-table stack-table mt-2" aria-label="Preview verdicts">
               <thead><tr><th>Question</th><th>Verdict</th><th className="num">Marks</th><th>Band</th><th className="num">Deviation</th></tr></thead>
               <tbody>
-                {result.results.map((r) => (
+                {shown.results.map((r) => (
                   <tr key={r.basis}>
                     <td data-label=""><strong className="sm:font-normal">{r.basis}</strong></td>
                     <td data-label="Verdict"><div><VerdictLabel verdict={r.verdict} />{r.reason && <span className="hint block">{r.reason}</span>}</div></td>

@@ -1,7 +1,7 @@
 'use client';
 /** The quantities students report, with their references and bands, and the form that adds one. */
 import { useEffect, useState } from 'react';
-import { useForm } from 'react-hook-form';
+import { useForm, useWatch } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { QUANTITIES, QUANTITY_KEYS, type QuantityKey } from '@/lib/grading/quantities';
 import { quantitySchema, type QuantityInput } from '@/lib/schemas/instructor';
@@ -11,12 +11,12 @@ import { cohortLabel, Status, type Detail, type Msg, type Quantity } from './sha
 
 export function Quantities({ detail, onChange }: { detail: Detail; onChange: () => void }) {
   const [msg, setMsg] = useState<Msg>(null);
-  const { register, handleSubmit, formState, watch, setValue, reset } = useForm<QuantityInput>({
+  const { register, handleSubmit, formState, setValue, reset, control } = useForm<QuantityInput>({
     resolver: zodResolver(quantitySchema),
     defaultValues: { key: 'bandCentre', species: detail.practical.species[0], unit: 'cm⁻¹', marks: 1, uncertaintyRequired: false, referenceKind: 'literature', referenceValue: null, referenceNote: '' },
   });
-  const key = watch('key') as QuantityKey;
-  const kind = watch('referenceKind');
+  const key = useWatch({ control, name: 'key' }) as QuantityKey;
+  const kind = useWatch({ control, name: 'referenceKind' });
   useEffect(() => setValue('unit', QUANTITIES[key]?.displayUnit ?? ''), [key, setValue]);
   async function onAdd(values: QuantityInput) {
     const r = await api.post(`/api/practicals/${detail.practical.id}/quantities`, values);

@@ -33,6 +33,7 @@ export function useLineLists(form: UseFormReturn<Draft>, species: { name: string
   useEffect(() => {
     for (const s of species) {
       const t = initialDraft.species[s.name]?.lineText;
+      // eslint-disable-next-line react-hooks/set-state-in-effect -- once on mount; the issues shown come from reading the saved text
       if (t) readLines(s.name, t);
     }
     // eslint-disable-next-line react-hooks/exhaustive-deps -- once on mount: a re-read on a later render would overwrite the student's edits
