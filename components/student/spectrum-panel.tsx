@@ -154,28 +154,35 @@ export function SpectrumPanel(props: Props) {
         </section>
       )}
 
-      <div className="rounded border border-rule bg-paper-sunk p-3 text-sm">
-        <p>Oscillab can read the lines of your spectrum for you: it finds the lines, assigns branch and J, and puts them in your line lists, where you check them and change what you disagree with.</p>
-        <button type="button" className="btn-quiet mt-2" onClick={() => void take()} disabled={!anyUploaded || taking}>
-          {taking ? 'Reading your spectrum…' : 'Take the lines from my spectrum'}
-        </button>
-        {takeError && <p className="error-text" role="alert">{takeError}</p>}
-        {taken && (
-          <div className="mt-3 space-y-2" aria-live="polite" data-testid="taken-lines">
-            <ul className="list-disc pl-5">
-              {Object.entries(taken.species).map(([sp, t]) => (
-                <li key={sp}>{t.display}: {t.count ? `${t.count} lines of the fundamental (1←0), ${range(t.lines)}` : 'no lines found in your spectrum'}</li>
-              ))}
-            </ul>
-            {taken.problems.map((p, i) => <p key={i} className="text-ink-soft">{p}</p>)}
-            <p className="text-ink-soft">Using them replaces what is in those line lists now.</p>
-            <div className="flex gap-2">
-              <button type="button" className="btn" onClick={use} disabled={!Object.values(taken.species).some((t) => t.count > 0)}>Use these lines</button>
-              <button type="button" className="btn-quiet" onClick={() => setTaken(null)}>Discard</button>
-            </div>
+      <TakeLines anyUploaded={anyUploaded} taking={taking} takeError={takeError} taken={taken} onTake={() => void take()} onUse={use} onDiscard={() => setTaken(null)} />
+    </div>
+  );
+}
+
+/** "Take the lines from my spectrum": what was found per isotopologue, to use or discard. */
+function TakeLines({ anyUploaded, taking, takeError, taken, onTake, onUse, onDiscard }: { anyUploaded: boolean; taking: boolean; takeError: string | null; taken: Taken | null; onTake: () => void; onUse: () => void; onDiscard: () => void }) {
+  return (
+    <div className="rounded border border-rule bg-paper-sunk p-3 text-sm">
+      <p>Oscillab can read the lines of your spectrum for you: it finds the lines, assigns branch and J, and puts them in your line lists, where you check them and change what you disagree with.</p>
+      <button type="button" className="btn-quiet mt-2" onClick={onTake} disabled={!anyUploaded || taking}>
+        {taking ? 'Reading your spectrum…' : 'Take the lines from my spectrum'}
+      </button>
+      {takeError && <p className="error-text" role="alert">{takeError}</p>}
+      {taken && (
+        <div className="mt-3 space-y-2" aria-live="polite" data-testid="taken-lines">
+          <ul className="list-disc pl-5">
+            {Object.entries(taken.species).map(([sp, t]) => (
+              <li key={sp}>{t.display}: {t.count ? `${t.count} lines of the fundamental (1←0), ${range(t.lines)}` : 'no lines found in your spectrum'}</li>
+            ))}
+          </ul>
+          {taken.problems.map((p, i) => <p key={i} className="text-ink-soft">{p}</p>)}
+          <p className="text-ink-soft">Using them replaces what is in those line lists now.</p>
+          <div className="flex gap-2">
+            <button type="button" className="btn" onClick={onUse} disabled={!Object.values(taken.species).some((t) => t.count > 0)}>Use these lines</button>
+            <button type="button" className="btn-quiet" onClick={onDiscard}>Discard</button>
           </div>
-        )}
-      </div>
+        </div>
+      )}
     </div>
   );
 }
