@@ -12,6 +12,7 @@ import { formatDate, type CourseSummary } from './courses-overview';
 import { RosterImport } from './roster-import';
 import { cohortName } from '@/lib/display';
 import { ROLE_NAMES } from '@/lib/homes';
+import { Field } from '@/components/ui/field';
 
 type People = CoursePeople;
 type Person = People['people'][number];
@@ -55,10 +56,9 @@ function CourseSettings({ course, onChange }: { course: CourseSummary; onChange:
     <section aria-labelledby="course-settings" className="card">
       <h2 id="course-settings" className="mb-3">Course</h2>
       <div className="flex flex-wrap items-end gap-3">
-        <div className="min-w-0 grow basis-64">
-          <label htmlFor="course-title-edit" className="label">Title</label>
-          <input id="course-title-edit" className="field" value={title} onChange={(e) => setTitle(e.target.value)} />
-        </div>
+        <Field id="course-title-edit" label="Title" className="min-w-0 grow basis-64">
+          <input className="field" value={title} onChange={(e) => setTitle(e.target.value)} />
+        </Field>
         <button type="button" className="btn" onClick={() => save({ title }, 'Course renamed.')}>Rename</button>
         <button type="button" className="btn-quiet" onClick={() => save({ archived: !course.archived }, course.archived ? 'Course restored.' : 'Course archived.')}>
           {course.archived ? 'Restore course' : 'Archive course'}
@@ -118,20 +118,15 @@ function Cohorts({ course, onChange }: { course: CourseSummary; onChange: () => 
       {editing && <CohortEdit cohort={editing} onSave={(body) => patch(editing, body, 'Cohort saved.')} onCancel={() => setEditing(null)} />}
       <h3 className="mb-2 mt-4">New cohort</h3>
       <form onSubmit={handleSubmit(onCreate)} noValidate className="grid gap-3 md:grid-cols-[1fr_1fr_1fr_auto] md:items-end">
-        <div>
-          <label htmlFor="cohort-name" className="label">Name</label>
-          <input id="cohort-name" className="field" {...register('name')} />
-          {formState.errors.name && <p className="error-text">{formState.errors.name.message}</p>}
-        </div>
-        <div>
-          <label htmlFor="cohort-term" className="label">Term</label>
-          <input id="cohort-term" className="field" placeholder="2027 Spring" {...register('term')} />
-          {formState.errors.term && <p className="error-text">{formState.errors.term.message}</p>}
-        </div>
-        <div>
-          <label htmlFor="cohort-instrument" className="label">Instrument</label>
-          <input id="cohort-instrument" className="field" placeholder="FTIR bench 2 (1 cm⁻¹)" {...register('instrument')} />
-        </div>
+        <Field id="cohort-name" label="Name" error={formState.errors.name?.message}>
+          <input className="field" {...register('name')} />
+        </Field>
+        <Field id="cohort-term" label="Term" error={formState.errors.term?.message}>
+          <input className="field" placeholder="2027 Spring" {...register('term')} />
+        </Field>
+        <Field id="cohort-instrument" label="Instrument">
+          <input className="field" placeholder="FTIR bench 2 (1 cm⁻¹)" {...register('instrument')} />
+        </Field>
         <button type="submit" className="btn" disabled={formState.isSubmitting}>Create cohort</button>
       </form>
       <Status message={msg} />
@@ -183,23 +178,19 @@ function PeopleList({ course, people, onChange }: { course: CourseSummary; peopl
       {people ? <DataTable data={people.people} columns={columns} label="People" filterPlaceholder="Filter by name, e-mail, cohort, role…" /> : <p className="text-ink-soft">Loading…</p>}
       <h3 className="mb-2 mt-4">Add staff</h3>
       <form onSubmit={handleSubmit(onAdd)} noValidate className="grid gap-3 md:grid-cols-[1fr_1fr_minmax(13rem,auto)_auto] md:items-end">
-        <div>
-          <label htmlFor="staff-email" className="label">E-mail</label>
-          <input id="staff-email" type="email" className="field" {...register('email')} />
-          {formState.errors.email && <p className="error-text">{formState.errors.email.message}</p>}
-        </div>
-        <div>
-          <label htmlFor="staff-name" className="label">Name (for a new account)</label>
-          <input id="staff-name" className="field" {...register('name')} />
-        </div>
-        <div>
-          <label htmlFor="staff-role" className="label">Role</label>
-          <select id="staff-role" className="field" {...register('role')}>
+        <Field id="staff-email" label="E-mail" error={formState.errors.email?.message}>
+          <input type="email" className="field" {...register('email')} />
+        </Field>
+        <Field id="staff-name" label="Name (for a new account)">
+          <input className="field" {...register('name')} />
+        </Field>
+        <Field id="staff-role" label="Role">
+          <select className="field" {...register('role')}>
             <option value="ta">Teaching assistant</option>
             <option value="instructor">Instructor</option>
             <option value="lead">Course lead</option>
           </select>
-        </div>
+        </Field>
         <button type="submit" className="btn" disabled={formState.isSubmitting}>Add</button>
       </form>
       <Status message={msg} />
@@ -246,26 +237,23 @@ function TaDuties({ course, people, onChange }: { course: CourseSummary; people?
         {people && people.duties.length === 0 && <li className="text-ink-soft">No TA has been assigned yet.</li>}
       </ul>
       <div className="grid gap-3 md:grid-cols-3">
-        <div>
-          <label htmlFor="duty-ta" className="label">TA</label>
-          <select id="duty-ta" className="field" value={taId} onChange={(e) => setTaId(e.target.value)}>
+        <Field id="duty-ta" label="TA">
+          <select className="field" value={taId} onChange={(e) => setTaId(e.target.value)}>
             <option value="">Choose…</option>
             {tas.map((t) => <option key={t.userId} value={t.userId}>{t.name}</option>)}
           </select>
-        </div>
-        <div>
-          <label htmlFor="duty-cohort" className="label">Cohort</label>
-          <select id="duty-cohort" className="field" value={cohortId} onChange={(e) => { setCohortId(e.target.value); setStudentIds([]); }}>
+        </Field>
+        <Field id="duty-cohort" label="Cohort">
+          <select className="field" value={cohortId} onChange={(e) => { setCohortId(e.target.value); setStudentIds([]); }}>
             <option value="">Choose…</option>
             {course.cohorts.filter((c) => !c.archived).map((c) => <option key={c.id} value={c.id}>{c.name} ({c.term})</option>)}
           </select>
-        </div>
-        <div>
-          <label htmlFor="duty-students" className="label">Students (none chosen: the whole cohort)</label>
-          <select id="duty-students" multiple className="field h-24" value={studentIds.map(String)} onChange={(e) => setStudentIds(Array.from(e.target.selectedOptions).map((o) => Number(o.value)))}>
+        </Field>
+        <Field id="duty-students" label="Students (none chosen: the whole cohort)">
+          <select multiple className="field h-24" value={studentIds.map(String)} onChange={(e) => setStudentIds(Array.from(e.target.selectedOptions).map((o) => Number(o.value)))}>
             {students.map((s) => <option key={s.userId} value={s.userId}>{s.name}</option>)}
           </select>
-        </div>
+        </Field>
       </div>
       <button type="button" className="btn mt-3" disabled={!taId || !cohortId} onClick={assign}>Assign TA</button>
       <Status message={msg} />
@@ -301,10 +289,9 @@ function Practicals({ course }: { course: CourseSummary }) {
       </ul>
       <h3 className="mb-2">New practical</h3>
       <div className="grid gap-3 md:grid-cols-[1fr_14rem_auto] md:items-end">
-        <div>
-          <label htmlFor="new-practical-title" className="label">Title</label>
-          <input id="new-practical-title" className="field" value={title} onChange={(e) => setTitle(e.target.value)} />
-        </div>
+        <Field id="new-practical-title" label="Title">
+          <input className="field" value={title} onChange={(e) => setTitle(e.target.value)} />
+        </Field>
         <div>
           <label htmlFor="new-practical-species" className="label">Isotopologues</label>
           <input id="new-practical-species" className="field" value={species} onChange={(e) => setSpecies(e.target.value)} aria-describedby="new-practical-species-hint" />

@@ -7,6 +7,7 @@ import type { ColumnDef } from '@tanstack/react-table';
 import { courseCreateSchema, type CourseCreateInput } from '@/lib/schemas/instructor';
 import { DataTable } from './data-table';
 import { api } from '@/lib/api-client';
+import { Field } from '@/components/ui/field';
 
 export type CourseSummary = {
   id: number; code: string; title: string; archived: boolean;
@@ -76,16 +77,12 @@ function NewCourse() {
     <section aria-labelledby="new-course" className="card">
       <h2 id="new-course" className="mb-3">New course</h2>
       <form onSubmit={handleSubmit(onSubmit)} noValidate className="grid gap-3 md:grid-cols-[10rem_minmax(0,1fr)_auto] md:items-end">
-        <div>
-          <label htmlFor="course-code" className="label">Code</label>
-          <input id="course-code" className="field" {...register('code')} />
-          {formState.errors.code && <p className="error-text">{formState.errors.code.message}</p>}
-        </div>
-        <div>
-          <label htmlFor="course-title" className="label">Title</label>
-          <input id="course-title" className="field" {...register('title')} />
-          {formState.errors.title && <p className="error-text">{formState.errors.title.message}</p>}
-        </div>
+        <Field id="course-code" label="Code" error={formState.errors.code?.message}>
+          <input className="field" {...register('code')} />
+        </Field>
+        <Field id="course-title" label="Title" error={formState.errors.title?.message}>
+          <input className="field" {...register('title')} />
+        </Field>
         <button className="btn" type="submit" disabled={formState.isSubmitting}>Create course</button>
       </form>
       <p aria-live="polite" className="error-text">{message}</p>

@@ -12,6 +12,7 @@ import type { ReleaseProgress, ReleaseSummary } from '@/lib/marking/release';
 import { QUEUE_FLAGS, QUEUE_STATUSES, QUEUE_SORTS } from '@/lib/schemas/marking';
 import { api, postStream, useApi } from '@/lib/api-client';
 import { ConfirmDialog } from '@/components/ui/confirm-dialog';
+import { Field } from '@/components/ui/field';
 /** page is shown only; the server pages by the cursor (after / before a row). */
 type Filters = { practicalId: string; cohortId: string; status: string; flag: string; sort: string; dir: string; page: number; after?: string; before?: string };
 
@@ -222,47 +223,41 @@ function useQueueKeys({ rows, cursor, setCursor, regionRef, accept, toggle, open
 function QueueFilters({ f, set, practicals, cohorts }: { f: Filters; set: (patch: Partial<Filters>) => void; practicals: { id: number; title: string }[]; cohorts: { id: number; name: string }[] }) {
   return (
     <form className="card mb-4 grid grid-cols-2 gap-3 md:grid-cols-6" onSubmit={(e) => e.preventDefault()} aria-label="Filter the queue">
-      <div>
-        <label className="label" htmlFor="q-practical">Practical</label>
-        <select id="q-practical" className="field" value={f.practicalId} onChange={(e) => set({ practicalId: e.target.value })}>
+      <Field id="q-practical" label="Practical">
+        <select className="field" value={f.practicalId} onChange={(e) => set({ practicalId: e.target.value })}>
           <option value="">All</option>
           {practicals.map((p) => <option key={p.id} value={p.id}>{p.title}</option>)}
         </select>
-      </div>
-      <div>
-        <label className="label" htmlFor="q-cohort">Cohort</label>
-        <select id="q-cohort" className="field" value={f.cohortId} onChange={(e) => set({ cohortId: e.target.value })}>
+      </Field>
+      <Field id="q-cohort" label="Cohort">
+        <select className="field" value={f.cohortId} onChange={(e) => set({ cohortId: e.target.value })}>
           <option value="">All</option>
           {cohorts.map((c) => <option key={c.id} value={c.id}>{c.name}</option>)}
         </select>
-      </div>
-      <div>
-        <label className="label" htmlFor="q-status">Status</label>
-        <select id="q-status" className="field" value={f.status} onChange={(e) => set({ status: e.target.value })}>
+      </Field>
+      <Field id="q-status" label="Status">
+        <select className="field" value={f.status} onChange={(e) => set({ status: e.target.value })}>
           <option value="">All</option>
           {QUEUE_STATUSES.map((s) => <option key={s} value={s}>{STATUS_LABEL[s]}</option>)}
         </select>
-      </div>
-      <div>
-        <label className="label" htmlFor="q-flag">Flag</label>
-        <select id="q-flag" className="field" value={f.flag} onChange={(e) => set({ flag: e.target.value })}>
+      </Field>
+      <Field id="q-flag" label="Flag">
+        <select className="field" value={f.flag} onChange={(e) => set({ flag: e.target.value })}>
           <option value="">Any</option>
           {QUEUE_FLAGS.map((s) => <option key={s} value={s}>{FLAG_LABEL[s]}</option>)}
         </select>
-      </div>
-      <div>
-        <label className="label" htmlFor="q-sort">Sort by</label>
-        <select id="q-sort" className="field" value={f.sort} onChange={(e) => set({ sort: e.target.value })}>
+      </Field>
+      <Field id="q-sort" label="Sort by">
+        <select className="field" value={f.sort} onChange={(e) => set({ sort: e.target.value })}>
           {QUEUE_SORTS.map((s) => <option key={s} value={s}>{SORT_LABEL[s]}</option>)}
         </select>
-      </div>
-      <div>
-        <label className="label" htmlFor="q-dir">Order</label>
-        <select id="q-dir" className="field" value={f.dir} onChange={(e) => set({ dir: e.target.value })}>
+      </Field>
+      <Field id="q-dir" label="Order">
+        <select className="field" value={f.dir} onChange={(e) => set({ dir: e.target.value })}>
           <option value="asc">Ascending</option>
           <option value="desc">Descending</option>
         </select>
-      </div>
+      </Field>
     </form>
   );
 }

@@ -7,6 +7,7 @@ import { useState } from 'react';
 import { api } from '@/lib/api-client';
 import type { BandChange } from '@/lib/instructor/practicals';
 import { cohortLabel, Status, type Detail, type Msg } from './shared';
+import { Field } from '@/components/ui/field';
 
 export function Bands({ detail, onChange }: { detail: Detail; onChange: () => void }) {
   const [msg, setMsg] = useState<Msg>(null);
@@ -37,48 +38,41 @@ export function Bands({ detail, onChange }: { detail: Detail; onChange: () => vo
       <h2 id="bands" className="mb-1">Tolerance bands</h2>
       <p className="hint mb-3">Consistency: is the number right from the student&apos;s own data? Accuracy: is the measurement close to the reference value? A cohort&apos;s own band replaces the course default for that cohort. Inner band: full marks; outer band: partial credit.</p>
       <div className="grid gap-3 md:grid-cols-4">
-        <div>
-          <label htmlFor="b-quantity" className="label">Quantity</label>
-          <select id="b-quantity" className="field" value={f.quantityId} onChange={set('quantityId')}>
+        <Field id="b-quantity" label="Quantity">
+          <select className="field" value={f.quantityId} onChange={set('quantityId')}>
             <option value="">Choose…</option>
             {detail.quantities.map((q) => <option key={q.id} value={q.id}>{q.label} · {q.species}</option>)}
           </select>
-        </div>
-        <div>
-          <label htmlFor="b-scope" className="label">Applies to</label>
-          <select id="b-scope" className="field" value={f.scope} onChange={set('scope')}>
+        </Field>
+        <Field id="b-scope" label="Applies to">
+          <select className="field" value={f.scope} onChange={set('scope')}>
             <option value="course">Course default (all cohorts)</option>
             {detail.cohorts.filter((c) => !c.archived).map((c) => <option key={c.id} value={c.id}>Only {c.name} ({c.term})</option>)}
           </select>
-        </div>
-        <div>
-          <label htmlFor="b-basis" className="label">Question</label>
-          <select id="b-basis" className="field" value={f.basis} onChange={set('basis')}>
+        </Field>
+        <Field id="b-basis" label="Question">
+          <select className="field" value={f.basis} onChange={set('basis')}>
             <option value="consistency">Consistency</option>
             <option value="accuracy">Accuracy</option>
           </select>
-        </div>
-        <div>
-          <label htmlFor="b-kind" className="label">Kind</label>
-          <select id="b-kind" className="field" value={f.kind} onChange={set('kind')}>
+        </Field>
+        <Field id="b-kind" label="Kind">
+          <select className="field" value={f.kind} onChange={set('kind')}>
             <option value="absolute">Absolute (± in a unit)</option>
             <option value="relative">Relative (± %)</option>
             <option value="sigma">Standard uncertainties (± n σ)</option>
           </select>
-        </div>
-        <div>
-          <label htmlFor="b-inner" className="label">Inner band {f.kind === 'relative' ? '(%)' : f.kind === 'sigma' ? '(σ)' : ''}</label>
-          <input id="b-inner" type="number" step="any" className="field num" value={f.inner} onChange={set('inner')} />
-        </div>
-        <div>
-          <label htmlFor="b-outer" className="label">Outer band, optional {f.kind === 'relative' ? '(%)' : f.kind === 'sigma' ? '(σ)' : ''}</label>
-          <input id="b-outer" type="number" step="any" className="field num" value={f.outer} onChange={set('outer')} />
-        </div>
+        </Field>
+        <Field id="b-inner" label={<>Inner band {f.kind === 'relative' ? '(%)' : f.kind === 'sigma' ? '(σ)' : ''}</>}>
+          <input type="number" step="any" className="field num" value={f.inner} onChange={set('inner')} />
+        </Field>
+        <Field id="b-outer" label={<>Outer band, optional {f.kind === 'relative' ? '(%)' : f.kind === 'sigma' ? '(σ)' : ''}</>}>
+          <input type="number" step="any" className="field num" value={f.outer} onChange={set('outer')} />
+        </Field>
         {f.kind === 'absolute' && (
-          <div>
-            <label htmlFor="b-unit" className="label">Unit</label>
-            <input id="b-unit" className="field" value={unit} onChange={set('unit')} />
-          </div>
+          <Field id="b-unit" label="Unit">
+            <input className="field" value={unit} onChange={set('unit')} />
+          </Field>
         )}
       </div>
       <button type="button" className="btn mt-3" disabled={!f.quantityId || !f.inner} onClick={save}>Save band</button>

@@ -6,6 +6,7 @@ import { publishedSource } from '@/lib/display';
 import { api } from '@/lib/api-client';
 import { VerdictLabel } from '../verdict';
 import type { Detail } from './shared';
+import { Field } from '@/components/ui/field';
 
 export function LivePreview({ detail }: { detail: Detail }) {
   const [f, setF] = useState({ quantityId: '', cohort: 'course', value: '', unit: '', uncertainty: '', recomputed: '' });
@@ -38,32 +39,27 @@ export function LivePreview({ detail }: { detail: Detail }) {
       <h2 id="live-preview" className="mb-1">Try a value</h2>
       <p className="hint mb-3">Type a value a student might report and see the verdict and marks it would get in a cohort. Nothing is saved.</p>
       <div className="grid gap-3 md:grid-cols-6">
-        <div className="md:col-span-2">
-          <label htmlFor="pv-quantity" className="label">Quantity</label>
-          <select id="pv-quantity" className="field" value={f.quantityId} onChange={set('quantityId')}>
+        <Field id="pv-quantity" label="Quantity" className="md:col-span-2">
+          <select className="field" value={f.quantityId} onChange={set('quantityId')}>
             <option value="">Choose…</option>
             {detail.quantities.map((q) => <option key={q.id} value={q.id}>{q.label} · {q.species}</option>)}
           </select>
-        </div>
-        <div>
-          <label htmlFor="pv-cohort" className="label">Cohort</label>
-          <select id="pv-cohort" className="field" value={f.cohort} onChange={set('cohort')}>
+        </Field>
+        <Field id="pv-cohort" label="Cohort">
+          <select className="field" value={f.cohort} onChange={set('cohort')}>
             <option value="course">Course default</option>
             {detail.cohorts.filter((c) => !c.archived).map((c) => <option key={c.id} value={c.id}>{c.name} ({c.term})</option>)}
           </select>
-        </div>
-        <div>
-          <label htmlFor="pv-value" className="label">Reported value</label>
-          <input id="pv-value" type="number" step="any" className="field num" value={f.value} onChange={set('value')} />
-        </div>
-        <div>
-          <label htmlFor="pv-unit" className="label">Unit</label>
-          <input id="pv-unit" className="field" placeholder={quantity?.unit} value={f.unit} onChange={set('unit')} />
-        </div>
-        <div>
-          <label htmlFor="pv-recomputed" className="label">Recomputed from their data (optional)</label>
-          <input id="pv-recomputed" type="number" step="any" className="field num" value={f.recomputed} onChange={set('recomputed')} />
-        </div>
+        </Field>
+        <Field id="pv-value" label="Reported value">
+          <input type="number" step="any" className="field num" value={f.value} onChange={set('value')} />
+        </Field>
+        <Field id="pv-unit" label="Unit">
+          <input className="field" placeholder={quantity?.unit} value={f.unit} onChange={set('unit')} />
+        </Field>
+        <Field id="pv-recomputed" label="Recomputed from their data (optional)">
+          <input type="number" step="any" className="field num" value={f.recomputed} onChange={set('recomputed')} />
+        </Field>
       </div>
       <div aria-live="polite" className="mt-3">
         {msg && <p className="error-text">{msg}</p>}

@@ -8,6 +8,7 @@ import { quantitySchema, type QuantityInput } from '@/lib/schemas/instructor';
 import { publishedSource } from '@/lib/display';
 import { api } from '@/lib/api-client';
 import { cohortLabel, Status, type Detail, type Msg, type Quantity } from './shared';
+import { Field } from '@/components/ui/field';
 
 export function Quantities({ detail, onChange }: { detail: Detail; onChange: () => void }) {
   const [msg, setMsg] = useState<Msg>(null);
@@ -57,49 +58,40 @@ export function Quantities({ detail, onChange }: { detail: Detail; onChange: () 
       </table>
       <h3 className="mb-2 mt-4">Add a quantity</h3>
       <form onSubmit={handleSubmit(onAdd)} noValidate className="grid gap-3 md:grid-cols-4">
-        <div>
-          <label htmlFor="q-key" className="label">Quantity</label>
-          <select id="q-key" className="field" {...register('key')}>
+        <Field id="q-key" label="Quantity">
+          <select className="field" {...register('key')}>
             {QUANTITY_KEYS.map((k) => <option key={k} value={k}>{QUANTITIES[k].label}</option>)}
           </select>
-        </div>
-        <div>
-          <label htmlFor="q-species" className="label">Isotopologue</label>
-          <select id="q-species" className="field" {...register('species')}>
+        </Field>
+        <Field id="q-species" label="Isotopologue">
+          <select className="field" {...register('species')}>
             {detail.practical.species.map((s) => <option key={s} value={s}>{s}</option>)}
           </select>
-        </div>
-        <div>
-          <label htmlFor="q-unit" className="label">Expected unit</label>
-          <input id="q-unit" className="field" {...register('unit')} />
-        </div>
-        <div>
-          <label htmlFor="q-marks" className="label">Marks</label>
-          <input id="q-marks" type="number" step="any" className="field num" {...register('marks', { valueAsNumber: true })} />
-          {formState.errors.marks && <p className="error-text">{formState.errors.marks.message}</p>}
-        </div>
+        </Field>
+        <Field id="q-unit" label="Expected unit">
+          <input className="field" {...register('unit')} />
+        </Field>
+        <Field id="q-marks" label="Marks" error={formState.errors.marks?.message}>
+          <input type="number" step="any" className="field num" {...register('marks', { valueAsNumber: true })} />
+        </Field>
         <div className="flex items-center gap-2">
           <input id="q-unc" type="checkbox" {...register('uncertaintyRequired')} />
           <label htmlFor="q-unc">Uncertainty required</label>
         </div>
-        <div>
-          <label htmlFor="q-refkind" className="label">Reference value</label>
-          <select id="q-refkind" className="field" {...register('referenceKind')}>
+        <Field id="q-refkind" label="Reference value">
+          <select className="field" {...register('referenceKind')}>
             <option value="literature">Literature (published value)</option>
             <option value="department">Department value</option>
           </select>
-        </div>
+        </Field>
         {kind === 'department' && (
           <>
-            <div>
-              <label htmlFor="q-refvalue" className="label">Department value (in the expected unit)</label>
-              <input id="q-refvalue" type="number" step="any" className="field num" {...register('referenceValue', { setValueAs: (v) => (v === '' || v == null ? null : Number(v)) })} />
-              {formState.errors.referenceValue && <p className="error-text">{formState.errors.referenceValue.message}</p>}
-            </div>
-            <div>
-              <label htmlFor="q-refnote" className="label">Where it comes from</label>
-              <input id="q-refnote" className="field" placeholder="Demonstrator run on bench 2, Oct 2026" {...register('referenceNote')} />
-            </div>
+            <Field id="q-refvalue" label="Department value (in the expected unit)" error={formState.errors.referenceValue?.message}>
+              <input type="number" step="any" className="field num" {...register('referenceValue', { setValueAs: (v) => (v === '' || v == null ? null : Number(v)) })} />
+            </Field>
+            <Field id="q-refnote" label="Where it comes from">
+              <input className="field" placeholder="Demonstrator run on bench 2, Oct 2026" {...register('referenceNote')} />
+            </Field>
           </>
         )}
         <div className="md:col-span-4"><button type="submit" className="btn" disabled={formState.isSubmitting}>Add quantity</button></div>
