@@ -7,7 +7,8 @@ import type { ColumnDef } from '@tanstack/react-table';
 import { cohortCreateSchema, staffAddSchema, type CohortCreateInput, type StaffAddInput } from '@/lib/schemas/instructor';
 import { DataTable } from './data-table';
 import { api, useApi } from '@/lib/api-client';
-import type { CoursePeople } from '@/lib/instructor/courses';
+import type { CoursePeople, StaffAdded } from '@/lib/instructor/courses';
+import type { PracticalCreated } from '@/lib/instructor/practicals';
 import { formatDate, type CourseSummary } from './courses-overview';
 import { RosterImport } from './roster-import';
 import { cohortName } from '@/lib/display';
@@ -154,7 +155,7 @@ function PeopleList({ course, people, onChange }: { course: CourseSummary; peopl
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   const { register, handleSubmit, formState, reset } = useForm<StaffAddInput>({ resolver: zodResolver(staffAddSchema), defaultValues: { role: 'ta' } });
   async function onAdd(values: StaffAddInput) {
-    const r = await api.post<{ invited: boolean; created: boolean }>(`/api/courses/${course.id}/staff`, values);
+    const r = await api.post<StaffAdded>(`/api/courses/${course.id}/staff`, values);
     if (!r.ok) return setMsg({ ok: false, text: r.error.message });
     setMsg({ ok: true, text: r.data.created ? `Added ${values.email} as ${values.role}${r.data.invited ? '; an invitation e-mail is on its way' : ''}.` : `${values.email} already holds that role.` });
     reset({ email: '', name: '', role: values.role });
@@ -267,7 +268,7 @@ function Practicals({ course }: { course: CourseSummary }) {
   const [species, setSpecies] = useState('H35Cl');
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   async function create() {
-    const r = await api.post<{ practical: { id: number } }>(`/api/courses/${course.id}/practicals`, {
+    const r = await api.post<PracticalCreated>(`/api/courses/${course.id}/practicals`, {
       title, species: species.split(/[,\s]+/).filter(Boolean), instructions: '', hazardNotes: '', mode: 'practice', maxAttempts: 3,
       lateRule: 'penalty', latePenaltyPerDay: 10, latePenaltyCap: 50, rubric: [], deadlines: [],
     });

@@ -7,6 +7,7 @@ import type { ColumnDef } from '@tanstack/react-table';
 import { courseCreateSchema, type CourseCreateInput } from '@/lib/schemas/instructor';
 import { DataTable } from './data-table';
 import { api } from '@/lib/api-client';
+import type { CourseCreated } from '@/lib/instructor/courses';
 import { Field } from '@/components/ui/field';
 
 export type CourseSummary = {
@@ -65,7 +66,7 @@ function NewCourse() {
   const [message, setMessage] = useState<string | null>(null);
   const { register, handleSubmit, formState, setError } = useForm<CourseCreateInput>({ resolver: zodResolver(courseCreateSchema) });
   async function onSubmit(values: CourseCreateInput) {
-    const r = await api.post<{ course: { id: number } }>('/api/courses', values);
+    const r = await api.post<CourseCreated>('/api/courses', values);
     if (!r.ok) {
       for (const [k, v] of Object.entries(r.error.fields)) setError(k as keyof CourseCreateInput, { message: v[0] });
       setMessage(r.error.message);

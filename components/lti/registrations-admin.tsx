@@ -2,6 +2,7 @@
 import { useState } from 'react';
 import { useRouter } from 'next/navigation';
 import { api } from '@/lib/api-client';
+import type { KeyRotated } from '@/lib/lti/keys';
 import type { RegistrationView } from '@/lib/lti/admin';
 
 type Key = { kid: string; status: string; createdAt: string; retiredAt: string | null; published: boolean };
@@ -55,7 +56,7 @@ export function RegistrationsAdmin({ registrations, keys, courses, cohorts }: { 
   };
   const rotate = async () => {
     if (!window.confirm('Make a new signing key? The old one stays published for 24 hours so nothing in flight breaks.')) return;
-    const res = await api.post<{ kid: string }>('/api/lti/keys');
+    const res = await api.post<KeyRotated>('/api/lti/keys');
     setKeyMsg(res.ok ? { ok: true, text: `New key ${res.data.kid.slice(0, 12)}… signs from now on.` } : { ok: false, text: res.error.message });
     router.refresh();
   };

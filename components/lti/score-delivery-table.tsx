@@ -1,14 +1,14 @@
 'use client';
 import { useState } from 'react';
 import { api } from '@/lib/api-client';
-import type { ScoreDelivery } from '@/lib/lti/scores';
+import type { ScoreDeliveriesAnswer, ScoreDelivery } from '@/lib/lti/scores';
 import { Badge, DELIVERY } from './platform-course';
 
 export function ScoreDeliveryTable({ submissionId, initial }: { submissionId: number; initial: ScoreDelivery[] }) {
   const [rows, setRows] = useState(initial);
   const [msg, setMsg] = useState<string | null>(null);
   const reload = async () => {
-    const r = await api.get<{ deliveries: ScoreDelivery[] }>(`/api/lti/submissions/${submissionId}/scores`);
+    const r = await api.get<ScoreDeliveriesAnswer>(`/api/lti/submissions/${submissionId}/scores`);
     if (r.ok) setRows(r.data.deliveries);
   };
   const resend = async (id: number) => {

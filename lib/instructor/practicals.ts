@@ -364,6 +364,8 @@ export async function copyPractical(source: Practical, data: CopyData, actorId: 
   });
 }
 
+/** POST /api/courses/[id]/practicals's and POST /api/practicals/[id]/copy's answer: the new practical as stored. */
+export type PracticalCreated = { practical: PracticalDetail['practical'] };
 /** GET /api/practicals/[id]'s answer (PUT answers the same without `instructionsHtml`). */
 export type PracticalDetail = Serialized<Awaited<ReturnType<typeof practicalDetail>>> & { instructionsHtml: string };
 /** POST /api/practicals/[id]/preview's answer. */

@@ -3,6 +3,7 @@
 import { useState } from 'react';
 import { useRouter } from 'next/navigation';
 import { api } from '@/lib/api-client';
+import type { PracticalCreated } from '@/lib/instructor/practicals';
 import { cohortLabel, fromLocal, Status, type Detail, type Msg } from './shared';
 
 export function CopyPractical({ detail, courseId }: { detail: Detail; courseId: number }) {
@@ -13,7 +14,7 @@ export function CopyPractical({ detail, courseId }: { detail: Detail; courseId: 
   const [deadlines, setDeadlines] = useState<Record<number, string>>({});
   const [msg, setMsg] = useState<Msg>(null);
   async function copy() {
-    const r = await api.post<{ practical: { id: number } }>(`/api/practicals/${detail.practical.id}/copy`, {
+    const r = await api.post<PracticalCreated>(`/api/practicals/${detail.practical.id}/copy`, {
       title,
       cohortMap: Object.fromEntries(overridden.map((id) => [String(id), map[id] ? Number(map[id]) : null])),
       deadlines: Object.entries(deadlines).filter(([, v]) => v).map(([k, v]) => ({ cohortId: Number(k), deadline: fromLocal(v) })),
