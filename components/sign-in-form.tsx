@@ -4,6 +4,7 @@ import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { signIn } from 'next-auth/react';
 import { signInSchema, SIGN_IN_ERRORS, type SignInInput } from '@/lib/schemas/auth';
+import { Field } from '@/components/ui/field';
 
 export function SignInForm({ initialError, next = '/' }: { initialError?: string; next?: string }) {
   const [error, setError] = useState(initialError);
@@ -26,16 +27,12 @@ export function SignInForm({ initialError, next = '/' }: { initialError?: string
           {error}
         </p>
       )}
-      <div>
-        <label htmlFor="email" className="label">E-mail</label>
-        <input id="email" type="email" autoComplete="username" className="field" {...register('email')} aria-invalid={!!formState.errors.email} />
-        {formState.errors.email && <p className="error-text">{formState.errors.email.message}</p>}
-      </div>
-      <div>
-        <label htmlFor="password" className="label">Password</label>
-        <input id="password" type="password" autoComplete="current-password" className="field" {...register('password')} aria-invalid={!!formState.errors.password} />
-        {formState.errors.password && <p className="error-text">{formState.errors.password.message}</p>}
-      </div>
+      <Field id="email" label="E-mail" error={formState.errors.email?.message}>
+        <input type="email" autoComplete="username" className="field" {...register('email')} aria-invalid={!!formState.errors.email} />
+      </Field>
+      <Field id="password" label="Password" error={formState.errors.password?.message}>
+        <input type="password" autoComplete="current-password" className="field" {...register('password')} aria-invalid={!!formState.errors.password} />
+      </Field>
       <button type="submit" className="btn w-full justify-center" disabled={formState.isSubmitting}>
         {formState.isSubmitting ? 'Signing in…' : 'Sign in'}
       </button>

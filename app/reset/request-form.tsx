@@ -2,6 +2,8 @@
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
+import { api } from '@/lib/api-client';
+import type { PasswordResetAnswer } from '@/lib/auth/reset';
 import { resetRequestSchema, type ResetRequestInput } from '@/lib/schemas/auth';
 
 /** "Forgot your password?": sends the address and shows whatever the server says, which is the same for every address. */
@@ -13,17 +15,9 @@ export function ResetRequestForm() {
   async function onSubmit(values: ResetRequestInput) {
     setError(null);
     setSent(null);
-    let data: { message?: string; error?: string } = {};
-    let ok = false;
-    try {
-      const res = await fetch('/api/password-reset', { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(values) });
-      ok = res.ok;
-      data = await res.json().catch(() => ({ error: `The server answered ${res.status}.` }));
-    } catch {
-      data = { error: 'The request did not reach Oscillab. Check your connection and try again.' };
-    }
-    if (!ok) return setError(data.error ?? 'The request was not accepted.');
-    setSent(data.message ?? '');
+    const r = await api.post<PasswordResetAnswer>('/api/password-reset', values);
+    if (!r.ok) return setError(r.error.message);
+    setSent(r.data.message ?? '');
   }
 
   return (

@@ -1,3 +1,4 @@
+import Link from 'next/link';
 import type { Metadata } from 'next';
 import { redirect } from 'next/navigation';
 import { currentActor } from '@/lib/authz';
@@ -24,7 +25,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
       <section className="card" aria-labelledby="signin-heading">
         <h2 id="signin-heading" className="mb-4">Sign in</h2>
         <SignInForm initialError={message} next={next} />
-        <p className="mt-3 text-sm"><a href="/reset">Forgot your password?</a></p>
+        <p className="mt-3 text-sm"><Link href="/reset">Forgot your password?</Link></p>
         <p className="hint mt-4">New accounts are set up from the invitation e-mail your department sends.</p>
       </section>
     </div>

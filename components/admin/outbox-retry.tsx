@@ -1,7 +1,7 @@
 'use client';
 import { useState } from 'react';
 import { useRouter } from 'next/navigation';
-import { send } from '@/components/marking/fetcher';
+import { api } from '@/lib/api-client';
 
 export function RetryButton({ id, label }: { id: number; label: string }) {
   const router = useRouter();
@@ -14,8 +14,8 @@ export function RetryButton({ id, label }: { id: number; label: string }) {
         disabled={state === 'busy'}
         onClick={async () => {
           setState('busy');
-          const r = await send(`/api/admin/outbox/${id}/retry`, 'POST', {});
-          setState(r.ok ? 'Queued to send now.' : (r.body.error ?? 'Not retried.'));
+          const r = await api.post(`/api/admin/outbox/${id}/retry`, {});
+          setState(r.ok ? 'Queued to send now.' : r.error.message);
           router.refresh();
         }}
       >

@@ -4,7 +4,7 @@ import { useRouter } from 'next/navigation';
 import type { AdminPerson } from '@/lib/admin/people';
 import { ROLE_NAMES } from '@/lib/homes';
 import { Field } from '@/components/ui/field';
-import { send } from '@/components/marking/fetcher';
+import { api } from '@/lib/api-client';
 
 type GrantCourse = { id: number; code: string; title: string; archived: boolean; cohorts: { id: number; name: string; term: string }[] };
 const ROLES = ['student', 'ta', 'instructor', 'lead'] as const;
@@ -23,17 +23,16 @@ export function PeopleAdmin({ people, courses }: { people: AdminPerson[]; course
   async function grant(e: React.FormEvent) {
     e.preventDefault();
     setBusy(true);
-    const r = await send<{ membership: { id: number } }>('/api/admin/memberships', 'POST', { email, courseId, role, cohortId: cohortId ? Number(cohortId) : null });
+    const r = await api.post('/api/admin/memberships', { email, courseId, role, cohortId: cohortId ? Number(cohortId) : null });
     setBusy(false);
-    setMsg(r.ok ? { ok: true, text: `${email} is now ${ROLE_NAMES[role].toLowerCase()} in ${course?.code}.` } : { ok: false, text: r.body.error ?? 'Not granted.' });
+    setMsg(r.ok ? { ok: true, text: `${email} is now ${ROLE_NAMES[role].toLowerCase()} in ${course?.code}.` } : { ok: false, text: r.error.message });
     if (r.ok) router.refresh();
   }
 
   async function remove(p: AdminPerson, m: AdminPerson['roles'][number]) {
     if (!window.confirm(`Remove ${p.name}'s role as ${ROLE_NAMES[m.role as keyof typeof ROLE_NAMES]?.toLowerCase() ?? m.role} in ${m.course}? Their work and marks stay.`)) return;
-    const r = await fetch(`/api/admin/memberships/${m.membershipId}`, { method: 'DELETE' });
-    const body = await r.json().catch(() => ({}));
-    setMsg(r.ok ? { ok: true, text: `Removed ${p.name} as ${m.role} in ${m.course}.` } : { ok: false, text: body.error ?? 'Not removed.' });
+    const r = await api.delete(`/api/admin/memberships/${m.membershipId}`);
+    setMsg(r.ok ? { ok: true, text: `Removed ${p.name} as ${m.role} in ${m.course}.` } : { ok: false, text: r.error.message });
     if (r.ok) router.refresh();
   }
 

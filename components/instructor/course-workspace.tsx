@@ -1,24 +1,26 @@
 'use client';
 import { useMemo, useState } from 'react';
 import { useRouter } from 'next/navigation';
-import useSWR from 'swr';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import type { ColumnDef } from '@tanstack/react-table';
 import { cohortCreateSchema, staffAddSchema, type CohortCreateInput, type StaffAddInput } from '@/lib/schemas/instructor';
 import { DataTable } from './data-table';
-import { fetcher, send } from './api';
+import { api, useApi } from '@/lib/api-client';
+import type { CoursePeople, StaffAdded } from '@/lib/instructor/courses';
+import type { PracticalCreated } from '@/lib/instructor/practicals';
 import { formatDate, type CourseSummary } from './courses-overview';
 import { RosterImport } from './roster-import';
 import { cohortName } from '@/lib/display';
 import { ROLE_NAMES } from '@/lib/homes';
+import { Field } from '@/components/ui/field';
 
-export type Person = { membershipId: number; userId: number; name: string; email: string; studentNumber: string | null; role: string; cohortId: number | null; invited: boolean };
-export type People = { people: Person[]; duties: { id: number; cohortId: number; taId: number; studentId: number | null }[] };
+type People = CoursePeople;
+type Person = People['people'][number];
 
 export function CourseWorkspace({ course }: { course: CourseSummary }) {
   const router = useRouter();
-  const people = useSWR<People>(`/api/courses/${course.id}/roster`, fetcher);
+  const people = useApi<People>(`/api/courses/${course.id}/roster`);
   const refresh = () => {
     router.refresh();
     void people.mutate();
@@ -47,18 +49,17 @@ function CourseSettings({ course, onChange }: { course: CourseSummary; onChange:
   const [title, setTitle] = useState(course.title);
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   const save = async (body: object, done: string) => {
-    const r = await send('PATCH', `/api/courses/${course.id}`, body);
-    setMsg(r.ok ? { ok: true, text: done } : { ok: false, text: r.data.error ?? 'Not saved.' });
+    const r = await api.patch(`/api/courses/${course.id}`, body);
+    setMsg(r.ok ? { ok: true, text: done } : { ok: false, text: r.error.message });
     if (r.ok) onChange();
   };
   return (
     <section aria-labelledby="course-settings" className="card">
       <h2 id="course-settings" className="mb-3">Course</h2>
       <div className="flex flex-wrap items-end gap-3">
-        <div className="min-w-0 grow basis-64">
-          <label htmlFor="course-title-edit" className="label">Title</label>
-          <input id="course-title-edit" className="field" value={title} onChange={(e) => setTitle(e.target.value)} />
-        </div>
+        <Field id="course-title-edit" label="Title" className="min-w-0 grow basis-64">
+          <input className="field" value={title} onChange={(e) => setTitle(e.target.value)} />
+        </Field>
         <button type="button" className="btn" onClick={() => save({ title }, 'Course renamed.')}>Rename</button>
         <button type="button" className="btn-quiet" onClick={() => save({ archived: !course.archived }, course.archived ? 'Course restored.' : 'Course archived.')}>
           {course.archived ? 'Restore course' : 'Archive course'}
@@ -76,10 +77,10 @@ function Cohorts({ course, onChange }: { course: CourseSummary; onChange: () => 
   const [editing, setEditing] = useState<CohortRow | null>(null);
   const { register, handleSubmit, formState, reset, setError } = useForm<CohortCreateInput>({ resolver: zodResolver(cohortCreateSchema) });
   async function onCreate(values: CohortCreateInput) {
-    const r = await send('POST', `/api/courses/${course.id}/cohorts`, values);
+    const r = await api.post(`/api/courses/${course.id}/cohorts`, values);
     if (!r.ok) {
-      for (const [k, v] of Object.entries(r.data.fields ?? {})) setError(k as keyof CohortCreateInput, { message: v[0] });
-      setMsg({ ok: false, text: r.data.error ?? 'Not saved.' });
+      for (const [k, v] of Object.entries(r.error.fields)) setError(k as keyof CohortCreateInput, { message: v[0] });
+      setMsg({ ok: false, text: r.error.message });
       return;
     }
     setMsg({ ok: true, text: `Cohort "${values.name}" created.` });
@@ -87,8 +88,8 @@ function Cohorts({ course, onChange }: { course: CourseSummary; onChange: () => 
     onChange();
   }
   const patch = async (c: CohortRow, body: object, done: string) => {
-    const r = await send('PATCH', `/api/courses/${course.id}/cohorts/${c.id}`, body);
-    setMsg(r.ok ? { ok: true, text: done } : { ok: false, text: r.data.error ?? 'Not saved.' });
+    const r = await api.patch(`/api/courses/${course.id}/cohorts/${c.id}`, body);
+    setMsg(r.ok ? { ok: true, text: done } : { ok: false, text: r.error.message });
     if (r.ok) {
       setEditing(null);
       onChange();
@@ -118,20 +119,15 @@ function Cohorts({ course, onChange }: { course: CourseSummary; onChange: () => 
       {editing && <CohortEdit cohort={editing} onSave={(body) => patch(editing, body, 'Cohort saved.')} onCancel={() => setEditing(null)} />}
       <h3 className="mb-2 mt-4">New cohort</h3>
       <form onSubmit={handleSubmit(onCreate)} noValidate className="grid gap-3 md:grid-cols-[1fr_1fr_1fr_auto] md:items-end">
-        <div>
-          <label htmlFor="cohort-name" className="label">Name</label>
-          <input id="cohort-name" className="field" {...register('name')} />
-          {formState.errors.name && <p className="error-text">{formState.errors.name.message}</p>}
-        </div>
-        <div>
-          <label htmlFor="cohort-term" className="label">Term</label>
-          <input id="cohort-term" className="field" placeholder="2027 Spring" {...register('term')} />
-          {formState.errors.term && <p className="error-text">{formState.errors.term.message}</p>}
-        </div>
-        <div>
-          <label htmlFor="cohort-instrument" className="label">Instrument</label>
-          <input id="cohort-instrument" className="field" placeholder="FTIR bench 2 (1 cm⁻¹)" {...register('instrument')} />
-        </div>
+        <Field id="cohort-name" label="Name" error={formState.errors.name?.message}>
+          <input className="field" {...register('name')} />
+        </Field>
+        <Field id="cohort-term" label="Term" error={formState.errors.term?.message}>
+          <input className="field" placeholder="2027 Spring" {...register('term')} />
+        </Field>
+        <Field id="cohort-instrument" label="Instrument">
+          <input className="field" placeholder="FTIR bench 2 (1 cm⁻¹)" {...register('instrument')} />
+        </Field>
         <button type="submit" className="btn" disabled={formState.isSubmitting}>Create cohort</button>
       </form>
       <Status message={msg} />
@@ -159,8 +155,8 @@ function PeopleList({ course, people, onChange }: { course: CourseSummary; peopl
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   const { register, handleSubmit, formState, reset } = useForm<StaffAddInput>({ resolver: zodResolver(staffAddSchema), defaultValues: { role: 'ta' } });
   async function onAdd(values: StaffAddInput) {
-    const r = await send<{ invited: boolean; created: boolean }>('POST', `/api/courses/${course.id}/staff`, values);
-    if (!r.ok) return setMsg({ ok: false, text: r.data.error ?? 'Not added.' });
+    const r = await api.post<StaffAdded>(`/api/courses/${course.id}/staff`, values);
+    if (!r.ok) return setMsg({ ok: false, text: r.error.message });
     setMsg({ ok: true, text: r.data.created ? `Added ${values.email} as ${values.role}${r.data.invited ? '; an invitation e-mail is on its way' : ''}.` : `${values.email} already holds that role.` });
     reset({ email: '', name: '', role: values.role });
     onChange();
@@ -183,23 +179,19 @@ function PeopleList({ course, people, onChange }: { course: CourseSummary; peopl
       {people ? <DataTable data={people.people} columns={columns} label="People" filterPlaceholder="Filter by name, e-mail, cohort, role…" /> : <p className="text-ink-soft">Loading…</p>}
       <h3 className="mb-2 mt-4">Add staff</h3>
       <form onSubmit={handleSubmit(onAdd)} noValidate className="grid gap-3 md:grid-cols-[1fr_1fr_minmax(13rem,auto)_auto] md:items-end">
-        <div>
-          <label htmlFor="staff-email" className="label">E-mail</label>
-          <input id="staff-email" type="email" className="field" {...register('email')} />
-          {formState.errors.email && <p className="error-text">{formState.errors.email.message}</p>}
-        </div>
-        <div>
-          <label htmlFor="staff-name" className="label">Name (for a new account)</label>
-          <input id="staff-name" className="field" {...register('name')} />
-        </div>
-        <div>
-          <label htmlFor="staff-role" className="label">Role</label>
-          <select id="staff-role" className="field" {...register('role')}>
+        <Field id="staff-email" label="E-mail" error={formState.errors.email?.message}>
+          <input type="email" className="field" {...register('email')} />
+        </Field>
+        <Field id="staff-name" label="Name (for a new account)">
+          <input className="field" {...register('name')} />
+        </Field>
+        <Field id="staff-role" label="Role">
+          <select className="field" {...register('role')}>
             <option value="ta">Teaching assistant</option>
             <option value="instructor">Instructor</option>
             <option value="lead">Course lead</option>
           </select>
-        </div>
+        </Field>
         <button type="submit" className="btn" disabled={formState.isSubmitting}>Add</button>
       </form>
       <Status message={msg} />
@@ -216,16 +208,16 @@ function TaDuties({ course, people, onChange }: { course: CourseSummary; people?
   const students = useMemo(() => people?.people.filter((p) => p.role === 'student' && String(p.cohortId) === cohortId) ?? [], [people, cohortId]);
   const nameOf = (id: number | null) => people?.people.find((p) => p.userId === id)?.name ?? `#${id}`;
   async function assign() {
-    const r = await send('POST', `/api/courses/${course.id}/ta-assignments`, { taId: Number(taId), cohortId: Number(cohortId), studentIds });
-    setMsg(r.ok ? { ok: true, text: 'TA assigned.' } : { ok: false, text: r.data.error ?? 'Not assigned.' });
+    const r = await api.post(`/api/courses/${course.id}/ta-assignments`, { taId: Number(taId), cohortId: Number(cohortId), studentIds });
+    setMsg(r.ok ? { ok: true, text: 'TA assigned.' } : { ok: false, text: r.error.message });
     if (r.ok) {
       setStudentIds([]);
       onChange();
     }
   }
   async function remove(id: number) {
-    const r = await send('DELETE', `/api/courses/${course.id}/ta-assignments/${id}`);
-    setMsg(r.ok ? { ok: true, text: 'Assignment removed.' } : { ok: false, text: r.data.error ?? 'Not removed.' });
+    const r = await api.delete(`/api/courses/${course.id}/ta-assignments/${id}`);
+    setMsg(r.ok ? { ok: true, text: 'Assignment removed.' } : { ok: false, text: r.error.message });
     if (r.ok) onChange();
   }
   return (
@@ -246,26 +238,23 @@ function TaDuties({ course, people, onChange }: { course: CourseSummary; people?
         {people && people.duties.length === 0 && <li className="text-ink-soft">No TA has been assigned yet.</li>}
       </ul>
       <div className="grid gap-3 md:grid-cols-3">
-        <div>
-          <label htmlFor="duty-ta" className="label">TA</label>
-          <select id="duty-ta" className="field" value={taId} onChange={(e) => setTaId(e.target.value)}>
+        <Field id="duty-ta" label="TA">
+          <select className="field" value={taId} onChange={(e) => setTaId(e.target.value)}>
             <option value="">Choose…</option>
             {tas.map((t) => <option key={t.userId} value={t.userId}>{t.name}</option>)}
           </select>
-        </div>
-        <div>
-          <label htmlFor="duty-cohort" className="label">Cohort</label>
-          <select id="duty-cohort" className="field" value={cohortId} onChange={(e) => { setCohortId(e.target.value); setStudentIds([]); }}>
+        </Field>
+        <Field id="duty-cohort" label="Cohort">
+          <select className="field" value={cohortId} onChange={(e) => { setCohortId(e.target.value); setStudentIds([]); }}>
             <option value="">Choose…</option>
             {course.cohorts.filter((c) => !c.archived).map((c) => <option key={c.id} value={c.id}>{c.name} ({c.term})</option>)}
           </select>
-        </div>
-        <div>
-          <label htmlFor="duty-students" className="label">Students (none chosen: the whole cohort)</label>
-          <select id="duty-students" multiple className="field h-24" value={studentIds.map(String)} onChange={(e) => setStudentIds(Array.from(e.target.selectedOptions).map((o) => Number(o.value)))}>
+        </Field>
+        <Field id="duty-students" label="Students (none chosen: the whole cohort)">
+          <select multiple className="field h-24" value={studentIds.map(String)} onChange={(e) => setStudentIds(Array.from(e.target.selectedOptions).map((o) => Number(o.value)))}>
             {students.map((s) => <option key={s.userId} value={s.userId}>{s.name}</option>)}
           </select>
-        </div>
+        </Field>
       </div>
       <button type="button" className="btn mt-3" disabled={!taId || !cohortId} onClick={assign}>Assign TA</button>
       <Status message={msg} />
@@ -274,16 +263,17 @@ function TaDuties({ course, people, onChange }: { course: CourseSummary; people?
 }
 
 function Practicals({ course }: { course: CourseSummary }) {
+  const router = useRouter();
   const [title, setTitle] = useState('');
   const [species, setSpecies] = useState('H35Cl');
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   async function create() {
-    const r = await send<{ practical: { id: number } }>('POST', `/api/courses/${course.id}/practicals`, {
+    const r = await api.post<PracticalCreated>(`/api/courses/${course.id}/practicals`, {
       title, species: species.split(/[,\s]+/).filter(Boolean), instructions: '', hazardNotes: '', mode: 'practice', maxAttempts: 3,
       lateRule: 'penalty', latePenaltyPerDay: 10, latePenaltyCap: 50, rubric: [], deadlines: [],
     });
-    if (!r.ok) return setMsg({ ok: false, text: r.data.error ?? 'Not created.' });
-    window.location.assign(`/courses/${course.id}/practicals/${r.data.practical.id}`);
+    if (!r.ok) return setMsg({ ok: false, text: r.error.message });
+    router.push(`/courses/${course.id}/practicals/${r.data.practical.id}`);
   }
   const name = (id: number) => course.cohorts.find((c) => c.id === id)?.name ?? '?';
   return (
@@ -300,10 +290,9 @@ function Practicals({ course }: { course: CourseSummary }) {
       </ul>
       <h3 className="mb-2">New practical</h3>
       <div className="grid gap-3 md:grid-cols-[1fr_14rem_auto] md:items-end">
-        <div>
-          <label htmlFor="new-practical-title" className="label">Title</label>
-          <input id="new-practical-title" className="field" value={title} onChange={(e) => setTitle(e.target.value)} />
-        </div>
+        <Field id="new-practical-title" label="Title">
+          <input className="field" value={title} onChange={(e) => setTitle(e.target.value)} />
+        </Field>
         <div>
           <label htmlFor="new-practical-species" className="label">Isotopologues</label>
           <input id="new-practical-species" className="field" value={species} onChange={(e) => setSpecies(e.target.value)} aria-describedby="new-practical-species-hint" />

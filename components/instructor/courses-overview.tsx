@@ -1,11 +1,14 @@
 'use client';
+import { useRouter } from 'next/navigation';
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import type { ColumnDef } from '@tanstack/react-table';
 import { courseCreateSchema, type CourseCreateInput } from '@/lib/schemas/instructor';
 import { DataTable } from './data-table';
-import { send } from './api';
+import { api } from '@/lib/api-client';
+import type { CourseCreated } from '@/lib/instructor/courses';
+import { Field } from '@/components/ui/field';
 
 export type CourseSummary = {
   id: number; code: string; title: string; archived: boolean;
@@ -59,31 +62,28 @@ export function CoursesOverview({ courses }: { courses: CourseSummary[] }) {
 }
 
 function NewCourse() {
+  const router = useRouter();
   const [message, setMessage] = useState<string | null>(null);
   const { register, handleSubmit, formState, setError } = useForm<CourseCreateInput>({ resolver: zodResolver(courseCreateSchema) });
   async function onSubmit(values: CourseCreateInput) {
-    const r = await send<{ course: { id: number } }>('POST', '/api/courses', values);
+    const r = await api.post<CourseCreated>('/api/courses', values);
     if (!r.ok) {
-      for (const [k, v] of Object.entries(r.data.fields ?? {})) setError(k as keyof CourseCreateInput, { message: v[0] });
-      setMessage(r.data.error ?? 'Not saved.');
+      for (const [k, v] of Object.entries(r.error.fields)) setError(k as keyof CourseCreateInput, { message: v[0] });
+      setMessage(r.error.message);
       return;
     }
-    window.location.assign(`/courses/${r.data.course.id}`);
+    router.push(`/courses/${r.data.course.id}`);
   }
   return (
     <section aria-labelledby="new-course" className="card">
       <h2 id="new-course" className="mb-3">New course</h2>
       <form onSubmit={handleSubmit(onSubmit)} noValidate className="grid gap-3 md:grid-cols-[10rem_minmax(0,1fr)_auto] md:items-end">
-        <div>
-          <label htmlFor="course-code" className="label">Code</label>
-          <input id="course-code" className="field" {...register('code')} />
-          {formState.errors.code && <p className="error-text">{formState.errors.code.message}</p>}
-        </div>
-        <div>
-          <label htmlFor="course-title" className="label">Title</label>
-          <input id="course-title" className="field" {...register('title')} />
-          {formState.errors.title && <p className="error-text">{formState.errors.title.message}</p>}
-        </div>
+        <Field id="course-code" label="Code" error={formState.errors.code?.message}>
+          <input className="field" {...register('code')} />
+        </Field>
+        <Field id="course-title" label="Title" error={formState.errors.title?.message}>
+          <input className="field" {...register('title')} />
+        </Field>
         <button className="btn" type="submit" disabled={formState.isSubmitting}>Create course</button>
       </form>
       <p aria-live="polite" className="error-text">{message}</p>

@@ -16,6 +16,7 @@ export function DataTable<T>({ data, columns, label, filterPlaceholder = 'Filter
 }) {
   const [sorting, setSorting] = useState<SortingState>([]);
   const [filter, setFilter] = useState('');
+  // eslint-disable-next-line react-hooks/incompatible-library -- TanStack Table keeps its own state; this component is left unmemoised by the compiler
   const table = useReactTable({
     data, columns, state: { sorting, globalFilter: filter }, onSortingChange: setSorting, onGlobalFilterChange: setFilter,
     getCoreRowModel: getCoreRowModel(), getSortedRowModel: getSortedRowModel(), getFilteredRowModel: getFilteredRowModel(),

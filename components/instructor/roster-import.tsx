@@ -2,7 +2,8 @@
 import { useState } from 'react';
 import type { RosterPreview, RosterRow } from '@/lib/instructor/roster';
 import { TableScroll } from '@/components/ui/table-scroll';
-import { send } from './api';
+import { api } from '@/lib/api-client';
+import { Field } from '@/components/ui/field';
 
 const STATUS: Record<RosterRow['status'], { word: string; symbol: string; cls: string }> = {
   new: { word: 'New', symbol: '+', cls: 'text-verdict-within bg-verdict-within-bg' },
@@ -29,11 +30,11 @@ export function RosterImport({ courseId, cohorts, onImported }: { courseId: numb
     if (!file) return;
     setBusy(true);
     setMsg(null);
-    const r = await send<RosterPreview & { created?: number; enrolled?: number; invited?: number }>('POST', `/api/courses/${courseId}/roster?mode=${mode}${target ? `&cohortId=${target}` : ''}`, undefined, { body: file, type: 'text/csv' });
+    const r = await api.post<RosterPreview & { created?: number; enrolled?: number; invited?: number }>(`/api/courses/${courseId}/roster?mode=${mode}${target ? `&cohortId=${target}` : ''}`, { raw: file, type: 'text/csv' });
     setBusy(false);
     if (!r.ok) {
       setPreview(null);
-      return setMsg({ ok: false, text: r.data.error ?? 'The file was refused.' });
+      return setMsg({ ok: false, text: r.error.message });
     }
     setPreview(r.data);
     if (mode === 'import') {
@@ -63,17 +64,15 @@ export function RosterImport({ courseId, cohorts, onImported }: { courseId: numb
         </p>
       )}
       <div className="flex flex-wrap items-end gap-3">
-        <div className="min-w-0 max-w-full">
-          <label htmlFor="roster-cohort" className="label">Import into</label>
-          <select id="roster-cohort" className="field" value={target} onChange={(e) => { setTarget(e.target.value); reset(); }}>
+        <Field id="roster-cohort" label="Import into" className="min-w-0 max-w-full">
+          <select className="field" value={target} onChange={(e) => { setTarget(e.target.value); reset(); }}>
             <option value="">The cohort named in each row</option>
             {cohorts.map((c) => <option key={c.id} value={c.id}>{c.name} ({c.term})</option>)}
           </select>
-        </div>
-        <div className="min-w-0 max-w-full">
-          <label htmlFor="roster-file" className="label">Roster file</label>
-          <input id="roster-file" type="file" accept=".csv,text/csv" className="field max-w-full" aria-describedby="roster-hint" onChange={(e) => { setFile(e.target.files?.[0] ?? null); reset(); }} />
-        </div>
+        </Field>
+        <Field id="roster-file" label="Roster file" className="min-w-0 max-w-full">
+          <input type="file" accept=".csv,text/csv" className="field max-w-full" aria-describedby="roster-hint" onChange={(e) => { setFile(e.target.files?.[0] ?? null); reset(); }} />
+        </Field>
         <button type="button" className="btn-quiet" disabled={!file || busy} onClick={() => call('preview')}>Preview</button>
         <button type="button" className="btn" disabled={!file || busy || !preview || preview.counts.invalid > 0 || preview.counts.new === 0} onClick={() => call('import')}>Import</button>
       </div>

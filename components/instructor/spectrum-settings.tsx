@@ -5,17 +5,18 @@
  * comparison — Oscillab's own reading of the student's spectrum on the marking screen and in
  * the feedback.
  */
-import { useEffect, useState } from 'react';
-import { send } from './api';
+import { useState } from 'react';
+import { api, useApi } from '@/lib/api-client';
+import type { SpectrumSettingsView } from '@/lib/instructor/spectrum-settings';
 
-type Band = 'fundamental' | 'overtone';
-type Sample = { key: string; label: string; molecules: string[]; bands: Band[] };
+type Settings = SpectrumSettingsView;
+type Sample = Settings['effective'][number];
+type Band = Sample['bands'][number];
 /** A sample as edited: the molecules as typed, read into a list only when saved. */
 type EditedSample = Omit<Sample, 'molecules'> & { moleculesText: string };
 
 const edited = (s: Sample): EditedSample => ({ key: s.key, label: s.label, bands: s.bands, moleculesText: s.molecules.join(', ') });
 const toSample = (s: EditedSample): Sample => ({ key: s.key, label: s.label, bands: s.bands, molecules: s.moleculesText.split(/[,;\s]+/).filter(Boolean) });
-type Settings = { spectrumAnalysis: boolean; samples: Sample[] | null; effective: Sample[] };
 
 const BAND_WORDS: Record<Band, string> = { fundamental: 'fundamental (1←0)', overtone: 'first overtone (2←0)' };
 
@@ -28,18 +29,19 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
   const [error, setError] = useState<string | null>(null);
   const [saving, setSaving] = useState(false);
 
-  useEffect(() => {
-    void send<Settings>('GET', `/api/practicals/${practicalId}/spectrum-settings`).then((r) => {
-      if (!r.ok) {
-        setError(r.data.error ?? 'The settings could not be loaded.');
-        return;
-      }
-      setSettings(r.data);
-      setAnalysis(r.data.spectrumAnalysis);
-      setPerSample(r.data.samples !== null);
-      setSamples((r.data.samples ?? r.data.effective).map(edited));
-    });
-  }, [practicalId]);
+  // Read once: the form then holds the instructor's edits, which a revalidation must not overwrite.
+  const loaded = useApi<Settings>(`/api/practicals/${practicalId}/spectrum-settings`, {
+    revalidateIfStale: false,
+    revalidateOnFocus: false,
+    revalidateOnReconnect: false,
+    onSuccess: (data) => {
+      setSettings(data);
+      setAnalysis(data.spectrumAnalysis);
+      setPerSample(data.samples !== null);
+      setSamples((data.samples ?? data.effective).map(edited));
+    },
+  });
+  const problem = error ?? loaded.error?.message ?? null;
 
   const update = (i: number, patch: Partial<EditedSample>) => setSamples((list) => list.map((s, k) => (k === i ? { ...s, ...patch } : s)));
 
@@ -47,10 +49,10 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
     setSaving(true);
     setError(null);
     setMessage(null);
-    const r = await send<Settings>('PUT', `/api/practicals/${practicalId}/spectrum-settings`, { spectrumAnalysis: analysis, samples: perSample ? samples.map(toSample) : null });
+    const r = await api.put<Settings>(`/api/practicals/${practicalId}/spectrum-settings`, { spectrumAnalysis: analysis, samples: perSample ? samples.map(toSample) : null });
     setSaving(false);
     if (!r.ok) {
-      setError(r.data.error ?? 'The settings were not saved.');
+      setError(r.error.message);
       return;
     }
     setSettings(r.data);
@@ -58,7 +60,7 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
     setMessage('Saved. The new settings apply to spectra uploaded and submissions checked from now on.');
   };
 
-  if (!settings && !error) return <section className="card mt-6"><p className="text-ink-soft">Loading the spectrum settings…</p></section>;
+  if (!settings && !problem) return <section className="card mt-6"><p className="text-ink-soft">Loading the spectrum settings…</p></section>;
   return (
     <section className="card mt-6 space-y-4" aria-labelledby="spectra-settings-heading">
       <h2 id="spectra-settings-heading">Spectra</h2>
@@ -122,7 +124,7 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
         <button type="button" className="btn" onClick={() => void save()} disabled={saving}>{saving ? 'Saving…' : 'Save spectrum settings'}</button>
         <span aria-live="polite" className="text-sm">
           {message}
-          {error && <span className="error-text">{error}</span>}
+          {problem && <span className="error-text">{problem}</span>}
         </span>
       </div>
     </section>

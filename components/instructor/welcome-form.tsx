@@ -4,7 +4,8 @@ import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import type { z } from 'zod';
 import { welcomeSchema } from '@/lib/schemas/instructor';
-import { send } from './api';
+import { api } from '@/lib/api-client';
+import { Field } from '@/components/ui/field';
 
 type Input = z.input<typeof welcomeSchema>;
 
@@ -14,8 +15,8 @@ export function WelcomeForm({ token, email }: { token: string; email: string }) 
   const { register, handleSubmit, formState } = useForm<Input>({ resolver: zodResolver(welcomeSchema), defaultValues: { token } });
   async function onSubmit(values: Input) {
     setError(null);
-    const r = await send('POST', '/api/invitations/accept', values);
-    if (!r.ok) return setError(r.data.error ?? 'The password was not set.');
+    const r = await api.post('/api/invitations/accept', values);
+    if (!r.ok) return setError(r.error.message);
     setDone(true);
   }
   if (done) {
@@ -35,11 +36,9 @@ export function WelcomeForm({ token, email }: { token: string; email: string }) 
         <input id="new-password" type="password" autoComplete="new-password" className="field" aria-describedby="new-password-hint" {...register('password')} />
         <p id="new-password-hint" className="hint">At least 12 characters, with at least 4 different characters, and not a commonly used password.</p>
       </div>
-      <div>
-        <label htmlFor="confirm-password" className="label">The same password again</label>
-        <input id="confirm-password" type="password" autoComplete="new-password" className="field" {...register('confirm')} />
-        {formState.errors.confirm && <p className="error-text">{formState.errors.confirm.message}</p>}
-      </div>
+      <Field id="confirm-password" label="The same password again" error={formState.errors.confirm?.message}>
+        <input type="password" autoComplete="new-password" className="field" {...register('confirm')} />
+      </Field>
       <button type="submit" className="btn w-full justify-center" disabled={formState.isSubmitting}>Set password</button>
     </form>
   );

@@ -1,7 +1,7 @@
 'use client';
 import { useEffect, useState } from 'react';
 import { useRouter } from 'next/navigation';
-import { send } from '@/components/instructor/api';
+import { api } from '@/lib/api-client';
 import type { PlatformRosterPreview, PlatformRosterRow, PlatformRosterResult } from '@/lib/lti/roster';
 
 export type PlatformContextView = { id: number; contextId: string; title: string | null; platform: string; defaultCohortId: number | null; roster: boolean; gradebook: boolean; rosterSyncedAt: string | null };
@@ -52,8 +52,8 @@ function ContextCard({ context, cohorts }: { context: PlatformContextView; cohor
   const [cohort, setCohort] = useState(context.defaultCohortId ? String(context.defaultCohortId) : '');
   const [msg, setMsg] = useState<Message>(null);
   const save = async () => {
-    const r = await send('PATCH', `/api/lti/contexts/${context.id}`, { defaultCohortId: cohort ? Number(cohort) : null });
-    setMsg(r.ok ? { ok: true, text: 'Saved.' } : { ok: false, text: r.data.error ?? 'Not saved.' });
+    const r = await api.patch(`/api/lti/contexts/${context.id}`, { defaultCohortId: cohort ? Number(cohort) : null });
+    setMsg(r.ok ? { ok: true, text: 'Saved.' } : { ok: false, text: r.error.message });
     if (r.ok) router.refresh();
   };
   return (
@@ -85,9 +85,9 @@ function Roster({ context, autoload }: { context: PlatformContextView; autoload:
   const load = async () => {
     setBusy(true);
     setMsg(null);
-    const r = await send<PlatformRosterPreview>('GET', `/api/lti/contexts/${context.id}/roster`);
+    const r = await api.get<PlatformRosterPreview>(`/api/lti/contexts/${context.id}/roster`);
     setBusy(false);
-    if (!r.ok) return setMsg({ ok: false, text: r.data.error ?? 'The roster could not be fetched.' });
+    if (!r.ok) return setMsg({ ok: false, text: r.error.message });
     setPreview(r.data);
     const c = r.data.counts;
     setMsg({ ok: true, text: c.new + c.changed + c.leaving ? `${c.new} new, ${c.changed} changed, ${c.leaving} leaving. Nothing has been written yet.` : 'The course already matches the learning platform’s roster.' });
@@ -95,9 +95,9 @@ function Roster({ context, autoload }: { context: PlatformContextView; autoload:
   const confirm = async () => {
     if (!preview) return;
     setBusy(true);
-    const r = await send<PlatformRosterResult>('POST', `/api/lti/contexts/${context.id}/roster`, { fingerprint: preview.fingerprint });
+    const r = await api.post<PlatformRosterResult>(`/api/lti/contexts/${context.id}/roster`, { fingerprint: preview.fingerprint });
     setBusy(false);
-    if (!r.ok) return setMsg({ ok: false, text: r.data.error ?? 'Nothing was written.' });
+    if (!r.ok) return setMsg({ ok: false, text: r.error.message });
     const a = r.data.applied;
     setMsg({ ok: true, text: `Done: ${a.added} added, ${a.renamed} renamed, ${a.connected} connected, ${a.removed} role(s) ended.` });
     setPreview(null);
@@ -105,8 +105,9 @@ function Roster({ context, autoload }: { context: PlatformContextView; autoload:
     router.refresh();
   };
   useEffect(() => {
+    // eslint-disable-next-line react-hooks/set-state-in-effect -- the roster is fetched once when the page opens for a review (?review)
     if (autoload && context.roster) void load();
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- once on mount, as above; later changes of `load` must not fetch again
   }, [autoload]);
   const changes = preview ? preview.counts.new + preview.counts.changed + preview.counts.leaving : 0;
   return (
@@ -142,8 +143,8 @@ function Scores({ context, rows }: { context: PlatformContextView; rows: ScoreRo
   const router = useRouter();
   const [msg, setMsg] = useState<Message>(null);
   const resend = async (id: number) => {
-    const r = await send('POST', `/api/lti/scores/${id}/resend`);
-    setMsg(r.ok ? { ok: true, text: 'Queued again.' } : { ok: false, text: r.data.error ?? 'Not queued.' });
+    const r = await api.post(`/api/lti/scores/${id}/resend`);
+    setMsg(r.ok ? { ok: true, text: 'Queued again.' } : { ok: false, text: r.error.message });
     router.refresh();
   };
   return (

@@ -1,7 +1,8 @@
 'use client';
 import { useState } from 'react';
 import { useRouter } from 'next/navigation';
-import { send } from '@/components/instructor/api';
+import { api } from '@/lib/api-client';
+import type { KeyRotated } from '@/lib/lti/keys';
 import type { RegistrationView } from '@/lib/lti/admin';
 
 type Key = { kid: string; status: string; createdAt: string; retiredAt: string | null; published: boolean };
@@ -33,9 +34,9 @@ export function RegistrationsAdmin({ registrations, keys, courses, cohorts }: { 
   };
   const save = async () => {
     const body = { ...form, deploymentIds: form.deploymentIds.split(/[\s,]+/).filter(Boolean), tokenAudience: form.tokenAudience || undefined };
-    const r = editing ? await send('PATCH', `/api/lti/registrations/${editing}`, body) : await send('POST', '/api/lti/registrations', body);
-    setFields(r.ok ? {} : (r.data.fields ?? {}));
-    setMsg(r.ok ? { ok: true, text: editing ? 'Registration saved.' : 'Learning platform registered.' } : { ok: false, text: r.data.error ?? 'Not saved.' });
+    const r = editing ? await api.patch(`/api/lti/registrations/${editing}`, body) : await api.post('/api/lti/registrations', body);
+    setFields(r.ok ? {} : r.error.fields);
+    setMsg(r.ok ? { ok: true, text: editing ? 'Registration saved.' : 'Learning platform registered.' } : { ok: false, text: r.error.message });
     if (r.ok) {
       setForm(EMPTY);
       setEditing(null);
@@ -44,19 +45,19 @@ export function RegistrationsAdmin({ registrations, keys, courses, cohorts }: { 
   };
   const remove = async (r: RegistrationView) => {
     if (!window.confirm(`Remove the registration “${r.name}”? Its course connections and queued scores go with it; accounts and work stay.`)) return;
-    const res = await send('DELETE', `/api/lti/registrations/${r.id}`);
-    setMsg(res.ok ? { ok: true, text: 'Registration removed.' } : { ok: false, text: res.data.error ?? 'Not removed.' });
+    const res = await api.delete(`/api/lti/registrations/${r.id}`);
+    setMsg(res.ok ? { ok: true, text: 'Registration removed.' } : { ok: false, text: res.error.message });
     router.refresh();
   };
   const toggle = async (r: RegistrationView) => {
-    const res = await send('PATCH', `/api/lti/registrations/${r.id}`, { active: !r.active });
-    setMsg(res.ok ? { ok: true, text: r.active ? 'Launches from this platform are now refused.' : 'Launches from this platform are accepted again.' } : { ok: false, text: res.data.error ?? 'Not changed.' });
+    const res = await api.patch(`/api/lti/registrations/${r.id}`, { active: !r.active });
+    setMsg(res.ok ? { ok: true, text: r.active ? 'Launches from this platform are now refused.' : 'Launches from this platform are accepted again.' } : { ok: false, text: res.error.message });
     router.refresh();
   };
   const rotate = async () => {
     if (!window.confirm('Make a new signing key? The old one stays published for 24 hours so nothing in flight breaks.')) return;
-    const res = await send<{ kid: string }>('POST', '/api/lti/keys');
-    setKeyMsg(res.ok ? { ok: true, text: `New key ${res.data.kid.slice(0, 12)}… signs from now on.` } : { ok: false, text: res.data.error ?? 'Not rotated.' });
+    const res = await api.post<KeyRotated>('/api/lti/keys');
+    setKeyMsg(res.ok ? { ok: true, text: `New key ${res.data.kid.slice(0, 12)}… signs from now on.` } : { ok: false, text: res.error.message });
     router.refresh();
   };
 
@@ -150,8 +151,8 @@ function Contexts({ registration, courses, cohorts }: { registration: Registrati
   const [cohortId, setCohortId] = useState('');
   const [msg, setMsg] = useState<Message>(null);
   const connect = async () => {
-    const r = await send('POST', '/api/lti/contexts', { registrationId: registration.id, contextId, courseId: Number(courseId), defaultCohortId: cohortId ? Number(cohortId) : null });
-    setMsg(r.ok ? { ok: true, text: 'Course connected.' } : { ok: false, text: r.data.error ?? 'Not connected.' });
+    const r = await api.post('/api/lti/contexts', { registrationId: registration.id, contextId, courseId: Number(courseId), defaultCohortId: cohortId ? Number(cohortId) : null });
+    setMsg(r.ok ? { ok: true, text: 'Course connected.' } : { ok: false, text: r.error.message });
     if (r.ok) {
       setContextId('');
       router.refresh();
@@ -159,8 +160,8 @@ function Contexts({ registration, courses, cohorts }: { registration: Registrati
   };
   const disconnect = async (id: number) => {
     if (!window.confirm('Disconnect this course? People, roles and work in Oscillab stay; queued scores for it are dropped.')) return;
-    const r = await send('DELETE', `/api/lti/contexts/${id}`);
-    setMsg(r.ok ? { ok: true, text: 'Disconnected.' } : { ok: false, text: r.data.error ?? 'Not disconnected.' });
+    const r = await api.delete(`/api/lti/contexts/${id}`);
+    setMsg(r.ok ? { ok: true, text: 'Disconnected.' } : { ok: false, text: r.error.message });
     router.refresh();
   };
   const prefix = `ctx-${registration.id}`;

@@ -1,19 +1,19 @@
 'use client';
 import { useState } from 'react';
-import { send } from '@/components/instructor/api';
-import type { ScoreDelivery } from '@/lib/lti/scores';
+import { api } from '@/lib/api-client';
+import type { ScoreDeliveriesAnswer, ScoreDelivery } from '@/lib/lti/scores';
 import { Badge, DELIVERY } from './platform-course';
 
 export function ScoreDeliveryTable({ submissionId, initial }: { submissionId: number; initial: ScoreDelivery[] }) {
   const [rows, setRows] = useState(initial);
   const [msg, setMsg] = useState<string | null>(null);
   const reload = async () => {
-    const r = await send<{ deliveries: ScoreDelivery[] }>('GET', `/api/lti/submissions/${submissionId}/scores`);
+    const r = await api.get<ScoreDeliveriesAnswer>(`/api/lti/submissions/${submissionId}/scores`);
     if (r.ok) setRows(r.data.deliveries);
   };
   const resend = async (id: number) => {
-    const r = await send('POST', `/api/lti/scores/${id}/resend`);
-    setMsg(r.ok ? '✓ Queued again.' : `✗ ${r.data.error ?? 'Not queued.'}`);
+    const r = await api.post(`/api/lti/scores/${id}/resend`);
+    setMsg(r.ok ? '✓ Queued again.' : `✗ ${r.error.message}`);
     await reload();
   };
   return (

@@ -1,12 +1,10 @@
 'use client';
 
 import { useState } from 'react';
-import useSWR from 'swr';
-import { fetcher, send } from './fetcher';
+import { api, useApi } from '@/lib/api-client';
+import type { ModerationSampleView } from '@/lib/marking/moderation';
 
-type Item = { itemKey: string; label: string; maxMarks: number; proposed: number | null; awarded: number | null; comment: string | null };
-type Sampled = { id: number; version: number; status: string; student: string; cohort: string; practical: string; proposedTotal: number | null; awardedTotal: number | null; moderation: { decision: string; note: string | null } | null; items: Item[] };
-type Data = { markers: { marker: { id: number; name: string }; markedCount: number; sample: Sampled[] }[] };
+type Sampled = ModerationSampleView['markers'][number]['sample'][number];
 
 function SampleCard({ s, onDone }: { s: Sampled; onDone: () => void }) {
   const [marks, setMarks] = useState<Record<string, number>>(Object.fromEntries(s.items.map((i) => [i.itemKey, i.awarded ?? 0])));
@@ -14,8 +12,8 @@ function SampleCard({ s, onDone }: { s: Sampled; onDone: () => void }) {
   const [msg, setMsg] = useState('');
   const changed = s.items.filter((i) => marks[i.itemKey] !== (i.awarded ?? 0));
   const submit = async (decision: 'confirmed' | 'changed') => {
-    const r = await send(`/api/moderation/${s.id}`, 'POST', { decision, version: s.version, note: note || null, items: decision === 'changed' ? changed.map((i) => ({ itemKey: i.itemKey, awarded: marks[i.itemKey] })) : [] });
-    setMsg(r.ok ? (decision === 'confirmed' ? 'Confirmed.' : 'Changed.') : (r.body as { error?: string }).error ?? 'Failed.');
+    const r = await api.post(`/api/moderation/${s.id}`, { decision, version: s.version, note: note || null, items: decision === 'changed' ? changed.map((i) => ({ itemKey: i.itemKey, awarded: marks[i.itemKey] })) : [] });
+    setMsg(r.ok ? (decision === 'confirmed' ? 'Confirmed.' : 'Changed.') : r.error.message);
     if (r.ok) onDone();
   };
   return (
@@ -54,8 +52,8 @@ function SampleCard({ s, onDone }: { s: Sampled; onDone: () => void }) {
 }
 
 export function ModerationBoard({ courseId }: { courseId: number }) {
-  const { data, error, isLoading, mutate } = useSWR<Data>(`/api/moderation?courseId=${courseId}`, fetcher);
-  if (error) return <p className="error-text" role="alert">{String(error.message)}</p>;
+  const { data, error, isLoading, mutate } = useApi<ModerationSampleView>(`/api/moderation?courseId=${courseId}`);
+  if (error) return <p className="error-text" role="alert">{error.message}</p>;
   if (isLoading || !data) return <p aria-live="polite">Loading…</p>;
   if (data.markers.length === 0) return <p className="card text-ink-soft">Nothing has been marked in this course yet.</p>;
   return (

@@ -1,14 +1,14 @@
 /**
- * The marking screen's figures, drawn on the server as SVG after the rest of the page has been
- * sent (each sits in its own Suspense boundary on the page).
+ * The marking screen's figures, drawn on the server as SVG (PlotFigure) after the rest of the page
+ * has been sent (each sits in its own Suspense boundary on the page).
  */
 import { setImmediate as yieldToStream } from 'node:timers/promises';
 import { fitPlotModel, residualModel } from '@/lib/marking/fit-plot';
 import type { FitData } from '@/lib/marking/view';
-import { renderSvg } from '@/lib/spectrum';
 import { spectrumFigure } from '@/lib/submissions/spectrum-figure';
 import { speciesDisplay } from '@/lib/grading';
 import { models } from '@/models';
+import { PlotFigure } from '@/components/plots/plot-figure';
 
 export async function SpectrumSection({ submissionId }: { submissionId: number }) {
   await yieldToStream(); // let the page above go out first
@@ -21,7 +21,9 @@ export async function SpectrumSection({ submissionId }: { submissionId: number }
       <h2 id="spectrum-heading" className="mb-2">Spectrum with the student’s lines</h2>
       {spectrum.ok ? (
         <>
-          <div className="table-scroll text-ink" role="region" aria-label="Spectrum plot (scrolls sideways on a narrow screen)" tabIndex={0} data-testid="marking-spectrum" dangerouslySetInnerHTML={{ __html: spectrum.svg }} />
+          <div className="table-scroll text-ink" role="region" aria-label="Spectrum plot (scrolls sideways on a narrow screen)" tabIndex={0} data-testid="marking-spectrum">
+            <PlotFigure {...spectrum.plot} />
+          </div>
           <p className="mt-2 text-sm">
             {spectrum.summary.ok
               ? `${spectrum.summary.matched} of ${spectrum.summary.reported} reported lines match a peak (within ±${spectrum.summary.tolerance.toFixed(2)} cm⁻¹)${spectrum.summary.missing ? `; ${spectrum.summary.missing} strong peaks are not in the list` : ''}.`
@@ -48,10 +50,10 @@ export async function FitPlots({ fits }: { fits: FitData[] }) {
         species: f.species,
         description: f.description,
         notices: f.notices,
-        fit: renderSvg(fitPlotModel(f), { title: fitTitle, idPrefix: `fit-${i}` }),
-        residuals: renderSvg(residualModel(f), { title: resTitle, idPrefix: `res-${i}` }),
-        fitNarrow: renderSvg(fitPlotModel(f, { width: 350, height: 260 }), { title: fitTitle, idPrefix: `fitn-${i}` }),
-        residualsNarrow: renderSvg(residualModel(f, { width: 350, height: 220 }), { title: resTitle, idPrefix: `resn-${i}` }),
+        fit: { model: fitPlotModel(f), title: fitTitle, idPrefix: `fit-${i}` },
+        residuals: { model: residualModel(f), title: resTitle, idPrefix: `res-${i}` },
+        fitNarrow: { model: fitPlotModel(f, { width: 350, height: 260 }), title: fitTitle, idPrefix: `fitn-${i}` },
+        residualsNarrow: { model: residualModel(f, { width: 350, height: 220 }), title: resTitle, idPrefix: `resn-${i}` },
       };
     });
   if (plots.length === 0) return <p className="card mb-6 text-ink-soft">No line fit is available for this submission.</p>;
@@ -68,10 +70,10 @@ export async function FitPlots({ fits }: { fits: FitData[] }) {
               ))}
             </ul>
           )}
-          <div className="hidden overflow-x-auto text-ink sm:block" dangerouslySetInnerHTML={{ __html: p.fit }} />
-          <div className="hidden overflow-x-auto text-ink sm:block" dangerouslySetInnerHTML={{ __html: p.residuals }} />
-          <div className="text-ink sm:hidden" dangerouslySetInnerHTML={{ __html: p.fitNarrow }} />
-          <div className="text-ink sm:hidden" dangerouslySetInnerHTML={{ __html: p.residualsNarrow }} />
+          <div className="hidden overflow-x-auto text-ink sm:block"><PlotFigure {...p.fit} /></div>
+          <div className="hidden overflow-x-auto text-ink sm:block"><PlotFigure {...p.residuals} /></div>
+          <div className="text-ink sm:hidden"><PlotFigure {...p.fitNarrow} /></div>
+          <div className="text-ink sm:hidden"><PlotFigure {...p.residualsNarrow} /></div>
         </section>
       ))}
     </>

@@ -1,26 +1,19 @@
 'use client';
 /**
- * The statistics of one practical, fetched from /api/statistics/… with SWR. Every figure is
+ * The statistics of one practical, fetched from /api/statistics/… through useApi (SWR). Every figure is
  * computed in the database by the API; this component only lays it out.
  */
 import Link from 'next/link';
 import { useState } from 'react';
-import useSWR from 'swr';
 import type { Comparison } from '@/lib/statistics/compare';
 import type { PracticalReport } from '@/lib/statistics/report';
 import type { QuantityStat } from '@/lib/statistics/queries';
+import { useApi } from '@/lib/api-client';
 import { formatPercent, quantityLabel } from '@/lib/statistics/scale';
 import { TableScroll } from '@/components/ui/table-scroll';
 import { DEFAULT_MARKER_THRESHOLD } from '@/lib/statistics/definitions';
 import { BoxPlots } from './box-plot';
 import { Histogram } from './histogram';
-
-async function fetcher<T>(url: string): Promise<T> {
-  const res = await fetch(url, { headers: { accept: 'application/json' } });
-  const body = await res.json();
-  if (!res.ok) throw new Error(body?.error ?? `Request failed (${res.status}).`);
-  return body as T;
-}
 
 const BASES = [
   { basis: 'consistency', title: 'Consistency', lead: 'Is each derived number right from the student’s own measurements? (method and arithmetic)' },
@@ -50,13 +43,13 @@ export function StatisticsDashboard({ practicalId, cohortId, canExportMarks, ini
   const q = new URLSearchParams();
   if (cohortId) q.set('cohortId', String(cohortId));
   const base = `/api/statistics/practicals/${practicalId}`;
-  const { data, error, isLoading } = useSWR<PracticalReport>(`${base}?${q}&threshold=${threshold}`, fetcher, {
+  const { data, error, isLoading } = useApi<PracticalReport>(`${base}?${q}&threshold=${threshold}`, {
     keepPreviousData: true,
     fallbackData: threshold === DEFAULT_MARKER_THRESHOLD ? initial : undefined,
     revalidateOnMount: !initial,
     revalidateOnFocus: false,
   });
-  const compare = useSWR<Comparison>(`${base}/compare?by=${by}`, fetcher);
+  const compare = useApi<Comparison>(`${base}/compare?by=${by}`);
 
   if (error) return <p role="alert" className="card error-text">{error.message}</p>;
   if (isLoading || !data) return <p className="card text-ink-soft" aria-live="polite">Loading statistics…</p>;
@@ -106,65 +99,9 @@ export function StatisticsDashboard({ practicalId, cohortId, canExportMarks, ini
         );
       })}
 
-      <section aria-labelledby="slips-h" className="card">
-        <h2 id="slips-h">Most frequent slips</h2>
-        {data.slips.length === 0 ? <p className="text-ink-soft">No slips named in this group.</p> : (
-          <table className="data-table stack-table mt-2" data-testid="slip-table">
-            <caption className="sr-only">Most frequent named slips, with an example submission each</caption>
-            <thead><tr><th scope="col">Slip</th><th scope="col">Found in</th><th scope="col" className="num">Times found</th><th scope="col" className="num">Submissions</th><th scope="col">Example</th></tr></thead>
-            <tbody>
-              {data.slips.map((s) => (
-                <tr key={s.code} data-slip={s.code}>
-                  <td data-label=""><strong className="sm:font-normal">{s.title}</strong></td>
-                  <td data-label="Found in">{s.quantities.join(', ')}</td>
-                  <td className="num" data-label="Times found">{s.count}</td>
-                  <td className="num" data-label="Submissions">{s.submissions}</td>
-                  <td data-label="Example"><Link href={s.exampleHref}>{s.example}</Link></td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        )}
-      </section>
+      <SlipSection data={data} />
 
-      <section aria-labelledby="markers-h" className="card space-y-3">
-        <h2 id="markers-h">Marker consistency</h2>
-        <p className="text-ink-soft">
-          Marks as a share of the maximum; difference = TA mark − engine proposal, in percentage points of the maximum. Spread is the population standard deviation.
-          {!data.markers.namesShown && ' Other markers are shown without their names.'}
-        </p>
-        <label className="label" htmlFor="threshold">Flag a marker whose mean differs from the others’ by more than (percentage points)</label>
-        <input id="threshold" className="field max-w-32" type="number" min={0} max={100} step={1} value={threshold}
-          onChange={(e) => { const v = Number(e.target.value); if (Number.isFinite(v) && v >= 0 && v <= 100) setThreshold(v); }} />
-        {data.markers.rows.length === 0 ? <p className="text-ink-soft">Nothing marked yet.</p> : (
-          <TableScroll label="Marker consistency table">
-          <table className="data-table">
-            <caption className="sr-only">Marker consistency per marker</caption>
-            <thead><tr>
-              <th scope="col">Marker</th><th scope="col" className="num">Marked</th><th scope="col" className="num">Mean mark</th><th scope="col" className="num">Spread</th>
-              <th scope="col" className="num">Others’ mean</th><th scope="col" className="num">Mean difference</th><th scope="col" className="num">Spread</th>
-              <th scope="col" className="num">Overrides</th><th scope="col" className="num">Moderation changes</th><th scope="col">Flag</th>
-            </tr></thead>
-            <tbody>
-              {data.markers.rows.map((m) => (
-                <tr key={m.label}>
-                  <td>{m.label}</td>
-                  <td className="num">{m.submissions}</td>
-                  <td className="num">{m.suppressed ? '—' : formatPercent(m.meanMark, 1)}</td>
-                  <td className="num">{m.suppressed ? '—' : formatPercent(m.sdMark, 1)}</td>
-                  <td className="num">{formatPercent(m.othersMean, 1)}</td>
-                  <td className="num">{m.suppressed ? '—' : formatPercent(m.meanDifference, 1)}</td>
-                  <td className="num">{m.suppressed ? '—' : formatPercent(m.sdDifference, 1)}</td>
-                  <td className="num">{m.overrides}</td>
-                  <td className="num">{m.moderationChanges} of {m.moderations}</td>
-                  <td>{m.flagged ? <span className="rounded bg-verdict-outside-bg px-1.5 text-verdict-outside"><span aria-hidden="true">⚑ </span>differs by more than {data.markers.threshold} points</span> : m.suppressed ? `fewer than ${data.minGroup} marked` : 'no'}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-          </TableScroll>
-        )}
-      </section>
+      <MarkerSection data={data} threshold={threshold} setThreshold={setThreshold} />
 
       <section aria-labelledby="compare-h" className="card space-y-3">
         <h2 id="compare-h">Across cohorts and years</h2>
@@ -179,6 +116,75 @@ export function StatisticsDashboard({ practicalId, cohortId, canExportMarks, ini
         {compare.error ? <p className="error-text">{compare.error.message}</p> : !compare.data ? <p className="text-ink-soft">Loading…</p> : <ComparisonTable data={compare.data} />}
       </section>
     </div>
+  );
+}
+
+function SlipSection({ data }: { data: PracticalReport }) {
+  return (
+  <section aria-labelledby="slips-h" className="card">
+    <h2 id="slips-h">Most frequent slips</h2>
+    {data.slips.length === 0 ? <p className="text-ink-soft">No slips named in this group.</p> : (
+      <table className="data-table stack-table mt-2" data-testid="slip-table">
+        <caption className="sr-only">Most frequent named slips, with an example submission each</caption>
+        <thead><tr><th scope="col">Slip</th><th scope="col">Found in</th><th scope="col" className="num">Times found</th><th scope="col" className="num">Submissions</th><th scope="col">Example</th></tr></thead>
+        <tbody>
+          {data.slips.map((s) => (
+            <tr key={s.code} data-slip={s.code}>
+              <td data-label=""><strong className="sm:font-normal">{s.title}</strong></td>
+              <td data-label="Found in">{s.quantities.join(', ')}</td>
+              <td className="num" data-label="Times found">{s.count}</td>
+              <td className="num" data-label="Submissions">{s.submissions}</td>
+              <td data-label="Example"><Link href={s.exampleHref}>{s.example}</Link></td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    )}
+  </section>
+  );
+}
+
+/** Each marker's marks against the others', flagged beyond the threshold the lead chooses. */
+function MarkerSection({ data, threshold, setThreshold }: { data: PracticalReport; threshold: number; setThreshold: (v: number) => void }) {
+  return (
+  <section aria-labelledby="markers-h" className="card space-y-3">
+    <h2 id="markers-h">Marker consistency</h2>
+    <p className="text-ink-soft">
+      Marks as a share of the maximum; difference = TA mark − engine proposal, in percentage points of the maximum. Spread is the population standard deviation.
+      {!data.markers.namesShown && ' Other markers are shown without their names.'}
+    </p>
+    <label className="label" htmlFor="threshold">Flag a marker whose mean differs from the others’ by more than (percentage points)</label>
+    <input id="threshold" className="field max-w-32" type="number" min={0} max={100} step={1} value={threshold}
+      onChange={(e) => { const v = Number(e.target.value); if (Number.isFinite(v) && v >= 0 && v <= 100) setThreshold(v); }} />
+    {data.markers.rows.length === 0 ? <p className="text-ink-soft">Nothing marked yet.</p> : (
+      <TableScroll label="Marker consistency table">
+      <table className="data-table">
+        <caption className="sr-only">Marker consistency per marker</caption>
+        <thead><tr>
+          <th scope="col">Marker</th><th scope="col" className="num">Marked</th><th scope="col" className="num">Mean mark</th><th scope="col" className="num">Spread</th>
+          <th scope="col" className="num">Others’ mean</th><th scope="col" className="num">Mean difference</th><th scope="col" className="num">Spread</th>
+          <th scope="col" className="num">Overrides</th><th scope="col" className="num">Moderation changes</th><th scope="col">Flag</th>
+        </tr></thead>
+        <tbody>
+          {data.markers.rows.map((m) => (
+            <tr key={m.label}>
+              <td>{m.label}</td>
+              <td className="num">{m.submissions}</td>
+              <td className="num">{m.suppressed ? '—' : formatPercent(m.meanMark, 1)}</td>
+              <td className="num">{m.suppressed ? '—' : formatPercent(m.sdMark, 1)}</td>
+              <td className="num">{formatPercent(m.othersMean, 1)}</td>
+              <td className="num">{m.suppressed ? '—' : formatPercent(m.meanDifference, 1)}</td>
+              <td className="num">{m.suppressed ? '—' : formatPercent(m.sdDifference, 1)}</td>
+              <td className="num">{m.overrides}</td>
+              <td className="num">{m.moderationChanges} of {m.moderations}</td>
+              <td>{m.flagged ? <span className="rounded bg-verdict-outside-bg px-1.5 text-verdict-outside"><span aria-hidden="true">⚑ </span>differs by more than {data.markers.threshold} points</span> : m.suppressed ? `fewer than ${data.minGroup} marked` : 'no'}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+      </TableScroll>
+    )}
+  </section>
   );
 }
 

@@ -7,7 +7,11 @@
  * fills the line lists for the student to confirm or edit.
  */
 import { useState } from 'react';
-import useSWR from 'swr';
+import { api, useApi } from '@/lib/api-client';
+import type { SpectrumFigureAnswer } from '@/lib/submissions/spectrum-figure';
+import type { SpectrumLinesAnswer } from '@/lib/submissions/spectrum-analysis';
+import type { UploadAccepted } from '@/lib/submissions/uploads';
+import { PlotFigure } from '@/components/plots/plot-figure';
 
 export interface PanelSample {
   key: string;
@@ -16,28 +20,7 @@ export interface PanelSample {
   holds: string;
 }
 
-interface BandMatch {
-  label: string;
-  reported: number;
-  matched: number;
-  outsideRange: boolean;
-  noSpectrum: boolean;
-  message: string;
-}
-
-interface Figure {
-  svg: string;
-  summary: { ok: boolean; message?: string };
-  sample: string;
-  bands: string[];
-  perBand: BandMatch[];
-}
-
-interface Taken {
-  species: Record<string, { display: string; count: number; text: string; lines: { branch: 'P' | 'R'; J: number; wavenumber: number }[] }>;
-  bands: string[];
-  problems: string[];
-}
+type Taken = SpectrumLinesAnswer;
 
 interface Props {
   draftId: number | null;
@@ -50,13 +33,6 @@ interface Props {
   /** Puts line-list text into the form for each isotopologue. */
   onUseLines: (texts: Record<string, string>) => void;
 }
-
-const fetcher = async (url: string) => {
-  const r = await fetch(url);
-  const body = await r.json();
-  if (!r.ok) throw new Error(body.error ?? 'Request failed');
-  return body;
-};
 
 /** The first spectrum's input keeps the id it always had. */
 const fileId = (key: string, i: number) => (i === 0 ? 'spectrum-file' : `spectrum-file-${key}`);
@@ -78,7 +54,7 @@ export function SpectrumPanel(props: Props) {
   const [takeError, setTakeError] = useState<string | null>(null);
   const [taking, setTaking] = useState(false);
   const anyUploaded = Object.values(names).some(Boolean);
-  const figure = useSWR<Figure>(props.draftId && names[shown] ? `/api/submissions/${props.draftId}/spectrum?sample=${shown}&v=${props.version}` : null, fetcher, { keepPreviousData: true });
+  const figure = useApi<SpectrumFigureAnswer>(props.draftId && names[shown] ? `/api/submissions/${props.draftId}/spectrum?sample=${shown}&v=${props.version}` : null, { keepPreviousData: true });
 
   const upload = async (sample: PanelSample, file: File | undefined) => {
     if (!file) return;
@@ -90,12 +66,12 @@ export function SpectrumPanel(props: Props) {
     fd.set('kind', 'spectrum');
     fd.set('sample', sample.key);
     fd.set('file', file);
-    const res = await fetch('/api/uploads', { method: 'POST', body: fd });
-    const body = await res.json();
-    if (!res.ok) {
-      setMessages((m) => ({ ...m, [sample.key]: `Not accepted: ${body.error}` }));
+    const r = await api.post<UploadAccepted>('/api/uploads', fd);
+    if (!r.ok) {
+      setMessages((m) => ({ ...m, [sample.key]: `Not accepted: ${r.error.message}` }));
       return;
     }
+    const body = r.data;
     props.onUploaded({ sample: sample.key, id: body.id, version: body.version, first: sample.key === props.samples[0].key });
     setNames((n) => ({ ...n, [sample.key]: body.originalName }));
     setShown(sample.key);
@@ -107,13 +83,10 @@ export function SpectrumPanel(props: Props) {
     if (!props.draftId) return;
     setTaking(true);
     setTakeError(null);
-    try {
-      setTaken(await fetcher(`/api/submissions/${props.draftId}/spectrum-lines`));
-    } catch (e) {
-      setTakeError(e instanceof Error ? e.message : 'The lines could not be taken from your spectrum.');
-    } finally {
-      setTaking(false);
-    }
+    const r = await api.get<Taken>(`/api/submissions/${props.draftId}/spectrum-lines`);
+    setTaking(false);
+    if (r.ok) setTaken(r.data);
+    else setTakeError(r.error.message);
   };
 
   const use = () => {
@@ -150,11 +123,13 @@ export function SpectrumPanel(props: Props) {
 
       {fig && (
         <figure className="mt-2">
-          <div className="table-scroll text-ink" role="region" aria-label="Your spectrum with your lines (scrolls sideways on a narrow screen)" tabIndex={0} data-testid="spectrum-plot" dangerouslySetInnerHTML={{ __html: fig.svg }} />
+          <div className="table-scroll text-ink" role="region" aria-label="Your spectrum with your lines (scrolls sideways on a narrow screen)" tabIndex={0} data-testid="spectrum-plot">
+            <PlotFigure {...fig.plot} />
+          </div>
           <figcaption className="hint">Your lines are drawn over your spectrum; hollow markers match no peak.</figcaption>
         </figure>
       )}
-      {figure.error && <p className="error-text">The plot could not be drawn: {String(figure.error.message)}</p>}
+      {figure.error && <p className="error-text">The plot could not be drawn: {figure.error.message}</p>}
 
       {fig && fig.bands.length > 0 && (
         <section aria-labelledby="found-heading" className="text-sm">
@@ -179,28 +154,35 @@ export function SpectrumPanel(props: Props) {
         </section>
       )}
 
-      <div className="rounded border border-rule bg-paper-sunk p-3 text-sm">
-        <p>Oscillab can read the lines of your spectrum for you: it finds the lines, assigns branch and J, and puts them in your line lists, where you check them and change what you disagree with.</p>
-        <button type="button" className="btn-quiet mt-2" onClick={() => void take()} disabled={!anyUploaded || taking}>
-          {taking ? 'Reading your spectrum…' : 'Take the lines from my spectrum'}
-        </button>
-        {takeError && <p className="error-text" role="alert">{takeError}</p>}
-        {taken && (
-          <div className="mt-3 space-y-2" aria-live="polite" data-testid="taken-lines">
-            <ul className="list-disc pl-5">
-              {Object.entries(taken.species).map(([sp, t]) => (
-                <li key={sp}>{t.display}: {t.count ? `${t.count} lines of the fundamental (1←0), ${range(t.lines)}` : 'no lines found in your spectrum'}</li>
-              ))}
-            </ul>
-            {taken.problems.map((p, i) => <p key={i} className="text-ink-soft">{p}</p>)}
-            <p className="text-ink-soft">Using them replaces what is in those line lists now.</p>
-            <div className="flex gap-2">
-              <button type="button" className="btn" onClick={use} disabled={!Object.values(taken.species).some((t) => t.count > 0)}>Use these lines</button>
-              <button type="button" className="btn-quiet" onClick={() => setTaken(null)}>Discard</button>
-            </div>
+      <TakeLines anyUploaded={anyUploaded} taking={taking} takeError={takeError} taken={taken} onTake={() => void take()} onUse={use} onDiscard={() => setTaken(null)} />
+    </div>
+  );
+}
+
+/** "Take the lines from my spectrum": what was found per isotopologue, to use or discard. */
+function TakeLines({ anyUploaded, taking, takeError, taken, onTake, onUse, onDiscard }: { anyUploaded: boolean; taking: boolean; takeError: string | null; taken: Taken | null; onTake: () => void; onUse: () => void; onDiscard: () => void }) {
+  return (
+    <div className="rounded border border-rule bg-paper-sunk p-3 text-sm">
+      <p>Oscillab can read the lines of your spectrum for you: it finds the lines, assigns branch and J, and puts them in your line lists, where you check them and change what you disagree with.</p>
+      <button type="button" className="btn-quiet mt-2" onClick={onTake} disabled={!anyUploaded || taking}>
+        {taking ? 'Reading your spectrum…' : 'Take the lines from my spectrum'}
+      </button>
+      {takeError && <p className="error-text" role="alert">{takeError}</p>}
+      {taken && (
+        <div className="mt-3 space-y-2" aria-live="polite" data-testid="taken-lines">
+          <ul className="list-disc pl-5">
+            {Object.entries(taken.species).map(([sp, t]) => (
+              <li key={sp}>{t.display}: {t.count ? `${t.count} lines of the fundamental (1←0), ${range(t.lines)}` : 'no lines found in your spectrum'}</li>
+            ))}
+          </ul>
+          {taken.problems.map((p, i) => <p key={i} className="text-ink-soft">{p}</p>)}
+          <p className="text-ink-soft">Using them replaces what is in those line lists now.</p>
+          <div className="flex gap-2">
+            <button type="button" className="btn" onClick={onUse} disabled={!Object.values(taken.species).some((t) => t.count > 0)}>Use these lines</button>
+            <button type="button" className="btn-quiet" onClick={onDiscard}>Discard</button>
           </div>
-        )}
-      </div>
+        </div>
+      )}
     </div>
   );
 }

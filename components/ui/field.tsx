@@ -13,7 +13,9 @@ export function Field({ id, label, hint, error, children, className = '', labelC
   className?: string;
   labelClassName?: string;
 }) {
-  const describedBy = [hint ? `${id}-hint` : null, error ? `${id}-error` : null].filter(Boolean).join(' ') || undefined;
+  // A hint the control already names (one placed elsewhere on the page) stays named.
+  const own = isValidElement(children) ? (children.props['aria-describedby'] as string | undefined) : undefined;
+  const describedBy = [own, hint ? `${id}-hint` : null, error ? `${id}-error` : null].filter(Boolean).join(' ') || undefined;
   const control = isValidElement(children)
     ? cloneElement(children, { id, 'aria-describedby': describedBy, ...(error ? { 'aria-invalid': true } : {}) })
     : children;

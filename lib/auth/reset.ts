@@ -102,7 +102,10 @@ const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
  * Handle "forgot your password?" for an (already validated, lower-cased) address. Resolves with the
  * same message for every address; throws 429 when the address or the client has asked too often.
  */
-export async function requestPasswordReset(email: string, client: string, now = new Date()): Promise<{ message: string }> {
+/** POST /api/password-reset's answer: the same sentence for every address. */
+export type PasswordResetAnswer = { message: string };
+
+export async function requestPasswordReset(email: string, client: string, now = new Date()): Promise<PasswordResetAnswer> {
   const started = Date.now();
   try {
     const allowed = await takeAllowance(

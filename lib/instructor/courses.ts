@@ -2,7 +2,7 @@
  * Courses, cohorts, staff and TA duties: the reads and writes behind the course screens.
  * Callers authorise first (course-manage on the course the row belongs to).
  */
-import { Op } from 'sequelize';
+import { Op, type InferAttributes } from 'sequelize';
 import type { z } from 'zod';
 import { sequelize } from '@/lib/db';
 import { models } from '@/models';
@@ -11,6 +11,8 @@ import { HttpError } from '@/lib/http-error';
 import { audit } from '@/lib/audit';
 import type { cohortCreateSchema, cohortUpdateSchema, staffAddSchema, taAssignmentSchema } from '@/lib/schemas/instructor';
 import { inviteUser } from './invitations';
+import type { Serialized } from '@/lib/serialized';
+import type { Course } from '@/models/course';
 
 export async function courseOr404(courseId: number) {
   const course = await models().Course.findByPk(courseId);
@@ -75,6 +77,9 @@ export async function updateCohort(cohortId: number, courseId: number, data: z.o
   });
 }
 
+/** GET /api/courses/[id]/roster's answer. */
+export type CoursePeople = Serialized<Awaited<ReturnType<typeof coursePeople>>>;
+
 /** Everyone in the course with their roles, cohort and TA duties. */
 export async function coursePeople(courseId: number) {
   const { CourseMembership, User, TaAssignment, Cohort } = models();
@@ -89,6 +94,11 @@ export async function coursePeople(courseId: number) {
     duties: duties.map((d) => ({ id: d.id, cohortId: d.cohortId, taId: d.taId, studentId: d.studentId })),
   };
 }
+
+/** POST /api/courses/[id]/staff's answer. */
+export type StaffAdded = { userId: number; created: boolean; invited: boolean };
+/** POST /api/courses's answer: the course as stored (a model serialises to its columns). */
+export type CourseCreated = { course: Serialized<InferAttributes<Course>> };
 
 /** Add a TA, instructor or lead by e-mail; an unknown address gets an account and an invitation. */
 export async function addStaff(courseId: number, data: z.output<typeof staffAddSchema>, actorId: number) {

@@ -95,6 +95,9 @@ const cache = new Map<string, string>();
 const CACHE_ENTRIES = 200;
 
 /** Markdown + KaTeX → safe HTML. Never throws: what cannot be rendered is shown as a readable notice. */
+/** POST /api/practicals/markdown's answer: the instructions as students will see them. */
+export type InstructionsPreview = { html: string };
+
 export function renderInstructions(markdown: string): string {
   const key = crypto.createHash('sha256').update(markdown).digest('base64');
   const hit = cache.get(key);

@@ -16,6 +16,7 @@ import type { z } from 'zod';
 import { recheckPractical } from '@/lib/submissions/recheck';
 import { BASIS_SHARE, pickBands, toleranceFor, describeBand, type ResolvedBand } from './bands';
 import { log } from '@/lib/log';
+import type { Serialized } from '@/lib/serialized';
 
 export async function practicalOr404(practicalId: number, transaction?: Transaction): Promise<Practical> {
   const practical = await models().Practical.findByPk(practicalId, { transaction });
@@ -202,6 +203,9 @@ function bandFields(quantity: QuantityDefinition, data: BandData) {
 }
 
 /** Add or change a band; with submissions present the caller must decide about re-checking (409 otherwise). */
+/** PUT and DELETE /api/practicals/[id]/bands's answer: the submissions affected and how many were re-checked. */
+export type BandChange = Serialized<Awaited<ReturnType<typeof saveBand>> | Awaited<ReturnType<typeof deleteBand>>>;
+
 export async function saveBand(practical: Practical, data: BandData, actorId: number) {
   const { ToleranceBand } = models();
   const result = await sequelize().transaction(async (transaction) => {
@@ -360,6 +364,13 @@ export async function copyPractical(source: Practical, data: CopyData, actorId: 
     return copy;
   });
 }
+
+/** POST /api/courses/[id]/practicals's and POST /api/practicals/[id]/copy's answer: the new practical as stored. */
+export type PracticalCreated = { practical: PracticalDetail['practical'] };
+/** GET /api/practicals/[id]'s answer (PUT answers the same without `instructionsHtml`). */
+export type PracticalDetail = Serialized<Awaited<ReturnType<typeof practicalDetail>>> & { instructionsHtml: string };
+/** POST /api/practicals/[id]/preview's answer. */
+export type VerdictPreview = Serialized<Awaited<ReturnType<typeof previewVerdict>>>;
 
 /** Everything the practical editor shows. */
 export async function practicalDetail(practical: Practical) {

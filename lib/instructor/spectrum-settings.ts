@@ -11,6 +11,10 @@ import { isotopologuesOf } from '@/lib/spectrum';
 import type { Practical } from '@/models/practical';
 import { moleculeOf } from '@/lib/submissions/spectrum-analysis';
 import { samplesForPractical } from '@/lib/submissions/spectra';
+import type { Serialized } from '@/lib/serialized';
+
+/** GET and PUT /api/practicals/[id]/spectrum-settings's answer. */
+export type SpectrumSettingsView = Serialized<Awaited<ReturnType<typeof spectrumSettings>>>;
 
 export async function spectrumSettings(practical: Practical) {
   return {

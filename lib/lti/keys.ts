@@ -44,7 +44,10 @@ export async function activeToolKey(): Promise<{ kid: string; key: CryptoKey }> 
 }
 
 /** A new active key; the previous one is retired (still published for the grace period). */
-export async function rotateToolKey(actorId: number | null): Promise<{ kid: string; retired: string[] }> {
+/** POST /api/lti/keys's answer. */
+export type KeyRotated = { kid: string; retired: string[] };
+
+export async function rotateToolKey(actorId: number | null): Promise<KeyRotated> {
   const { LtiToolKey } = models();
   return sequelize().transaction(async (t) => {
     const old = await LtiToolKey.findAll({ where: { status: 'active' }, transaction: t });

@@ -184,6 +184,9 @@ export async function resendScore(id: number): Promise<void> {
 export type ScoreDelivery = { id: number; platformCourse: string; status: string; attempts: number; scoreGiven: number; scoreMaximum: number; lastError: string | null; sentAt: string | null; createdAt: string };
 
 /** The score deliveries of one submission, for the marking page (beside the e-mail's). */
+/** GET /api/lti/submissions/[id]/scores's answer. */
+export type ScoreDeliveriesAnswer = { deliveries: ScoreDelivery[] };
+
 export async function scoreDeliveries(submissionId: number): Promise<ScoreDelivery[]> {
   const { LtiScoreOutbox, LtiContext } = models();
   const rows = await LtiScoreOutbox.findAll({ where: { submissionId }, order: [['id', 'ASC']] });

@@ -11,6 +11,7 @@ import { HttpError } from '@/lib/http';
 import { models } from '@/models';
 import { claimVersion } from './marks';
 import { totalAfterPenalty } from './totals';
+import type { Serialized } from '@/lib/serialized';
 
 export const DEFAULT_SHARE = 0.1;
 
@@ -20,6 +21,9 @@ const rank = (id: number) => crypto.createHash('sha256').update(`moderation:${id
 export function sampleSize(n: number, share = DEFAULT_SHARE): number {
   return n === 0 ? 0 : Math.max(1, Math.ceil(n * share - 1e-9));
 }
+
+/** GET /api/moderation's answer. */
+export type ModerationSampleView = { markers: Serialized<Awaited<ReturnType<typeof moderationSample>>> };
 
 export async function moderationSample(courseId: number, share = DEFAULT_SHARE) {
   const { Submission, Practical, User, Cohort, Moderation, Mark } = models();

@@ -28,6 +28,10 @@ export function appUrl(): string {
 }
 
 export type ReleaseOutcome = { submissionId: number; ok: boolean; message?: string; feedbackDocumentId?: number };
+/** POST /api/release's answer (the last line when it streams). */
+export type ReleaseSummary = { results: ReleaseOutcome[]; released: number };
+/** One line of POST /api/release's stream per submission, as it is released. */
+export type ReleaseProgress = { done: number; total: number; submissionId: number; ok: boolean };
 
 /** Where the time of a release went (ms, summed over submissions; wall is the whole batch). */
 export type ReleaseTimings = { load: number; render: number; commit: number; wall: number };

@@ -1,6 +1,6 @@
 /**
- * How a plot's markers look, written once for every renderer of a PlotModel (the SVG string in
- * plot.ts, a React component, the PDF drawing in lib/pdf/draw-plot.ts): the shape each group
+ * How a plot's markers look, written once for both renderers of a PlotModel
+ * (components/plots/plot-figure.tsx on screen, lib/pdf/draw-plot.ts in the PDF): the shape each group
  * is drawn with, so branches differ without colour, the marker size, the colours, and the path
  * of each shape.
  */

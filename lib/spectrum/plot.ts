@@ -1,12 +1,13 @@
 /**
- * Plots as plain data, then an SVG renderer. The model holds only numbers (pixels from
- * the top-left corner) and strings, so the PDF builder can draw the same plot with pdf-lib.
+ * Plots as plain data. The model holds only numbers (pixels from the top-left corner) and
+ * strings; components/plots/plot-figure.tsx draws it on screen and lib/pdf/draw-plot.ts in the
+ * feedback PDF, both with the marker styles of ./plot-style.ts.
  *
  * Band plots follow the usual infrared practice: wavenumber decreases from left to right.
  */
 import type { LinePeakComparison, Peak, ReportedLine } from './peaks';
 import { toAbsorbance } from './peaks';
-import { isOutlined, MARKER_SHAPE, MARKER_SIZE, markerPath, plotColourCss, type MarkerGroup, type MarkerShape } from './plot-style';
+import { MARKER_SHAPE, MARKER_SIZE, type MarkerGroup, type MarkerShape } from './plot-style';
 import type { Spectrum } from './types';
 
 export type { MarkerGroup, MarkerShape } from './plot-style';
@@ -465,110 +466,4 @@ export function residualPlotModel(residuals: Residual[], options: { width?: numb
   const rms = residuals.length ? Math.sqrt(residuals.reduce((s, r) => s + r.residual ** 2, 0) / residuals.length) : 0;
   const description = `Residuals of ${residuals.length} lines against m, largest ${absMax.toFixed(3)} cm⁻¹, root mean square ${rms.toFixed(3)} cm⁻¹.`;
   return { kind: 'residual', width, height, area, xAxis, yAxis, curve: [], markers, zeroLine: round2(py(0)), legend, description };
-}
-
-export interface PlotColours {
-  curve: string;
-  axis: string;
-  grid: string;
-  P: string;
-  R: string;
-  unassigned: string;
-  peak: string;
-}
-
-export interface RenderSvgOptions {
-  title: string;
-  ariaLabel?: string;
-  /** Colours as CSS values; defaults use CSS variables with WCAG-AA-contrast fallbacks on white. */
-  colours?: Partial<PlotColours>;
-  fontFamily?: string;
-  /** Prefix for element ids, unique per page. */
-  idPrefix?: string;
-}
-
-const DEFAULT_COLOURS: PlotColours = {
-  curve: 'currentColor',
-  axis: 'currentColor',
-  grid: plotColourCss('grid'),
-  P: plotColourCss('P'),
-  R: plotColourCss('R'),
-  unassigned: plotColourCss('unassigned'),
-  peak: plotColourCss('peak'),
-};
-
-function esc(s: string): string {
-  return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
-}
-
-function markerStyle(m: { group: MarkerGroup; fill: 'solid' | 'hollow'; shape: MarkerShape }, c: PlotColours): string {
-  const colour = c[m.group];
-  if (m.shape === 'tick') return `stroke:${colour};stroke-width:1.5;fill:none`;
-  return !isOutlined(m) ? `fill:${colour};stroke:${colour};stroke-width:1` : `fill:none;stroke:${colour};stroke-width:1.5`;
-}
-
-/** An accessible SVG string: role="img", a <title> and <desc>, shapes that differ without colour. */
-export function renderSvg(model: PlotModel, options: RenderSvgOptions): string {
-  const c: PlotColours = { ...DEFAULT_COLOURS, ...(options.colours ?? {}) };
-  const id = (options.idPrefix ?? 'oscillab-plot').replace(/[^A-Za-z0-9_-]/g, '');
-  const font = options.fontFamily ?? 'inherit';
-  const { area, xAxis, yAxis } = model;
-  const bottom = area.top + area.height;
-  const right = area.left + area.width;
-  const o: string[] = [];
-  o.push(
-    `<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 ${model.width} ${model.height}" width="${model.width}" height="${model.height}" role="img" aria-labelledby="${id}-title" aria-describedby="${id}-desc"${options.ariaLabel ? ` aria-label="${esc(options.ariaLabel)}"` : ''} class="oscillab-plot oscillab-plot-${model.kind}" style="font-family:${esc(font)};font-size:11px">`,
-    `<title id="${id}-title">${esc(options.title)}</title>`,
-    `<desc id="${id}-desc">${esc(model.description)}</desc>`,
-  );
-  // Grid and axes.
-  o.push(`<g class="grid" style="stroke:${c.grid};stroke-width:0.5" aria-hidden="true">`);
-  for (const t of xAxis.ticks) o.push(`<line x1="${t.pos}" y1="${area.top}" x2="${t.pos}" y2="${bottom}"/>`);
-  for (const t of yAxis.ticks) o.push(`<line x1="${area.left}" y1="${t.pos}" x2="${right}" y2="${t.pos}"/>`);
-  o.push('</g>');
-  o.push(`<g class="axes" style="stroke:${c.axis};fill:none;stroke-width:1" aria-hidden="true">`);
-  o.push(`<rect x="${area.left}" y="${area.top}" width="${area.width}" height="${area.height}"/>`);
-  for (const t of xAxis.ticks) o.push(`<line x1="${t.pos}" y1="${bottom}" x2="${t.pos}" y2="${bottom + 5}"/>`);
-  for (const t of yAxis.ticks) o.push(`<line x1="${area.left - 5}" y1="${t.pos}" x2="${area.left}" y2="${t.pos}"/>`);
-  o.push('</g>');
-  o.push(`<g class="tick-labels" style="fill:${c.axis}" aria-hidden="true">`);
-  for (const t of xAxis.ticks) o.push(`<text x="${t.pos}" y="${bottom + 17}" text-anchor="middle" style="font-variant-numeric:tabular-nums">${esc(t.label)}</text>`);
-  for (const t of yAxis.ticks) o.push(`<text x="${area.left - 8}" y="${t.pos + 4}" text-anchor="end" style="font-variant-numeric:tabular-nums">${esc(t.label)}</text>`);
-  o.push(`<text x="${round2(area.left + area.width / 2)}" y="${bottom + 36}" text-anchor="middle" class="axis-label">${esc(xAxis.label)}</text>`);
-  const ylx = 16;
-  const yly = round2(area.top + area.height / 2);
-  o.push(`<text x="${ylx}" y="${yly}" text-anchor="middle" transform="rotate(-90 ${ylx} ${yly})" class="axis-label">${esc(yAxis.label)}</text>`);
-  o.push('</g>');
-  if (model.zeroLine !== null) {
-    o.push(`<line class="zero-line" x1="${area.left}" y1="${model.zeroLine}" x2="${right}" y2="${model.zeroLine}" style="stroke:${c.axis};stroke-dasharray:4 3" aria-hidden="true"/>`);
-  }
-  if (model.curve.length > 1) {
-    o.push(`<polyline class="spectrum" points="${model.curve.map(([x, y]) => `${x},${y}`).join(' ')}" style="fill:none;stroke:${c.curve};stroke-width:1;stroke-linejoin:round" aria-hidden="true"/>`);
-  }
-  o.push('<g class="markers">');
-  for (const m of model.markers) {
-    const colour = c[m.group];
-    o.push(`<g class="marker marker-${m.group}${m.fill === 'hollow' ? ' marker-unmatched' : ''}" data-value="${m.value}"${m.label ? ` data-label="${esc(m.label)}"` : ''}>`);
-    o.push(`<title>${esc(m.note)}</title>`);
-    if (m.guide) {
-      o.push(`<line x1="${m.x}" y1="${m.guide.y1}" x2="${m.x}" y2="${m.guide.y2}" style="stroke:${colour};stroke-width:0.75;${m.fill === 'hollow' ? 'stroke-dasharray:3 2;' : ''}opacity:0.8"/>`);
-    }
-    o.push(`<path d="${markerPath(m.shape, m.x, m.y)}" style="${markerStyle(m, c)}"/>`);
-    if (m.label && m.labelX !== undefined && m.labelY !== undefined) {
-      const angle = -(m.labelAngle ?? 0);
-      o.push(`<text x="${m.labelX}" y="${m.labelY}" transform="rotate(${angle} ${m.labelX} ${m.labelY})" style="fill:${colour};font-size:10px">${esc(m.label)}</text>`);
-    }
-    o.push('</g>');
-  }
-  o.push('</g>');
-  if (model.legend.length > 0) {
-    o.push('<g class="legend" aria-hidden="true">');
-    for (const l of model.legend) {
-      o.push(`<path d="${markerPath(l.shape, l.x + 5, l.y - 4)}" style="${markerStyle(l, c)}"/>`);
-      o.push(`<text x="${l.x + 14}" y="${l.y}" style="fill:${c.axis}">${esc(l.text)}</text>`);
-    }
-    o.push('</g>');
-  }
-  o.push('</svg>');
-  return o.join('\n');
 }

@@ -25,6 +25,7 @@ import type { Submission } from '@/models/submission';
 import type { Draft } from '@/lib/schemas/submission';
 import { checkStoredSubmission, type TypedLine, type TypedValue } from './check';
 export { readDraft } from './draft';
+import type { StudentAttemptView } from './view';
 
 const DAY_MS = 86_400_000;
 
@@ -81,6 +82,11 @@ function trimDraft(draft: Draft, practical: Pick<Practical, 'species'>): Draft {
  * no read of the old draft). Only the first save inserts the row; if two tabs insert at once, the
  * unique index (practicalId, studentId, attempt) lets one win and the other updates it.
  */
+/** PUT /api/submissions/draft's answer. */
+export type DraftSaved = { id: number; version: number; savedAt: string };
+/** POST /api/submissions/[id]/submit's answer: the attempt's result and the draft's new version. */
+export type SubmitAnswer = { result: StudentAttemptView; draftVersion: number };
+
 export async function saveDraft(actor: Actor, practical: Pick<Practical, 'id' | 'species'>, cohortId: number, draftIn: Draft): Promise<{ id: number; version: number; updatedAt: Date }> {
   const draft = trimDraft(draftIn, practical);
   await assertOwnUploads(draft, actor.id);

@@ -308,6 +308,13 @@ export function bandsFound(analyses: StoredAnalysis[]): string[] {
 }
 
 /** The fundamental's assigned lines per isotopologue of the practical (the line list of the form is the fundamental's). */
+/** GET /api/submissions/[id]/spectrum-lines's answer: per isotopologue the lines found, as line-list text too. */
+export type SpectrumLinesAnswer = {
+  species: Record<string, { display: string; count: number; text: string; lines: { branch: 'P' | 'R'; J: number; wavenumber: number }[] }>;
+  bands: string[];
+  problems: string[];
+};
+
 export function linesForSpecies(analyses: StoredAnalysis[], species: string[]): Record<string, { branch: 'P' | 'R'; J: number; wavenumber: number }[]> {
   const out: Record<string, { branch: 'P' | 'R'; J: number; wavenumber: number }[]> = {};
   for (const sp of species) {

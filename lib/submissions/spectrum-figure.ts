@@ -5,7 +5,7 @@
 import { models } from '@/models';
 import type { Practical } from '@/models/practical';
 import type { Submission } from '@/models/submission';
-import { bandPlotModel, compareLinesToPeaks, pickPeaks, renderSvg, toAbsorbance, type Peak, type Spectrum } from '@/lib/spectrum';
+import { bandPlotModel, compareLinesToPeaks, pickPeaks, toAbsorbance, type Peak, type PlotModel, type Spectrum } from '@/lib/spectrum';
 import { compareWithSpectrum, loadSpectrum } from './check';
 import { readDraft } from './service';
 import { spectraOfSubmission } from './spectra';
@@ -16,7 +16,8 @@ type FigureLine = { species: string; branch: 'P' | 'R' | null; J: number | null;
 export type SpectrumFigure =
   | {
       ok: true;
-      svg: string;
+      /** The plot model (drawn by components/plots/plot-figure.tsx), its title and the prefix of its ids. */
+      plot: { model: PlotModel; title: string; idPrefix: string };
       description: string;
       summary: ReturnType<typeof compareWithSpectrum>;
       /** The spectra the practical takes, and which have been uploaded. */
@@ -28,6 +29,9 @@ export type SpectrumFigure =
       perBand: BandMatch[];
     }
   | { ok: false; status: 404 | 422; message: string };
+
+/** GET /api/submissions/[id]/spectrum's answer. */
+export type SpectrumFigureAnswer = Pick<Extract<SpectrumFigure, { ok: true }>, 'plot' | 'description' | 'summary' | 'samples' | 'sample' | 'bands' | 'perBand'>;
 
 export async function spectrumFigure(submission: Submission, practical: Practical, audience: 'student' | 'staff' = 'student', sampleKey?: string): Promise<SpectrumFigure> {
   const { LineAssignment } = models();
@@ -50,10 +54,9 @@ export async function spectrumFigure(submission: Submission, practical: Practica
   const comparison = compareLinesToPeaks(reported, peaks);
   const model = bandPlotModel({ spectrum: loaded.spectrum, lines: reported, peaks, comparison });
   const whose = audience === 'student' ? 'your' : "the student's";
-  const svg = renderSvg(model, { title: `Spectrum ${upload.originalName} with ${whose} ${lines.length} lines`, idPrefix: `spec-${submission.id}` });
   return {
     ok: true,
-    svg,
+    plot: { model, title: `Spectrum ${upload.originalName} with ${whose} ${lines.length} lines`, idPrefix: `spec-${submission.id}` },
     description: model.description,
     summary: compareWithSpectrum(upload, lines),
     samples: spectra.map((x) => ({ key: x.sample.key, label: x.sample.label, uploaded: x.upload?.originalName ?? null })),

@@ -201,6 +201,9 @@ export interface AcceptedFile {
  * The content is read in a worker thread with its own memory and time limits (lib/spectrum/worker.ts),
  * so no file can stall or end the process that serves everyone else.
  */
+/** POST /api/uploads's answer. */
+export type UploadAccepted = { id: number; kind: string; sample: string | null; originalName: string; size: number; version: number; warnings: string[] };
+
 export async function acceptFile(file: ReceivedFile, kind: UploadKind): Promise<AcceptedFile> {
   const limits = uploadLimits();
   const originalName = checkOriginalName(file.originalName);

@@ -23,6 +23,7 @@ import { loadMarkingView } from '@/lib/marking/view';
 import { feedbackInputFromView } from '@/lib/marking/feedback-input';
 import { buildFeedbackPdf } from '@/lib/pdf/feedback';
 import type { CheckSummary } from '@/lib/submissions/check';
+import type { SpectrumFigureAnswer } from '@/lib/submissions/spectrum-figure';
 import { bandLines, expectedBand, record, type Line } from '../helpers/diatomic-lines';
 
 let world: World;
@@ -112,6 +113,21 @@ describe('one spectrum holding two bands (HCl and DCl in one cell)', () => {
     expect(messages.some((m: string) => /^D³⁵Cl fundamental \(1←0\): 19 of 19 of your lines match/.test(m))).toBe(true);
     expect(f.body.bands.some((b: string) => /^H³⁵Cl fundamental \(1←0\): \d+ lines found and assigned\.$/.test(b))).toBe(true);
     expect(f.body.bands.some((b: string) => /^D³⁷Cl fundamental \(1←0\): \d+ lines found and assigned\.$/.test(b))).toBe(true);
+  });
+
+  it('answers the plot model the screen draws: one marker per student line, a curve, a title naming the file', async () => {
+    const f = await figure(draftId);
+    expect(f.status).toBe(200);
+    expect(f.body.svg).toBeUndefined();
+    const { model, title, idPrefix } = f.body.plot as SpectrumFigureAnswer['plot'];
+    expect(title).toBe('Spectrum cell.jdx with your 38 lines');
+    expect(idPrefix).toBe(`spec-${draftId}`);
+    expect(model.kind).toBe('band');
+    expect(model.curve.length).toBeGreaterThan(100);
+    const lines = model.markers.filter((m) => m.group === 'P' || m.group === 'R');
+    expect(lines).toHaveLength(38); // 19 + 19 lines of J ≤ 9 sent above
+    expect(lines.every((m) => m.fill === 'solid')).toBe(true); // every line lies on a synthetic peak
+    expect(model.description).toBe(f.body.description);
   });
 
   it('gives the lines it assigned, per isotopologue, for the student to take into the form', async () => {

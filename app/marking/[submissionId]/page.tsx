@@ -1,3 +1,4 @@
+import Link from 'next/link';
 import { Suspense } from 'react';
 import { notFound } from 'next/navigation';
 import { authorizePage } from '@/lib/authz';
@@ -51,9 +52,9 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
         title={`${view.student.name} — ${view.practical.title}`}
         lead={`${view.course.code} · ${cohortName(view.cohort)} · attempt ${view.submission.attempt} · submitted ${view.submission.submittedAt ? new Date(view.submission.submittedAt).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' }) : '—'}${view.submission.daysLate ? ` · ${view.submission.daysLate} day(s) late, penalty ${view.submission.latePenalty} %` : ''}`}
       >
-        <a className="btn-quiet" href="/marking">Back to the queue</a>
+        <Link className="btn-quiet" href="/marking">Back to the queue</Link>
         <a className="btn-quiet" href={`/api/marking/${id}/preview`} target="_blank" rel="noopener">Feedback PDF</a>
-        {next && <a className="btn-quiet" href={`/marking/${next.id}`} data-testid="next-submission">Next to mark: {next.student} →</a>}
+        {next && <Link className="btn-quiet" href={`/marking/${next.id}`} data-testid="next-submission">Next to mark: {next.student} →</Link>}
       </PageHeader>
 
       <section aria-labelledby="values-heading" className="card mb-6">

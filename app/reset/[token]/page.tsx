@@ -1,3 +1,4 @@
+import Link from 'next/link';
 import type { Metadata } from 'next';
 import { resetTokenState } from '@/lib/auth/reset';
 import { WelcomeForm } from '@/components/instructor/welcome-form';
@@ -26,7 +27,7 @@ export default async function ResetPasswordPage({ params }: { params: Promise<{ 
         ) : (
           <>
             <p role="alert" className="rounded border border-danger bg-danger-soft px-3 py-2 text-sm text-danger">{state.message}</p>
-            <p className="hint mt-4"><a href="/reset">Ask for a new link</a> or <a href="/signin">go to sign in</a>.</p>
+            <p className="hint mt-4"><Link href="/reset">Ask for a new link</Link> or <Link href="/signin">go to sign in</Link>.</p>
           </>
         )}
       </section>

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { simulateLineList } from '@/lib/grading';
 import { compareLinesToPeaks, pickPeaks } from '@/lib/spectrum/peaks';
-import { bandPlotModel, niceTicks, renderSvg, residualPlotModel } from '@/lib/spectrum/plot';
+import { bandPlotModel, niceTicks, residualPlotModel } from '@/lib/spectrum/plot';
 import { synthesizeSpectrum } from '@/lib/spectrum/synthesize';
 
 // Positions from lib/grading simulateLineList (published constants, see lib/grading/reference.ts).
@@ -87,39 +87,5 @@ describe('residualPlotModel', () => {
     expect(m.markers[2].note).toMatch(/R\(0\)/);
     expect(m.xAxis.label).toBe('Running index m');
     expect(m.yAxis.label).toBe('Residual / cm⁻¹');
-  });
-});
-
-describe('renderSvg', () => {
-  const model = bandPlotModel({ spectrum, lines: [...reported, fake], peaks, comparison });
-  const svg = renderSvg(model, { title: 'H³⁵Cl band with reported lines <draft>', ariaLabel: 'Band plot', idPrefix: 'p1' });
-
-  it('is an accessible image with a <title> and <desc>', () => {
-    expect(svg.startsWith('<svg xmlns="http://www.w3.org/2000/svg"')).toBe(true);
-    expect(svg).toContain('role="img"');
-    expect(svg).toContain('aria-labelledby="p1-title"');
-    expect(svg).toContain('<title id="p1-title">H³⁵Cl band with reported lines &lt;draft&gt;</title>');
-    expect(svg).toMatch(/<desc id="p1-desc">Absorbance from \d+ to \d+ cm⁻¹/);
-    expect(svg.trim().endsWith('</svg>')).toBe(true);
-  });
-
-  it('contains the line markers with their labels, shapes that differ, and no colour-only cue', () => {
-    expect(svg).toContain('>P(3)</text>');
-    expect(svg).toContain('>R(0)</text>');
-    expect(svg).toContain('data-label="P(3)"');
-    const pPath = /class="marker marker-P"[^]*?<path d="([^"]+)"/.exec(svg)![1];
-    const rPath = /class="marker marker-R"[^]*?<path d="([^"]+)"/.exec(svg)![1];
-    expect(pPath).toMatch(/H/); // triangle: flat top edge
-    expect(rPath).toMatch(/a3\.5 3\.5/); // circle: two arcs
-    expect(svg).toContain('marker-unmatched');
-    expect(svg).toContain('hollow marker: no peak within tolerance');
-    expect(svg).toContain('stroke:currentColor');
-  });
-
-  it('takes colours from options and escapes every text', () => {
-    const custom = renderSvg(model, { title: 'a & b', colours: { P: '#112233' } });
-    expect(custom).toContain('fill:#112233');
-    expect(custom).toContain('<title id="oscillab-plot-title">a &amp; b</title>');
-    expect(custom).not.toMatch(/<title[^>]*>a & b/);
   });
 });
