@@ -18,7 +18,10 @@ const config = [
       // `catch {}` is how a best-effort step says "failure here changes nothing"; other empty blocks are leftovers.
       'no-empty': ['error', { allowEmptyCatch: true }],
       // An unused name is a leftover; a leading underscore says "unused on purpose".
-      '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_', caughtErrors: 'none', ignoreRestSiblings: true }],
+      '@typescript-eslint/no-unused-vars': [
+        'error',
+        { argsIgnorePattern: '^_', varsIgnorePattern: '^_', caughtErrors: 'none', ignoreRestSiblings: true },
+      ],
     },
     linterOptions: { reportUnusedDisableDirectives: 'error' },
   },

@@ -33,7 +33,10 @@ const securityHeaders = [
  */
 const userFileHeaders = (framedByThisSite) => [
   { key: 'X-Frame-Options', value: framedByThisSite ? 'SAMEORIGIN' : 'DENY' },
-  { key: 'Content-Security-Policy', value: `sandbox; default-src 'none'; object-src 'none'; frame-ancestors ${framedByThisSite ? "'self'" : "'none'"}` },
+  {
+    key: 'Content-Security-Policy',
+    value: `sandbox; default-src 'none'; object-src 'none'; frame-ancestors ${framedByThisSite ? "'self'" : "'none'"}`,
+  },
   { key: 'X-Content-Type-Options', value: 'nosniff' },
   { key: 'Cross-Origin-Resource-Policy', value: 'same-origin' },
 ];
@@ -76,7 +79,10 @@ const nextConfig = {
       ...USER_FILE_ROUTES.map(({ source, framed }) => ({ source, headers: userFileHeaders(framed) })),
       { source: '/api/lti/login', headers: [{ key: 'Content-Security-Policy', value: ltiPolicy('*', "'self'") }] },
       { source: '/api/lti/launch', headers: [{ key: 'Content-Security-Policy', value: ltiPolicy('*', "'self'") }] },
-      { source: '/api/lti/deep-link', headers: [{ key: 'Content-Security-Policy', value: ltiPolicy("'none'", "'self' https: http://localhost:* http://127.0.0.1:*") }] },
+      {
+        source: '/api/lti/deep-link',
+        headers: [{ key: 'Content-Security-Policy', value: ltiPolicy("'none'", "'self' https: http://localhost:* http://127.0.0.1:*") }],
+      },
     ];
   },
 };

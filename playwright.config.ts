@@ -22,7 +22,15 @@ export default defineConfig({
     screenshot: 'only-on-failure',
     launchOptions: {
       executablePath: process.env.CHROMIUM_PATH || '/usr/bin/chromium',
-      args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+      args: [
+        '--no-sandbox',
+        '--disable-gpu',
+        '--disable-quic',
+        '--no-first-run',
+        '--disable-background-networking',
+        '--disable-component-update',
+        '--disable-sync',
+      ],
     },
   },
   webServer: [
@@ -42,7 +50,10 @@ export default defineConfig({
       url: `http://localhost:${securePort}/signin`,
       reuseExistingServer: false,
       timeout: 120_000,
-      env: { ...process.env, NEXTAUTH_URL: `https://localhost:${securePort}`, OUTBOX_WORKER: 'off', UPLOAD_IDLE_MS: '2000' } as Record<string, string>,
+      env: { ...process.env, NEXTAUTH_URL: `https://localhost:${securePort}`, OUTBOX_WORKER: 'off', UPLOAD_IDLE_MS: '2000' } as Record<
+        string,
+        string
+      >,
     },
     {
       // A learning platform on loopback in its own process, for launches into the first server.
@@ -50,7 +61,12 @@ export default defineConfig({
       url: `http://127.0.0.1:${platformPort}/health`,
       reuseExistingServer: false,
       timeout: 60_000,
-      env: { ...process.env, FAKE_PLATFORM_PORT: String(platformPort), OSCILLAB_URL: `http://localhost:${port}`, FAKE_PLATFORM_STATE: '' } as Record<string, string>,
+      env: {
+        ...process.env,
+        FAKE_PLATFORM_PORT: String(platformPort),
+        OSCILLAB_URL: `http://localhost:${port}`,
+        FAKE_PLATFORM_STATE: '',
+      } as Record<string, string>,
     },
   ],
 });

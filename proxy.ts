@@ -16,7 +16,8 @@ export function proxy(request: NextRequest) {
     url.pathname = '/signin';
     url.search = '';
     // Back to the page asked for after signing in (a link in an e-mail, say); only same-site paths.
-    if (pathname !== '/' && safeNextPath(pathname + request.nextUrl.search)) url.searchParams.set('next', pathname + request.nextUrl.search);
+    if (pathname !== '/' && safeNextPath(pathname + request.nextUrl.search))
+      url.searchParams.set('next', pathname + request.nextUrl.search);
     return NextResponse.redirect(url);
   }
   return NextResponse.next();

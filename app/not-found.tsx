@@ -11,7 +11,9 @@ export default function NotFound() {
         There is no page at this address. The link may be out of date, or the practical or submission it pointed to no longer exists.
       </p>
       <p className="mt-4">
-        <Link className="btn-quiet" href="/">Your home page</Link>
+        <Link className="btn-quiet" href="/">
+          Your home page
+        </Link>
       </p>
     </div>
   );

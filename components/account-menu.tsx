@@ -6,7 +6,11 @@
 export function AccountMenu({ name, email }: { name: string; email: string }) {
   return (
     <details className="sm:relative">
-      <summary className="cursor-pointer list-none rounded px-1 font-bold text-ink-soft hover:text-accent" data-testid="signed-in-as" aria-label={`Account menu for ${name}`}>
+      <summary
+        className="cursor-pointer list-none rounded px-1 font-bold text-ink-soft hover:text-accent"
+        data-testid="signed-in-as"
+        aria-label={`Account menu for ${name}`}
+      >
         {name} <span aria-hidden="true">▾</span>
       </summary>
       <div className="absolute inset-x-4 z-20 mt-2 rounded border border-rule bg-paper-raised p-3 shadow-card sm:inset-x-auto sm:right-0 sm:w-72">

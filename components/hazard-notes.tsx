@@ -12,7 +12,11 @@ export function HazardNotes({ notes, headingLevel = 2 }: { notes: string; headin
       <Heading id="hazard-notes-heading" className="mb-1 flex items-center gap-2">
         <span aria-hidden="true">⚠</span> Hazard notes
       </Heading>
-      {text ? <p className="whitespace-pre-line">{text}</p> : <p className="italic">The instructor has not written hazard notes for this practical.</p>}
+      {text ? (
+        <p className="whitespace-pre-line">{text}</p>
+      ) : (
+        <p className="italic">The instructor has not written hazard notes for this practical.</p>
+      )}
       <p className="mt-2 text-sm font-bold">{SAFETY_CAUTION}</p>
     </section>
   );

@@ -31,7 +31,13 @@ export function SignInForm({ initialError, next = '/' }: { initialError?: string
         <input type="email" autoComplete="username" className="field" {...register('email')} aria-invalid={!!formState.errors.email} />
       </Field>
       <Field id="password" label="Password" error={formState.errors.password?.message}>
-        <input type="password" autoComplete="current-password" className="field" {...register('password')} aria-invalid={!!formState.errors.password} />
+        <input
+          type="password"
+          autoComplete="current-password"
+          className="field"
+          {...register('password')}
+          aria-invalid={!!formState.errors.password}
+        />
       </Field>
       <button type="submit" className="btn w-full justify-center" disabled={formState.isSubmitting}>
         {formState.isSubmitting ? 'Signing in…' : 'Sign in'}

@@ -95,7 +95,11 @@ export function useApi<T>(url: string | null, config?: SWRConfiguration<T, ApiEr
  * other line is the answer. A server that does not stream (or refuses) is answered as by `call`;
  * a stream that ends without an answer is an ApiError with the `incomplete` message.
  */
-export async function postStream<T, P>(url: string, body: unknown, stream: { isProgress: (line: unknown) => line is P; onProgress: (line: P) => void; incomplete: string }): Promise<ApiResult<T>> {
+export async function postStream<T, P>(
+  url: string,
+  body: unknown,
+  stream: { isProgress: (line: unknown) => line is P; onProgress: (line: P) => void; incomplete: string },
+): Promise<ApiResult<T>> {
   let res: Response;
   try {
     res = await fetch(url, init('POST', body, 'application/x-ndjson'));
@@ -103,7 +107,8 @@ export async function postStream<T, P>(url: string, body: unknown, stream: { isP
     return { ok: false, status: 0, error: unreachable() };
   }
   if (!res.ok) return { ok: false, status: res.status, error: await refusal(res) };
-  if (!res.body || !(res.headers.get('content-type') ?? '').includes('ndjson')) return { ok: true, status: res.status, data: (await res.json()) as T };
+  if (!res.body || !(res.headers.get('content-type') ?? '').includes('ndjson'))
+    return { ok: true, status: res.status, data: (await res.json()) as T };
   const reader = res.body.pipeThrough(new TextDecoderStream()).getReader();
   let buffered = '';
   let answer: unknown = undefined;

@@ -6,8 +6,5 @@ export async function audit(
   entry: { actorId: number | null; action: string; entityType: string; entityId: number | null; before?: unknown; after?: unknown },
   transaction?: Transaction,
 ): Promise<void> {
-  await models().AuditEntry.create(
-    { ...entry, before: entry.before ?? null, after: entry.after ?? null },
-    { transaction },
-  );
+  await models().AuditEntry.create({ ...entry, before: entry.before ?? null, after: entry.after ?? null }, { transaction });
 }

@@ -30,11 +30,18 @@ function header(headers: HeaderBag, name: string): string | undefined {
 }
 
 /** An address as one spelling: IPv4 written as IPv6-mapped (::ffff:127.0.0.1) counts as the IPv4 address. */
-const canonical = (address: string) => address.trim().replace(/^::ffff:(?=\d+\.\d+\.\d+\.\d+$)/i, '').toLowerCase();
+const canonical = (address: string) =>
+  address
+    .trim()
+    .replace(/^::ffff:(?=\d+\.\d+\.\d+\.\d+$)/i, '')
+    .toLowerCase();
 
 /** The client's address as the trusted part of X-Forwarded-For says; 'local' when there is none (a call from inside). */
 export function clientAddress(headers: HeaderBag): string {
-  const hops = (header(headers, 'x-forwarded-for') ?? '').split(',').map((h) => h.trim()).filter(Boolean);
+  const hops = (header(headers, 'x-forwarded-for') ?? '')
+    .split(',')
+    .map((h) => h.trim())
+    .filter(Boolean);
   if (!hops.length) return 'local';
   const at = Math.max(0, hops.length - 1 - trustedProxies());
   return canonical(hops[at]).slice(0, 100) || 'local';
@@ -64,7 +71,10 @@ export function normaliseForwardedHeaders(req: IncomingMessage): void {
   }
   if (!peer) return;
   const before = req.headers['x-forwarded-for'];
-  const list = (Array.isArray(before) ? before.join(',') : before ?? '').split(',').map((h) => h.trim()).filter(Boolean);
+  const list = (Array.isArray(before) ? before.join(',') : (before ?? ''))
+    .split(',')
+    .map((h) => h.trim())
+    .filter(Boolean);
   list.push(canonical(peer));
   // Only the entries the trusted proxies are answerable for (and one more: the client) matter.
   req.headers['x-forwarded-for'] = list.slice(-(trusted + 1)).join(', ');
@@ -78,7 +88,9 @@ export async function guardForwardedHeaders(): Promise<void> {
   installed = true;
   const http = await import('node:http');
   const https = await import('node:https');
-  for (const proto of [http.Server.prototype, https.Server.prototype] as { emit: (event: string | symbol, ...args: unknown[]) => boolean }[]) {
+  for (const proto of [http.Server.prototype, https.Server.prototype] as {
+    emit: (event: string | symbol, ...args: unknown[]) => boolean;
+  }[]) {
     const emit = proto.emit;
     proto.emit = function (this: unknown, event: string | symbol, ...args: unknown[]) {
       if (event === 'request' && args[0]) normaliseForwardedHeaders(args[0] as IncomingMessage);

@@ -26,7 +26,10 @@ export function joinUnit(text: string, unit: string | null | undefined): string 
  * significant figures (never fewer than `digits` decimals), larger ones `digits` decimals; a
  * value that rounds to nothing is "0 %". `signed` writes + before positive values.
  */
-export function percentText(v: number | null | undefined, { digits = 2, signed = false }: { digits?: number; signed?: boolean } = {}): string {
+export function percentText(
+  v: number | null | undefined,
+  { digits = 2, signed = false }: { digits?: number; signed?: boolean } = {},
+): string {
   if (v === null || v === undefined || !Number.isFinite(v)) return '—';
   const abs = Math.abs(v);
   let text: string;
@@ -90,8 +93,14 @@ export function expectedToPrecision(valueSI: number | null | undefined, key: str
 export function publishedSource(source: string | null | undefined): string {
   if (!source) return '';
   let s = source;
-  s = s.replace(/AME2020 atomic masses \/ NIST Atomic Weights and Isotopic Compositions(, via npm [\w-]+)?/g, 'AME2020 atomic mass evaluation (Wang et al., Chin. Phys. C 45, 030003, 2021)');
-  s = s.replace(/Huber & Herzberg \(1979\) via NIST Chemistry WebBook/g, 'Huber & Herzberg, Constants of Diatomic Molecules (1979), NIST Chemistry WebBook (SRD 69)');
+  s = s.replace(
+    /AME2020 atomic masses \/ NIST Atomic Weights and Isotopic Compositions(, via npm [\w-]+)?/g,
+    'AME2020 atomic mass evaluation (Wang et al., Chin. Phys. C 45, 030003, 2021)',
+  );
+  s = s.replace(
+    /Huber & Herzberg \(1979\) via NIST Chemistry WebBook/g,
+    'Huber & Herzberg, Constants of Diatomic Molecules (1979), NIST Chemistry WebBook (SRD 69)',
+  );
   s = s.replace(/:\s*ωₑ, ωₑxₑ, ωₑyₑ as printed in a public reproduction of the NIST table; the rest from memory/g, '');
   s = s.replace(/,?\s*read from a stored copy of the NIST WebBook page/g, '');
   s = s.replace(/;\s*NIST CCCBDB \(Irikura[^)]*\)\)\s*agrees/g, '');
@@ -99,7 +108,10 @@ export function publishedSource(source: string | null | undefined): string {
   s = s.replace(/standard physical chemistry textbook table/g, 'textbook table');
   s = s.replace(/,?\s*from memory/g, '');
   s = s.replace(/,?\s*via npm [\w-]+/g, '');
-  return s.replace(/\s{2,}/g, ' ').replace(/\s+([,;)])/g, '$1').trim();
+  return s
+    .replace(/\s{2,}/g, ' ')
+    .replace(/\s+([,;)])/g, '$1')
+    .trim();
 }
 
 const SUP: Record<string, string> = { '0': '⁰', '1': '¹', '2': '²', '3': '³', '4': '⁴', '5': '⁵', '6': '⁶', '7': '⁷', '8': '⁸', '9': '⁹' };

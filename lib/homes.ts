@@ -20,9 +20,7 @@ export const ROLE_NAMES: Record<HomeRole, string> = {
 };
 
 export function homesFor(actor: Actor) {
-  return ROLE_HOMES.filter((h) =>
-    h.role === 'admin' ? actor.isAdmin : actor.memberships.some((m) => m.role === h.role),
-  );
+  return ROLE_HOMES.filter((h) => (h.role === 'admin' ? actor.isAdmin : actor.memberships.some((m) => m.role === h.role)));
 }
 
 export type NavLink = { href: string; label: string };
@@ -37,7 +35,12 @@ export function navLinksFor(actor: Actor): NavLink[] {
   const manages = roles.has('lead') || roles.has('instructor');
   const links: NavLink[] = [];
   if (actor.isAdmin) links.push({ href: '/admin', label: 'Site administration' });
-  if (manages) links.push({ href: '/statistics', label: 'Cohort statistics' }, { href: '/courses', label: 'Courses & practicals' }, { href: '/moderation', label: 'Moderation' });
+  if (manages)
+    links.push(
+      { href: '/statistics', label: 'Cohort statistics' },
+      { href: '/courses', label: 'Courses & practicals' },
+      { href: '/moderation', label: 'Moderation' },
+    );
   if (roles.has('ta')) links.push({ href: '/marking', label: 'Marking' });
   if (roles.has('student')) links.push({ href: '/student', label: 'My practicals' });
   return links;

@@ -64,7 +64,8 @@ export const WAVENUMBER_MIN = 200;
 export const WAVENUMBER_MAX = 15000;
 const J_MAX = 200;
 /** Header words for columns that are read past (intensities, peak numbers). */
-const KNOWN_OTHER_HEADER = /\b(intensity|absorbance|transmittance|height|area|width|fwhm|no|number|index|#|peak|isotope|isotopologue|species|y|%t|intensität|intensitaet|höhe|fläche|breite|absorbanz|transmission|intensité|hauteur|aire|largeur|intensidad|altura|área|anchura|intensità|altezza|intensiteit|hoogte|oppervlak|nr|nummer|numéro|número|numero)\b/i;
+const KNOWN_OTHER_HEADER =
+  /\b(intensity|absorbance|transmittance|height|area|width|fwhm|no|number|index|#|peak|isotope|isotopologue|species|y|%t|intensität|intensitaet|höhe|fläche|breite|absorbanz|transmission|intensité|hauteur|aire|largeur|intensidad|altura|área|anchura|intensità|altezza|intensiteit|hoogte|oppervlak|nr|nummer|numéro|número|numero)\b/i;
 
 type Role = 'branch' | 'J' | 'm' | 'label' | 'wavenumber' | 'ignore';
 
@@ -177,16 +178,53 @@ function normaliseHeaderCell(cell: string): string[] {
 
 /** Header words, by role, in the lab languages met most (en, de, fr, es, it, pt, nl). */
 const BRANCH_HEADERS = /^(branch|br|p\/r|branch p\/r|zweig|ast|branche|rama|ramo|tak)$/;
-const LABEL_HEADERS = /^(line|lines|assignment|label|transition|line assignment|linie|zuordnung|übergang|raie|attribution|transition attribuée|línea|linea|asignación|asignacion|transición|riga|assegnazione|lijn|toekenning)$/;
+const LABEL_HEADERS =
+  /^(line|lines|assignment|label|transition|line assignment|linie|zuordnung|übergang|raie|attribution|transition attribuée|línea|linea|asignación|asignacion|transición|riga|assegnazione|lijn|toekenning)$/;
 const WAVENUMBER_WORDS = new Set([
-  'wavenumber', 'wavenumbers', 'wave-number', 'nu', 'ν', 'ν̃', 'ṽ', 'v~', 'nu~', 'position', 'positions', 'peak',
-  'cm-1', 'cm^-1', 'cm⁻¹', '/cm', '1/cm', 'frequency', 'freq', 'centre', 'center',
+  'wavenumber',
+  'wavenumbers',
+  'wave-number',
+  'nu',
+  'ν',
+  'ν̃',
+  'ṽ',
+  'v~',
+  'nu~',
+  'position',
+  'positions',
+  'peak',
+  'cm-1',
+  'cm^-1',
+  'cm⁻¹',
+  '/cm',
+  '1/cm',
+  'frequency',
+  'freq',
+  'centre',
+  'center',
   // de, fr, es, it, pt, nl
-  'wellenzahl', 'wellenzahlen', 'lage', 'frequenz', 'fréquence', 'frecuencia', 'frequenza', 'frequência', 'posición', 'posicion',
-  'posizione', 'posição', 'positie', 'golfgetal', 'pic', 'pico', 'picco', 'piek',
+  'wellenzahl',
+  'wellenzahlen',
+  'lage',
+  'frequenz',
+  'fréquence',
+  'frecuencia',
+  'frequenza',
+  'frequência',
+  'posición',
+  'posicion',
+  'posizione',
+  'posição',
+  'positie',
+  'golfgetal',
+  'pic',
+  'pico',
+  'picco',
+  'piek',
 ]);
 const WAVENUMBER_PHRASES = /wave ?number|nombre d.onde|número de onda|numero de onda|numero d.onda|número de onda/;
-const WAVELENGTH_WORDS = /wavelength|wellenlänge|wellenlaenge|longueur d.onde|longitud de onda|lunghezza d.onda|comprimento de onda|golflengte|^λ$|\bλ\b|lambda/;
+const WAVELENGTH_WORDS =
+  /wavelength|wellenlänge|wellenlaenge|longueur d.onde|longitud de onda|lunghezza d.onda|comprimento de onda|golflengte|^λ$|\bλ\b|lambda/;
 
 /** The position unit a header cell states, if any. */
 function unitOfHeader(cell: string): PositionUnit | 'wavelength' | undefined {
@@ -351,7 +389,11 @@ function parseRowByColumns(
   if (unit !== 'cm-1' && !(wn.n.value > 0)) return { error: `the wavelength ${quote(wn.cell)} must be positive.` };
   const position = toWavenumber(wn.n.value, unit);
   const wProblem = wavenumberProblem(position);
-  if (wProblem) return { error: unit === 'cm-1' ? wProblem : `${wn.n.value} ${unit} is ${position.toFixed(2)} cm⁻¹: ${wProblem}`, numbers: [wn.n.value] };
+  if (wProblem)
+    return {
+      error: unit === 'cm-1' ? wProblem : `${wn.n.value} ${unit} is ${position.toFixed(2)} cm⁻¹: ${wProblem}`,
+      numbers: [wn.n.value],
+    };
   const entry: LineListEntry = { wavenumber: position, raw, line: lineNo };
   let warning: string | undefined;
 
@@ -476,8 +518,7 @@ function attempt(rows: { text: string; line: number }[], delimiter: LineListDeli
     // is two words), so the header is used there only for a running-index column, which the
     // values alone cannot reveal, and only when the counts agree.
     const aligned =
-      delimiter !== 'whitespace' ||
-      (c?.m !== undefined && headerFields.length === splitRow(rows[start].text, delimiter).length);
+      delimiter !== 'whitespace' || (c?.m !== undefined && headerFields.length === splitRow(rows[start].text, delimiter).length);
     if (c && c.wavenumber !== undefined && aligned) cols = c;
     else if (c && c.wavenumber === undefined && delimiter !== 'whitespace') {
       warnings.push({
@@ -497,7 +538,9 @@ function attempt(rows: { text: string; line: number }[], delimiter: LineListDeli
   let positionUnit: PositionUnit = unit === 'µm' || unit === 'nm' ? unit : 'cm-1';
   let pick: number | undefined;
   if (!cols) {
-    const numberRows = data.map((r) => parseRowByContent(tokensOf(splitRow(r.text, delimiter)), allowDecimalComma, r.text.trim(), r.line).numbers ?? []);
+    const numberRows = data.map(
+      (r) => parseRowByContent(tokensOf(splitRow(r.text, delimiter)), allowDecimalComma, r.text.trim(), r.line).numbers ?? [],
+    );
     if (unit === 'wavelength') {
       const all = numberRows.flat().filter((v) => v > 0);
       positionUnit = all.length && all.filter((v) => v < 100).length > 0.5 * all.length ? 'µm' : 'nm';
@@ -509,7 +552,9 @@ function attempt(rows: { text: string; line: number }[], delimiter: LineListDeli
       pick = positionColumn(converted, expected);
     }
   } else if (unit === 'wavelength') {
-    const values = data.map((r) => readNumber(splitRow(r.text, delimiter)[cols!.wavenumber!] ?? '', allowDecimalComma)?.value ?? NaN).filter((v) => v > 0);
+    const values = data
+      .map((r) => readNumber(splitRow(r.text, delimiter)[cols!.wavenumber!] ?? '', allowDecimalComma)?.value ?? NaN)
+      .filter((v) => v > 0);
     positionUnit = values.filter((v) => v < 100).length > 0.5 * values.length ? 'µm' : 'nm';
   }
   if (positionUnit !== 'cm-1' && header) {
@@ -537,11 +582,21 @@ function attempt(rows: { text: string; line: number }[], delimiter: LineListDeli
     if (res.decimalComma) decimalCommaRows.push(line);
     if (res.entry) lines.push(res.entry);
   }
-  return { delimiter, result: { lines, warnings, errors, format: { delimiter, header, ...(positionUnit !== 'cm-1' ? { unit: positionUnit } : {}) } }, decimalCommaRows, numberRows: collectNumbers(rows.slice(start), delimiter, allowDecimalComma, cols) };
+  return {
+    delimiter,
+    result: { lines, warnings, errors, format: { delimiter, header, ...(positionUnit !== 'cm-1' ? { unit: positionUnit } : {}) } },
+    decimalCommaRows,
+    numberRows: collectNumbers(rows.slice(start), delimiter, allowDecimalComma, cols),
+  };
 }
 
 /** Every data row's candidate position values as typed (for recognising wavelengths given without a unit). */
-function collectNumbers(rows: { text: string; line: number }[], delimiter: LineListDelimiter, allowDecimalComma: boolean, cols: Columns | null): number[][] {
+function collectNumbers(
+  rows: { text: string; line: number }[],
+  delimiter: LineListDelimiter,
+  allowDecimalComma: boolean,
+  cols: Columns | null,
+): number[][] {
   return rows
     .filter((r) => r.text.length <= LINE_LIST_MAX_ROW_CHARS)
     .map((r) => {
@@ -665,7 +720,11 @@ function wavelengthProblem(a: Attempt, expected?: { from: number; to: number }):
   if (a.result.format.unit) return null;
   const firsts = a.numberRows.map((r) => r.find((v) => v > 0)).filter((v): v is number => v !== undefined);
   if (firsts.length === 0) return null;
-  const example = (v: number[]) => v.slice(0, 3).map((x) => String(x)).join(', ');
+  const example = (v: number[]) =>
+    v
+      .slice(0, 3)
+      .map((x) => String(x))
+      .join(', ');
   const advice = (unit: string) =>
     `Give the positions as wavenumbers in cm⁻¹, or write the unit in the header (for example “wavelength (${unit})”) to have them converted.`;
   const lines = a.result.lines;

@@ -53,7 +53,10 @@ async function sweep(logger: Logger, options: { now?: Date; graceMs?: number }):
       removed.push(path.relative(uploadDir(), file));
     }
   }
-  logger[removed.length ? 'warn' : 'info']({ removed, kept }, removed.length ? `storage sweep removed ${removed.length} file(s) without a row` : 'storage sweep found nothing to remove');
+  logger[removed.length ? 'warn' : 'info'](
+    { removed, kept },
+    removed.length ? `storage sweep removed ${removed.length} file(s) without a row` : 'storage sweep found nothing to remove',
+  );
   return { removed, kept };
 }
 

@@ -327,11 +327,28 @@ module.exports = {
 
   async down(q) {
     for (const table of [
-      'sign_in_failures', 'one_time_tokens', 'audit_log', 'email_outbox', 'feedback_documents',
-      'moderations', 'marks', 'slip_findings', 'check_results', 'uploads', 'line_assignments',
-      'submitted_values', 'submissions', 'tolerance_bands', 'quantity_definitions',
-      'practical_cohorts', 'practicals', 'ta_assignments', 'course_memberships', 'cohorts',
-      'courses', 'users',
+      'sign_in_failures',
+      'one_time_tokens',
+      'audit_log',
+      'email_outbox',
+      'feedback_documents',
+      'moderations',
+      'marks',
+      'slip_findings',
+      'check_results',
+      'uploads',
+      'line_assignments',
+      'submitted_values',
+      'submissions',
+      'tolerance_bands',
+      'quantity_definitions',
+      'practical_cohorts',
+      'practicals',
+      'ta_assignments',
+      'course_memberships',
+      'cohorts',
+      'courses',
+      'users',
     ]) {
       await q.dropTable(table);
     }

@@ -11,7 +11,11 @@
 const INDEXES = [
   ['submissions', ['practicalId', 'isMarkedAttempt', 'cohortId', 'status', 'submittedAt', 'studentId'], 'submissions_statistics_scope'],
   ['submissions', ['practicalId', 'cohortId', 'updatedAt'], 'submissions_practical_cohort_updated'],
-  ['check_results', ['submissionId', 'key', 'species', 'basis', 'verdict', 'relativeDeviation', 'updatedAt'], 'check_results_statistics_covering'],
+  [
+    'check_results',
+    ['submissionId', 'key', 'species', 'basis', 'verdict', 'relativeDeviation', 'updatedAt'],
+    'check_results_statistics_covering',
+  ],
   ['slip_findings', ['submissionId', 'code', 'key'], 'slip_findings_statistics_covering'],
   ['marks', ['submissionId', 'updatedAt'], 'marks_submission_updated'],
   ['moderations', ['submissionId', 'markerId', 'decision', 'updatedAt'], 'moderations_statistics_covering'],

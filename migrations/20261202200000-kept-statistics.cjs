@@ -65,7 +65,9 @@ module.exports = {
       bin: { type: S.INTEGER, allowNull: true },
     });
     await q.addIndex('statistics_values', ['submissionId'], { name: 'statistics_values_submission' });
-    await q.addIndex('statistics_values', ['practicalId', 'key', 'species', 'basis', 'bin', 'cohortId', 'x'], { name: 'statistics_values_order' });
+    await q.addIndex('statistics_values', ['practicalId', 'key', 'species', 'basis', 'bin', 'cohortId', 'x'], {
+      name: 'statistics_values_order',
+    });
 
     await q.createTable('statistics_slip_findings', {
       id: id(S),
@@ -76,7 +78,9 @@ module.exports = {
       code: { type: S.STRING(60), allowNull: false },
     });
     await q.addIndex('statistics_slip_findings', ['submissionId'], { name: 'statistics_slip_findings_submission' });
-    await q.addIndex('statistics_slip_findings', ['practicalId', 'cohortId', 'code', 'submissionId'], { name: 'statistics_slip_findings_example' });
+    await q.addIndex('statistics_slip_findings', ['practicalId', 'cohortId', 'code', 'submissionId'], {
+      name: 'statistics_slip_findings_example',
+    });
 
     await q.createTable('statistics_groups', {
       id: id(S),
@@ -114,7 +118,10 @@ module.exports = {
       /** Fine histogram (lib/statistics/bins.ts) as JSON [[bin, count], …]. */
       bins: { type: S.TEXT, allowNull: false, defaultValue: '[]' },
     });
-    await q.addIndex('statistics_quantities', ['practicalId', 'cohortId', 'key', 'species', 'basis'], { unique: true, name: 'statistics_quantities_key' });
+    await q.addIndex('statistics_quantities', ['practicalId', 'cohortId', 'key', 'species', 'basis'], {
+      unique: true,
+      name: 'statistics_quantities_key',
+    });
 
     await q.createTable('statistics_slips', {
       id: id(S),
@@ -168,8 +175,15 @@ module.exports = {
 
   async down(q) {
     for (const table of [
-      'statistics_meta', 'statistics_markers', 'statistics_slip_codes', 'statistics_slips', 'statistics_quantities', 'statistics_groups',
-      'statistics_slip_findings', 'statistics_values', 'statistics_submissions',
+      'statistics_meta',
+      'statistics_markers',
+      'statistics_slip_codes',
+      'statistics_slips',
+      'statistics_quantities',
+      'statistics_groups',
+      'statistics_slip_findings',
+      'statistics_values',
+      'statistics_submissions',
     ]) {
       await q.dropTable(table);
     }

@@ -24,19 +24,24 @@ module.exports = {
       ['verdictsOutside', "cr.verdict = 'outside'"],
       ['verdictsNotChecked', "cr.verdict NOT IN ('within', 'partial', 'outside')"],
     ]) {
-      await q.sequelize.query(`UPDATE submissions SET "${column}" = (SELECT COUNT(*) FROM check_results cr WHERE cr."submissionId" = submissions.id AND ${test})`);
+      await q.sequelize.query(
+        `UPDATE submissions SET "${column}" = (SELECT COUNT(*) FROM check_results cr WHERE cr."submissionId" = submissions.id AND ${test})`,
+      );
     }
     const [slips] = await q.sequelize.query('SELECT DISTINCT "submissionId", code FROM slip_findings ORDER BY "submissionId", code');
     const bySubmission = new Map();
     for (const r of slips) bySubmission.set(r.submissionId, [...(bySubmission.get(r.submissionId) || []), r.code]);
     for (const [id, codes] of bySubmission) {
-      await q.sequelize.query('UPDATE submissions SET "slipCodes" = :codes WHERE id = :id', { replacements: { id, codes: codes.join(',').slice(0, 400) } });
+      await q.sequelize.query('UPDATE submissions SET "slipCodes" = :codes WHERE id = :id', {
+        replacements: { id, codes: codes.join(',').slice(0, 400) },
+      });
     }
     for (const [table, fields, name] of INDEXES) await q.addIndex(table, fields, { name });
   },
 
   async down(q) {
     for (const [table, , name] of [...INDEXES].reverse()) await q.removeIndex(table, name);
-    for (const column of ['slipCodes', 'verdictsNotChecked', 'verdictsOutside', 'verdictsPartial', 'verdictsWithin']) await q.removeColumn('submissions', column);
+    for (const column of ['slipCodes', 'verdictsNotChecked', 'verdictsOutside', 'verdictsPartial', 'verdictsWithin'])
+      await q.removeColumn('submissions', column);
   },
 };

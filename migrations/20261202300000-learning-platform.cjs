@@ -55,7 +55,10 @@ module.exports = {
       deploymentId: { type: S.STRING(255), allowNull: false },
       ...stamps(S),
     });
-    await q.addIndex('lti_deployments', ['registrationId', 'deploymentId'], { unique: true, name: 'lti_deployments_registration_deployment' });
+    await q.addIndex('lti_deployments', ['registrationId', 'deploymentId'], {
+      unique: true,
+      name: 'lti_deployments_registration_deployment',
+    });
 
     // A platform course (context) connected to one Oscillab course.
     await q.createTable('lti_contexts', {
@@ -146,8 +149,15 @@ module.exports = {
 
   async down(q) {
     for (const table of [
-      'lti_score_outbox', 'lti_launch_states', 'lti_user_links', 'lti_line_items', 'lti_resource_links',
-      'lti_contexts', 'lti_deployments', 'lti_registrations', 'lti_tool_keys',
+      'lti_score_outbox',
+      'lti_launch_states',
+      'lti_user_links',
+      'lti_line_items',
+      'lti_resource_links',
+      'lti_contexts',
+      'lti_deployments',
+      'lti_registrations',
+      'lti_tool_keys',
     ]) {
       await q.dropTable(table);
     }

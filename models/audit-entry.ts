@@ -14,8 +14,14 @@ export class AuditEntry extends Model<InferAttributes<AuditEntry>, InferCreation
   static initModel(sequelize: Sequelize) {
     AuditEntry.init(
       {
-        id: col.id, actorId: col.fk(true), action: col.str(80), entityType: col.str(60), entityId: col.fk(true),
-        before: col.json(), after: col.json(), createdAt: col.date(false),
+        id: col.id,
+        actorId: col.fk(true),
+        action: col.str(80),
+        entityType: col.str(60),
+        entityId: col.fk(true),
+        before: col.json(),
+        after: col.json(),
+        createdAt: col.date(false),
       },
       { sequelize, modelName: 'AuditEntry', tableName: 'audit_log', updatedAt: false, indexes: [{ fields: ['entityType', 'entityId'] }] },
     );

@@ -21,17 +21,31 @@ export class CheckResult extends Model<InferAttributes<CheckResult>, InferCreati
   static initModel(sequelize: Sequelize) {
     CheckResult.init(
       {
-        id: col.id, submissionId: col.fk(), key: col.str(40), species: col.str(40), basis: col.str(20),
-        reportedSI: col.float(), expectedSI: col.float(), deviation: col.float(), relativeDeviation: col.float(),
-        verdict: col.str(20), slipCodes: { ...col.str(400), defaultValue: '' },
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        submissionId: col.fk(),
+        key: col.str(40),
+        species: col.str(40),
+        basis: col.str(20),
+        reportedSI: col.float(),
+        expectedSI: col.float(),
+        deviation: col.float(),
+        relativeDeviation: col.float(),
+        verdict: col.str(20),
+        slipCodes: { ...col.str(400), defaultValue: '' },
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
       {
-        sequelize, modelName: 'CheckResult', tableName: 'check_results',
+        sequelize,
+        modelName: 'CheckResult',
+        tableName: 'check_results',
         indexes: [
           { fields: ['submissionId'] },
           { fields: ['key', 'basis'] },
-          { name: 'check_results_statistics_covering', fields: ['submissionId', 'key', 'species', 'basis', 'verdict', 'relativeDeviation', 'updatedAt'] },
+          {
+            name: 'check_results_statistics_covering',
+            fields: ['submissionId', 'key', 'species', 'basis', 'verdict', 'relativeDeviation', 'updatedAt'],
+          },
         ],
       },
     );

@@ -14,8 +14,14 @@ export class Cohort extends Model<InferAttributes<Cohort>, InferCreationAttribut
   static initModel(sequelize: Sequelize) {
     Cohort.init(
       {
-        id: col.id, courseId: col.fk(), name: col.str(120), term: col.str(60), instrument: col.str(120, true),
-        archivedAt: col.date(), createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        courseId: col.fk(),
+        name: col.str(120),
+        term: col.str(60),
+        instrument: col.str(120, true),
+        archivedAt: col.date(),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
       { sequelize, modelName: 'Cohort', tableName: 'cohorts', indexes: [{ unique: true, fields: ['courseId', 'name', 'term'] }] },
     );

@@ -16,11 +16,18 @@ export class CourseMembership extends Model<InferAttributes<CourseMembership>, I
   static initModel(sequelize: Sequelize) {
     CourseMembership.init(
       {
-        id: col.id, userId: col.fk(), courseId: col.fk(), role: col.str(20), cohortId: col.fk(true),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        userId: col.fk(),
+        courseId: col.fk(),
+        role: col.str(20),
+        cohortId: col.fk(true),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
       {
-        sequelize, modelName: 'CourseMembership', tableName: 'course_memberships',
+        sequelize,
+        modelName: 'CourseMembership',
+        tableName: 'course_memberships',
         indexes: [{ unique: true, fields: ['userId', 'courseId', 'role'] }, { fields: ['courseId', 'role'] }],
       },
     );

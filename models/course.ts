@@ -11,7 +11,14 @@ export class Course extends Model<InferAttributes<Course>, InferCreationAttribut
 
   static initModel(sequelize: Sequelize) {
     Course.init(
-      { id: col.id, code: { ...col.str(40), unique: true }, title: col.str(200), archivedAt: col.date(), createdAt: col.date(false), updatedAt: col.date(false) },
+      {
+        id: col.id,
+        code: { ...col.str(40), unique: true },
+        title: col.str(200),
+        archivedAt: col.date(),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
+      },
       { sequelize, modelName: 'Course', tableName: 'courses' },
     );
   }

@@ -11,8 +11,20 @@ export class EndedSession extends Model<InferAttributes<EndedSession>, InferCrea
 
   static initModel(sequelize: Sequelize) {
     EndedSession.init(
-      { id: col.id, sessionId: { ...col.str(64), unique: true }, userId: col.fk(true), expiresAt: col.date(false), createdAt: col.date(false) },
-      { sequelize, modelName: 'EndedSession', tableName: 'ended_sessions', updatedAt: false, indexes: [{ name: 'ended_sessions_expires_at', fields: ['expiresAt'] }] },
+      {
+        id: col.id,
+        sessionId: { ...col.str(64), unique: true },
+        userId: col.fk(true),
+        expiresAt: col.date(false),
+        createdAt: col.date(false),
+      },
+      {
+        sequelize,
+        modelName: 'EndedSession',
+        tableName: 'ended_sessions',
+        updatedAt: false,
+        indexes: [{ name: 'ended_sessions_expires_at', fields: ['expiresAt'] }],
+      },
     );
   }
 }

@@ -12,7 +12,15 @@ export class FeedbackDocument extends Model<InferAttributes<FeedbackDocument>, I
 
   static initModel(sequelize: Sequelize) {
     FeedbackDocument.init(
-      { id: col.id, submissionId: col.fk(), storedName: col.str(100), sha256: col.str(64), size: col.fk(), createdAt: col.date(false), updatedAt: col.date(false) },
+      {
+        id: col.id,
+        submissionId: col.fk(),
+        storedName: col.str(100),
+        sha256: col.str(64),
+        size: col.fk(),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
+      },
       { sequelize, modelName: 'FeedbackDocument', tableName: 'feedback_documents' },
     );
   }

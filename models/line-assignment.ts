@@ -16,9 +16,15 @@ export class LineAssignment extends Model<InferAttributes<LineAssignment>, Infer
   static initModel(sequelize: Sequelize) {
     LineAssignment.init(
       {
-        id: col.id, submissionId: col.fk(), species: col.str(40), branch: col.str(1, true), J: { ...col.fk(true) },
-        wavenumber: col.float(false), source: { ...col.str(20), defaultValue: 'student' },
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        submissionId: col.fk(),
+        species: col.str(40),
+        branch: col.str(1, true),
+        J: { ...col.fk(true) },
+        wavenumber: col.float(false),
+        source: { ...col.str(20), defaultValue: 'student' },
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
       { sequelize, modelName: 'LineAssignment', tableName: 'line_assignments', indexes: [{ fields: ['submissionId'] }] },
     );

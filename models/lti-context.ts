@@ -23,11 +23,28 @@ export class LtiContext extends Model<InferAttributes<LtiContext>, InferCreation
   static initModel(sequelize: Sequelize) {
     LtiContext.init(
       {
-        id: col.id, registrationId: col.fk(), contextId: col.str(255), courseId: col.fk(), defaultCohortId: col.fk(true),
-        title: col.str(300, true), membershipsUrl: col.str(1000, true), lineItemsUrl: col.str(1000, true),
-        agsScopes: col.text(true), rosterSyncedAt: col.date(), createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        registrationId: col.fk(),
+        contextId: col.str(255),
+        courseId: col.fk(),
+        defaultCohortId: col.fk(true),
+        title: col.str(300, true),
+        membershipsUrl: col.str(1000, true),
+        lineItemsUrl: col.str(1000, true),
+        agsScopes: col.text(true),
+        rosterSyncedAt: col.date(),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'LtiContext', tableName: 'lti_contexts', indexes: [{ name: 'lti_contexts_registration_context', unique: true, fields: ['registrationId', 'contextId'] }, { name: 'lti_contexts_course', fields: ['courseId'] }] },
+      {
+        sequelize,
+        modelName: 'LtiContext',
+        tableName: 'lti_contexts',
+        indexes: [
+          { name: 'lti_contexts_registration_context', unique: true, fields: ['registrationId', 'contextId'] },
+          { name: 'lti_contexts_course', fields: ['courseId'] },
+        ],
+      },
     );
   }
 }

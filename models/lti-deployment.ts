@@ -12,7 +12,12 @@ export class LtiDeployment extends Model<InferAttributes<LtiDeployment>, InferCr
   static initModel(sequelize: Sequelize) {
     LtiDeployment.init(
       { id: col.id, registrationId: col.fk(), deploymentId: col.str(255), createdAt: col.date(false), updatedAt: col.date(false) },
-      { sequelize, modelName: 'LtiDeployment', tableName: 'lti_deployments', indexes: [{ name: 'lti_deployments_registration_deployment', unique: true, fields: ['registrationId', 'deploymentId'] }] },
+      {
+        sequelize,
+        modelName: 'LtiDeployment',
+        tableName: 'lti_deployments',
+        indexes: [{ name: 'lti_deployments_registration_deployment', unique: true, fields: ['registrationId', 'deploymentId'] }],
+      },
     );
   }
 }

@@ -15,10 +15,21 @@ export class LtiLaunchState extends Model<InferAttributes<LtiLaunchState>, Infer
   static initModel(sequelize: Sequelize) {
     LtiLaunchState.init(
       {
-        id: col.id, stateHash: { ...col.str(64), unique: true }, nonce: { ...col.str(64), unique: true }, registrationId: col.fk(), expiresAt: col.date(false), usedAt: col.date(),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        stateHash: { ...col.str(64), unique: true },
+        nonce: { ...col.str(64), unique: true },
+        registrationId: col.fk(),
+        expiresAt: col.date(false),
+        usedAt: col.date(),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'LtiLaunchState', tableName: 'lti_launch_states', indexes: [{ name: 'lti_launch_states_expires', fields: ['expiresAt'] }] },
+      {
+        sequelize,
+        modelName: 'LtiLaunchState',
+        tableName: 'lti_launch_states',
+        indexes: [{ name: 'lti_launch_states_expires', fields: ['expiresAt'] }],
+      },
     );
   }
 }

@@ -12,8 +12,20 @@ export class LtiLineItem extends Model<InferAttributes<LtiLineItem>, InferCreati
 
   static initModel(sequelize: Sequelize) {
     LtiLineItem.init(
-      { id: col.id, ltiContextId: col.fk(), practicalId: col.fk(), url: col.str(1000), createdAt: col.date(false), updatedAt: col.date(false) },
-      { sequelize, modelName: 'LtiLineItem', tableName: 'lti_line_items', indexes: [{ name: 'lti_line_items_context_practical', unique: true, fields: ['ltiContextId', 'practicalId'] }] },
+      {
+        id: col.id,
+        ltiContextId: col.fk(),
+        practicalId: col.fk(),
+        url: col.str(1000),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
+      },
+      {
+        sequelize,
+        modelName: 'LtiLineItem',
+        tableName: 'lti_line_items',
+        indexes: [{ name: 'lti_line_items_context_practical', unique: true, fields: ['ltiContextId', 'practicalId'] }],
+      },
     );
   }
 }

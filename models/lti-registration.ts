@@ -19,11 +19,24 @@ export class LtiRegistration extends Model<InferAttributes<LtiRegistration>, Inf
   static initModel(sequelize: Sequelize) {
     LtiRegistration.init(
       {
-        id: col.id, name: col.str(200), issuer: col.str(500), clientId: col.str(255), authLoginUrl: col.str(1000),
-        authTokenUrl: col.str(1000), keySetUrl: col.str(1000), tokenAudience: col.str(1000, true), active: col.bool(true),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        name: col.str(200),
+        issuer: col.str(500),
+        clientId: col.str(255),
+        authLoginUrl: col.str(1000),
+        authTokenUrl: col.str(1000),
+        keySetUrl: col.str(1000),
+        tokenAudience: col.str(1000, true),
+        active: col.bool(true),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'LtiRegistration', tableName: 'lti_registrations', indexes: [{ name: 'lti_registrations_issuer_client', unique: true, fields: ['issuer', 'clientId'] }] },
+      {
+        sequelize,
+        modelName: 'LtiRegistration',
+        tableName: 'lti_registrations',
+        indexes: [{ name: 'lti_registrations_issuer_client', unique: true, fields: ['issuer', 'clientId'] }],
+      },
     );
   }
 }

@@ -14,10 +14,20 @@ export class LtiResourceLink extends Model<InferAttributes<LtiResourceLink>, Inf
   static initModel(sequelize: Sequelize) {
     LtiResourceLink.init(
       {
-        id: col.id, ltiContextId: col.fk(), resourceLinkId: col.str(255), practicalId: col.fk(), title: col.str(300, true),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        ltiContextId: col.fk(),
+        resourceLinkId: col.str(255),
+        practicalId: col.fk(),
+        title: col.str(300, true),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'LtiResourceLink', tableName: 'lti_resource_links', indexes: [{ name: 'lti_resource_links_context_link', unique: true, fields: ['ltiContextId', 'resourceLinkId'] }] },
+      {
+        sequelize,
+        modelName: 'LtiResourceLink',
+        tableName: 'lti_resource_links',
+        indexes: [{ name: 'lti_resource_links_context_link', unique: true, fields: ['ltiContextId', 'resourceLinkId'] }],
+      },
     );
   }
 }

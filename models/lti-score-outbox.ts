@@ -30,13 +30,36 @@ export class LtiScoreOutbox extends Model<InferAttributes<LtiScoreOutbox>, Infer
   static initModel(sequelize: Sequelize) {
     LtiScoreOutbox.init(
       {
-        id: col.id, dedupeKey: { ...col.str(200), unique: true }, ltiContextId: col.fk(), practicalId: col.fk(), submissionId: col.fk(), userId: col.fk(),
-        platformUserId: col.str(255), scoreGiven: col.float(false), scoreMaximum: col.float(false), comment: col.text(true),
-        scoredAt: col.date(false), lineItemUrl: col.str(1000, true), status: { ...col.str(20), defaultValue: 'queued' },
-        attempts: col.int(0), nextAttemptAt: col.date(false), lockedUntil: col.date(), lastError: col.text(true), sentAt: col.date(),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        dedupeKey: { ...col.str(200), unique: true },
+        ltiContextId: col.fk(),
+        practicalId: col.fk(),
+        submissionId: col.fk(),
+        userId: col.fk(),
+        platformUserId: col.str(255),
+        scoreGiven: col.float(false),
+        scoreMaximum: col.float(false),
+        comment: col.text(true),
+        scoredAt: col.date(false),
+        lineItemUrl: col.str(1000, true),
+        status: { ...col.str(20), defaultValue: 'queued' },
+        attempts: col.int(0),
+        nextAttemptAt: col.date(false),
+        lockedUntil: col.date(),
+        lastError: col.text(true),
+        sentAt: col.date(),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'LtiScoreOutbox', tableName: 'lti_score_outbox', indexes: [{ name: 'lti_score_outbox_due', fields: ['status', 'nextAttemptAt'] }, { name: 'lti_score_outbox_submission', fields: ['submissionId'] }] },
+      {
+        sequelize,
+        modelName: 'LtiScoreOutbox',
+        tableName: 'lti_score_outbox',
+        indexes: [
+          { name: 'lti_score_outbox_due', fields: ['status', 'nextAttemptAt'] },
+          { name: 'lti_score_outbox_submission', fields: ['submissionId'] },
+        ],
+      },
     );
   }
 }

@@ -18,9 +18,14 @@ export class LtiToolKey extends Model<InferAttributes<LtiToolKey>, InferCreation
   static initModel(sequelize: Sequelize) {
     LtiToolKey.init(
       {
-        id: col.id, kid: { ...col.str(100), unique: true }, publicJwk: col.text(), privateKeyPem: col.text(),
-        status: { ...col.str(20), defaultValue: 'active' }, retiredAt: col.date(),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        kid: { ...col.str(100), unique: true },
+        publicJwk: col.text(),
+        privateKeyPem: col.text(),
+        status: { ...col.str(20), defaultValue: 'active' },
+        retiredAt: col.date(),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
       { sequelize, modelName: 'LtiToolKey', tableName: 'lti_tool_keys' },
     );

@@ -13,7 +13,15 @@ export class LtiUserLink extends Model<InferAttributes<LtiUserLink>, InferCreati
   static initModel(sequelize: Sequelize) {
     LtiUserLink.init(
       { id: col.id, registrationId: col.fk(), sub: col.str(255), userId: col.fk(), createdAt: col.date(false), updatedAt: col.date(false) },
-      { sequelize, modelName: 'LtiUserLink', tableName: 'lti_user_links', indexes: [{ name: 'lti_user_links_registration_sub', unique: true, fields: ['registrationId', 'sub'] }, { name: 'lti_user_links_registration_user', unique: true, fields: ['registrationId', 'userId'] }] },
+      {
+        sequelize,
+        modelName: 'LtiUserLink',
+        tableName: 'lti_user_links',
+        indexes: [
+          { name: 'lti_user_links_registration_sub', unique: true, fields: ['registrationId', 'sub'] },
+          { name: 'lti_user_links_registration_user', unique: true, fields: ['registrationId', 'userId'] },
+        ],
+      },
     );
   }
 }

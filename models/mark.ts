@@ -19,13 +19,26 @@ export class Mark extends Model<InferAttributes<Mark>, InferCreationAttributes<M
   static initModel(sequelize: Sequelize) {
     Mark.init(
       {
-        id: col.id, submissionId: col.fk(), itemKey: col.str(100), label: col.str(200), maxMarks: col.float(false),
-        proposed: col.float(), awarded: col.float(), comment: col.text(true), markerId: col.fk(true),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        submissionId: col.fk(),
+        itemKey: col.str(100),
+        label: col.str(200),
+        maxMarks: col.float(false),
+        proposed: col.float(),
+        awarded: col.float(),
+        comment: col.text(true),
+        markerId: col.fk(true),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
       {
-        sequelize, modelName: 'Mark', tableName: 'marks',
-        indexes: [{ unique: true, fields: ['submissionId', 'itemKey'] }, { name: 'marks_submission_updated', fields: ['submissionId', 'updatedAt'] }],
+        sequelize,
+        modelName: 'Mark',
+        tableName: 'marks',
+        indexes: [
+          { unique: true, fields: ['submissionId', 'itemKey'] },
+          { name: 'marks_submission_updated', fields: ['submissionId', 'updatedAt'] },
+        ],
       },
     );
   }

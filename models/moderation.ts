@@ -16,12 +16,21 @@ export class Moderation extends Model<InferAttributes<Moderation>, InferCreation
   static initModel(sequelize: Sequelize) {
     Moderation.init(
       {
-        id: col.id, submissionId: col.fk(), moderatorId: col.fk(), markerId: col.fk(true), decision: col.str(20),
-        totalBefore: col.float(), totalAfter: col.float(), note: col.text(true),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        submissionId: col.fk(),
+        moderatorId: col.fk(),
+        markerId: col.fk(true),
+        decision: col.str(20),
+        totalBefore: col.float(),
+        totalAfter: col.float(),
+        note: col.text(true),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
       {
-        sequelize, modelName: 'Moderation', tableName: 'moderations',
+        sequelize,
+        modelName: 'Moderation',
+        tableName: 'moderations',
         indexes: [{ name: 'moderations_statistics_covering', fields: ['submissionId', 'markerId', 'decision', 'updatedAt'] }],
       },
     );

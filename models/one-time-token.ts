@@ -15,8 +15,14 @@ export class OneTimeToken extends Model<InferAttributes<OneTimeToken>, InferCrea
   static initModel(sequelize: Sequelize) {
     OneTimeToken.init(
       {
-        id: col.id, userId: col.fk(), purpose: col.str(20), tokenHash: { ...col.str(64), unique: true }, expiresAt: col.date(false), usedAt: col.date(),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        userId: col.fk(),
+        purpose: col.str(20),
+        tokenHash: { ...col.str(64), unique: true },
+        expiresAt: col.date(false),
+        usedAt: col.date(),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
       { sequelize, modelName: 'OneTimeToken', tableName: 'one_time_tokens' },
     );

@@ -13,8 +13,21 @@ export class PracticalCohort extends Model<InferAttributes<PracticalCohort>, Inf
 
   static initModel(sequelize: Sequelize) {
     PracticalCohort.init(
-      { id: col.id, practicalId: col.fk(), cohortId: col.fk(), opensAt: col.date(), deadline: col.date(false), createdAt: col.date(false), updatedAt: col.date(false) },
-      { sequelize, modelName: 'PracticalCohort', tableName: 'practical_cohorts', indexes: [{ unique: true, fields: ['practicalId', 'cohortId'] }] },
+      {
+        id: col.id,
+        practicalId: col.fk(),
+        cohortId: col.fk(),
+        opensAt: col.date(),
+        deadline: col.date(false),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
+      },
+      {
+        sequelize,
+        modelName: 'PracticalCohort',
+        tableName: 'practical_cohorts',
+        indexes: [{ unique: true, fields: ['practicalId', 'cohortId'] }],
+      },
     );
   }
 }

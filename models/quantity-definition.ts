@@ -21,12 +21,26 @@ export class QuantityDefinition extends Model<InferAttributes<QuantityDefinition
   static initModel(sequelize: Sequelize) {
     QuantityDefinition.init(
       {
-        id: col.id, practicalId: col.fk(), key: col.str(40), species: col.str(40), unit: col.str(40),
-        marks: { ...col.float(false), defaultValue: 1 }, uncertaintyRequired: col.bool(false),
-        referenceKind: { ...col.str(20), defaultValue: 'literature' }, referenceValueSI: col.float(), referenceNote: col.text(true),
-        position: col.int(0), createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        practicalId: col.fk(),
+        key: col.str(40),
+        species: col.str(40),
+        unit: col.str(40),
+        marks: { ...col.float(false), defaultValue: 1 },
+        uncertaintyRequired: col.bool(false),
+        referenceKind: { ...col.str(20), defaultValue: 'literature' },
+        referenceValueSI: col.float(),
+        referenceNote: col.text(true),
+        position: col.int(0),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'QuantityDefinition', tableName: 'quantity_definitions', indexes: [{ unique: true, fields: ['practicalId', 'key', 'species'] }] },
+      {
+        sequelize,
+        modelName: 'QuantityDefinition',
+        tableName: 'quantity_definitions',
+        indexes: [{ unique: true, fields: ['practicalId', 'key', 'species'] }],
+      },
     );
   }
 }

@@ -14,8 +14,13 @@ export class SignInFailure extends Model<InferAttributes<SignInFailure>, InferCr
   static initModel(sequelize: Sequelize) {
     SignInFailure.init(
       {
-        id: col.id, subject: { ...col.str(300), unique: true }, failures: col.int(0), firstFailureAt: col.date(false), blockedUntil: col.date(),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        subject: { ...col.str(300), unique: true },
+        failures: col.int(0),
+        firstFailureAt: col.date(false),
+        blockedUntil: col.date(),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
       { sequelize, modelName: 'SignInFailure', tableName: 'sign_in_failures' },
     );

@@ -13,8 +13,14 @@ export class SlipFinding extends Model<InferAttributes<SlipFinding>, InferCreati
     SlipFinding.init(
       { id: col.id, submissionId: col.fk(), key: col.str(40), code: col.str(60), createdAt: col.date(false), updatedAt: col.date(false) },
       {
-        sequelize, modelName: 'SlipFinding', tableName: 'slip_findings',
-        indexes: [{ fields: ['code'] }, { fields: ['submissionId'] }, { name: 'slip_findings_statistics_covering', fields: ['submissionId', 'code', 'key'] }],
+        sequelize,
+        modelName: 'SlipFinding',
+        tableName: 'slip_findings',
+        indexes: [
+          { fields: ['code'] },
+          { fields: ['submissionId'] },
+          { name: 'slip_findings_statistics_covering', fields: ['submissionId', 'code', 'key'] },
+        ],
       },
     );
   }

@@ -17,11 +17,29 @@ export class StatisticsSubmission extends Model {
   static initModel(sequelize: Sequelize) {
     StatisticsSubmission.init(
       {
-        submissionId: { type: DataTypes.INTEGER, primaryKey: true }, ...cell(), studentId: col.fk(),
-        spans: col.bool(), late: flag(), marked: flag(), released: flag(), markedById: col.fk(true),
-        markPercent: col.float(), differencePercent: col.float(), overrides: count(), moderations: { ...col.text(), defaultValue: '' },
+        submissionId: { type: DataTypes.INTEGER, primaryKey: true },
+        ...cell(),
+        studentId: col.fk(),
+        spans: col.bool(),
+        late: flag(),
+        marked: flag(),
+        released: flag(),
+        markedById: col.fk(true),
+        markPercent: col.float(),
+        differencePercent: col.float(),
+        overrides: count(),
+        moderations: { ...col.text(), defaultValue: '' },
       },
-      { sequelize, modelName: 'StatisticsSubmission', tableName: 'statistics_submissions', timestamps: false, indexes: [{ name: 'statistics_submissions_student', fields: ['practicalId', 'studentId'] }, { name: 'statistics_submissions_spans', fields: ['practicalId', 'spans'] }] },
+      {
+        sequelize,
+        modelName: 'StatisticsSubmission',
+        tableName: 'statistics_submissions',
+        timestamps: false,
+        indexes: [
+          { name: 'statistics_submissions_student', fields: ['practicalId', 'studentId'] },
+          { name: 'statistics_submissions_spans', fields: ['practicalId', 'spans'] },
+        ],
+      },
     );
   }
 }
@@ -30,10 +48,26 @@ export class StatisticsValue extends Model {
   static initModel(sequelize: Sequelize) {
     StatisticsValue.init(
       {
-        id: col.id, submissionId: col.fk(), ...cell(), key: col.str(40), species: col.str(40), basis: col.str(20), verdict: col.str(20),
-        x: col.float(), bin: { type: DataTypes.INTEGER, allowNull: true },
+        id: col.id,
+        submissionId: col.fk(),
+        ...cell(),
+        key: col.str(40),
+        species: col.str(40),
+        basis: col.str(20),
+        verdict: col.str(20),
+        x: col.float(),
+        bin: { type: DataTypes.INTEGER, allowNull: true },
       },
-      { sequelize, modelName: 'StatisticsValue', tableName: 'statistics_values', timestamps: false, indexes: [{ name: 'statistics_values_submission', fields: ['submissionId'] }, { name: 'statistics_values_order', fields: ['practicalId', 'key', 'species', 'basis', 'bin', 'cohortId', 'x'] }] },
+      {
+        sequelize,
+        modelName: 'StatisticsValue',
+        tableName: 'statistics_values',
+        timestamps: false,
+        indexes: [
+          { name: 'statistics_values_submission', fields: ['submissionId'] },
+          { name: 'statistics_values_order', fields: ['practicalId', 'key', 'species', 'basis', 'bin', 'cohortId', 'x'] },
+        ],
+      },
     );
   }
 }
@@ -42,7 +76,16 @@ export class StatisticsSlipFinding extends Model {
   static initModel(sequelize: Sequelize) {
     StatisticsSlipFinding.init(
       { id: col.id, submissionId: col.fk(), ...cell(), key: col.str(40), code: col.str(60) },
-      { sequelize, modelName: 'StatisticsSlipFinding', tableName: 'statistics_slip_findings', timestamps: false, indexes: [{ name: 'statistics_slip_findings_submission', fields: ['submissionId'] }, { name: 'statistics_slip_findings_example', fields: ['practicalId', 'cohortId', 'code', 'submissionId'] }] },
+      {
+        sequelize,
+        modelName: 'StatisticsSlipFinding',
+        tableName: 'statistics_slip_findings',
+        timestamps: false,
+        indexes: [
+          { name: 'statistics_slip_findings_submission', fields: ['submissionId'] },
+          { name: 'statistics_slip_findings_example', fields: ['practicalId', 'cohortId', 'code', 'submissionId'] },
+        ],
+      },
     );
   }
 }
@@ -51,10 +94,25 @@ export class StatisticsGroup extends Model {
   static initModel(sequelize: Sequelize) {
     StatisticsGroup.init(
       {
-        id: col.id, ...cell(), students: count(), submitted: count(), late: count(), marked: count(), released: count(),
-        markCount: count(), markSum: exact(), markSquares: exact(), changeToken: { ...col.str(32), defaultValue: '' },
+        id: col.id,
+        ...cell(),
+        students: count(),
+        submitted: count(),
+        late: count(),
+        marked: count(),
+        released: count(),
+        markCount: count(),
+        markSum: exact(),
+        markSquares: exact(),
+        changeToken: { ...col.str(32), defaultValue: '' },
       },
-      { sequelize, modelName: 'StatisticsGroup', tableName: 'statistics_groups', timestamps: false, indexes: [{ name: 'statistics_groups_key', unique: true, fields: ['practicalId', 'cohortId'] }] },
+      {
+        sequelize,
+        modelName: 'StatisticsGroup',
+        tableName: 'statistics_groups',
+        timestamps: false,
+        indexes: [{ name: 'statistics_groups_key', unique: true, fields: ['practicalId', 'cohortId'] }],
+      },
     );
   }
 }
@@ -63,11 +121,29 @@ export class StatisticsQuantity extends Model {
   static initModel(sequelize: Sequelize) {
     StatisticsQuantity.init(
       {
-        id: col.id, ...cell(), key: col.str(40), species: col.str(40), basis: col.str(20),
-        n: count(), students: count(), within: count(), partial: count(), outside: count(), notChecked: count(), checked: count(),
-        xSum: exact(), xSquares: exact(), bins: { ...col.text(), defaultValue: '[]' },
+        id: col.id,
+        ...cell(),
+        key: col.str(40),
+        species: col.str(40),
+        basis: col.str(20),
+        n: count(),
+        students: count(),
+        within: count(),
+        partial: count(),
+        outside: count(),
+        notChecked: count(),
+        checked: count(),
+        xSum: exact(),
+        xSquares: exact(),
+        bins: { ...col.text(), defaultValue: '[]' },
       },
-      { sequelize, modelName: 'StatisticsQuantity', tableName: 'statistics_quantities', timestamps: false, indexes: [{ name: 'statistics_quantities_key', unique: true, fields: ['practicalId', 'cohortId', 'key', 'species', 'basis'] }] },
+      {
+        sequelize,
+        modelName: 'StatisticsQuantity',
+        tableName: 'statistics_quantities',
+        timestamps: false,
+        indexes: [{ name: 'statistics_quantities_key', unique: true, fields: ['practicalId', 'cohortId', 'key', 'species', 'basis'] }],
+      },
     );
   }
 }
@@ -76,7 +152,13 @@ export class StatisticsSlip extends Model {
   static initModel(sequelize: Sequelize) {
     StatisticsSlip.init(
       { id: col.id, ...cell(), code: col.str(60), key: col.str(40), findings: count() },
-      { sequelize, modelName: 'StatisticsSlip', tableName: 'statistics_slips', timestamps: false, indexes: [{ name: 'statistics_slips_key', unique: true, fields: ['practicalId', 'cohortId', 'code', 'key'] }] },
+      {
+        sequelize,
+        modelName: 'StatisticsSlip',
+        tableName: 'statistics_slips',
+        timestamps: false,
+        indexes: [{ name: 'statistics_slips_key', unique: true, fields: ['practicalId', 'cohortId', 'code', 'key'] }],
+      },
     );
   }
 }
@@ -85,7 +167,13 @@ export class StatisticsSlipCode extends Model {
   static initModel(sequelize: Sequelize) {
     StatisticsSlipCode.init(
       { id: col.id, ...cell(), code: col.str(60), submissions: count(), example: col.fk(true) },
-      { sequelize, modelName: 'StatisticsSlipCode', tableName: 'statistics_slip_codes', timestamps: false, indexes: [{ name: 'statistics_slip_codes_key', unique: true, fields: ['practicalId', 'cohortId', 'code'] }] },
+      {
+        sequelize,
+        modelName: 'StatisticsSlipCode',
+        tableName: 'statistics_slip_codes',
+        timestamps: false,
+        indexes: [{ name: 'statistics_slip_codes_key', unique: true, fields: ['practicalId', 'cohortId', 'code'] }],
+      },
     );
   }
 }
@@ -94,10 +182,27 @@ export class StatisticsMarker extends Model {
   static initModel(sequelize: Sequelize) {
     StatisticsMarker.init(
       {
-        id: col.id, ...cell(), markerId: col.fk(), submissions: count(), markCount: count(), markSum: exact(), markSquares: exact(),
-        differenceCount: count(), differenceSum: exact(), differenceSquares: exact(), overrides: count(), moderations: count(), moderationChanges: count(),
+        id: col.id,
+        ...cell(),
+        markerId: col.fk(),
+        submissions: count(),
+        markCount: count(),
+        markSum: exact(),
+        markSquares: exact(),
+        differenceCount: count(),
+        differenceSum: exact(),
+        differenceSquares: exact(),
+        overrides: count(),
+        moderations: count(),
+        moderationChanges: count(),
       },
-      { sequelize, modelName: 'StatisticsMarker', tableName: 'statistics_markers', timestamps: false, indexes: [{ name: 'statistics_markers_key', unique: true, fields: ['practicalId', 'cohortId', 'markerId'] }] },
+      {
+        sequelize,
+        modelName: 'StatisticsMarker',
+        tableName: 'statistics_markers',
+        timestamps: false,
+        indexes: [{ name: 'statistics_markers_key', unique: true, fields: ['practicalId', 'cohortId', 'markerId'] }],
+      },
     );
   }
 }

@@ -17,11 +17,23 @@ export class SubmittedValue extends Model<InferAttributes<SubmittedValue>, Infer
   static initModel(sequelize: Sequelize) {
     SubmittedValue.init(
       {
-        id: col.id, submissionId: col.fk(), key: col.str(40), species: col.str(40), valueText: col.str(60),
-        unit: { ...col.str(40), defaultValue: '' }, uncertaintyText: col.str(60, true), valueSI: col.float(),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        submissionId: col.fk(),
+        key: col.str(40),
+        species: col.str(40),
+        valueText: col.str(60),
+        unit: { ...col.str(40), defaultValue: '' },
+        uncertaintyText: col.str(60, true),
+        valueSI: col.float(),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'SubmittedValue', tableName: 'submitted_values', indexes: [{ unique: true, fields: ['submissionId', 'key', 'species'] }] },
+      {
+        sequelize,
+        modelName: 'SubmittedValue',
+        tableName: 'submitted_values',
+        indexes: [{ unique: true, fields: ['submissionId', 'key', 'species'] }],
+      },
     );
   }
 }

@@ -13,7 +13,12 @@ export class TaAssignment extends Model<InferAttributes<TaAssignment>, InferCrea
   static initModel(sequelize: Sequelize) {
     TaAssignment.init(
       { id: col.id, cohortId: col.fk(), taId: col.fk(), studentId: col.fk(true), createdAt: col.date(false), updatedAt: col.date(false) },
-      { sequelize, modelName: 'TaAssignment', tableName: 'ta_assignments', indexes: [{ unique: true, fields: ['cohortId', 'taId', 'studentId'] }] },
+      {
+        sequelize,
+        modelName: 'TaAssignment',
+        tableName: 'ta_assignments',
+        indexes: [{ unique: true, fields: ['cohortId', 'taId', 'studentId'] }],
+      },
     );
   }
 }

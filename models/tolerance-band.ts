@@ -23,11 +23,24 @@ export class ToleranceBand extends Model<InferAttributes<ToleranceBand>, InferCr
   static initModel(sequelize: Sequelize) {
     ToleranceBand.init(
       {
-        id: col.id, quantityDefinitionId: col.fk(), cohortId: col.fk(true), basis: col.str(20), kind: col.str(20),
-        inner: col.float(false), outer: col.float(), unit: col.str(40, true), updatedById: col.fk(true),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        quantityDefinitionId: col.fk(),
+        cohortId: col.fk(true),
+        basis: col.str(20),
+        kind: col.str(20),
+        inner: col.float(false),
+        outer: col.float(),
+        unit: col.str(40, true),
+        updatedById: col.fk(true),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'ToleranceBand', tableName: 'tolerance_bands', indexes: [{ unique: true, fields: ['quantityDefinitionId', 'cohortId', 'basis'] }] },
+      {
+        sequelize,
+        modelName: 'ToleranceBand',
+        tableName: 'tolerance_bands',
+        indexes: [{ unique: true, fields: ['quantityDefinitionId', 'cohortId', 'basis'] }],
+      },
     );
   }
 }

@@ -24,10 +24,19 @@ export class Upload extends Model<InferAttributes<Upload>, InferCreationAttribut
   static initModel(sequelize: Sequelize) {
     Upload.init(
       {
-        id: col.id, ownerId: col.fk(), submissionId: col.fk(true), kind: col.str(20), originalName: col.str(255),
-        storedName: { ...col.str(100), unique: true }, sha256: col.str(64), size: { ...col.fk() }, contentType: col.str(100),
-        sample: col.str(40, true), analysis: col.json(true),
-        createdAt: col.date(false), updatedAt: col.date(false),
+        id: col.id,
+        ownerId: col.fk(),
+        submissionId: col.fk(true),
+        kind: col.str(20),
+        originalName: col.str(255),
+        storedName: { ...col.str(100), unique: true },
+        sha256: col.str(64),
+        size: { ...col.fk() },
+        contentType: col.str(100),
+        sample: col.str(40, true),
+        analysis: col.json(true),
+        createdAt: col.date(false),
+        updatedAt: col.date(false),
       },
       { sequelize, modelName: 'Upload', tableName: 'uploads', indexes: [{ fields: ['sha256'] }, { fields: ['submissionId', 'kind'] }] },
     );

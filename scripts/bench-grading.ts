@@ -55,7 +55,12 @@ function makeBatch(): { inputs: SubmissionInput[]; nu: Float64Array; mu: Float64
         B0: { value: '10.44', unit: 'cm-1' },
         re: { value: '1.2746', unit: 'Å' },
       },
-      tolerances: { bandCentre: { absolute: 2, unit: 'cm-1' }, forceConstant: { relative: 0.01, partial: { relative: 0.03 } }, B0: { relative: 0.01 }, re: { absolute: 0.002, unit: 'Å' } },
+      tolerances: {
+        bandCentre: { absolute: 2, unit: 'cm-1' },
+        forceConstant: { relative: 0.01, partial: { relative: 0.03 } },
+        B0: { relative: 0.01 },
+        re: { absolute: 0.002, unit: 'Å' },
+      },
     });
   }
   return { inputs, nu, mu };
@@ -121,12 +126,21 @@ const nsMin = Math.min(...bareNs);
 const fmtLoad = (l: number[]) => l.map((x) => x.toFixed(2)).join(' ');
 
 console.log(`grading benchmark: ${N} submissions, 40-line fit each, mixed right answers and slips`);
-console.log(`  machine: ${os.cpus().length} cores, load average (1/5/15 min) ${fmtLoad(load0)} before, ${fmtLoad(load1)} after; node ${process.version}`);
+console.log(
+  `  machine: ${os.cpus().length} cores, load average (1/5/15 min) ${fmtLoad(load0)} before, ${fmtLoad(load1)} after; node ${process.version}`,
+);
 console.log(`  ${REPS} timed passes after 1 warm-up pass; median (min) of the passes`);
-console.log(`  checkSubmission: ${(1e6 / usMed).toFixed(0)} (${(1e6 / usMin).toFixed(0)}) submissions/s, ${usMed.toFixed(1)} (${usMin.toFixed(1)}) µs per submission (target < 100 µs)`);
+console.log(
+  `  checkSubmission: ${(1e6 / usMed).toFixed(0)} (${(1e6 / usMin).toFixed(0)}) submissions/s, ${usMed.toFixed(1)} (${usMin.toFixed(1)}) µs per submission (target < 100 µs)`,
+);
 console.log(`    passes, µs/submission: ${fullUs.map((x) => x.toFixed(1)).join(' ')}`);
 console.log(`  checkSubmission CPU time: ${median(fullCpuUs).toFixed(1)} (${Math.min(...fullCpuUs).toFixed(1)}) µs per submission`);
 console.log(`  bare k = 4π²c²ν̃²μ loop: ${nsMed.toFixed(2)} (${nsMin.toFixed(2)}) ns per submission`);
-console.log(`  ratio full check / bare arithmetic: ${((usMed * 1000) / nsMed).toFixed(0)}× (${((usMin * 1000) / nsMin).toFixed(0)}× min/min)`);
+console.log(
+  `  ratio full check / bare arithmetic: ${((usMed * 1000) / nsMed).toFixed(0)}× (${((usMin * 1000) / nsMin).toFixed(0)}× min/min)`,
+);
 console.log(`  (${diagnosedTotal} slips named over ${REPS + 1} passes; checksum ${sink.toExponential(3)})`);
-if (load0[0] > os.cpus().length) console.log(`  note: the 1-minute load (${load0[0].toFixed(1)}) exceeds the core count; other processes share the CPU, so trust the minimum more than the median.`);
+if (load0[0] > os.cpus().length)
+  console.log(
+    `  note: the 1-minute load (${load0[0].toFixed(1)}) exceeds the core count; other processes share the CPU, so trust the minimum more than the median.`,
+  );

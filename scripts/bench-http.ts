@@ -33,11 +33,14 @@ import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
-// eslint-disable-next-line @typescript-eslint/no-require-imports
+// eslint-disable-next-line @typescript-eslint/no-require-imports -- autocannon ships no ES module entry
 const autocannon = require('autocannon');
 
 const SECONDS = Number(process.argv[2] ?? 5);
-const SIZES = (process.env.BENCH_SIZES ?? '1000,10000,100000').split(',').map((s) => Number(s.trim())).filter((n) => n > 0);
+const SIZES = (process.env.BENCH_SIZES ?? '1000,10000,100000')
+  .split(',')
+  .map((s) => Number(s.trim()))
+  .filter((n) => n > 0);
 const POSTGRES = process.env.BENCH_DB === 'postgres';
 const INSTANCES = POSTGRES ? 2 : 1;
 const RELEASE_BATCH = Number(process.env.BENCH_RELEASE ?? 100);
@@ -77,9 +80,23 @@ async function ports(n: number): Promise<number[]> {
   return out;
 }
 
-const load = () => os.loadavg().map((x) => x.toFixed(2)).join(' ');
+const load = () =>
+  os
+    .loadavg()
+    .map((x) => x.toFixed(2))
+    .join(' ');
 
-type Run = { route: string; connections: number; median: number; p95: number; rps: number; total: number; errors: number; non2xx: number; statuses: Record<string, number> };
+type Run = {
+  route: string;
+  connections: number;
+  median: number;
+  p95: number;
+  rps: number;
+  total: number;
+  errors: number;
+  non2xx: number;
+  statuses: Record<string, number>;
+};
 type Spec = { path: string; method?: string; cookies: string[]; body?: string };
 
 function percentile(sorted: number[], p: number) {
@@ -108,7 +125,12 @@ async function drive(bases: string[], route: string, connections: number, spec: 
             path: spec.path,
             setupRequest: (req: { headers?: Record<string, string> }) => {
               const cookie = spec.cookies[i++ % spec.cookies.length];
-              req.headers = { ...req.headers, origin: base, ...(cookie ? { cookie } : {}), ...(spec.body ? { 'content-type': 'application/json' } : {}) };
+              req.headers = {
+                ...req.headers,
+                origin: base,
+                ...(cookie ? { cookie } : {}),
+                ...(spec.body ? { 'content-type': 'application/json' } : {}),
+              };
               return spec.body ? { ...req, body: spec.body } : req;
             },
           },
@@ -124,7 +146,17 @@ async function drive(bases: string[], route: string, connections: number, spec: 
     }),
   );
   latencies.sort((a, b) => a - b);
-  return { route, connections, median: percentile(latencies, 50), p95: percentile(latencies, 95), rps: latencies.length / seconds, total: latencies.length, errors, non2xx, statuses };
+  return {
+    route,
+    connections,
+    median: percentile(latencies, 50),
+    p95: percentile(latencies, 95),
+    rps: latencies.length / seconds,
+    total: latencies.length,
+    errors,
+    non2xx,
+    statuses,
+  };
 }
 
 /** Wait until every instance answers the bare route promptly again (requests still in flight from the last run). */
@@ -148,14 +180,18 @@ function setCookies(res: Response): string[] {
 async function signIn(base: string, email: string): Promise<string> {
   const csrfRes = await fetch(`${base}/api/auth/csrf`);
   const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
-  const jar = setCookies(csrfRes).map((c) => c.split(';')[0]).join('; ');
+  const jar = setCookies(csrfRes)
+    .map((c) => c.split(';')[0])
+    .join('; ');
   const res = await fetch(`${base}/api/auth/callback/credentials`, {
     method: 'POST',
     redirect: 'manual',
     headers: { 'content-type': 'application/x-www-form-urlencoded', cookie: jar, origin: base },
     body: new URLSearchParams({ csrfToken, email, password: PASSWORD, json: 'true' }),
   });
-  const session = setCookies(res).map((c) => c.split(';')[0]).find((c) => /session-token=/.test(c));
+  const session = setCookies(res)
+    .map((c) => c.split(';')[0])
+    .find((c) => /session-token=/.test(c));
   if (!session) throw new Error(`sign-in failed for ${email}: ${res.status}`);
   return session;
 }
@@ -224,7 +260,9 @@ async function prepareDatabase(size: number, dir: string): Promise<string> {
   const { seedSubmissions } = await import('../tests/integration/statistics-seed');
   const { Practical, PracticalCohort, User, CourseMembership, TaAssignment } = models();
   const practical = (await Practical.findOne({ where: { title: 'HCl/DCl fundamental band', copiedFromId: null } }))!;
-  const cohortIds = (await PracticalCohort.findAll({ where: { practicalId: practical.id }, order: [['cohortId', 'ASC']] })).map((p) => p.cohortId);
+  const cohortIds = (await PracticalCohort.findAll({ where: { practicalId: practical.id }, order: [['cohortId', 'ASC']] })).map(
+    (p) => p.cohortId,
+  );
   const t0 = performance.now();
   await withoutKeeping(async () => {
     for (const [ci, cohortId] of cohortIds.entries()) {
@@ -232,14 +270,32 @@ async function prepareDatabase(size: number, dir: string): Promise<string> {
       const count = Math.ceil(size / cohortIds.length);
       for (let start = 0; start < count; start += 2500) {
         const n = Math.min(2500, count - start);
-        const students = await User.bulkCreate(Array.from({ length: n }, (_, i) => ({ email: `b${ci}-${start + i}@bench.example`, name: `Bench Student ${ci}-${start + i}`, passwordHash: null, isAdmin: false, studentNumber: `HB${ci}${String(start + i).padStart(6, '0')}` })));
-        await CourseMembership.bulkCreate(students.map((s) => ({ userId: s.id, courseId: practical.courseId, role: 'student' as const, cohortId })));
-        await seedSubmissions({ practicalId: practical.id, cohortId, studentIds: students.map((s) => s.id), markerIds: markers.length ? markers : [students[0].id], seed: 1 + ci * 1000 + start });
+        const students = await User.bulkCreate(
+          Array.from({ length: n }, (_, i) => ({
+            email: `b${ci}-${start + i}@bench.example`,
+            name: `Bench Student ${ci}-${start + i}`,
+            passwordHash: null,
+            isAdmin: false,
+            studentNumber: `HB${ci}${String(start + i).padStart(6, '0')}`,
+          })),
+        );
+        await CourseMembership.bulkCreate(
+          students.map((s) => ({ userId: s.id, courseId: practical.courseId, role: 'student' as const, cohortId })),
+        );
+        await seedSubmissions({
+          practicalId: practical.id,
+          cohortId,
+          studentIds: students.map((s) => s.id),
+          markerIds: markers.length ? markers : [students[0].id],
+          seed: 1 + ci * 1000 + start,
+        });
       }
     }
   });
   const built = await rebuildStatistics();
-  console.log(`  database: ${POSTGRES ? `PostgreSQL ${pgDatabase}` : 'SQLite'}; ${size.toLocaleString('en-GB')} submissions added over ${cohortIds.length} cohorts in ${((performance.now() - t0) / 1000).toFixed(0)} s (kept statistics: ${built.submissions} counted)`);
+  console.log(
+    `  database: ${POSTGRES ? `PostgreSQL ${pgDatabase}` : 'SQLite'}; ${size.toLocaleString('en-GB')} submissions added over ${cohortIds.length} cohorts in ${((performance.now() - t0) / 1000).toFixed(0)} s (kept statistics: ${built.submissions} counted)`,
+  );
   await closeDatabase();
   return url;
 }
@@ -254,10 +310,15 @@ async function runSize(size: number) {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'oscillab-bench-http-'));
   const started: ChildProcess[] = [];
   try {
-    console.log(`\n=== ${size.toLocaleString('en-GB')} submissions, ${INSTANCES} instance(s) on ${POSTGRES ? 'PostgreSQL' : 'SQLite'} — load ${load()}`);
+    console.log(
+      `\n=== ${size.toLocaleString('en-GB')} submissions, ${INSTANCES} instance(s) on ${POSTGRES ? 'PostgreSQL' : 'SQLite'} — load ${load()}`,
+    );
     const url = await prepareDatabase(size, dir);
     const [smtpPort, webPort, ...appPorts] = await ports(2 + INSTANCES);
-    const catcher = spawn(process.execPath, [path.resolve('scripts/maildev.mjs'), String(smtpPort), String(webPort)], { stdio: 'ignore', detached: true });
+    const catcher = spawn(process.execPath, [path.resolve('scripts/maildev.mjs'), String(smtpPort), String(webPort)], {
+      stdio: 'ignore',
+      detached: true,
+    });
     children.push(catcher);
     started.push(catcher);
     const mailApi = `http://127.0.0.1:${webPort}`;
@@ -279,7 +340,11 @@ async function runSize(size: number) {
         SMTP_URL: `smtp://127.0.0.1:${smtpPort}`,
       };
       const log = fs.openSync(path.join(dir, `server-${i}.log`), 'a');
-      const child = spawn(process.execPath, [...serverNodeArgs, path.resolve('node_modules/next/dist/bin/next'), 'start', '-p', String(appPorts[i]), '-H', '127.0.0.1'], { env, stdio: ['ignore', log, log], detached: true });
+      const child = spawn(
+        process.execPath,
+        [...serverNodeArgs, path.resolve('node_modules/next/dist/bin/next'), 'start', '-p', String(appPorts[i]), '-H', '127.0.0.1'],
+        { env, stdio: ['ignore', log, log], detached: true },
+      );
       children.push(child);
       started.push(child);
       return child;
@@ -293,15 +358,43 @@ async function runSize(size: number) {
     const { emptyDraft } = await import('@/lib/schemas/submission');
     const { Practical, PracticalCohort, CourseMembership, User, TaAssignment, Submission } = models();
     const practical = (await Practical.findOne({ where: { title: 'HCl/DCl fundamental band', copiedFromId: null } }))!;
-    const cohortIds = (await PracticalCohort.findAll({ where: { practicalId: practical.id }, order: [['cohortId', 'ASC']] })).map((p) => p.cohortId);
-    const demoStudents = (await User.findAll({ where: { email: { [(await import('sequelize')).Op.like]: 'student%@northmere.example' } }, order: [['id', 'ASC']] })).map((u) => u);
-    const memberIds = new Set((await CourseMembership.findAll({ where: { courseId: practical.courseId, role: 'student', cohortId: cohortIds } })).map((m) => m.userId));
-    const students = demoStudents.filter((u) => memberIds.has(u.id)).map((u) => u.email).slice(0, 20);
+    const cohortIds = (await PracticalCohort.findAll({ where: { practicalId: practical.id }, order: [['cohortId', 'ASC']] })).map(
+      (p) => p.cohortId,
+    );
+    const demoStudents = (
+      await User.findAll({
+        where: { email: { [(await import('sequelize')).Op.like]: 'student%@northmere.example' } },
+        order: [['id', 'ASC']],
+      })
+    ).map((u) => u);
+    const memberIds = new Set(
+      (await CourseMembership.findAll({ where: { courseId: practical.courseId, role: 'student', cohortId: cohortIds } })).map(
+        (m) => m.userId,
+      ),
+    );
+    const students = demoStudents
+      .filter((u) => memberIds.has(u.id))
+      .map((u) => u.email)
+      .slice(0, 20);
     const taId = (await TaAssignment.findOne({ where: { cohortId: cohortIds[0], studentId: null }, order: [['id', 'ASC']] }))!.taId;
     const ta = (await User.findByPk(taId))!.email;
     const lead = 'lead@northmere.example';
-    const toRelease = (await Submission.findAll({ where: { practicalId: practical.id, cohortId: cohortIds[0], status: 'marked', isMarkedAttempt: true }, attributes: ['id'], limit: RELEASE_BATCH, order: [['id', 'ASC']] })).map((s) => s.id);
-    const queueRows = await Submission.count({ where: { practicalId: practical.id, cohortId: cohortIds[0], isMarkedAttempt: true, status: ['submitted', 'marked', 'released', 'resubmission-requested'] } });
+    const toRelease = (
+      await Submission.findAll({
+        where: { practicalId: practical.id, cohortId: cohortIds[0], status: 'marked', isMarkedAttempt: true },
+        attributes: ['id'],
+        limit: RELEASE_BATCH,
+        order: [['id', 'ASC']],
+      })
+    ).map((s) => s.id);
+    const queueRows = await Submission.count({
+      where: {
+        practicalId: practical.id,
+        cohortId: cohortIds[0],
+        isMarkedAttempt: true,
+        status: ['submitted', 'marked', 'released', 'resubmission-requested'],
+      },
+    });
     const draft = emptyDraft(practical.species);
     const first = practical.species[0];
     draft.species[first].lines = [
@@ -329,7 +422,11 @@ async function runSize(size: number) {
     if (only) for (const name of Object.keys(routes)) if (name !== 'bare' && !only.includes(name)) delete routes[name];
     for (const [name, spec] of Object.entries(routes)) {
       for (const base of bases) {
-        const res = await fetch(base + spec.path, { method: spec.method ?? 'GET', headers: { origin: base, cookie: spec.cookies[0], ...(spec.body ? { 'content-type': 'application/json' } : {}) }, body: spec.body });
+        const res = await fetch(base + spec.path, {
+          method: spec.method ?? 'GET',
+          headers: { origin: base, cookie: spec.cookies[0], ...(spec.body ? { 'content-type': 'application/json' } : {}) },
+          body: spec.body,
+        });
         if (!res.ok) throw new Error(`${name} on ${base}: ${res.status} ${await res.text()}`);
       }
       const warm = await drive(bases, name, 10, spec, 1);
@@ -349,7 +446,11 @@ async function runSize(size: number) {
     // A release through the app: every e-mail must arrive exactly once, whichever worker sends it.
     await fetch(`${mailApi}/api/email/all`, { method: 'DELETE' });
     const releaseStart = performance.now();
-    const released = await fetch(`${bases[0]}/api/release`, { method: 'POST', headers: { origin: bases[0], cookie: taCookie, 'content-type': 'application/json' }, body: JSON.stringify({ submissionIds: toRelease }) });
+    const released = await fetch(`${bases[0]}/api/release`, {
+      method: 'POST',
+      headers: { origin: bases[0], cookie: taCookie, 'content-type': 'application/json' },
+      body: JSON.stringify({ submissionIds: toRelease }),
+    });
     const releaseBody = (await released.json()) as { released?: number; error?: string };
     const releasedIn = performance.now() - releaseStart;
     const deliverEnd = Date.now() + 120_000;
@@ -374,26 +475,42 @@ async function runSize(size: number) {
     }
 
     const pad = (s: string | number, n: number) => String(s).padStart(n);
-    console.log(`\n  ${'route'.padEnd(12)}${pad('conn', 5)}${pad('median ms', 11)}${pad('p95 ms', 9)}${pad('req/s', 9)}${pad('errors', 8)}${pad('non-2xx', 9)}${pad('p95/bare', 10)}${pad('µs/subm.', 10)}`);
+    console.log(
+      `\n  ${'route'.padEnd(12)}${pad('conn', 5)}${pad('median ms', 11)}${pad('p95 ms', 9)}${pad('req/s', 9)}${pad('errors', 8)}${pad('non-2xx', 9)}${pad('p95/bare', 10)}${pad('µs/subm.', 10)}`,
+    );
     for (const r of runs) {
       const bare = runs.find((b) => b.route === 'bare' && b.connections === r.connections)!;
-      console.log(`  ${r.route.padEnd(12)}${pad(r.connections, 5)}${pad(r.median.toFixed(1), 11)}${pad(r.p95.toFixed(1), 9)}${pad(r.rps.toFixed(0), 9)}${pad(r.errors, 8)}${pad(r.non2xx, 9)}${pad((r.p95 / bare.p95).toFixed(2) + '×', 10)}${pad(((r.p95 * 1000) / size).toFixed(2), 10)}`);
+      console.log(
+        `  ${r.route.padEnd(12)}${pad(r.connections, 5)}${pad(r.median.toFixed(1), 11)}${pad(r.p95.toFixed(1), 9)}${pad(r.rps.toFixed(0), 9)}${pad(r.errors, 8)}${pad(r.non2xx, 9)}${pad((r.p95 / bare.p95).toFixed(2) + '×', 10)}${pad(((r.p95 * 1000) / size).toFixed(2), 10)}`,
+      );
     }
     console.log(`  peak resident memory: ${peaks.map((p, i) => `instance ${i + 1} ${(p / 2 ** 20).toFixed(0)} MB`).join(', ')}`);
-    console.log(`  release of ${toRelease.length} through POST /api/release: ${releaseBody.released ?? releaseBody.error} released in ${(releasedIn / 1000).toFixed(1)} s, e-mails delivered by ${(deliveredIn / 1000).toFixed(1)} s: ${ids.length} received, ${distinct} distinct outbox rows`);
+    console.log(
+      `  release of ${toRelease.length} through POST /api/release: ${releaseBody.released ?? releaseBody.error} released in ${(releasedIn / 1000).toFixed(1)} s, e-mails delivered by ${(deliveredIn / 1000).toFixed(1)} s: ${ids.length} received, ${distinct} distinct outbox rows`,
+    );
     console.log(`  500s logged by the servers: ${serverErrors}`);
 
     const get = (route: string, c: number) => runs.find((r) => r.route === route && r.connections === c);
     const ratio = (route: string, c: number) => (get(route, c)?.p95 ?? NaN) / get('bare', c)!.p95;
     const targets: [string, boolean][] = [];
-    if (get('draft save', 20)) targets.push([`draft save p95 @20 ≤ 3× bare: ${ratio('draft save', 20).toFixed(2)}×`, ratio('draft save', 20) <= 3]);
-    if (get('queue', 20)) targets.push([`queue p95 @20 ≤ 3× bare and ≥ 100 req/s: ${ratio('queue', 20).toFixed(2)}×, ${get('queue', 20)!.rps.toFixed(0)} req/s`, ratio('queue', 20) <= 3 && get('queue', 20)!.rps >= 100]);
-    if (get('statistics', 20)) targets.push([`statistics p95 @20 ≤ 3× bare: ${ratio('statistics', 20).toFixed(2)}×`, ratio('statistics', 20) <= 3]);
-    for (const route of ['queue', 'statistics']) if (get(route, 100)) targets.push([`${route} p95 @100 ≤ 6× bare: ${ratio(route, 100).toFixed(2)}×`, ratio(route, 100) <= 6]);
+    if (get('draft save', 20))
+      targets.push([`draft save p95 @20 ≤ 3× bare: ${ratio('draft save', 20).toFixed(2)}×`, ratio('draft save', 20) <= 3]);
+    if (get('queue', 20))
+      targets.push([
+        `queue p95 @20 ≤ 3× bare and ≥ 100 req/s: ${ratio('queue', 20).toFixed(2)}×, ${get('queue', 20)!.rps.toFixed(0)} req/s`,
+        ratio('queue', 20) <= 3 && get('queue', 20)!.rps >= 100,
+      ]);
+    if (get('statistics', 20))
+      targets.push([`statistics p95 @20 ≤ 3× bare: ${ratio('statistics', 20).toFixed(2)}×`, ratio('statistics', 20) <= 3]);
+    for (const route of ['queue', 'statistics'])
+      if (get(route, 100)) targets.push([`${route} p95 @100 ≤ 6× bare: ${ratio(route, 100).toFixed(2)}×`, ratio(route, 100) <= 6]);
     const errors = runs.reduce((n, r) => n + r.errors + r.non2xx, 0) + serverErrors;
     targets.push([`no errors (timed runs, all routes; server 500s): ${errors}`, errors === 0]);
     const exactlyOnce = releaseBody.released === toRelease.length && ids.length === toRelease.length && distinct === toRelease.length;
-    targets.push([`every e-mail of the release exactly once: ${ids.length} received for ${releaseBody.released ?? 0} released, ${distinct} distinct`, exactlyOnce]);
+    targets.push([
+      `every e-mail of the release exactly once: ${ids.length} received for ${releaseBody.released ?? 0} released, ${distinct} distinct`,
+      exactlyOnce,
+    ]);
     for (const [text, ok] of targets) console.log(`  target — ${text} → ${ok ? 'met' : 'NOT met'}`);
     return { size, runs, peaks, targets };
   } finally {
@@ -422,11 +539,15 @@ async function runSize(size: number) {
 
 async function main() {
   if (!fs.existsSync(path.join(distDir, 'BUILD_ID'))) {
-    console.error(`No production build in ${distDir}/. Run \`${process.env.NEXT_DIST_DIR ? `NEXT_DIST_DIR=${distDir} ` : ''}npm run build\` first.`);
+    console.error(
+      `No production build in ${distDir}/. Run \`${process.env.NEXT_DIST_DIR ? `NEXT_DIST_DIR=${distDir} ` : ''}npm run build\` first.`,
+    );
     process.exit(2);
   }
   if (POSTGRES) pgAdmin = execFileSync('bash', ['scripts/postgres.sh'], { encoding: 'utf8' }).trim().split('\n').pop()!;
-  console.log(`Oscillab HTTP benchmark — ${os.cpus().length} CPUs, load average at start ${load()}; build ${distDir}/; sizes ${SIZES.join(', ')}; ${INSTANCES} instance(s) on ${POSTGRES ? `PostgreSQL (${pgAdmin})` : 'SQLite'}`);
+  console.log(
+    `Oscillab HTTP benchmark — ${os.cpus().length} CPUs, load average at start ${load()}; build ${distDir}/; sizes ${SIZES.join(', ')}; ${INSTANCES} instance(s) on ${POSTGRES ? `PostgreSQL (${pgAdmin})` : 'SQLite'}`,
+  );
   const results = [];
   for (const size of SIZES) results.push(await runSize(size));
   if (results.length > 1) {
@@ -443,9 +564,28 @@ async function main() {
       });
       console.log(`  ${route.padEnd(12)}${cells.join('')}`);
     }
-    console.log(`  ${'peak RSS MB'.padEnd(12)}${results.map((r) => r.peaks.map((p) => (p / 2 ** 20).toFixed(0)).join(' + ').padStart(26)).join('')}`);
+    console.log(
+      `  ${'peak RSS MB'.padEnd(12)}${results
+        .map((r) =>
+          r.peaks
+            .map((p) => (p / 2 ** 20).toFixed(0))
+            .join(' + ')
+            .padStart(26),
+        )
+        .join('')}`,
+    );
     const all = results.flatMap((r) => r.targets.map(([t, ok]) => ({ size: r.size, t, ok })));
-    console.log(`\n${all.filter((x) => !x.ok).length ? 'Targets NOT met:\n' + all.filter((x) => !x.ok).map((x) => `  ${x.size}: ${x.t}`).join('\n') : 'Every target met at every size.'}`);
+    console.log(
+      `\n${
+        all.filter((x) => !x.ok).length
+          ? 'Targets NOT met:\n' +
+            all
+              .filter((x) => !x.ok)
+              .map((x) => `  ${x.size}: ${x.t}`)
+              .join('\n')
+          : 'Every target met at every size.'
+      }`,
+    );
   }
   console.log(`load average at end ${load()}`);
 }

@@ -59,7 +59,11 @@ async function pickPort(): Promise<number> {
   throw new Error('No free port in 3550–3599 (set BENCH_PORT).');
 }
 
-const load = () => os.loadavg().map((x) => x.toFixed(2)).join(' ');
+const load = () =>
+  os
+    .loadavg()
+    .map((x) => x.toFixed(2))
+    .join(' ');
 
 function percentile(sorted: number[], p: number) {
   if (!sorted.length) return NaN;
@@ -96,14 +100,18 @@ function setCookies(res: Response): string[] {
 async function signIn(base: string, email: string): Promise<string> {
   const csrfRes = await fetch(`${base}/api/auth/csrf`);
   const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
-  const jar = setCookies(csrfRes).map((c) => c.split(';')[0]).join('; ');
+  const jar = setCookies(csrfRes)
+    .map((c) => c.split(';')[0])
+    .join('; ');
   const res = await fetch(`${base}/api/auth/callback/credentials`, {
     method: 'POST',
     redirect: 'manual',
     headers: { 'content-type': 'application/x-www-form-urlencoded', cookie: jar, origin: base },
     body: new URLSearchParams({ csrfToken, email, password: PASSWORD, json: 'true' }),
   });
-  const session = setCookies(res).map((c) => c.split(';')[0]).find((c) => /session-token=/.test(c));
+  const session = setCookies(res)
+    .map((c) => c.split(';')[0])
+    .find((c) => /session-token=/.test(c));
   if (!session) throw new Error(`sign-in failed for ${email}: ${res.status}`);
   return session;
 }
@@ -113,7 +121,9 @@ type PageSpec = { role: string; name: string; path: string; cookie: string };
 async function visuallyComplete(base: string, pages: { name: string; path: string; cookie: string; ready: string[] }[], runs: number) {
   const executablePath = process.env.CHROMIUM_PATH || '/usr/bin/chromium';
   if (process.env.BENCH_BROWSER === '0' || !fs.existsSync(executablePath)) {
-    console.log(`\n(visually complete: skipped — ${process.env.BENCH_BROWSER === '0' ? 'BENCH_BROWSER=0' : `no browser at ${executablePath}`})`);
+    console.log(
+      `\n(visually complete: skipped — ${process.env.BENCH_BROWSER === '0' ? 'BENCH_BROWSER=0' : `no browser at ${executablePath}`})`,
+    );
     return [];
   }
   const { chromium } = await import('@playwright/test');
@@ -145,7 +155,9 @@ async function visuallyComplete(base: string, pages: { name: string; path: strin
 
 async function main() {
   if (!fs.existsSync(path.join(distDir, 'BUILD_ID'))) {
-    console.error(`No production build in ${distDir}/. Run \`${process.env.NEXT_DIST_DIR ? `NEXT_DIST_DIR=${distDir} ` : ''}npx next build\` first (this script builds nothing).`);
+    console.error(
+      `No production build in ${distDir}/. Run \`${process.env.NEXT_DIST_DIR ? `NEXT_DIST_DIR=${distDir} ` : ''}npx next build\` first (this script builds nothing).`,
+    );
     process.exit(2);
   }
   const port = await pickPort();
@@ -175,11 +187,18 @@ async function main() {
   const practical = (await Practical.findOne({ where: { title: 'HCl/DCl fundamental band' }, order: [['id', 'ASC']] }))!;
   const ta1 = (await User.findOne({ where: { email: 'ta1@northmere.example' } }))!;
   const duty = (await TaAssignment.findOne({ where: { taId: ta1.id } }))!;
-  const submission = (await Submission.findOne({ where: { practicalId: practical.id, cohortId: duty.cohortId, isMarkedAttempt: true }, order: [['id', 'ASC']] }))!;
+  const submission = (await Submission.findOne({
+    where: { practicalId: practical.id, cohortId: duty.cohortId, isMarkedAttempt: true },
+    order: [['id', 'ASC']],
+  }))!;
   await closeDatabase();
 
   const log = fs.openSync(path.join(dir, 'server.log'), 'a');
-  server = spawn(process.execPath, [path.resolve('node_modules/next/dist/bin/next'), 'start', '-p', String(port), '-H', '127.0.0.1'], { env, stdio: ['ignore', log, log], detached: true });
+  server = spawn(process.execPath, [path.resolve('node_modules/next/dist/bin/next'), 'start', '-p', String(port), '-H', '127.0.0.1'], {
+    env,
+    stdio: ['ignore', log, log],
+    detached: true,
+  });
   try {
     const end = Date.now() + 90_000;
     for (;;) {
@@ -190,7 +209,13 @@ async function main() {
       if (Date.now() > end) throw new Error('next start did not answer within 90 s');
       await new Promise((r) => setTimeout(r, 300));
     }
-    const who = { student: 'student05@northmere.example', ta: 'ta1@northmere.example', instructor: 'instructor1@northmere.example', lead: 'lead@northmere.example', admin: 'admin@northmere.example' };
+    const who = {
+      student: 'student05@northmere.example',
+      ta: 'ta1@northmere.example',
+      instructor: 'instructor1@northmere.example',
+      lead: 'lead@northmere.example',
+      admin: 'admin@northmere.example',
+    };
     const cookies: Record<string, string> = {};
     for (const [role, email] of Object.entries(who)) cookies[role] = await signIn(base, email);
 
@@ -202,7 +227,12 @@ async function main() {
       { role: 'ta', name: 'marking screen', path: `/marking/${submission.id}`, cookie: cookies.ta },
       { role: 'instructor', name: 'courses', path: '/courses', cookie: cookies.instructor },
       { role: 'instructor', name: 'course set-up', path: `/courses/${practical.courseId}`, cookie: cookies.instructor },
-      { role: 'instructor', name: 'practical editor', path: `/courses/${practical.courseId}/practicals/${practical.id}`, cookie: cookies.instructor },
+      {
+        role: 'instructor',
+        name: 'practical editor',
+        path: `/courses/${practical.courseId}/practicals/${practical.id}`,
+        cookie: cookies.instructor,
+      },
       { role: 'instructor', name: 'moderation', path: '/moderation', cookie: cookies.instructor },
       { role: 'lead', name: 'statistics home', path: '/statistics', cookie: cookies.lead },
       { role: 'lead', name: 'statistics', path: `/statistics/${practical.id}`, cookie: cookies.lead },
@@ -216,7 +246,9 @@ async function main() {
     for (let i = 0; i < WARMUP; i++) for (const p of pages) await timedGet(base + p.path, p.cookie);
 
     console.log(`${SAMPLES} samples per page, one request at a time, pages in turn\n`);
-    const samples = new Map<string, { ttfb: number[]; total: number[]; bytes: number }>(pages.map((p) => [p.name, { ttfb: [], total: [], bytes: 0 }]));
+    const samples = new Map<string, { ttfb: number[]; total: number[]; bytes: number }>(
+      pages.map((p) => [p.name, { ttfb: [], total: [], bytes: 0 }]),
+    );
     for (let i = 0; i < SAMPLES; i++) {
       for (const p of pages) {
         const r = await timedGet(base + p.path, p.cookie);
@@ -227,9 +259,14 @@ async function main() {
       }
     }
     const bare = samples.get('bare page')!;
-    const bareP95 = percentile([...bare.total].sort((a, b) => a - b), 0.95);
+    const bareP95 = percentile(
+      [...bare.total].sort((a, b) => a - b),
+      0.95,
+    );
     const pad = (s: string | number, n: number) => String(s).padStart(n);
-    console.log(`${'role'.padEnd(11)}${'page'.padEnd(18)}${pad('first byte ms', 15)}${pad('whole page ms', 15)}${pad('p95', 8)}${pad('p95/bare', 10)}${pad('KB', 6)}`);
+    console.log(
+      `${'role'.padEnd(11)}${'page'.padEnd(18)}${pad('first byte ms', 15)}${pad('whole page ms', 15)}${pad('p95', 8)}${pad('p95/bare', 10)}${pad('KB', 6)}`,
+    );
     console.log(`${''.padEnd(29)}${pad('median', 15)}${pad('median', 15)}`);
     const over: string[] = [];
     for (const p of pages) {
@@ -238,23 +275,42 @@ async function main() {
       const total = [...s.total].sort((a, b) => a - b);
       const p95 = percentile(total, 0.95);
       if (p.name !== 'bare page' && p95 > 300) over.push(`${p.name} (${p95.toFixed(0)} ms)`);
-      console.log(`${p.role.padEnd(11)}${p.name.padEnd(18)}${pad(percentile(ttfb, 0.5).toFixed(1), 15)}${pad(percentile(total, 0.5).toFixed(1), 15)}${pad(p95.toFixed(1), 8)}${pad((p95 / bareP95).toFixed(2) + '×', 10)}${pad((s.bytes / 1024).toFixed(0), 6)}`);
+      console.log(
+        `${p.role.padEnd(11)}${p.name.padEnd(18)}${pad(percentile(ttfb, 0.5).toFixed(1), 15)}${pad(percentile(total, 0.5).toFixed(1), 15)}${pad(p95.toFixed(1), 8)}${pad((p95 / bareP95).toFixed(2) + '×', 10)}${pad((s.bytes / 1024).toFixed(0), 6)}`,
+      );
     }
-    console.log(`\ntarget — every main page p95 under 300 ms server time (whole page): ${over.length ? `NOT met: ${over.join(', ')}` : 'met'}`);
+    console.log(
+      `\ntarget — every main page p95 under 300 ms server time (whole page): ${over.length ? `NOT met: ${over.join(', ')}` : 'met'}`,
+    );
 
     const visual = await visuallyComplete(
       base,
       [
-        { name: 'marking screen', path: `/marking/${submission.id}`, cookie: cookies.ta, ready: ['#values-heading', '[data-testid="marking-spectrum"] svg', '[data-testid="fit-plot"] svg'] },
-        { name: 'statistics', path: `/statistics/${practical.id}`, cookie: cookies.lead, ready: ['[data-testid="box-plots"]', '[data-testid="slip-table"], #slips-h', '[data-testid="histogram"]'] },
+        {
+          name: 'marking screen',
+          path: `/marking/${submission.id}`,
+          cookie: cookies.ta,
+          ready: ['#values-heading', '[data-testid="marking-spectrum"] svg', '[data-testid="fit-plot"] svg'],
+        },
+        {
+          name: 'statistics',
+          path: `/statistics/${practical.id}`,
+          cookie: cookies.lead,
+          ready: ['[data-testid="box-plots"]', '[data-testid="slip-table"], #slips-h', '[data-testid="histogram"]'],
+        },
       ],
       Number(process.env.BENCH_BROWSER_RUNS ?? 5),
     );
     if (visual.length) {
       console.log(`\nvisually complete in Chromium at 1440×900 (from the start of navigation until the figures are on screen)`);
-      for (const v of visual) console.log(`  ${v.name.padEnd(16)} median ${v.median.toFixed(0)} ms, slowest ${v.worst.toFixed(0)} ms (${v.times.map((t) => t.toFixed(0)).join(', ')})`);
+      for (const v of visual)
+        console.log(
+          `  ${v.name.padEnd(16)} median ${v.median.toFixed(0)} ms, slowest ${v.worst.toFixed(0)} ms (${v.times.map((t) => t.toFixed(0)).join(', ')})`,
+        );
       const slow = visual.filter((v) => v.median > 1000);
-      console.log(`target — marking and statistics pages visually complete under 1 s (median): ${slow.length ? `NOT met: ${slow.map((v) => v.name).join(', ')}` : 'met'}`);
+      console.log(
+        `target — marking and statistics pages visually complete under 1 s (median): ${slow.length ? `NOT met: ${slow.map((v) => v.name).join(', ')}` : 'met'}`,
+      );
     }
     const serverLog = fs.readFileSync(path.join(dir, 'server.log'), 'utf8');
     const errors = serverLog.split('\n').filter((l) => /unhandled error|⨯/.test(l)).length;

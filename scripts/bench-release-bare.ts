@@ -22,15 +22,30 @@ export async function barePdf(input: FeedbackInput, way: 'naive' | 'fast'): Prom
   let f: PDFFont[];
   if (way === 'naive') {
     fontBytes ??= ['DejaVuSans.ttf', 'DejaVuSans-Bold.ttf', 'DejaVuSansMono.ttf'].map((name) => fs.readFileSync(path.join(fontDir, name)));
-    f = [await doc.embedFont(fontBytes[0], { subset: true }), await doc.embedFont(fontBytes[1], { subset: true }), await doc.embedFont(fontBytes[2], { subset: true })];
+    f = [
+      await doc.embedFont(fontBytes[0], { subset: true }),
+      await doc.embedFont(fontBytes[1], { subset: true }),
+      await doc.embedFont(fontBytes[2], { subset: true }),
+    ];
   } else {
     f = [await embedSharedFont(doc, 'regular'), await embedSharedFont(doc, 'bold'), await embedSharedFont(doc, 'mono')];
   }
   const strings = [
-    input.course, input.practical, input.cohort, input.student, input.submittedAt,
-    ...input.quantities.flatMap((q) => [q.label, q.reported, q.marks, ...q.rows.flatMap((r) => [r.basis, r.expected, r.deviation, r.verdict])]),
+    input.course,
+    input.practical,
+    input.cohort,
+    input.student,
+    input.submittedAt,
+    ...input.quantities.flatMap((q) => [
+      q.label,
+      q.reported,
+      q.marks,
+      ...q.rows.flatMap((r) => [r.basis, r.expected, r.deviation, r.verdict]),
+    ]),
     ...input.slips.flatMap((s) => [s.title, s.quantity, s.explanation, s.formula]),
-    ...input.comments.map((c) => c.text), input.sum, input.total,
+    ...input.comments.map((c) => c.text),
+    input.sum,
+    input.total,
   ];
   let page = doc.addPage([595.28, 841.89]);
   let y = 800;
@@ -45,8 +60,13 @@ export async function barePdf(input: FeedbackInput, way: 'naive' | 'fast'): Prom
   for (const p of input.plots) {
     for (const model of [p.fit, p.residuals]) {
       page = doc.addPage([595.28, 841.89]);
-      page.drawSvgPath(model.curve.map(([x, yy], i) => `${i ? 'L' : 'M'}${x} ${yy}`).join(' ') || 'M0 0', { x: 42, y: 800, borderWidth: 0.8 });
-      for (const m of model.markers) page.drawSvgPath(`M${m.x - 3} ${m.y - 3} L${m.x + 3} ${m.y - 3} L${m.x} ${m.y + 3} Z`, { x: 42, y: 800 });
+      page.drawSvgPath(model.curve.map(([x, yy], i) => `${i ? 'L' : 'M'}${x} ${yy}`).join(' ') || 'M0 0', {
+        x: 42,
+        y: 800,
+        borderWidth: 0.8,
+      });
+      for (const m of model.markers)
+        page.drawSvgPath(`M${m.x - 3} ${m.y - 3} L${m.x + 3} ${m.y - 3} L${m.x} ${m.y + 3} Z`, { x: 42, y: 800 });
       for (const t of [...model.xAxis.ticks, ...model.yAxis.ticks]) page.drawText(t.label, { x: 42 + t.pos, y: 500, size: 7, font: f[2] });
     }
   }

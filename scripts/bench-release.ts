@@ -48,7 +48,11 @@ async function caught(api: string): Promise<number> {
 }
 
 const s = (ms: number) => `${(ms / 1000).toFixed(2)} s`;
-const load = () => os.loadavg().map((x) => x.toFixed(2)).join(' ');
+const load = () =>
+  os
+    .loadavg()
+    .map((x) => x.toFixed(2))
+    .join(' ');
 
 async function main() {
   const base = Number(process.env.BENCH_PORT || 0);
@@ -60,7 +64,10 @@ async function main() {
   process.env.OUTBOX_WORKER = 'off';
   // Outbox runs log a line each (lib/log.ts); only warnings and errors here, unless asked.
   process.env.LOG_LEVEL ??= 'warn';
-  execFileSync(process.execPath, [path.resolve('node_modules/sequelize-cli/lib/sequelize'), 'db:migrate'], { env: process.env, stdio: 'pipe' });
+  execFileSync(process.execPath, [path.resolve('node_modules/sequelize-cli/lib/sequelize'), 'db:migrate'], {
+    env: process.env,
+    stdio: 'pipe',
+  });
   const catcher = spawn(process.execPath, [path.resolve('scripts/maildev.mjs'), String(SMTP), String(WEB)], { stdio: 'ignore' });
   const api = `http://127.0.0.1:${WEB}`;
   try {
@@ -88,9 +95,21 @@ async function main() {
     const ids: number[] = [];
     process.stdout.write(`Building ${COUNT} checked, marked submissions… `);
     for (let i = 0; i < COUNT; i++) {
-      const st = await User.create({ email: `s${i}@bench.example`, name: `Student ${i}`, passwordHash: null, isAdmin: false, studentNumber: `B${i}` });
+      const st = await User.create({
+        email: `s${i}@bench.example`,
+        name: `Student ${i}`,
+        passwordHash: null,
+        isAdmin: false,
+        studentNumber: `B${i}`,
+      });
       await CourseMembership.create({ userId: st.id, courseId: course.id, role: 'student', cohortId: cohort.id });
-      const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: cohort.id, studentId: st.id, slip: i % 3 === 0, offset: (i % 7) * 0.3 });
+      const sub = await createCheckedSubmission({
+        practicalId: practical.id,
+        cohortId: cohort.id,
+        studentId: st.id,
+        slip: i % 3 === 0,
+        offset: (i % 7) * 0.3,
+      });
       const r = await acceptProposal(ta.id, sub.id, sub.version);
       await saveMarks(ta.id, sub.id, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 1 }] });
       ids.push(sub.id);
@@ -145,7 +164,9 @@ async function main() {
     await fetch(`${api}/api/email/all`, { method: 'DELETE' });
     const rows = await EmailOutbox.findAll({ order: [['id', 'ASC']] });
     const docs = new Map((await FeedbackDocument.findAll()).map((d) => [d.id, d]));
-    const attachments = rows.map((r) => fs.readFileSync(path.join(process.env.UPLOAD_DIR!, 'feedback', docs.get(r.feedbackDocumentId!)!.storedName)));
+    const attachments = rows.map((r) =>
+      fs.readFileSync(path.join(process.env.UPLOAD_DIR!, 'feedback', docs.get(r.feedbackDocumentId!)!.storedName)),
+    );
     const transport = nodemailer.createTransport({ host: '127.0.0.1', port: SMTP, pool: true, maxConnections: pool });
     const t2 = performance.now();
     let m = 0;
@@ -153,7 +174,13 @@ async function main() {
       Array.from({ length: pool }, async () => {
         while (m < rows.length) {
           const i = m++;
-          await transport.sendMail({ from: 'bench@oscillab.invalid', to: rows[i].toAddress, subject: rows[i].subject, text: rows[i].textBody, attachments: [{ filename: 'feedback.pdf', content: attachments[i], contentType: 'application/pdf' }] });
+          await transport.sendMail({
+            from: 'bench@oscillab.invalid',
+            to: rows[i].toAddress,
+            subject: rows[i].subject,
+            text: rows[i].textBody,
+            attachments: [{ filename: 'feedback.pdf', content: attachments[i], contentType: 'application/pdf' }],
+          });
         }
       }),
     );
@@ -168,13 +195,25 @@ async function main() {
 
     const bare = tPdf + tMail;
     const avgPdf = docs.size ? [...docs.values()].reduce((a, d) => a + d.size, 0) / docs.size : 0;
-    console.log(`\nReleased and delivered ${COUNT} submissions in ${s(tRelease)}: ${(COUNT / (tRelease / 1000)).toFixed(1)} submissions/s (${inCatcher} e-mails in the catcher; PDFs ${(avgPdf / 1024).toFixed(0)} KB on average)`);
-    console.log(`  release (releaseMany)  ${s(tReleased)} wall — summed over submissions: read ${s(timings.load)}, render ${s(timings.render)} (on ${workers} thread(s)), commit ${s(timings.commit)}`);
+    console.log(
+      `\nReleased and delivered ${COUNT} submissions in ${s(tRelease)}: ${(COUNT / (tRelease / 1000)).toFixed(1)} submissions/s (${inCatcher} e-mails in the catcher; PDFs ${(avgPdf / 1024).toFixed(0)} KB on average)`,
+    );
+    console.log(
+      `  release (releaseMany)  ${s(tReleased)} wall — summed over submissions: read ${s(timings.load)}, render ${s(timings.render)} (on ${workers} thread(s)), commit ${s(timings.commit)}`,
+    );
     console.log(`  delivery (outbox)      ${s(tDelivery)} wall — ${(tDelivery / COUNT).toFixed(1)} ms per e-mail`);
-    console.log(`Bare parts, the fast way: pdf-lib ${s(tPdf)} (${(tPdf / COUNT).toFixed(1)} ms per PDF on ${Math.max(1, workers)} thread(s), fonts embedded once per thread) + nodemailer ${s(tMail)} (${(tMail / COUNT).toFixed(1)} ms per e-mail, pool of ${pool}) = ${s(bare)}`);
-    console.log(`  for reference, the naive bare PDF (subset per document, one thread): ${naivePerPdf.toFixed(0)} ms per PDF → ${s(naivePerPdf * COUNT)} for the batch`);
-    console.log(`Ratio release / bare parts: ${(tRelease / bare).toFixed(2)}× (target ≤ 1.5×) → ${tRelease / bare <= 1.5 ? 'met' : 'NOT met'}`);
-    console.log(`Whole batch in ${s(tRelease)} (target < 30 s for 300) → ${tRelease < 30_000 * (COUNT / 300) ? 'met' : 'NOT met'}; load average at end ${load()}`);
+    console.log(
+      `Bare parts, the fast way: pdf-lib ${s(tPdf)} (${(tPdf / COUNT).toFixed(1)} ms per PDF on ${Math.max(1, workers)} thread(s), fonts embedded once per thread) + nodemailer ${s(tMail)} (${(tMail / COUNT).toFixed(1)} ms per e-mail, pool of ${pool}) = ${s(bare)}`,
+    );
+    console.log(
+      `  for reference, the naive bare PDF (subset per document, one thread): ${naivePerPdf.toFixed(0)} ms per PDF → ${s(naivePerPdf * COUNT)} for the batch`,
+    );
+    console.log(
+      `Ratio release / bare parts: ${(tRelease / bare).toFixed(2)}× (target ≤ 1.5×) → ${tRelease / bare <= 1.5 ? 'met' : 'NOT met'}`,
+    );
+    console.log(
+      `Whole batch in ${s(tRelease)} (target < 30 s for 300) → ${tRelease < 30_000 * (COUNT / 300) ? 'met' : 'NOT met'}; load average at end ${load()}`,
+    );
     await closeDatabase();
   } finally {
     catcher.kill('SIGTERM');

@@ -40,7 +40,8 @@ function buildFile(): string {
       for (const band of ['fundamental', 'overtone'] as BandKind[]) {
         const p = predictBand(iso, band);
         if (!p) continue;
-        for (const l of p.lines) lines.push({ wavenumber: l.wavenumber + 3.5, intensity: l.intensity * strength[band] * (molecule === 'DCl' ? 0.8 : 1) });
+        for (const l of p.lines)
+          lines.push({ wavenumber: l.wavenumber + 3.5, intensity: l.intensity * strength[band] * (molecule === 'DCl' ? 0.8 : 1) });
       }
     }
   }
@@ -107,14 +108,29 @@ const fmt = (x: number) => x.toFixed(1);
 const fmtLoad = (l: number[]) => l.map((x) => x.toFixed(2)).join(' ');
 const peakRssMb = process.resourceUsage().maxRSS / 1024;
 
-console.log(`spectrum benchmark: ${points} points (${(bytes.length / 1024).toFixed(0)} KB JCAMP-DX), HCl + DCl, fundamentals and overtones`);
-console.log(`  machine: ${os.cpus().length} cores, load average (1/5/15 min) ${fmtLoad(load0)} before, ${fmtLoad(load1)} after; node ${process.version}`);
+console.log(
+  `spectrum benchmark: ${points} points (${(bytes.length / 1024).toFixed(0)} KB JCAMP-DX), HCl + DCl, fundamentals and overtones`,
+);
+console.log(
+  `  machine: ${os.cpus().length} cores, load average (1/5/15 min) ${fmtLoad(load0)} before, ${fmtLoad(load1)} after; node ${process.version}`,
+);
 console.log(`  ${REPS} timed passes after 2 warm-up passes; median (min) of the passes`);
-console.log(`  bare parse (sniff + parse):   ${fmt(median(parse.wall))} (${fmt(Math.min(...parse.wall))}) ms, CPU ${fmt(median(parse.cpu))} ms`);
-console.log(`  parse + analyseSpectrum:      ${fmt(median(full.wall))} (${fmt(Math.min(...full.wall))}) ms, CPU ${fmt(median(full.cpu))} ms`);
+console.log(
+  `  bare parse (sniff + parse):   ${fmt(median(parse.wall))} (${fmt(Math.min(...parse.wall))}) ms, CPU ${fmt(median(parse.cpu))} ms`,
+);
+console.log(
+  `  parse + analyseSpectrum:      ${fmt(median(full.wall))} (${fmt(Math.min(...full.wall))}) ms, CPU ${fmt(median(full.cpu))} ms`,
+);
 console.log(`  analysis alone (difference):  ${fmt(median(analysisOnly))} ms median (target < 250 ms)`);
-console.log(`  ratio parse + analyse / bare parse: ${(median(full.wall) / median(parse.wall)).toFixed(1)}× (${(Math.min(...full.wall) / Math.min(...parse.wall)).toFixed(1)}× min/min)`);
+console.log(
+  `  ratio parse + analyse / bare parse: ${(median(full.wall) / median(parse.wall)).toFixed(1)}× (${(Math.min(...full.wall) / Math.min(...parse.wall)).toFixed(1)}× min/min)`,
+);
 console.log(`    passes, ms: ${full.wall.map(fmt).join(' ')}`);
 console.log(`  peak resident memory: ${peakRssMb.toFixed(0)} MB`);
-console.log(`  bands fitted: ${first.bands.filter((b) => b.status === 'fitted').length} of ${first.bands.length} (${bands} over all passes); calibration: ${first.calibration?.message ?? 'none'}`);
-if (load0[0] > os.cpus().length) console.log(`  note: the 1-minute load (${load0[0].toFixed(1)}) exceeds the core count; other processes share the CPU, so trust the minimum and the CPU time more than the median.`);
+console.log(
+  `  bands fitted: ${first.bands.filter((b) => b.status === 'fitted').length} of ${first.bands.length} (${bands} over all passes); calibration: ${first.calibration?.message ?? 'none'}`,
+);
+if (load0[0] > os.cpus().length)
+  console.log(
+    `  note: the 1-minute load (${load0[0].toFixed(1)}) exceeds the core count; other processes share the CPU, so trust the minimum and the CPU time more than the median.`,
+  );

@@ -31,7 +31,10 @@ process.env.OUTBOX_WORKER = 'off';
 process.env.LOG_LEVEL ??= 'warn';
 
 const N = Number(process.argv[2] ?? 40);
-const SIZES = (process.env.BENCH_SIZES ?? '1000,10000,100000').split(',').map((s) => Number(s.trim())).filter((n) => n > 0);
+const SIZES = (process.env.BENCH_SIZES ?? '1000,10000,100000')
+  .split(',')
+  .map((s) => Number(s.trim()))
+  .filter((n) => n > 0);
 const COHORTS = 20;
 const keepDir = process.env.BENCH_DB;
 
@@ -65,7 +68,11 @@ async function timeTogether(n: number, items: [string, () => Promise<unknown>, n
   return items.map(([label, , size], k) => report(label, times[k], size));
 }
 
-const load = () => os.loadavg().map((l) => l.toFixed(2)).join(' ');
+const load = () =>
+  os
+    .loadavg()
+    .map((l) => l.toFixed(2))
+    .join(' ');
 
 async function seed(size: number) {
   const { models } = await import('@/models');
@@ -76,19 +83,61 @@ async function seed(size: number) {
   const seedStart = performance.now();
   await withoutKeeping(async () => {
     const course = await Course.create({ code: 'BENCH1', title: 'Benchmark course', archivedAt: null });
-    const lead = await User.create({ email: 'lead@bench.example', name: 'Bench Lead', passwordHash: null, isAdmin: false, studentNumber: null });
+    const lead = await User.create({
+      email: 'lead@bench.example',
+      name: 'Bench Lead',
+      passwordHash: null,
+      isAdmin: false,
+      studentNumber: null,
+    });
     await CourseMembership.create({ userId: lead.id, courseId: course.id, role: 'lead', cohortId: null });
-    const tas = await User.bulkCreate(Array.from({ length: 10 }, (_, i) => ({ email: `ta${i}@bench.example`, name: `Bench TA ${i}`, passwordHash: null, isAdmin: false, studentNumber: null })));
-    const cohorts = await Cohort.bulkCreate(Array.from({ length: COHORTS }, (_, i) => ({ courseId: course.id, name: `Group ${i + 1}`, term: i < 10 ? '2025 Autumn' : '2026 Autumn', instrument: `Bench ${(i % 3) + 1}`, archivedAt: null })));
-    const practical = await createPractical(course.id, cohorts.map((c) => c.id));
+    const tas = await User.bulkCreate(
+      Array.from({ length: 10 }, (_, i) => ({
+        email: `ta${i}@bench.example`,
+        name: `Bench TA ${i}`,
+        passwordHash: null,
+        isAdmin: false,
+        studentNumber: null,
+      })),
+    );
+    const cohorts = await Cohort.bulkCreate(
+      Array.from({ length: COHORTS }, (_, i) => ({
+        courseId: course.id,
+        name: `Group ${i + 1}`,
+        term: i < 10 ? '2025 Autumn' : '2026 Autumn',
+        instrument: `Bench ${(i % 3) + 1}`,
+        archivedAt: null,
+      })),
+    );
+    const practical = await createPractical(
+      course.id,
+      cohorts.map((c) => c.id),
+    );
     for (const [ci, cohort] of cohorts.entries()) {
       for (let start = 0; start < perCohort; start += 2500) {
         const count = Math.min(2500, perCohort - start);
-        const students = await User.bulkCreate(Array.from({ length: count }, (_, i) => ({ email: `s${ci}-${start + i}@bench.example`, name: `Student ${ci}-${start + i}`, passwordHash: null, isAdmin: false, studentNumber: `B${ci}${String(start + i).padStart(6, '0')}` })));
-        await CourseMembership.bulkCreate(students.map((s) => ({ userId: s.id, courseId: course.id, role: 'student' as const, cohortId: cohort.id })));
+        const students = await User.bulkCreate(
+          Array.from({ length: count }, (_, i) => ({
+            email: `s${ci}-${start + i}@bench.example`,
+            name: `Student ${ci}-${start + i}`,
+            passwordHash: null,
+            isAdmin: false,
+            studentNumber: `B${ci}${String(start + i).padStart(6, '0')}`,
+          })),
+        );
+        await CourseMembership.bulkCreate(
+          students.map((s) => ({ userId: s.id, courseId: course.id, role: 'student' as const, cohortId: cohort.id })),
+        );
         const markers = [tas[ci % 10].id, tas[(ci + 1) % 10].id];
         if (start === 0) await TaAssignment.bulkCreate(markers.map((taId) => ({ cohortId: cohort.id, taId, studentId: null })));
-        await seedSubmissions({ practicalId: practical.id, cohortId: cohort.id, studentIds: students.map((s) => s.id), markerIds: markers, moderatorId: lead.id, seed: ci + 1 + start });
+        await seedSubmissions({
+          practicalId: practical.id,
+          cohortId: cohort.id,
+          studentIds: students.map((s) => s.id),
+          markerIds: markers,
+          moderatorId: lead.id,
+          seed: ci + 1 + start,
+        });
       }
       process.stdout.write(`\r  seeding: ${ci + 1} of ${COHORTS} cohorts`);
     }
@@ -98,7 +147,9 @@ async function seed(size: number) {
   const built = await rebuildStatistics();
   const rebuilt = performance.now() - rebuildStart;
   process.stdout.write('\r');
-  console.log(`  seeded in ${(seeded / 1000).toFixed(1)} s; kept statistics rebuilt from scratch in ${(rebuilt / 1000).toFixed(1)} s (${((rebuilt * 1000) / built.submissions).toFixed(0)} µs per counted submission)`);
+  console.log(
+    `  seeded in ${(seeded / 1000).toFixed(1)} s; kept statistics rebuilt from scratch in ${(rebuilt / 1000).toFixed(1)} s (${((rebuilt * 1000) / built.submissions).toFixed(0)} µs per counted submission)`,
+  );
 }
 
 async function runSize(size: number) {
@@ -113,9 +164,14 @@ async function runSize(size: number) {
   await closeDatabase();
   forgetKeptCheck();
   clearStatisticsCache();
-  console.log(`\n=== ${size.toLocaleString('en-GB')} counted submissions (${COHORTS} cohorts of ${Math.ceil(size / COHORTS).toLocaleString('en-GB')}) — load ${load()}`);
+  console.log(
+    `\n=== ${size.toLocaleString('en-GB')} counted submissions (${COHORTS} cohorts of ${Math.ceil(size / COHORTS).toLocaleString('en-GB')}) — load ${load()}`,
+  );
   if (!reuse) {
-    execFileSync(process.execPath, [path.resolve('node_modules/sequelize-cli/lib/sequelize'), 'db:migrate'], { env: process.env, stdio: 'pipe' });
+    execFileSync(process.execPath, [path.resolve('node_modules/sequelize-cli/lib/sequelize'), 'db:migrate'], {
+      env: process.env,
+      stdio: 'pipe',
+    });
     await seed(size);
   }
   const { models } = await import('@/models');
@@ -134,14 +190,32 @@ async function runSize(size: number) {
 
   // The kept figures against the plain-SQL recomputation, once, at this size.
   const scope = { practicalIds: [practical.id], cohortIds };
-  const [kc, fc, kq, fq] = [await kept.submissionCounts(scope), await fresh.submissionCounts(scope), await kept.quantityStatistics(scope), await fresh.quantityStatistics(scope)];
-  const close = (a: number | null | undefined, b: number | null | undefined) => a === b || (a != null && b != null && Math.abs(a - b) <= 1e-9 * Math.max(1, Math.abs(b)));
-  const same = JSON.stringify(kc) === JSON.stringify(fc) && kq.length === fq.length && kq.every((q, i) => {
-    const f = fq[i];
-    return q.key === f.key && q.basis === f.basis && q.n === f.n && q.students === f.students && JSON.stringify(q.histogram) === JSON.stringify(f.histogram)
-      && close(q.mean, f.mean) && ['min', 'q1', 'median', 'q3', 'max'].every((k) => close(q.box?.[k as 'min'], f.box?.[k as 'min']));
-  });
-  console.log(`  kept figures equal the plain-SQL recomputation (counts, n, students, histogram, mean, min, quartiles, max): ${same ? 'yes' : 'NO'}`);
+  const [kc, fc, kq, fq] = [
+    await kept.submissionCounts(scope),
+    await fresh.submissionCounts(scope),
+    await kept.quantityStatistics(scope),
+    await fresh.quantityStatistics(scope),
+  ];
+  const close = (a: number | null | undefined, b: number | null | undefined) =>
+    a === b || (a != null && b != null && Math.abs(a - b) <= 1e-9 * Math.max(1, Math.abs(b)));
+  const same =
+    JSON.stringify(kc) === JSON.stringify(fc) &&
+    kq.length === fq.length &&
+    kq.every((q, i) => {
+      const f = fq[i];
+      return (
+        q.key === f.key &&
+        q.basis === f.basis &&
+        q.n === f.n &&
+        q.students === f.students &&
+        JSON.stringify(q.histogram) === JSON.stringify(f.histogram) &&
+        close(q.mean, f.mean) &&
+        ['min', 'q1', 'median', 'q3', 'max'].every((k) => close(q.box?.[k as 'min'], f.box?.[k as 'min']))
+      );
+    });
+  console.log(
+    `  kept figures equal the plain-SQL recomputation (counts, n, students, histogram, mean, min, quartiles, max): ${same ? 'yes' : 'NO'}`,
+  );
 
   const callHandler = async (cohortId?: number) => {
     const url = `/api/statistics/practicals/${practical.id}${cohortId ? `?cohortId=${cohortId}` : ''}`;
@@ -154,19 +228,28 @@ async function runSize(size: number) {
     const options = (sequelize() as unknown as { options: { logging: unknown } }).options;
     const before = options.logging;
     options.logging = (sql: string) => captured.push(sql.replace(/^Executing \([^)]*\): /, ''));
-    try { await callHandler(cohortId); } finally { options.logging = before; }
+    try {
+      await callHandler(cohortId);
+    } finally {
+      options.logging = before;
+    }
     return captured;
   };
   const sqlite3 = (await import('sqlite3')).default;
   const direct = await new Promise<InstanceType<typeof sqlite3.Database>>((resolve, reject) => {
     const db = new sqlite3.Database(dbFile, sqlite3.OPEN_READONLY, (err) => (err ? reject(err) : resolve(db)));
   });
-  const all = (sql: string) => new Promise<unknown[]>((resolve, reject) => direct.all(sql, (err, rows) => (err ? reject(err) : resolve(rows))));
-  const raw = (statements: string[]) => async () => { for (const sql of statements) await all(sql); };
-  const groupBy = () => all(
-    `SELECT cr."key", cr.basis, COUNT(*), AVG(cr."relativeDeviation"), MIN(cr."relativeDeviation"), MAX(cr."relativeDeviation")
+  const all = (sql: string) =>
+    new Promise<unknown[]>((resolve, reject) => direct.all(sql, (err, rows) => (err ? reject(err) : resolve(rows))));
+  const raw = (statements: string[]) => async () => {
+    for (const sql of statements) await all(sql);
+  };
+  const groupBy = () =>
+    all(
+      `SELECT cr."key", cr.basis, COUNT(*), AVG(cr."relativeDeviation"), MIN(cr."relativeDeviation"), MAX(cr."relativeDeviation")
      FROM check_results cr JOIN submissions s ON s.id = cr."submissionId" WHERE s."practicalId" = ${practical.id} AND s."isMarkedAttempt" = 1
-     GROUP BY cr."key", cr.basis`);
+     GROUP BY cr."key", cr.basis`,
+    );
 
   process.env.STATS_CACHE = 'off';
   const wholeSql = await captureSql();
@@ -180,7 +263,8 @@ async function runSize(size: number) {
       for (let i = 0; i < 3; i++) await all(sql);
       timed.push({ ms: (performance.now() - t) / 3, sql });
     }
-    for (const { ms, sql } of timed.sort((a, b) => b.ms - a.ms)) console.log(`  ${ms.toFixed(2).padStart(8)} ms  ${sql.replace(/\s+/g, ' ').slice(0, 200)}`);
+    for (const { ms, sql } of timed.sort((a, b) => b.ms - a.ms))
+      console.log(`  ${ms.toFixed(2).padStart(8)} ms  ${sql.replace(/\s+/g, ' ').slice(0, 200)}`);
   }
   const [hw, hc, ref, rw, rc] = await timeTogether(N, [
     ['handler uncached, whole practical', () => callHandler(), size],
@@ -192,21 +276,39 @@ async function runSize(size: number) {
   process.env.STATS_CACHE = 'on';
   await timeTogether(N, [['handler cached, whole practical', () => callHandler(), size]]);
   const slow = size >= 50000 ? 3 : 8;
-  await timeTogether(slow, [[`before keeping: recomputed by plain SQL, whole practical (${slow} runs)`, async () => {
-    await fresh.submissionCounts(scope); await fresh.quantityStatistics(scope); await fresh.frequentSlips(scope); await fresh.markerConsistency(scope, 10);
-  }, size]]);
+  await timeTogether(slow, [
+    [
+      `before keeping: recomputed by plain SQL, whole practical (${slow} runs)`,
+      async () => {
+        await fresh.submissionCounts(scope);
+        await fresh.quantityStatistics(scope);
+        await fresh.frequentSlips(scope);
+        await fresh.markerConsistency(scope, 10);
+      },
+      size,
+    ],
+  ]);
   // The write side: one mark changed through the model, its own transaction including the upkeep.
   const { Mark } = models();
   const marks = await Mark.findAll({ where: { itemKey: 'bandCentre:H35Cl' }, limit: N + 2, order: [['id', 'ASC']] });
   let k = 0;
-  const [upkeep] = await timeTogether(N, [['upkeep of one change (mark saved, kept statistics updated)', async () => {
-    const m = marks[k++ % marks.length];
-    await m.update({ awarded: m.awarded === 1 ? 1.5 : 1 });
-  }]]);
+  const [upkeep] = await timeTogether(N, [
+    [
+      'upkeep of one change (mark saved, kept statistics updated)',
+      async () => {
+        const m = marks[k++ % marks.length];
+        await m.update({ awarded: m.awarded === 1 ? 1.5 : 1 });
+      },
+    ],
+  ]);
   const wholeRatio = hw.p95 / ref.p95;
   const ok = hw.p95 < 300 && hc.p95 < 300 && wholeRatio <= 1.5;
-  console.log(`  app over its own SQL (median): whole ${(hw.median / rw.median).toFixed(2)}×, cohort ${(hc.median / rc.median).toFixed(2)}×`);
-  console.log(`  target — uncached p95 < 300 ms and ≤ 1.5× the plain GROUP BY: whole ${hw.p95.toFixed(1)} ms (${wholeRatio.toFixed(2)}×), cohort ${hc.p95.toFixed(1)} ms → ${ok ? 'met' : 'NOT met'}`);
+  console.log(
+    `  app over its own SQL (median): whole ${(hw.median / rw.median).toFixed(2)}×, cohort ${(hc.median / rc.median).toFixed(2)}×`,
+  );
+  console.log(
+    `  target — uncached p95 < 300 ms and ≤ 1.5× the plain GROUP BY: whole ${hw.p95.toFixed(1)} ms (${wholeRatio.toFixed(2)}×), cohort ${hc.p95.toFixed(1)} ms → ${ok ? 'met' : 'NOT met'}`,
+  );
   await new Promise((resolve) => direct.close(resolve));
   await closeDatabase();
   if (!keepDir) fs.rmSync(dir, { recursive: true, force: true });
@@ -217,9 +319,13 @@ async function main() {
   console.log(`Oscillab statistics benchmark — ${os.cpus().length} CPUs, load average ${load()}, sizes ${SIZES.join(', ')}`);
   const results = [];
   for (const size of SIZES) results.push(await runSize(size));
-  console.log(`\n${'submissions'.padStart(12)} ${'whole p95 ms'.padStart(13)} ${'µs/subm.'.padStart(9)} ${'cohort p95'.padStart(11)} ${'GROUP BY p95'.padStart(13)} ${'ratio'.padStart(7)} ${'upkeep med.'.padStart(12)} ${'equal'.padStart(6)}  target`);
+  console.log(
+    `\n${'submissions'.padStart(12)} ${'whole p95 ms'.padStart(13)} ${'µs/subm.'.padStart(9)} ${'cohort p95'.padStart(11)} ${'GROUP BY p95'.padStart(13)} ${'ratio'.padStart(7)} ${'upkeep med.'.padStart(12)} ${'equal'.padStart(6)}  target`,
+  );
   for (const r of results) {
-    console.log(`${r.size.toLocaleString('en-GB').padStart(12)} ${r.whole.p95.toFixed(1).padStart(13)} ${((r.whole.median * 1000) / r.size).toFixed(2).padStart(9)} ${r.cohort.p95.toFixed(1).padStart(11)} ${r.ref.p95.toFixed(1).padStart(13)} ${(r.whole.p95 / r.ref.p95).toFixed(2).padStart(6)}× ${r.upkeep.median.toFixed(1).padStart(9)} ms ${(r.same ? 'yes' : 'NO').padStart(6)}  ${r.ok ? 'met' : 'NOT met'}`);
+    console.log(
+      `${r.size.toLocaleString('en-GB').padStart(12)} ${r.whole.p95.toFixed(1).padStart(13)} ${((r.whole.median * 1000) / r.size).toFixed(2).padStart(9)} ${r.cohort.p95.toFixed(1).padStart(11)} ${r.ref.p95.toFixed(1).padStart(13)} ${(r.whole.p95 / r.ref.p95).toFixed(2).padStart(6)}× ${r.upkeep.median.toFixed(1).padStart(9)} ms ${(r.same ? 'yes' : 'NO').padStart(6)}  ${r.ok ? 'met' : 'NOT met'}`,
+    );
   }
   console.log(`load average at end ${load()}`);
 }

@@ -13,7 +13,9 @@ const { DEMO_PASSWORD } = require('../seeders/data/demo-cast.cjs');
 // The demo seeds through tsx and catches mail with maildev, both development dependencies.
 for (const tool of ['tsx', 'maildev']) {
   if (!fs.existsSync(path.join('node_modules', tool, 'package.json'))) {
-    console.error(`The demo needs ${tool}, a development dependency: run \`npm install\` (a production install, \`npm ci --omit=dev\`, leaves it out).`);
+    console.error(
+      `The demo needs ${tool}, a development dependency: run \`npm install\` (a production install, \`npm ci --omit=dev\`, leaves it out).`,
+    );
     process.exit(1);
   }
 }
@@ -78,7 +80,10 @@ const children = [
     },
   }),
 ];
-const stop = () => { for (const c of children) c.kill('SIGTERM'); process.exit(0); };
+const stop = () => {
+  for (const c of children) c.kill('SIGTERM');
+  process.exit(0);
+};
 process.on('SIGINT', stop);
 process.on('SIGTERM', stop);
 
@@ -95,7 +100,9 @@ setTimeout(() => {
   console.log(' Oscillab demo is running');
   console.log(`   App:        http://localhost:3000   (sign in there; listening on ${DEMO_HOST} only)`);
   console.log('   Mail inbox: http://localhost:1080   (invitations and feedback land here)');
-  console.log(`   Learning platform (local stand-in): ${platformUrl}   (launch into Oscillab as its instructor or students; scores come back to its gradebook)`);
+  console.log(
+    `   Learning platform (local stand-in): ${platformUrl}   (launch into Oscillab as its instructor or students; scores come back to its gradebook)`,
+  );
   console.log(`   Password for every demo account: ${DEMO_PASSWORD}`);
   for (const [role, email] of accounts) console.log(`   ${role.padEnd(44)} ${email}`);
   console.log(' Stop with Ctrl+C.');

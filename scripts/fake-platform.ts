@@ -19,8 +19,16 @@ import fs from 'node:fs';
 import http from 'node:http';
 import path from 'node:path';
 import {
-  calculateJwkThumbprint, createLocalJWKSet, exportJWK, generateKeyPair, importJWK, jwtVerify, SignJWT,
-  type JSONWebKeySet, type JWK, type JWTPayload,
+  calculateJwkThumbprint,
+  createLocalJWKSet,
+  exportJWK,
+  generateKeyPair,
+  importJWK,
+  jwtVerify,
+  SignJWT,
+  type JSONWebKeySet,
+  type JWK,
+  type JWTPayload,
 } from 'jose';
 
 const PORT = Number(process.env.FAKE_PLATFORM_PORT || 3030);
@@ -62,10 +70,28 @@ const TA = 'http://purl.imsglobal.org/vocab/lis/v2/membership/Instructor#Teachin
 
 // ——— State ————————————————————————————————————————————————————————————————
 
-type User = { id: string; name: string; given_name: string; family_name: string; email: string; roles: string[]; status: 'Active' | 'Inactive' | 'Deleted' };
+type User = {
+  id: string;
+  name: string;
+  given_name: string;
+  family_name: string;
+  email: string;
+  roles: string[];
+  status: 'Active' | 'Inactive' | 'Deleted';
+};
 type Item = { id: string; title: string; custom: Record<string, string>; lineItemId: string | null; placedAt: string };
 type LineItem = { id: string; label: string; scoreMaximum: number; resourceId?: string; resourceLinkId?: string; tag?: string };
-type Result = { lineItemId: string; userId: string; scoreGiven: number; scoreMaximum: number; comment?: string; timestamp: string; activityProgress: string; gradingProgress: string; updatedAt: string };
+type Result = {
+  lineItemId: string;
+  userId: string;
+  scoreGiven: number;
+  scoreMaximum: number;
+  comment?: string;
+  timestamp: string;
+  activityProgress: string;
+  gradingProgress: string;
+  updatedAt: string;
+};
 type Delivery = { lineItemId: string; userId: string; scoreGiven: number; timestamp: string; receivedAt: string; applied: boolean };
 type Key = { kid: string; privateJwk: JWK; publicJwk: JWK; active: boolean };
 type State = {
@@ -80,8 +106,15 @@ type State = {
   down: { ags: boolean; jwks: boolean; token: boolean; roster: boolean };
 };
 
-const person = (id: string, given: string, family: string, email: string, roles: string[], status: User['status'] = 'Active', name = `${given} ${family}`.trim()): User =>
-  ({ id, name, given_name: given, family_name: family, email, roles, status });
+const person = (
+  id: string,
+  given: string,
+  family: string,
+  email: string,
+  roles: string[],
+  status: User['status'] = 'Active',
+  name = `${given} ${family}`.trim(),
+): User => ({ id, name, given_name: given, family_name: family, email, roles, status });
 
 /** An invented course of the fictional Northmere University; the e-mails match Oscillab's demo accounts where one exists. */
 function initialState(): State {
@@ -119,7 +152,12 @@ async function newKey(): Promise<Key> {
   const { publicKey, privateKey } = await generateKeyPair('RS256', { extractable: true });
   const publicJwk = await exportJWK(publicKey);
   const kid = await calculateJwkThumbprint(publicJwk);
-  return { kid, privateJwk: { ...(await exportJWK(privateKey)), kid, alg: 'RS256' }, publicJwk: { ...publicJwk, kid, alg: 'RS256', use: 'sig' }, active: true };
+  return {
+    kid,
+    privateJwk: { ...(await exportJWK(privateKey)), kid, alg: 'RS256' },
+    publicJwk: { ...publicJwk, kid, alg: 'RS256', use: 'sig' },
+    active: true,
+  };
 }
 
 async function init() {
@@ -139,10 +177,27 @@ async function init() {
   save();
 }
 
-function placeItem(title: string, custom: Record<string, string>, lineItem?: { scoreMaximum: number; label?: string; resourceId?: string; tag?: string }): Item {
-  const item: Item = { id: `nmu-item-${crypto.randomBytes(4).toString('hex')}`, title, custom, lineItemId: null, placedAt: new Date().toISOString() };
+function placeItem(
+  title: string,
+  custom: Record<string, string>,
+  lineItem?: { scoreMaximum: number; label?: string; resourceId?: string; tag?: string },
+): Item {
+  const item: Item = {
+    id: `nmu-item-${crypto.randomBytes(4).toString('hex')}`,
+    title,
+    custom,
+    lineItemId: null,
+    placedAt: new Date().toISOString(),
+  };
   if (lineItem && lineItem.scoreMaximum > 0) {
-    const li: LineItem = { id: `${BASE}/api/lineitems/${crypto.randomBytes(4).toString('hex')}`, label: lineItem.label || title, scoreMaximum: lineItem.scoreMaximum, resourceId: lineItem.resourceId, tag: lineItem.tag, resourceLinkId: item.id };
+    const li: LineItem = {
+      id: `${BASE}/api/lineitems/${crypto.randomBytes(4).toString('hex')}`,
+      label: lineItem.label || title,
+      scoreMaximum: lineItem.scoreMaximum,
+      resourceId: lineItem.resourceId,
+      tag: lineItem.tag,
+      resourceLinkId: item.id,
+    };
     state.lineItems.push(li);
     item.lineItemId = li.id;
   }
@@ -152,7 +207,8 @@ function placeItem(title: string, custom: Record<string, string>, lineItem?: { s
 
 // ——— Helpers ——————————————————————————————————————————————————————————————
 
-const esc = (v: unknown) => String(v ?? '').replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
+const esc = (v: unknown) =>
+  String(v ?? '').replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
 
 function page(title: string, body: string): string {
   return `<!doctype html><html lang="en-GB"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1"><title>${esc(title)} · Northmere learning platform (local stand-in)</title>
@@ -174,11 +230,18 @@ function page(title: string, body: string): string {
 </style></head><body><header><a href="/"><strong>Northmere learning platform</strong></a><p>A local stand-in for the department's learning platform (Oscillab demo and tests). Northmere University is fictional.</p></header><main>${body}</main></body></html>`;
 }
 
-function send(res: http.ServerResponse, status: number, body: string, type = 'text/html; charset=utf-8', headers: Record<string, string> = {}) {
+function send(
+  res: http.ServerResponse,
+  status: number,
+  body: string,
+  type = 'text/html; charset=utf-8',
+  headers: Record<string, string> = {},
+) {
   res.writeHead(status, { 'content-type': type, 'cache-control': 'no-store', ...headers });
   res.end(body);
 }
-const sendJson = (res: http.ServerResponse, status: number, body: unknown, type = 'application/json') => send(res, status, JSON.stringify(body), type);
+const sendJson = (res: http.ServerResponse, status: number, body: unknown, type = 'application/json') =>
+  send(res, status, JSON.stringify(body), type);
 
 async function readBody(req: http.IncomingMessage, max = 256 * 1024): Promise<string> {
   const chunks: Buffer[] = [];
@@ -201,15 +264,22 @@ function cookies(req: http.IncomingMessage): Record<string, string> {
 }
 
 function autoPost(action: string, fields: Record<string, string>, title: string): string {
-  const inputs = Object.entries(fields).map(([k, v]) => `<input type="hidden" name="${esc(k)}" value="${esc(v)}">`).join('');
-  return page(title, `<section><p>${esc(title)}</p><form id="f" method="post" action="${esc(action)}">${inputs}<button type="submit">Continue</button></form></section><script>document.getElementById('f').submit()</script>`);
+  const inputs = Object.entries(fields)
+    .map(([k, v]) => `<input type="hidden" name="${esc(k)}" value="${esc(v)}">`)
+    .join('');
+  return page(
+    title,
+    `<section><p>${esc(title)}</p><form id="f" method="post" action="${esc(action)}">${inputs}<button type="submit">Continue</button></form></section><script>document.getElementById('f').submit()</script>`,
+  );
 }
 
 const activeKey = () => state.keys.filter((k) => k.active).slice(-1)[0];
 
 async function sign(payload: JWTPayload, header: Record<string, unknown> = {}): Promise<string> {
   const key = activeKey();
-  return new SignJWT(payload).setProtectedHeader({ alg: 'RS256', kid: key.kid, typ: 'JWT', ...header }).sign(await importJWK(key.privateJwk, 'RS256'));
+  return new SignJWT(payload)
+    .setProtectedHeader({ alg: 'RS256', kid: key.kid, typ: 'JWT', ...header })
+    .sign(await importJWK(key.privateJwk, 'RS256'));
 }
 
 // Oscillab's key set, fetched when a key id is not known yet (the tool rotated its key).
@@ -223,9 +293,14 @@ async function toolKeySet(force = false) {
   return toolKeys.set;
 }
 async function verifyFromTool(jwt: string, audience: string) {
-  const resolver = async (h: Parameters<ReturnType<typeof createLocalJWKSet>>[0], t: Parameters<ReturnType<typeof createLocalJWKSet>>[1]) => {
+  const resolver = async (
+    h: Parameters<ReturnType<typeof createLocalJWKSet>>[0],
+    t: Parameters<ReturnType<typeof createLocalJWKSet>>[1],
+  ) => {
     try {
-      return await (await toolKeySet())(h, t);
+      return await (
+        await toolKeySet()
+      )(h, t);
     } catch {
       return (await toolKeySet(true))(h, t);
     }
@@ -233,9 +308,18 @@ async function verifyFromTool(jwt: string, audience: string) {
   return jwtVerify(jwt, resolver, { issuer: CLIENT_ID, audience, algorithms: ['RS256'] });
 }
 
-const contextClaim = () => ({ id: state.course.id, label: state.course.label, title: state.course.title, type: ['http://purl.imsglobal.org/vocab/lis/v2/course#CourseOffering'] });
+const contextClaim = () => ({
+  id: state.course.id,
+  label: state.course.label,
+  title: state.course.title,
+  type: ['http://purl.imsglobal.org/vocab/lis/v2/course#CourseOffering'],
+});
 const servicesClaims = (item?: Item) => ({
-  [LTI.ags]: { scope: [SCOPES.lineItem, SCOPES.score, SCOPES.result], lineitems: `${BASE}/api/courses/${state.course.id}/lineitems`, ...(item?.lineItemId ? { lineitem: item.lineItemId } : {}) },
+  [LTI.ags]: {
+    scope: [SCOPES.lineItem, SCOPES.score, SCOPES.result],
+    lineitems: `${BASE}/api/courses/${state.course.id}/lineitems`,
+    ...(item?.lineItemId ? { lineitem: item.lineItemId } : {}),
+  },
   [LTI.nrps]: { context_memberships_url: `${BASE}/api/courses/${state.course.id}/memberships`, service_versions: ['2.0'] },
 });
 
@@ -260,10 +344,30 @@ on('GET', /^\/health$/, async (_req, res) => sendJson(res, 200, { ok: true }));
 
 on('GET', /^\/$/, async (req, res) => {
   const me = state.users.find((u) => u.id === cookies(req).fp_user);
-  const items = state.items.map((i) => `<tr><td>${esc(i.title)}</td><td><code>${esc(i.id)}</code></td><td>${i.lineItemId ? 'graded' : '—'}</td><td><a class="button" href="/launch?item=${encodeURIComponent(i.id)}">Launch as…</a></td></tr>`).join('');
-  const roster = state.users.map((u) => `<tr><td>${esc(u.name)}</td><td>${esc(u.email)}</td><td>${esc(u.roles.map((r) => r.split(/[#/]/).pop()).join(', '))}</td><td>${esc(u.status)}</td></tr>`).join('');
-  const placers = state.users.filter((u) => u.status === 'Active' && u.roles.some((r) => /#(Instructor|ContentDeveloper|Administrator)$/.test(r) && !r.includes('/Instructor#')) && !u.roles.includes(TA));
-  send(res, 200, page('Course', `
+  const items = state.items
+    .map(
+      (i) =>
+        `<tr><td>${esc(i.title)}</td><td><code>${esc(i.id)}</code></td><td>${i.lineItemId ? 'graded' : '—'}</td><td><a class="button" href="/launch?item=${encodeURIComponent(i.id)}">Launch as…</a></td></tr>`,
+    )
+    .join('');
+  const roster = state.users
+    .map(
+      (u) =>
+        `<tr><td>${esc(u.name)}</td><td>${esc(u.email)}</td><td>${esc(u.roles.map((r) => r.split(/[#/]/).pop()).join(', '))}</td><td>${esc(u.status)}</td></tr>`,
+    )
+    .join('');
+  const placers = state.users.filter(
+    (u) =>
+      u.status === 'Active' &&
+      u.roles.some((r) => /#(Instructor|ContentDeveloper|Administrator)$/.test(r) && !r.includes('/Instructor#')) &&
+      !u.roles.includes(TA),
+  );
+  send(
+    res,
+    200,
+    page(
+      'Course',
+      `
     <h1>${esc(state.course.title)}</h1>
     <p class="note">${me ? `Signed in to the platform as ${esc(me.name)}.` : 'Choose a person to launch as; the platform then signs them in to Oscillab.'} Oscillab: <code>${esc(TOOL)}</code></p>
     <section><h2>Course items</h2>${items ? `<table><thead><tr><th>Item</th><th>Id</th><th>Gradebook</th><th></th></tr></thead><tbody>${items}</tbody></table>` : '<p>No items yet.</p>'}
@@ -273,16 +377,31 @@ on('GET', /^\/$/, async (req, res) => {
     <section><h2>Participants</h2><table><thead><tr><th>Name</th><th>E-mail</th><th>Roles</th><th>Status</th></tr></thead><tbody>${roster}</tbody></table></section>
     <section><h2>Stand-in controls</h2><p class="note">For trying Oscillab's behaviour when the platform misbehaves.</p>
       <form method="post" action="/control/ags" class="inline"><input type="hidden" name="down" value="${state.down.ags ? '0' : '1'}"><button class="quiet" type="submit">${state.down.ags ? 'Bring the grade service back' : 'Take the grade service down'}</button></form>
-      <form method="post" action="/control/rotate-key" class="inline"><button class="quiet" type="submit">Rotate the platform's signing key</button></form></section>`));
+      <form method="post" action="/control/rotate-key" class="inline"><button class="quiet" type="submit">Rotate the platform's signing key</button></form></section>`,
+    ),
+  );
 });
 
 on('GET', /^\/launch$/, async (_req, res, url) => {
   const item = state.items.find((i) => i.id === url.searchParams.get('item'));
   if (!item) return send(res, 404, page('No such item', '<section><p>No such item.</p></section>'));
-  const rows = state.users.map((u) => `<tr><td>${esc(u.name)}</td><td>${esc(u.roles.map((r) => r.split(/[#/]/).pop()).join(', '))}${u.status !== 'Active' ? ` (${esc(u.status)})` : ''}</td><td>
+  const rows = state.users
+    .map(
+      (
+        u,
+      ) => `<tr><td>${esc(u.name)}</td><td>${esc(u.roles.map((r) => r.split(/[#/]/).pop()).join(', '))}${u.status !== 'Active' ? ` (${esc(u.status)})` : ''}</td><td>
       <form method="post" action="/as" class="inline"><input type="hidden" name="user" value="${esc(u.id)}"><input type="hidden" name="item" value="${esc(item.id)}"><input type="hidden" name="mode" value="frame"><button type="submit" aria-label="Launch as ${esc(u.name)} in the page">In the page</button></form>
-      <form method="post" action="/as" class="inline"><input type="hidden" name="user" value="${esc(u.id)}"><input type="hidden" name="item" value="${esc(item.id)}"><input type="hidden" name="mode" value="window"><button class="quiet" type="submit" aria-label="Launch as ${esc(u.name)} in a new window" formtarget="_blank">New window</button></form></td></tr>`).join('');
-  send(res, 200, page(`Launch ${item.title}`, `<h1>${esc(item.title)}</h1><section><h2>Launch as…</h2><p class="note">The platform signs the chosen person in and starts Oscillab's login (LTI 1.3). “In the page” shows Oscillab in a frame as most platforms do; Oscillab then opens itself in its own window.</p><table><thead><tr><th>Person</th><th>Role</th><th></th></tr></thead><tbody>${rows}</tbody></table></section>`));
+      <form method="post" action="/as" class="inline"><input type="hidden" name="user" value="${esc(u.id)}"><input type="hidden" name="item" value="${esc(item.id)}"><input type="hidden" name="mode" value="window"><button class="quiet" type="submit" aria-label="Launch as ${esc(u.name)} in a new window" formtarget="_blank">New window</button></form></td></tr>`,
+    )
+    .join('');
+  send(
+    res,
+    200,
+    page(
+      `Launch ${item.title}`,
+      `<h1>${esc(item.title)}</h1><section><h2>Launch as…</h2><p class="note">The platform signs the chosen person in and starts Oscillab's login (LTI 1.3). “In the page” shows Oscillab in a frame as most platforms do; Oscillab then opens itself in its own window.</p><table><thead><tr><th>Person</th><th>Role</th><th></th></tr></thead><tbody>${rows}</tbody></table></section>`,
+    ),
+  );
 });
 
 /** "Sign in" to the stand-in as someone, then start Oscillab's OIDC login (third-party initiated). */
@@ -302,7 +421,16 @@ on('POST', /^\/as$/, async (req, res) => {
   login.searchParams.set('lti_deployment_id', DEPLOYMENT_ID);
   const cookie = `fp_user=${encodeURIComponent(user.id)}; Path=/; HttpOnly; SameSite=Lax`;
   if (form.get('mode') === 'frame') {
-    return send(res, 200, page(item!.title, `<h1>${esc(item!.title)}</h1><p class="note">Signed in to the platform as ${esc(user.name)}.</p><iframe title="Oscillab" src="${esc(login.toString())}"></iframe>`), 'text/html; charset=utf-8', { 'set-cookie': cookie });
+    return send(
+      res,
+      200,
+      page(
+        item!.title,
+        `<h1>${esc(item!.title)}</h1><p class="note">Signed in to the platform as ${esc(user.name)}.</p><iframe title="Oscillab" src="${esc(login.toString())}"></iframe>`,
+      ),
+      'text/html; charset=utf-8',
+      { 'set-cookie': cookie },
+    );
   }
   res.writeHead(303, { location: login.toString(), 'set-cookie': cookie, 'cache-control': 'no-store' });
   res.end();
@@ -310,8 +438,15 @@ on('POST', /^\/as$/, async (req, res) => {
 
 /** The OIDC authorisation endpoint: answers Oscillab's login with a signed id_token posted to its launch URL. */
 async function authorize(req: http.IncomingMessage, res: http.ServerResponse, params: URLSearchParams) {
-  const fail = (msg: string) => send(res, 400, page('Launch refused', `<section><h1>The platform refused this login</h1><p>${esc(msg)}</p></section>`));
-  if (params.get('scope') !== 'openid' || params.get('response_type') !== 'id_token' || params.get('response_mode') !== 'form_post' || params.get('prompt') !== 'none') return fail('Wrong OIDC parameters.');
+  const fail = (msg: string) =>
+    send(res, 400, page('Launch refused', `<section><h1>The platform refused this login</h1><p>${esc(msg)}</p></section>`));
+  if (
+    params.get('scope') !== 'openid' ||
+    params.get('response_type') !== 'id_token' ||
+    params.get('response_mode') !== 'form_post' ||
+    params.get('prompt') !== 'none'
+  )
+    return fail('Wrong OIDC parameters.');
   if (params.get('client_id') !== CLIENT_ID) return fail('Unknown client id.');
   if (params.get('redirect_uri') !== TOOL_LAUNCH) return fail('The redirect URI is not the one registered for Oscillab.');
   const state_ = params.get('state');
@@ -323,11 +458,27 @@ async function authorize(req: http.IncomingMessage, res: http.ServerResponse, pa
   const hint = params.get('lti_message_hint') ?? '';
   const now = Math.floor(Date.now() / 1000);
   const base: JWTPayload = {
-    iss: BASE, aud: CLIENT_ID, azp: CLIENT_ID, sub: user.id, iat: now, exp: now + 300, nonce,
-    name: user.name, given_name: user.given_name, family_name: user.family_name, email: user.email,
-    [LTI.version]: '1.3.0', [LTI.deploymentId]: DEPLOYMENT_ID, [LTI.targetLinkUri]: TOOL_LAUNCH,
-    [LTI.roles]: user.roles, [LTI.context]: contextClaim(),
-    [LTI.toolPlatform]: { guid: `${BASE}/`, name: 'Northmere learning platform (local stand-in)', product_family_code: 'oscillab-fake-platform' },
+    iss: BASE,
+    aud: CLIENT_ID,
+    azp: CLIENT_ID,
+    sub: user.id,
+    iat: now,
+    exp: now + 300,
+    nonce,
+    name: user.name,
+    given_name: user.given_name,
+    family_name: user.family_name,
+    email: user.email,
+    [LTI.version]: '1.3.0',
+    [LTI.deploymentId]: DEPLOYMENT_ID,
+    [LTI.targetLinkUri]: TOOL_LAUNCH,
+    [LTI.roles]: user.roles,
+    [LTI.context]: contextClaim(),
+    [LTI.toolPlatform]: {
+      guid: `${BASE}/`,
+      name: 'Northmere learning platform (local stand-in)',
+      product_family_code: 'oscillab-fake-platform',
+    },
   };
   let claims: JWTPayload;
   if (hint === 'deeplink') {
@@ -336,7 +487,14 @@ async function authorize(req: http.IncomingMessage, res: http.ServerResponse, pa
     claims = {
       ...base,
       [LTI.messageType]: 'LtiDeepLinkingRequest',
-      [LTI.dlSettings]: { deep_link_return_url: `${BASE}/deep-link/return`, accept_types: ['ltiResourceLink'], accept_presentation_document_targets: ['iframe', 'window'], accept_multiple: false, auto_create: true, data },
+      [LTI.dlSettings]: {
+        deep_link_return_url: `${BASE}/deep-link/return`,
+        accept_types: ['ltiResourceLink'],
+        accept_presentation_document_targets: ['iframe', 'window'],
+        accept_multiple: false,
+        auto_create: true,
+        data,
+      },
       ...servicesClaims(),
     };
   } else {
@@ -366,7 +524,10 @@ on('GET', /^\/jwks$/, async (_req, res) => {
 on('POST', /^\/token$/, async (req, res) => {
   if (state.down.token) return sendJson(res, 503, { error: 'temporarily_unavailable' });
   const form = new URLSearchParams(await readBody(req));
-  if (form.get('grant_type') !== 'client_credentials' || form.get('client_assertion_type') !== 'urn:ietf:params:oauth:client-assertion-type:jwt-bearer') {
+  if (
+    form.get('grant_type') !== 'client_credentials' ||
+    form.get('client_assertion_type') !== 'urn:ietf:params:oauth:client-assertion-type:jwt-bearer'
+  ) {
     return sendJson(res, 400, { error: 'unsupported_grant_type' });
   }
   let payload: JWTPayload;
@@ -375,7 +536,8 @@ on('POST', /^\/token$/, async (req, res) => {
   } catch (error) {
     return sendJson(res, 401, { error: 'invalid_client', error_description: (error as Error).message });
   }
-  if (payload.sub !== CLIENT_ID || !payload.jti || usedJti.has(payload.jti)) return sendJson(res, 401, { error: 'invalid_client', error_description: 'sub or jti' });
+  if (payload.sub !== CLIENT_ID || !payload.jti || usedJti.has(payload.jti))
+    return sendJson(res, 401, { error: 'invalid_client', error_description: 'sub or jti' });
   usedJti.add(payload.jti);
   const allowed = Object.values(SCOPES);
   const scopes = (form.get('scope') ?? '').split(' ').filter((s) => allowed.includes(s));
@@ -390,7 +552,15 @@ on('GET', /^\/api\/courses\/([^/]+)\/memberships$/, async (req, res, url) => {
   if (state.down.roster) return send(res, 503, 'roster unavailable', 'text/plain');
   if (!bearer(req, SCOPES.roster)) return sendJson(res, 401, { error: 'invalid_token' });
   if (decodeURIComponent(url.pathname.split('/')[3]) !== state.course.id) return sendJson(res, 404, { error: 'no such course' });
-  const members = state.users.map((u) => ({ user_id: u.id, roles: u.roles, status: u.status, name: u.name, given_name: u.given_name, family_name: u.family_name, email: u.email }));
+  const members = state.users.map((u) => ({
+    user_id: u.id,
+    roles: u.roles,
+    status: u.status,
+    name: u.name,
+    given_name: u.given_name,
+    family_name: u.family_name,
+    email: u.email,
+  }));
   sendJson(res, 200, { id: url.toString(), context: contextClaim(), members }, 'application/vnd.ims.lti-nrps.v2.membershipcontainer+json');
 });
 
@@ -399,15 +569,28 @@ on('GET', /^\/api\/courses\/([^/]+)\/lineitems$/, async (req, res, url) => {
   if (state.down.ags) return send(res, 503, 'grade service unavailable', 'text/plain');
   if (!bearer(req, SCOPES.lineItem)) return sendJson(res, 401, { error: 'invalid_token' });
   const q = url.searchParams;
-  const list = state.lineItems.filter((l) => (!q.get('resource_id') || l.resourceId === q.get('resource_id')) && (!q.get('resource_link_id') || l.resourceLinkId === q.get('resource_link_id')) && (!q.get('tag') || l.tag === q.get('tag')));
+  const list = state.lineItems.filter(
+    (l) =>
+      (!q.get('resource_id') || l.resourceId === q.get('resource_id')) &&
+      (!q.get('resource_link_id') || l.resourceLinkId === q.get('resource_link_id')) &&
+      (!q.get('tag') || l.tag === q.get('tag')),
+  );
   sendJson(res, 200, list, 'application/vnd.ims.lis.v2.lineitemcontainer+json');
 });
 on('POST', /^\/api\/courses\/([^/]+)\/lineitems$/, async (req, res) => {
   if (state.down.ags) return send(res, 503, 'grade service unavailable', 'text/plain');
   if (!bearer(req, SCOPES.lineItem)) return sendJson(res, 401, { error: 'invalid_token' });
   const body = JSON.parse(await readBody(req)) as Partial<LineItem>;
-  if (typeof body.scoreMaximum !== 'number' || body.scoreMaximum <= 0 || typeof body.label !== 'string') return sendJson(res, 400, { error: 'scoreMaximum and label are required' });
-  const li: LineItem = { id: `${BASE}/api/lineitems/${crypto.randomBytes(4).toString('hex')}`, label: body.label, scoreMaximum: body.scoreMaximum, resourceId: body.resourceId, tag: body.tag, resourceLinkId: body.resourceLinkId };
+  if (typeof body.scoreMaximum !== 'number' || body.scoreMaximum <= 0 || typeof body.label !== 'string')
+    return sendJson(res, 400, { error: 'scoreMaximum and label are required' });
+  const li: LineItem = {
+    id: `${BASE}/api/lineitems/${crypto.randomBytes(4).toString('hex')}`,
+    label: body.label,
+    scoreMaximum: body.scoreMaximum,
+    resourceId: body.resourceId,
+    tag: body.tag,
+    resourceLinkId: body.resourceLinkId,
+  };
   state.lineItems.push(li);
   save();
   sendJson(res, 201, li, 'application/vnd.ims.lis.v2.lineitem+json');
@@ -423,17 +606,36 @@ on('GET', /^\/api\/lineitems\/([^/]+)$/, async (req, res, url) => {
 on('POST', /^\/api\/lineitems\/([^/]+)\/scores$/, async (req, res, url) => {
   if (state.down.ags) return send(res, 503, 'grade service unavailable', 'text/plain');
   if (!bearer(req, SCOPES.score)) return sendJson(res, 401, { error: 'invalid_token' });
-  if (!(req.headers['content-type'] ?? '').startsWith('application/vnd.ims.lis.v1.score+json')) return sendJson(res, 415, { error: 'score media type expected' });
+  if (!(req.headers['content-type'] ?? '').startsWith('application/vnd.ims.lis.v1.score+json'))
+    return sendJson(res, 415, { error: 'score media type expected' });
   const li = state.lineItems.find((l) => `${l.id}/scores` === `${BASE}${url.pathname}`);
   if (!li) return sendJson(res, 404, { error: 'no such line item' });
   const s = JSON.parse(await readBody(req)) as Partial<Result> & { userId?: string };
-  if (!s.userId || typeof s.timestamp !== 'string' || !s.activityProgress || !s.gradingProgress) return sendJson(res, 400, { error: 'userId, timestamp, activityProgress and gradingProgress are required' });
+  if (!s.userId || typeof s.timestamp !== 'string' || !s.activityProgress || !s.gradingProgress)
+    return sendJson(res, 400, { error: 'userId, timestamp, activityProgress and gradingProgress are required' });
   if (!state.users.some((u) => u.id === s.userId)) return sendJson(res, 400, { error: 'unknown user' });
   const current = state.results.find((r) => r.lineItemId === li.id && r.userId === s.userId);
   const newer = !current || new Date(s.timestamp).getTime() > new Date(current.timestamp).getTime();
-  state.deliveries.push({ lineItemId: li.id, userId: s.userId, scoreGiven: Number(s.scoreGiven), timestamp: s.timestamp, receivedAt: new Date().toISOString(), applied: newer });
+  state.deliveries.push({
+    lineItemId: li.id,
+    userId: s.userId,
+    scoreGiven: Number(s.scoreGiven),
+    timestamp: s.timestamp,
+    receivedAt: new Date().toISOString(),
+    applied: newer,
+  });
   if (newer) {
-    const result: Result = { lineItemId: li.id, userId: s.userId, scoreGiven: Number(s.scoreGiven), scoreMaximum: Number(s.scoreMaximum), comment: s.comment, timestamp: s.timestamp, activityProgress: s.activityProgress, gradingProgress: s.gradingProgress, updatedAt: new Date().toISOString() };
+    const result: Result = {
+      lineItemId: li.id,
+      userId: s.userId,
+      scoreGiven: Number(s.scoreGiven),
+      scoreMaximum: Number(s.scoreMaximum),
+      comment: s.comment,
+      timestamp: s.timestamp,
+      activityProgress: s.activityProgress,
+      gradingProgress: s.gradingProgress,
+      updatedAt: new Date().toISOString(),
+    };
     state.results = state.results.filter((r) => r !== current).concat(result);
   }
   save();
@@ -444,13 +646,27 @@ on('POST', /^\/api\/lineitems\/([^/]+)\/scores$/, async (req, res, url) => {
 on('GET', /^\/gradebook$/, async (_req, res) => {
   const learners = state.users.filter((u) => u.roles.some((r) => r.endsWith('#Learner')));
   const head = state.lineItems.map((l) => `<th>${esc(l.label)}<br><span class="note">out of ${esc(l.scoreMaximum)}</span></th>`).join('');
-  const rows = learners.map((u) => `<tr><td>${esc(u.name)}</td>${state.lineItems.map((l) => {
-    const r = state.results.find((x) => x.lineItemId === l.id && x.userId === u.id);
-    if (!r) return '<td>—</td>';
-    const link = /https?:\/\/\S+/.exec(r.comment ?? '')?.[0];
-    return `<td data-score="${esc(r.scoreGiven)}"><strong>${esc(r.scoreGiven)}</strong> / ${esc(r.scoreMaximum)}<br><span class="note">${esc(r.gradingProgress)} · ${esc(new Date(r.timestamp).toLocaleString('en-GB'))}${link ? ` · <a href="${esc(link)}">feedback</a>` : ''}</span></td>`;
-  }).join('')}</tr>`).join('');
-  send(res, 200, page('Gradebook', `<h1>Gradebook</h1><section>${state.lineItems.length ? `<table><thead><tr><th>Student</th>${head}</tr></thead><tbody>${rows}</tbody></table>` : '<p>No graded items yet.</p>'}<p class="note">${state.deliveries.length} score message(s) received in all.</p></section>`));
+  const rows = learners
+    .map(
+      (u) =>
+        `<tr><td>${esc(u.name)}</td>${state.lineItems
+          .map((l) => {
+            const r = state.results.find((x) => x.lineItemId === l.id && x.userId === u.id);
+            if (!r) return '<td>—</td>';
+            const link = /https?:\/\/\S+/.exec(r.comment ?? '')?.[0];
+            return `<td data-score="${esc(r.scoreGiven)}"><strong>${esc(r.scoreGiven)}</strong> / ${esc(r.scoreMaximum)}<br><span class="note">${esc(r.gradingProgress)} · ${esc(new Date(r.timestamp).toLocaleString('en-GB'))}${link ? ` · <a href="${esc(link)}">feedback</a>` : ''}</span></td>`;
+          })
+          .join('')}</tr>`,
+    )
+    .join('');
+  send(
+    res,
+    200,
+    page(
+      'Gradebook',
+      `<h1>Gradebook</h1><section>${state.lineItems.length ? `<table><thead><tr><th>Student</th>${head}</tr></thead><tbody>${rows}</tbody></table>` : '<p>No graded items yet.</p>'}<p class="note">${state.deliveries.length} score message(s) received in all.</p></section>`,
+    ),
+  );
 });
 
 /** Deep Linking 2.0 return: Oscillab's signed response places the item (and its line item). */
@@ -460,25 +676,45 @@ on('POST', /^\/deep-link\/return$/, async (req, res) => {
   try {
     ({ payload } = await verifyFromTool(form.get('JWT') ?? '', BASE));
   } catch (error) {
-    return send(res, 400, page('Refused', `<section><h1>The platform refused Oscillab's answer</h1><p>${esc((error as Error).message)}</p></section>`));
+    return send(
+      res,
+      400,
+      page('Refused', `<section><h1>The platform refused Oscillab's answer</h1><p>${esc((error as Error).message)}</p></section>`),
+    );
   }
-  if (payload[LTI.messageType] !== 'LtiDeepLinkingResponse' || payload[LTI.version] !== '1.3.0' || payload[LTI.deploymentId] !== DEPLOYMENT_ID) {
+  if (
+    payload[LTI.messageType] !== 'LtiDeepLinkingResponse' ||
+    payload[LTI.version] !== '1.3.0' ||
+    payload[LTI.deploymentId] !== DEPLOYMENT_ID
+  ) {
     return send(res, 400, page('Refused', '<section><p>Not a deep-linking response for this deployment.</p></section>'));
   }
   const data = payload[LTI.dlData];
-  if (typeof data !== 'string' || !state.deepLinkData.includes(data)) return send(res, 400, page('Refused', '<section><p>The response does not answer a request of this platform.</p></section>'));
+  if (typeof data !== 'string' || !state.deepLinkData.includes(data))
+    return send(res, 400, page('Refused', '<section><p>The response does not answer a request of this platform.</p></section>'));
   state.deepLinkData = state.deepLinkData.filter((d) => d !== data);
   const items = Array.isArray(payload[LTI.dlItems]) ? (payload[LTI.dlItems] as Record<string, unknown>[]) : [];
-  const placed = items.filter((i) => i.type === 'ltiResourceLink').map((i) => placeItem(String(i.title ?? 'Oscillab item'), (i.custom ?? {}) as Record<string, string>, i.lineItem as never));
+  const placed = items
+    .filter((i) => i.type === 'ltiResourceLink')
+    .map((i) => placeItem(String(i.title ?? 'Oscillab item'), (i.custom ?? {}) as Record<string, string>, i.lineItem as never));
   save();
-  send(res, 200, page('Placed', `<h1>Item placed</h1><section><p>${placed.map((p) => esc(p.title)).join(', ') || 'Nothing'} ${placed.length === 1 ? 'was' : 'were'} added to the course.</p><p class="note">${esc(payload[LTI.dlMsg] ?? '')}</p><p><a class="button" href="/">Back to the course</a></p></section>`));
+  send(
+    res,
+    200,
+    page(
+      'Placed',
+      `<h1>Item placed</h1><section><p>${placed.map((p) => esc(p.title)).join(', ') || 'Nothing'} ${placed.length === 1 ? 'was' : 'were'} added to the course.</p><p class="note">${esc(payload[LTI.dlMsg] ?? '')}</p><p><a class="button" href="/">Back to the course</a></p></section>`,
+    ),
+  );
 });
 
 // ——— Controls for tests and the demo (this stand-in only) ———————————————————————————
 
 const controlValue = async (req: http.IncomingMessage) => {
   const text = await readBody(req);
-  return (req.headers['content-type'] ?? '').includes('json') ? (JSON.parse(text || '{}') as Record<string, unknown>) : Object.fromEntries(new URLSearchParams(text));
+  return (req.headers['content-type'] ?? '').includes('json')
+    ? (JSON.parse(text || '{}') as Record<string, unknown>)
+    : Object.fromEntries(new URLSearchParams(text));
 };
 const controlDone = (req: http.IncomingMessage, res: http.ServerResponse, body: unknown) => {
   if ((req.headers.accept ?? '').includes('text/html')) {
@@ -487,7 +723,9 @@ const controlDone = (req: http.IncomingMessage, res: http.ServerResponse, body: 
   }
   sendJson(res, 200, body);
 };
-on('GET', /^\/control\/state$/, async (_req, res) => sendJson(res, 200, { ...state, keys: state.keys.map((k) => ({ kid: k.kid, active: k.active })) }));
+on('GET', /^\/control\/state$/, async (_req, res) =>
+  sendJson(res, 200, { ...state, keys: state.keys.map((k) => ({ kid: k.kid, active: k.active })) }),
+);
 on('POST', /^\/control\/rotate-key$/, async (req, res) => {
   const v = await controlValue(req);
   for (const k of state.keys) k.active = false;
@@ -515,7 +753,10 @@ on('POST', /^\/control\/users$/, async (req, res) => {
   if (v.set) {
     const u = state.users.find((x) => x.id === v.set!.id);
     if (u) Object.assign(u, v.set);
-    else state.users.push(person(v.set.id, v.set.given_name ?? '', v.set.family_name ?? '', v.set.email ?? '', v.set.roles ?? [], v.set.status));
+    else
+      state.users.push(
+        person(v.set.id, v.set.given_name ?? '', v.set.family_name ?? '', v.set.email ?? '', v.set.roles ?? [], v.set.status),
+      );
   }
   save();
   sendJson(res, 200, { users: state.users.length });

@@ -11,11 +11,15 @@ import path from 'node:path';
 const [smtp = '1025', web = '1080'] = process.argv.slice(2);
 const bin = path.resolve('node_modules/maildev/dist/bin/maildev.js');
 if (!fs.existsSync(bin)) {
-  console.error('The local mail catcher (maildev) is a development dependency: run `npm install` (a production install, `npm ci --omit=dev`, leaves it out; point SMTP_URL at a relay instead).');
+  console.error(
+    'The local mail catcher (maildev) is a development dependency: run `npm install` (a production install, `npm ci --omit=dev`, leaves it out; point SMTP_URL at a relay instead).',
+  );
   process.exit(1);
 }
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), `oscillab-maildev-${smtp}-`));
-const child = spawn(process.execPath, [bin, '--ip', '127.0.0.1', '--web-ip', '127.0.0.1', '-s', smtp, '-w', web, '--mail-directory', dir], { stdio: 'inherit' });
+const child = spawn(process.execPath, [bin, '--ip', '127.0.0.1', '--web-ip', '127.0.0.1', '-s', smtp, '-w', web, '--mail-directory', dir], {
+  stdio: 'inherit',
+});
 for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => child.kill(sig));
 child.on('exit', (code) => {
   fs.rmSync(dir, { recursive: true, force: true });

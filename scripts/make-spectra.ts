@@ -169,7 +169,12 @@ function main(): void {
       `Species ${r.species.map((sp) => `${sp} (weight ${abundance(sp).toFixed(4)})`).join(' + ')}, natural isotopic abundance; T = ${TEMPERATURE} K; Lorentzian FWHM ${r.fwhm} cm-1; noise sigma ${r.noise}; seed ${r.seed}.`,
       `Constants: ${provenance}.`,
     ];
-    const jdx = toJcampDx(spectrum, { title: spectrum.title, origin: 'Oscillab synthetic spectrum generator', owner: 'Public domain (synthetic data)', notes });
+    const jdx = toJcampDx(spectrum, {
+      title: spectrum.title,
+      origin: 'Oscillab synthetic spectrum generator',
+      owner: 'Public domain (synthetic data)',
+      notes,
+    });
     const csv = toCsv(spectrum, { comments: notes, digits: 6 });
     writeFileSync(path.join(outDir, `${r.name}.jdx`), jdx);
     writeFileSync(path.join(outDir, `${r.name}.csv`), csv);
@@ -183,7 +188,9 @@ function main(): void {
     readme.push(
       `| ${r.name}.jdx / .csv | ${r.species.join(' + ')} | ${r.from}–${r.to} | ${r.step} | ${r.fwhm} | ${r.noise} | ${r.yKind} | ${provenance} |`,
     );
-    console.log(`${r.name}: ${spectrum.x.length} points, ${lines.length} lines, jdx ${(jdx.length / 1024).toFixed(0)} KB, csv ${(csv.length / 1024).toFixed(0)} KB`);
+    console.log(
+      `${r.name}: ${spectrum.x.length} points, ${lines.length} lines, jdx ${(jdx.length / 1024).toFixed(0)} KB, csv ${(csv.length / 1024).toFixed(0)} KB`,
+    );
   }
   writeFileSync(path.join(outDir, 'README.md'), `${readme.join('\n')}\n`);
 }

@@ -17,7 +17,9 @@ async function main() {
     }
   });
   for (const f of result.failed) console.error(`submission ${f.id}: ${f.message}`);
-  console.log(`${result.rechecked} submissions re-checked in ${((Date.now() - started) / 1000).toFixed(1)} s${result.failed.length ? `; ${result.failed.length} failed` : ''}.`);
+  console.log(
+    `${result.rechecked} submissions re-checked in ${((Date.now() - started) / 1000).toFixed(1)} s${result.failed.length ? `; ${result.failed.length} failed` : ''}.`,
+  );
   await closeDatabase();
   if (result.failed.length) process.exit(1);
 }

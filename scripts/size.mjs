@@ -67,8 +67,11 @@ if (process.argv.includes('--json')) {
   const width = Math.max(5, ...rows.map((r) => r.route.length));
   console.log(`First-load JS per route (${path.relative(process.cwd(), distDir) || '.'}/), KiB`);
   console.log(`${'route'.padEnd(width)}  ${'gzip'.padStart(7)}  ${'own gzip'.padStart(8)}  ${'raw'.padStart(7)}`);
-  for (const r of rows) console.log(`${r.route.padEnd(width)}  ${kib(r.gzip).padStart(7)}  ${kib(r.own).padStart(8)}  ${kib(r.raw).padStart(7)}`);
-  console.log(`${'shared by every route'.padEnd(width)}  ${kib(sharedSize.gzip).padStart(7)}  ${''.padStart(8)}  ${kib(sharedSize.raw).padStart(7)}`);
+  for (const r of rows)
+    console.log(`${r.route.padEnd(width)}  ${kib(r.gzip).padStart(7)}  ${kib(r.own).padStart(8)}  ${kib(r.raw).padStart(7)}`);
+  console.log(
+    `${'shared by every route'.padEnd(width)}  ${kib(sharedSize.gzip).padStart(7)}  ${''.padStart(8)}  ${kib(sharedSize.raw).padStart(7)}`,
+  );
 }
 
 if (sharedSize.gzip > budgetKiB * 1024) {

@@ -41,12 +41,15 @@ export function exampleSpectrum() {
   });
 }
 
-const f = (e: { value: number; stdError: number } | undefined, digits: number) => (e ? `${e.value.toFixed(digits)} ± ${e.stdError.toFixed(digits)}` : '—');
+const f = (e: { value: number; stdError: number } | undefined, digits: number) =>
+  e ? `${e.value.toFixed(digits)} ± ${e.stdError.toFixed(digits)}` : '—';
 
 export function exampleReport(a: SpectrumAnalysis = analyseSpectrum(exampleSpectrum(), { species: ['HCl', 'DCl'] })): string {
   const out: string[] = [];
   out.push(`analyseSpectrum(spectrum, { species: ['HCl', 'DCl'] })`);
-  out.push(`range ${a.range.from}–${a.range.to} cm⁻¹, ${a.range.points} points; line shape: ${a.lineShape.model}, FWHM ${a.lineShape.fwhm.toFixed(3)} cm⁻¹`);
+  out.push(
+    `range ${a.range.from}–${a.range.to} cm⁻¹, ${a.range.points} points; line shape: ${a.lineShape.model}, FWHM ${a.lineShape.fwhm.toFixed(3)} cm⁻¹`,
+  );
   out.push('');
   for (const b of a.bands) {
     if (!b.fit) {
@@ -55,7 +58,9 @@ export function exampleReport(a: SpectrumAnalysis = analyseSpectrum(exampleSpect
     }
     const k = b.fit;
     out.push(`${b.label}: ${b.lines.length} lines, ${k.model} fit, rms ${k.rms.toFixed(4)} cm⁻¹`);
-    out.push(`  ν̃₀ ${f(k.nu0, 4)}  B₀ ${f(k.B0, 5)}  B${b.band === 'fundamental' ? '₁' : '₂'} ${f(k.Bupper, 5)}  Bₑ ${f(k.Be, 5)}  αₑ ${f(k.alphaE, 5)}  D ${k.D ? `${(k.D.value * 1e4).toFixed(3)} ± ${(k.D.stdError * 1e4).toFixed(3)} ×10⁻⁴` : '—'}`);
+    out.push(
+      `  ν̃₀ ${f(k.nu0, 4)}  B₀ ${f(k.B0, 5)}  B${b.band === 'fundamental' ? '₁' : '₂'} ${f(k.Bupper, 5)}  Bₑ ${f(k.Be, 5)}  αₑ ${f(k.alphaE, 5)}  D ${k.D ? `${(k.D.value * 1e4).toFixed(3)} ± ${(k.D.stdError * 1e4).toFixed(3)} ×10⁻⁴` : '—'}`,
+    );
     for (const w of b.warnings) out.push(`  note: ${w}`);
   }
   out.push('');
@@ -63,11 +68,15 @@ export function exampleReport(a: SpectrumAnalysis = analyseSpectrum(exampleSpect
   out.push(`calibration: ${a.calibration?.message ?? '—'}`);
   for (const c of a.vibration.combined) {
     const v = c.calibrated ?? c.asRecorded;
-    out.push(`${c.referenceDisplay} from ${c.isotopologues.length} isotopologues${c.calibrated ? ' (origins corrected for the offset)' : ''}: ωₑ ${f(v.omegaE, 2)}, ωₑxₑ ${f(v.omegaExe, 3)}, ωₑyₑ ${f(v.omegaEye, 4)} cm⁻¹`);
+    out.push(
+      `${c.referenceDisplay} from ${c.isotopologues.length} isotopologues${c.calibrated ? ' (origins corrected for the offset)' : ''}: ωₑ ${f(v.omegaE, 2)}, ωₑxₑ ${f(v.omegaExe, 3)}, ωₑyₑ ${f(v.omegaEye, 4)} cm⁻¹`,
+    );
   }
   for (const v of a.vibration.isotopologues) {
     const n = v.calibrated ?? v.asRecorded;
-    out.push(`${v.display} two-band: ωₑ ${f(n.omegaE, 2)}, ωₑxₑ ${f(n.omegaExe, 3)} cm⁻¹, kₑ ${n.forceConstantE ? f(n.forceConstantE, 2) : '—'} N m⁻¹`);
+    out.push(
+      `${v.display} two-band: ωₑ ${f(n.omegaE, 2)}, ωₑxₑ ${f(n.omegaExe, 3)} cm⁻¹, kₑ ${n.forceConstantE ? f(n.forceConstantE, 2) : '—'} N m⁻¹`,
+    );
   }
   out.push('');
   out.push('problems:');

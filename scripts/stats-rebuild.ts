@@ -15,7 +15,8 @@ async function main() {
   const check = args.includes('--check');
   const practicalIds: number[] = [];
   for (let i = 0; i < args.length; i++) if (args[i] === '--practical') practicalIds.push(Number(args[++i]));
-  if (practicalIds.some((p) => !Number.isInteger(p) || p <= 0)) throw new Error('--practical takes a practical id (a positive whole number)');
+  if (practicalIds.some((p) => !Number.isInteger(p) || p <= 0))
+    throw new Error('--practical takes a practical id (a positive whole number)');
   const only = practicalIds.length ? practicalIds : undefined;
   const before = check ? await keptSnapshot(only) : null;
   const start = performance.now();
@@ -24,11 +25,17 @@ async function main() {
     onProgress: (done, total) => process.stdout.write(`\r  ${done} of ${total} students…`),
   });
   process.stdout.write('\n');
-  console.log(`Kept statistics rebuilt${only ? ` for practical(s) ${only.join(', ')}` : ''}: ${result.submissions} counted submissions of ${result.students} students in ${((performance.now() - start) / 1000).toFixed(1)} s.`);
+  console.log(
+    `Kept statistics rebuilt${only ? ` for practical(s) ${only.join(', ')}` : ''}: ${result.submissions} counted submissions of ${result.students} students in ${((performance.now() - start) / 1000).toFixed(1)} s.`,
+  );
   if (before) {
     const after = await keptSnapshot(only);
     const differing = Object.keys(after).filter((t) => JSON.stringify(after[t]) !== JSON.stringify(before[t]));
-    console.log(differing.length ? `The kept rows had drifted in: ${differing.join(', ')} (now rebuilt).` : 'The kept rows were already equal to the rebuilt ones.');
+    console.log(
+      differing.length
+        ? `The kept rows had drifted in: ${differing.join(', ')} (now rebuilt).`
+        : 'The kept rows were already equal to the rebuilt ones.',
+    );
     if (differing.length) process.exitCode = 3;
   }
   await closeDatabase();

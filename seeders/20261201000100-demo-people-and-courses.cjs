@@ -26,7 +26,8 @@ async function ensure(q, table, where, extra = {}) {
 module.exports = {
   async up(q) {
     const hash = bcrypt.hashSync(DEMO_PASSWORD, 10);
-    const user = (email, name, extra = {}) => ensure(q, 'users', { email }, { name, passwordHash: hash, isAdmin: false, studentNumber: null, ...extra });
+    const user = (email, name, extra = {}) =>
+      ensure(q, 'users', { email }, { name, passwordHash: hash, isAdmin: false, studentNumber: null, ...extra });
 
     const admin = await user('admin@northmere.example', 'Ada Rennick', { isAdmin: true });
     const lead = await user('lead@northmere.example', 'Dr Imogen Tarrant');
@@ -39,9 +40,24 @@ module.exports = {
 
     const chem = await ensure(q, 'courses', { code: 'CHEM2041' }, { title: 'Physical Chemistry Laboratory II', archivedAt: null });
     const phys = await ensure(q, 'courses', { code: 'PHYS2310' }, { title: 'Molecular Physics Laboratory', archivedAt: null });
-    const cohortA = await ensure(q, 'cohorts', { courseId: chem, name: 'Group A', term: '2026 Autumn' }, { instrument: 'FTIR bench 1 (0.5 cm⁻¹)', archivedAt: null });
-    const cohortB = await ensure(q, 'cohorts', { courseId: chem, name: 'Group B', term: '2026 Autumn' }, { instrument: 'FTIR bench 2 (1 cm⁻¹)', archivedAt: null });
-    const cohortP = await ensure(q, 'cohorts', { courseId: phys, name: 'Main cohort', term: '2026 Autumn' }, { instrument: 'FTIR bench 1 (0.5 cm⁻¹)', archivedAt: null });
+    const cohortA = await ensure(
+      q,
+      'cohorts',
+      { courseId: chem, name: 'Group A', term: '2026 Autumn' },
+      { instrument: 'FTIR bench 1 (0.5 cm⁻¹)', archivedAt: null },
+    );
+    const cohortB = await ensure(
+      q,
+      'cohorts',
+      { courseId: chem, name: 'Group B', term: '2026 Autumn' },
+      { instrument: 'FTIR bench 2 (1 cm⁻¹)', archivedAt: null },
+    );
+    const cohortP = await ensure(
+      q,
+      'cohorts',
+      { courseId: phys, name: 'Main cohort', term: '2026 Autumn' },
+      { instrument: 'FTIR bench 1 (0.5 cm⁻¹)', archivedAt: null },
+    );
 
     const member = (userId, courseId, role, cohortId = null) => ensure(q, 'course_memberships', { userId, courseId, role }, { cohortId });
     await member(lead, chem, 'lead');
@@ -62,7 +78,11 @@ module.exports = {
     await duty(cohortP, tas[3]);
     await duty(cohortP, instructor1);
 
-    const cohorts = [[chem, cohortA], [chem, cohortB], [phys, cohortP]];
+    const cohorts = [
+      [chem, cohortA],
+      [chem, cohortB],
+      [phys, cohortP],
+    ];
     for (let i = 0; i < 60; i++) {
       const n = String(i + 1).padStart(2, '0');
       const name = `${FIRST_NAMES[i % FIRST_NAMES.length]} ${LAST_NAMES[(i * 7) % LAST_NAMES.length]}`;

@@ -11,7 +11,10 @@
 async function findId(q, table, where) {
   const keys = Object.keys(where);
   const sql = `SELECT id FROM ${table} WHERE ${keys.map((k) => (where[k] === null ? `"${k}" IS NULL` : `"${k}" = ?`)).join(' AND ')}`;
-  const rows = await q.sequelize.query(sql, { replacements: keys.filter((k) => where[k] !== null).map((k) => where[k]), type: q.sequelize.QueryTypes.SELECT });
+  const rows = await q.sequelize.query(sql, {
+    replacements: keys.filter((k) => where[k] !== null).map((k) => where[k]),
+    type: q.sequelize.QueryTypes.SELECT,
+  });
   return rows[0] ? rows[0].id : null;
 }
 
@@ -54,23 +57,49 @@ async function practical(q, courseId, title, fields) {
   const id = await findId(q, 'practicals', { courseId, title });
   if (id) return { id, created: false };
   const now = new Date();
-  await q.bulkInsert('practicals', [{
-    courseId, title, copiedFromId: null, archivedAt: null, createdAt: now, updatedAt: now, ...fields,
-    species: JSON.stringify(fields.species), rubric: JSON.stringify(fields.rubric),
-  }]);
+  await q.bulkInsert('practicals', [
+    {
+      courseId,
+      title,
+      copiedFromId: null,
+      archivedAt: null,
+      createdAt: now,
+      updatedAt: now,
+      ...fields,
+      species: JSON.stringify(fields.species),
+      rubric: JSON.stringify(fields.rubric),
+    },
+  ]);
   return { id: await findId(q, 'practicals', { courseId, title }), created: true };
 }
 
 async function quantities(q, practicalId, list, overrides = {}) {
   let position = 0;
   for (const [key, species, unit, marks, uncertaintyRequired, accuracy] of list) {
-    const qd = await ensure(q, 'quantity_definitions', { practicalId, key, species }, {
-      unit, marks, uncertaintyRequired, referenceKind: 'literature', referenceValueSI: null, referenceNote: null, position: position++,
-    });
+    const qd = await ensure(
+      q,
+      'quantity_definitions',
+      { practicalId, key, species },
+      {
+        unit,
+        marks,
+        uncertaintyRequired,
+        referenceKind: 'literature',
+        referenceValueSI: null,
+        referenceNote: null,
+        position: position++,
+      },
+    );
     await ensure(q, 'tolerance_bands', { quantityDefinitionId: qd, cohortId: null, basis: 'accuracy' }, { ...accuracy, updatedById: null });
     for (const [cohortId, bands] of Object.entries(overrides)) {
       const band = bands[`${key}:${species}`];
-      if (band) await ensure(q, 'tolerance_bands', { quantityDefinitionId: qd, cohortId: Number(cohortId), basis: 'accuracy' }, { ...band, updatedById: null });
+      if (band)
+        await ensure(
+          q,
+          'tolerance_bands',
+          { quantityDefinitionId: qd, cohortId: Number(cohortId), basis: 'accuracy' },
+          { ...band, updatedById: null },
+        );
     }
   }
 }
@@ -89,41 +118,65 @@ module.exports = {
       species: ['H35Cl', 'D35Cl'],
       instructions: HCL_INSTRUCTIONS,
       hazardNotes: 'HCl and DCl are toxic and corrosive gases. Cells are filled and vented only by demonstrators in the fume cupboard.',
-      mode: 'practice', maxAttempts: 3, lateRule: 'penalty', latePenaltyPerDay: 10, latePenaltyCap: 50,
+      mode: 'practice',
+      maxAttempts: 3,
+      lateRule: 'penalty',
+      latePenaltyPerDay: 10,
+      latePenaltyCap: 50,
       rubric: [
-        { key: 'report-presentation', title: 'Report: presentation', marks: 4, guidance: 'Clear figures with labelled axes and units; a readable line table.' },
-        { key: 'discussion-of-errors', title: 'Discussion of errors', marks: 4, guidance: 'Sources of uncertainty named and their size estimated.' },
+        {
+          key: 'report-presentation',
+          title: 'Report: presentation',
+          marks: 4,
+          guidance: 'Clear figures with labelled axes and units; a readable line table.',
+        },
+        {
+          key: 'discussion-of-errors',
+          title: 'Discussion of errors',
+          marks: 4,
+          guidance: 'Sources of uncertainty named and their size estimated.',
+        },
       ],
     });
     await ensure(q, 'practical_cohorts', { practicalId: hcl.id, cohortId: groupA }, { opensAt: null, deadline: new Date(now + 10 * DAY) });
     await ensure(q, 'practical_cohorts', { practicalId: hcl.id, cohortId: groupB }, { opensAt: null, deadline: new Date(now + 17 * DAY) });
-    await quantities(q, hcl.id, [
-      ['bandCentre', 'H35Cl', 'cm-1', 2, true, ABS(2, 5, 'cm-1')],
-      ['reducedMass', 'H35Cl', 'u', 1, false, REL(0.001, 0.005)],
-      ['forceConstant', 'H35Cl', 'N m-1', 2, true, REL(0.01, 0.03)],
-      ['B0', 'H35Cl', 'cm-1', 1, true, REL(0.01, 0.03)],
-      ['B1', 'H35Cl', 'cm-1', 1, true, REL(0.01, 0.03)],
-      ['Be', 'H35Cl', 'cm-1', 1, false, REL(0.01, 0.03)],
-      ['alphaE', 'H35Cl', 'cm-1', 1, false, REL(0.05, 0.15)],
-      ['re', 'H35Cl', 'Å', 2, true, ABS(0.002, 0.005, 'Å')],
-      ['bandCentre', 'D35Cl', 'cm-1', 1, true, ABS(2, 5, 'cm-1')],
-      ['forceConstant', 'D35Cl', 'N m-1', 1, false, REL(0.01, 0.03)],
-    ], {
-      // Group B works on the 1 cm⁻¹ bench: coarser accuracy bands.
-      [groupB]: {
-        'bandCentre:H35Cl': ABS(4, 8, 'cm-1'),
-        'bandCentre:D35Cl': ABS(4, 8, 'cm-1'),
-        'B0:H35Cl': REL(0.02, 0.05),
-        'B1:H35Cl': REL(0.02, 0.05),
-        're:H35Cl': ABS(0.004, 0.01, 'Å'),
+    await quantities(
+      q,
+      hcl.id,
+      [
+        ['bandCentre', 'H35Cl', 'cm-1', 2, true, ABS(2, 5, 'cm-1')],
+        ['reducedMass', 'H35Cl', 'u', 1, false, REL(0.001, 0.005)],
+        ['forceConstant', 'H35Cl', 'N m-1', 2, true, REL(0.01, 0.03)],
+        ['B0', 'H35Cl', 'cm-1', 1, true, REL(0.01, 0.03)],
+        ['B1', 'H35Cl', 'cm-1', 1, true, REL(0.01, 0.03)],
+        ['Be', 'H35Cl', 'cm-1', 1, false, REL(0.01, 0.03)],
+        ['alphaE', 'H35Cl', 'cm-1', 1, false, REL(0.05, 0.15)],
+        ['re', 'H35Cl', 'Å', 2, true, ABS(0.002, 0.005, 'Å')],
+        ['bandCentre', 'D35Cl', 'cm-1', 1, true, ABS(2, 5, 'cm-1')],
+        ['forceConstant', 'D35Cl', 'N m-1', 1, false, REL(0.01, 0.03)],
+      ],
+      {
+        // Group B works on the 1 cm⁻¹ bench: coarser accuracy bands.
+        [groupB]: {
+          'bandCentre:H35Cl': ABS(4, 8, 'cm-1'),
+          'bandCentre:D35Cl': ABS(4, 8, 'cm-1'),
+          'B0:H35Cl': REL(0.02, 0.05),
+          'B1:H35Cl': REL(0.02, 0.05),
+          're:H35Cl': ABS(0.004, 0.01, 'Å'),
+        },
       },
-    });
+    );
 
     const co = await practical(q, phys, 'CO fundamental and overtone', {
       species: ['12C16O'],
       instructions: CO_INSTRUCTIONS,
-      hazardNotes: 'Carbon monoxide is a toxic gas without smell. Cells are filled and vented only by demonstrators, with the CO detector switched on.',
-      mode: 'assessed', maxAttempts: 1, lateRule: 'not-accepted', latePenaltyPerDay: 0, latePenaltyCap: 0,
+      hazardNotes:
+        'Carbon monoxide is a toxic gas without smell. Cells are filled and vented only by demonstrators, with the CO detector switched on.',
+      mode: 'assessed',
+      maxAttempts: 1,
+      lateRule: 'not-accepted',
+      latePenaltyPerDay: 0,
+      latePenaltyCap: 0,
       rubric: [{ key: 'report-presentation', title: 'Report: presentation', marks: 4, guidance: 'Both bands shown; units on every axis.' }],
     });
     await ensure(q, 'practical_cohorts', { practicalId: co.id, cohortId: main }, { opensAt: null, deadline: new Date(now + 14 * DAY) });

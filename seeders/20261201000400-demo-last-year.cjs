@@ -16,10 +16,14 @@ module.exports = {
     if (closeDatabase) await closeDatabase();
   },
   async down(q) {
-    const [[cohort]] = await q.sequelize.query(`SELECT c.id FROM cohorts c JOIN courses k ON k.id = c."courseId" WHERE k.code = 'CHEM2041' AND c.name = 'Group A' AND c.term = '2025 Autumn'`);
+    const [[cohort]] = await q.sequelize.query(
+      `SELECT c.id FROM cohorts c JOIN courses k ON k.id = c."courseId" WHERE k.code = 'CHEM2041' AND c.name = 'Group A' AND c.term = '2025 Autumn'`,
+    );
     if (cohort) {
       const id = Number(cohort.id);
-      await q.sequelize.query(`DELETE FROM practicals WHERE id IN (SELECT "practicalId" FROM practical_cohorts WHERE "cohortId" = ${id}) AND "copiedFromId" IS NOT NULL`);
+      await q.sequelize.query(
+        `DELETE FROM practicals WHERE id IN (SELECT "practicalId" FROM practical_cohorts WHERE "cohortId" = ${id}) AND "copiedFromId" IS NOT NULL`,
+      );
       await q.sequelize.query(`DELETE FROM cohorts WHERE id = ${id}`);
     }
     await q.sequelize.query(`DELETE FROM users WHERE email LIKE 'alumni%@northmere.example'`);

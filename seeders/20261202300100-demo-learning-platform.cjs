@@ -31,19 +31,34 @@ module.exports = {
     if (!chem) throw new Error('Run the demo people-and-courses seeder first.');
     const groupA = await findId(q, 'cohorts', { courseId: chem, name: 'Group A', term: '2026 Autumn' });
     const base = PLATFORM();
-    const registration = await ensure(q, 'lti_registrations', { issuer: base, clientId: CLIENT_ID }, {
-      name: 'Northmere learning platform (local stand-in)',
-      authLoginUrl: `${base}/auth`,
-      authTokenUrl: `${base}/token`,
-      keySetUrl: `${base}/jwks`,
-      tokenAudience: null,
-      active: true,
-    });
+    const registration = await ensure(
+      q,
+      'lti_registrations',
+      { issuer: base, clientId: CLIENT_ID },
+      {
+        name: 'Northmere learning platform (local stand-in)',
+        authLoginUrl: `${base}/auth`,
+        authTokenUrl: `${base}/token`,
+        keySetUrl: `${base}/jwks`,
+        tokenAudience: null,
+        active: true,
+      },
+    );
     await ensure(q, 'lti_deployments', { registrationId: registration, deploymentId: DEPLOYMENT_ID });
-    await ensure(q, 'lti_contexts', { registrationId: registration, contextId: CONTEXT_ID }, {
-      courseId: chem, defaultCohortId: groupA, title: 'CHEM2041 Physical Chemistry Laboratory II (2026)',
-      membershipsUrl: null, lineItemsUrl: null, agsScopes: null, rosterSyncedAt: null,
-    });
+    await ensure(
+      q,
+      'lti_contexts',
+      { registrationId: registration, contextId: CONTEXT_ID },
+      {
+        courseId: chem,
+        defaultCohortId: groupA,
+        title: 'CHEM2041 Physical Chemistry Laboratory II (2026)',
+        membershipsUrl: null,
+        lineItemsUrl: null,
+        agsScopes: null,
+        rosterSyncedAt: null,
+      },
+    );
   },
 
   async down(q) {

@@ -11,7 +11,9 @@ module.exports = {
       console.log('[demo-spectrum-analysis] skipped: no demo HCl/DCl practical');
       return;
     }
-    await q.sequelize.query(`UPDATE practicals SET "spectrumAnalysis" = ${q.sequelize.getDialect() === 'postgres' ? 'true' : '1'} WHERE id = ${Number(row.id)}`);
+    await q.sequelize.query(
+      `UPDATE practicals SET "spectrumAnalysis" = ${q.sequelize.getDialect() === 'postgres' ? 'true' : '1'} WHERE id = ${Number(row.id)}`,
+    );
     const { recheckPractical } = require('../lib/submissions/recheck.ts');
     const result = await recheckPractical(Number(row.id));
     console.log(`[demo-spectrum-analysis] ${result.rechecked} submissions checked again`);
@@ -19,6 +21,6 @@ module.exports = {
     if (closeDatabase) await closeDatabase();
   },
   async down(q) {
-    await q.sequelize.query("UPDATE practicals SET \"spectrumAnalysis\" = false WHERE title = 'HCl/DCl fundamental band'");
+    await q.sequelize.query('UPDATE practicals SET "spectrumAnalysis" = false WHERE title = \'HCl/DCl fundamental band\'');
   },
 };

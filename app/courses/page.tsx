@@ -11,7 +11,10 @@ export default async function CoursesHome() {
   const courses = await managedCourses(actor);
   return (
     <>
-      <PageHeader title="Courses & practicals" lead="Set up cohorts and rosters, define practicals with their quantities and tolerance bands, and copy them to a new term." />
+      <PageHeader
+        title="Courses & practicals"
+        lead="Set up cohorts and rosters, define practicals with their quantities and tolerance bands, and copy them to a new term."
+      />
       <CoursesOverview courses={courses} />
     </>
   );

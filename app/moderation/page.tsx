@@ -17,10 +17,18 @@ export default async function ModerationPage({ searchParams }: { searchParams: P
   const current = courses.find((c) => c.id === wanted) ?? courses[0];
   return (
     <>
-      <PageHeader title="Moderation" lead="A sample of each marker’s marked submissions (10 %, at least one), with the engine’s proposal beside the marker’s marks." />
+      <PageHeader
+        title="Moderation"
+        lead="A sample of each marker’s marked submissions (10 %, at least one), with the engine’s proposal beside the marker’s marks."
+      />
       <nav aria-label="Courses" className="mb-4 flex flex-wrap gap-2">
         {courses.map((c) => (
-          <a key={c.id} href={`/moderation?courseId=${c.id}`} className={c.id === current.id ? 'btn' : 'btn-quiet'} aria-current={c.id === current.id ? 'page' : undefined}>
+          <a
+            key={c.id}
+            href={`/moderation?courseId=${c.id}`}
+            className={c.id === current.id ? 'btn' : 'btn-quiet'}
+            aria-current={c.id === current.id ? 'page' : undefined}
+          >
             {c.code}
           </a>
         ))}

@@ -35,10 +35,22 @@ export function ResetRequestForm() {
         )}
       </div>
       <div>
-        <label htmlFor="reset-email" className="label">E-mail</label>
-        <input id="reset-email" type="email" autoComplete="username" className="field" aria-invalid={!!formState.errors.email} aria-describedby="reset-email-hint" {...register('email')} />
+        <label htmlFor="reset-email" className="label">
+          E-mail
+        </label>
+        <input
+          id="reset-email"
+          type="email"
+          autoComplete="username"
+          className="field"
+          aria-invalid={!!formState.errors.email}
+          aria-describedby="reset-email-hint"
+          {...register('email')}
+        />
         {formState.errors.email && <p className="error-text">{formState.errors.email.message}</p>}
-        <p id="reset-email-hint" className="hint">The address your department registered for you.</p>
+        <p id="reset-email-hint" className="hint">
+          The address your department registered for you.
+        </p>
       </div>
       <button type="submit" className="btn w-full justify-center" disabled={formState.isSubmitting}>
         {formState.isSubmitting ? 'Sending…' : 'Send me a reset link'}

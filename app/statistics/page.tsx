@@ -20,7 +20,14 @@ export default async function StatisticsHome() {
   const staffCourses = [...new Set(actor.memberships.filter((m) => m.role !== 'student').map((m) => m.courseId))];
   if (!actor.isAdmin && !staffCourses.length) redirect('/not-permitted');
   const { Practical, Course } = models();
-  const practicals = await Practical.findAll({ where: actor.isAdmin ? {} : { courseId: staffCourses }, order: [['courseId', 'ASC'], ['title', 'ASC'], ['id', 'DESC']] });
+  const practicals = await Practical.findAll({
+    where: actor.isAdmin ? {} : { courseId: staffCourses },
+    order: [
+      ['courseId', 'ASC'],
+      ['title', 'ASC'],
+      ['id', 'DESC'],
+    ],
+  });
   const [courseRows, cohortMap] = await Promise.all([
     Course.findAll({ where: { id: [...new Set(practicals.map((p) => p.courseId))] } }),
     cohortsOfPracticals(practicals.map((p) => p.id)),
@@ -34,10 +41,18 @@ export default async function StatisticsHome() {
     }))
     .filter((e) => e.cohorts.length)
     // Newest term first within a course.
-    .sort((a, b) => a.p.courseId - b.p.courseId || (b.cohorts.at(-1)?.term ?? '').localeCompare(a.cohorts.at(-1)?.term ?? '') || a.p.title.localeCompare(b.p.title));
+    .sort(
+      (a, b) =>
+        a.p.courseId - b.p.courseId ||
+        (b.cohorts.at(-1)?.term ?? '').localeCompare(a.cohorts.at(-1)?.term ?? '') ||
+        a.p.title.localeCompare(b.p.title),
+    );
   return (
     <>
-      <PageHeader title="Cohort statistics" lead="Where a cohort goes wrong: deviations per quantity, the most frequent slips, marker consistency, comparison between cohorts and years, and exports." />
+      <PageHeader
+        title="Cohort statistics"
+        lead="Where a cohort goes wrong: deviations per quantity, the most frequent slips, marker consistency, comparison between cohorts and years, and exports."
+      />
       {visible.length === 0 ? (
         <p className="card text-ink-soft">Statistics appear once a practical has cohorts with submissions.</p>
       ) : (
@@ -50,11 +65,24 @@ export default async function StatisticsHome() {
                 <h2>
                   {p.title} <span className="font-normal text-ink-soft">— {terms.join(', ')}</span>
                 </h2>
-                <p className="text-sm text-ink-soft">{course?.code} · {course?.title}{p.archivedAt ? ' · archived' : ''}</p>
+                <p className="text-sm text-ink-soft">
+                  {course?.code} · {course?.title}
+                  {p.archivedAt ? ' · archived' : ''}
+                </p>
                 <ul className="mt-2 flex flex-wrap gap-2">
-                  {all && <li><Link className="btn-quiet" href={`/statistics/${p.id}`}>All cohorts</Link></li>}
+                  {all && (
+                    <li>
+                      <Link className="btn-quiet" href={`/statistics/${p.id}`}>
+                        All cohorts
+                      </Link>
+                    </li>
+                  )}
                   {cohorts.map((c) => (
-                    <li key={c.id}><Link className="btn-quiet" href={`/statistics/${p.id}?cohortId=${c.id}`}>{cohortName(c)}</Link></li>
+                    <li key={c.id}>
+                      <Link className="btn-quiet" href={`/statistics/${p.id}?cohortId=${c.id}`}>
+                        {cohortName(c)}
+                      </Link>
+                    </li>
                   ))}
                 </ul>
               </li>
@@ -62,7 +90,10 @@ export default async function StatisticsHome() {
           })}
         </ul>
       )}
-      <p className="hint mt-6">Groups of fewer than {MIN_GROUP} students show counts only. Each practical’s page has the exports: marks for student records (CSV), the statistics (CSV) and a PDF summary.</p>
+      <p className="hint mt-6">
+        Groups of fewer than {MIN_GROUP} students show counts only. Each practical’s page has the exports: marks for student records (CSV),
+        the statistics (CSV) and a PDF summary.
+      </p>
     </>
   );
 }

@@ -21,7 +21,9 @@ export function RetryButton({ id, label }: { id: number; label: string }) {
       >
         Retry<span className="sr-only"> {label}</span>
       </button>
-      <span role="status" className="text-xs text-ink-soft">{state === 'busy' ? '' : state}</span>
+      <span role="status" className="text-xs text-ink-soft">
+        {state === 'busy' ? '' : state}
+      </span>
     </span>
   );
 }

@@ -25,12 +25,21 @@ export function PeopleAdmin({ people, courses }: { people: AdminPerson[]; course
     setBusy(true);
     const r = await api.post('/api/admin/memberships', { email, courseId, role, cohortId: cohortId ? Number(cohortId) : null });
     setBusy(false);
-    setMsg(r.ok ? { ok: true, text: `${email} is now ${ROLE_NAMES[role].toLowerCase()} in ${course?.code}.` } : { ok: false, text: r.error.message });
+    setMsg(
+      r.ok
+        ? { ok: true, text: `${email} is now ${ROLE_NAMES[role].toLowerCase()} in ${course?.code}.` }
+        : { ok: false, text: r.error.message },
+    );
     if (r.ok) router.refresh();
   }
 
   async function remove(p: AdminPerson, m: AdminPerson['roles'][number]) {
-    if (!window.confirm(`Remove ${p.name}'s role as ${ROLE_NAMES[m.role as keyof typeof ROLE_NAMES]?.toLowerCase() ?? m.role} in ${m.course}? Their work and marks stay.`)) return;
+    if (
+      !window.confirm(
+        `Remove ${p.name}'s role as ${ROLE_NAMES[m.role as keyof typeof ROLE_NAMES]?.toLowerCase() ?? m.role} in ${m.course}? Their work and marks stay.`,
+      )
+    )
+      return;
     const r = await api.delete(`/api/admin/memberships/${m.membershipId}`);
     setMsg(r.ok ? { ok: true, text: `Removed ${p.name} as ${m.role} in ${m.course}.` } : { ok: false, text: r.error.message });
     if (r.ok) router.refresh();
@@ -39,30 +48,56 @@ export function PeopleAdmin({ people, courses }: { people: AdminPerson[]; course
   return (
     <div className="space-y-4">
       <form onSubmit={grant} className="rounded border border-rule bg-paper p-3" aria-labelledby="grant-h" noValidate>
-        <h3 id="grant-h" className="mb-2">Grant a course role</h3>
+        <h3 id="grant-h" className="mb-2">
+          Grant a course role
+        </h3>
         <div className="grid gap-3 md:grid-cols-2 lg:grid-cols-[minmax(0,1fr)_minmax(0,1.3fr)] md:items-end">
           <Field id="grant-email" label="E-mail of the account">
             <input type="email" className="field" value={email} onChange={(e) => setEmail(e.target.value)} autoComplete="off" />
           </Field>
           <Field id="grant-course" label="Course">
-            <select className="field" value={courseId} onChange={(e) => { setCourseId(Number(e.target.value)); setCohortId(''); }}>
-              {courses.map((c) => <option key={c.id} value={c.id}>{c.code} · {c.title}{c.archived ? ' (archived)' : ''}</option>)}
+            <select
+              className="field"
+              value={courseId}
+              onChange={(e) => {
+                setCourseId(Number(e.target.value));
+                setCohortId('');
+              }}
+            >
+              {courses.map((c) => (
+                <option key={c.id} value={c.id}>
+                  {c.code} · {c.title}
+                  {c.archived ? ' (archived)' : ''}
+                </option>
+              ))}
             </select>
           </Field>
           <Field id="grant-role" label="Role">
             <select className="field" value={role} onChange={(e) => setRole(e.target.value as (typeof ROLES)[number])}>
-              {ROLES.map((r) => <option key={r} value={r}>{ROLE_NAMES[r]}</option>)}
+              {ROLES.map((r) => (
+                <option key={r} value={r}>
+                  {ROLE_NAMES[r]}
+                </option>
+              ))}
             </select>
           </Field>
           <Field id="grant-cohort" label={role === 'student' ? 'Cohort (required)' : 'Cohort (students only)'}>
             <select className="field" value={cohortId} onChange={(e) => setCohortId(e.target.value)} disabled={role !== 'student'}>
               <option value="">—</option>
-              {course?.cohorts.map((c) => <option key={c.id} value={c.id}>{c.name} ({c.term})</option>)}
+              {course?.cohorts.map((c) => (
+                <option key={c.id} value={c.id}>
+                  {c.name} ({c.term})
+                </option>
+              ))}
             </select>
           </Field>
         </div>
-        <button type="submit" className="btn mt-3" disabled={busy || !email.trim()}>Grant the role</button>
-        <p aria-live="polite" className={msg?.ok ? 'mt-2 text-sm text-verdict-within' : 'error-text'} data-testid="admin-people-message">{msg ? `${msg.ok ? '✓' : '✗'} ${msg.text}` : ''}</p>
+        <button type="submit" className="btn mt-3" disabled={busy || !email.trim()}>
+          Grant the role
+        </button>
+        <p aria-live="polite" className={msg?.ok ? 'mt-2 text-sm text-verdict-within' : 'error-text'} data-testid="admin-people-message">
+          {msg ? `${msg.ok ? '✓' : '✗'} ${msg.text}` : ''}
+        </p>
         <p className="hint">Roles are granted to existing accounts; instructors invite new people from their course page.</p>
       </form>
       <ul className="divide-y divide-rule" aria-label="People found">
@@ -75,7 +110,16 @@ export function PeopleAdmin({ people, courses }: { people: AdminPerson[]; course
                 {p.isAdmin && <span className="ml-2 rounded bg-accent-soft px-1.5 text-xs font-bold text-accent">site administrator</span>}
                 {p.invited && <span className="ml-2 text-xs text-ink-soft">(invited, no password yet)</span>}
               </p>
-              <button type="button" className="btn-quiet" onClick={() => { setEmail(p.email); const el = document.getElementById('grant-email'); el?.scrollIntoView({ block: 'center' }); el?.focus(); }}>
+              <button
+                type="button"
+                className="btn-quiet"
+                onClick={() => {
+                  setEmail(p.email);
+                  const el = document.getElementById('grant-email');
+                  el?.scrollIntoView({ block: 'center' });
+                  el?.focus();
+                }}
+              >
                 Grant a role…<span className="sr-only"> to {p.name}</span>
               </button>
             </div>
@@ -84,10 +128,21 @@ export function PeopleAdmin({ people, courses }: { people: AdminPerson[]; course
             ) : (
               <ul className="mt-1 flex flex-wrap gap-2 text-sm">
                 {p.roles.map((m) => (
-                  <li key={m.membershipId} className="inline-flex items-center gap-2 rounded border border-rule bg-paper px-2 py-0.5" data-role={`${m.course}:${m.role}`}>
-                    <span>{ROLE_NAMES[m.role as keyof typeof ROLE_NAMES] ?? m.role}, {m.course}{m.cohort ? `, ${m.cohort}` : ''}</span>
+                  <li
+                    key={m.membershipId}
+                    className="inline-flex items-center gap-2 rounded border border-rule bg-paper px-2 py-0.5"
+                    data-role={`${m.course}:${m.role}`}
+                  >
+                    <span>
+                      {ROLE_NAMES[m.role as keyof typeof ROLE_NAMES] ?? m.role}, {m.course}
+                      {m.cohort ? `, ${m.cohort}` : ''}
+                    </span>
                     <button type="button" className="text-danger underline" onClick={() => remove(p, m)}>
-                      Remove<span className="sr-only"> {p.name} as {m.role} in {m.course}</span>
+                      Remove
+                      <span className="sr-only">
+                        {' '}
+                        {p.name} as {m.role} in {m.course}
+                      </span>
                     </button>
                   </li>
                 ))}
@@ -97,7 +152,6 @@ export function PeopleAdmin({ people, courses }: { people: AdminPerson[]; course
         ))}
         {people.length === 0 && <li className="py-3 text-ink-soft">Nobody matches.</li>}
       </ul>
-
     </div>
   );
 }

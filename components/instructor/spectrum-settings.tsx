@@ -16,7 +16,12 @@ type Band = Sample['bands'][number];
 type EditedSample = Omit<Sample, 'molecules'> & { moleculesText: string };
 
 const edited = (s: Sample): EditedSample => ({ key: s.key, label: s.label, bands: s.bands, moleculesText: s.molecules.join(', ') });
-const toSample = (s: EditedSample): Sample => ({ key: s.key, label: s.label, bands: s.bands, molecules: s.moleculesText.split(/[,;\s]+/).filter(Boolean) });
+const toSample = (s: EditedSample): Sample => ({
+  key: s.key,
+  label: s.label,
+  bands: s.bands,
+  molecules: s.moleculesText.split(/[,;\s]+/).filter(Boolean),
+});
 
 const BAND_WORDS: Record<Band, string> = { fundamental: 'fundamental (1←0)', overtone: 'first overtone (2←0)' };
 
@@ -49,7 +54,10 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
     setSaving(true);
     setError(null);
     setMessage(null);
-    const r = await api.put<Settings>(`/api/practicals/${practicalId}/spectrum-settings`, { spectrumAnalysis: analysis, samples: perSample ? samples.map(toSample) : null });
+    const r = await api.put<Settings>(`/api/practicals/${practicalId}/spectrum-settings`, {
+      spectrumAnalysis: analysis,
+      samples: perSample ? samples.map(toSample) : null,
+    });
     setSaving(false);
     if (!r.ok) {
       setError(r.error.message);
@@ -60,14 +68,27 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
     setMessage('Saved. The new settings apply to spectra uploaded and submissions checked from now on.');
   };
 
-  if (!settings && !problem) return <section className="card mt-6"><p className="text-ink-soft">Loading the spectrum settings…</p></section>;
+  if (!settings && !problem)
+    return (
+      <section className="card mt-6">
+        <p className="text-ink-soft">Loading the spectrum settings…</p>
+      </section>
+    );
   return (
     <section className="card mt-6 space-y-4" aria-labelledby="spectra-settings-heading">
       <h2 id="spectra-settings-heading">Spectra</h2>
       <fieldset>
         <legend className="label">What students upload</legend>
         <label className="flex items-center gap-2">
-          <input type="radio" name="spectrum-mode" checked={!perSample} onChange={() => { setPerSample(false); if (settings) setSamples(settings.effective.map(edited)); }} />
+          <input
+            type="radio"
+            name="spectrum-mode"
+            checked={!perSample}
+            onChange={() => {
+              setPerSample(false);
+              if (settings) setSamples(settings.effective.map(edited));
+            }}
+          />
           One spectrum holding every molecule of the practical
         </label>
         <label className="flex items-center gap-2">
@@ -76,39 +97,80 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
         </label>
       </fieldset>
       {!perSample && settings && (
-        <p className="hint">Expected: {settings.effective.map((s) => `${s.molecules.join(' and ')} — ${s.bands.map((b) => BAND_WORDS[b]).join(', ')}`).join('; ')} (the overtone when a quantity needs it).</p>
+        <p className="hint">
+          Expected:{' '}
+          {settings.effective.map((s) => `${s.molecules.join(' and ')} — ${s.bands.map((b) => BAND_WORDS[b]).join(', ')}`).join('; ')} (the
+          overtone when a quantity needs it).
+        </p>
       )}
       {perSample && (
         <div className="space-y-3">
           {samples.map((s, i) => (
             <div key={i} className="grid gap-2 rounded border border-rule p-3 md:grid-cols-4">
               <div>
-                <label className="hint" htmlFor={`sample-label-${i}`}>Spectrum</label>
+                <label className="hint" htmlFor={`sample-label-${i}`}>
+                  Spectrum
+                </label>
                 <input id={`sample-label-${i}`} className="field" value={s.label} onChange={(e) => update(i, { label: e.target.value })} />
               </div>
               <div>
-                <label className="hint" htmlFor={`sample-key-${i}`}>Short name (a–z, 0–9, -)</label>
-                <input id={`sample-key-${i}`} className="field" value={s.key} onChange={(e) => update(i, { key: e.target.value.toLowerCase() })} />
+                <label className="hint" htmlFor={`sample-key-${i}`}>
+                  Short name (a–z, 0–9, -)
+                </label>
+                <input
+                  id={`sample-key-${i}`}
+                  className="field"
+                  value={s.key}
+                  onChange={(e) => update(i, { key: e.target.value.toLowerCase() })}
+                />
               </div>
               <div>
-                <label className="hint" htmlFor={`sample-molecules-${i}`}>Molecules in it (e.g. HCl, DCl)</label>
-                <input id={`sample-molecules-${i}`} className="field" value={s.moleculesText} onChange={(e) => update(i, { moleculesText: e.target.value })} />
+                <label className="hint" htmlFor={`sample-molecules-${i}`}>
+                  Molecules in it (e.g. HCl, DCl)
+                </label>
+                <input
+                  id={`sample-molecules-${i}`}
+                  className="field"
+                  value={s.moleculesText}
+                  onChange={(e) => update(i, { moleculesText: e.target.value })}
+                />
               </div>
               <fieldset>
                 <legend className="hint">Bands expected</legend>
                 {(['fundamental', 'overtone'] as Band[]).map((b) => (
                   <label key={b} className="flex items-center gap-2 text-sm">
-                    <input type="checkbox" checked={s.bands.includes(b)} onChange={(e) => update(i, { bands: e.target.checked ? [...s.bands, b] : s.bands.filter((x) => x !== b) })} />
+                    <input
+                      type="checkbox"
+                      checked={s.bands.includes(b)}
+                      onChange={(e) => update(i, { bands: e.target.checked ? [...s.bands, b] : s.bands.filter((x) => x !== b) })}
+                    />
                     {BAND_WORDS[b]}
                   </label>
                 ))}
               </fieldset>
               <div className="md:col-span-4">
-                <button type="button" className="btn-quiet" onClick={() => setSamples((list) => list.filter((_, k) => k !== i))} disabled={samples.length <= 1}>Remove this spectrum</button>
+                <button
+                  type="button"
+                  className="btn-quiet"
+                  onClick={() => setSamples((list) => list.filter((_, k) => k !== i))}
+                  disabled={samples.length <= 1}
+                >
+                  Remove this spectrum
+                </button>
               </div>
             </div>
           ))}
-          <button type="button" className="btn-quiet" onClick={() => setSamples((list) => [...list, { key: `sample-${list.length + 1}`, label: `Sample ${list.length + 1}`, moleculesText: '', bands: ['fundamental'] }])} disabled={samples.length >= 6}>
+          <button
+            type="button"
+            className="btn-quiet"
+            onClick={() =>
+              setSamples((list) => [
+                ...list,
+                { key: `sample-${list.length + 1}`, label: `Sample ${list.length + 1}`, moleculesText: '', bands: ['fundamental'] },
+              ])
+            }
+            disabled={samples.length >= 6}
+          >
             Add a spectrum
           </button>
         </div>
@@ -116,12 +178,18 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
       <label className="flex items-start gap-2">
         <input type="checkbox" className="mt-1" checked={analysis} onChange={(e) => setAnalysis(e.target.checked)} />
         <span>
-          Show Oscillab’s own reading of each student’s spectrum as a third comparison, “from your spectrum”, on the marking screen and in the feedback.
-          <span className="hint block">It finds, assigns and fits the lines of the uploaded spectrum itself and compares the student’s numbers with the result: it catches misread or misnumbered lines. Its verdicts are advice and do not change marks.</span>
+          Show Oscillab’s own reading of each student’s spectrum as a third comparison, “from your spectrum”, on the marking screen and in
+          the feedback.
+          <span className="hint block">
+            It finds, assigns and fits the lines of the uploaded spectrum itself and compares the student’s numbers with the result: it
+            catches misread or misnumbered lines. Its verdicts are advice and do not change marks.
+          </span>
         </span>
       </label>
       <div className="flex items-center gap-3">
-        <button type="button" className="btn" onClick={() => void save()} disabled={saving}>{saving ? 'Saving…' : 'Save spectrum settings'}</button>
+        <button type="button" className="btn" onClick={() => void save()} disabled={saving}>
+          {saving ? 'Saving…' : 'Save spectrum settings'}
+        </button>
         <span aria-live="polite" className="text-sm">
           {message}
           {problem && <span className="error-text">{problem}</span>}

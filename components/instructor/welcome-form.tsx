@@ -28,18 +28,35 @@ export function WelcomeForm({ token, email }: { token: string; email: string }) 
   }
   return (
     <form onSubmit={handleSubmit(onSubmit)} noValidate className="space-y-4">
-      {error && <p role="alert" className="rounded border border-danger bg-danger-soft px-3 py-2 text-sm text-danger">{error}</p>}
+      {error && (
+        <p role="alert" className="rounded border border-danger bg-danger-soft px-3 py-2 text-sm text-danger">
+          {error}
+        </p>
+      )}
       <input type="hidden" {...register('token')} />
       <input type="hidden" autoComplete="username" value={email} readOnly />
       <div>
-        <label htmlFor="new-password" className="label">New password</label>
-        <input id="new-password" type="password" autoComplete="new-password" className="field" aria-describedby="new-password-hint" {...register('password')} />
-        <p id="new-password-hint" className="hint">At least 12 characters, with at least 4 different characters, and not a commonly used password.</p>
+        <label htmlFor="new-password" className="label">
+          New password
+        </label>
+        <input
+          id="new-password"
+          type="password"
+          autoComplete="new-password"
+          className="field"
+          aria-describedby="new-password-hint"
+          {...register('password')}
+        />
+        <p id="new-password-hint" className="hint">
+          At least 12 characters, with at least 4 different characters, and not a commonly used password.
+        </p>
       </div>
       <Field id="confirm-password" label="The same password again" error={formState.errors.confirm?.message}>
         <input type="password" autoComplete="new-password" className="field" {...register('confirm')} />
       </Field>
-      <button type="submit" className="btn w-full justify-center" disabled={formState.isSubmitting}>Set password</button>
+      <button type="submit" className="btn w-full justify-center" disabled={formState.isSubmitting}>
+        Set password
+      </button>
     </form>
   );
 }

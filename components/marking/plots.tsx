@@ -15,13 +15,22 @@ export async function SpectrumSection({ submissionId }: { submissionId: number }
   const { Submission, Practical } = models();
   const submission = await Submission.findByPk(submissionId);
   const practical = submission ? await Practical.findByPk(submission.practicalId) : null;
-  const spectrum = submission && practical ? await spectrumFigure(submission, practical, 'staff') : ({ ok: false, message: 'Not found.' } as const);
+  const spectrum =
+    submission && practical ? await spectrumFigure(submission, practical, 'staff') : ({ ok: false, message: 'Not found.' } as const);
   return (
     <section aria-labelledby="spectrum-heading" className="card mb-6">
-      <h2 id="spectrum-heading" className="mb-2">Spectrum with the student’s lines</h2>
+      <h2 id="spectrum-heading" className="mb-2">
+        Spectrum with the student’s lines
+      </h2>
       {spectrum.ok ? (
         <>
-          <div className="table-scroll text-ink" role="region" aria-label="Spectrum plot (scrolls sideways on a narrow screen)" tabIndex={0} data-testid="marking-spectrum">
+          <div
+            className="table-scroll text-ink"
+            role="region"
+            aria-label="Spectrum plot (scrolls sideways on a narrow screen)"
+            tabIndex={0}
+            data-testid="marking-spectrum"
+          >
             <PlotFigure {...spectrum.plot} />
           </div>
           <p className="mt-2 text-sm">
@@ -61,19 +70,33 @@ export async function FitPlots({ fits }: { fits: FitData[] }) {
     <>
       {plots.map((p, i) => (
         <section key={i} aria-labelledby={`fit-heading-${i}`} className="card mb-6" data-testid="fit-plot">
-          <h2 id={`fit-heading-${i}`} className="mb-2">Line fit and residuals{p.species ? ` (${speciesDisplay(p.species)})` : ''}</h2>
-          <p className="mb-2 text-sm" data-testid="fit-description">{p.description}</p>
+          <h2 id={`fit-heading-${i}`} className="mb-2">
+            Line fit and residuals{p.species ? ` (${speciesDisplay(p.species)})` : ''}
+          </h2>
+          <p className="mb-2 text-sm" data-testid="fit-description">
+            {p.description}
+          </p>
           {p.notices.length > 0 && (
             <ul className="mb-2 list-disc pl-5 text-sm" data-testid="fit-notices">
               {p.notices.map((n) => (
-                <li key={n.code} data-notice={n.code}>{n.message}</li>
+                <li key={n.code} data-notice={n.code}>
+                  {n.message}
+                </li>
               ))}
             </ul>
           )}
-          <div className="hidden overflow-x-auto text-ink sm:block"><PlotFigure {...p.fit} /></div>
-          <div className="hidden overflow-x-auto text-ink sm:block"><PlotFigure {...p.residuals} /></div>
-          <div className="text-ink sm:hidden"><PlotFigure {...p.fitNarrow} /></div>
-          <div className="text-ink sm:hidden"><PlotFigure {...p.residualsNarrow} /></div>
+          <div className="hidden overflow-x-auto text-ink sm:block">
+            <PlotFigure {...p.fit} />
+          </div>
+          <div className="hidden overflow-x-auto text-ink sm:block">
+            <PlotFigure {...p.residuals} />
+          </div>
+          <div className="text-ink sm:hidden">
+            <PlotFigure {...p.fitNarrow} />
+          </div>
+          <div className="text-ink sm:hidden">
+            <PlotFigure {...p.residualsNarrow} />
+          </div>
         </section>
       ))}
     </>

@@ -14,15 +14,49 @@ import { api, postStream, useApi } from '@/lib/api-client';
 import { ConfirmDialog } from '@/components/ui/confirm-dialog';
 import { Field } from '@/components/ui/field';
 /** page is shown only; the server pages by the cursor (after / before a row). */
-type Filters = { practicalId: string; cohortId: string; status: string; flag: string; sort: string; dir: string; page: number; after?: string; before?: string };
+type Filters = {
+  practicalId: string;
+  cohortId: string;
+  status: string;
+  flag: string;
+  sort: string;
+  dir: string;
+  page: number;
+  after?: string;
+  before?: string;
+};
 
-const FLAG_LABEL: Record<string, string> = { outside: 'Outside tolerance', slip: 'Named slip', late: 'Late', duplicate: 'Duplicate data', spectrum: 'Spectrum mismatch' };
-const STATUS_LABEL: Record<string, string> = { submitted: 'Submitted', marked: 'Marked', released: 'Released', 'resubmission-requested': 'Resubmission requested' };
-const SORT_LABEL: Record<string, string> = { submittedAt: 'Submission time', student: 'Student', practical: 'Practical', status: 'Status', proposedTotal: 'Proposed total', awardedTotal: 'Awarded total' };
+const FLAG_LABEL: Record<string, string> = {
+  outside: 'Outside tolerance',
+  slip: 'Named slip',
+  late: 'Late',
+  duplicate: 'Duplicate data',
+  spectrum: 'Spectrum mismatch',
+};
+const STATUS_LABEL: Record<string, string> = {
+  submitted: 'Submitted',
+  marked: 'Marked',
+  released: 'Released',
+  'resubmission-requested': 'Resubmission requested',
+};
+const SORT_LABEL: Record<string, string> = {
+  submittedAt: 'Submission time',
+  student: 'Student',
+  practical: 'Practical',
+  status: 'Status',
+  proposedTotal: 'Proposed total',
+  awardedTotal: 'Awarded total',
+};
 
 const col = createColumnHelper<QueueRow>();
 
-export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number; title: string }[]; cohorts: { id: number; name: string }[] }) {
+export function MarkingQueue({
+  practicals,
+  cohorts,
+}: {
+  practicals: { id: number; title: string }[];
+  cohorts: { id: number; name: string }[];
+}) {
   const router = useRouter();
   const [f, setF] = useState<Filters>({ practicalId: '', cohortId: '', status: '', flag: '', sort: 'submittedAt', dir: 'desc', page: 1 });
   const [cursor, setCursor] = useState(0);
@@ -45,25 +79,41 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
   };
 
   useEffect(() => {
-    if (rows.length) setKnown((m) => { const n = new Map(m); for (const r of rows) n.set(r.id, r); return n; });
+    if (rows.length)
+      setKnown((m) => {
+        const n = new Map(m);
+        for (const r of rows) n.set(r.id, r);
+        return n;
+      });
   }, [rows]);
 
-  const toggle = useCallback((id: number) => setSelected((s) => {
-    const n = new Set(s);
-    if (n.has(id)) n.delete(id);
-    else n.add(id);
-    return n;
-  }), []);
+  const toggle = useCallback(
+    (id: number) =>
+      setSelected((s) => {
+        const n = new Set(s);
+        if (n.has(id)) n.delete(id);
+        else n.add(id);
+        return n;
+      }),
+    [],
+  );
 
   const columns = useQueueColumns(selected, toggle);
   // eslint-disable-next-line react-hooks/incompatible-library -- TanStack Table keeps its own state; this component is left unmemoised by the compiler
   const table = useReactTable({ data: rows, columns, getCoreRowModel: getCoreRowModel(), getRowId: (r) => String(r.id) });
 
-  const accept = useCallback(async (row: QueueRow) => {
-    const r = await api.post<SaveResult>(`/api/marking/${row.id}/accept`, { version: row.version });
-    setMessage(r.ok ? `${row.student.name}: proposal accepted${r.data.unmarked ? `; ${r.data.unmarked} hand-marked item(s) still to mark` : ' — marked'}.` : `${row.student.name}: ${r.error.message}`);
-    mutate();
-  }, [mutate]);
+  const accept = useCallback(
+    async (row: QueueRow) => {
+      const r = await api.post<SaveResult>(`/api/marking/${row.id}/accept`, { version: row.version });
+      setMessage(
+        r.ok
+          ? `${row.student.name}: proposal accepted${r.data.unmarked ? `; ${r.data.unmarked} hand-marked item(s) still to mark` : ' — marked'}.`
+          : `${row.student.name}: ${r.error.message}`,
+      );
+      mutate();
+    },
+    [mutate],
+  );
 
   useQueueKeys({ rows, cursor, setCursor, regionRef, accept, toggle, open: (id) => router.push(`/marking/${id}`) });
 
@@ -86,25 +136,67 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
         <button type="button" className="btn" disabled={selected.size === 0} onClick={() => setConfirming(true)}>
           Release selected ({selected.size})…
         </button>
-        <button type="button" className="btn-quiet" onClick={() => setSelected(new Set(rows.filter((r) => r.status === 'marked').map((r) => r.id)))}>
+        <button
+          type="button"
+          className="btn-quiet"
+          onClick={() => setSelected(new Set(rows.filter((r) => r.status === 'marked').map((r) => r.id)))}
+        >
           Select all marked on this page
         </button>
-        <p className="text-sm text-ink-soft" aria-live="polite" role="status">{isLoading ? 'Loading…' : data ? `${data.total.toLocaleString('en-GB')}${data.totalExact ? '' : ' or more'} submission(s)` : ''}</p>
+        <p className="text-sm text-ink-soft" aria-live="polite" role="status">
+          {isLoading ? 'Loading…' : data ? `${data.total.toLocaleString('en-GB')}${data.totalExact ? '' : ' or more'} submission(s)` : ''}
+        </p>
       </div>
-      <p className="mb-3 text-sm" aria-live="polite" role="status" data-testid="queue-message">{message}</p>
-      {error && <p className="error-text" role="alert">{error.message}</p>}
+      <p className="mb-3 text-sm" aria-live="polite" role="status" data-testid="queue-message">
+        {message}
+      </p>
+      {error && (
+        <p className="error-text" role="alert">
+          {error.message}
+        </p>
+      )}
 
-      <div ref={regionRef} className="card overflow-x-auto p-0" tabIndex={0} role="region" aria-label="Submissions" aria-describedby="queue-keys">
+      <div
+        ref={regionRef}
+        className="card overflow-x-auto p-0"
+        tabIndex={0}
+        role="region"
+        aria-label="Submissions"
+        aria-describedby="queue-keys"
+      >
         <QueueTable table={table} tableRef={tableRef} cursor={cursor} setCursor={setCursor} empty={rows.length === 0 && !isLoading} />
       </div>
 
-      <ReleaseDialog open={confirming} selected={selected} known={known} onCancel={() => setConfirming(false)} onConfirm={() => void release()} />
+      <ReleaseDialog
+        open={confirming}
+        selected={selected}
+        known={known}
+        onCancel={() => setConfirming(false)}
+        onConfirm={() => void release()}
+      />
 
       {data && (data.pages > 1 || data.next || data.prev) && (
         <nav className="mt-3 flex items-center gap-2" aria-label="Pages">
-          <button type="button" className="btn-quiet" disabled={!data.prev} onClick={() => setF((o) => ({ ...o, page: Math.max(1, o.page - 1), before: data.prev ?? undefined, after: undefined }))}>Previous page</button>
-          <span className="text-sm">Page {data.page}{data.totalExact ? ` of ${data.pages}` : ''}</span>
-          <button type="button" className="btn-quiet" disabled={!data.next} onClick={() => setF((o) => ({ ...o, page: o.page + 1, after: data.next ?? undefined, before: undefined }))}>Next page</button>
+          <button
+            type="button"
+            className="btn-quiet"
+            disabled={!data.prev}
+            onClick={() => setF((o) => ({ ...o, page: Math.max(1, o.page - 1), before: data.prev ?? undefined, after: undefined }))}
+          >
+            Previous page
+          </button>
+          <span className="text-sm">
+            Page {data.page}
+            {data.totalExact ? ` of ${data.pages}` : ''}
+          </span>
+          <button
+            type="button"
+            className="btn-quiet"
+            disabled={!data.next}
+            onClick={() => setF((o) => ({ ...o, page: o.page + 1, after: data.next ?? undefined, before: undefined }))}
+          >
+            Next page
+          </button>
         </nav>
       )}
     </div>
@@ -117,17 +209,23 @@ export function MarkingQueue({ practicals, cohorts }: { practicals: { id: number
  */
 async function releaseSelected(ids: number[], say: (message: string) => void): Promise<boolean> {
   say(`Releasing ${ids.length} submission(s)…`);
-  const r = await postStream<ReleaseSummary, ReleaseProgress>('/api/release', { submissionIds: ids }, {
-    isProgress: (m): m is ReleaseProgress => typeof (m as ReleaseProgress).done === 'number',
-    onProgress: (m) => say(`Releasing… ${m.done} of ${m.total} done.`),
-    incomplete: 'The release stopped before it finished; reload to see what was released.',
-  });
+  const r = await postStream<ReleaseSummary, ReleaseProgress>(
+    '/api/release',
+    { submissionIds: ids },
+    {
+      isProgress: (m): m is ReleaseProgress => typeof (m as ReleaseProgress).done === 'number',
+      onProgress: (m) => say(`Releasing… ${m.done} of ${m.total} done.`),
+      incomplete: 'The release stopped before it finished; reload to see what was released.',
+    },
+  );
   if (!r.ok) {
     say(`Release refused: ${r.error.message}`);
     return false;
   }
   const failed = r.data.results.filter((x) => !x.ok);
-  say(`Released ${r.data.released} of ${ids.length}; feedback e-mails queued.${failed.length ? ` Not released: ${failed.map((x) => `#${x.submissionId} (${x.message})`).join(', ')}` : ''}`);
+  say(
+    `Released ${r.data.released} of ${ids.length}; feedback e-mails queued.${failed.length ? ` Not released: ${failed.map((x) => `#${x.submissionId} (${x.message})`).join(', ')}` : ''}`,
+  );
   return true;
 }
 
@@ -138,21 +236,34 @@ function useQueueColumns(selected: Set<number>, toggle: (id: number) => void) {
         id: 'select',
         header: () => <span className="sr-only">Select</span>,
         cell: ({ row }) => (
-          <input type="checkbox" aria-label={`Select ${row.original.student.name}`} checked={selected.has(row.original.id)} onChange={() => toggle(row.original.id)} />
+          <input
+            type="checkbox"
+            aria-label={`Select ${row.original.student.name}`}
+            checked={selected.has(row.original.id)}
+            onChange={() => toggle(row.original.id)}
+          />
         ),
       }),
-      col.accessor((r) => r.student.name, { id: 'student', header: 'Student', cell: ({ row }) => <a href={`/marking/${row.original.id}`}>{row.original.student.name}</a> }),
+      col.accessor((r) => r.student.name, {
+        id: 'student',
+        header: 'Student',
+        cell: ({ row }) => <a href={`/marking/${row.original.id}`}>{row.original.student.name}</a>,
+      }),
       col.accessor((r) => r.practical.title, { id: 'practical', header: 'Practical' }),
       col.accessor((r) => r.cohort.name, { id: 'cohort', header: 'Cohort' }),
       col.accessor('status', { header: 'Status', cell: (c) => STATUS_LABEL[c.getValue()] ?? c.getValue() }),
       col.display({ id: 'flags', header: 'Flags', cell: ({ row }) => <Flags row={row.original} /> }),
-      col.accessor('submittedAt', { header: 'Submitted', cell: (c) => (c.getValue() ? new Date(c.getValue()!).toLocaleString('en-GB', { dateStyle: 'short', timeStyle: 'short' }) : '—') }),
+      col.accessor('submittedAt', {
+        header: 'Submitted',
+        cell: (c) => (c.getValue() ? new Date(c.getValue()!).toLocaleString('en-GB', { dateStyle: 'short', timeStyle: 'short' }) : '—'),
+      }),
       col.display({
         id: 'marks',
         header: () => <span className="block text-right">Proposed / awarded</span>,
         cell: ({ row }) => (
           <span className="num block text-right">
-            {row.original.proposedTotal ?? '—'} / {row.original.awardedTotal ?? '—'} <span className="text-ink-soft">of {row.original.maxTotal ?? '—'}</span>
+            {row.original.proposedTotal ?? '—'} / {row.original.awardedTotal ?? '—'}{' '}
+            <span className="text-ink-soft">of {row.original.maxTotal ?? '—'}</span>
           </span>
         ),
       }),
@@ -168,9 +279,15 @@ function Flags({ row }: { row: QueueRow }) {
       {(Object.keys(row.flags) as (keyof QueueRow['flags'])[])
         .filter((k) => row.flags[k])
         .map((k) => (
-          <span key={k} className={`rounded px-1 text-xs ${k === 'outside' ? 'bg-verdict-outside-bg text-verdict-outside' : 'bg-paper-sunk text-ink'}`} data-flag={k}>
+          <span
+            key={k}
+            className={`rounded px-1 text-xs ${k === 'outside' ? 'bg-verdict-outside-bg text-verdict-outside' : 'bg-paper-sunk text-ink'}`}
+            data-flag={k}
+          >
             <span aria-hidden="true">{k === 'outside' ? '✗ ' : '⚑ '}</span>
-            {k === 'slip' && row.summary.slips.length ? `${FLAG_LABEL[k]}: ${row.summary.slips.map((s) => s.title).join('; ')}` : FLAG_LABEL[k]}
+            {k === 'slip' && row.summary.slips.length
+              ? `${FLAG_LABEL[k]}: ${row.summary.slips.map((s) => s.title).join('; ')}`
+              : FLAG_LABEL[k]}
           </span>
         ))}
     </span>
@@ -178,7 +295,15 @@ function Flags({ row }: { row: QueueRow }) {
 }
 
 /** The queue's keys, listened to on the window so they work wherever focus is outside a control. */
-function useQueueKeys({ rows, cursor, setCursor, regionRef, accept, toggle, open }: {
+function useQueueKeys({
+  rows,
+  cursor,
+  setCursor,
+  regionRef,
+  accept,
+  toggle,
+  open,
+}: {
   rows: QueueRow[];
   cursor: number;
   setCursor: React.Dispatch<React.SetStateAction<number>>;
@@ -220,36 +345,66 @@ function useQueueKeys({ rows, cursor, setCursor, regionRef, accept, toggle, open
   }, [rows, cursor, setCursor, regionRef, accept, toggle, open]);
 }
 
-function QueueFilters({ f, set, practicals, cohorts }: { f: Filters; set: (patch: Partial<Filters>) => void; practicals: { id: number; title: string }[]; cohorts: { id: number; name: string }[] }) {
+function QueueFilters({
+  f,
+  set,
+  practicals,
+  cohorts,
+}: {
+  f: Filters;
+  set: (patch: Partial<Filters>) => void;
+  practicals: { id: number; title: string }[];
+  cohorts: { id: number; name: string }[];
+}) {
   return (
     <form className="card mb-4 grid grid-cols-2 gap-3 md:grid-cols-6" onSubmit={(e) => e.preventDefault()} aria-label="Filter the queue">
       <Field id="q-practical" label="Practical">
         <select className="field" value={f.practicalId} onChange={(e) => set({ practicalId: e.target.value })}>
           <option value="">All</option>
-          {practicals.map((p) => <option key={p.id} value={p.id}>{p.title}</option>)}
+          {practicals.map((p) => (
+            <option key={p.id} value={p.id}>
+              {p.title}
+            </option>
+          ))}
         </select>
       </Field>
       <Field id="q-cohort" label="Cohort">
         <select className="field" value={f.cohortId} onChange={(e) => set({ cohortId: e.target.value })}>
           <option value="">All</option>
-          {cohorts.map((c) => <option key={c.id} value={c.id}>{c.name}</option>)}
+          {cohorts.map((c) => (
+            <option key={c.id} value={c.id}>
+              {c.name}
+            </option>
+          ))}
         </select>
       </Field>
       <Field id="q-status" label="Status">
         <select className="field" value={f.status} onChange={(e) => set({ status: e.target.value })}>
           <option value="">All</option>
-          {QUEUE_STATUSES.map((s) => <option key={s} value={s}>{STATUS_LABEL[s]}</option>)}
+          {QUEUE_STATUSES.map((s) => (
+            <option key={s} value={s}>
+              {STATUS_LABEL[s]}
+            </option>
+          ))}
         </select>
       </Field>
       <Field id="q-flag" label="Flag">
         <select className="field" value={f.flag} onChange={(e) => set({ flag: e.target.value })}>
           <option value="">Any</option>
-          {QUEUE_FLAGS.map((s) => <option key={s} value={s}>{FLAG_LABEL[s]}</option>)}
+          {QUEUE_FLAGS.map((s) => (
+            <option key={s} value={s}>
+              {FLAG_LABEL[s]}
+            </option>
+          ))}
         </select>
       </Field>
       <Field id="q-sort" label="Sort by">
         <select className="field" value={f.sort} onChange={(e) => set({ sort: e.target.value })}>
-          {QUEUE_SORTS.map((s) => <option key={s} value={s}>{SORT_LABEL[s]}</option>)}
+          {QUEUE_SORTS.map((s) => (
+            <option key={s} value={s}>
+              {SORT_LABEL[s]}
+            </option>
+          ))}
         </select>
       </Field>
       <Field id="q-dir" label="Order">
@@ -262,12 +417,30 @@ function QueueFilters({ f, set, practicals, cohorts }: { f: Filters; set: (patch
   );
 }
 
-function QueueTable({ table, tableRef, cursor, setCursor, empty }: { table: Table<QueueRow>; tableRef: React.RefObject<HTMLTableSectionElement | null>; cursor: number; setCursor: (i: number) => void; empty: boolean }) {
+function QueueTable({
+  table,
+  tableRef,
+  cursor,
+  setCursor,
+  empty,
+}: {
+  table: Table<QueueRow>;
+  tableRef: React.RefObject<HTMLTableSectionElement | null>;
+  cursor: number;
+  setCursor: (i: number) => void;
+  empty: boolean;
+}) {
   return (
     <table className="data-table" aria-describedby="queue-keys">
       <thead>
         {table.getHeaderGroups().map((g) => (
-          <tr key={g.id}>{g.headers.map((h) => <th key={h.id} scope="col">{flexRender(h.column.columnDef.header, h.getContext())}</th>)}</tr>
+          <tr key={g.id}>
+            {g.headers.map((h) => (
+              <th key={h.id} scope="col">
+                {flexRender(h.column.columnDef.header, h.getContext())}
+              </th>
+            ))}
+          </tr>
         ))}
       </thead>
       <tbody ref={tableRef}>
@@ -281,18 +454,36 @@ function QueueTable({ table, tableRef, cursor, setCursor, empty }: { table: Tabl
             onClick={() => setCursor(i)}
             onFocus={() => setCursor(i)}
           >
-            {row.getVisibleCells().map((c) => <td key={c.id}>{flexRender(c.column.columnDef.cell, c.getContext())}</td>)}
+            {row.getVisibleCells().map((c) => (
+              <td key={c.id}>{flexRender(c.column.columnDef.cell, c.getContext())}</td>
+            ))}
           </tr>
         ))}
         {empty && (
-          <tr><td colSpan={table.getAllLeafColumns().length} className="text-ink-soft">Nothing matches these filters.</td></tr>
+          <tr>
+            <td colSpan={table.getAllLeafColumns().length} className="text-ink-soft">
+              Nothing matches these filters.
+            </td>
+          </tr>
         )}
       </tbody>
     </table>
   );
 }
 
-function ReleaseDialog({ open, selected, known, onCancel, onConfirm }: { open: boolean; selected: Set<number>; known: Map<number, QueueRow>; onCancel: () => void; onConfirm: () => void }) {
+function ReleaseDialog({
+  open,
+  selected,
+  known,
+  onCancel,
+  onConfirm,
+}: {
+  open: boolean;
+  selected: Set<number>;
+  known: Map<number, QueueRow>;
+  onCancel: () => void;
+  onConfirm: () => void;
+}) {
   return (
     <ConfirmDialog
       open={open}
@@ -301,13 +492,26 @@ function ReleaseDialog({ open, selected, known, onCancel, onConfirm }: { open: b
       onCancel={onCancel}
       onConfirm={onConfirm}
     >
-      <p>For each, the feedback PDF is written and e-mailed to the student, who can then also download it. Released feedback cannot be withdrawn.</p>
+      <p>
+        For each, the feedback PDF is written and e-mailed to the student, who can then also download it. Released feedback cannot be
+        withdrawn.
+      </p>
       <ul className="max-h-56 list-disc overflow-y-auto pl-5" data-testid="release-list">
         {[...selected].map((id) => {
           const r = known.get(id);
           return (
             <li key={id}>
-              {r ? <>{r.student.name} <span className="text-ink-soft">({r.student.email}) — {r.practical.title}, total {r.awardedTotal ?? '—'} of {r.maxTotal ?? '—'}{r.status !== 'marked' ? `; ${STATUS_LABEL[r.status] ?? r.status}, will be refused` : ''}</span></> : `Submission ${id}`}
+              {r ? (
+                <>
+                  {r.student.name}{' '}
+                  <span className="text-ink-soft">
+                    ({r.student.email}) — {r.practical.title}, total {r.awardedTotal ?? '—'} of {r.maxTotal ?? '—'}
+                    {r.status !== 'marked' ? `; ${STATUS_LABEL[r.status] ?? r.status}, will be refused` : ''}
+                  </span>
+                </>
+              ) : (
+                `Submission ${id}`
+              )}
             </li>
           );
         })}

@@ -22,7 +22,15 @@ function markerStyle(m: { group: MarkerGroup; fill: 'solid' | 'hollow'; shape: M
   return isOutlined(m) ? { fill: 'none', stroke: colour, strokeWidth: 1.5 } : { fill: colour, stroke: colour, strokeWidth: 1 };
 }
 
-export function PlotFigure({ model, title, idPrefix }: { model: PlotModel; title: string; /** Unique per page: the ids of the title and description. */ idPrefix: string }) {
+export function PlotFigure({
+  model,
+  title,
+  idPrefix,
+}: {
+  model: PlotModel;
+  title: string;
+  /** Unique per page: the ids of the title and description. */ idPrefix: string;
+}) {
   const id = idPrefix.replace(/[^A-Za-z0-9_-]/g, '');
   return (
     <svg
@@ -40,10 +48,23 @@ export function PlotFigure({ model, title, idPrefix }: { model: PlotModel; title
       <desc id={`${id}-desc`}>{model.description}</desc>
       <Axes model={model} />
       {model.zeroLine !== null && (
-        <line className="zero-line" x1={model.area.left} y1={model.zeroLine} x2={model.area.left + model.area.width} y2={model.zeroLine} style={{ stroke: AXIS, strokeDasharray: '4 3' }} aria-hidden="true" />
+        <line
+          className="zero-line"
+          x1={model.area.left}
+          y1={model.zeroLine}
+          x2={model.area.left + model.area.width}
+          y2={model.zeroLine}
+          style={{ stroke: AXIS, strokeDasharray: '4 3' }}
+          aria-hidden="true"
+        />
       )}
       {model.curve.length > 1 && (
-        <polyline className="spectrum" points={model.curve.map(([x, y]) => `${x},${y}`).join(' ')} style={{ fill: 'none', stroke: AXIS, strokeWidth: 1, strokeLinejoin: 'round' }} aria-hidden="true" />
+        <polyline
+          className="spectrum"
+          points={model.curve.map(([x, y]) => `${x},${y}`).join(' ')}
+          style={{ fill: 'none', stroke: AXIS, strokeWidth: 1, strokeLinejoin: 'round' }}
+          aria-hidden="true"
+        />
       )}
       <Markers markers={model.markers} />
       {model.legend.length > 0 && (
@@ -51,7 +72,9 @@ export function PlotFigure({ model, title, idPrefix }: { model: PlotModel; title
           {model.legend.map((l, i) => (
             <g key={i}>
               <path d={markerPath(l.shape, l.x + 5, l.y - 4)} style={markerStyle(l)} />
-              <text x={l.x + 14} y={l.y} style={{ fill: AXIS }}>{l.text}</text>
+              <text x={l.x + 14} y={l.y} style={{ fill: AXIS }}>
+                {l.text}
+              </text>
             </g>
           ))}
         </g>
@@ -70,19 +93,39 @@ function Axes({ model }: { model: PlotModel }) {
   return (
     <>
       <g className="grid" style={{ stroke: GRID, strokeWidth: 0.5 }} aria-hidden="true">
-        {xAxis.ticks.map((t, i) => <line key={`x${i}`} x1={t.pos} y1={area.top} x2={t.pos} y2={bottom} />)}
-        {yAxis.ticks.map((t, i) => <line key={`y${i}`} x1={area.left} y1={t.pos} x2={right} y2={t.pos} />)}
+        {xAxis.ticks.map((t, i) => (
+          <line key={`x${i}`} x1={t.pos} y1={area.top} x2={t.pos} y2={bottom} />
+        ))}
+        {yAxis.ticks.map((t, i) => (
+          <line key={`y${i}`} x1={area.left} y1={t.pos} x2={right} y2={t.pos} />
+        ))}
       </g>
       <g className="axes" style={{ stroke: AXIS, fill: 'none', strokeWidth: 1 }} aria-hidden="true">
         <rect x={area.left} y={area.top} width={area.width} height={area.height} />
-        {xAxis.ticks.map((t, i) => <line key={`x${i}`} x1={t.pos} y1={bottom} x2={t.pos} y2={bottom + 5} />)}
-        {yAxis.ticks.map((t, i) => <line key={`y${i}`} x1={area.left - 5} y1={t.pos} x2={area.left} y2={t.pos} />)}
+        {xAxis.ticks.map((t, i) => (
+          <line key={`x${i}`} x1={t.pos} y1={bottom} x2={t.pos} y2={bottom + 5} />
+        ))}
+        {yAxis.ticks.map((t, i) => (
+          <line key={`y${i}`} x1={area.left - 5} y1={t.pos} x2={area.left} y2={t.pos} />
+        ))}
       </g>
       <g className="tick-labels" style={{ fill: AXIS }} aria-hidden="true">
-        {xAxis.ticks.map((t, i) => <text key={`x${i}`} x={t.pos} y={bottom + 17} textAnchor="middle" style={{ fontVariantNumeric: 'tabular-nums' }}>{t.label}</text>)}
-        {yAxis.ticks.map((t, i) => <text key={`y${i}`} x={area.left - 8} y={t.pos + 4} textAnchor="end" style={{ fontVariantNumeric: 'tabular-nums' }}>{t.label}</text>)}
-        <text x={r2(area.left + area.width / 2)} y={bottom + 36} textAnchor="middle" className="axis-label">{xAxis.label}</text>
-        <text x={yLabelX} y={yLabelY} textAnchor="middle" transform={`rotate(-90 ${yLabelX} ${yLabelY})`} className="axis-label">{yAxis.label}</text>
+        {xAxis.ticks.map((t, i) => (
+          <text key={`x${i}`} x={t.pos} y={bottom + 17} textAnchor="middle" style={{ fontVariantNumeric: 'tabular-nums' }}>
+            {t.label}
+          </text>
+        ))}
+        {yAxis.ticks.map((t, i) => (
+          <text key={`y${i}`} x={area.left - 8} y={t.pos + 4} textAnchor="end" style={{ fontVariantNumeric: 'tabular-nums' }}>
+            {t.label}
+          </text>
+        ))}
+        <text x={r2(area.left + area.width / 2)} y={bottom + 36} textAnchor="middle" className="axis-label">
+          {xAxis.label}
+        </text>
+        <text x={yLabelX} y={yLabelY} textAnchor="middle" transform={`rotate(-90 ${yLabelX} ${yLabelY})`} className="axis-label">
+          {yAxis.label}
+        </text>
       </g>
     </>
   );
@@ -94,14 +137,32 @@ function Markers({ markers }: { markers: PlotModel['markers'] }) {
       {markers.map((m, i) => {
         const colour = plotColourCss(m.group);
         return (
-          <g key={i} className={`marker marker-${m.group}${m.fill === 'hollow' ? ' marker-unmatched' : ''}`} data-value={m.value} data-label={m.label}>
+          <g
+            key={i}
+            className={`marker marker-${m.group}${m.fill === 'hollow' ? ' marker-unmatched' : ''}`}
+            data-value={m.value}
+            data-label={m.label}
+          >
             <title>{m.note}</title>
             {m.guide && (
-              <line x1={m.x} y1={m.guide.y1} x2={m.x} y2={m.guide.y2} style={{ stroke: colour, strokeWidth: 0.75, strokeDasharray: m.fill === 'hollow' ? '3 2' : undefined, opacity: 0.8 }} />
+              <line
+                x1={m.x}
+                y1={m.guide.y1}
+                x2={m.x}
+                y2={m.guide.y2}
+                style={{ stroke: colour, strokeWidth: 0.75, strokeDasharray: m.fill === 'hollow' ? '3 2' : undefined, opacity: 0.8 }}
+              />
             )}
             <path d={markerPath(m.shape, m.x, m.y)} style={markerStyle(m)} />
             {m.label && m.labelX !== undefined && m.labelY !== undefined && (
-              <text x={m.labelX} y={m.labelY} transform={`rotate(${-(m.labelAngle ?? 0)} ${m.labelX} ${m.labelY})`} style={{ fill: colour, fontSize: 10 }}>{m.label}</text>
+              <text
+                x={m.labelX}
+                y={m.labelY}
+                transform={`rotate(${-(m.labelAngle ?? 0)} ${m.labelX} ${m.labelY})`}
+                style={{ fill: colour, fontSize: 10 }}
+              >
+                {m.label}
+              </text>
             )}
           </g>
         );

@@ -23,10 +23,16 @@ function Strip({ box }: { box: NonNullable<QuantityStat['box']> }) {
       {SYMLOG_TICKS.map((t) => (
         <span key={t} className={`absolute inset-y-0 w-px ${t === 0 ? 'bg-rule-strong' : 'bg-rule'}`} style={{ left: `${at(t)}%` }} />
       ))}
-      <span className="absolute top-1/2 h-[1.5px] -translate-y-1/2 bg-ink" style={{ left: `${lo}%`, width: `${Math.max(0.2, hi - lo)}%` }} />
+      <span
+        className="absolute top-1/2 h-[1.5px] -translate-y-1/2 bg-ink"
+        style={{ left: `${lo}%`, width: `${Math.max(0.2, hi - lo)}%` }}
+      />
       <span className="absolute top-2 h-4 w-[1.5px] bg-ink" style={{ left: `${lo}%` }} />
       <span className="absolute top-2 h-4 w-[1.5px] bg-ink" style={{ left: `calc(${hi}% - 1.5px)` }} />
-      <span className="absolute top-1.5 h-5 border border-ink" style={{ left: `${q1}%`, width: `max(3px, ${q3 - q1}%)`, background: HATCH }} />
+      <span
+        className="absolute top-1.5 h-5 border border-ink"
+        style={{ left: `${q1}%`, width: `max(3px, ${q3 - q1}%)`, background: HATCH }}
+      />
       <span className="absolute top-0.5 h-7 w-[3px] -translate-x-1/2 bg-ink" style={{ left: `${at(box.median)}%` }} />
     </div>
   );
@@ -45,10 +51,12 @@ export function BoxPlots({ title, stats }: { title: string; stats: QuantityStat[
               <div className="text-sm">
                 <span>{quantityLabel(s.key, s.species)}</span>
                 <span className="block text-xs text-ink-soft sm:hidden">
-                  median <span className="num nowrap">{formatPercent(b.median)}</span>, middle half <span className="num nowrap">{formatPercent(b.q1)}</span> to <span className="num nowrap">{formatPercent(b.q3)}</span>
+                  median <span className="num nowrap">{formatPercent(b.median)}</span>, middle half{' '}
+                  <span className="num nowrap">{formatPercent(b.q1)}</span> to <span className="num nowrap">{formatPercent(b.q3)}</span>
                 </span>
                 <span className="sr-only">
-                  : median {formatPercent(b.median)}, quartiles {formatPercent(b.q1)} to {formatPercent(b.q3)}, range {formatPercent(b.min)} to {formatPercent(b.max)}.
+                  : median {formatPercent(b.median)}, quartiles {formatPercent(b.q1)} to {formatPercent(b.q3)}, range {formatPercent(b.min)}{' '}
+                  to {formatPercent(b.max)}.
                 </span>
               </div>
               <Strip box={b} />
@@ -72,7 +80,8 @@ export function BoxPlots({ title, stats }: { title: string; stats: QuantityStat[
         </li>
       </ul>
       <figcaption className="hint mt-1">
-        Hatched box: the middle half of the students (first to third quartile); thick bar: median; whiskers: smallest and largest. Axis in percent, logarithmic beyond ±0.1 %, clipped at −100 % and +1000 %.
+        Hatched box: the middle half of the students (first to third quartile); thick bar: median; whiskers: smallest and largest. Axis in
+        percent, logarithmic beyond ±0.1 %, clipped at −100 % and +1000 %.
       </figcaption>
     </figure>
   );

@@ -17,7 +17,10 @@ export function Histogram({ stat }: { stat: QuantityStat }) {
   const bins = stat.histogram ?? [];
   const max = Math.max(1, ...bins.map((b) => b.count));
   const name = `${quantityLabel(stat.key, stat.species)}, ${stat.basis}`;
-  const alt = bins.filter((b) => b.count > 0).map((b) => `${b.label}: ${b.count}`).join('; ');
+  const alt = bins
+    .filter((b) => b.count > 0)
+    .map((b) => `${b.label}: ${b.count}`)
+    .join('; ');
   const n = bins.length;
   return (
     <figure className="m-0" data-testid="histogram">
@@ -28,8 +31,16 @@ export function Histogram({ stat }: { stat: QuantityStat }) {
             <div key={b.bucket} className="relative flex flex-1 flex-col justify-end">
               {b.count > 0 && (
                 <>
-                  <span className="num absolute inset-x-0 text-center text-[10px] leading-none" style={{ bottom: `calc(${(b.count / max) * 100}% + 2px)` }}>{b.count}</span>
-                  <span className="block w-full border border-b-0 border-accent" style={{ height: `${(b.count / max) * 100}%`, background: i === 0 || i === n - 1 ? OUTER : HATCH }} />
+                  <span
+                    className="num absolute inset-x-0 text-center text-[10px] leading-none"
+                    style={{ bottom: `calc(${(b.count / max) * 100}% + 2px)` }}
+                  >
+                    {b.count}
+                  </span>
+                  <span
+                    className="block w-full border border-b-0 border-accent"
+                    style={{ height: `${(b.count / max) * 100}%`, background: i === 0 || i === n - 1 ? OUTER : HATCH }}
+                  />
                 </>
               )}
             </div>

@@ -32,9 +32,13 @@ function BasisCell({ label, basis, word }: { label: string; basis: StudentQuanti
       {basis ? (
         <div>
           <VerdictTag verdict={basis.verdict} />
-          <div className="num mt-0.5 text-xs text-ink-soft">{word} <span className="nowrap">{basis.expectedDisplay}</span></div>
+          <div className="num mt-0.5 text-xs text-ink-soft">
+            {word} <span className="nowrap">{basis.expectedDisplay}</span>
+          </div>
         </div>
-      ) : '—'}
+      ) : (
+        '—'
+      )}
     </td>
   );
 }
@@ -51,7 +55,9 @@ export function FitNotes({ fits }: { fits: StudentAttemptView['fits'] }) {
           {f.notices.length > 0 && (
             <ul className="list-disc pl-5">
               {f.notices.map((n) => (
-                <li key={n.code} data-notice={n.code}>{n.message}</li>
+                <li key={n.code} data-notice={n.code}>
+                  {n.message}
+                </li>
               ))}
             </ul>
           )}
@@ -68,19 +74,30 @@ export function QuantityChecks({ quantities, caption }: { quantities: StudentQua
       <thead>
         <tr>
           <th scope="col">Quantity</th>
-          <th scope="col" className="num">You reported</th>
-          <th scope="col" className="min-w-[10.5rem]">From your own data</th>
-          <th scope="col" className="min-w-[10.5rem]">Against the accepted value</th>
+          <th scope="col" className="num">
+            You reported
+          </th>
+          <th scope="col" className="min-w-[10.5rem]">
+            From your own data
+          </th>
+          <th scope="col" className="min-w-[10.5rem]">
+            Against the accepted value
+          </th>
         </tr>
       </thead>
       <tbody>
         {quantities.map((q) => (
           <tr key={`${q.species}:${q.key}`} data-quantity={`${q.species}:${q.key}`}>
             <td data-label="">
-              <span className="font-bold sm:font-normal">{q.label}</span> <span className="text-ink-soft">({speciesDisplay(q.species)})</span>
-              {q.slips.map((s) => <SlipNote key={s.code} s={s} />)}
+              <span className="font-bold sm:font-normal">{q.label}</span>{' '}
+              <span className="text-ink-soft">({speciesDisplay(q.species)})</span>
+              {q.slips.map((s) => (
+                <SlipNote key={s.code} s={s} />
+              ))}
             </td>
-            <td className="num" data-label="You reported"><span className="nowrap">{q.reportedText}</span></td>
+            <td className="num" data-label="You reported">
+              <span className="nowrap">{q.reportedText}</span>
+            </td>
             <BasisCell label="From your own data" basis={q.consistency} word="expected" />
             <BasisCell label="Against the accepted value" basis={q.accuracy} word="accepted" />
           </tr>
@@ -93,11 +110,24 @@ export function QuantityChecks({ quantities, caption }: { quantities: StudentQua
 /** What the student may see of one attempt's checks (built by lib/submissions/view.ts). */
 export function AttemptResult({ view, idPrefix = 'attempt' }: { view: StudentAttemptView; idPrefix?: string }) {
   return (
-    <section id={`${idPrefix}-${view.id}`} className="card scroll-mt-4 space-y-4" aria-labelledby={`${idPrefix}-${view.id}-h`} data-attempt={view.attempt}>
+    <section
+      id={`${idPrefix}-${view.id}`}
+      className="card scroll-mt-4 space-y-4"
+      aria-labelledby={`${idPrefix}-${view.id}-h`}
+      data-attempt={view.attempt}
+    >
       <h3 id={`${idPrefix}-${view.id}-h`}>
         Attempt {view.attempt}
-        {view.submittedAt && <span className="ml-2 text-sm font-normal text-ink-soft">submitted {new Date(view.submittedAt).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' })}</span>}
-        {view.isMarkedAttempt && <span className="ml-2 inline-block rounded bg-accent-soft px-1.5 text-xs font-bold text-accent" data-testid="marked-attempt">the attempt that is marked</span>}
+        {view.submittedAt && (
+          <span className="ml-2 text-sm font-normal text-ink-soft">
+            submitted {new Date(view.submittedAt).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' })}
+          </span>
+        )}
+        {view.isMarkedAttempt && (
+          <span className="ml-2 inline-block rounded bg-accent-soft px-1.5 text-xs font-bold text-accent" data-testid="marked-attempt">
+            the attempt that is marked
+          </span>
+        )}
       </h3>
       {view.daysLate > 0 && (
         <p className="text-sm">
@@ -116,9 +146,13 @@ export function AttemptResult({ view, idPrefix = 'attempt' }: { view: StudentAtt
         </div>
       )}
       {!view.showVerdicts && (
-        <p className="text-sm text-ink-soft">This practical is assessed: verdicts and marks appear here when your marked work is released.</p>
+        <p className="text-sm text-ink-soft">
+          This practical is assessed: verdicts and marks appear here when your marked work is released.
+        </p>
       )}
-      {view.showVerdicts && view.quantities.length > 0 && <QuantityChecks quantities={view.quantities} caption="Checks of your reported values" />}
+      {view.showVerdicts && view.quantities.length > 0 && (
+        <QuantityChecks quantities={view.quantities} caption="Checks of your reported values" />
+      )}
       <FitNotes fits={view.fits} />
       {view.spectrum && (
         <p className="text-sm">
@@ -132,20 +166,43 @@ export function AttemptResult({ view, idPrefix = 'attempt' }: { view: StudentAtt
           <h4 className="text-sm font-bold">Marks</h4>
           <table className="data-table stack-table">
             <thead>
-              <tr><th scope="col">Item</th><th scope="col" className="num">Marks</th><th scope="col">Comment</th></tr>
+              <tr>
+                <th scope="col">Item</th>
+                <th scope="col" className="num">
+                  Marks
+                </th>
+                <th scope="col">Comment</th>
+              </tr>
             </thead>
             <tbody>
               {view.marks.map((m, i) => (
                 <tr key={i}>
                   <td data-label="">{m.label}</td>
-                  <td className="num" data-label="Marks"><span className="nowrap">{m.awarded ?? '—'} / {m.maxMarks}</span></td>
+                  <td className="num" data-label="Marks">
+                    <span className="nowrap">
+                      {m.awarded ?? '—'} / {m.maxMarks}
+                    </span>
+                  </td>
                   <td data-label={m.comment ? 'Comment' : ''}>{m.comment ?? ''}</td>
                 </tr>
               ))}
             </tbody>
           </table>
-          {view.total && <p className="mt-2 text-sm font-bold">Total: <span className="num">{view.total.awarded ?? '—'} / {view.total.max ?? '—'}</span></p>}
-          {view.feedbackUrl && <p className="mt-2"><a className="btn-quiet" href={view.feedbackUrl}>Download feedback (PDF)</a></p>}
+          {view.total && (
+            <p className="mt-2 text-sm font-bold">
+              Total:{' '}
+              <span className="num">
+                {view.total.awarded ?? '—'} / {view.total.max ?? '—'}
+              </span>
+            </p>
+          )}
+          {view.feedbackUrl && (
+            <p className="mt-2">
+              <a className="btn-quiet" href={view.feedbackUrl}>
+                Download feedback (PDF)
+              </a>
+            </p>
+          )}
         </div>
       )}
     </section>

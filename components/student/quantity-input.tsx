@@ -10,7 +10,17 @@ import { liveCheck } from '@/lib/submissions/live-check';
  * of the right kind, required uncertainty). The messages sit under the box they are about and are
  * tied to it with aria-describedby; nothing is sent until the student asks.
  */
-export function QuantityInput({ form, sp, name, label, options, required, dimension, defaultUnit, path }: {
+export function QuantityInput({
+  form,
+  sp,
+  name,
+  label,
+  options,
+  required,
+  dimension,
+  defaultUnit,
+  path,
+}: {
   form: UseFormReturn<Draft>;
   sp: string;
   name: string;
@@ -28,27 +38,65 @@ export function QuantityInput({ form, sp, name, label, options, required, dimens
     if (defaultUnit && !form.getValues(`${base}.unit`)) form.setValue(`${base}.unit`, defaultUnit);
   }, [base, defaultUnit, form]);
   const current = form.watch(base) ?? { value: '', unit: '', uncertainty: '' };
-  const issues = liveCheck({ value: current.value ?? '', unit: current.unit ?? '', uncertainty: current.uncertainty ?? '' }, dimension, required);
+  const issues = liveCheck(
+    { value: current.value ?? '', unit: current.unit ?? '', uncertainty: current.uncertainty ?? '' },
+    dimension,
+    required,
+  );
   const issue = (field: 'value' | 'unit' | 'uncertainty') => issues.find((i) => i.field === field);
   const described = (field: 'value' | 'unit' | 'uncertainty') => (issue(field) ? `${id}-${field}-check` : undefined);
   return (
     <div className={`rounded border p-3 ${issues.length ? 'border-verdict-partial' : 'border-rule'}`} data-quantity={`${sp}:${name}`}>
-      <p className="label" id={`${id}-label`}>{label}</p>
+      <p className="label" id={`${id}-label`}>
+        {label}
+      </p>
       <div className="grid grid-cols-2 gap-2 sm:grid-cols-3">
         <div className="col-span-2 sm:col-span-1">
-          <label className="hint" htmlFor={`${id}-value`}>Value</label>
-          <input id={`${id}-value`} className="field num" inputMode="decimal" autoComplete="off" aria-invalid={issue('value') ? true : undefined} aria-describedby={described('value')} {...form.register(`${base}.value`)} />
+          <label className="hint" htmlFor={`${id}-value`}>
+            Value
+          </label>
+          <input
+            id={`${id}-value`}
+            className="field num"
+            inputMode="decimal"
+            autoComplete="off"
+            aria-invalid={issue('value') ? true : undefined}
+            aria-describedby={described('value')}
+            {...form.register(`${base}.value`)}
+          />
         </div>
         <div>
-          <label className="hint" htmlFor={`${id}-unit`}>Unit</label>
-          <input id={`${id}-unit`} className="field" list={listId} autoComplete="off" aria-invalid={issue('unit') ? true : undefined} aria-describedby={described('unit')} {...form.register(`${base}.unit`)} />
+          <label className="hint" htmlFor={`${id}-unit`}>
+            Unit
+          </label>
+          <input
+            id={`${id}-unit`}
+            className="field"
+            list={listId}
+            autoComplete="off"
+            aria-invalid={issue('unit') ? true : undefined}
+            aria-describedby={described('unit')}
+            {...form.register(`${base}.unit`)}
+          />
           <datalist id={listId}>
-            {options.map((o) => <option key={o} value={o} />)}
+            {options.map((o) => (
+              <option key={o} value={o} />
+            ))}
           </datalist>
         </div>
         <div>
-          <label className="hint" htmlFor={`${id}-unc`}>Uncertainty (±){required ? ' — required' : ''}</label>
-          <input id={`${id}-unc`} className="field num" inputMode="decimal" autoComplete="off" aria-invalid={issue('uncertainty') ? true : undefined} aria-describedby={described('uncertainty')} {...form.register(`${base}.uncertainty`)} />
+          <label className="hint" htmlFor={`${id}-unc`}>
+            Uncertainty (±){required ? ' — required' : ''}
+          </label>
+          <input
+            id={`${id}-unc`}
+            className="field num"
+            inputMode="decimal"
+            autoComplete="off"
+            aria-invalid={issue('uncertainty') ? true : undefined}
+            aria-describedby={described('uncertainty')}
+            {...form.register(`${base}.uncertainty`)}
+          />
         </div>
       </div>
       {issues.length > 0 && (

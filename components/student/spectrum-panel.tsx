@@ -54,7 +54,10 @@ export function SpectrumPanel(props: Props) {
   const [takeError, setTakeError] = useState<string | null>(null);
   const [taking, setTaking] = useState(false);
   const anyUploaded = Object.values(names).some(Boolean);
-  const figure = useApi<SpectrumFigureAnswer>(props.draftId && names[shown] ? `/api/submissions/${props.draftId}/spectrum?sample=${shown}&v=${props.version}` : null, { keepPreviousData: true });
+  const figure = useApi<SpectrumFigureAnswer>(
+    props.draftId && names[shown] ? `/api/submissions/${props.draftId}/spectrum?sample=${shown}&v=${props.version}` : null,
+    { keepPreviousData: true },
+  );
 
   const upload = async (sample: PanelSample, file: File | undefined) => {
     if (!file) return;
@@ -76,7 +79,10 @@ export function SpectrumPanel(props: Props) {
     setNames((n) => ({ ...n, [sample.key]: body.originalName }));
     setShown(sample.key);
     setTaken(null);
-    setMessages((m) => ({ ...m, [sample.key]: `Uploaded ${body.originalName}.${body.warnings?.length ? ` ${body.warnings.join(' ')}` : ''}` }));
+    setMessages((m) => ({
+      ...m,
+      [sample.key]: `Uploaded ${body.originalName}.${body.warnings?.length ? ` ${body.warnings.join(' ')}` : ''}`,
+    }));
   };
 
   const take = async () => {
@@ -105,16 +111,33 @@ export function SpectrumPanel(props: Props) {
           <label className="label" htmlFor={fileId(s.key, i)}>
             {props.samples.length > 1 ? `Spectrum: ${s.label}` : 'Spectrum'} (JCAMP-DX .jdx/.dx, or two-column CSV)
           </label>
-          <p className="hint" id={`spectrum-holds-${s.key}`}>Expected in it: {s.holds}.</p>
-          <input id={fileId(s.key, i)} type="file" accept=".jdx,.dx,.jcamp,.csv,.txt" aria-describedby={`spectrum-holds-${s.key}`} onChange={(e) => void upload(s, e.target.files?.[0])} />
-          <p className="hint" aria-live="polite">{messages[s.key] ?? (names[s.key] ? `Current: ${names[s.key]}` : 'No spectrum uploaded yet.')}</p>
+          <p className="hint" id={`spectrum-holds-${s.key}`}>
+            Expected in it: {s.holds}.
+          </p>
+          <input
+            id={fileId(s.key, i)}
+            type="file"
+            accept=".jdx,.dx,.jcamp,.csv,.txt"
+            aria-describedby={`spectrum-holds-${s.key}`}
+            onChange={(e) => void upload(s, e.target.files?.[0])}
+          />
+          <p className="hint" aria-live="polite">
+            {messages[s.key] ?? (names[s.key] ? `Current: ${names[s.key]}` : 'No spectrum uploaded yet.')}
+          </p>
         </div>
       ))}
 
       {props.samples.length > 1 && anyUploaded && (
         <div role="group" aria-label="Spectrum shown" className="flex flex-wrap gap-2">
           {props.samples.map((s) => (
-            <button key={s.key} type="button" className={s.key === shown ? 'btn' : 'btn-quiet'} aria-pressed={s.key === shown} disabled={!names[s.key]} onClick={() => setShown(s.key)}>
+            <button
+              key={s.key}
+              type="button"
+              className={s.key === shown ? 'btn' : 'btn-quiet'}
+              aria-pressed={s.key === shown}
+              disabled={!names[s.key]}
+              onClick={() => setShown(s.key)}
+            >
               {s.label}
             </button>
           ))}
@@ -123,7 +146,13 @@ export function SpectrumPanel(props: Props) {
 
       {fig && (
         <figure className="mt-2">
-          <div className="table-scroll text-ink" role="region" aria-label="Your spectrum with your lines (scrolls sideways on a narrow screen)" tabIndex={0} data-testid="spectrum-plot">
+          <div
+            className="table-scroll text-ink"
+            role="region"
+            aria-label="Your spectrum with your lines (scrolls sideways on a narrow screen)"
+            tabIndex={0}
+            data-testid="spectrum-plot"
+          >
             <PlotFigure {...fig.plot} />
           </div>
           <figcaption className="hint">Your lines are drawn over your spectrum; hollow markers match no peak.</figcaption>
@@ -133,16 +162,22 @@ export function SpectrumPanel(props: Props) {
 
       {fig && fig.bands.length > 0 && (
         <section aria-labelledby="found-heading" className="text-sm">
-          <h3 id="found-heading" className="text-base">What Oscillab found in this spectrum</h3>
+          <h3 id="found-heading" className="text-base">
+            What Oscillab found in this spectrum
+          </h3>
           <ul className="mt-1 list-disc pl-5" data-testid="bands-found">
-            {fig.bands.map((b, i) => <li key={i}>{b}</li>)}
+            {fig.bands.map((b, i) => (
+              <li key={i}>{b}</li>
+            ))}
           </ul>
         </section>
       )}
 
       {fig && fig.perBand.length > 0 && (
         <section aria-labelledby="match-heading" className="text-sm">
-          <h3 id="match-heading" className="text-base">Your lines against your spectrum, band by band</h3>
+          <h3 id="match-heading" className="text-base">
+            Your lines against your spectrum, band by band
+          </h3>
           <ul className="mt-1 space-y-1" data-testid="match-summary">
             {fig.perBand.map((b, i) => (
               <li key={i} className={b.outsideRange || b.noSpectrum ? 'text-danger' : b.matched < b.reported ? '' : 'text-ink'}>
@@ -154,32 +189,73 @@ export function SpectrumPanel(props: Props) {
         </section>
       )}
 
-      <TakeLines anyUploaded={anyUploaded} taking={taking} takeError={takeError} taken={taken} onTake={() => void take()} onUse={use} onDiscard={() => setTaken(null)} />
+      <TakeLines
+        anyUploaded={anyUploaded}
+        taking={taking}
+        takeError={takeError}
+        taken={taken}
+        onTake={() => void take()}
+        onUse={use}
+        onDiscard={() => setTaken(null)}
+      />
     </div>
   );
 }
 
 /** "Take the lines from my spectrum": what was found per isotopologue, to use or discard. */
-function TakeLines({ anyUploaded, taking, takeError, taken, onTake, onUse, onDiscard }: { anyUploaded: boolean; taking: boolean; takeError: string | null; taken: Taken | null; onTake: () => void; onUse: () => void; onDiscard: () => void }) {
+function TakeLines({
+  anyUploaded,
+  taking,
+  takeError,
+  taken,
+  onTake,
+  onUse,
+  onDiscard,
+}: {
+  anyUploaded: boolean;
+  taking: boolean;
+  takeError: string | null;
+  taken: Taken | null;
+  onTake: () => void;
+  onUse: () => void;
+  onDiscard: () => void;
+}) {
   return (
     <div className="rounded border border-rule bg-paper-sunk p-3 text-sm">
-      <p>Oscillab can read the lines of your spectrum for you: it finds the lines, assigns branch and J, and puts them in your line lists, where you check them and change what you disagree with.</p>
+      <p>
+        Oscillab can read the lines of your spectrum for you: it finds the lines, assigns branch and J, and puts them in your line lists,
+        where you check them and change what you disagree with.
+      </p>
       <button type="button" className="btn-quiet mt-2" onClick={onTake} disabled={!anyUploaded || taking}>
         {taking ? 'Reading your spectrum…' : 'Take the lines from my spectrum'}
       </button>
-      {takeError && <p className="error-text" role="alert">{takeError}</p>}
+      {takeError && (
+        <p className="error-text" role="alert">
+          {takeError}
+        </p>
+      )}
       {taken && (
         <div className="mt-3 space-y-2" aria-live="polite" data-testid="taken-lines">
           <ul className="list-disc pl-5">
             {Object.entries(taken.species).map(([sp, t]) => (
-              <li key={sp}>{t.display}: {t.count ? `${t.count} lines of the fundamental (1←0), ${range(t.lines)}` : 'no lines found in your spectrum'}</li>
+              <li key={sp}>
+                {t.display}: {t.count ? `${t.count} lines of the fundamental (1←0), ${range(t.lines)}` : 'no lines found in your spectrum'}
+              </li>
             ))}
           </ul>
-          {taken.problems.map((p, i) => <p key={i} className="text-ink-soft">{p}</p>)}
+          {taken.problems.map((p, i) => (
+            <p key={i} className="text-ink-soft">
+              {p}
+            </p>
+          ))}
           <p className="text-ink-soft">Using them replaces what is in those line lists now.</p>
           <div className="flex gap-2">
-            <button type="button" className="btn" onClick={onUse} disabled={!Object.values(taken.species).some((t) => t.count > 0)}>Use these lines</button>
-            <button type="button" className="btn-quiet" onClick={onDiscard}>Discard</button>
+            <button type="button" className="btn" onClick={onUse} disabled={!Object.values(taken.species).some((t) => t.count > 0)}>
+              Use these lines
+            </button>
+            <button type="button" className="btn-quiet" onClick={onDiscard}>
+              Discard
+            </button>
           </div>
         </div>
       )}

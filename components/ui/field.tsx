@@ -4,7 +4,15 @@ import { cloneElement, isValidElement, type ReactElement } from 'react';
  * A labelled form control with an optional hint and error, wired for assistive technology: the
  * control gets aria-describedby for the hint and error and aria-invalid when there is an error.
  */
-export function Field({ id, label, hint, error, children, className = '', labelClassName = 'label' }: {
+export function Field({
+  id,
+  label,
+  hint,
+  error,
+  children,
+  className = '',
+  labelClassName = 'label',
+}: {
   id: string;
   label: React.ReactNode;
   hint?: React.ReactNode;
@@ -21,10 +29,20 @@ export function Field({ id, label, hint, error, children, className = '', labelC
     : children;
   return (
     <div className={className}>
-      <label htmlFor={id} className={labelClassName}>{label}</label>
+      <label htmlFor={id} className={labelClassName}>
+        {label}
+      </label>
       {control}
-      {hint && <p id={`${id}-hint`} className="hint">{hint}</p>}
-      {error && <p id={`${id}-error`} className="error-text">{error}</p>}
+      {hint && (
+        <p id={`${id}-hint`} className="hint">
+          {hint}
+        </p>
+      )}
+      {error && (
+        <p id={`${id}-error`} className="error-text">
+          {error}
+        </p>
+      )}
     </div>
   );
 }

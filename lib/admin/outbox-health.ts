@@ -13,13 +13,25 @@ export type OutboxHealth = {
   retrying: number;
   oldestQueuedAt: string | null;
   lastError: { at: string; message: string; to: string } | null;
-  problems: { id: number; to: string; subject: string; status: string; attempts: number; lastError: string | null; nextAttemptAt: string | null; updatedAt: string; submissionId: number | null }[];
+  problems: {
+    id: number;
+    to: string;
+    subject: string;
+    status: string;
+    attempts: number;
+    lastError: string | null;
+    nextAttemptAt: string | null;
+    updatedAt: string;
+    submissionId: number | null;
+  }[];
 };
 
 export async function outboxHealth(now = new Date()): Promise<OutboxHealth> {
   const { EmailOutbox } = models();
   const [byStatus, sentLastDay, retrying, oldest, problems] = await Promise.all([
-    EmailOutbox.findAll({ attributes: ['status', [fn('COUNT', col('id')), 'n']], group: ['status'], raw: true }) as unknown as Promise<{ status: string; n: number | string }[]>,
+    EmailOutbox.findAll({ attributes: ['status', [fn('COUNT', col('id')), 'n']], group: ['status'], raw: true }) as unknown as Promise<
+      { status: string; n: number | string }[]
+    >,
     EmailOutbox.count({ where: { status: 'sent', sentAt: { [Op.gte]: new Date(now.getTime() - 86_400_000) } } }),
     EmailOutbox.count({ where: { status: 'queued', attempts: { [Op.gt]: 0 } } }),
     EmailOutbox.findOne({ where: { status: ['queued', 'sending'] }, order: [['createdAt', 'ASC']], attributes: ['createdAt'] }),
@@ -38,8 +50,15 @@ export async function outboxHealth(now = new Date()): Promise<OutboxHealth> {
     oldestQueuedAt: oldest ? oldest.createdAt.toISOString() : null,
     lastError: withError ? { at: withError.updatedAt.toISOString(), message: withError.lastError!, to: withError.toAddress } : null,
     problems: problems.map((p) => ({
-      id: p.id, to: p.toAddress, subject: p.subject, status: p.status, attempts: p.attempts, lastError: p.lastError,
-      nextAttemptAt: p.nextAttemptAt ? p.nextAttemptAt.toISOString() : null, updatedAt: p.updatedAt.toISOString(), submissionId: p.submissionId,
+      id: p.id,
+      to: p.toAddress,
+      subject: p.subject,
+      status: p.status,
+      attempts: p.attempts,
+      lastError: p.lastError,
+      nextAttemptAt: p.nextAttemptAt ? p.nextAttemptAt.toISOString() : null,
+      updatedAt: p.updatedAt.toISOString(),
+      submissionId: p.submissionId,
     })),
   };
 }
@@ -62,5 +81,12 @@ export async function retryOutbox(id: number, actorId: number): Promise<void> {
     { where: { id, status: ['queued', 'failed'] } },
   );
   if (n !== 1) throw new HttpError(409, 'This message changed while you were looking; reload and try again.');
-  await audit({ actorId, action: 'mail.retry', entityType: 'email_outbox', entityId: id, before, after: { status: 'queued', attempts: 0 } });
+  await audit({
+    actorId,
+    action: 'mail.retry',
+    entityType: 'email_outbox',
+    entityId: id,
+    before,
+    after: { status: 'queued', attempts: 0 },
+  });
 }

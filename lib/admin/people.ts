@@ -26,24 +26,50 @@ export type AdminPerson = {
 /** `%` and `_` typed by the administrator are matched literally. */
 const like = (text: string) => `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 
-export async function searchPeople(input: z.input<typeof peopleQuery>): Promise<{ people: AdminPerson[]; total: number; page: number; pages: number; q: string }> {
+export async function searchPeople(
+  input: z.input<typeof peopleQuery>,
+): Promise<{ people: AdminPerson[]; total: number; page: number; pages: number; q: string }> {
   const { q, page } = peopleQuery.parse(input);
   const { User, CourseMembership, Course, Cohort } = models();
   const where = q
-    ? { [Op.or]: [{ name: { [Op.like]: like(q) } }, { email: { [Op.like]: like(q.toLowerCase()) } }, { studentNumber: { [Op.like]: like(q) } }] }
+    ? {
+        [Op.or]: [
+          { name: { [Op.like]: like(q) } },
+          { email: { [Op.like]: like(q.toLowerCase()) } },
+          { studentNumber: { [Op.like]: like(q) } },
+        ],
+      }
     : {};
   const { rows, count } = await User.findAndCountAll({
     where,
     attributes: ['id', 'name', 'email', 'studentNumber', 'isAdmin', 'passwordHash'],
-    order: [['name', 'ASC'], ['id', 'ASC']],
+    order: [
+      ['name', 'ASC'],
+      ['id', 'ASC'],
+    ],
     limit: PEOPLE_PAGE_SIZE,
     offset: (page - 1) * PEOPLE_PAGE_SIZE,
   });
   const ids = rows.map((u) => u.id);
-  const memberships = ids.length ? await CourseMembership.findAll({ where: { userId: ids }, order: [['courseId', 'ASC'], ['id', 'ASC']] }) : [];
+  const memberships = ids.length
+    ? await CourseMembership.findAll({
+        where: { userId: ids },
+        order: [
+          ['courseId', 'ASC'],
+          ['id', 'ASC'],
+        ],
+      })
+    : [];
   const [courses, cohorts] = await Promise.all([
-    memberships.length ? Course.findAll({ where: { id: [...new Set(memberships.map((m) => m.courseId))] }, attributes: ['id', 'code'] }) : Promise.resolve([]),
-    memberships.some((m) => m.cohortId) ? Cohort.findAll({ where: { id: [...new Set(memberships.map((m) => m.cohortId).filter((x): x is number => x !== null))] }, attributes: ['id', 'name', 'term'] }) : Promise.resolve([]),
+    memberships.length
+      ? Course.findAll({ where: { id: [...new Set(memberships.map((m) => m.courseId))] }, attributes: ['id', 'code'] })
+      : Promise.resolve([]),
+    memberships.some((m) => m.cohortId)
+      ? Cohort.findAll({
+          where: { id: [...new Set(memberships.map((m) => m.cohortId).filter((x): x is number => x !== null))] },
+          attributes: ['id', 'name', 'term'],
+        })
+      : Promise.resolve([]),
   ]);
   return {
     q,
@@ -61,7 +87,13 @@ export async function searchPeople(input: z.input<typeof peopleQuery>): Promise<
         .filter((m) => m.userId === u.id)
         .map((m) => {
           const cohort = m.cohortId ? cohorts.find((c) => c.id === m.cohortId) : null;
-          return { membershipId: m.id, courseId: m.courseId, course: courses.find((c) => c.id === m.courseId)?.code ?? `course ${m.courseId}`, role: m.role, cohort: cohort ? `${cohort.name} (${cohort.term})` : null };
+          return {
+            membershipId: m.id,
+            courseId: m.courseId,
+            course: courses.find((c) => c.id === m.courseId)?.code ?? `course ${m.courseId}`,
+            role: m.role,
+            cohort: cohort ? `${cohort.name} (${cohort.term})` : null,
+          };
         }),
     })),
   };
@@ -72,7 +104,14 @@ export async function coursesForGrant() {
   const { Course, Cohort } = models();
   const [courses, cohorts] = await Promise.all([
     Course.findAll({ order: [['code', 'ASC']], attributes: ['id', 'code', 'title', 'archivedAt'] }),
-    Cohort.findAll({ where: { archivedAt: null }, order: [['term', 'DESC'], ['name', 'ASC']], attributes: ['id', 'courseId', 'name', 'term'] }),
+    Cohort.findAll({
+      where: { archivedAt: null },
+      order: [
+        ['term', 'DESC'],
+        ['name', 'ASC'],
+      ],
+      attributes: ['id', 'courseId', 'name', 'term'],
+    }),
   ]);
   return courses.map((c) => ({
     id: c.id,

@@ -24,9 +24,17 @@ export function appOrigin(): string {
 }
 
 /** Store a new link for the user (in the caller's transaction) and return its token. */
-export async function issueLink(userId: number, purpose: LinkPurpose, expiresAt: Date, transaction?: Transaction): Promise<{ token: string; id: number }> {
+export async function issueLink(
+  userId: number,
+  purpose: LinkPurpose,
+  expiresAt: Date,
+  transaction?: Transaction,
+): Promise<{ token: string; id: number }> {
   const token = randomBytes(32).toString('base64url');
-  const row = await models().OneTimeToken.create({ userId, purpose, tokenHash: hashToken(token), expiresAt, usedAt: null }, { transaction });
+  const row = await models().OneTimeToken.create(
+    { userId, purpose, tokenHash: hashToken(token), expiresAt, usedAt: null },
+    { transaction },
+  );
   return { token, id: row.id };
 }
 

@@ -142,14 +142,22 @@ export async function isResetToken(token: string): Promise<boolean> {
 }
 
 /** What the reset page shows for a token, without using it. */
-export const resetTokenState = (token: string, now = new Date()): Promise<ResetTokenState> => linkState(token, RESET_PURPOSE, MESSAGES, now);
+export const resetTokenState = (token: string, now = new Date()): Promise<ResetTokenState> =>
+  linkState(token, RESET_PURPOSE, MESSAGES, now);
 
 /** Use a reset token once: set the new password and void every other reset link of the account. */
 export function resetPassword(token: string, password: string, now = new Date()): Promise<{ email: string }> {
-  return setPasswordWithLink(token, RESET_PURPOSE, password, MESSAGES, async (user, transaction) => {
-    await invalidateResetTokens(user.id, transaction, now);
-    // A forgotten password also ends any sign-in slow-down on the account.
-    await models().SignInFailure.destroy({ where: { subject: accountSubject(user.email) }, transaction });
-    await audit({ actorId: user.id, action: 'password-reset.complete', entityType: 'user', entityId: user.id }, transaction);
-  }, now);
+  return setPasswordWithLink(
+    token,
+    RESET_PURPOSE,
+    password,
+    MESSAGES,
+    async (user, transaction) => {
+      await invalidateResetTokens(user.id, transaction, now);
+      // A forgotten password also ends any sign-in slow-down on the account.
+      await models().SignInFailure.destroy({ where: { subject: accountSubject(user.email) }, transaction });
+      await audit({ actorId: user.id, action: 'password-reset.complete', entityType: 'user', entityId: user.id }, transaction);
+    },
+    now,
+  );
 }

@@ -34,7 +34,10 @@ export function isFormPost(request: Request): boolean {
 export function signedOutRedirect(): Response {
   const headers = new Headers({ Location: '/signin', 'Cache-Control': 'no-store' });
   for (const name of SESSION_COOKIES) {
-    headers.append('Set-Cookie', `${name}=; Path=/; Max-Age=0; Expires=Thu, 01 Jan 1970 00:00:00 GMT; HttpOnly; SameSite=Lax${name.startsWith('__Secure-') ? '; Secure' : ''}`);
+    headers.append(
+      'Set-Cookie',
+      `${name}=; Path=/; Max-Age=0; Expires=Thu, 01 Jan 1970 00:00:00 GMT; HttpOnly; SameSite=Lax${name.startsWith('__Secure-') ? '; Secure' : ''}`,
+    );
   }
   return new Response(null, { status: 303, headers });
 }

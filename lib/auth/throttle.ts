@@ -80,11 +80,16 @@ async function blockUntil(subject: string, until: Date): Promise<void> {
   );
 }
 
-const blockFor = (failures: number, free: number) => (failures < free ? 0 : Math.min(MAX_BLOCK_MS, FIRST_BLOCK_MS * 2 ** (failures - free)));
+const blockFor = (failures: number, free: number) =>
+  failures < free ? 0 : Math.min(MAX_BLOCK_MS, FIRST_BLOCK_MS * 2 ** (failures - free));
 
 /** Records a failed sign-in; returns the soft delay (ms) to wait before answering it. */
 export async function recordFailure(subjects: SignInSubjects, now = new Date()): Promise<number> {
-  const [pair, address, account] = await Promise.all([countOne(subjects.pair, now), countOne(subjects.address, now), countOne(subjects.account, now)]);
+  const [pair, address, account] = await Promise.all([
+    countOne(subjects.pair, now),
+    countOne(subjects.address, now),
+    countOne(subjects.account, now),
+  ]);
   const pairBlock = blockFor(pair, PAIR_FREE);
   const addressBlock = blockFor(address, ADDRESS_FREE);
   if (pairBlock) await blockUntil(subjects.pair, new Date(now.getTime() + pairBlock));

@@ -12,7 +12,9 @@ import type { Actor } from './decision';
 
 /** The cohort through which a student takes a practical: their student membership in its course, if the practical is set for that cohort. */
 export async function studentPlacement(actor: Actor, practical: Practical): Promise<PracticalCohort | null> {
-  const cohortIds = actor.memberships.filter((m) => m.courseId === practical.courseId && m.role === 'student' && m.cohortId !== null).map((m) => m.cohortId as number);
+  const cohortIds = actor.memberships
+    .filter((m) => m.courseId === practical.courseId && m.role === 'student' && m.cohortId !== null)
+    .map((m) => m.cohortId as number);
   if (!cohortIds.length) return null;
   return models().PracticalCohort.findOne({ where: { practicalId: practical.id, cohortId: cohortIds } });
 }
@@ -38,6 +40,8 @@ export async function autosaveTarget(actor: Actor, practicalId: number): Promise
   const species = typeof row.species === 'string' ? (JSON.parse(row.species) as string[]) : row.species; // SQLite: text; PostgreSQL: parsed
   const courseId = Number(row.courseId);
   // A cohort of another course the student belongs to does not count.
-  const inCourse = row.cohortId !== null && actor.memberships.some((m) => m.courseId === courseId && m.role === 'student' && m.cohortId === Number(row.cohortId));
+  const inCourse =
+    row.cohortId !== null &&
+    actor.memberships.some((m) => m.courseId === courseId && m.role === 'student' && m.cohortId === Number(row.cohortId));
   return { practical: { id: Number(row.id), courseId, species }, cohortId: inCourse ? Number(row.cohortId) : null };
 }

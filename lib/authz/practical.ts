@@ -7,7 +7,11 @@ import 'server-only';
 import { practicalOr404 } from '@/lib/instructor/practicals';
 import { authenticate, permit, type Actor } from './index';
 
-export async function authorizeManageOf<T>(request: Request, load: () => Promise<T>, courseIdOf: (row: T) => number): Promise<{ actor: Actor; row: T }> {
+export async function authorizeManageOf<T>(
+  request: Request,
+  load: () => Promise<T>,
+  courseIdOf: (row: T) => number,
+): Promise<{ actor: Actor; row: T }> {
   const actor = await authenticate(request);
   const row = await load();
   permit(actor, { kind: 'course-manage', courseId: courseIdOf(row) });
@@ -15,4 +19,8 @@ export async function authorizeManageOf<T>(request: Request, load: () => Promise
 }
 
 export const authorizePractical = (request: Request, practicalId: number) =>
-  authorizeManageOf(request, () => practicalOr404(practicalId), (p) => p.courseId).then(({ actor, row }) => ({ actor, practical: row }));
+  authorizeManageOf(
+    request,
+    () => practicalOr404(practicalId),
+    (p) => p.courseId,
+  ).then(({ actor, row }) => ({ actor, practical: row }));

@@ -36,13 +36,20 @@ export async function authorizeStatistics(actor: Actor, practicalId: number, coh
   }
   const cohorts = cohort ? [cohort] : await cohortsOfPractical(practical.id);
   return {
-    actor, practical, cohort, cohorts, manages,
+    actor,
+    practical,
+    cohort,
+    cohorts,
+    manages,
     scope: { practicalIds: [practical.id], cohortIds: cohorts.length ? cohorts.map((c) => c.id) : [-1] },
   };
 }
 
 /** What a comparison may show: the practicals of the same title and the cohorts of them the actor may see (403 when none). */
-export async function authorizeComparison(actor: Actor, practicalId: number): Promise<{ practical: Practical; practicalIds: number[]; cohorts: Cohort[] }> {
+export async function authorizeComparison(
+  actor: Actor,
+  practicalId: number,
+): Promise<{ practical: Practical; practicalIds: number[]; cohorts: Cohort[] }> {
   const practical = await practicalOr404(practicalId);
   const courseId = practical.courseId;
   const { practicalIds, cohorts } = await comparableCohorts(practical);

@@ -17,11 +17,21 @@ export async function scopeOf(submission: Submission): Promise<{ practical: Prac
   const practical = await models().Practical.findByPk(submission.practicalId);
   if (!practical) throw new HttpError(404, 'Not found.');
   // Drafts are decided like everything else: the student's own until submitted.
-  return { practical, scope: { courseId: practical.courseId, cohortId: submission.cohortId, studentId: submission.studentId, draft: submission.status === 'draft' } };
+  return {
+    practical,
+    scope: {
+      courseId: practical.courseId,
+      cohortId: submission.cohortId,
+      studentId: submission.studentId,
+      draft: submission.status === 'draft',
+    },
+  };
 }
 
 /** The submission, its practical and its scope, read from the database (404 when there is none). */
-export async function submissionScope(submissionId: number): Promise<{ submission: Submission; practical: Practical; scope: SubmissionAccessScope }> {
+export async function submissionScope(
+  submissionId: number,
+): Promise<{ submission: Submission; practical: Practical; scope: SubmissionAccessScope }> {
   const submission = await models().Submission.findByPk(submissionId);
   if (!submission) throw new HttpError(404, 'Not found.');
   return { submission, ...(await scopeOf(submission)) };

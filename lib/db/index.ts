@@ -56,7 +56,10 @@ function oneWriterAtATime(sequelize: Sequelize): void {
     tail = run.catch(() => undefined);
     return run;
   };
-  const s = sequelize as unknown as { transaction: (...args: unknown[]) => Promise<unknown>; query: (...args: unknown[]) => Promise<unknown> };
+  const s = sequelize as unknown as {
+    transaction: (...args: unknown[]) => Promise<unknown>;
+    query: (...args: unknown[]) => Promise<unknown>;
+  };
   const transaction = s.transaction.bind(sequelize);
   s.transaction = (...args: unknown[]) => {
     const managed = args.some((a) => typeof a === 'function');
@@ -122,7 +125,12 @@ function rememberColumnTypes(connection: SqliteConnection): void {
     if (!table || typeof callback !== 'function') return all(sql, ...rest);
     const known = columnTypes.get(table);
     if (known) {
-      process.nextTick(() => (callback as Callback)(null, known.map((row) => ({ ...(row as object) }))));
+      process.nextTick(() =>
+        (callback as Callback)(
+          null,
+          known.map((row) => ({ ...(row as object) })),
+        ),
+      );
       return connection;
     }
     return all(sql, ...rest.slice(0, -1), (err: Error | null, rows: unknown[]) => {
@@ -197,7 +205,13 @@ export function beforeCommit(t: Transaction, fn: BeforeCommit): void {
   else beforeCommitWork.set(root, [fn]);
 }
 
-const transactionProto = Transaction.prototype as unknown as { commit: () => Promise<void>; rollback: () => Promise<void>; __oscillabBeforeCommit?: true; finished?: string; parent?: unknown };
+const transactionProto = Transaction.prototype as unknown as {
+  commit: () => Promise<void>;
+  rollback: () => Promise<void>;
+  __oscillabBeforeCommit?: true;
+  finished?: string;
+  parent?: unknown;
+};
 if (!transactionProto.__oscillabBeforeCommit) {
   const commit = transactionProto.commit;
   transactionProto.commit = async function (this: Transaction & { finished?: string; parent?: unknown; rollback: () => Promise<void> }) {

@@ -32,14 +32,20 @@ export function presentationNotes(
 ): Note[] {
   const notes: Note[] = [];
   if (statedSI === undefined && uncertaintyRequired) {
-    notes.push({ code: 'missing-uncertainty', message: `${QUANTITIES[key].label} is given without an uncertainty; a measured quantity needs one.` });
+    notes.push({
+      code: 'missing-uncertainty',
+      message: `${QUANTITIES[key].label} is given without an uncertainty; a measured quantity needs one.`,
+    });
   }
   if (!unitOk || valueSI === 0 || typed.value === 0) return notes;
   const typedPerSI = Math.abs(typed.value / valueSI);
   if (statedSI !== undefined && statedSI > 0) {
     const sigmaTyped = statedSI * typedPerSI;
     if (uncertaintyTooPrecise(Number(sigmaTyped.toPrecision(12)))) {
-      notes.push({ code: 'uncertainty-too-precise', message: `The uncertainty ±${formatNumber(sigmaTyped, 6)} is quoted to more figures than an uncertainty carries; give it to one or two significant figures.` });
+      notes.push({
+        code: 'uncertainty-too-precise',
+        message: `The uncertainty ±${formatNumber(sigmaTyped, 6)} is quoted to more figures than an uncertainty carries; give it to one or two significant figures.`,
+      });
     }
   }
   // Judge the digits against the stated uncertainty, else against the one the data support.
@@ -48,21 +54,32 @@ export function presentationNotes(
   const sigmaTyped = sigmaSI * typedPerSI;
   const v = precisionAgainstUncertainty(typed, sigmaTyped);
   const basis = statedSI !== undefined && statedSI > 0 ? 'the stated uncertainty' : 'the uncertainty your data support';
-  if (v === 'too-many-significant-figures') notes.push({ code: 'too-many-significant-figures', message: `"${typed.text}" has more significant figures than ${basis} (±${formatNumber(sigmaTyped, 2)}) justifies; round the value to the uncertainty's decimal place.` });
-  if (v === 'too-few-significant-figures' && statedSI !== undefined) notes.push({ code: 'too-few-significant-figures', message: `"${typed.text}" is rounded more coarsely than its uncertainty (±${formatNumber(sigmaTyped, 2)}); quote it to the uncertainty's decimal place.` });
+  if (v === 'too-many-significant-figures')
+    notes.push({
+      code: 'too-many-significant-figures',
+      message: `"${typed.text}" has more significant figures than ${basis} (±${formatNumber(sigmaTyped, 2)}) justifies; round the value to the uncertainty's decimal place.`,
+    });
+  if (v === 'too-few-significant-figures' && statedSI !== undefined)
+    notes.push({
+      code: 'too-few-significant-figures',
+      message: `"${typed.text}" is rounded more coarsely than its uncertainty (±${formatNumber(sigmaTyped, 2)}); quote it to the uncertainty's decimal place.`,
+    });
   return notes;
 }
 
 /** Advice when consistency and accuracy disagree, fitted to what the accuracy comparison tests. */
 export function adviceNotes(key: QuantityKey, consistency: Verdict, accuracy: Verdict, followed: RecomputeMethod | undefined): Note[] {
-  if (consistency === 'within' && accuracy === 'outside') return [{ code: 'consistent-not-accurate', message: consistentButNotAccurate(key, followed) }];
-  if (consistency === 'outside' && (accuracy === 'within' || accuracy === 'partial')) return [{ code: 'accurate-not-consistent', message: accurateButNotConsistent(key) }];
+  if (consistency === 'within' && accuracy === 'outside')
+    return [{ code: 'consistent-not-accurate', message: consistentButNotAccurate(key, followed) }];
+  if (consistency === 'outside' && (accuracy === 'within' || accuracy === 'partial'))
+    return [{ code: 'accurate-not-consistent', message: accurateButNotConsistent(key) }];
   return [];
 }
 
 function consistentButNotAccurate(key: QuantityKey, followed: RecomputeMethod | undefined): string {
   const start = 'Your calculation is right for your own data, but the result is far from the accepted value';
-  if (followed === 'harmonic-prediction') return `${start}: look at the model. The harmonic prediction √(μ/μ′) holds for the same force constant; check which isotopologue is which and that the masses are isotopic.`;
+  if (followed === 'harmonic-prediction')
+    return `${start}: look at the model. The harmonic prediction √(μ/μ′) holds for the same force constant; check which isotopologue is which and that the masses are isotopic.`;
   switch (ACCURACY_KIND[key]) {
     case 'masses':
       return `${start}: look at the masses. Use the isotopic masses of the isotopes in this molecule (not average atomic masses) from a current table (AME2020).`;
@@ -81,7 +98,8 @@ function accurateButNotConsistent(key: QuantityKey): string {
 }
 
 const METHOD_WORDS: Partial<Record<RecomputeMethod, string>> = {
-  'band-gap': 'This band centre is the middle of the band gap, (R(0) + P(1))/2 = ν̃₀ + B₁ − B₀. It follows from your lines; a fit of all the lines gives ν̃₀ itself',
+  'band-gap':
+    'This band centre is the middle of the band gap, (R(0) + P(1))/2 = ν̃₀ + B₁ − B₀. It follows from your lines; a fit of all the lines gives ν̃₀ itself',
   'combination-differences': 'This follows from your lines through combination differences',
   'fit-without-centrifugal': 'This follows from a fit of your lines without the centrifugal term',
   'fit-with-centrifugal': 'This follows from a fit of your lines with the centrifugal term',

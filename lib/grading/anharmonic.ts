@@ -17,7 +17,14 @@ export interface AnharmonicAnalysis {
   dissociationEnergyE: number;
   dissociationEnergy0: number;
   /** Standard uncertainties, same units, when the inputs carry them. */
-  uncertainty: { omegaE: number; omegaExe: number; forceConstantE?: number; zeroPointEnergy: number; dissociationEnergyE: number; dissociationEnergy0: number };
+  uncertainty: {
+    omegaE: number;
+    omegaExe: number;
+    forceConstantE?: number;
+    zeroPointEnergy: number;
+    dissociationEnergyE: number;
+    dissociationEnergy0: number;
+  };
 }
 
 export type AnharmonicResult = ({ ok: true } & AnharmonicAnalysis) | { ok: false; message: string };
@@ -32,7 +39,11 @@ export function anharmonicFromOvertone(
   }
   const omegaExe = (2 * fundamental - overtone) / 2;
   if (!(omegaExe > 0)) {
-    return { ok: false, message: 'The overtone must lie below twice the fundamental (anharmonicity makes the levels converge); check that the right bands were used.' };
+    return {
+      ok: false,
+      message:
+        'The overtone must lie below twice the fundamental (anharmonicity makes the levels converge); check that the right bands were used.',
+    };
   }
   if (overtone < fundamental * 1.5) {
     return { ok: false, message: 'The overtone (v = 2 ← 0) should lie near twice the fundamental; this one is too low.' };

@@ -114,17 +114,32 @@ function score(byM: Map<number, Match>, lines: Predicted[], offset: number, lo: 
 }
 
 export function assignPeaks(peaks: unknown, speciesInput: string | Species, options: AssignOptions = {}): AssignmentResult {
-  const fail = (message: string, field = 'peaks'): AssignmentResult => ({ ok: false, assignments: [], unassigned: [], problems: [{ field, message }] });
+  const fail = (message: string, field = 'peaks'): AssignmentResult => ({
+    ok: false,
+    assignments: [],
+    unassigned: [],
+    problems: [{ field, message }],
+  });
   if (!Array.isArray(peaks)) return fail('The peaks must be a list of wavenumbers in cm⁻¹.');
   if (peaks.length > MAX_LINES) return fail(`${peaks.length} peaks is more than a band has (limit ${MAX_LINES}).`);
   const bad = peaks.findIndex((p) => typeof p !== 'number' || !Number.isFinite(p) || p <= 0);
   if (bad >= 0) return fail(`Peak ${bad + 1} is not a positive wavenumber.`, `peaks[${bad}]`);
-  const species = typeof speciesInput === 'string' ? (() => { const p = parseSpecies(speciesInput); return p.ok ? p.species : undefined; })() : speciesInput;
+  const species =
+    typeof speciesInput === 'string'
+      ? (() => {
+          const p = parseSpecies(speciesInput);
+          return p.ok ? p.species : undefined;
+        })()
+      : speciesInput;
   if (!species) return fail('The species is not known.', 'species');
   const sorted = [...new Set(peaks as number[])].sort((a, b) => a - b);
   if (sorted.length < 3) return fail('At least three peaks are needed to find the band.');
   const ref = bandConstants(species);
-  if (!ref) return fail(`Oscillab has no reference constants for ${species.display}, so it cannot propose an assignment; assign the lines by hand.`, 'species');
+  if (!ref)
+    return fail(
+      `Oscillab has no reference constants for ${species.display}, so it cannot propose an assignment; assign the lines by hand.`,
+      'species',
+    );
 
   const maxOffset = Math.max(0, Math.min(100, options.maxOffset ?? 25));
   const lo = sorted[0];
@@ -134,14 +149,21 @@ export function assignPeaks(peaks: unknown, speciesInput: string | Species, opti
   // (and short of the R-branch head, where the lines turn back).
   const head = c[2] < 0 ? Math.floor((0.8 * c[1]) / (-2 * c[2])) : 150;
   let mMax = 1;
-  while (mMax < Math.min(150, head) && (positionAt(c, -mMax) + maxOffset > lo - 2 * ref.B0 || positionAt(c, mMax) - maxOffset < hi + 2 * ref.B0)) mMax++;
+  while (
+    mMax < Math.min(150, head) &&
+    (positionAt(c, -mMax) + maxOffset > lo - 2 * ref.B0 || positionAt(c, mMax) - maxOffset < hi + 2 * ref.B0)
+  )
+    mMax++;
   const lines = predictLines(c, mMax);
   const coarse = (m: number) => 0.2 * spacingAt(c, m);
 
   // The heavier-atom partner in natural abundance (H³⁷Cl beside H³⁵Cl): its lines, at the same
   // calibration offset, explain the other member of each doublet.
   const partner = defaultPartner(species);
-  const partnerConstants = partner && partner.atoms.some((a, i) => a.symbol !== 'H' && a.massNumber !== species.atoms[i].massNumber) ? bandConstants(partner) : undefined;
+  const partnerConstants =
+    partner && partner.atoms.some((a, i) => a.symbol !== 'H' && a.massNumber !== species.atoms[i].massNumber)
+      ? bandConstants(partner)
+      : undefined;
   const partnerPolynomial = partnerConstants ? polynomialOf(partnerConstants) : undefined;
   const partnerLines = partnerPolynomial ? predictLines(partnerPolynomial, mMax) : [];
   const isotopeShift = partnerConstants ? Math.abs(partnerConstants.nu0 - ref.nu0) : 0;
@@ -150,7 +172,13 @@ export function assignPeaks(peaks: unknown, speciesInput: string | Species, opti
   const partnerMatches = (byM: Map<number, Match>, offset: number) => {
     if (!partnerPolynomial) return 0;
     const taken = new Set([...byM.values()].map((v) => v.peak));
-    return match(sorted.filter((p) => !taken.has(p)), partnerLines, partnerPolynomial, offset, partnerWindow).size;
+    return match(
+      sorted.filter((p) => !taken.has(p)),
+      partnerLines,
+      partnerPolynomial,
+      offset,
+      partnerWindow,
+    ).size;
   };
 
   // Every offset that puts a peak on a line, within ±maxOffset; the best explains most of the list.
@@ -171,7 +199,9 @@ export function assignPeaks(peaks: unknown, speciesInput: string | Species, opti
     }
   }
   if (!best || best.score < 3) {
-    return fail(`No ${species.display} band was found among these peaks: the reference constants put it near ${Math.round(ref.nu0)} cm⁻¹ (within ±${maxOffset} cm⁻¹ of calibration), and fewer than three peaks fall on its lines there.`);
+    return fail(
+      `No ${species.display} band was found among these peaks: the reference constants put it near ${Math.round(ref.nu0)} cm⁻¹ (within ±${maxOffset} cm⁻¹ of calibration), and fewer than three peaks fall on its lines there.`,
+    );
   }
 
   /** This species' matches, less the peaks its partner's line (at the same calibration) explains better. */
@@ -199,7 +229,13 @@ export function assignPeaks(peaks: unknown, speciesInput: string | Species, opti
     rms = fitted.fit.rms;
     const floor = rms;
     const refined = predictLines(c, mMax);
-    byM = ownMatches(c, refined, 0, c[0] - ref.nu0, (m) => Math.max(0.05 * spacingAt(c, m), 4 * floor, 0.05) + (iteration === 0 ? 0.1 * spacingAt(c, m) : 0));
+    byM = ownMatches(
+      c,
+      refined,
+      0,
+      c[0] - ref.nu0,
+      (m) => Math.max(0.05 * spacingAt(c, m), 4 * floor, 0.05) + (iteration === 0 ? 0.1 * spacingAt(c, m) : 0),
+    );
   }
 
   // What is left: the partner isotopologue's lines (same offset), or nothing of this band.
@@ -212,7 +248,13 @@ export function assignPeaks(peaks: unknown, speciesInput: string | Species, opti
     const residual = v.peak - predicted;
     const window = Math.max(0.05 * spacingAt(c, v.m), 4 * (Number.isFinite(rms) ? rms : 0), 0.05) + 0.1 * spacingAt(c, v.m);
     used.add(v.peak);
-    assignments.push({ wavenumber: v.peak, ...lineOf(v.m), m: v.m, confidence: Math.round(Math.max(0, 1 - Math.abs(residual) / window) * 100) / 100, residual });
+    assignments.push({
+      wavenumber: v.peak,
+      ...lineOf(v.m),
+      m: v.m,
+      confidence: Math.round(Math.max(0, 1 - Math.abs(residual) / window) * 100) / 100,
+      residual,
+    });
   }
   const unassigned: AssignmentResult['unassigned'] = [];
   for (const p of sorted) {
@@ -222,7 +264,11 @@ export function assignPeaks(peaks: unknown, speciesInput: string | Species, opti
       const m = partnerLines[j].m;
       if (Math.abs(p - partnerOffset - partnerLines[j].position) < 0.2 * spacingAt(partnerPolynomial!, m)) {
         const l = lineOf(m);
-        unassigned.push({ wavenumber: p, reason: `the ${partner.display} line ${l.branch}(${l.J}) of the same band`, likelyIsotopologue: partner.formula });
+        unassigned.push({
+          wavenumber: p,
+          reason: `the ${partner.display} line ${l.branch}(${l.J}) of the same band`,
+          likelyIsotopologue: partner.formula,
+        });
         continue;
       }
     }
@@ -230,6 +276,7 @@ export function assignPeaks(peaks: unknown, speciesInput: string | Species, opti
   }
   assignments.sort((x, y) => x.wavenumber - y.wavenumber);
   const problems: AssignmentResult['problems'] = [];
-  if (assignments.length < 3) problems.push({ field: 'peaks', message: `Only ${assignments.length} peaks could be assigned to the ${species.display} band.` });
+  if (assignments.length < 3)
+    problems.push({ field: 'peaks', message: `Only ${assignments.length} peaks could be assigned to the ${species.display} band.` });
   return { ok: assignments.length >= 3, assignments, unassigned, bandCentreEstimate: c[0] + offset, offset: calibration, problems };
 }

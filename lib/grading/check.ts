@@ -16,7 +16,16 @@
  */
 import { anharmonicFromOvertone, type AnharmonicAnalysis } from './anharmonic';
 import { adviceNotes, methodNote, presentationNotes, type Note } from './advice';
-import { fitBandConstants, fitBandModels, MAX_LINES, type BandFit, type BandModels, type FitFailure, type Line, type ModelChoice } from './fit';
+import {
+  fitBandConstants,
+  fitBandModels,
+  MAX_LINES,
+  type BandFit,
+  type BandModels,
+  type FitFailure,
+  type Line,
+  type ModelChoice,
+} from './fit';
 import { formatNumber, withUnit } from './format';
 import { forceConstantFromBand } from './harmonic';
 import { recompute, type ConsistencyKind, type OwnData, type RecomputeMethod, type Recomputed, type TypedInput } from './own-data';
@@ -139,8 +148,7 @@ interface ParsedNum {
 }
 
 export type ParseQuantityResult =
-  | { ok: true; valueSI: number; unitSI: string; uncertaintySI?: number; typed: TypedNumber; unit: string }
-  | { ok: false; message: string };
+  { ok: true; valueSI: number; unitSI: string; uncertaintySI?: number; typed: TypedNumber; unit: string } | { ok: false; message: string };
 
 type Problems = { field: string; message: string }[];
 
@@ -181,7 +189,12 @@ export function checkSubmission(input: SubmissionInput): SubmissionResult {
       quantities: [],
       derived: { reducedMassKg: 0, reducedMassU: 0 },
       notices: [],
-      problems: [{ field: '', message: `The submission could not be checked (internal error: ${err instanceof Error ? err.message : String(err)}).` }],
+      problems: [
+        {
+          field: '',
+          message: `The submission could not be checked (internal error: ${err instanceof Error ? err.message : String(err)}).`,
+        },
+      ],
     };
   }
 }
@@ -192,7 +205,12 @@ function checkSubmissionUnsafe(input: SubmissionInput): SubmissionResult {
   const problems: Problems = [];
   const notices: Notice[] = [];
   if (input === null || typeof input !== 'object') {
-    return { quantities: [], derived: { reducedMassKg: 0, reducedMassU: 0 }, notices, problems: [{ field: '', message: 'The submission is empty.' }] };
+    return {
+      quantities: [],
+      derived: { reducedMassKg: 0, reducedMassU: 0 },
+      notices,
+      problems: [{ field: '', message: 'The submission is empty.' }],
+    };
   }
   const sp = parseSpecies(input.species);
   if (!sp.ok) problems.push({ field: 'species', message: sp.message });
@@ -203,7 +221,8 @@ function checkSubmissionUnsafe(input: SubmissionInput): SubmissionResult {
   const consistencyTolerances = asObject<Partial<Record<QuantityKey, Tolerance>>>(input.consistencyTolerances);
   const referenceIn = asObject<Record<string, unknown>>(input.reference);
 
-  for (const k of Object.keys(reported)) if (!isQuantityKey(k)) problems.push({ field: `reported.${k}`, message: `"${k}" is not a quantity Oscillab knows.` });
+  for (const k of Object.keys(reported))
+    if (!isQuantityKey(k)) problems.push({ field: `reported.${k}`, message: `"${k}" is not a quantity Oscillab knows.` });
 
   // 1. What the student typed.
   const mBand = readMeasured('measured.bandCentre', measured.bandCentre, problems);
@@ -216,12 +235,14 @@ function checkSubmissionUnsafe(input: SubmissionInput): SubmissionResult {
       if (p) rep[key] = p;
     }
   }
-  const usable = (p: ParsedNum | undefined): TypedInput | undefined => (p && p.unitOk ? { valueSI: p.valueSI, roundingSI: p.roundingSI, sigmaSI: p.sigmaSI } : undefined);
+  const usable = (p: ParsedNum | undefined): TypedInput | undefined =>
+    p && p.unitOk ? { valueSI: p.valueSI, roundingSI: p.roundingSI, sigmaSI: p.sigmaSI } : undefined;
 
   // 2. The line list.
   const centrifugal = input.centrifugal ?? (reported.D !== undefined ? true : undefined);
   const lines = measured.lines !== undefined && species ? analyseLines(measured.lines, species, centrifugal, problems, notices) : undefined;
-  if (measured.lines !== undefined && !species) problems.push({ field: 'measured.lines', message: 'The lines cannot be fitted without a known species.' });
+  if (measured.lines !== undefined && !species)
+    problems.push({ field: 'measured.lines', message: 'The lines cannot be fitted without a known species.' });
 
   // Band centre for the harmonic analysis: measured, else as reported, else from the fit.
   const bandTyped = mBand ?? usable(rep.bandCentre);
@@ -286,7 +307,15 @@ function checkSubmissionUnsafe(input: SubmissionInput): SubmissionResult {
       }
     : undefined;
   const referenceInputs: SlipInputs | undefined = species
-    ? { species, nu0: lit.bandCentre?.valueSI, omegaE: lit.omegaE?.valueSI, omegaExe: lit.omegaExe?.valueSI, B0: lit.B0?.valueSI, B1: lit.B1?.valueSI, partnerMu: partner?.reducedMassKg }
+    ? {
+        species,
+        nu0: lit.bandCentre?.valueSI,
+        omegaE: lit.omegaE?.valueSI,
+        omegaExe: lit.omegaExe?.valueSI,
+        B0: lit.B0?.valueSI,
+        B1: lit.B1?.valueSI,
+        partnerMu: partner?.reducedMassKg,
+      }
     : undefined;
 
   const required = (key: QuantityKey) => {
@@ -360,7 +389,11 @@ function readMeasured(field: string, num: unknown, problems: Problems): TypedInp
     return undefined;
   }
   const stated = r.uncertaintySI !== undefined ? r.uncertaintySI / siPerTyped(r.typed, r.valueSI, r.unit, 'wavenumber') : undefined;
-  return { valueSI: r.valueSI, roundingSI: roundingHalfWidth(r.typed, stated) * siPerTyped(r.typed, r.valueSI, r.unit, 'wavenumber'), sigmaSI: r.uncertaintySI };
+  return {
+    valueSI: r.valueSI,
+    roundingSI: roundingHalfWidth(r.typed, stated) * siPerTyped(r.typed, r.valueSI, r.unit, 'wavenumber'),
+    sigmaSI: r.uncertaintySI,
+  };
 }
 
 function readTyped(field: string, raw: unknown, key: QuantityKey, problems: Problems): ParsedNum | undefined {
@@ -383,7 +416,11 @@ function readTyped(field: string, raw: unknown, key: QuantityKey, problems: Prob
   }
   const si = toSI(typed.value, unitText, info.dimension);
   const positive = key !== 'alphaE' && key !== 'isotopeShift' && key !== 'D';
-  if (positive && typed.value <= 0) problems.push({ field: `${field}.value`, message: `${info.label} must be positive${key === 'reducedMass' ? ' (a mass cannot be negative or zero)' : ''}.` });
+  if (positive && typed.value <= 0)
+    problems.push({
+      field: `${field}.value`,
+      message: `${info.label} must be positive${key === 'reducedMass' ? ' (a mass cannot be negative or zero)' : ''}.`,
+    });
   if (si.ok) {
     const perTyped = siPerTyped(typed, si.valueSI, unitText, info.dimension);
     return {
@@ -419,15 +456,27 @@ interface LineAnalysis {
 /** Lines further than this fraction of the band centre from it are not lines of this band. */
 const BAND_WINDOW = 0.25;
 
-function analyseLines(raw: unknown, species: Species, centrifugal: boolean | undefined, problems: Problems, notices: Notice[]): LineAnalysis | undefined {
+function analyseLines(
+  raw: unknown,
+  species: Species,
+  centrifugal: boolean | undefined,
+  problems: Problems,
+  notices: Notice[],
+): LineAnalysis | undefined {
   if (Array.isArray(raw) && raw.length > MAX_LINES) {
-    problems.push({ field: 'measured.lines', message: `The line list has ${raw.length} lines; the limit is ${MAX_LINES}. Paste the assigned lines only.` });
+    problems.push({
+      field: 'measured.lines',
+      message: `The line list has ${raw.length} lines; the limit is ${MAX_LINES}. Paste the assigned lines only.`,
+    });
     return undefined;
   }
   const report = (f: FitFailure) => {
     for (const p of f.problems) problems.push({ field: p.field.startsWith('lines') ? `measured.${p.field}` : p.field, message: p.message });
   };
-  const refit = (pBranchShift?: number) => (centrifugal === false ? quadraticOnly(raw, species, pBranchShift) : fitBandModels(raw, { species, centrifugal: centrifugal === true, pBranchShift }));
+  const refit = (pBranchShift?: number) =>
+    centrifugal === false
+      ? quadraticOnly(raw, species, pBranchShift)
+      : fitBandModels(raw, { species, centrifugal: centrifugal === true, pBranchShift });
   let models = refit();
   if (!models.ok) {
     report(models);
@@ -458,8 +507,21 @@ function analyseLines(raw: unknown, species: Species, centrifugal: boolean | und
   const misnumberedFit = () => {
     if (memo !== null) return memo;
     // Only the constants are compared, so refit without residuals and combination differences.
-    const g = fitBandConstants(lines, { centrifugal: models.fit.model === 'cubic', rBranchIndex: 'J', pBranchShift: renumbered?.pBranchShift });
-    memo = g.ok ? { nu0: g.nu0.value * 100, B0: g.B0.value * 100, B1: g.B1.value * 100, Be: g.Be.value * 100, alphaE: g.alphaE.value * 100, D: g.D ? g.D.value * 100 : undefined } : undefined;
+    const g = fitBandConstants(lines, {
+      centrifugal: models.fit.model === 'cubic',
+      rBranchIndex: 'J',
+      pBranchShift: renumbered?.pBranchShift,
+    });
+    memo = g.ok
+      ? {
+          nu0: g.nu0.value * 100,
+          B0: g.B0.value * 100,
+          B1: g.B1.value * 100,
+          Be: g.Be.value * 100,
+          alphaE: g.alphaE.value * 100,
+          D: g.D ? g.D.value * 100 : undefined,
+        }
+      : undefined;
     return memo;
   };
   return { models, misnumberedFit, asLabelled, renumbered };
@@ -478,7 +540,14 @@ function quadraticOnly(raw: unknown, species: Species, pBranchShift?: number): B
 }
 
 function constantsSI(f: BandFit): FittedConstants {
-  return { nu0: f.nu0.value * 100, B0: f.B0.value * 100, B1: f.B1.value * 100, Be: f.Be.value * 100, alphaE: f.alphaE.value * 100, D: f.D ? f.D.value * 100 : undefined };
+  return {
+    nu0: f.nu0.value * 100,
+    B0: f.B0.value * 100,
+    B1: f.B1.value * 100,
+    Be: f.Be.value * 100,
+    alphaE: f.alphaE.value * 100,
+    D: f.D ? f.D.value * 100 : undefined,
+  };
 }
 
 /**
@@ -494,7 +563,13 @@ function linesBelongToBand(fit: BandFit, species: Species, problems: Problems, n
   const far = positions.filter((x) => !near(x));
   if (far.length * 2 <= positions.length) {
     if (far.length > 0) {
-      notices.push({ code: 'lines-far-from-band', message: `${far.length === 1 ? 'One line lies' : `${far.length} lines lie`} far from the ${species.display} band (around ${Math.round(centre)} cm⁻¹): ${far.slice(0, 5).map((x) => `${formatNumber(x, 6)} cm⁻¹`).join(', ')}. Check that ${far.length === 1 ? 'it belongs' : 'they belong'} to this band.` });
+      notices.push({
+        code: 'lines-far-from-band',
+        message: `${far.length === 1 ? 'One line lies' : `${far.length} lines lie`} far from the ${species.display} band (around ${Math.round(centre)} cm⁻¹): ${far
+          .slice(0, 5)
+          .map((x) => `${formatNumber(x, 6)} cm⁻¹`)
+          .join(', ')}. Check that ${far.length === 1 ? 'it belongs' : 'they belong'} to this band.`,
+      });
     }
     return true;
   }
@@ -515,7 +590,16 @@ function fitChoiceSummary(lines: LineAnalysis): FitChoiceSummary {
     ...choice,
     rms: fit.rms,
     alternative: alternative
-      ? { model: alternative.model, rms: alternative.rms, nu0: alternative.nu0.value, B0: alternative.B0.value, B1: alternative.B1.value, Be: alternative.Be.value, alphaE: alternative.alphaE.value, D: alternative.D?.value }
+      ? {
+          model: alternative.model,
+          rms: alternative.rms,
+          nu0: alternative.nu0.value,
+          B0: alternative.B0.value,
+          B1: alternative.B1.value,
+          Be: alternative.Be.value,
+          alphaE: alternative.alphaE.value,
+          D: alternative.D?.value,
+        }
       : undefined,
     renumbered: lines.renumbered,
   };
@@ -530,10 +614,20 @@ function modelNotices(lines: LineAnalysis, matched: Partial<Record<QuantityKey, 
   if (used.length === 0 || !alternative) return [];
   const p = choice.fTest ? `F-test p ${choice.fTest.p < 1e-4 ? '< 0.0001' : `= ${formatNumber(choice.fTest.p, 2)}`}` : '';
   if (choice.reason === 'significant' && used.includes('fit-without-centrifugal') && !used.includes('fit-with-centrifugal')) {
-    return [{ code: 'centrifugal-term-needed', message: `Your rotational constants follow a fit without the centrifugal term −4Dm³, but your lines need it (${p}): without it the residuals form an arc (rms ${formatNumber(alternative.rms, 2)} cm⁻¹ against ${formatNumber(fit.rms, 2)} cm⁻¹ with it) and B₀ moves by ${formatNumber((100 * (alternative.B0.value - fit.B0.value)) / fit.B0.value, 2)} %.` }];
+    return [
+      {
+        code: 'centrifugal-term-needed',
+        message: `Your rotational constants follow a fit without the centrifugal term −4Dm³, but your lines need it (${p}): without it the residuals form an arc (rms ${formatNumber(alternative.rms, 2)} cm⁻¹ against ${formatNumber(fit.rms, 2)} cm⁻¹ with it) and B₀ moves by ${formatNumber((100 * (alternative.B0.value - fit.B0.value)) / fit.B0.value, 2)} %.`,
+      },
+    ];
   }
   if (choice.reason === 'not-significant' && used.includes('fit-with-centrifugal') && !used.includes('fit-without-centrifugal')) {
-    return [{ code: 'centrifugal-term-not-determined', message: `Your rotational constants follow a fit with the centrifugal term; your lines do not determine D (${p}), so the simpler fit without it is as good here.` }];
+    return [
+      {
+        code: 'centrifugal-term-not-determined',
+        message: `Your rotational constants follow a fit with the centrifugal term; your lines do not determine D (${p}), so the simpler fit without it is as good here.`,
+      },
+    ];
   }
   return [];
 }
@@ -575,7 +669,12 @@ function acceptedValue(
         valueSI: harmonic.valueSI,
         sigmaSI: 0,
         source: harmonic.source,
-        aside: l ? { code: 'observed-value', message: `The observed value, from both measured band centres, is ${l.display} (${l.source}); it differs from the harmonic prediction by the anharmonicity.` } : undefined,
+        aside: l
+          ? {
+              code: 'observed-value',
+              message: `The observed value, from both measured band centres, is ${l.display} (${l.source}); it differs from the harmonic prediction by the anharmonicity.`,
+            }
+          : undefined,
       };
     }
   }
@@ -588,7 +687,10 @@ function acceptedValue(
         valueSI: l.valueSI,
         sigmaSI: 0,
         source: l.source,
-        aside: { code: 'model-estimate', message: `The Morse model's estimate from the accepted ωₑ and ωₑxₑ is ${estimate.display}; the linear (Birge–Sponer) extrapolation behind it overestimates, because the real levels close up faster near dissociation. The accepted value is the measured one.` },
+        aside: {
+          code: 'model-estimate',
+          message: `The Morse model's estimate from the accepted ωₑ and ωₑxₑ is ${estimate.display}; the linear (Birge–Sponer) extrapolation behind it overestimates, because the real levels close up faster near dissociation. The accepted value is the measured one.`,
+        },
       };
     }
   }
@@ -619,8 +721,19 @@ const VERDICT_RANK: Record<Verdict, number> = { within: 0, partial: 1, outside: 
 function consistencyJudgement(p: ParsedNum, cand: Recomputed, override: Tolerance | undefined, dimension: Dimension): Judgement {
   const floatingPoint = FLOATING_POINT_ALLOWANCE * Math.abs(cand.valueSI);
   const rounding = p.roundingSI + cand.inputRoundingSI + floatingPoint;
-  if (override) return judge(p.valueSI, cand.valueSI, override, { uncertaintySI: Math.hypot(p.sigmaSI ?? 0, cand.sigmaSI), dimension, roundingSI: rounding });
-  if (cand.kind === 'fitted' && cand.sigmaSI > 0) return judge(p.valueSI, cand.valueSI, { sigma: FITTED_CONSISTENCY_SIGMA }, { uncertaintySI: cand.sigmaSI, dimension, roundingSI: rounding });
+  if (override)
+    return judge(p.valueSI, cand.valueSI, override, {
+      uncertaintySI: Math.hypot(p.sigmaSI ?? 0, cand.sigmaSI),
+      dimension,
+      roundingSI: rounding,
+    });
+  if (cand.kind === 'fitted' && cand.sigmaSI > 0)
+    return judge(
+      p.valueSI,
+      cand.valueSI,
+      { sigma: FITTED_CONSISTENCY_SIGMA },
+      { uncertaintySI: cand.sigmaSI, dimension, roundingSI: rounding },
+    );
   // Arithmetic: to the digits typed, and never wider than an uncertainty the student stated.
   const stated = p.sigmaSI !== undefined && p.sigmaSI > 0 ? p.sigmaSI : Infinity;
   return judge(p.valueSI, cand.valueSI, { absolute: 0 }, { dimension, roundingSI: Math.max(floatingPoint, Math.min(rounding, stated)) });
@@ -658,7 +771,12 @@ function judgeQuantity(q: QuantityToJudge): QuantityCheck[] {
   // Accuracy: against the accepted value, like for like with the method the number followed
   // (without a verdict to go by, an isotope value is a prediction unless the partner was measured).
   const isotope = key === 'isotopeShift' || key === 'isotopeRatio';
-  const followed = consistency?.verdict === 'within' ? consistency.method : isotope && !q.candidates.some((c) => c.method === 'your-band-positions') ? 'harmonic-prediction' : undefined;
+  const followed =
+    consistency?.verdict === 'within'
+      ? consistency.method
+      : isotope && !q.candidates.some((c) => c.method === 'your-band-positions')
+        ? 'harmonic-prediction'
+        : undefined;
   const acc = q.accepted(followed);
   if (acc) {
     const sigma = Math.hypot(p.sigmaSI ?? 0, acc.sigmaSI);
@@ -676,13 +794,24 @@ function judgeQuantity(q: QuantityToJudge): QuantityCheck[] {
 
   if (entries.length === 0) {
     const none = entry(q, 'accuracy', undefined, undefined, 0);
-    none.notes.push({ code: 'not-checked', message: q.species ? 'There is no data to recompute this quantity from and no accepted value for this species.' : 'The species is not known, so this quantity cannot be checked.' });
+    none.notes.push({
+      code: 'not-checked',
+      message: q.species
+        ? 'There is no data to recompute this quantity from and no accepted value for this species.'
+        : 'The species is not known, so this quantity cannot be checked.',
+    });
     entries.push(none);
   }
   // Notes about the number as written belong to the quantity, so they are given once.
   entries[0].notes.unshift(...presentationNotes(key, p.typed, p.valueSI, p.sigmaSI, p.unitOk, best?.cand, q.uncertaintyRequired));
   if (!p.unitOk) {
-    entries[0].notes.push({ code: 'unit-not-understood', message: p.unitText.trim() === '' ? `No unit given; the number was read in ${info.displayUnit || 'no unit'}.` : `The unit "${p.unitText}" does not fit this quantity; the number was read in ${info.displayUnit}.` });
+    entries[0].notes.push({
+      code: 'unit-not-understood',
+      message:
+        p.unitText.trim() === ''
+          ? `No unit given; the number was read in ${info.displayUnit || 'no unit'}.`
+          : `The unit "${p.unitText}" does not fit this quantity; the number was read in ${info.displayUnit}.`,
+    });
   }
   return entries;
 }
@@ -691,7 +820,13 @@ function relative(width: number, value: number): number {
   return value !== 0 && Number.isFinite(width) ? Math.abs(width / value) : 0;
 }
 
-function slipsFor(q: QuantityToJudge, expectedSI: number, halfWidthSI: number, window: number, inputs: SlipInputs | undefined): { code: string; message: string }[] {
+function slipsFor(
+  q: QuantityToJudge,
+  expectedSI: number,
+  halfWidthSI: number,
+  window: number,
+  inputs: SlipInputs | undefined,
+): { code: string; message: string }[] {
   return diagnose({
     key: q.key,
     reportedSI: q.p.valueSI,
@@ -705,7 +840,13 @@ function slipsFor(q: QuantityToJudge, expectedSI: number, halfWidthSI: number, w
 }
 
 /** One verdict entry; a missing unit makes it outside whatever the number. */
-function entry(q: QuantityToJudge, basis: 'consistency' | 'accuracy', exp: Expected | undefined, j: Judgement | undefined, sigma: number): QuantityCheck {
+function entry(
+  q: QuantityToJudge,
+  basis: 'consistency' | 'accuracy',
+  exp: Expected | undefined,
+  j: Judgement | undefined,
+  sigma: number,
+): QuantityCheck {
   const { key, p } = q;
   const info = QUANTITIES[key];
   const notes: Note[] = [];
@@ -724,7 +865,9 @@ function entry(q: QuantityToJudge, basis: 'consistency' | 'accuracy', exp: Expec
     diagnoses: [],
     notes,
     reportedText: p.text,
-    reportedDisplay: p.unitOk ? displayValue(p.valueSI, key, p.typed.precisionKnown ? Math.max(3, p.typed.sigFigs) : 6) : withUnit(String(p.typed.text), p.unitText),
+    reportedDisplay: p.unitOk
+      ? displayValue(p.valueSI, key, p.typed.precisionKnown ? Math.max(3, p.typed.sigFigs) : 6)
+      : withUnit(String(p.typed.text), p.unitText),
     expectedDisplay: exp ? displayValue(exp.valueSI, key, 6) : '—',
     displayUnit: info.displayUnit,
     expectedSource: exp ? exp.source : '',

@@ -19,13 +19,7 @@ export interface PhysicalConstant {
 
 const CODATA_2018 = 'CODATA 2018 recommended values (Tiesinga et al., Rev. Mod. Phys. 93, 025010 (2021))';
 
-function constant(
-  name: string,
-  symbol: string,
-  value: number,
-  unit: string,
-  uncertainty: number,
-): PhysicalConstant {
+function constant(name: string, symbol: string, value: number, unit: string, uncertainty: number): PhysicalConstant {
   return Object.freeze({ name, symbol, value, unit, uncertainty, source: CODATA_2018 });
 }
 

@@ -166,7 +166,14 @@ function householderQR(A: Float64Array, n: number, p: number, b: Float64Array): 
  * q × q block of R and the first q entries of Qᵀy; the residual sum of squares then also takes
  * (Qᵀy)ᵢ² for q ≤ i < p. That gives a model and its nested simpler model from one factorisation.
  */
-function solveTriangular(A: Float64Array, rDiag: Float64Array, b: Float64Array, n: number, p: number, q: number): LeastSquaresSolution | undefined {
+function solveTriangular(
+  A: Float64Array,
+  rDiag: Float64Array,
+  b: Float64Array,
+  n: number,
+  p: number,
+  q: number,
+): LeastSquaresSolution | undefined {
   const beta = new Array<number>(q).fill(0);
   for (let i = q - 1; i >= 0; i--) {
     let s = b[i];
@@ -229,7 +236,12 @@ export function polynomialLeastSquares(x: ArrayLike<number>, y: ArrayLike<number
  * `powers` for each q in `sizes`, all from one QR factorisation of the largest design
  * (see solveTriangular). Undefined when the largest model cannot be fitted.
  */
-export function nestedPolynomialLeastSquares(x: ArrayLike<number>, y: ArrayLike<number>, powers: number[], sizes: number[]): PolynomialSolution[] | undefined {
+export function nestedPolynomialLeastSquares(
+  x: ArrayLike<number>,
+  y: ArrayLike<number>,
+  powers: number[],
+  sizes: number[],
+): PolynomialSolution[] | undefined {
   const n = x.length;
   const p = powers.length;
   if (n < p) return undefined;
@@ -291,7 +303,13 @@ function unscale(sol: LeastSquaresSolution, powers: number[], scale: number): Po
     unscaled[i] = unscaledRow;
     covariance[i] = covarianceRow;
   }
-  return { beta, unscaledCovariance: unscaled, residualSumOfSquares: sol.residualSumOfSquares, degreesOfFreedom: sol.degreesOfFreedom, covariance };
+  return {
+    beta,
+    unscaledCovariance: unscaled,
+    residualSumOfSquares: sol.residualSumOfSquares,
+    degreesOfFreedom: sol.degreesOfFreedom,
+    covariance,
+  };
 }
 
 // ---------------------------------------------------------------------------------------
@@ -309,9 +327,18 @@ function lineName(branch: string, J: unknown): string {
 /** Checks a line list and names every bad line ("line 4, P(0): ..."). */
 export function validateLines(lines: unknown, parameterCount: number): { ok: true; lines: Line[] } | FitFailure {
   const problems: { field: string; message: string }[] = [];
-  if (!Array.isArray(lines)) return { ok: false, problems: [{ field: 'lines', message: 'The line list must be a list of { branch, J, wavenumber }.' }] };
+  if (!Array.isArray(lines))
+    return { ok: false, problems: [{ field: 'lines', message: 'The line list must be a list of { branch, J, wavenumber }.' }] };
   if (lines.length > MAX_LINES) {
-    return { ok: false, problems: [{ field: 'lines', message: `The line list has ${lines.length} lines; a fundamental band has at most a few hundred (limit ${MAX_LINES}). Paste the assigned lines only.` }] };
+    return {
+      ok: false,
+      problems: [
+        {
+          field: 'lines',
+          message: `The line list has ${lines.length} lines; a fundamental band has at most a few hundred (limit ${MAX_LINES}). Paste the assigned lines only.`,
+        },
+      ],
+    };
   }
   const out: Line[] = [];
   // Position of the line already assigned to each R(J) and P(J), by J, to catch a repeat.
@@ -353,13 +380,19 @@ export function validateLines(lines: unknown, parameterCount: number): { ok: tru
       continue;
     }
     if (typeof wn !== 'number' || !Number.isFinite(wn) || wn <= 0) {
-      problems.push({ field: `${where}.wavenumber`, message: `Line ${n} (${lineName(branch, J)}): the wavenumber must be a positive number of cm⁻¹.` });
+      problems.push({
+        field: `${where}.wavenumber`,
+        message: `Line ${n} (${lineName(branch, J)}): the wavenumber must be a positive number of cm⁻¹.`,
+      });
       continue;
     }
     const seen = branch === 'R' ? seenR : seenP;
     const earlier = seen[J];
     if (earlier !== undefined) {
-      problems.push({ field: where, message: `Line ${n} (${lineName(branch, J)}) repeats the assignment of line ${earlier + 1}; each line can be assigned only once.` });
+      problems.push({
+        field: where,
+        message: `Line ${n} (${lineName(branch, J)}) repeats the assignment of line ${earlier + 1}; each line can be assigned only once.`,
+      });
       continue;
     }
     seen[J] = i;
@@ -367,7 +400,15 @@ export function validateLines(lines: unknown, parameterCount: number): { ok: tru
   }
   if (problems.length > 0) return { ok: false, problems: problems.slice(0, 20) };
   if (out.length < parameterCount) {
-    return { ok: false, problems: [{ field: 'lines', message: `The fit has ${parameterCount} parameters but only ${out.length} line${out.length === 1 ? '' : 's'}; assign at least ${parameterCount} lines.` }] };
+    return {
+      ok: false,
+      problems: [
+        {
+          field: 'lines',
+          message: `The fit has ${parameterCount} parameters but only ${out.length} line${out.length === 1 ? '' : 's'}; assign at least ${parameterCount} lines.`,
+        },
+      ],
+    };
   }
   return { ok: true, lines: out };
 }
@@ -446,7 +487,10 @@ function constantsOf(list: Line[], m: number[], y: number[], sol: PolynomialSolu
   };
 }
 
-const SINGULAR: FitFailure = { ok: false, problems: [{ field: 'lines', message: 'The line positions cannot be fitted (the equations are singular).' }] };
+const SINGULAR: FitFailure = {
+  ok: false,
+  problems: [{ field: 'lines', message: 'The line positions cannot be fitted (the equations are singular).' }],
+};
 
 /**
  * The least-squares part of fitBand alone: validates the lines and fits ν̃₀, B₀, B₁, Bₑ, αₑ
@@ -511,7 +555,10 @@ export interface BandModels {
  * and chooses: the cubic model when D is asked for, or when the partial F-test finds the m³
  * term significant at CENTRIFUGAL_TEST_LEVEL; otherwise the quadratic model.
  */
-export function fitBandModels(lines: unknown, options: { species?: string | Species; centrifugal?: boolean; pBranchShift?: number } = {}): BandModels | FitFailure {
+export function fitBandModels(
+  lines: unknown,
+  options: { species?: string | Species; centrifugal?: boolean; pBranchShift?: number } = {},
+): BandModels | FitFailure {
   const requested = options.centrifugal === true;
   const checked = validateLines(lines, requested ? 4 : 3);
   if (!checked.ok) return checked;
@@ -521,7 +568,11 @@ export function fitBandModels(lines: unknown, options: { species?: string | Spec
   if (n < 4) {
     const sol = polynomialLeastSquares(m, y, QUADRATIC_POWERS);
     if (!sol) return SINGULAR;
-    return { ok: true, fit: completeFit(constantsOf(list, m, y, sol), options.species), choice: { model: 'quadratic', reason: 'too-few-lines' } };
+    return {
+      ok: true,
+      fit: completeFit(constantsOf(list, m, y, sol), options.species),
+      choice: { model: 'quadratic', reason: 'too-few-lines' },
+    };
   }
   const sols = nestedPolynomialLeastSquares(m, y, CUBIC_POWERS, NESTED_SIZES);
   if (!sols) {
@@ -529,7 +580,11 @@ export function fitBandModels(lines: unknown, options: { species?: string | Spec
     if (requested) return SINGULAR;
     const sol = polynomialLeastSquares(m, y, QUADRATIC_POWERS);
     if (!sol) return SINGULAR;
-    return { ok: true, fit: completeFit(constantsOf(list, m, y, sol), options.species), choice: { model: 'quadratic', reason: 'too-few-lines' } };
+    return {
+      ok: true,
+      fit: completeFit(constantsOf(list, m, y, sol), options.species),
+      choice: { model: 'quadratic', reason: 'too-few-lines' },
+    };
   }
   const [quadratic, cubic] = sols;
   const fTest = partialFTest(quadratic.residualSumOfSquares, cubic.residualSumOfSquares, 1, n - 4);
@@ -537,7 +592,12 @@ export function fitBandModels(lines: unknown, options: { species?: string | Spec
   if (requested) choice = { model: 'cubic', reason: 'requested', fTest };
   else if (Math.sqrt(quadratic.residualSumOfSquares / n) < EXACT_RMS) choice = { model: 'quadratic', reason: 'exact', fTest };
   else if (!fTest) choice = { model: 'quadratic', reason: 'too-few-lines' };
-  else choice = { model: fTest.p < CENTRIFUGAL_TEST_LEVEL ? 'cubic' : 'quadratic', reason: fTest.p < CENTRIFUGAL_TEST_LEVEL ? 'significant' : 'not-significant', fTest };
+  else
+    choice = {
+      model: fTest.p < CENTRIFUGAL_TEST_LEVEL ? 'cubic' : 'quadratic',
+      reason: fTest.p < CENTRIFUGAL_TEST_LEVEL ? 'significant' : 'not-significant',
+      fTest,
+    };
   // The model not chosen is only compared with, so its residuals are not tested for runs.
   const q = completeFit(constantsOf(list, m, y, quadratic), options.species, choice.model === 'quadratic');
   const c = completeFit(constantsOf(list, m, y, cubic), options.species, choice.model === 'cubic');
@@ -628,11 +688,27 @@ function residualsInOrderOfM(residuals: LineResidual[]): number[] {
 function fitWarnings(n: number, p: number, rms: number, B0: number, runs: RunsTest | undefined): FitWarning[] {
   const out: FitWarning[] = [];
   const dof = n - p;
-  if (dof === 0) out.push({ code: 'exact-fit', message: `${n} lines for ${p} parameters: the fit passes through every line and gives no standard errors. Assign more lines.` });
-  else if (dof < MIN_DEGREES_OF_FREEDOM_FOR_ERRORS) out.push({ code: 'few-lines', message: `Only ${n} lines for ${p} parameters: the standard errors rest on ${dof} degree${dof === 1 ? '' : 's'} of freedom and say little. Assign more lines.` });
+  if (dof === 0)
+    out.push({
+      code: 'exact-fit',
+      message: `${n} lines for ${p} parameters: the fit passes through every line and gives no standard errors. Assign more lines.`,
+    });
+  else if (dof < MIN_DEGREES_OF_FREEDOM_FOR_ERRORS)
+    out.push({
+      code: 'few-lines',
+      message: `Only ${n} lines for ${p} parameters: the standard errors rest on ${dof} degree${dof === 1 ? '' : 's'} of freedom and say little. Assign more lines.`,
+    });
   // Lines about 2B apart: residuals of a tenth of that spacing mean lines on the wrong J, not noise.
-  if (B0 > 0 && rms > 0.2 * B0) out.push({ code: 'large-residuals', message: `The residuals are large (rms ${formatRms(rms)} cm⁻¹, about ${Math.round((100 * rms) / (2 * B0))} % of the line spacing): some lines are probably assigned to the wrong J or branch.` });
-  else if (runs && runs.p < SYSTEMATIC_RESIDUALS_LEVEL) out.push({ code: 'systematic-residuals', message: `The residuals are systematic, not random (${runs.runs} runs of one sign where about ${Math.round(runs.expectedRuns)} are expected): the model leaves out a term the lines need, or lines are misassigned.` });
+  if (B0 > 0 && rms > 0.2 * B0)
+    out.push({
+      code: 'large-residuals',
+      message: `The residuals are large (rms ${formatRms(rms)} cm⁻¹, about ${Math.round((100 * rms) / (2 * B0))} % of the line spacing): some lines are probably assigned to the wrong J or branch.`,
+    });
+  else if (runs && runs.p < SYSTEMATIC_RESIDUALS_LEVEL)
+    out.push({
+      code: 'systematic-residuals',
+      message: `The residuals are systematic, not random (${runs.runs} runs of one sign where about ${Math.round(runs.expectedRuns)} are expected): the model leaves out a term the lines need, or lines are misassigned.`,
+    });
   return out;
 }
 

@@ -46,12 +46,32 @@ export {
   SYSTEMATIC_RESIDUALS_LEVEL,
   MIN_DEGREES_OF_FREEDOM_FOR_ERRORS,
 } from './fit';
-export type { BandFit, BandModels, ModelChoice, FitWarning, BandConstantsFit, FitFailure, FitOptions, Line, Branch, Estimate, LineResidual } from './fit';
+export type {
+  BandFit,
+  BandModels,
+  ModelChoice,
+  FitWarning,
+  BandConstantsFit,
+  FitFailure,
+  FitOptions,
+  Line,
+  Branch,
+  Estimate,
+  LineResidual,
+} from './fit';
 export { assignPeaks } from './assign';
 export type { PeakAssignment, AssignmentResult } from './assign';
 export { anharmonicFromOvertone, morseDissociation } from './anharmonic';
 export type { AnharmonicAnalysis, AnharmonicResult } from './anharmonic';
-export { parseTypedNumber, precisionAgainstUncertainty, effectiveLastDigitPower, roundingHalfWidth, uncertaintyTooPrecise, relativeUncertaintyOfProduct, combinedUncertainty } from './uncertainty';
+export {
+  parseTypedNumber,
+  precisionAgainstUncertainty,
+  effectiveLastDigitPower,
+  roundingHalfWidth,
+  uncertaintyTooPrecise,
+  relativeUncertaintyOfProduct,
+  combinedUncertainty,
+} from './uncertainty';
 export type { TypedNumber, PowerTerm } from './uncertainty';
 export { judge, marksFor, DEFAULT_CONSISTENCY_WORDS, FITTED_CONSISTENCY_SIGMA, FLOATING_POINT_ALLOWANCE } from './tolerance';
 export type { Tolerance, ToleranceBand, Verdict, Judgement } from './tolerance';

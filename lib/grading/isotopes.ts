@@ -8,8 +8,7 @@
  */
 import { elementsAndIsotopesObject } from 'chemical-elements';
 
-export const ISOTOPE_SOURCE =
-  'AME2020 atomic masses / NIST Atomic Weights and Isotopic Compositions, via npm chemical-elements';
+export const ISOTOPE_SOURCE = 'AME2020 atomic masses / NIST Atomic Weights and Isotopic Compositions, via npm chemical-elements';
 
 export interface IsotopeData {
   symbol: string;

@@ -154,11 +154,25 @@ export function recompute(key: QuantityKey, own: OwnData): Recomputed[] {
       const r0 = own.fit?.residuals.find((l) => l.branch === 'R' && l.J === 0);
       const p1 = own.fit?.residuals.find((l) => l.branch === 'P' && l.J === 1);
       // Read from the gap: the midpoint of R(0) and P(1) is ν̃₀ + B₁ − B₀.
-      if (r0 && p1) out.push(arithmetic((a, b) => (a + b) / 2, [exactly(r0.observed * CM), exactly(p1.observed * CM)], 'the middle of the band gap, (R(0) + P(1))/2, from your line list', 'band-gap'));
+      if (r0 && p1)
+        out.push(
+          arithmetic(
+            (a, b) => (a + b) / 2,
+            [exactly(r0.observed * CM), exactly(p1.observed * CM)],
+            'the middle of the band gap, (R(0) + P(1))/2, from your line list',
+            'band-gap',
+          ),
+        );
       break;
     }
     case 'reducedMass':
-      out.push({ valueSI: mu, sigmaSI: 0, inputRoundingSI: 0, kind: 'arithmetic', source: `μ = m₁m₂/(m₁ + m₂) from the isotopic masses of ${own.species.display}` });
+      out.push({
+        valueSI: mu,
+        sigmaSI: 0,
+        inputRoundingSI: 0,
+        kind: 'arithmetic',
+        source: `μ = m₁m₂/(m₁ + m₂) from the isotopic masses of ${own.species.display}`,
+      });
       break;
     case 'forceConstant': {
       // k = 4π²c²ν̃₀²μ, with μ as the student typed it when they did (rounded μ is not a slip).
@@ -169,16 +183,32 @@ export function recompute(key: QuantityKey, own: OwnData): Recomputed[] {
       if (!own.bandCentre && own.fit) {
         const e = own.fit.nu0;
         const kv = forceConstantFromBand(e.value * CM, mu);
-        out.push({ valueSI: kv, sigmaSI: (2 * e.stdError * kv) / e.value, inputRoundingSI: 0, kind: 'fitted', source: 'k = 4π²c²ν̃₀²μ from the band centre of your line fit' });
+        out.push({
+          valueSI: kv,
+          sigmaSI: (2 * e.stdError * kv) / e.value,
+          inputRoundingSI: 0,
+          kind: 'fitted',
+          source: 'k = 4π²c²ν̃₀²μ from the band centre of your line fit',
+        });
       }
       break;
     }
     case 'forceConstantE': {
       const muIn = rep.reducedMass ? { valueSI: mu, roundingSI: rep.reducedMass.roundingSI } : exactly(mu);
       if (own.bandCentre && own.overtone) {
-        out.push(arithmetic((n1, n2, m) => forceConstantFromBand(3 * n1 - n2, m), [own.bandCentre, own.overtone, muIn], 'kₑ = 4π²c²ωₑ²μ with ωₑ = 3ν̃₁←₀ − ν̃₂←₀ from your band positions', 'your-band-positions'));
+        out.push(
+          arithmetic(
+            (n1, n2, m) => forceConstantFromBand(3 * n1 - n2, m),
+            [own.bandCentre, own.overtone, muIn],
+            'kₑ = 4π²c²ωₑ²μ with ωₑ = 3ν̃₁←₀ − ν̃₂←₀ from your band positions',
+            'your-band-positions',
+          ),
+        );
       }
-      if (rep.omegaE) out.push(arithmetic((w, m) => forceConstantFromBand(w, m), [rep.omegaE, muIn], 'kₑ = 4π²c²ωₑ²μ from your ωₑ', 'your-reported-values'));
+      if (rep.omegaE)
+        out.push(
+          arithmetic((w, m) => forceConstantFromBand(w, m), [rep.omegaE, muIn], 'kₑ = 4π²c²ωₑ²μ from your ωₑ', 'your-reported-values'),
+        );
       break;
     }
     case 'B0':
@@ -196,7 +226,14 @@ export function recompute(key: QuantityKey, own: OwnData): Recomputed[] {
       // Bₑ and αₑ are arithmetic on the student's own B₀ and B₁ (an error in those is carried forward).
       if ((key === 'Be' || key === 'alphaE') && rep.B0 && rep.B1) {
         const f = key === 'Be' ? (b0: number, b1: number) => (3 * b0 - b1) / 2 : (b0: number, b1: number) => b0 - b1;
-        out.push(arithmetic(f, [rep.B0, rep.B1], key === 'Be' ? 'Bₑ = (3B₀ − B₁)/2 from your B₀ and B₁' : 'αₑ = B₀ − B₁ from your B₀ and B₁', 'your-rotational-constants'));
+        out.push(
+          arithmetic(
+            f,
+            [rep.B0, rep.B1],
+            key === 'Be' ? 'Bₑ = (3B₀ − B₁)/2 from your B₀ and B₁' : 'αₑ = B₀ − B₁ from your B₀ and B₁',
+            'your-rotational-constants',
+          ),
+        );
       }
       break;
     }
@@ -206,32 +243,78 @@ export function recompute(key: QuantityKey, own: OwnData): Recomputed[] {
       const name = key === 're' ? 'rₑ' : 'r₀';
       const B = key === 're' ? 'Bₑ' : 'B₀';
       const own_ = key === 're' ? rep.Be : rep.B0;
-      if (own_ && own_.valueSI > 0) out.push(arithmetic(r, [own_], `${name} = √(h/(8π²cμ${B})) from your ${B}`, 'your-rotational-constants'));
+      if (own_ && own_.valueSI > 0)
+        out.push(arithmetic(r, [own_], `${name} = √(h/(8π²cμ${B})) from your ${B}`, 'your-rotational-constants'));
       else if (key === 're' && rep.B0 && rep.B1) {
-        out.push(arithmetic((b0, b1) => r((3 * b0 - b1) / 2), [rep.B0, rep.B1], 'rₑ = √(h/(8π²cμBₑ)) with Bₑ = (3B₀ − B₁)/2 from your B₀ and B₁', 'your-rotational-constants'));
+        out.push(
+          arithmetic(
+            (b0, b1) => r((3 * b0 - b1) / 2),
+            [rep.B0, rep.B1],
+            'rₑ = √(h/(8π²cμBₑ)) with Bₑ = (3B₀ − B₁)/2 from your B₀ and B₁',
+            'your-rotational-constants',
+          ),
+        );
       }
       for (const f of fits(own)) {
         const e = f[key === 're' ? 'Be' : 'B0'];
         if (!(e.value > 0)) continue;
         const v = r(e.value * CM);
-        out.push({ valueSI: v, sigmaSI: (v * e.stdError) / (2 * e.value), inputRoundingSI: 0, kind: 'fitted', source: `${name} = √(h/(8π²cμ${B})) from ${B} of your line list (fit ${f.model === 'cubic' ? 'with' : 'without'} the centrifugal term)`, method: fitMethod(f) });
+        out.push({
+          valueSI: v,
+          sigmaSI: (v * e.stdError) / (2 * e.value),
+          inputRoundingSI: 0,
+          kind: 'fitted',
+          source: `${name} = √(h/(8π²cμ${B})) from ${B} of your line list (fit ${f.model === 'cubic' ? 'with' : 'without'} the centrifugal term)`,
+          method: fitMethod(f),
+        });
       }
       break;
     }
     case 'omegaE':
-      if (own.bandCentre && own.overtone) out.push(arithmetic((n1, n2) => 3 * n1 - n2, [own.bandCentre, own.overtone], 'ωₑ = 3ν̃₁←₀ − ν̃₂←₀ from your band positions', 'your-band-positions'));
+      if (own.bandCentre && own.overtone)
+        out.push(
+          arithmetic(
+            (n1, n2) => 3 * n1 - n2,
+            [own.bandCentre, own.overtone],
+            'ωₑ = 3ν̃₁←₀ − ν̃₂←₀ from your band positions',
+            'your-band-positions',
+          ),
+        );
       break;
     case 'omegaExe':
-      if (own.bandCentre && own.overtone) out.push(arithmetic((n1, n2) => (2 * n1 - n2) / 2, [own.bandCentre, own.overtone], 'ωₑxₑ = (2ν̃₁←₀ − ν̃₂←₀)/2 from your band positions', 'your-band-positions'));
+      if (own.bandCentre && own.overtone)
+        out.push(
+          arithmetic(
+            (n1, n2) => (2 * n1 - n2) / 2,
+            [own.bandCentre, own.overtone],
+            'ωₑxₑ = (2ν̃₁←₀ − ν̃₂←₀)/2 from your band positions',
+            'your-band-positions',
+          ),
+        );
       break;
     case 'zeroPointEnergy':
     case 'dissociationEnergy':
     case 'dissociationEnergy0': {
       const energy = ENERGY_FORMULAS[key];
       // From the student's own ωₑ and ωₑxₑ (carried forward), else from their band positions.
-      if (rep.omegaE && rep.omegaExe) out.push(arithmetic((w, x) => energy.of(w, x), [rep.omegaE, rep.omegaExe], `${energy.formula} from your ωₑ and ωₑxₑ`, 'your-reported-values'));
+      if (rep.omegaE && rep.omegaExe)
+        out.push(
+          arithmetic(
+            (w, x) => energy.of(w, x),
+            [rep.omegaE, rep.omegaExe],
+            `${energy.formula} from your ωₑ and ωₑxₑ`,
+            'your-reported-values',
+          ),
+        );
       if (own.bandCentre && own.overtone) {
-        out.push(arithmetic((n1, n2) => energy.of(3 * n1 - n2, (2 * n1 - n2) / 2), [own.bandCentre, own.overtone], `${energy.formula} with ωₑ and ωₑxₑ from your band positions`, 'your-band-positions'));
+        out.push(
+          arithmetic(
+            (n1, n2) => energy.of(3 * n1 - n2, (2 * n1 - n2) / 2),
+            [own.bandCentre, own.overtone],
+            `${energy.formula} with ωₑ and ωₑxₑ from your band positions`,
+            'your-band-positions',
+          ),
+        );
       }
       break;
     }
@@ -242,11 +325,25 @@ export function recompute(key: QuantityKey, own: OwnData): Recomputed[] {
       const ratio = Math.sqrt(mu / partner.reducedMassKg);
       if (own.partnerBandCentre) {
         const f = key === 'isotopeShift' ? (a: number, b: number) => b - a : (a: number, b: number) => b / a;
-        out.push(arithmetic(f, [own.bandCentre, own.partnerBandCentre], `your band centres of ${own.species.display} and ${partner.display}`, 'your-band-positions'));
+        out.push(
+          arithmetic(
+            f,
+            [own.bandCentre, own.partnerBandCentre],
+            `your band centres of ${own.species.display} and ${partner.display}`,
+            'your-band-positions',
+          ),
+        );
       }
       // The harmonic prediction ν̃₀′ = ν̃₀√(μ/μ′) from the student's own band centre.
       const f = key === 'isotopeShift' ? (a: number) => a * ratio - a : () => ratio;
-      out.push(arithmetic(f, [own.bandCentre], `the harmonic prediction ν̃₀′ = ν̃₀√(μ/μ′) for ${partner.display} from your band centre`, 'harmonic-prediction'));
+      out.push(
+        arithmetic(
+          f,
+          [own.bandCentre],
+          `the harmonic prediction ν̃₀′ = ν̃₀√(μ/μ′) for ${partner.display} from your band centre`,
+          'harmonic-prediction',
+        ),
+      );
       break;
     }
   }
@@ -259,8 +356,14 @@ function combine(x: Estimate, y: Estimate, a: number, b: number): Estimate {
 }
 
 /** The energies from ωₑ and ωₑxₑ (SI wavenumbers in, joules out). */
-export const ENERGY_FORMULAS: Record<'zeroPointEnergy' | 'dissociationEnergy' | 'dissociationEnergy0', { formula: string; of: (omegaE: number, omegaExe: number) => number }> = {
+export const ENERGY_FORMULAS: Record<
+  'zeroPointEnergy' | 'dissociationEnergy' | 'dissociationEnergy0',
+  { formula: string; of: (omegaE: number, omegaExe: number) => number }
+> = {
   zeroPointEnergy: { formula: 'G(0) = ωₑ/2 − ωₑxₑ/4', of: (w, x) => ENERGY_PER_WAVENUMBER * (w / 2 - x / 4) },
   dissociationEnergy: { formula: 'Morse Dₑ = ωₑ²/(4ωₑxₑ)', of: (w, x) => ENERGY_PER_WAVENUMBER * ((w * w) / (4 * x)) },
-  dissociationEnergy0: { formula: 'Morse D₀ = ωₑ²/(4ωₑxₑ) − G(0)', of: (w, x) => ENERGY_PER_WAVENUMBER * ((w * w) / (4 * x) - (w / 2 - x / 4)) },
+  dissociationEnergy0: {
+    formula: 'Morse D₀ = ωₑ²/(4ωₑxₑ) − G(0)',
+    of: (w, x) => ENERGY_PER_WAVENUMBER * ((w * w) / (4 * x) - (w / 2 - x / 4)),
+  },
 };

@@ -90,10 +90,21 @@ export const REFERENCE_TABLE: readonly ReferenceEntry[] = [
   }),
   // Bₑ computed from rₑ = 1.60916 Å with AME2020 masses: the number an earlier table gave as Bₑ
   // (6.426365) is B₀ = Bₑ − αₑ/2 (shared reference table, note on H¹²⁷I).
-  row('H127I', 2309.014, 39.6435, -0.02, 6.511, 0.16886, 2.069e-4, 1.60916, `${HH}: ωₑ, ωₑxₑ, ωₑyₑ, αₑ read from a stored copy of the NIST WebBook page; Bₑ computed from rₑ`, {
-    textbookForceConstant: textbook(314),
-    dissociationEnergy0: d0(3.0541),
-  }),
+  row(
+    'H127I',
+    2309.014,
+    39.6435,
+    -0.02,
+    6.511,
+    0.16886,
+    2.069e-4,
+    1.60916,
+    `${HH}: ωₑ, ωₑxₑ, ωₑyₑ, αₑ read from a stored copy of the NIST WebBook page; Bₑ computed from rₑ`,
+    {
+      textbookForceConstant: textbook(314),
+      dissociationEnergy0: d0(3.0541),
+    },
+  ),
   row('H19F', 4138.32, 89.88, 0.9, 20.9557, 0.798, 2.151e-3, 0.91681, MEMORY, {
     bandOrigin: band(3961.42),
     textbookForceConstant: textbook(966),
@@ -105,14 +116,36 @@ export const REFERENCE_TABLE: readonly ReferenceEntry[] = [
     textbookForceConstant: textbook(1902),
     dissociationEnergy0: d0(11.092),
   }),
-  row('14N2', 2358.57, 14.324, -0.00226, 1.998241, 0.017318, 5.76e-6, 1.09768, MEMORY, { textbookForceConstant: textbook(2294), dissociationEnergy0: d0(9.759) }),
-  row('16O2', 1580.193, 11.981, 0.04747, 1.44563, 0.0159, 4.839e-6, 1.20752, `${HH}: ωₑ, ωₑxₑ, ωₑyₑ as printed in a public reproduction of the NIST table; the rest from memory`, {
-    textbookForceConstant: textbook(1177),
-    dissociationEnergy0: d0(5.1156),
+  row('14N2', 2358.57, 14.324, -0.00226, 1.998241, 0.017318, 5.76e-6, 1.09768, MEMORY, {
+    textbookForceConstant: textbook(2294),
+    dissociationEnergy0: d0(9.759),
   }),
-  row('H2', 4401.213, 121.336, 0.8129, 60.853, 3.0622, 4.71e-2, 0.74144, MEMORY_CCCBDB, { textbookForceConstant: textbook(575), dissociationEnergy0: d0(4.4781) }),
-  row('35Cl2', 559.72, 2.675, undefined, 0.2439, 0.0014, undefined, 1.9879, MEMORY, { textbookForceConstant: textbook(323), dissociationEnergy0: d0(2.4794) }),
-  row('7LiH', 1405.65, 23.2, 0.163, 7.5131, 0.2132, 8.617e-4, 1.5957, `${HH}, read from a stored copy of the NIST WebBook page`, { dissociationEnergy0: d0(2.429) }),
+  row(
+    '16O2',
+    1580.193,
+    11.981,
+    0.04747,
+    1.44563,
+    0.0159,
+    4.839e-6,
+    1.20752,
+    `${HH}: ωₑ, ωₑxₑ, ωₑyₑ as printed in a public reproduction of the NIST table; the rest from memory`,
+    {
+      textbookForceConstant: textbook(1177),
+      dissociationEnergy0: d0(5.1156),
+    },
+  ),
+  row('H2', 4401.213, 121.336, 0.8129, 60.853, 3.0622, 4.71e-2, 0.74144, MEMORY_CCCBDB, {
+    textbookForceConstant: textbook(575),
+    dissociationEnergy0: d0(4.4781),
+  }),
+  row('35Cl2', 559.72, 2.675, undefined, 0.2439, 0.0014, undefined, 1.9879, MEMORY, {
+    textbookForceConstant: textbook(323),
+    dissociationEnergy0: d0(2.4794),
+  }),
+  row('7LiH', 1405.65, 23.2, 0.163, 7.5131, 0.2132, 8.617e-4, 1.5957, `${HH}, read from a stored copy of the NIST WebBook page`, {
+    dissociationEnergy0: d0(2.429),
+  }),
 ];
 
 /** Band origins measured for isotopologues whose other constants are computed. */
@@ -120,8 +153,26 @@ const EXTRA_BAND_ORIGINS: Record<string, number> = { H37Cl: 2883.88 };
 
 /** Isotopologues the app offers besides the table rows; their constants are computed. */
 const DERIVED_FORMULAS = [
-  'H37Cl', 'D37Cl', 'H81Br', 'D79Br', 'D81Br', 'D19F', 'D127I', '13C16O', '12C18O', '13C18O',
-  'HD', 'D2', '14N15N', '15N2', '16O18O', '18O2', '35Cl37Cl', '37Cl2', '6LiH', '7LiD',
+  'H37Cl',
+  'D37Cl',
+  'H81Br',
+  'D79Br',
+  'D81Br',
+  'D19F',
+  'D127I',
+  '13C16O',
+  '12C18O',
+  '13C18O',
+  'HD',
+  'D2',
+  '14N15N',
+  '15N2',
+  '16O18O',
+  '18O2',
+  '35Cl37Cl',
+  '37Cl2',
+  '6LiH',
+  '7LiD',
 ];
 
 const byKey = new Map<string, ReferenceEntry>();
@@ -139,7 +190,8 @@ for (const entry of REFERENCE_TABLE) {
 for (const list of parentsByElements.values()) {
   const withD0 = list.find((p) => p.entry.dissociationEnergy0);
   if (!withD0) continue;
-  for (const p of list) if (!p.entry.dissociationEnergy0) p.entry.dissociationEnergy0 = dissociationEnergyFromParent(withD0.entry, p.entry.constants);
+  for (const p of list)
+    if (!p.entry.dissociationEnergy0) p.entry.dissociationEnergy0 = dissociationEnergyFromParent(withD0.entry, p.entry.constants);
 }
 
 /** D₀ of an isotopologue from another one's D₀: the same well depth Dₑ = D₀ + G(0), so D₀ moves by the change in G(0). */
@@ -198,7 +250,10 @@ export function referenceEntry(speciesOrFormula: Species | string): ReferenceEnt
   let result: ReferenceEntry | undefined;
   if (parents && parents.length > 0) {
     const parent = parents.reduce((best, p) =>
-      Math.abs(Math.log(p.species.reducedMassU / species.reducedMassU)) < Math.abs(Math.log(best.species.reducedMassU / species.reducedMassU)) ? p : best,
+      Math.abs(Math.log(p.species.reducedMassU / species.reducedMassU)) <
+      Math.abs(Math.log(best.species.reducedMassU / species.reducedMassU))
+        ? p
+        : best,
     );
     const constants = scaleByIsotopeRelations(parent.entry.constants, parent.species.reducedMassU, species.reducedMassU);
     let bandOrigin: ReferenceEntry['bandOrigin'];
@@ -208,8 +263,13 @@ export function referenceEntry(speciesOrFormula: Species | string): ReferenceEnt
       // Carry the parent's measured origin over with the computed change in G(1) − G(0): this keeps
       // the measured correction for the terms the three-term G(v) leaves out.
       const shift =
-        vibrationalTerm(constants, 1) - vibrationalTerm(constants, 0) - (vibrationalTerm(parent.entry.constants, 1) - vibrationalTerm(parent.entry.constants, 0));
-      bandOrigin = { value: parent.entry.bandOrigin.value + shift, provenance: `computed from ${parent.entry.formula} (${BAND_ORIGIN}) by isotope relations` };
+        vibrationalTerm(constants, 1) -
+        vibrationalTerm(constants, 0) -
+        (vibrationalTerm(parent.entry.constants, 1) - vibrationalTerm(parent.entry.constants, 0));
+      bandOrigin = {
+        value: parent.entry.bandOrigin.value + shift,
+        provenance: `computed from ${parent.entry.formula} (${BAND_ORIGIN}) by isotope relations`,
+      };
     }
     const dissociationEnergy0 = dissociationEnergyFromParent(parent.entry, constants);
     result = {
@@ -233,7 +293,12 @@ export function listKnownSpecies(): { formula: string; display: string; provenan
     if (!parsed.ok) continue;
     const entry = referenceEntry(parsed.species);
     if (!entry) continue;
-    out.push({ formula: parsed.species.formula, display: parsed.species.display, provenance: entry.provenance, derived: entry.derivedFrom !== undefined });
+    out.push({
+      formula: parsed.species.formula,
+      display: parsed.species.display,
+      provenance: entry.provenance,
+      derived: entry.derivedFrom !== undefined,
+    });
   }
   return out;
 }

@@ -45,7 +45,14 @@ export function defaultPartner(species: Species): Species | undefined {
 
 function defaultPartnerUncached(species: Species): Species | undefined {
   const swaps: [string, number, number][] = [
-    ['Cl', 35, 37], ['Cl', 37, 35], ['Br', 79, 81], ['Br', 81, 79], ['H', 1, 2], ['H', 2, 1], ['C', 12, 13], ['C', 13, 12],
+    ['Cl', 35, 37],
+    ['Cl', 37, 35],
+    ['Br', 79, 81],
+    ['Br', 81, 79],
+    ['H', 1, 2],
+    ['H', 2, 1],
+    ['C', 12, 13],
+    ['C', 13, 12],
   ];
   for (const [sym, from, to] of swaps) {
     const idx = species.atoms.findIndex((a) => a.symbol === sym && a.massNumber === from);
@@ -70,16 +77,36 @@ function bandCentreOf(species: Species): { value: number; source: string } | und
   const entry = referenceEntry(species);
   if (!entry) return undefined;
   if (entry.bandOrigin) return { value: entry.bandOrigin.value, source: entry.bandOrigin.provenance };
-  return { value: vibrationalTerm(entry.constants, 1) - vibrationalTerm(entry.constants, 0), source: `G(1) − G(0) from ωₑ, ωₑxₑ, ωₑyₑ: ${entry.provenance}` };
+  return {
+    value: vibrationalTerm(entry.constants, 1) - vibrationalTerm(entry.constants, 0),
+    source: `G(1) − G(0) from ωₑ, ωₑxₑ, ωₑyₑ: ${entry.provenance}`,
+  };
 }
 
 const cache = new Map<string, Partial<Record<QuantityKey, ReferenceValue>>>();
 
 /** Literature value of each quantity available for the species (formula or parsed). */
-export function referenceValues(speciesInput: Species | string, partnerInput?: Species | string): Partial<Record<QuantityKey, ReferenceValue>> {
-  const species = typeof speciesInput === 'string' ? (() => { const p = parseSpecies(speciesInput); return p.ok ? p.species : undefined; })() : speciesInput;
+export function referenceValues(
+  speciesInput: Species | string,
+  partnerInput?: Species | string,
+): Partial<Record<QuantityKey, ReferenceValue>> {
+  const species =
+    typeof speciesInput === 'string'
+      ? (() => {
+          const p = parseSpecies(speciesInput);
+          return p.ok ? p.species : undefined;
+        })()
+      : speciesInput;
   if (!species) return {};
-  const partner = partnerInput === undefined ? defaultPartner(species) : typeof partnerInput === 'string' ? (() => { const p = parseSpecies(partnerInput); return p.ok ? p.species : undefined; })() : partnerInput;
+  const partner =
+    partnerInput === undefined
+      ? defaultPartner(species)
+      : typeof partnerInput === 'string'
+        ? (() => {
+            const p = parseSpecies(partnerInput);
+            return p.ok ? p.species : undefined;
+          })()
+        : partnerInput;
   const cacheKey = `${species.formula}|${partner?.formula ?? ''}|${species.reducedMassU}`;
   const hit = cache.get(cacheKey);
   if (hit) return hit;
@@ -88,7 +115,9 @@ export function referenceValues(speciesInput: Species | string, partnerInput?: S
     if (Number.isFinite(valueSI)) out[key] = { valueSI, unitSI: QUANTITIES[key].siUnit, display: show(valueSI, key), source };
   };
   const mu = species.reducedMassKg;
-  const atomSources = species.atoms.every((a) => a.source === ISOTOPE_SOURCE) ? ISOTOPE_SOURCE : species.atoms.map((a) => a.source).join('; ');
+  const atomSources = species.atoms.every((a) => a.source === ISOTOPE_SOURCE)
+    ? ISOTOPE_SOURCE
+    : species.atoms.map((a) => a.source).join('; ');
   put('reducedMass', mu, `μ from isotopic masses: ${atomSources}`);
   const entry = referenceEntry(species);
   if (entry) {
@@ -117,7 +146,11 @@ export function referenceValues(speciesInput: Species | string, partnerInput?: S
     const measuredD0 = entry.dissociationEnergy0;
     if (measuredD0) {
       put('dissociationEnergy0', measuredD0.valueEV * e, measuredD0.provenance);
-      put('dissociationEnergy', measuredD0.valueEV * e + zpe * hc, `Dₑ = D₀ + G(0): D₀ ${measuredD0.provenance}; G(0) = ωₑ/2 − ωₑxₑ/4 (${src})`);
+      put(
+        'dissociationEnergy',
+        measuredD0.valueEV * e + zpe * hc,
+        `Dₑ = D₀ + G(0): D₀ ${measuredD0.provenance}; G(0) = ωₑ/2 − ωₑxₑ/4 (${src})`,
+      );
     } else {
       const morse = morseEstimates(species)!;
       put('dissociationEnergy', morse.De.valueSI, `${morse.De.source}; no measured value is tabulated`);
@@ -148,7 +181,12 @@ export function morseEstimates(species: Species): { De: ReferenceValue; D0: Refe
   const hc = h * c * 100;
   const zpe = k.omegaE / 2 - k.omegaExe / 4;
   const De = (k.omegaE * k.omegaE) / (4 * k.omegaExe);
-  const value = (key: QuantityKey, v: number, source: string): ReferenceValue => ({ valueSI: v, unitSI: QUANTITIES[key].siUnit, display: show(v, key), source });
+  const value = (key: QuantityKey, v: number, source: string): ReferenceValue => ({
+    valueSI: v,
+    unitSI: QUANTITIES[key].siUnit,
+    display: show(v, key),
+    source,
+  });
   return {
     De: value('dissociationEnergy', De * hc, `Morse estimate Dₑ = ωₑ²/(4ωₑxₑ) from ${entry.provenance}`),
     D0: value('dissociationEnergy0', (De - zpe) * hc, `Morse estimate D₀ = Dₑ − G(0) from ${entry.provenance}`),
@@ -160,15 +198,28 @@ export function morseEstimates(species: Species): { De: ReferenceValue; D0: Refe
  * shift ν̃₀(√(μ/μ′) − 1) from the accepted band centre. A student's harmonic prediction is judged
  * against these; the observed ratio (from both measured band centres) differs by the anharmonicity.
  */
-export function harmonicIsotopeReference(species: Species, partner: Species): { isotopeRatio: ReferenceValue; isotopeShift?: ReferenceValue } {
+export function harmonicIsotopeReference(
+  species: Species,
+  partner: Species,
+): { isotopeRatio: ReferenceValue; isotopeShift?: ReferenceValue } {
   const ratio = Math.sqrt(species.reducedMassKg / partner.reducedMassKg);
   const out: { isotopeRatio: ReferenceValue; isotopeShift?: ReferenceValue } = {
-    isotopeRatio: { valueSI: ratio, unitSI: QUANTITIES.isotopeRatio.siUnit, display: show(ratio, 'isotopeRatio'), source: `harmonic expectation √(μ/μ′) for ${partner.display} from the isotopic masses (${ISOTOPE_SOURCE})` },
+    isotopeRatio: {
+      valueSI: ratio,
+      unitSI: QUANTITIES.isotopeRatio.siUnit,
+      display: show(ratio, 'isotopeRatio'),
+      source: `harmonic expectation √(μ/μ′) for ${partner.display} from the isotopic masses (${ISOTOPE_SOURCE})`,
+    },
   };
   const band = bandCentreOf(species);
   if (band) {
     const shift = band.value * 100 * (ratio - 1);
-    out.isotopeShift = { valueSI: shift, unitSI: QUANTITIES.isotopeShift.siUnit, display: show(shift, 'isotopeShift'), source: `harmonic expectation ν̃₀(√(μ/μ′) − 1) for ${partner.display} from the accepted band centre of ${species.display} (${band.source})` };
+    out.isotopeShift = {
+      valueSI: shift,
+      unitSI: QUANTITIES.isotopeShift.siUnit,
+      display: show(shift, 'isotopeShift'),
+      source: `harmonic expectation ν̃₀(√(μ/μ′) − 1) for ${partner.display} from the accepted band centre of ${species.display} (${band.source})`,
+    };
   }
   return out;
 }

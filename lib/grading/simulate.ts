@@ -53,7 +53,10 @@ export function bandConstants(species: Species | string): BandConstants | undefi
 }
 
 /** Lines of one isotopologue from given band constants. */
-export function linesFromConstants(k: BandConstants, opts: { jMax?: number; withCentrifugal?: boolean; temperature?: number; abundance?: number; species?: string } = {}): SimulatedLine[] {
+export function linesFromConstants(
+  k: BandConstants,
+  opts: { jMax?: number; withCentrifugal?: boolean; temperature?: number; abundance?: number; species?: string } = {},
+): SimulatedLine[] {
   const jMax = Math.max(1, Math.min(200, Math.floor(opts.jMax ?? 10)));
   const D = opts.withCentrifugal === false ? 0 : k.D;
   const T = opts.temperature ?? 298;
@@ -64,8 +67,10 @@ export function linesFromConstants(k: BandConstants, opts: { jMax?: number; with
   const out: SimulatedLine[] = [];
   const species = opts.species ?? '';
   const ab = opts.abundance ?? 1;
-  for (let J = jMax; J >= 1; J--) out.push({ branch: 'P', J, wavenumber: k.nu0 + F(k.B1, J - 1) - F(k.B0, J), intensity: ab * pop(J), species });
-  for (let J = 0; J <= jMax; J++) out.push({ branch: 'R', J, wavenumber: k.nu0 + F(k.B1, J + 1) - F(k.B0, J), intensity: ab * pop(J), species });
+  for (let J = jMax; J >= 1; J--)
+    out.push({ branch: 'P', J, wavenumber: k.nu0 + F(k.B1, J - 1) - F(k.B0, J), intensity: ab * pop(J), species });
+  for (let J = 0; J <= jMax; J++)
+    out.push({ branch: 'R', J, wavenumber: k.nu0 + F(k.B1, J + 1) - F(k.B0, J), intensity: ab * pop(J), species });
   return out;
 }
 
@@ -90,7 +95,13 @@ function abundanceOf(s: Species): number {
  * constants (check with referenceValues first).
  */
 export function simulateLineList(speciesInput: Species | string, options: SimulateOptions = {}): SimulatedLine[] {
-  const species = typeof speciesInput === 'string' ? (() => { const p = parseSpecies(speciesInput); return p.ok ? p.species : undefined; })() : speciesInput;
+  const species =
+    typeof speciesInput === 'string'
+      ? (() => {
+          const p = parseSpecies(speciesInput);
+          return p.ok ? p.species : undefined;
+        })()
+      : speciesInput;
   if (!species) return [];
   const k = bandConstants(species);
   if (!k) return [];
@@ -102,7 +113,8 @@ export function simulateLineList(speciesInput: Species | string, options: Simula
     const kp = partner ? bandConstants(partner) : undefined;
     lines = linesFromConstants(k, { ...base, abundance: abundanceOf(species), species: species.formula });
     if (partner && kp) {
-      if (options.bandOrigin !== undefined && Number.isFinite(options.bandOrigin)) kp.nu0 += options.bandOrigin - (bandConstants(species)?.nu0 ?? 0);
+      if (options.bandOrigin !== undefined && Number.isFinite(options.bandOrigin))
+        kp.nu0 += options.bandOrigin - (bandConstants(species)?.nu0 ?? 0);
       lines = lines.concat(linesFromConstants(kp, { ...base, abundance: abundanceOf(partner), species: partner.formula }));
     }
   } else {

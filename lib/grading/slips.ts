@@ -55,31 +55,156 @@ function slip(code: SlipCode, title: string, explanation: string, formula: strin
 }
 
 export const SLIPS: Record<SlipCode, SlipInfo> = {
-  'mass-numbers-used': slip('mass-numbers-used', 'Mass numbers used as masses', 'The reduced mass was worked out from the whole mass numbers (such as 1 and 35) instead of the isotopic masses. Use the isotopic masses in u (¹H 1.007825 u, ³⁵Cl 34.968853 u).', 'μ = m₁m₂/(m₁ + m₂) with isotopic masses'),
-  'average-atomic-mass-used': slip('average-atomic-mass-used', 'Average atomic mass used', 'The periodic-table (abundance-averaged) atomic mass was used, but each line of the spectrum belongs to one isotopologue: use the mass of the isotope in that molecule.', 'μ = m₁m₂/(m₁ + m₂) with the masses of the specific isotopes'),
-  'single-atom-mass-used': slip('single-atom-mass-used', 'Mass of one atom used instead of μ', 'The mass of a single atom was used where the reduced mass belongs. Both atoms move about the centre of mass; the oscillator mass is μ = m₁m₂/(m₁ + m₂).', 'μ = m₁m₂/(m₁ + m₂)'),
-  'sum-of-masses-used': slip('sum-of-masses-used', 'Sum of the masses used instead of μ', 'The total mass m₁ + m₂ was used where the reduced mass m₁m₂/(m₁ + m₂) belongs.', 'μ = m₁m₂/(m₁ + m₂)'),
-  'molar-mass-not-per-molecule': slip('molar-mass-not-per-molecule', 'Molar mass not divided by the Avogadro constant', 'A molar mass (per mole) was used as the mass of one molecule. Divide by N_A = 6.02214076 × 10²³ mol⁻¹ to get kg per molecule.', 'μ/kg = (μ/g mol⁻¹) × 10⁻³ / N_A'),
-  'grams-not-kilograms': slip('grams-not-kilograms', 'Grams not converted to kilograms', 'The mass was in grams when the SI formula needs kilograms (a factor of 1000).', '1 g = 10⁻³ kg'),
-  'unified-mass-not-converted': slip('unified-mass-not-converted', 'Mass in u used as if in kg', 'The reduced mass in atomic mass units was put into an SI formula without converting to kilograms.', '1 u = 1.66053906660 × 10⁻²⁷ kg'),
-  'missing-2pi': slip('missing-2pi', 'Factor 2π missing', 'The factor of 2π that relates frequency and angular frequency was left out (k came out smaller by 4π²).', 'k = 4π²c²ν̃²μ'),
-  'wavenumber-used-as-frequency': slip('wavenumber-used-as-frequency', 'Wavenumber used as a frequency', 'The wavenumber was used as if it were a frequency in Hz; the speed of light is missing. Multiply by c to turn a wavenumber into a frequency.', 'ν = cν̃, so k = 4π²c²ν̃²μ'),
-  'speed-of-light-in-m-per-s': slip('speed-of-light-in-m-per-s', 'c in m s⁻¹ with ν̃ in cm⁻¹', 'The speed of light was taken in m s⁻¹ while the wavenumber stayed in cm⁻¹. Use c = 2.99792458 × 10¹⁰ cm s⁻¹ with cm⁻¹, or convert ν̃ to m⁻¹.', 'k = 4π²c²ν̃²μ with c and ν̃ in matching units'),
-  'per-metre-per-centimetre-confusion': slip('per-metre-per-centimetre-confusion', 'cm⁻¹ and m⁻¹ confused', 'A wavenumber in cm⁻¹ and one in m⁻¹ were mixed up (1 cm⁻¹ = 100 m⁻¹).', '1 cm⁻¹ = 100 m⁻¹'),
-  'omega-e-instead-of-band-centre': slip('omega-e-instead-of-band-centre', 'ωₑ used instead of the band centre', 'This quantity is asked for from the measured band centre ν̃₀, but the harmonic wavenumber ωₑ was used.', 'k = 4π²c²ν̃₀²μ (band centre); kₑ = 4π²c²ωₑ²μ'),
-  'band-centre-instead-of-omega-e': slip('band-centre-instead-of-omega-e', 'Band centre used instead of ωₑ', 'This quantity belongs to the harmonic wavenumber ωₑ = ν̃₀ + 2ωₑxₑ, but the band centre ν̃₀ was used.', 'ωₑ = ν̃₁←₀ + 2ωₑxₑ; kₑ = 4π²c²ωₑ²μ'),
-  'wrong-isotopologue': slip('wrong-isotopologue', 'Masses of the wrong isotopologue', 'The masses belong to a different isotopologue (for example H instead of D, or ³⁷Cl instead of ³⁵Cl) from the one whose band was measured.', 'μ from the isotopes of the molecule measured'),
-  'r-branch-numbered-from-j': slip('r-branch-numbered-from-j', 'R branch numbered from J instead of J + 1', 'In the fit against the running number m, R(J) lines must have m = J + 1 (and P(J) lines m = −J). Numbering the R branch with m = J shifts ν̃₀ and the rotational constants.', 'R(J): m = J + 1; P(J): m = −J; ν̃(m) = ν̃₀ + (B₁+B₀)m + (B₁−B₀)m²'),
-  'b0-b1-swapped': slip('b0-b1-swapped', 'B₀ and B₁ swapped', 'The ground- and upper-state rotational constants were interchanged (a sign that αₑ came out negative). The m² coefficient is B₁ − B₀ and is negative, since B₁ < B₀.', 'B₀ = (b − c)/2, B₁ = (b + c)/2 from ν̃ = ν̃₀ + bm + cm²'),
-  'r0-reported-as-re': slip('r0-reported-as-re', 'r₀ reported as rₑ', 'The bond length from B₀ is r₀, averaged over the zero-point vibration; rₑ comes from Bₑ = B₀ + αₑ/2.', 'rₑ = √(h/(8π²cμBₑ)), r₀ = √(h/(8π²cμB₀))'),
-  'p-branch-numbered-from-j-plus-1': slip('p-branch-numbered-from-j-plus-1', 'P lines numbered one too high', 'The lines of the P branch are labelled one J too high (the band gap misread): the first line below the gap is P(1). Numbered so, the fit leaves residuals of several cm⁻¹; renumbered, it fits to the precision of the measurement.', 'P(J) = ν̃₀ − (B₁ + B₀)J + (B₁ − B₀)J², the first P line is P(1)'),
-  'zero-point-energy-omitted': slip('zero-point-energy-omitted', 'Zero-point energy not subtracted', 'D₀ is measured from the lowest level v = 0, not from the bottom of the well: subtract the zero-point energy G(0) from Dₑ.', 'D₀ = Dₑ − G(0), G(0) = ωₑ/2 − ωₑxₑ/4'),
-  'anharmonicity-not-halved': slip('anharmonicity-not-halved', 'ωₑxₑ not divided by 2', 'From ν̃₁←₀ = ωₑ − 2ωₑxₑ and ν̃₂←₀ = 2ωₑ − 6ωₑxₑ it follows that 2ν̃₁←₀ − ν̃₂←₀ = 2ωₑxₑ: the difference is twice the anharmonicity constant.', 'ωₑxₑ = (2ν̃₁←₀ − ν̃₂←₀)/2, ωₑ = ν̃₁←₀ + 2ωₑxₑ'),
-  'isotope-shift-sign': slip('isotope-shift-sign', 'Isotope shift with the wrong sign', 'The shift is defined as ν̃₀(partner) − ν̃₀(this isotopologue): the heavier isotopologue has the lower band centre, so the shift to a heavier partner is negative.', 'Δν̃₀ = ν̃₀′ − ν̃₀ = ν̃₀(√(μ/μ′) − 1)'),
-  'ratio-without-square-root': slip('ratio-without-square-root', 'Ratio of reduced masses without the square root', 'With the same force constant the wavenumber goes as 1/√μ, so the band centres are in the ratio of the square roots of the reduced masses, not of the masses themselves.', 'ν̃₀′/ν̃₀ = √(μ/μ′)'),
-  'constants-rounded': slip('constants-rounded', 'Constants rounded more than the answer', 'The number follows from rounded constants or masses (such as c = 3.00 × 10⁸ m s⁻¹, h = 6.626 × 10⁻³⁴ J s or masses to four decimals), but it is quoted to more figures than those constants carry. Use the constants to at least as many figures as the answer (CODATA 2018, AME2020), or round the answer.', 'c = 2.99792458 × 10⁸ m s⁻¹, h = 6.62607015 × 10⁻³⁴ J s, u = 1.66053906660 × 10⁻²⁷ kg'),
-  'power-of-ten': slip('power-of-ten', 'Out by a power of ten', 'The digits are right but the number is out by a power of ten: check unit prefixes and conversions.', 'check prefixes: 10⁻² m = 1 cm, 10⁻¹⁰ m = 1 Å, 10⁻³ kg = 1 g'),
-  'unit-mismatch': slip('unit-mismatch', 'Unit missing or wrong', 'The number is right, but the unit given with it is wrong or missing.', 'a quantity = number × unit'),
+  'mass-numbers-used': slip(
+    'mass-numbers-used',
+    'Mass numbers used as masses',
+    'The reduced mass was worked out from the whole mass numbers (such as 1 and 35) instead of the isotopic masses. Use the isotopic masses in u (¹H 1.007825 u, ³⁵Cl 34.968853 u).',
+    'μ = m₁m₂/(m₁ + m₂) with isotopic masses',
+  ),
+  'average-atomic-mass-used': slip(
+    'average-atomic-mass-used',
+    'Average atomic mass used',
+    'The periodic-table (abundance-averaged) atomic mass was used, but each line of the spectrum belongs to one isotopologue: use the mass of the isotope in that molecule.',
+    'μ = m₁m₂/(m₁ + m₂) with the masses of the specific isotopes',
+  ),
+  'single-atom-mass-used': slip(
+    'single-atom-mass-used',
+    'Mass of one atom used instead of μ',
+    'The mass of a single atom was used where the reduced mass belongs. Both atoms move about the centre of mass; the oscillator mass is μ = m₁m₂/(m₁ + m₂).',
+    'μ = m₁m₂/(m₁ + m₂)',
+  ),
+  'sum-of-masses-used': slip(
+    'sum-of-masses-used',
+    'Sum of the masses used instead of μ',
+    'The total mass m₁ + m₂ was used where the reduced mass m₁m₂/(m₁ + m₂) belongs.',
+    'μ = m₁m₂/(m₁ + m₂)',
+  ),
+  'molar-mass-not-per-molecule': slip(
+    'molar-mass-not-per-molecule',
+    'Molar mass not divided by the Avogadro constant',
+    'A molar mass (per mole) was used as the mass of one molecule. Divide by N_A = 6.02214076 × 10²³ mol⁻¹ to get kg per molecule.',
+    'μ/kg = (μ/g mol⁻¹) × 10⁻³ / N_A',
+  ),
+  'grams-not-kilograms': slip(
+    'grams-not-kilograms',
+    'Grams not converted to kilograms',
+    'The mass was in grams when the SI formula needs kilograms (a factor of 1000).',
+    '1 g = 10⁻³ kg',
+  ),
+  'unified-mass-not-converted': slip(
+    'unified-mass-not-converted',
+    'Mass in u used as if in kg',
+    'The reduced mass in atomic mass units was put into an SI formula without converting to kilograms.',
+    '1 u = 1.66053906660 × 10⁻²⁷ kg',
+  ),
+  'missing-2pi': slip(
+    'missing-2pi',
+    'Factor 2π missing',
+    'The factor of 2π that relates frequency and angular frequency was left out (k came out smaller by 4π²).',
+    'k = 4π²c²ν̃²μ',
+  ),
+  'wavenumber-used-as-frequency': slip(
+    'wavenumber-used-as-frequency',
+    'Wavenumber used as a frequency',
+    'The wavenumber was used as if it were a frequency in Hz; the speed of light is missing. Multiply by c to turn a wavenumber into a frequency.',
+    'ν = cν̃, so k = 4π²c²ν̃²μ',
+  ),
+  'speed-of-light-in-m-per-s': slip(
+    'speed-of-light-in-m-per-s',
+    'c in m s⁻¹ with ν̃ in cm⁻¹',
+    'The speed of light was taken in m s⁻¹ while the wavenumber stayed in cm⁻¹. Use c = 2.99792458 × 10¹⁰ cm s⁻¹ with cm⁻¹, or convert ν̃ to m⁻¹.',
+    'k = 4π²c²ν̃²μ with c and ν̃ in matching units',
+  ),
+  'per-metre-per-centimetre-confusion': slip(
+    'per-metre-per-centimetre-confusion',
+    'cm⁻¹ and m⁻¹ confused',
+    'A wavenumber in cm⁻¹ and one in m⁻¹ were mixed up (1 cm⁻¹ = 100 m⁻¹).',
+    '1 cm⁻¹ = 100 m⁻¹',
+  ),
+  'omega-e-instead-of-band-centre': slip(
+    'omega-e-instead-of-band-centre',
+    'ωₑ used instead of the band centre',
+    'This quantity is asked for from the measured band centre ν̃₀, but the harmonic wavenumber ωₑ was used.',
+    'k = 4π²c²ν̃₀²μ (band centre); kₑ = 4π²c²ωₑ²μ',
+  ),
+  'band-centre-instead-of-omega-e': slip(
+    'band-centre-instead-of-omega-e',
+    'Band centre used instead of ωₑ',
+    'This quantity belongs to the harmonic wavenumber ωₑ = ν̃₀ + 2ωₑxₑ, but the band centre ν̃₀ was used.',
+    'ωₑ = ν̃₁←₀ + 2ωₑxₑ; kₑ = 4π²c²ωₑ²μ',
+  ),
+  'wrong-isotopologue': slip(
+    'wrong-isotopologue',
+    'Masses of the wrong isotopologue',
+    'The masses belong to a different isotopologue (for example H instead of D, or ³⁷Cl instead of ³⁵Cl) from the one whose band was measured.',
+    'μ from the isotopes of the molecule measured',
+  ),
+  'r-branch-numbered-from-j': slip(
+    'r-branch-numbered-from-j',
+    'R branch numbered from J instead of J + 1',
+    'In the fit against the running number m, R(J) lines must have m = J + 1 (and P(J) lines m = −J). Numbering the R branch with m = J shifts ν̃₀ and the rotational constants.',
+    'R(J): m = J + 1; P(J): m = −J; ν̃(m) = ν̃₀ + (B₁+B₀)m + (B₁−B₀)m²',
+  ),
+  'b0-b1-swapped': slip(
+    'b0-b1-swapped',
+    'B₀ and B₁ swapped',
+    'The ground- and upper-state rotational constants were interchanged (a sign that αₑ came out negative). The m² coefficient is B₁ − B₀ and is negative, since B₁ < B₀.',
+    'B₀ = (b − c)/2, B₁ = (b + c)/2 from ν̃ = ν̃₀ + bm + cm²',
+  ),
+  'r0-reported-as-re': slip(
+    'r0-reported-as-re',
+    'r₀ reported as rₑ',
+    'The bond length from B₀ is r₀, averaged over the zero-point vibration; rₑ comes from Bₑ = B₀ + αₑ/2.',
+    'rₑ = √(h/(8π²cμBₑ)), r₀ = √(h/(8π²cμB₀))',
+  ),
+  'p-branch-numbered-from-j-plus-1': slip(
+    'p-branch-numbered-from-j-plus-1',
+    'P lines numbered one too high',
+    'The lines of the P branch are labelled one J too high (the band gap misread): the first line below the gap is P(1). Numbered so, the fit leaves residuals of several cm⁻¹; renumbered, it fits to the precision of the measurement.',
+    'P(J) = ν̃₀ − (B₁ + B₀)J + (B₁ − B₀)J², the first P line is P(1)',
+  ),
+  'zero-point-energy-omitted': slip(
+    'zero-point-energy-omitted',
+    'Zero-point energy not subtracted',
+    'D₀ is measured from the lowest level v = 0, not from the bottom of the well: subtract the zero-point energy G(0) from Dₑ.',
+    'D₀ = Dₑ − G(0), G(0) = ωₑ/2 − ωₑxₑ/4',
+  ),
+  'anharmonicity-not-halved': slip(
+    'anharmonicity-not-halved',
+    'ωₑxₑ not divided by 2',
+    'From ν̃₁←₀ = ωₑ − 2ωₑxₑ and ν̃₂←₀ = 2ωₑ − 6ωₑxₑ it follows that 2ν̃₁←₀ − ν̃₂←₀ = 2ωₑxₑ: the difference is twice the anharmonicity constant.',
+    'ωₑxₑ = (2ν̃₁←₀ − ν̃₂←₀)/2, ωₑ = ν̃₁←₀ + 2ωₑxₑ',
+  ),
+  'isotope-shift-sign': slip(
+    'isotope-shift-sign',
+    'Isotope shift with the wrong sign',
+    'The shift is defined as ν̃₀(partner) − ν̃₀(this isotopologue): the heavier isotopologue has the lower band centre, so the shift to a heavier partner is negative.',
+    'Δν̃₀ = ν̃₀′ − ν̃₀ = ν̃₀(√(μ/μ′) − 1)',
+  ),
+  'ratio-without-square-root': slip(
+    'ratio-without-square-root',
+    'Ratio of reduced masses without the square root',
+    'With the same force constant the wavenumber goes as 1/√μ, so the band centres are in the ratio of the square roots of the reduced masses, not of the masses themselves.',
+    'ν̃₀′/ν̃₀ = √(μ/μ′)',
+  ),
+  'constants-rounded': slip(
+    'constants-rounded',
+    'Constants rounded more than the answer',
+    'The number follows from rounded constants or masses (such as c = 3.00 × 10⁸ m s⁻¹, h = 6.626 × 10⁻³⁴ J s or masses to four decimals), but it is quoted to more figures than those constants carry. Use the constants to at least as many figures as the answer (CODATA 2018, AME2020), or round the answer.',
+    'c = 2.99792458 × 10⁸ m s⁻¹, h = 6.62607015 × 10⁻³⁴ J s, u = 1.66053906660 × 10⁻²⁷ kg',
+  ),
+  'power-of-ten': slip(
+    'power-of-ten',
+    'Out by a power of ten',
+    'The digits are right but the number is out by a power of ten: check unit prefixes and conversions.',
+    'check prefixes: 10⁻² m = 1 cm, 10⁻¹⁰ m = 1 Å, 10⁻³ kg = 1 g',
+  ),
+  'unit-mismatch': slip(
+    'unit-mismatch',
+    'Unit missing or wrong',
+    'The number is right, but the unit given with it is wrong or missing.',
+    'a quantity = number × unit',
+  ),
 };
 
 // ---------------------------------------------------------------------------------------
@@ -198,7 +323,14 @@ function pushPerMetre(out: SlipCandidate[], x: number): void {
 }
 
 /** k = 4π²c²ν̃²μ redone under each slip (added to `out`). */
-function pushForceConstantSlips(out: SlipCandidate[], nu: number, mu: number, species: Species, alternativeNu: number | undefined, alternativeCode: SlipCode): void {
+function pushForceConstantSlips(
+  out: SlipCandidate[],
+  nu: number,
+  mu: number,
+  species: Species,
+  alternativeNu: number | undefined,
+  alternativeCode: SlipCode,
+): void {
   const k = forceConstantFromBand(nu, mu);
   for (const v of massVariants(species)) out.push({ code: v.code, valueSI: forceConstantFromBand(nu, v.muKg), detail: v.detail });
   out.push({ code: 'missing-2pi', valueSI: k / (4 * Math.PI * Math.PI) });
@@ -208,7 +340,8 @@ function pushForceConstantSlips(out: SlipCandidate[], nu: number, mu: number, sp
   // c in m s⁻¹ with ν̃ in cm⁻¹: (c/100)² too small by 10⁴. ν̃ in m⁻¹ with c in cm s⁻¹: 10⁴ too big.
   out.push({ code: 'speed-of-light-in-m-per-s', valueSI: k * 1e-4 });
   out.push({ code: 'per-metre-per-centimetre-confusion', valueSI: k * 1e4 });
-  if (alternativeNu !== undefined && alternativeNu > 0) out.push({ code: alternativeCode, valueSI: forceConstantFromBand(alternativeNu, mu) });
+  if (alternativeNu !== undefined && alternativeNu > 0)
+    out.push({ code: alternativeCode, valueSI: forceConstantFromBand(alternativeNu, mu) });
   // k ∝ c²·u (μ in kg from μ in u); h does not enter.
   pushRoundedConstants(out, k, (cf, hf, uf) => (hf === 1 ? cf * cf * uf : NaN));
 }
@@ -238,7 +371,8 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
   const BeSwapped = x.B0 !== undefined && x.B1 !== undefined ? (3 * x.B1 - x.B0) / 2 : undefined;
   switch (key) {
     case 'reducedMass':
-      for (const v of massVariants(x.species)) if (v.code !== 'unified-mass-not-converted') out.push({ code: v.code, valueSI: v.muKg, detail: v.detail });
+      for (const v of massVariants(x.species))
+        if (v.code !== 'unified-mass-not-converted') out.push({ code: v.code, valueSI: v.muKg, detail: v.detail });
       pushRoundedMasses(out, x.species);
       break;
     case 'forceConstant':
@@ -246,7 +380,8 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
       break;
     case 'forceConstantE':
       if (x.omegaE !== undefined) pushForceConstantSlips(out, x.omegaE, mu, x.species, x.nu0, 'band-centre-instead-of-omega-e');
-      if (x.nu0 !== undefined && x.omegaExe !== undefined) out.push({ code: 'anharmonicity-not-halved', valueSI: forceConstantFromBand(x.nu0 + 4 * x.omegaExe, mu) });
+      if (x.nu0 !== undefined && x.omegaExe !== undefined)
+        out.push({ code: 'anharmonicity-not-halved', valueSI: forceConstantFromBand(x.nu0 + 4 * x.omegaExe, mu) });
       break;
     case 'bandCentre': {
       const f = x.misnumberedFit?.();
@@ -280,7 +415,8 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
       {
         const f = x.misnumberedFit?.();
         if (f && f.Be > 0) out.push({ code: 'r-branch-numbered-from-j', valueSI: bondLengthFromB(f.Be, mu) });
-        if (x.asLabelledFit && x.asLabelledFit.Be > 0) out.push({ code: 'p-branch-numbered-from-j-plus-1', valueSI: bondLengthFromB(x.asLabelledFit.Be, mu) });
+        if (x.asLabelledFit && x.asLabelledFit.Be > 0)
+          out.push({ code: 'p-branch-numbered-from-j-plus-1', valueSI: bondLengthFromB(x.asLabelledFit.Be, mu) });
       }
       break;
     case 'r0':
@@ -289,7 +425,8 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
       {
         const f = x.misnumberedFit?.();
         if (f && f.B0 > 0) out.push({ code: 'r-branch-numbered-from-j', valueSI: bondLengthFromB(f.B0, mu) });
-        if (x.asLabelledFit && x.asLabelledFit.B0 > 0) out.push({ code: 'p-branch-numbered-from-j-plus-1', valueSI: bondLengthFromB(x.asLabelledFit.B0, mu) });
+        if (x.asLabelledFit && x.asLabelledFit.B0 > 0)
+          out.push({ code: 'p-branch-numbered-from-j-plus-1', valueSI: bondLengthFromB(x.asLabelledFit.B0, mu) });
       }
       break;
     case 'omegaE':
@@ -313,7 +450,8 @@ export function slipCandidates(key: QuantityKey, x: SlipInputs): SlipCandidate[]
         return hc * (key === 'zeroPointEnergy' ? zpe : key === 'dissociationEnergy' ? De : De - zpe);
       };
       pushPerMetre(out, energy(x.omegaE, x.omegaExe));
-      if (key === 'dissociationEnergy0') out.push({ code: 'zero-point-energy-omitted', valueSI: hc * ((x.omegaE * x.omegaE) / (4 * x.omegaExe)) });
+      if (key === 'dissociationEnergy0')
+        out.push({ code: 'zero-point-energy-omitted', valueSI: hc * ((x.omegaE * x.omegaE) / (4 * x.omegaExe)) });
       // ωₑxₑ left undivided, with ωₑ taken from the student's ωₑ or redone from it.
       out.push({ code: 'anharmonicity-not-halved', valueSI: energy(x.omegaE, 2 * x.omegaExe) });
       if (x.nu0 !== undefined) {
@@ -375,7 +513,10 @@ function reproduces(reported: number, candidate: number, expected: number, windo
   const toCandidate = Math.abs(reported - candidate);
   const toExpected = Math.abs(reported - expected);
   if (!(toCandidate < toExpected)) return false;
-  const allowance = Math.max(window * Math.abs(candidate), Math.min(MIN_SLIP_WINDOW * Math.abs(candidate), 0.5 * Math.abs(candidate - expected)));
+  const allowance = Math.max(
+    window * Math.abs(candidate),
+    Math.min(MIN_SLIP_WINDOW * Math.abs(candidate), 0.5 * Math.abs(candidate - expected)),
+  );
   return toCandidate <= allowance;
 }
 
@@ -438,7 +579,9 @@ function unitMismatch(d: DiagnoseInput): string | undefined {
     const conv = toSI(d.reportedValue, def.display, dim);
     if (!conv.ok) continue;
     if (close(conv.valueSI, d.expectedSI, Math.max(d.window, MIN_SLIP_WINDOW))) {
-      return missing ? `the number is right in ${def.display}, but no unit was given` : `the number is right in ${def.display || 'no unit'}, not in ${d.reportedUnit}`;
+      return missing
+        ? `the number is right in ${def.display}, but no unit was given`
+        : `the number is right in ${def.display || 'no unit'}, not in ${d.reportedUnit}`;
     }
   }
   return undefined;

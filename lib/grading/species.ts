@@ -36,7 +36,18 @@ export function reducedMass(m1: number, m2: number): number {
   return (m1 * m2) / (m1 + m2);
 }
 
-const SUP_DIGITS: Record<string, string> = { '⁰': '0', '¹': '1', '²': '2', '³': '3', '⁴': '4', '⁵': '5', '⁶': '6', '⁷': '7', '⁸': '8', '⁹': '9' };
+const SUP_DIGITS: Record<string, string> = {
+  '⁰': '0',
+  '¹': '1',
+  '²': '2',
+  '³': '3',
+  '⁴': '4',
+  '⁵': '5',
+  '⁶': '6',
+  '⁷': '7',
+  '⁸': '8',
+  '⁹': '9',
+};
 
 interface Token {
   symbol: string;
@@ -46,7 +57,11 @@ interface Token {
 }
 
 function tokenize(text: string): Token[] | string {
-  let s = text.normalize('NFC').replace(/[⁰¹²³⁴⁵⁶⁷⁸⁹]/g, (ch) => `^${SUP_DIGITS[ch]}`).replace(/₂/g, '2').replace(/\^+/g, '');
+  let s = text
+    .normalize('NFC')
+    .replace(/[⁰¹²³⁴⁵⁶⁷⁸⁹]/g, (ch) => `^${SUP_DIGITS[ch]}`)
+    .replace(/₂/g, '2')
+    .replace(/\^+/g, '');
   s = s.replace(/[\s\-–—,;:/()[\]{}·]+/g, ' ').trim();
   const re = /(\d+)?([A-Z][a-z]?)(\d+)?/y;
   const tokens: Token[] = [];
@@ -152,7 +167,10 @@ function parseSpeciesUncached(input: unknown): ParseSpeciesResult {
       }
     }
     if (atoms.length !== 2) {
-      return { ok: false, message: `"${text}" is not a diatomic molecule (Oscillab marks two-atom molecules such as HCl, DCl, HBr or CO).` };
+      return {
+        ok: false,
+        message: `"${text}" is not a diatomic molecule (Oscillab marks two-atom molecules such as HCl, DCl, HBr or CO).`,
+      };
     }
     return { ok: true, species: speciesFromAtoms(atoms[0], atoms[1]) };
   } catch {
@@ -165,12 +183,14 @@ function fromAtomList(list: unknown[]): ParseSpeciesResult {
   const atoms: Atom[] = [];
   for (const raw of list) {
     const a = raw as { symbol?: unknown; massNumber?: unknown; massU?: unknown };
-    if (typeof a?.symbol !== 'string' || !isKnownElement(a.symbol)) return { ok: false, message: `"${String(a?.symbol)}" is not a chemical element.` };
+    if (typeof a?.symbol !== 'string' || !isKnownElement(a.symbol))
+      return { ok: false, message: `"${String(a?.symbol)}" is not a chemical element.` };
     if (a.massU !== undefined) {
       if (typeof a.massU !== 'number' || !Number.isFinite(a.massU) || a.massU <= 0) {
         return { ok: false, message: `The mass of ${a.symbol} must be a positive number of u.` };
       }
-      const mn = typeof a.massNumber === 'number' && Number.isInteger(a.massNumber) && a.massNumber > 0 ? a.massNumber : Math.round(a.massU);
+      const mn =
+        typeof a.massNumber === 'number' && Number.isInteger(a.massNumber) && a.massNumber > 0 ? a.massNumber : Math.round(a.massU);
       atoms.push({ symbol: a.symbol, massNumber: mn, massU: a.massU, source: 'given with the submission' });
       continue;
     }

@@ -45,7 +45,12 @@ export interface JudgeOptions {
   roundingSI?: number;
 }
 
-function halfWidthOf(band: ToleranceBand | undefined, expectedSI: number, absFactor: number, sigmaSI: number | undefined): { width: number; set: boolean; needsSigma: boolean } {
+function halfWidthOf(
+  band: ToleranceBand | undefined,
+  expectedSI: number,
+  absFactor: number,
+  sigmaSI: number | undefined,
+): { width: number; set: boolean; needsSigma: boolean } {
   if (!band) return { width: 0, set: false, needsSigma: false };
   let width = 0;
   let set = false;
@@ -86,20 +91,34 @@ function notChecked(reportedSI: number, expectedSI: number, reason: string): Jud
 
 export function judge(reportedSI: number, expectedSI: number, tolerance: Tolerance | undefined, opts: JudgeOptions = {}): Judgement {
   if (typeof reportedSI !== 'number' || typeof expectedSI !== 'number' || !Number.isFinite(reportedSI) || !Number.isFinite(expectedSI)) {
-    return { verdict: 'not-checked', deviation: 0, relativeDeviation: 0, halfWidth: 0, partialHalfWidth: 0, reason: 'No finite value to compare.' };
+    return {
+      verdict: 'not-checked',
+      deviation: 0,
+      relativeDeviation: 0,
+      halfWidth: 0,
+      partialHalfWidth: 0,
+      reason: 'No finite value to compare.',
+    };
   }
   if (!tolerance || typeof tolerance !== 'object') return notChecked(reportedSI, expectedSI, 'No tolerance band is set for this quantity.');
   let absFactor = 1;
   if (tolerance.unit !== undefined && tolerance.unit !== '') {
     const dim = opts.dimension ?? lookupUnit(tolerance.unit)?.dimension;
     const conv = dim ? toSI(1, tolerance.unit, dim) : undefined;
-    if (!conv || !conv.ok || conv.unit.kind !== 'linear') return notChecked(reportedSI, expectedSI, `The tolerance unit "${tolerance.unit}" cannot be used for this quantity.`);
+    if (!conv || !conv.ok || conv.unit.kind !== 'linear')
+      return notChecked(reportedSI, expectedSI, `The tolerance unit "${tolerance.unit}" cannot be used for this quantity.`);
     absFactor = conv.valueSI;
   }
   const inner = halfWidthOf(tolerance, expectedSI, absFactor, opts.uncertaintySI);
   const outer = halfWidthOf(tolerance.partial, expectedSI, absFactor, opts.uncertaintySI);
   if (!inner.set && !outer.set) {
-    return notChecked(reportedSI, expectedSI, inner.needsSigma || outer.needsSigma ? 'The band is set in standard uncertainties, but no uncertainty is known.' : 'No tolerance band is set for this quantity.');
+    return notChecked(
+      reportedSI,
+      expectedSI,
+      inner.needsSigma || outer.needsSigma
+        ? 'The band is set in standard uncertainties, but no uncertainty is known.'
+        : 'No tolerance band is set for this quantity.',
+    );
   }
   const rounding = opts.roundingSI !== undefined && Number.isFinite(opts.roundingSI) ? Math.abs(opts.roundingSI) : 0;
   const deviation = reportedSI - expectedSI;

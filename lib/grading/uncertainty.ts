@@ -29,7 +29,18 @@ export interface TypedNumber {
 export type ParseNumberResult = ({ ok: true } & TypedNumber) | { ok: false; message: string };
 
 const SUP: Record<string, string> = {
-  '⁰': '0', '¹': '1', '²': '2', '³': '3', '⁴': '4', '⁵': '5', '⁶': '6', '⁷': '7', '⁸': '8', '⁹': '9', '⁻': '-', '⁺': '+',
+  '⁰': '0',
+  '¹': '1',
+  '²': '2',
+  '³': '3',
+  '⁴': '4',
+  '⁵': '5',
+  '⁶': '6',
+  '⁷': '7',
+  '⁸': '8',
+  '⁹': '9',
+  '⁻': '-',
+  '⁺': '+',
 };
 
 interface Mantissa {
@@ -113,7 +124,8 @@ function badDigitSpacing(text: string): string | undefined {
     const ok = fractional
       ? groups.slice(0, -1).every((g) => g.length === 3) && groups[groups.length - 1].length <= 3
       : groups[0].length <= 3 && groups.slice(1).every((g) => g.length === 3);
-    if (!ok) return `"${text}" has digits separated by spaces; type the number without spaces (digits may be grouped in threes, as in 2 885.98).`;
+    if (!ok)
+      return `"${text}" has digits separated by spaces; type the number without spaces (digits may be grouped in threes, as in 2 885.98).`;
   }
   return undefined;
 }
@@ -199,7 +211,8 @@ function leadingPower(x: number): number {
  * count as far down as the uncertainty's leading digit and no further than the units.
  */
 export function effectiveLastDigitPower(typed: TypedNumber, uncertainty?: number): number {
-  if (typed.ambiguousZeros === 0 || !(uncertainty !== undefined && uncertainty > 0 && Number.isFinite(uncertainty))) return typed.lastDigitPower;
+  if (typed.ambiguousZeros === 0 || !(uncertainty !== undefined && uncertainty > 0 && Number.isFinite(uncertainty)))
+    return typed.lastDigitPower;
   const lowest = typed.lastDigitPower - typed.ambiguousZeros;
   return Math.min(typed.lastDigitPower, Math.max(lowest, leadingPower(uncertainty)));
 }

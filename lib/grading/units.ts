@@ -45,7 +45,11 @@ function add(spellings: string[], ...defs: UnitDefinition[]) {
 }
 
 // Wavenumber (and energy expressed as a wavenumber, E = hc ν̃)
-add(['cm-1', '/cm', '1/cm', 'percm', 'kayser', 'wavenumber', 'wavenumbers'], lin('cm⁻¹', 'wavenumber', 100), lin('cm⁻¹', 'energy', 100 * hc));
+add(
+  ['cm-1', '/cm', '1/cm', 'percm', 'kayser', 'wavenumber', 'wavenumbers'],
+  lin('cm⁻¹', 'wavenumber', 100),
+  lin('cm⁻¹', 'energy', 100 * hc),
+);
 add(['m-1', '/m', '1/m'], lin('m⁻¹', 'wavenumber', 1), lin('m⁻¹', 'energy', hc));
 // Frequencies for a wavenumber: ν̃ = ν / c; for an energy E = hν.
 add(['Hz', 's-1', '/s', '1/s'], lin('Hz', 'wavenumber', 1 / c), lin('Hz', 'energy', h));
@@ -97,10 +101,19 @@ add(['kcal/mol', 'kcalmol-1'], lin('kcal mol⁻¹', 'energy', 4184 * perMole));
 add(['', '1', '-', 'none', 'dimensionless'], lin('', 'ratio', 1));
 add(['%'], lin('%', 'ratio', 0.01));
 
-
-
 const SUPERSCRIPTS: Record<string, string> = {
-  '⁰': '0', '¹': '1', '²': '2', '³': '3', '⁴': '4', '⁵': '5', '⁶': '6', '⁷': '7', '⁸': '8', '⁹': '9', '⁻': '-', '⁺': '+',
+  '⁰': '0',
+  '¹': '1',
+  '²': '2',
+  '³': '3',
+  '⁴': '4',
+  '⁵': '5',
+  '⁶': '6',
+  '⁷': '7',
+  '⁸': '8',
+  '⁹': '9',
+  '⁻': '-',
+  '⁺': '+',
 };
 
 const squashCache = new Map<string, string>();
@@ -237,7 +250,10 @@ export function toSI(value: number, unit: string, dimension: Dimension): ToSIRes
     const ambiguous = ambiguousUnitMessage(unit);
     if (ambiguous) return { ok: false, message: ambiguous };
     if (other) {
-      return { ok: false, message: `"${unit}" is a unit of ${other.dimension === 'forceConstant' ? 'force constant' : other.dimension}, but this quantity is ${describe(dimension)}.` };
+      return {
+        ok: false,
+        message: `"${unit}" is a unit of ${other.dimension === 'forceConstant' ? 'force constant' : other.dimension}, but this quantity is ${describe(dimension)}.`,
+      };
     }
     return { ok: false, message: `Unknown unit "${unit}"; expected ${describe(dimension)}.` };
   }
@@ -252,7 +268,7 @@ export function toSI(value: number, unit: string, dimension: Dimension): ToSIRes
 export function uncertaintyToSI(sigma: number, value: number, def: UnitDefinition): number {
   if (def.kind === 'linear') return Math.abs(sigma * def.factor);
   const lambda = value / def.factor; // m
-  return Math.abs((sigma / def.factor) / (lambda * lambda));
+  return Math.abs(sigma / def.factor / (lambda * lambda));
 }
 
 export type FromSIResult = { ok: true; value: number; unit: string } | { ok: false; message: string };
@@ -269,7 +285,18 @@ export function fromSI(valueSI: number, unit: string, dimension?: Dimension): Fr
 }
 
 const TO_SUPERSCRIPT: Record<string, string> = {
-  '0': '⁰', '1': '¹', '2': '²', '3': '³', '4': '⁴', '5': '⁵', '6': '⁶', '7': '⁷', '8': '⁸', '9': '⁹', '-': '⁻', '+': '⁺',
+  '0': '⁰',
+  '1': '¹',
+  '2': '²',
+  '3': '³',
+  '4': '⁴',
+  '5': '⁵',
+  '6': '⁶',
+  '7': '⁷',
+  '8': '⁸',
+  '9': '⁹',
+  '-': '⁻',
+  '+': '⁺',
 };
 
 const toSuperscriptChar = (ch: string) => TO_SUPERSCRIPT[ch] ?? ch;
@@ -283,10 +310,8 @@ export function formatUnit(unit: string): string {
   if (typeof unit !== 'string') return '';
   const def = lookupUnit(unit);
   if (def && squashUnit(unit) !== '') return def.display;
-  return unit
-    .trim()
-    .replace(/\^?\(?(-?\d+)\)?/g, (m, exp: string, offset: number, whole: string) => {
-      const prev = whole[offset - 1];
-      return prev && /[A-Za-zÅµ]/.test(prev) ? superscript(exp) : m;
-    });
+  return unit.trim().replace(/\^?\(?(-?\d+)\)?/g, (m, exp: string, offset: number, whole: string) => {
+    const prev = whole[offset - 1];
+    return prev && /[A-Za-zÅµ]/.test(prev) ? superscript(exp) : m;
+  });
 }

@@ -23,7 +23,11 @@ export async function resolveBands(quantityDefinitionIds: number[], cohortId: nu
       cohortId: cohortId === null ? { [Op.is]: null } : { [Op.or]: [{ [Op.is]: null }, { [Op.eq]: cohortId }] },
     },
   });
-  return pickBands(rows.map((r) => r.get({ plain: true }) as ResolvedBand), cohortId, out);
+  return pickBands(
+    rows.map((r) => r.get({ plain: true }) as ResolvedBand),
+    cohortId,
+    out,
+  );
 }
 
 /** The pure part of resolveBands (also used by the live preview on already loaded rows). */
@@ -40,7 +44,8 @@ export function pickBands(rows: ResolvedBand[], cohortId: number | null, out: Re
 
 /** A stored band in the grading engine's Tolerance shape (inner band full marks, outer band partial credit). */
 export function toleranceFor(band: BandLike): Tolerance {
-  const width = (value: number) => (band.kind === 'absolute' ? { absolute: value } : band.kind === 'relative' ? { relative: value } : { sigma: value });
+  const width = (value: number) =>
+    band.kind === 'absolute' ? { absolute: value } : band.kind === 'relative' ? { relative: value } : { sigma: value };
   const tolerance: Tolerance = { ...width(band.inner) };
   if (band.kind === 'absolute' && band.unit) tolerance.unit = band.unit;
   if (band.outer !== null && band.outer !== undefined) tolerance.partial = width(band.outer);
@@ -50,7 +55,11 @@ export function toleranceFor(band: BandLike): Tolerance {
 /** How a band reads to people: "± 2 cm⁻¹ (partial credit to ± 5 cm⁻¹)". */
 export function describeBand(band: BandLike, formatUnit: (u: string) => string = (u) => u): string {
   const one = (v: number) =>
-    band.kind === 'absolute' ? `± ${v} ${formatUnit(band.unit ?? '')}`.trim() : band.kind === 'relative' ? `± ${+(v * 100).toPrecision(6)} %` : `± ${v} σ`;
+    band.kind === 'absolute'
+      ? `± ${v} ${formatUnit(band.unit ?? '')}`.trim()
+      : band.kind === 'relative'
+        ? `± ${+(v * 100).toPrecision(6)} %`
+        : `± ${v} σ`;
   return band.outer != null ? `${one(band.inner)} (partial credit to ${one(band.outer)})` : one(band.inner);
 }
 

@@ -27,17 +27,36 @@ export async function managedCourses(actor: Actor) {
   const courses = await Course.findAll({ where: actor.isAdmin ? {} : { id: ids.length ? ids : [0] }, order: [['code', 'ASC']] });
   const courseIds = courses.map((c) => c.id);
   const [cohorts, practicals] = await Promise.all([
-    Cohort.findAll({ where: { courseId: courseIds }, order: [['term', 'DESC'], ['name', 'ASC']] }),
+    Cohort.findAll({
+      where: { courseId: courseIds },
+      order: [
+        ['term', 'DESC'],
+        ['name', 'ASC'],
+      ],
+    }),
     Practical.findAll({ where: { courseId: courseIds }, order: [['id', 'ASC']] }),
   ]);
   const deadlines = await PracticalCohort.findAll({ where: { practicalId: practicals.map((p) => p.id) } });
   return courses.map((c) => ({
-    id: c.id, code: c.code, title: c.title, archived: c.archivedAt !== null,
-    cohorts: cohorts.filter((h) => h.courseId === c.id).map((h) => ({ id: h.id, name: h.name, term: h.term, instrument: h.instrument, archived: h.archivedAt !== null })),
-    practicals: practicals.filter((p) => p.courseId === c.id).map((p) => ({
-      id: p.id, title: p.title, species: p.species, mode: p.mode, archived: p.archivedAt !== null,
-      deadlines: deadlines.filter((d) => d.practicalId === p.id).map((d) => ({ cohortId: d.cohortId, deadline: d.deadline.toISOString() })),
-    })),
+    id: c.id,
+    code: c.code,
+    title: c.title,
+    archived: c.archivedAt !== null,
+    cohorts: cohorts
+      .filter((h) => h.courseId === c.id)
+      .map((h) => ({ id: h.id, name: h.name, term: h.term, instrument: h.instrument, archived: h.archivedAt !== null })),
+    practicals: practicals
+      .filter((p) => p.courseId === c.id)
+      .map((p) => ({
+        id: p.id,
+        title: p.title,
+        species: p.species,
+        mode: p.mode,
+        archived: p.archivedAt !== null,
+        deadlines: deadlines
+          .filter((d) => d.practicalId === p.id)
+          .map((d) => ({ cohortId: d.cohortId, deadline: d.deadline.toISOString() })),
+      })),
   }));
 }
 
@@ -47,8 +66,14 @@ export async function createCohort(courseId: number, data: z.output<typeof cohor
     if (await Cohort.findOne({ where: { courseId, name: data.name, term: data.term }, transaction })) {
       throw new HttpError(409, `There is already a cohort "${data.name}" in ${data.term}.`, { name: ['Already exists in this term.'] });
     }
-    const cohort = await Cohort.create({ courseId, name: data.name, term: data.term, instrument: data.instrument || null, archivedAt: null }, { transaction });
-    await audit({ actorId, action: 'cohort.create', entityType: 'cohort', entityId: cohort.id, after: cohort.get({ plain: true }) }, transaction);
+    const cohort = await Cohort.create(
+      { courseId, name: data.name, term: data.term, instrument: data.instrument || null, archivedAt: null },
+      { transaction },
+    );
+    await audit(
+      { actorId, action: 'cohort.create', entityType: 'cohort', entityId: cohort.id, after: cohort.get({ plain: true }) },
+      transaction,
+    );
     return cohort;
   });
 }
@@ -61,18 +86,25 @@ export async function updateCohort(cohortId: number, courseId: number, data: z.o
     const before = { ...cohort.get({ plain: true }) };
     const name = data.name ?? cohort.name;
     const term = data.term ?? cohort.term;
-    if ((name !== cohort.name || term !== cohort.term) && (await Cohort.findOne({ where: { courseId, name, term, id: { [Op.ne]: cohort.id } }, transaction }))) {
+    if (
+      (name !== cohort.name || term !== cohort.term) &&
+      (await Cohort.findOne({ where: { courseId, name, term, id: { [Op.ne]: cohort.id } }, transaction }))
+    ) {
       throw new HttpError(409, `There is already a cohort "${name}" in ${term}.`, { name: ['Already exists in this term.'] });
     }
     await cohort.update(
       {
-        name, term,
+        name,
+        term,
         ...(data.instrument !== undefined ? { instrument: data.instrument || null } : {}),
         ...(data.archived !== undefined ? { archivedAt: data.archived ? (cohort.archivedAt ?? new Date()) : null } : {}),
       },
       { transaction },
     );
-    await audit({ actorId, action: 'cohort.update', entityType: 'cohort', entityId: cohort.id, before, after: cohort.get({ plain: true }) }, transaction);
+    await audit(
+      { actorId, action: 'cohort.update', entityType: 'cohort', entityId: cohort.id, before, after: cohort.get({ plain: true }) },
+      transaction,
+    );
     return cohort;
   });
 }
@@ -83,13 +115,28 @@ export type CoursePeople = Serialized<Awaited<ReturnType<typeof coursePeople>>>;
 /** Everyone in the course with their roles, cohort and TA duties. */
 export async function coursePeople(courseId: number) {
   const { CourseMembership, User, TaAssignment, Cohort } = models();
-  const memberships = await CourseMembership.findAll({ where: { courseId }, include: [{ model: User, attributes: ['id', 'name', 'email', 'studentNumber', 'passwordHash'] }], order: [['id', 'ASC']] });
+  const memberships = await CourseMembership.findAll({
+    where: { courseId },
+    include: [{ model: User, attributes: ['id', 'name', 'email', 'studentNumber', 'passwordHash'] }],
+    order: [['id', 'ASC']],
+  });
   const cohorts = await Cohort.findAll({ where: { courseId }, attributes: ['id'] });
   const duties = await TaAssignment.findAll({ where: { cohortId: cohorts.map((c) => c.id) }, order: [['id', 'ASC']] });
   return {
     people: memberships.map((m) => {
-      const u = (m as unknown as { User: { id: number; name: string; email: string; studentNumber: string | null; passwordHash: string | null } }).User;
-      return { membershipId: m.id, userId: u.id, name: u.name, email: u.email, studentNumber: u.studentNumber, role: m.role, cohortId: m.cohortId, invited: !u.passwordHash };
+      const u = (
+        m as unknown as { User: { id: number; name: string; email: string; studentNumber: string | null; passwordHash: string | null } }
+      ).User;
+      return {
+        membershipId: m.id,
+        userId: u.id,
+        name: u.name,
+        email: u.email,
+        studentNumber: u.studentNumber,
+        role: m.role,
+        cohortId: m.cohortId,
+        invited: !u.passwordHash,
+      };
     }),
     duties: duties.map((d) => ({ id: d.id, cohortId: d.cohortId, taId: d.taId, studentId: d.studentId })),
   };
@@ -108,8 +155,14 @@ export async function addStaff(courseId: number, data: z.output<typeof staffAddS
     let user = await User.findOne({ where: { email: data.email }, transaction });
     let invited = false;
     if (!user) {
-      if (!data.name) throw new HttpError(400, 'No account has this e-mail yet: give the person’s name so an invitation can be sent.', { name: ['Required for a new account.'] });
-      user = await User.create({ email: data.email, name: data.name, passwordHash: null, isAdmin: false, studentNumber: null }, { transaction });
+      if (!data.name)
+        throw new HttpError(400, 'No account has this e-mail yet: give the person’s name so an invitation can be sent.', {
+          name: ['Required for a new account.'],
+        });
+      user = await User.create(
+        { email: data.email, name: data.name, passwordHash: null, isAdmin: false, studentNumber: null },
+        { transaction },
+      );
     }
     const memberships = await CourseMembership.findAll({ where: { courseId, userId: user.id }, transaction });
     if (memberships.some((m) => m.role === 'student')) throw new HttpError(409, 'This person is a student of this course.');
@@ -119,7 +172,10 @@ export async function addStaff(courseId: number, data: z.output<typeof staffAddS
       await inviteUser(user, { courseTitle: `${course.code} ${course.title}`, role: data.role }, transaction);
       invited = true;
     }
-    await audit({ actorId, action: 'staff.add', entityType: 'course_membership', entityId: m.id, after: { userId: user.id, role: data.role } }, transaction);
+    await audit(
+      { actorId, action: 'staff.add', entityType: 'course_membership', entityId: m.id, after: { userId: user.id, role: data.role } },
+      transaction,
+    );
     return { user, created: true, invited };
   });
 }
@@ -131,7 +187,10 @@ export async function removeMembership(courseId: number, membershipId: number, a
     if (!m) throw new HttpError(404, 'No such member of this course.');
     if (m.userId === actorId && m.role !== 'student' && m.role !== 'ta') throw new HttpError(400, 'You cannot remove your own role here.');
     await m.destroy({ transaction });
-    await audit({ actorId, action: 'membership.remove', entityType: 'course_membership', entityId: m.id, before: m.get({ plain: true }) }, transaction);
+    await audit(
+      { actorId, action: 'membership.remove', entityType: 'course_membership', entityId: m.id, before: m.get({ plain: true }) },
+      transaction,
+    );
   });
 }
 
@@ -146,8 +205,12 @@ export async function assignTa(courseId: number, data: z.output<typeof taAssignm
     }
     const ids = [...new Set(data.studentIds)];
     if (ids.length) {
-      const enrolled = await CourseMembership.count({ where: { courseId, role: 'student', cohortId: cohort.id, userId: ids }, transaction });
-      if (enrolled !== ids.length) throw new HttpError(400, 'Every named student must be enrolled in that cohort.', { studentIds: ['Not all in this cohort.'] });
+      const enrolled = await CourseMembership.count({
+        where: { courseId, role: 'student', cohortId: cohort.id, userId: ids },
+        transaction,
+      });
+      if (enrolled !== ids.length)
+        throw new HttpError(400, 'Every named student must be enrolled in that cohort.', { studentIds: ['Not all in this cohort.'] });
     }
     const created = [];
     for (const studentId of ids.length ? ids : [null]) {
@@ -156,7 +219,16 @@ export async function assignTa(courseId: number, data: z.output<typeof taAssignm
       const row = await TaAssignment.create({ cohortId: cohort.id, taId: data.taId, studentId }, { transaction });
       created.push(row);
     }
-    await audit({ actorId, action: 'ta.assign', entityType: 'cohort', entityId: cohort.id, after: { taId: data.taId, studentIds: ids, created: created.length } }, transaction);
+    await audit(
+      {
+        actorId,
+        action: 'ta.assign',
+        entityType: 'cohort',
+        entityId: cohort.id,
+        after: { taId: data.taId, studentIds: ids, created: created.length },
+      },
+      transaction,
+    );
     return created;
   });
 }
@@ -168,6 +240,9 @@ export async function unassignTa(courseId: number, assignmentId: number, actorId
     const cohort = row && (await Cohort.findByPk(row.cohortId, { transaction }));
     if (!row || !cohort || cohort.courseId !== courseId) throw new HttpError(404, 'No such TA assignment in this course.');
     await row.destroy({ transaction });
-    await audit({ actorId, action: 'ta.unassign', entityType: 'ta_assignment', entityId: row.id, before: row.get({ plain: true }) }, transaction);
+    await audit(
+      { actorId, action: 'ta.unassign', entityType: 'ta_assignment', entityId: row.id, before: row.get({ plain: true }) },
+      transaction,
+    );
   });
 }

@@ -11,7 +11,12 @@ import { appOrigin, issueLink, linkState, setPasswordWithLink, type LinkState } 
 
 export const INVITATION_DAYS = 7;
 
-const ROLE_WORDS: Record<string, string> = { student: 'a student', ta: 'a teaching assistant', instructor: 'an instructor', lead: 'course lead' };
+const ROLE_WORDS: Record<string, string> = {
+  student: 'a student',
+  ta: 'a teaching assistant',
+  instructor: 'an instructor',
+  lead: 'course lead',
+};
 
 /** Create a token and queue the invitation e-mail, in the caller's transaction. Returns the token (for tests). */
 export async function inviteUser(
@@ -47,7 +52,14 @@ export const invitationState = (token: string, now = new Date()) => linkState(to
 
 /** Use the token once: set the password. A second use, an expired or unknown token is refused with 400/410. */
 export function acceptInvitation(token: string, password: string, now = new Date()): Promise<{ email: string }> {
-  return setPasswordWithLink(token, 'invitation', password, MESSAGES, async (user, transaction) => {
-    await audit({ actorId: user.id, action: 'invitation.accept', entityType: 'user', entityId: user.id }, transaction);
-  }, now);
+  return setPasswordWithLink(
+    token,
+    'invitation',
+    password,
+    MESSAGES,
+    async (user, transaction) => {
+      await audit({ actorId: user.id, action: 'invitation.accept', entityType: 'user', entityId: user.id }, transaction);
+    },
+    now,
+  );
 }

@@ -11,8 +11,32 @@ import crypto from 'node:crypto';
 import { instructionsProblem, MATH } from '@/lib/schemas/instructions';
 
 const MATHML = [
-  'math', 'semantics', 'annotation', 'mrow', 'mi', 'mo', 'mn', 'ms', 'mtext', 'mspace', 'msup', 'msub', 'msubsup', 'mfrac',
-  'msqrt', 'mroot', 'mover', 'munder', 'munderover', 'mtable', 'mtr', 'mtd', 'mstyle', 'mpadded', 'mphantom', 'menclose',
+  'math',
+  'semantics',
+  'annotation',
+  'mrow',
+  'mi',
+  'mo',
+  'mn',
+  'ms',
+  'mtext',
+  'mspace',
+  'msup',
+  'msub',
+  'msubsup',
+  'mfrac',
+  'msqrt',
+  'mroot',
+  'mover',
+  'munder',
+  'munderover',
+  'mtable',
+  'mtr',
+  'mtd',
+  'mstyle',
+  'mpadded',
+  'mphantom',
+  'menclose',
 ];
 const LENGTH = /^-?[\d.]+(em|ex|px|%)?$/;
 
@@ -43,9 +67,20 @@ const SANITIZE: sanitizeHtml.IOptions = {
   allowedSchemesByTag: { img: ['https', 'data'] },
   allowedStyles: {
     '*': {
-      height: [LENGTH], 'vertical-align': [LENGTH], 'margin-right': [LENGTH], 'margin-left': [LENGTH], top: [LENGTH],
-      'min-width': [LENGTH], width: [LENGTH], 'border-bottom-width': [LENGTH], 'padding-left': [LENGTH], left: [LENGTH],
-      'border-right-width': [LENGTH], 'border-top-width': [LENGTH], bottom: [LENGTH], 'margin-top': [LENGTH],
+      height: [LENGTH],
+      'vertical-align': [LENGTH],
+      'margin-right': [LENGTH],
+      'margin-left': [LENGTH],
+      top: [LENGTH],
+      'min-width': [LENGTH],
+      width: [LENGTH],
+      'border-bottom-width': [LENGTH],
+      'padding-left': [LENGTH],
+      left: [LENGTH],
+      'border-right-width': [LENGTH],
+      'border-top-width': [LENGTH],
+      bottom: [LENGTH],
+      'margin-top': [LENGTH],
       position: [/^(relative|absolute)$/],
     },
   },
@@ -62,7 +97,15 @@ function notice(message: string): string {
 
 function renderFormula(tex: string, displayMode: boolean): string {
   try {
-    return katex.renderToString(tex, { displayMode, throwOnError: false, strict: 'ignore', trust: false, maxSize: 50, maxExpand: 500, output: 'htmlAndMathml' });
+    return katex.renderToString(tex, {
+      displayMode,
+      throwOnError: false,
+      strict: 'ignore',
+      trust: false,
+      maxSize: 50,
+      maxExpand: 500,
+      output: 'htmlAndMathml',
+    });
   } catch {
     // throwOnError covers syntax; anything else (a renderer limit) still must not fail the page.
     return `<code class="render-problem" title="This formula could not be typeset">${escapeHtml(tex)}</code>`;

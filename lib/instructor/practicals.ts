@@ -10,7 +10,23 @@ import type { Practical } from '@/models/practical';
 import type { QuantityDefinition } from '@/models/quantity-definition';
 import { HttpError } from '@/lib/http-error';
 import { audit } from '@/lib/audit';
-import { QUANTITIES, CONSISTENCY_KIND, DEFAULT_CONSISTENCY_WORDS, FLOATING_POINT_ALLOWANCE, fromSI, judge, marksFor, parseSpecies, parseTypedNumber, referenceValues, roundingHalfWidth, toSI, formatUnit, type QuantityKey, type Verdict } from '@/lib/grading';
+import {
+  QUANTITIES,
+  CONSISTENCY_KIND,
+  DEFAULT_CONSISTENCY_WORDS,
+  FLOATING_POINT_ALLOWANCE,
+  fromSI,
+  judge,
+  marksFor,
+  parseSpecies,
+  parseTypedNumber,
+  referenceValues,
+  roundingHalfWidth,
+  toSI,
+  formatUnit,
+  type QuantityKey,
+  type Verdict,
+} from '@/lib/grading';
 import type { PracticalData, copySchema, bandSchema, previewSchema, quantitySchema } from '@/lib/schemas/instructor';
 import type { z } from 'zod';
 import { recheckPractical } from '@/lib/submissions/recheck';
@@ -37,7 +53,8 @@ async function courseCohortIds(courseId: number, transaction?: Transaction): Pro
 async function assertCohortsOfCourse(courseId: number, ids: number[], transaction?: Transaction) {
   const own = await courseCohortIds(courseId, transaction);
   const foreign = ids.filter((id) => !own.has(id));
-  if (foreign.length) throw new HttpError(400, 'A cohort given is not a cohort of this course.', { cohortId: ['Not a cohort of this course.'] });
+  if (foreign.length)
+    throw new HttpError(400, 'A cohort given is not a cohort of this course.', { cohortId: ['Not a cohort of this course.'] });
 }
 
 function practicalFields(data: PracticalData) {
@@ -57,21 +74,35 @@ function practicalFields(data: PracticalData) {
 
 async function setDeadlines(practical: Practical, deadlines: PracticalData['deadlines'], transaction: Transaction) {
   const { PracticalCohort } = models();
-  await assertCohortsOfCourse(practical.courseId, deadlines.map((d) => d.cohortId), transaction);
+  await assertCohortsOfCourse(
+    practical.courseId,
+    deadlines.map((d) => d.cohortId),
+    transaction,
+  );
   const keep = deadlines.map((d) => d.cohortId);
   await PracticalCohort.destroy({ where: { practicalId: practical.id, cohortId: { [Op.notIn]: keep.length ? keep : [0] } }, transaction });
   for (const d of deadlines) {
     const row = await PracticalCohort.findOne({ where: { practicalId: practical.id, cohortId: d.cohortId }, transaction });
     if (row) await row.update({ deadline: new Date(d.deadline) }, { transaction });
-    else await PracticalCohort.create({ practicalId: practical.id, cohortId: d.cohortId, opensAt: null, deadline: new Date(d.deadline) }, { transaction });
+    else
+      await PracticalCohort.create(
+        { practicalId: practical.id, cohortId: d.cohortId, opensAt: null, deadline: new Date(d.deadline) },
+        { transaction },
+      );
   }
 }
 
 export async function createPractical(courseId: number, data: PracticalData, actorId: number): Promise<Practical> {
   return sequelize().transaction(async (transaction) => {
-    const practical = await models().Practical.create({ courseId, ...practicalFields(data), copiedFromId: null, archivedAt: null }, { transaction });
+    const practical = await models().Practical.create(
+      { courseId, ...practicalFields(data), copiedFromId: null, archivedAt: null },
+      { transaction },
+    );
     await setDeadlines(practical, data.deadlines, transaction);
-    await audit({ actorId, action: 'practical.create', entityType: 'practical', entityId: practical.id, after: practicalFields(data) }, transaction);
+    await audit(
+      { actorId, action: 'practical.create', entityType: 'practical', entityId: practical.id, after: practicalFields(data) },
+      transaction,
+    );
     return practical;
   });
 }
@@ -81,11 +112,20 @@ export async function updatePractical(practical: Practical, data: PracticalData,
     const before = { ...practical.get({ plain: true }) };
     const fields = practicalFields(data);
     const { QuantityDefinition } = models();
-    const orphaned = await QuantityDefinition.count({ where: { practicalId: practical.id, species: { [Op.notIn]: fields.species } }, transaction });
-    if (orphaned) throw new HttpError(400, 'Some quantities are defined for an isotopologue you removed; delete those quantities first.', { species: ['Still used by quantities.'] });
+    const orphaned = await QuantityDefinition.count({
+      where: { practicalId: practical.id, species: { [Op.notIn]: fields.species } },
+      transaction,
+    });
+    if (orphaned)
+      throw new HttpError(400, 'Some quantities are defined for an isotopologue you removed; delete those quantities first.', {
+        species: ['Still used by quantities.'],
+      });
     await practical.update(fields, { transaction });
     await setDeadlines(practical, data.deadlines, transaction);
-    await audit({ actorId, action: 'practical.update', entityType: 'practical', entityId: practical.id, before, after: fields }, transaction);
+    await audit(
+      { actorId, action: 'practical.update', entityType: 'practical', entityId: practical.id, before, after: fields },
+      transaction,
+    );
     return practical;
   });
 }
@@ -95,7 +135,9 @@ type QuantityData = z.output<typeof quantitySchema>;
 function quantityFields(practical: Practical, data: QuantityData) {
   const species = formulaOf(data.species);
   if (!practical.species.includes(species)) {
-    throw new HttpError(400, `${species} is not one of this practical's isotopologues (${practical.species.join(', ')}).`, { species: ['Not in this practical.'] });
+    throw new HttpError(400, `${species} is not one of this practical's isotopologues (${practical.species.join(', ')}).`, {
+      species: ['Not in this practical.'],
+    });
   }
   const info = QUANTITIES[data.key as QuantityKey];
   const unit = data.unit || info.displayUnit;
@@ -104,11 +146,14 @@ function quantityFields(practical: Practical, data: QuantityData) {
   }
   let referenceValueSI: number | null = null;
   if (data.referenceKind === 'department') {
-    const si = info.dimension === 'ratio' ? { ok: true as const, valueSI: data.referenceValue! } : toSI(data.referenceValue!, unit, info.dimension);
+    const si =
+      info.dimension === 'ratio' ? { ok: true as const, valueSI: data.referenceValue! } : toSI(data.referenceValue!, unit, info.dimension);
     if (!si.ok) throw new HttpError(400, si.message, { referenceValue: [si.message] });
     referenceValueSI = si.valueSI;
   } else if (!referenceValues(species)[data.key as QuantityKey]) {
-    throw new HttpError(400, `No literature value of ${info.label} for ${species} is known; give the department's value with a note.`, { referenceKind: ['No literature value.'] });
+    throw new HttpError(400, `No literature value of ${info.label} for ${species} is known; give the department's value with a note.`, {
+      referenceKind: ['No literature value.'],
+    });
   }
   return {
     key: data.key,
@@ -141,7 +186,10 @@ export async function updateQuantity(practical: Practical, quantity: QuantityDef
   return sequelize().transaction(async (transaction) => {
     const before = { ...quantity.get({ plain: true }) };
     await quantity.update({ ...fields, ...(data.position !== undefined ? { position: data.position } : {}) }, { transaction });
-    await audit({ actorId, action: 'quantity.update', entityType: 'quantity_definition', entityId: quantity.id, before, after: fields }, transaction);
+    await audit(
+      { actorId, action: 'quantity.update', entityType: 'quantity_definition', entityId: quantity.id, before, after: fields },
+      transaction,
+    );
     return quantity;
   });
 }
@@ -150,7 +198,16 @@ export async function deleteQuantity(quantity: QuantityDefinition, actorId: numb
   await sequelize().transaction(async (transaction) => {
     await models().ToleranceBand.destroy({ where: { quantityDefinitionId: quantity.id }, transaction });
     await quantity.destroy({ transaction });
-    await audit({ actorId, action: 'quantity.delete', entityType: 'quantity_definition', entityId: quantity.id, before: quantity.get({ plain: true }) }, transaction);
+    await audit(
+      {
+        actorId,
+        action: 'quantity.delete',
+        entityType: 'quantity_definition',
+        entityId: quantity.id,
+        before: quantity.get({ plain: true }),
+      },
+      transaction,
+    );
   });
 }
 
@@ -172,18 +229,33 @@ export function submittedCount(practicalId: number, transaction?: Transaction) {
 async function recheckAfterChange(practicalId: number, actorId: number, count: number): Promise<{ rechecked: number | null }> {
   try {
     const { rechecked } = await recheckPractical(practicalId);
-    await audit({ actorId, action: 'practical.recheck', entityType: 'practical', entityId: practicalId, after: { submissions: count, rechecked } });
+    await audit({
+      actorId,
+      action: 'practical.recheck',
+      entityType: 'practical',
+      entityId: practicalId,
+      after: { submissions: count, rechecked },
+    });
     return { rechecked };
   } catch (error) {
     log().error({ err: error, practicalId }, 're-check after a band change failed');
-    await audit({ actorId, action: 'practical.recheck-pending', entityType: 'practical', entityId: practicalId, after: { submissions: count, error: String(error).slice(0, 300) } });
+    await audit({
+      actorId,
+      action: 'practical.recheck-pending',
+      entityType: 'practical',
+      entityId: practicalId,
+      after: { submissions: count, error: String(error).slice(0, 300) },
+    });
     return { rechecked: null };
   }
 }
 
 export class NeedsRecheckDecision extends HttpError {
   constructor(public submissions: number) {
-    super(409, `${submissions} submission(s) of this practical were checked with the current band. Say whether to re-check them with the new band.`);
+    super(
+      409,
+      `${submissions} submission(s) of this practical were checked with the current band. Say whether to re-check them with the new band.`,
+    );
   }
 }
 
@@ -194,7 +266,8 @@ function bandFields(quantity: QuantityDefinition, data: BandData) {
   let unit: string | null = null;
   if (data.kind === 'absolute') {
     unit = data.unit!.trim();
-    if (info.dimension !== 'ratio' && !toSI(1, unit, info.dimension).ok) throw new HttpError(400, `"${unit}" is not a unit for ${info.label}.`, { unit: ['Not a unit for this quantity.'] });
+    if (info.dimension !== 'ratio' && !toSI(1, unit, info.dimension).ok)
+      throw new HttpError(400, `"${unit}" is not a unit for ${info.label}.`, { unit: ['Not a unit for this quantity.'] });
   }
   if (data.kind === 'relative' && (data.inner >= 1 || (data.outer ?? 0) >= 1)) {
     throw new HttpError(400, 'A relative band is a fraction: 0.01 means 1 %.', { inner: ['Give a fraction below 1 (0.01 = 1 %).'] });
@@ -221,14 +294,26 @@ export async function saveBand(practical: Practical, data: BandData, actorId: nu
     const before = existing ? { ...existing.get({ plain: true }) } : null;
     let row;
     if (existing) row = await existing.update({ ...fields, updatedById: actorId }, { transaction });
-    else row = await ToleranceBand.create({ quantityDefinitionId: quantity.id, cohortId: data.cohortId, basis: data.basis, ...fields, updatedById: actorId }, { transaction });
+    else
+      row = await ToleranceBand.create(
+        { quantityDefinitionId: quantity.id, cohortId: data.cohortId, basis: data.basis, ...fields, updatedById: actorId },
+        { transaction },
+      );
     await audit(
-      { actorId, action: existing ? 'band.update' : 'band.create', entityType: 'tolerance_band', entityId: row.id, before, after: { ...row.get({ plain: true }), recheck: data.recheck ?? null, submissions: count } },
+      {
+        actorId,
+        action: existing ? 'band.update' : 'band.create',
+        entityType: 'tolerance_band',
+        entityId: row.id,
+        before,
+        after: { ...row.get({ plain: true }), recheck: data.recheck ?? null, submissions: count },
+      },
       transaction,
     );
     return { band: row, submissions: count };
   });
-  const recheck = result.submissions > 0 && data.recheck ? await recheckAfterChange(practical.id, actorId, result.submissions) : { rechecked: null };
+  const recheck =
+    result.submissions > 0 && data.recheck ? await recheckAfterChange(practical.id, actorId, result.submissions) : { rechecked: null };
   return { ...result, ...recheck };
 }
 
@@ -241,22 +326,40 @@ export async function deleteBand(practical: Practical, bandId: number, recheck: 
     const count = await submittedCount(practical.id, transaction);
     if (count > 0 && recheck === undefined) throw new NeedsRecheckDecision(count);
     await band.destroy({ transaction });
-    await audit({ actorId, action: 'band.delete', entityType: 'tolerance_band', entityId: band.id, before: band.get({ plain: true }), after: { recheck: recheck ?? null, submissions: count } }, transaction);
+    await audit(
+      {
+        actorId,
+        action: 'band.delete',
+        entityType: 'tolerance_band',
+        entityId: band.id,
+        before: band.get({ plain: true }),
+        after: { recheck: recheck ?? null, submissions: count },
+      },
+      transaction,
+    );
     return { submissions: count };
   });
-  const done = result.submissions > 0 && recheck ? await recheckAfterChange(practical.id, actorId, result.submissions) : { rechecked: null };
+  const done =
+    result.submissions > 0 && recheck ? await recheckAfterChange(practical.id, actorId, result.submissions) : { rechecked: null };
   return { ...result, ...done };
 }
 
 /** The reference value a quantity is judged against, SI, with where it comes from. */
-export function referenceFor(quantity: Pick<QuantityDefinition, 'key' | 'species' | 'referenceKind' | 'referenceValueSI' | 'referenceNote' | 'unit'>) {
+export function referenceFor(
+  quantity: Pick<QuantityDefinition, 'key' | 'species' | 'referenceKind' | 'referenceValueSI' | 'referenceNote' | 'unit'>,
+) {
   const info = QUANTITIES[quantity.key as QuantityKey];
   const shown = (si: number) => {
     const r = info.dimension === 'ratio' ? { ok: true as const, value: si, unit: '' } : fromSI(si, quantity.unit, info.dimension);
     return r.ok ? { value: r.value, unit: formatUnit(r.unit) } : { value: si, unit: info.siUnit };
   };
   if (quantity.referenceKind === 'department' && quantity.referenceValueSI !== null) {
-    return { kind: 'department' as const, valueSI: quantity.referenceValueSI, ...shown(quantity.referenceValueSI), source: quantity.referenceNote ?? 'department value' };
+    return {
+      kind: 'department' as const,
+      valueSI: quantity.referenceValueSI,
+      ...shown(quantity.referenceValueSI),
+      source: quantity.referenceNote ?? 'department value',
+    };
   }
   const lit = referenceValues(quantity.species)[quantity.key as QuantityKey];
   if (!lit) return null;
@@ -264,50 +367,111 @@ export function referenceFor(quantity: Pick<QuantityDefinition, 'key' | 'species
 }
 
 type PreviewData = z.output<typeof previewSchema>;
-export type BasisPreview = { basis: 'consistency' | 'accuracy'; verdict: Verdict; marks: number; maxMarks: number; band: string | null; bandFrom: 'cohort' | 'course' | null; deviation: number | null; reason?: string; expected: number | null };
+export type BasisPreview = {
+  basis: 'consistency' | 'accuracy';
+  verdict: Verdict;
+  marks: number;
+  maxMarks: number;
+  band: string | null;
+  bandFrom: 'cohort' | 'course' | null;
+  deviation: number | null;
+  reason?: string;
+  expected: number | null;
+};
 
 /** What a typed value would get: the verdict and marks for each basis, with the bands that apply to the cohort. */
 export async function previewVerdict(practical: Practical, data: PreviewData) {
   const quantity = await quantityOf(practical, data.quantityDefinitionId);
   if (data.cohortId !== null) await assertCohortsOfCourse(practical.courseId, [data.cohortId]);
   const info = QUANTITIES[quantity.key as QuantityKey];
-  const toSi = (v: number) => (info.dimension === 'ratio' ? { ok: true as const, valueSI: v } : toSI(v, data.unit || quantity.unit, info.dimension));
+  const toSi = (v: number) =>
+    info.dimension === 'ratio' ? { ok: true as const, valueSI: v } : toSI(v, data.unit || quantity.unit, info.dimension);
   const reported = toSi(data.value);
   if (!reported.ok) throw new HttpError(400, reported.message, { unit: [reported.message] });
-  const rows = (await models().ToleranceBand.findAll({ where: { quantityDefinitionId: quantity.id } })).map((r) => r.get({ plain: true }) as ResolvedBand);
+  const rows = (await models().ToleranceBand.findAll({ where: { quantityDefinitionId: quantity.id } })).map(
+    (r) => r.get({ plain: true }) as ResolvedBand,
+  );
   const bands = pickBands(rows, data.cohortId).get(quantity.id) ?? {};
   const reference = referenceFor(quantity);
-  const uncertaintySI = data.uncertainty != null ? Math.abs((toSi(data.value + data.uncertainty) as { valueSI: number }).valueSI - reported.valueSI) : undefined;
+  const uncertaintySI =
+    data.uncertainty != null
+      ? Math.abs((toSi(data.value + data.uncertainty) as { valueSI: number }).valueSI - reported.valueSI)
+      : undefined;
   const shown = (si: number) => (info.dimension === 'ratio' ? si : (fromSI(si, quantity.unit, info.dimension) as { value: number }).value);
 
   const one = (basis: 'consistency' | 'accuracy', expectedSI: number | null): BasisPreview => {
     const band = bands[basis];
     const maxMarks = quantity.marks * BASIS_SHARE[basis];
     if (expectedSI === null) {
-      return { basis, verdict: 'not-checked', marks: 0, maxMarks, band: band ? describeBand(band, formatUnit) : null, bandFrom: band ? (band.cohortId ? 'cohort' : 'course') : null, deviation: null, expected: null,
-        reason: basis === 'consistency' ? 'Type the value the engine would recompute from the student’s data to see the consistency verdict.' : 'No reference value is known for this quantity.' };
+      return {
+        basis,
+        verdict: 'not-checked',
+        marks: 0,
+        maxMarks,
+        band: band ? describeBand(band, formatUnit) : null,
+        bandFrom: band ? (band.cohortId ? 'cohort' : 'course') : null,
+        deviation: null,
+        expected: null,
+        reason:
+          basis === 'consistency'
+            ? 'Type the value the engine would recompute from the student’s data to see the consistency verdict.'
+            : 'No reference value is known for this quantity.',
+      };
     }
     const kind = CONSISTENCY_KIND[quantity.key as QuantityKey];
     if (basis === 'consistency' && !band && kind === 'fitted') {
-      return { basis, verdict: 'not-checked', marks: 0, maxMarks, band: DEFAULT_CONSISTENCY_WORDS.fitted, bandFrom: null, deviation: null, expected: shown(expectedSI),
-        reason: 'By default a fitted quantity is judged with the standard errors of the student’s own fit, which need their line list.' };
+      return {
+        basis,
+        verdict: 'not-checked',
+        marks: 0,
+        maxMarks,
+        band: DEFAULT_CONSISTENCY_WORDS.fitted,
+        bandFrom: null,
+        deviation: null,
+        expected: shown(expectedSI),
+        reason: 'By default a fitted quantity is judged with the standard errors of the student’s own fit, which need their line list.',
+      };
     }
     // Without a band of the instructor's, consistency is judged to the digits typed (the default for arithmetic).
     const typedDigits = parseTypedNumber(String(data.value));
-    const rounding = typedDigits.ok ? roundingHalfWidth(typedDigits, data.uncertainty ?? undefined) * Math.abs(reported.valueSI / (data.value || 1)) : 0;
-    const j = basis === 'consistency' && !band
-      ? judge(reported.valueSI, expectedSI, { absolute: 0 }, { dimension: info.dimension, roundingSI: Math.min(rounding, uncertaintySI ?? Infinity) + FLOATING_POINT_ALLOWANCE * Math.abs(expectedSI) })
-      : judge(reported.valueSI, expectedSI, band ? toleranceFor(band) : undefined, { dimension: info.dimension, uncertaintySI });
+    const rounding = typedDigits.ok
+      ? roundingHalfWidth(typedDigits, data.uncertainty ?? undefined) * Math.abs(reported.valueSI / (data.value || 1))
+      : 0;
+    const j =
+      basis === 'consistency' && !band
+        ? judge(
+            reported.valueSI,
+            expectedSI,
+            { absolute: 0 },
+            {
+              dimension: info.dimension,
+              roundingSI: Math.min(rounding, uncertaintySI ?? Infinity) + FLOATING_POINT_ALLOWANCE * Math.abs(expectedSI),
+            },
+          )
+        : judge(reported.valueSI, expectedSI, band ? toleranceFor(band) : undefined, { dimension: info.dimension, uncertaintySI });
     return {
-      basis, verdict: j.verdict, marks: marksFor(j.verdict, maxMarks), maxMarks,
-      band: band ? describeBand(band, formatUnit) : basis === 'consistency' ? DEFAULT_CONSISTENCY_WORDS.arithmetic : null, bandFrom: band ? (band.cohortId ? 'cohort' : 'course') : null,
-      deviation: j.verdict === 'not-checked' ? null : shown(reported.valueSI) - shown(expectedSI), reason: j.reason, expected: shown(expectedSI),
+      basis,
+      verdict: j.verdict,
+      marks: marksFor(j.verdict, maxMarks),
+      maxMarks,
+      band: band ? describeBand(band, formatUnit) : basis === 'consistency' ? DEFAULT_CONSISTENCY_WORDS.arithmetic : null,
+      bandFrom: band ? (band.cohortId ? 'cohort' : 'course') : null,
+      deviation: j.verdict === 'not-checked' ? null : shown(reported.valueSI) - shown(expectedSI),
+      reason: j.reason,
+      expected: shown(expectedSI),
     };
   };
   const recomputed = data.recomputed != null ? toSi(data.recomputed) : null;
   if (recomputed && !recomputed.ok) throw new HttpError(400, recomputed.message);
   return {
-    quantity: { id: quantity.id, key: quantity.key, label: info.label, species: quantity.species, unit: formatUnit(quantity.unit), marks: quantity.marks },
+    quantity: {
+      id: quantity.id,
+      key: quantity.key,
+      label: info.label,
+      species: quantity.species,
+      unit: formatUnit(quantity.unit),
+      marks: quantity.marks,
+    },
     reference,
     results: [one('consistency', recomputed ? recomputed.valueSI : null), one('accuracy', reference?.valueSI ?? null)],
   };
@@ -324,10 +488,21 @@ export async function copyPractical(source: Practical, data: CopyData, actorId: 
     const plain = source.get({ plain: true });
     const copy = await P.create(
       {
-        courseId: source.courseId, title: data.title, species: plain.species, instructions: plain.instructions, hazardNotes: plain.hazardNotes,
-        mode: plain.mode, maxAttempts: plain.maxAttempts, lateRule: plain.lateRule, latePenaltyPerDay: plain.latePenaltyPerDay,
-        latePenaltyCap: plain.latePenaltyCap, rubric: plain.rubric, spectrumSamples: plain.spectrumSamples ?? null, spectrumAnalysis: plain.spectrumAnalysis ?? false,
-        copiedFromId: source.id, archivedAt: null,
+        courseId: source.courseId,
+        title: data.title,
+        species: plain.species,
+        instructions: plain.instructions,
+        hazardNotes: plain.hazardNotes,
+        mode: plain.mode,
+        maxAttempts: plain.maxAttempts,
+        lateRule: plain.lateRule,
+        latePenaltyPerDay: plain.latePenaltyPerDay,
+        latePenaltyCap: plain.latePenaltyCap,
+        rubric: plain.rubric,
+        spectrumSamples: plain.spectrumSamples ?? null,
+        spectrumAnalysis: plain.spectrumAnalysis ?? false,
+        copiedFromId: source.id,
+        archivedAt: null,
       },
       { transaction },
     );
@@ -349,16 +524,38 @@ export async function copyPractical(source: Practical, data: CopyData, actorId: 
           cohortId = mapped;
         }
         // Two old cohorts mapped onto one new cohort: the first override wins.
-        if (await ToleranceBand.findOne({ where: { quantityDefinitionId: nq.id, basis: b.basis, cohortId: cohortId ?? { [Op.is]: null } }, transaction })) continue;
+        if (
+          await ToleranceBand.findOne({
+            where: { quantityDefinitionId: nq.id, basis: b.basis, cohortId: cohortId ?? { [Op.is]: null } },
+            transaction,
+          })
+        )
+          continue;
         await ToleranceBand.create(
-          { quantityDefinitionId: nq.id, cohortId, basis: b.basis, kind: b.kind, inner: b.inner, outer: b.outer, unit: b.unit, updatedById: actorId },
+          {
+            quantityDefinitionId: nq.id,
+            cohortId,
+            basis: b.basis,
+            kind: b.kind,
+            inner: b.inner,
+            outer: b.outer,
+            unit: b.unit,
+            updatedById: actorId,
+          },
           { transaction },
         );
         bandsCopied++;
       }
     }
     await audit(
-      { actorId, action: 'practical.copy', entityType: 'practical', entityId: copy.id, before: { from: source.id }, after: { quantities: quantities.length, bandsCopied, overridesDropped, cohortMap: data.cohortMap } },
+      {
+        actorId,
+        action: 'practical.copy',
+        entityType: 'practical',
+        entityId: copy.id,
+        before: { from: source.id },
+        after: { quantities: quantities.length, bandsCopied, overridesDropped, cohortMap: data.cohortMap },
+      },
       transaction,
     );
     return copy;
@@ -377,8 +574,20 @@ export async function practicalDetail(practical: Practical) {
   const { PracticalCohort, QuantityDefinition, ToleranceBand, Cohort } = models();
   const [deadlines, quantities, cohorts, submissions] = await Promise.all([
     PracticalCohort.findAll({ where: { practicalId: practical.id }, order: [['deadline', 'ASC']] }),
-    QuantityDefinition.findAll({ where: { practicalId: practical.id }, order: [['position', 'ASC'], ['id', 'ASC']] }),
-    Cohort.findAll({ where: { courseId: practical.courseId }, order: [['term', 'DESC'], ['name', 'ASC']] }),
+    QuantityDefinition.findAll({
+      where: { practicalId: practical.id },
+      order: [
+        ['position', 'ASC'],
+        ['id', 'ASC'],
+      ],
+    }),
+    Cohort.findAll({
+      where: { courseId: practical.courseId },
+      order: [
+        ['term', 'DESC'],
+        ['name', 'ASC'],
+      ],
+    }),
     submittedCount(practical.id),
   ]);
   const bands = await ToleranceBand.findAll({ where: { quantityDefinitionId: quantities.map((q) => q.id) }, order: [['id', 'ASC']] });
@@ -397,7 +606,9 @@ export async function practicalDetail(practical: Practical) {
         reference: referenceFor(q),
         /** The consistency band that applies where the instructor sets none, in words. */
         consistencyDefault: info ? DEFAULT_CONSISTENCY_WORDS[CONSISTENCY_KIND[q.key as QuantityKey]] : null,
-        bands: bands.filter((b) => b.quantityDefinitionId === q.id).map((b) => ({ ...b.get({ plain: true }), text: describeBand(b, formatUnit) })),
+        bands: bands
+          .filter((b) => b.quantityDefinitionId === q.id)
+          .map((b) => ({ ...b.get({ plain: true }), text: describeBand(b, formatUnit) })),
       };
     }),
   };

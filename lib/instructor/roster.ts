@@ -30,7 +30,13 @@ const COLUMNS = {
 } as const;
 type Field = keyof typeof COLUMNS;
 const REQUIRED: Field[] = ['name', 'email', 'studentNumber'];
-const FIELD_NAME: Record<Field, string> = { name: 'name', email: 'e-mail', studentNumber: 'student number', cohort: 'cohort', term: 'term' };
+const FIELD_NAME: Record<Field, string> = {
+  name: 'name',
+  email: 'e-mail',
+  studentNumber: 'student number',
+  cohort: 'cohort',
+  term: 'term',
+};
 const squash = (h: string) => h.toLowerCase().replace(/[\s_-]+/g, '');
 
 export type RowStatus = 'new' | 'enrolled' | 'invalid';
@@ -74,7 +80,8 @@ export function neutraliseCell(value: string): { value: string; changed: boolean
 /** Bytes → text, refusing what is too big or not UTF-8. */
 export function decodeRoster(bytes: Uint8Array): string {
   if (bytes.byteLength === 0) throw new HttpError(400, 'The file is empty.');
-  if (bytes.byteLength > MAX_ROSTER_BYTES) throw new HttpError(413, `The file is larger than 1 MB (${(bytes.byteLength / 1e6).toFixed(1)} MB); split the roster.`);
+  if (bytes.byteLength > MAX_ROSTER_BYTES)
+    throw new HttpError(413, `The file is larger than 1 MB (${(bytes.byteLength / 1e6).toFixed(1)} MB); split the roster.`);
   let text: string;
   try {
     text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
@@ -110,7 +117,8 @@ export function parseRosterCsv(text: string): ParsedRow[] {
   }
   const rows = data.slice(1);
   if (rows.length === 0) throw new HttpError(400, 'The file has a header but no students.');
-  if (rows.length > MAX_ROSTER_ROWS) throw new HttpError(400, `At most ${MAX_ROSTER_ROWS} students per file (this one has ${rows.length}).`);
+  if (rows.length > MAX_ROSTER_ROWS)
+    throw new HttpError(400, `At most ${MAX_ROSTER_ROWS} students per file (this one has ${rows.length}).`);
   return rows.map((cells, i) => {
     const notes: string[] = [];
     const out = {} as Record<Field, string>;
@@ -135,18 +143,35 @@ const label = (c: { name: string; term: string }) => `${c.name} (${c.term})`;
 async function targetCohort(courseId: number, id: number | null | undefined, transaction?: Transaction) {
   if (id === null || id === undefined) return null;
   const cohort = await models().Cohort.findOne({ where: { id, courseId, archivedAt: null }, transaction });
-  if (!cohort) throw new HttpError(400, 'The chosen cohort is not an open cohort of this course.', { cohortId: ['Choose an open cohort of this course.'] });
+  if (!cohort)
+    throw new HttpError(400, 'The chosen cohort is not an open cohort of this course.', {
+      cohortId: ['Choose an open cohort of this course.'],
+    });
   return cohort;
 }
 
 /** Classify every row against the course as it is now (inside `transaction` when importing). */
-export async function previewRoster(courseId: number, parsed: ParsedRow[], options: RosterOptions = {}, transaction?: Transaction): Promise<RosterPreview> {
+export async function previewRoster(
+  courseId: number,
+  parsed: ParsedRow[],
+  options: RosterOptions = {},
+  transaction?: Transaction,
+): Promise<RosterPreview> {
   const { Cohort, User, CourseMembership } = models();
   const target = await targetCohort(courseId, options.targetCohortId, transaction);
   if (!target && parsed.length && !parsed[0].hasCohortColumn) {
-    throw new HttpError(400, 'The file has no cohort column: choose the cohort to import into, or add a cohort column.', { cohortId: ['Choose a cohort.'] });
+    throw new HttpError(400, 'The file has no cohort column: choose the cohort to import into, or add a cohort column.', {
+      cohortId: ['Choose a cohort.'],
+    });
   }
-  const cohorts = await Cohort.findAll({ where: { courseId, archivedAt: null }, order: [['term', 'DESC'], ['name', 'ASC']], transaction });
+  const cohorts = await Cohort.findAll({
+    where: { courseId, archivedAt: null },
+    order: [
+      ['term', 'DESC'],
+      ['name', 'ASC'],
+    ],
+    transaction,
+  });
   const emails = [...new Set(parsed.map((r) => r.cells.email.toLowerCase()).filter(Boolean))];
   const numbers = [...new Set(parsed.map((r) => r.cells.studentNumber).filter(Boolean))];
   const users = await User.findAll({ where: { [Op.or]: [{ email: emails }, { studentNumber: numbers }] }, transaction });
@@ -154,7 +179,8 @@ export async function previewRoster(courseId: number, parsed: ParsedRow[], optio
   // The preview tells the course only about its own people: whether an address has an account
   // elsewhere, and that account's student number, are not the course's to know.
   const inCourse = new Set(memberships.map((m) => m.userId));
-  const MISMATCH = 'The e-mail and student number do not match the records held for this student; check both against the student record, or ask the site administrator.';
+  const MISMATCH =
+    'The e-mail and student number do not match the records held for this student; check both against the student record, or ask the site administrator.';
 
   const seen = new Map<string, number>();
   const seenNumber = new Map<string, number>();
@@ -163,7 +189,11 @@ export async function previewRoster(courseId: number, parsed: ParsedRow[], optio
     if (e) seen.set(e, (seen.get(e) ?? 0) + 1);
     if (r.cells.studentNumber) seenNumber.set(r.cells.studentNumber, (seenNumber.get(r.cells.studentNumber) ?? 0) + 1);
   }
-  const linesOf = (pick: (r: ParsedRow) => string, v: string) => parsed.filter((r) => pick(r) === v).map((r) => r.line).join(', ');
+  const linesOf = (pick: (r: ParsedRow) => string, v: string) =>
+    parsed
+      .filter((r) => pick(r) === v)
+      .map((r) => r.line)
+      .join(', ');
   const same = (a: string, b: string) => a.trim().toLowerCase() === b.trim().toLowerCase();
 
   const rows = parsed.map((r): RosterRow => {
@@ -174,16 +204,22 @@ export async function previewRoster(courseId: number, parsed: ParsedRow[], optio
     else if (r.cells.name.length > 200) reasons.push('The name is longer than 200 characters.');
     if (!email) reasons.push('The e-mail is empty.');
     else if (email.length > 254 || !EMAIL.test(email)) reasons.push(`"${r.cells.email.slice(0, 60)}" is not an e-mail address.`);
-    else if ((seen.get(email) ?? 0) > 1) reasons.push(`The e-mail appears more than once in this file (lines ${linesOf((x) => x.cells.email.toLowerCase(), email)}).`);
+    else if ((seen.get(email) ?? 0) > 1)
+      reasons.push(`The e-mail appears more than once in this file (lines ${linesOf((x) => x.cells.email.toLowerCase(), email)}).`);
     if (!r.cells.studentNumber) reasons.push('The student number is empty.');
     else if (r.cells.studentNumber.length > 40) reasons.push('The student number is longer than 40 characters.');
-    else if ((seenNumber.get(r.cells.studentNumber) ?? 0) > 1) reasons.push(`The student number appears more than once in this file (lines ${linesOf((x) => x.cells.studentNumber, r.cells.studentNumber)}).`);
+    else if ((seenNumber.get(r.cells.studentNumber) ?? 0) > 1)
+      reasons.push(
+        `The student number appears more than once in this file (lines ${linesOf((x) => x.cells.studentNumber, r.cells.studentNumber)}).`,
+      );
 
     // --- The cohort: the chosen one, or found by name (and term) among the open cohorts.
     let cohort: (typeof cohorts)[number] | null = null;
     if (target) {
-      if (r.cells.cohort && !same(r.cells.cohort, target.name)) reasons.push(`The file puts this student in "${r.cells.cohort}", but the import is into ${label(target)}.`);
-      if (r.cells.term && !same(r.cells.term, target.term)) reasons.push(`The file gives the term "${r.cells.term}", but the import is into ${label(target)}.`);
+      if (r.cells.cohort && !same(r.cells.cohort, target.name))
+        reasons.push(`The file puts this student in "${r.cells.cohort}", but the import is into ${label(target)}.`);
+      if (r.cells.term && !same(r.cells.term, target.term))
+        reasons.push(`The file gives the term "${r.cells.term}", but the import is into ${label(target)}.`);
       cohort = target;
     } else if (!r.cells.cohort) {
       reasons.push('The cohort is empty (or choose the cohort to import into above the file).');
@@ -191,9 +227,14 @@ export async function previewRoster(courseId: number, parsed: ParsedRow[], optio
       const byName = cohorts.filter((c) => same(c.name, r.cells.cohort));
       const matching = r.cells.term ? byName.filter((c) => same(c.term, r.cells.term)) : byName;
       if (matching.length === 1) cohort = matching[0];
-      else if (byName.length === 0) reasons.push(`No open cohort "${r.cells.cohort}" in this course (there are: ${cohorts.map(label).join(', ') || 'none'}).`);
-      else if (matching.length === 0) reasons.push(`No open cohort "${r.cells.cohort}" in term "${r.cells.term}" (there is ${byName.map(label).join(' and ')}).`);
-      else reasons.push(`Two open cohorts are called "${r.cells.cohort}" (${matching.map((c) => c.term).join(' and ')}): choose the cohort to import into above the file, or add a term column.`);
+      else if (byName.length === 0)
+        reasons.push(`No open cohort "${r.cells.cohort}" in this course (there are: ${cohorts.map(label).join(', ') || 'none'}).`);
+      else if (matching.length === 0)
+        reasons.push(`No open cohort "${r.cells.cohort}" in term "${r.cells.term}" (there is ${byName.map(label).join(' and ')}).`);
+      else
+        reasons.push(
+          `Two open cohorts are called "${r.cells.cohort}" (${matching.map((c) => c.term).join(' and ')}): choose the cohort to import into above the file, or add a term column.`,
+        );
     }
 
     // --- The person against the accounts and the course.
@@ -201,20 +242,32 @@ export async function previewRoster(courseId: number, parsed: ParsedRow[], optio
     const byNumber = r.cells.studentNumber ? users.find((u) => u.studentNumber === r.cells.studentNumber) : undefined;
     // Only people already in this course are described; for anyone else the answer is the same
     // generic sentence, so an instructor cannot learn about accounts outside their course.
-    if (byNumber && byNumber.id !== user?.id) reasons.push(inCourse.has(byNumber.id) ? `Student number ${r.cells.studentNumber} belongs to someone else in this course.` : MISMATCH);
+    if (byNumber && byNumber.id !== user?.id)
+      reasons.push(
+        inCourse.has(byNumber.id) ? `Student number ${r.cells.studentNumber} belongs to someone else in this course.` : MISMATCH,
+      );
     if (user?.studentNumber && r.cells.studentNumber && user.studentNumber !== r.cells.studentNumber) {
-      reasons.push(inCourse.has(user.id) ? `In this course this person has student number ${user.studentNumber}, not ${r.cells.studentNumber}.` : MISMATCH);
+      reasons.push(
+        inCourse.has(user.id)
+          ? `In this course this person has student number ${user.studentNumber}, not ${r.cells.studentNumber}.`
+          : MISMATCH,
+      );
     }
     const mine = user ? memberships.filter((m) => m.userId === user.id) : [];
     if (mine.some((m) => m.role !== 'student')) reasons.push('This person is on the staff of this course.');
     const enrolled = mine.find((m) => m.role === 'student');
     if (enrolled && cohort && enrolled.cohortId !== cohort.id) {
       const other = cohorts.find((c) => c.id === enrolled.cohortId);
-      reasons.push(`Already enrolled in ${other ? label(other) : 'another cohort'}; moving students between cohorts is not done by import.`);
+      reasons.push(
+        `Already enrolled in ${other ? label(other) : 'another cohort'}; moving students between cohorts is not done by import.`,
+      );
     }
 
     const base = {
-      line: r.line, name: r.cells.name, email, studentNumber: r.cells.studentNumber,
+      line: r.line,
+      name: r.cells.name,
+      email,
+      studentNumber: r.cells.studentNumber,
       cohort: cohort ? label(cohort) : [r.cells.cohort, r.cells.term].filter(Boolean).join(', '),
       ...(cohort ? { cohortId: cohort.id } : {}),
       notes: r.notes.length ? r.notes : undefined,
@@ -236,7 +289,12 @@ export async function previewRosterFile(courseId: number, bytes: Uint8Array, opt
 export type RosterImportResult = RosterPreview & { created: number; enrolled: number; invited: number };
 
 /** All or nothing: any invalid row refuses the whole file; already-enrolled rows are left as they are. */
-export async function importRosterFile(courseId: number, bytes: Uint8Array, actorId: number, options: RosterOptions = {}): Promise<RosterImportResult> {
+export async function importRosterFile(
+  courseId: number,
+  bytes: Uint8Array,
+  actorId: number,
+  options: RosterOptions = {},
+): Promise<RosterImportResult> {
   const parsed = parseRosterCsv(decodeRoster(bytes));
   const { User, CourseMembership, Course } = models();
   return sequelize().transaction(async (transaction) => {
@@ -252,7 +310,10 @@ export async function importRosterFile(courseId: number, bytes: Uint8Array, acto
       if (row.status !== 'new') continue;
       let user = await User.findOne({ where: { email: row.email }, transaction });
       if (!user) {
-        user = await User.create({ email: row.email, name: row.name, passwordHash: null, isAdmin: false, studentNumber: row.studentNumber }, { transaction });
+        user = await User.create(
+          { email: row.email, name: row.name, passwordHash: null, isAdmin: false, studentNumber: row.studentNumber },
+          { transaction },
+        );
         created++;
       } else if (!user.studentNumber) {
         await user.update({ studentNumber: row.studentNumber }, { transaction });
@@ -265,7 +326,14 @@ export async function importRosterFile(courseId: number, bytes: Uint8Array, acto
       }
     }
     await audit(
-      { actorId, action: 'roster.import', entityType: 'course', entityId: courseId, before: null, after: { created, enrolled, invited, unchanged: preview.counts.enrolled, cohortId: preview.target?.id ?? null } },
+      {
+        actorId,
+        action: 'roster.import',
+        entityType: 'course',
+        entityId: courseId,
+        before: null,
+        after: { created, enrolled, invited, unchanged: preview.counts.enrolled, cohortId: preview.target?.id ?? null },
+      },
       transaction,
     );
     return { ...preview, created, enrolled, invited };
@@ -275,7 +343,8 @@ export async function importRosterFile(courseId: number, bytes: Uint8Array, acto
 /** Read a roster upload: the raw file as the body (text/csv), bounded before it is read whole. */
 export async function readRosterBody(request: Request): Promise<Uint8Array> {
   const declared = Number(request.headers.get('content-length') ?? 0);
-  if (declared > MAX_ROSTER_BYTES) throw new HttpError(413, `The file is larger than 1 MB (${(declared / 1e6).toFixed(1)} MB); split the roster.`);
+  if (declared > MAX_ROSTER_BYTES)
+    throw new HttpError(413, `The file is larger than 1 MB (${(declared / 1e6).toFixed(1)} MB); split the roster.`);
   if (!request.body) throw new HttpError(400, 'The file is empty.');
   const reader = request.body.getReader();
   const chunks: Uint8Array[] = [];

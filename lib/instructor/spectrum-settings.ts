@@ -34,22 +34,31 @@ export async function saveSpectrumSettings(practical: Practical, data: SpectrumS
       keys.add(s.key);
       s.molecules.forEach((m, j) => {
         const r = isotopologuesOf(m);
-        if (!r.ok) (fields[`samples.${i}.molecules`] ??= []).push(`Molecule ${j + 1} of spectrum ${i + 1} (${m}) is not one Oscillab can read: ${r.message}`);
+        if (!r.ok)
+          (fields[`samples.${i}.molecules`] ??= []).push(
+            `Molecule ${j + 1} of spectrum ${i + 1} (${m}) is not one Oscillab can read: ${r.message}`,
+          );
       });
     });
     const held = new Set(data.samples.flatMap((s) => s.molecules.map(moleculeOf)));
     const missing = practical.species.filter((sp) => !held.has(moleculeOf(sp)));
-    if (missing.length) (fields.samples ??= []).push(`No spectrum holds ${missing.map(moleculeOf).join(', ')}, which this practical's isotopologues need.`);
+    if (missing.length)
+      (fields.samples ??= []).push(`No spectrum holds ${missing.map(moleculeOf).join(', ')}, which this practical's isotopologues need.`);
   }
   if (Object.keys(fields).length) throw new HttpError(400, Object.values(fields)[0][0], fields);
   const before = { spectrumAnalysis: practical.spectrumAnalysis, spectrumSamples: practical.spectrumSamples ?? null };
   const after = {
     spectrumAnalysis: data.spectrumAnalysis,
-    spectrumSamples: data.samples ? data.samples.map((s) => ({ ...s, molecules: [...new Set(s.molecules)], bands: [...new Set(s.bands)] })) : null,
+    spectrumSamples: data.samples
+      ? data.samples.map((s) => ({ ...s, molecules: [...new Set(s.molecules)], bands: [...new Set(s.bands)] }))
+      : null,
   };
   await sequelize().transaction(async (transaction) => {
     await practical.update(after, { transaction });
-    await audit({ actorId, action: 'practical.spectrum-settings', entityType: 'practical', entityId: practical.id, before, after }, transaction);
+    await audit(
+      { actorId, action: 'practical.spectrum-settings', entityType: 'practical', entityId: practical.id, before, after },
+      transaction,
+    );
   });
   return spectrumSettings(practical);
 }

@@ -18,7 +18,16 @@ export type RegistrationView = {
   keySetUrl: string;
   tokenAudience: string | null;
   active: boolean;
-  contexts: { id: number; contextId: string; title: string | null; courseId: number; courseCode: string; defaultCohortId: number | null; services: { roster: boolean; gradebook: boolean }; rosterSyncedAt: string | null }[];
+  contexts: {
+    id: number;
+    contextId: string;
+    title: string | null;
+    courseId: number;
+    courseCode: string;
+    defaultCohortId: number | null;
+    services: { roster: boolean; gradebook: boolean };
+    rosterSyncedAt: string | null;
+  }[];
 };
 
 export async function listRegistrations(): Promise<RegistrationView[]> {
@@ -30,13 +39,28 @@ export async function listRegistrations(): Promise<RegistrationView[]> {
     Course.findAll({ attributes: ['id', 'code'] }),
   ]);
   return regs.map((r) => ({
-    id: r.id, name: r.name, issuer: r.issuer, clientId: r.clientId, authLoginUrl: r.authLoginUrl, authTokenUrl: r.authTokenUrl,
-    keySetUrl: r.keySetUrl, tokenAudience: r.tokenAudience, active: r.active,
+    id: r.id,
+    name: r.name,
+    issuer: r.issuer,
+    clientId: r.clientId,
+    authLoginUrl: r.authLoginUrl,
+    authTokenUrl: r.authTokenUrl,
+    keySetUrl: r.keySetUrl,
+    tokenAudience: r.tokenAudience,
+    active: r.active,
     deploymentIds: deps.filter((d) => d.registrationId === r.id).map((d) => d.deploymentId),
-    contexts: ctxs.filter((c) => c.registrationId === r.id).map((c) => ({
-      id: c.id, contextId: c.contextId, title: c.title, courseId: c.courseId, courseCode: courses.find((x) => x.id === c.courseId)?.code ?? '?',
-      defaultCohortId: c.defaultCohortId, services: { roster: Boolean(c.membershipsUrl), gradebook: Boolean(c.lineItemsUrl) }, rosterSyncedAt: c.rosterSyncedAt?.toISOString() ?? null,
-    })),
+    contexts: ctxs
+      .filter((c) => c.registrationId === r.id)
+      .map((c) => ({
+        id: c.id,
+        contextId: c.contextId,
+        title: c.title,
+        courseId: c.courseId,
+        courseCode: courses.find((x) => x.id === c.courseId)?.code ?? '?',
+        defaultCohortId: c.defaultCohortId,
+        services: { roster: Boolean(c.membershipsUrl), gradebook: Boolean(c.lineItemsUrl) },
+        rosterSyncedAt: c.rosterSyncedAt?.toISOString() ?? null,
+      })),
   }));
 }
 
@@ -53,11 +77,24 @@ export async function createRegistration(data: z.output<typeof registrationSchem
       throw new HttpError(409, 'This issuer and client id are already registered.');
     }
     const row = await LtiRegistration.create(
-      { name: data.name, issuer: data.issuer, clientId: data.clientId, authLoginUrl: data.authLoginUrl, authTokenUrl: data.authTokenUrl, keySetUrl: data.keySetUrl, tokenAudience: data.tokenAudience || null, active: data.active ?? true },
+      {
+        name: data.name,
+        issuer: data.issuer,
+        clientId: data.clientId,
+        authLoginUrl: data.authLoginUrl,
+        authTokenUrl: data.authTokenUrl,
+        keySetUrl: data.keySetUrl,
+        tokenAudience: data.tokenAudience || null,
+        active: data.active ?? true,
+      },
       { transaction: t },
     );
-    for (const deploymentId of [...new Set(data.deploymentIds)]) await LtiDeployment.create({ registrationId: row.id, deploymentId }, { transaction: t });
-    await audit({ actorId, action: 'lti.registration.create', entityType: 'lti_registration', entityId: row.id, before: null, after: { ...data } }, t);
+    for (const deploymentId of [...new Set(data.deploymentIds)])
+      await LtiDeployment.create({ registrationId: row.id, deploymentId }, { transaction: t });
+    await audit(
+      { actorId, action: 'lti.registration.create', entityType: 'lti_registration', entityId: row.id, before: null, after: { ...data } },
+      t,
+    );
     return row;
   });
 }
@@ -72,7 +109,10 @@ export async function updateRegistration(id: number, data: z.output<typeof regis
     const clash = await LtiRegistration.findOne({ where: { issuer, clientId }, transaction: t });
     if (clash && clash.id !== id) throw new HttpError(409, 'Another registration has this issuer and client id.');
     const { deploymentIds, ...fields } = data;
-    await LtiRegistration.update({ ...fields, ...(fields.tokenAudience !== undefined ? { tokenAudience: fields.tokenAudience || null } : {}) }, { where: { id }, transaction: t });
+    await LtiRegistration.update(
+      { ...fields, ...(fields.tokenAudience !== undefined ? { tokenAudience: fields.tokenAudience || null } : {}) },
+      { where: { id }, transaction: t },
+    );
     if (deploymentIds) {
       const wanted = [...new Set(deploymentIds)];
       await LtiDeployment.destroy({ where: { registrationId: id }, transaction: t });
@@ -87,7 +127,10 @@ export async function deleteRegistration(id: number, actorId: number | null) {
   const row = await registrationOr404(id);
   await sequelize().transaction(async (t) => {
     await row.destroy({ transaction: t });
-    await audit({ actorId, action: 'lti.registration.delete', entityType: 'lti_registration', entityId: id, before: row.toJSON(), after: null }, t);
+    await audit(
+      { actorId, action: 'lti.registration.delete', entityType: 'lti_registration', entityId: id, before: row.toJSON(), after: null },
+      t,
+    );
   });
   forgetPlatformKeys(row.keySetUrl);
 }
@@ -110,10 +153,30 @@ export async function connectContext(data: z.output<typeof contextCreateSchema>,
       throw new HttpError(409, 'This learning-platform course is already connected.');
     }
     const row = await LtiContext.create(
-      { registrationId: data.registrationId, contextId: data.contextId, courseId: course.id, defaultCohortId: data.defaultCohortId ?? null, title: null, membershipsUrl: null, lineItemsUrl: null, agsScopes: null, rosterSyncedAt: null },
+      {
+        registrationId: data.registrationId,
+        contextId: data.contextId,
+        courseId: course.id,
+        defaultCohortId: data.defaultCohortId ?? null,
+        title: null,
+        membershipsUrl: null,
+        lineItemsUrl: null,
+        agsScopes: null,
+        rosterSyncedAt: null,
+      },
       { transaction: t },
     );
-    await audit({ actorId, action: 'lti.context.connect', entityType: 'course', entityId: course.id, before: null, after: { ltiContextId: row.id, ...data } }, t);
+    await audit(
+      {
+        actorId,
+        action: 'lti.context.connect',
+        entityType: 'course',
+        entityId: course.id,
+        before: null,
+        after: { ltiContextId: row.id, ...data },
+      },
+      t,
+    );
     return row;
   });
 }
@@ -130,7 +193,10 @@ export async function setDefaultCohort(id: number, cohortId: number | null, acto
   const before = { defaultCohortId: ctx.defaultCohortId };
   await sequelize().transaction(async (t) => {
     await models().LtiContext.update({ defaultCohortId: cohortId }, { where: { id }, transaction: t });
-    await audit({ actorId, action: 'lti.context.cohort', entityType: 'course', entityId: ctx.courseId, before, after: { defaultCohortId: cohortId } }, t);
+    await audit(
+      { actorId, action: 'lti.context.cohort', entityType: 'course', entityId: ctx.courseId, before, after: { defaultCohortId: cohortId } },
+      t,
+    );
   });
 }
 
@@ -138,6 +204,9 @@ export async function disconnectContext(id: number, actorId: number | null) {
   const ctx = await contextOr404(id);
   await sequelize().transaction(async (t) => {
     await ctx.destroy({ transaction: t });
-    await audit({ actorId, action: 'lti.context.disconnect', entityType: 'course', entityId: ctx.courseId, before: ctx.toJSON(), after: null }, t);
+    await audit(
+      { actorId, action: 'lti.context.disconnect', entityType: 'course', entityId: ctx.courseId, before: ctx.toJSON(), after: null },
+      t,
+    );
   });
 }

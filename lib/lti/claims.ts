@@ -58,7 +58,11 @@ export const ROLE = {
 /** What each platform role (in the launch's own course) becomes in Oscillab; shown in the README and on the admin screen. */
 export const ROLE_MAP: { platform: string; oscillab: CourseRole; note: string }[] = [
   { platform: ROLE.learner, oscillab: 'student', note: 'joins the cohort chosen for students from the learning platform' },
-  { platform: ROLE.teachingAssistant, oscillab: 'ta', note: 'the sub-role wins over Instructor; an instructor then assigns what they mark' },
+  {
+    platform: ROLE.teachingAssistant,
+    oscillab: 'ta',
+    note: 'the sub-role wins over Instructor; an instructor then assigns what they mark',
+  },
   { platform: ROLE.instructor, oscillab: 'instructor', note: '' },
   { platform: ROLE.administrator, oscillab: 'instructor', note: 'the course administrator role, not a site-wide one' },
   { platform: ROLE.contentDeveloper, oscillab: 'instructor', note: '' },

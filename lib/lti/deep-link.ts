@@ -18,7 +18,14 @@ import { signAsTool } from './keys';
 const TICKET_AUDIENCE = 'oscillab:deep-link';
 const ticketKey = () => new Uint8Array(crypto.hkdfSync('sha256', sessionSecret(), 'oscillab-lti', 'deep-link-ticket', 32));
 
-export type DeepLinkTicket = { userId: number; ltiContextId: number; registrationId: number; deploymentId: string; returnUrl: string; data: string | null };
+export type DeepLinkTicket = {
+  userId: number;
+  ltiContextId: number;
+  registrationId: number;
+  deploymentId: string;
+  returnUrl: string;
+  data: string | null;
+};
 
 export async function deepLinkTicket(t: DeepLinkTicket): Promise<string> {
   return new SignJWT({ ctx: t.ltiContextId, reg: t.registrationId, dep: t.deploymentId, ret: t.returnUrl, data: t.data })
@@ -38,7 +45,8 @@ export async function readDeepLinkTicket(ticket: string, userId: number): Promis
   } catch {
     throw new HttpError(400, 'This choice has expired or is not valid; start again from the learning platform.');
   }
-  if (payload.sub !== String(userId)) throw new HttpError(403, 'This choice was started by someone else; start again from the learning platform.');
+  if (payload.sub !== String(userId))
+    throw new HttpError(403, 'This choice was started by someone else; start again from the learning platform.');
   return {
     userId,
     ltiContextId: Number(payload.ctx),
@@ -70,7 +78,9 @@ export async function deepLinkResponse(ticket: DeepLinkTicket, practical: Practi
     text: 'Submit your line list and derived constants; Oscillab checks them and returns your feedback.',
     url: toolUrls().launch,
     custom: { [PRACTICAL_PARAMETER]: String(practical.id) },
-    ...(max > 0 ? { lineItem: { scoreMaximum: max, label: practical.title, resourceId: lineItemResourceId(practical.id), tag: 'oscillab' } } : {}),
+    ...(max > 0
+      ? { lineItem: { scoreMaximum: max, label: practical.title, resourceId: lineItemResourceId(practical.id), tag: 'oscillab' } }
+      : {}),
   };
   return signAsTool(
     {

@@ -2,13 +2,20 @@
 import { limits } from './config';
 
 export class PlatformUnreachable extends Error {
-  constructor(public url: string, cause: string) {
+  constructor(
+    public url: string,
+    cause: string,
+  ) {
     super(`The learning platform did not answer at ${url} (${cause}).`);
   }
 }
 
 export class PlatformAnswered extends Error {
-  constructor(public url: string, public status: number, public body: string) {
+  constructor(
+    public url: string,
+    public status: number,
+    public body: string,
+  ) {
     super(`The learning platform answered ${status} at ${url}${body ? `: ${body.slice(0, 200)}` : ''}.`);
   }
 }

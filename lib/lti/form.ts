@@ -6,9 +6,20 @@ export const MAX_FORM_BYTES = 64 * 1024;
 export async function readForm(request: Request): Promise<URLSearchParams> {
   const type = request.headers.get('content-type') ?? '';
   if (!type.toLowerCase().startsWith('application/x-www-form-urlencoded')) {
-    throw new LaunchRefused(415, 'not-a-form', 'Oscillab could not read this request', 'The learning platform must send this as a form post (application/x-www-form-urlencoded).');
+    throw new LaunchRefused(
+      415,
+      'not-a-form',
+      'Oscillab could not read this request',
+      'The learning platform must send this as a form post (application/x-www-form-urlencoded).',
+    );
   }
-  const tooLarge = () => new LaunchRefused(413, 'form-too-large', 'The sign-in message is too large', 'The form the learning platform sent is larger than Oscillab accepts.');
+  const tooLarge = () =>
+    new LaunchRefused(
+      413,
+      'form-too-large',
+      'The sign-in message is too large',
+      'The form the learning platform sent is larger than Oscillab accepts.',
+    );
   if (Number(request.headers.get('content-length') ?? 0) > MAX_FORM_BYTES) throw tooLarge();
   if (!request.body) return new URLSearchParams();
   const reader = request.body.getReader();
@@ -19,7 +30,12 @@ export async function readForm(request: Request): Promise<URLSearchParams> {
     try {
       part = await reader.read();
     } catch {
-      throw new LaunchRefused(400, 'interrupted', 'The request was interrupted', 'The form did not arrive whole; go back to the learning platform and try again.');
+      throw new LaunchRefused(
+        400,
+        'interrupted',
+        'The request was interrupted',
+        'The form did not arrive whole; go back to the learning platform and try again.',
+      );
     }
     if (part.done) break;
     size += part.value.byteLength;

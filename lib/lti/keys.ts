@@ -53,7 +53,17 @@ export async function rotateToolKey(actorId: number | null): Promise<KeyRotated>
     const old = await LtiToolKey.findAll({ where: { status: 'active' }, transaction: t });
     await LtiToolKey.update({ status: 'retired', retiredAt: new Date() }, { where: { status: 'active' }, transaction: t });
     const fresh = await makeKey(t);
-    await audit({ actorId, action: 'lti.key.rotate', entityType: 'lti_tool_key', entityId: fresh.id, before: { active: old.map((k) => k.kid) }, after: { active: fresh.kid } }, t);
+    await audit(
+      {
+        actorId,
+        action: 'lti.key.rotate',
+        entityType: 'lti_tool_key',
+        entityId: fresh.id,
+        before: { active: old.map((k) => k.kid) },
+        after: { active: fresh.kid },
+      },
+      t,
+    );
     return { kid: fresh.kid, retired: old.map((k) => k.kid) };
   });
 }
@@ -81,7 +91,10 @@ export async function toolKeySummary() {
 }
 
 /** A JWT signed with the active key (kid in the header). */
-export async function signAsTool(payload: JWTPayload, options: { audience: string; issuer: string; expiresInSeconds: number; subject?: string }): Promise<string> {
+export async function signAsTool(
+  payload: JWTPayload,
+  options: { audience: string; issuer: string; expiresInSeconds: number; subject?: string },
+): Promise<string> {
   const { kid, key } = await activeToolKey();
   let jwt = new SignJWT(payload)
     .setProtectedHeader({ alg: ALG, kid, typ: 'JWT' })

@@ -25,9 +25,12 @@ import { sha256 } from './state';
 /** Asymmetric signatures only: `none` and HMAC (a public key used as a shared secret) never verify. */
 export const ACCEPTED_ALGORITHMS = ['RS256', 'RS384', 'RS512', 'PS256', 'PS384', 'PS512', 'ES256', 'ES384'];
 
-const refused = (status: number, code: string, title: string, message: string, advice?: string) => new LaunchRefused(status, code, title, message, advice);
-const badToken = (code: string, message: string) => refused(401, code, 'Oscillab could not accept this sign-in from the learning platform', message);
-const missing = (claim: string) => refused(400, 'missing-claim', 'The learning platform’s sign-in message is incomplete', `The message has no ${claim}.`);
+const refused = (status: number, code: string, title: string, message: string, advice?: string) =>
+  new LaunchRefused(status, code, title, message, advice);
+const badToken = (code: string, message: string) =>
+  refused(401, code, 'Oscillab could not accept this sign-in from the learning platform', message);
+const missing = (claim: string) =>
+  refused(400, 'missing-claim', 'The learning platform’s sign-in message is incomplete', `The message has no ${claim}.`);
 
 type Claims = JWTPayload & Record<string, unknown>;
 
@@ -54,7 +57,12 @@ const text = (v: unknown, max = 255): string | null => (typeof v === 'string' &&
 /** Everything except the writes. Throws LaunchRefused with a clear message for each way a token can be wrong. */
 export async function verifyLaunch(idToken: string, state: string): Promise<VerifiedLaunch> {
   if (Buffer.byteLength(idToken) > limits.maxIdTokenBytes) {
-    throw refused(413, 'token-too-large', 'The sign-in message is too large', `The learning platform’s id_token is larger than the ${limits.maxIdTokenBytes / 1024} KB Oscillab accepts.`);
+    throw refused(
+      413,
+      'token-too-large',
+      'The sign-in message is too large',
+      `The learning platform’s id_token is larger than the ${limits.maxIdTokenBytes / 1024} KB Oscillab accepts.`,
+    );
   }
   let header: ReturnType<typeof decodeProtectedHeader>;
   let unverified: Claims;
@@ -65,21 +73,40 @@ export async function verifyLaunch(idToken: string, state: string): Promise<Veri
     throw refused(400, 'malformed-token', 'The sign-in message could not be read', 'The id_token is not a well-formed signed token.');
   }
   if (typeof header.alg !== 'string' || !ACCEPTED_ALGORITHMS.includes(header.alg)) {
-    throw badToken('algorithm-refused', `The id_token is signed with “${String(header.alg).slice(0, 20)}”, which Oscillab does not accept; only public-key signatures (such as RS256) are.`);
+    throw badToken(
+      'algorithm-refused',
+      `The id_token is signed with “${String(header.alg).slice(0, 20)}”, which Oscillab does not accept; only public-key signatures (such as RS256) are.`,
+    );
   }
   const issuer = text(unverified.iss, 500);
   if (!issuer) throw missing('issuer (iss)');
-  const audiences = Array.isArray(unverified.aud) ? unverified.aud.filter((a): a is string => typeof a === 'string') : typeof unverified.aud === 'string' ? [unverified.aud] : [];
+  const audiences = Array.isArray(unverified.aud)
+    ? unverified.aud.filter((a): a is string => typeof a === 'string')
+    : typeof unverified.aud === 'string'
+      ? [unverified.aud]
+      : [];
   if (audiences.length === 0) throw missing('audience (aud)');
 
   // Which registration: by issuer, then by the audience naming its client id.
   const candidates = await models().LtiRegistration.findAll({ where: { issuer } });
   if (candidates.length === 0) {
-    throw refused(401, 'unknown-platform', 'This learning platform is not connected to Oscillab', `No learning platform with the issuer “${issuer.slice(0, 200)}” is registered in Oscillab.`);
+    throw refused(
+      401,
+      'unknown-platform',
+      'This learning platform is not connected to Oscillab',
+      `No learning platform with the issuer “${issuer.slice(0, 200)}” is registered in Oscillab.`,
+    );
   }
   const registration = candidates.length === 1 ? candidates[0] : candidates.find((r) => audiences.includes(r.clientId));
-  if (!registration || !audiences.includes(registration.clientId)) throw badToken('wrong-audience', 'The id_token was issued for another tool (its audience is not Oscillab’s client id).');
-  if (!registration.active) throw refused(403, 'platform-switched-off', 'This learning platform’s connection is switched off', 'The site administrator has switched off this learning platform’s connection to Oscillab.');
+  if (!registration || !audiences.includes(registration.clientId))
+    throw badToken('wrong-audience', 'The id_token was issued for another tool (its audience is not Oscillab’s client id).');
+  if (!registration.active)
+    throw refused(
+      403,
+      'platform-switched-off',
+      'This learning platform’s connection is switched off',
+      'The site administrator has switched off this learning platform’s connection to Oscillab.',
+    );
 
   let claims: Claims;
   try {
@@ -99,26 +126,41 @@ export async function verifyLaunch(idToken: string, state: string): Promise<Veri
     throw badToken('not-yet-valid', 'The id_token is dated in the future; the learning platform’s clock or the token is wrong.');
   }
   if (audiences.length > 1 || claims.azp !== undefined) {
-    if (claims.azp !== registration.clientId) throw badToken('wrong-azp', 'The id_token names several audiences but not Oscillab as the authorised party (azp).');
+    if (claims.azp !== registration.clientId)
+      throw badToken('wrong-azp', 'The id_token names several audiences but not Oscillab as the authorised party (azp).');
   }
 
   const deploymentId = text(claims[CLAIM.deploymentId]);
   if (!deploymentId) throw missing('deployment id');
   const deployment = await models().LtiDeployment.findOne({ where: { registrationId: registration.id, deploymentId } });
-  if (!deployment) throw refused(401, 'unknown-deployment', 'This deployment is not known to Oscillab', 'The learning platform named a deployment that is not registered in Oscillab.');
+  if (!deployment)
+    throw refused(
+      401,
+      'unknown-deployment',
+      'This deployment is not known to Oscillab',
+      'The learning platform named a deployment that is not registered in Oscillab.',
+    );
 
-  if (claims[CLAIM.version] !== '1.3.0') throw refused(400, 'wrong-version', 'Oscillab does not understand this message', 'Only LTI version 1.3.0 messages are accepted.');
+  if (claims[CLAIM.version] !== '1.3.0')
+    throw refused(400, 'wrong-version', 'Oscillab does not understand this message', 'Only LTI version 1.3.0 messages are accepted.');
   const messageType = claims[CLAIM.messageType];
   if (messageType !== MESSAGE.resourceLink && messageType !== MESSAGE.deepLinkingRequest) {
-    throw refused(400, 'unsupported-message', 'Oscillab does not handle this kind of message', `The message type “${String(messageType).slice(0, 60)}” is not one Oscillab handles.`);
+    throw refused(
+      400,
+      'unsupported-message',
+      'Oscillab does not handle this kind of message',
+      `The message type “${String(messageType).slice(0, 60)}” is not one Oscillab handles.`,
+    );
   }
 
   // State and nonce, last of the checks that need no account: single use is enforced in completeLaunch.
   const row = await models().LtiLaunchState.findOne({ where: { stateHash: sha256(state) } });
-  if (!row || row.registrationId !== registration.id) throw badToken('unknown-state', 'This sign-in was not started from this browser (its state is unknown to Oscillab).');
+  if (!row || row.registrationId !== registration.id)
+    throw badToken('unknown-state', 'This sign-in was not started from this browser (its state is unknown to Oscillab).');
   if (row.usedAt) throw badToken('replayed', 'This sign-in message has already been used.');
   if (row.expiresAt.getTime() < Date.now()) throw badToken('state-expired', 'The sign-in took too long and has expired.');
-  if (claims.nonce !== row.nonce) throw badToken('replayed', 'This sign-in message does not belong to this sign-in (its nonce differs): it may be replayed.');
+  if (claims.nonce !== row.nonce)
+    throw badToken('replayed', 'This sign-in message does not belong to this sign-in (its nonce differs): it may be replayed.');
 
   const sub = text(claims.sub);
   if (!sub) throw missing('user id (sub)');
@@ -137,9 +179,21 @@ export async function verifyLaunch(idToken: string, state: string): Promise<Veri
   } else {
     const settings = claims[CLAIM.deepLinkingSettings];
     if (!isObject(settings) || !text(settings.deep_link_return_url, 1000)) throw missing('deep-linking return address');
-    if (!isAcceptablePlatformUrl(settings.deep_link_return_url as string)) throw refused(400, 'bad-return-url', 'The learning platform’s return address is not acceptable', 'The deep-linking return address must be an https address.');
+    if (!isAcceptablePlatformUrl(settings.deep_link_return_url as string))
+      throw refused(
+        400,
+        'bad-return-url',
+        'The learning platform’s return address is not acceptable',
+        'The deep-linking return address must be an https address.',
+      );
     const acceptTypes = Array.isArray(settings.accept_types) ? settings.accept_types.filter((t): t is string => typeof t === 'string') : [];
-    if (!acceptTypes.includes('ltiResourceLink')) throw refused(400, 'deep-link-type', 'The learning platform cannot take an Oscillab item here', 'This placement does not accept links to tools (ltiResourceLink).');
+    if (!acceptTypes.includes('ltiResourceLink'))
+      throw refused(
+        400,
+        'deep-link-type',
+        'The learning platform cannot take an Oscillab item here',
+        'This placement does not accept links to tools (ltiResourceLink).',
+      );
     deepLinking = { returnUrl: settings.deep_link_return_url as string, data: text(settings.data, 2000), acceptTypes };
   }
 
@@ -161,7 +215,13 @@ export async function verifyLaunch(idToken: string, state: string): Promise<Veri
     context: { id: context.id as string, title: text(context.title, 300) },
     resourceLink,
     custom,
-    ags: ags ? { scope: Array.isArray(ags.scope) ? ags.scope.filter((s): s is string => typeof s === 'string') : [], lineitems: serviceUrl(ags.lineitems), lineitem: serviceUrl(ags.lineitem) } : null,
+    ags: ags
+      ? {
+          scope: Array.isArray(ags.scope) ? ags.scope.filter((s): s is string => typeof s === 'string') : [],
+          lineitems: serviceUrl(ags.lineitems),
+          lineitem: serviceUrl(ags.lineitem),
+        }
+      : null,
     membershipsUrl: nrps ? serviceUrl(nrps.context_memberships_url) : null,
     deepLinking,
   };
@@ -170,9 +230,16 @@ export async function verifyLaunch(idToken: string, state: string): Promise<Veri
 function translateVerifyError(error: unknown): LaunchRefused {
   if (error instanceof LaunchRefused) return error;
   if (error instanceof KeySetUnavailable) {
-    return refused(503, 'keyset-unreachable', 'Oscillab cannot check this sign-in just now', 'Oscillab could not reach the learning platform’s public key set to check the signature, so it cannot let you in yet.', 'Please try again in a few minutes. Nothing is wrong with your account; if this lasts, tell the site administrator.');
+    return refused(
+      503,
+      'keyset-unreachable',
+      'Oscillab cannot check this sign-in just now',
+      'Oscillab could not reach the learning platform’s public key set to check the signature, so it cannot let you in yet.',
+      'Please try again in a few minutes. Nothing is wrong with your account; if this lasts, tell the site administrator.',
+    );
   }
-  if (error instanceof UnknownKey) return badToken('unknown-key', 'The id_token is signed with a key the learning platform does not publish.');
+  if (error instanceof UnknownKey)
+    return badToken('unknown-key', 'The id_token is signed with a key the learning platform does not publish.');
   if (error instanceof errors.JWTExpired) return badToken('expired', 'The sign-in message has expired.');
   if (error instanceof errors.JWTClaimValidationFailed) {
     if (error.claim === 'nbf' || error.claim === 'iat') return badToken('not-yet-valid', 'The sign-in message is not valid yet.');
@@ -180,10 +247,14 @@ function translateVerifyError(error: unknown): LaunchRefused {
     if (error.claim === 'aud') return badToken('wrong-audience', 'The id_token was issued for another tool.');
     return missing(`valid “${error.claim}” claim`);
   }
-  if (error instanceof errors.JOSEAlgNotAllowed) return badToken('algorithm-refused', 'The id_token is signed with an algorithm Oscillab does not accept.');
-  if (error instanceof errors.JWSSignatureVerificationFailed) return badToken('bad-signature', 'The id_token’s signature does not match the learning platform’s key.');
-  if (error instanceof errors.JWKSMultipleMatchingKeys) return badToken('unknown-key', 'The id_token does not say clearly which of the platform’s keys signed it.');
-  if (error instanceof errors.JOSEError) return refused(400, 'malformed-token', 'The sign-in message could not be read', 'The id_token is not a well-formed signed token.');
+  if (error instanceof errors.JOSEAlgNotAllowed)
+    return badToken('algorithm-refused', 'The id_token is signed with an algorithm Oscillab does not accept.');
+  if (error instanceof errors.JWSSignatureVerificationFailed)
+    return badToken('bad-signature', 'The id_token’s signature does not match the learning platform’s key.');
+  if (error instanceof errors.JWKSMultipleMatchingKeys)
+    return badToken('unknown-key', 'The id_token does not say clearly which of the platform’s keys signed it.');
+  if (error instanceof errors.JOSEError)
+    return refused(400, 'malformed-token', 'The sign-in message could not be read', 'The id_token is not a well-formed signed token.');
   return error as LaunchRefused;
 }
 
@@ -191,10 +262,7 @@ function translateVerifyError(error: unknown): LaunchRefused {
 
 export type Person = { sub: string; email: string | null; name: string };
 export type AccountMatch =
-  | { kind: 'linked'; user: User }
-  | { kind: 'by-email'; user: User }
-  | { kind: 'new' }
-  | { kind: 'conflict'; reason: string };
+  { kind: 'linked'; user: User } | { kind: 'by-email'; user: User } | { kind: 'new' } | { kind: 'conflict'; reason: string };
 
 /**
  * Who a platform user is in Oscillab: the account already linked to their `sub`; else the account
@@ -208,12 +276,25 @@ export async function matchAccount(registrationId: number, person: Person, trans
     const user = await User.findByPk(link.userId, { transaction });
     if (user) return { kind: 'linked', user };
   }
-  if (!person.email) return { kind: 'conflict', reason: 'The learning platform did not share an e-mail address, and Oscillab has no account linked to this person yet.' };
+  if (!person.email)
+    return {
+      kind: 'conflict',
+      reason: 'The learning platform did not share an e-mail address, and Oscillab has no account linked to this person yet.',
+    };
   const user = await User.findOne({ where: { email: person.email }, transaction });
   if (!user) return { kind: 'new' };
-  if (user.isAdmin) return { kind: 'conflict', reason: 'The Oscillab account with this e-mail is a site administrator’s; such accounts are never connected to a learning platform by e-mail.' };
+  if (user.isAdmin)
+    return {
+      kind: 'conflict',
+      reason:
+        'The Oscillab account with this e-mail is a site administrator’s; such accounts are never connected to a learning platform by e-mail.',
+    };
   const taken = await LtiUserLink.findOne({ where: { registrationId, userId: user.id }, transaction });
-  if (taken) return { kind: 'conflict', reason: 'The Oscillab account with this e-mail is already connected to another person of the learning platform.' };
+  if (taken)
+    return {
+      kind: 'conflict',
+      reason: 'The Oscillab account with this e-mail is already connected to another person of the learning platform.',
+    };
   return { kind: 'by-email', user };
 }
 
@@ -222,7 +303,13 @@ export async function accountFor(registrationId: number, person: Person, match: 
   const { LtiUserLink, User } = models();
   if (match.kind === 'conflict') throw new Error(match.reason);
   if (match.kind === 'linked') return match.user;
-  const user = match.kind === 'by-email' ? match.user : await User.create({ email: person.email!, name: person.name.slice(0, 200), passwordHash: null, isAdmin: false, studentNumber: null }, { transaction });
+  const user =
+    match.kind === 'by-email'
+      ? match.user
+      : await User.create(
+          { email: person.email!, name: person.name.slice(0, 200), passwordHash: null, isAdmin: false, studentNumber: null },
+          { transaction },
+        );
   await LtiUserLink.create({ registrationId, sub: person.sub, userId: user.id }, { transaction });
   return user;
 }
@@ -244,17 +331,29 @@ const STAFF: CourseRole[] = ['ta', 'instructor', 'lead'];
  * Give `user` the role in the context's course (and only there). A person who already holds a
  * staff role there is not made a student as well. Returns the roles they hold there afterwards.
  */
-export async function grantCourseRole(user: User, ctx: LtiContext, role: CourseRole, transaction: Transaction): Promise<{ roles: CourseRole[]; cohortId: number | null; granted: boolean }> {
+export async function grantCourseRole(
+  user: User,
+  ctx: LtiContext,
+  role: CourseRole,
+  transaction: Transaction,
+): Promise<{ roles: CourseRole[]; cohortId: number | null; granted: boolean }> {
   const { CourseMembership } = models();
   const held = await CourseMembership.findAll({ where: { userId: user.id, courseId: ctx.courseId }, transaction });
   const roles = held.map((m) => m.role);
   const studentCohort = held.find((m) => m.role === 'student')?.cohortId ?? null;
-  if (roles.includes(role) || (role === 'student' && roles.some((r) => STAFF.includes(r)))) return { roles, cohortId: studentCohort, granted: false };
+  if (roles.includes(role) || (role === 'student' && roles.some((r) => STAFF.includes(r))))
+    return { roles, cohortId: studentCohort, granted: false };
   let cohortId: number | null = null;
   if (role === 'student') {
     cohortId = await cohortForNewStudents(ctx, transaction);
     if (!cohortId) {
-      throw refused(409, 'no-cohort', 'Oscillab does not know your cohort yet', 'This course has several cohorts and none is chosen for students arriving from the learning platform.', 'Your instructor chooses it on the course’s learning-platform page in Oscillab; then launch again.');
+      throw refused(
+        409,
+        'no-cohort',
+        'Oscillab does not know your cohort yet',
+        'This course has several cohorts and none is chosen for students arriving from the learning platform.',
+        'Your instructor chooses it on the course’s learning-platform page in Oscillab; then launch again.',
+      );
     }
   }
   await CourseMembership.create({ userId: user.id, courseId: ctx.courseId, role, cohortId }, { transaction });
@@ -276,7 +375,13 @@ export async function completeLaunch(v: VerifiedLaunch): Promise<LaunchOutcome> 
   } catch (error) {
     // Two first launches of the same person at the same moment: one makes the account, the other meets the unique index.
     if (error instanceof UniqueConstraintError) {
-      throw refused(409, 'simultaneous-launch', 'Another sign-in of yours was happening at the same moment', 'Oscillab finished the other one first and left this one unused.', 'Open the item again from the learning platform.');
+      throw refused(
+        409,
+        'simultaneous-launch',
+        'Another sign-in of yours was happening at the same moment',
+        'Oscillab finished the other one first and left this one unused.',
+        'Open the item again from the learning platform.',
+      );
     }
     throw error;
   }
@@ -290,18 +395,41 @@ async function writeLaunch(v: VerifiedLaunch): Promise<LaunchOutcome> {
 
     const ctx = await LtiContext.findOne({ where: { registrationId: v.registration.id, contextId: v.context.id }, transaction: t });
     if (!ctx) {
-      throw refused(403, 'course-not-connected', 'This course is not connected to Oscillab yet', `The learning platform’s course “${(v.context.title ?? v.context.id).slice(0, 120)}” (context id ${v.context.id.slice(0, 80)}) is not connected to an Oscillab course.`, 'The site administrator connects it on Oscillab’s administration page (Learning platform); then launch again.');
+      throw refused(
+        403,
+        'course-not-connected',
+        'This course is not connected to Oscillab yet',
+        `The learning platform’s course “${(v.context.title ?? v.context.id).slice(0, 120)}” (context id ${v.context.id.slice(0, 80)}) is not connected to an Oscillab course.`,
+        'The site administrator connects it on Oscillab’s administration page (Learning platform); then launch again.',
+      );
     }
     const course = await Course.findByPk(ctx.courseId, { transaction: t });
-    if (!course || course.archivedAt) throw refused(403, 'course-archived', 'This course is closed in Oscillab', 'The Oscillab course connected to this learning-platform course is archived.');
+    if (!course || course.archivedAt)
+      throw refused(
+        403,
+        'course-archived',
+        'This course is closed in Oscillab',
+        'The Oscillab course connected to this learning-platform course is archived.',
+      );
 
     const role = courseRoleFor(v.roles);
     if (!role) {
       const named = v.roles.map(roleLabel).slice(0, 5).join(', ') || 'none';
-      throw refused(403, 'no-role', 'Oscillab has nothing for your role here', `Your role in this course on the learning platform (${named}) does not correspond to any role in Oscillab, so Oscillab gives you none.`, 'Students, teaching assistants and instructors of the course can use Oscillab. If your role is wrong, ask the course’s instructor.');
+      throw refused(
+        403,
+        'no-role',
+        'Oscillab has nothing for your role here',
+        `Your role in this course on the learning platform (${named}) does not correspond to any role in Oscillab, so Oscillab gives you none.`,
+        'Students, teaching assistants and instructors of the course can use Oscillab. If your role is wrong, ask the course’s instructor.',
+      );
     }
     if (v.messageType === MESSAGE.deepLinkingRequest && role !== 'instructor') {
-      throw refused(403, 'deep-link-staff-only', 'Only instructors place Oscillab items', 'Choosing which practical an item opens is for the course’s instructors.');
+      throw refused(
+        403,
+        'deep-link-staff-only',
+        'Only instructors place Oscillab items',
+        'Choosing which practical an item opens is for the course’s instructors.',
+      );
     }
 
     // The practical: the item's stored link, or the custom parameter a deep-linked item carries —
@@ -312,29 +440,71 @@ async function writeLaunch(v: VerifiedLaunch): Promise<LaunchOutcome> {
       if (link) practicalId = link.practicalId;
       else {
         const named = v.custom[PRACTICAL_PARAMETER];
-        const id = typeof named === 'string' && /^\d{1,12}$/.test(named) ? Number(named) : typeof named === 'number' && Number.isSafeInteger(named) ? named : null;
+        const id =
+          typeof named === 'string' && /^\d{1,12}$/.test(named)
+            ? Number(named)
+            : typeof named === 'number' && Number.isSafeInteger(named)
+              ? named
+              : null;
         if (!id) {
-          throw refused(404, 'item-not-linked', 'This item does not open a practical yet', 'The learning platform’s item does not name an Oscillab practical.', 'An instructor places Oscillab items through the learning platform’s “add from a tool” (deep linking) page, which records the practical.');
+          throw refused(
+            404,
+            'item-not-linked',
+            'This item does not open a practical yet',
+            'The learning platform’s item does not name an Oscillab practical.',
+            'An instructor places Oscillab items through the learning platform’s “add from a tool” (deep linking) page, which records the practical.',
+          );
         }
         practicalId = id;
       }
       const practical = await Practical.findByPk(practicalId, { transaction: t });
       if (!practical || practical.courseId !== ctx.courseId) {
-        throw refused(403, 'other-course', 'This item belongs to another course', 'The item names a practical that is not part of the Oscillab course this learning-platform course is connected to. A launch only ever gives access within its own course.');
+        throw refused(
+          403,
+          'other-course',
+          'This item belongs to another course',
+          'The item names a practical that is not part of the Oscillab course this learning-platform course is connected to. A launch only ever gives access within its own course.',
+        );
       }
-      if (practical.archivedAt) throw refused(404, 'practical-archived', 'This practical is closed', 'The practical this item opens has been archived in Oscillab.');
-      if (!link) await LtiResourceLink.create({ ltiContextId: ctx.id, resourceLinkId: v.resourceLink.id, practicalId, title: v.resourceLink.title }, { transaction: t });
+      if (practical.archivedAt)
+        throw refused(
+          404,
+          'practical-archived',
+          'This practical is closed',
+          'The practical this item opens has been archived in Oscillab.',
+        );
+      if (!link)
+        await LtiResourceLink.create(
+          { ltiContextId: ctx.id, resourceLinkId: v.resourceLink.id, practicalId, title: v.resourceLink.title },
+          { transaction: t },
+        );
     }
 
     const person: Person = { sub: v.sub, email: v.email, name: v.name };
     const match = await matchAccount(v.registration.id, person, t);
-    if (match.kind === 'conflict') throw refused(409, 'account-conflict', 'Oscillab cannot tell which account is yours', match.reason, 'The site administrator can sort this out; nothing was changed.');
+    if (match.kind === 'conflict')
+      throw refused(
+        409,
+        'account-conflict',
+        'Oscillab cannot tell which account is yours',
+        match.reason,
+        'The site administrator can sort this out; nothing was changed.',
+      );
     const user = await accountFor(v.registration.id, person, match, t);
     const granted = await grantCourseRole(user, ctx, role, t);
 
     if (role === 'student' && practicalId && !granted.roles.some((r) => STAFF.includes(r))) {
-      const placed = granted.cohortId ? await PracticalCohort.findOne({ where: { practicalId, cohortId: granted.cohortId }, transaction: t }) : null;
-      if (!placed) throw refused(403, 'not-set-for-cohort', 'This practical is not set for your cohort', 'The practical this item opens is not set for the cohort you are in.', 'Ask your instructor; nothing was changed.');
+      const placed = granted.cohortId
+        ? await PracticalCohort.findOne({ where: { practicalId, cohortId: granted.cohortId }, transaction: t })
+        : null;
+      if (!placed)
+        throw refused(
+          403,
+          'not-set-for-cohort',
+          'This practical is not set for your cohort',
+          'The practical this item opens is not set for the cohort you are in.',
+          'Ask your instructor; nothing was changed.',
+        );
     }
 
     // The services the platform offers for this course, as it announced them in this launch.
@@ -357,14 +527,23 @@ async function writeLaunch(v: VerifiedLaunch): Promise<LaunchOutcome> {
         entityType: 'course',
         entityId: ctx.courseId,
         before: null,
-        after: { registrationId: v.registration.id, context: v.context.id, message: v.messageType, role, granted: granted.granted, practicalId, account: match.kind },
+        after: {
+          registrationId: v.registration.id,
+          context: v.context.id,
+          message: v.messageType,
+          role,
+          granted: granted.granted,
+          practicalId,
+          account: match.kind,
+        },
       },
       t,
     );
 
     // Where they land: the page of the highest role they hold in this course.
     const held = granted.roles;
-    const landing: CourseRole = held.includes('instructor') || held.includes('lead') ? 'instructor' : held.includes('ta') ? 'ta' : 'student';
+    const landing: CourseRole =
+      held.includes('instructor') || held.includes('lead') ? 'instructor' : held.includes('ta') ? 'ta' : 'student';
     let location: string;
     if (v.messageType === MESSAGE.deepLinkingRequest) location = '/lti/deep-link';
     else if (landing === 'instructor') location = `/courses/${ctx.courseId}/practicals/${practicalId}`;

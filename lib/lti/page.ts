@@ -39,11 +39,22 @@ const STYLE = `
   .btn:focus-visible, a:focus-visible { outline: 2px solid #1f5f74; outline-offset: 2px; }
 `;
 
-export function htmlPage(options: { title: string; body: string; status?: number; className?: string; headers?: Record<string, string> }): Response {
+export function htmlPage(options: {
+  title: string;
+  body: string;
+  status?: number;
+  className?: string;
+  headers?: Record<string, string>;
+}): Response {
   const html = `<!doctype html><html lang="en-GB"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1"><title>${escapeHtml(options.title)} · Oscillab</title><style>${STYLE}</style></head><body><main class="${options.className ?? ''}"><p class="mark">Oscillab</p><div class="card">${options.body}</div></main></body></html>`;
   return new Response(html, {
     status: options.status ?? 200,
-    headers: { 'content-type': 'text/html; charset=utf-8', 'cache-control': 'no-store', 'referrer-policy': 'no-referrer', ...options.headers },
+    headers: {
+      'content-type': 'text/html; charset=utf-8',
+      'cache-control': 'no-store',
+      'referrer-policy': 'no-referrer',
+      ...options.headers,
+    },
   });
 }
 
@@ -58,8 +69,16 @@ export function refusalPage(error: LaunchRefused, headers?: Record<string, strin
 }
 
 /** A form that submits itself (with a button for browsers without scripts), as the standard's form_post messages do. */
-export function selfSubmittingForm(options: { title: string; action: string; fields: Record<string, string>; lead: string; button: string }): Response {
-  const inputs = Object.entries(options.fields).map(([k, v]) => `<input type="hidden" name="${escapeHtml(k)}" value="${escapeHtml(v)}">`).join('');
+export function selfSubmittingForm(options: {
+  title: string;
+  action: string;
+  fields: Record<string, string>;
+  lead: string;
+  button: string;
+}): Response {
+  const inputs = Object.entries(options.fields)
+    .map(([k, v]) => `<input type="hidden" name="${escapeHtml(k)}" value="${escapeHtml(v)}">`)
+    .join('');
   return htmlPage({
     title: options.title,
     body: `<h1>${escapeHtml(options.title)}</h1><p>${escapeHtml(options.lead)}</p><form id="carry" method="post" action="${escapeHtml(options.action)}">${inputs}<button class="btn" type="submit">${escapeHtml(options.button)}</button></form><script>document.getElementById('carry').submit()</script>`,
@@ -81,9 +100,17 @@ export function ltiRoute<C = unknown>(handler: Handler<C>): Handler<C> {
         return await handler(request, context);
       } catch (error) {
         if (error instanceof LaunchRefused) return refusalPage(error);
-        if (error instanceof HttpError) return refusalPage(new LaunchRefused(error.status, 'bad-request', 'Oscillab could not use this request', error.message));
+        if (error instanceof HttpError)
+          return refusalPage(new LaunchRefused(error.status, 'bad-request', 'Oscillab could not use this request', error.message));
         logger.error({ err: error }, 'unhandled error in learning-platform endpoint');
-        return refusalPage(new LaunchRefused(500, 'server-error', 'Something went wrong on our side', `The error has been logged; quote request id ${requestId} when you report it.`));
+        return refusalPage(
+          new LaunchRefused(
+            500,
+            'server-error',
+            'Something went wrong on our side',
+            `The error has been logged; quote request id ${requestId} when you report it.`,
+          ),
+        );
       }
     });
 }

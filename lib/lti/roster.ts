@@ -40,7 +40,8 @@ export type PlatformRosterPreview = {
 };
 
 const ACTIVE = (m: PlatformMember) => !m.status || m.status === 'Active';
-const nameOf = (m: PlatformMember) => (m.name || [m.given_name, m.family_name].filter(Boolean).join(' ') || m.email || m.user_id).slice(0, 200);
+const nameOf = (m: PlatformMember) =>
+  (m.name || [m.given_name, m.family_name].filter(Boolean).join(' ') || m.email || m.user_id).slice(0, 200);
 const emailOf = (m: PlatformMember) => {
   const e = typeof m.email === 'string' ? m.email.trim().toLowerCase() : '';
   return e && e.length <= 254 && /^[^\s@,;<>"]+@[^\s@,;<>"]+\.[^\s@,;<>"]+$/.test(e) ? e : null;
@@ -58,13 +59,18 @@ export async function rosterFromPlatform(ctx: LtiContext): Promise<PlatformMembe
   try {
     return await fetchRoster(ctx);
   } catch (error) {
-    if (error instanceof PlatformUnreachable || error instanceof PlatformAnswered) throw new HttpError(502, `The learning platform’s roster could not be fetched: ${error.message}`);
+    if (error instanceof PlatformUnreachable || error instanceof PlatformAnswered)
+      throw new HttpError(502, `The learning platform’s roster could not be fetched: ${error.message}`);
     if (error instanceof Error && /launch Oscillab once/.test(error.message)) throw new HttpError(409, error.message);
     throw error;
   }
 }
 
-export async function classifyRoster(ctx: LtiContext, members: PlatformMember[], transaction?: Transaction): Promise<PlatformRosterPreview> {
+export async function classifyRoster(
+  ctx: LtiContext,
+  members: PlatformMember[],
+  transaction?: Transaction,
+): Promise<PlatformRosterPreview> {
   const { CourseMembership, LtiUserLink, User } = models();
   const rows: PlatformRosterRow[] = [];
   const seen = new Set<string>();
@@ -84,11 +90,23 @@ export async function classifyRoster(ctx: LtiContext, members: PlatformMember[],
 
     if (!ACTIVE(m)) {
       const leaving = role && user && held.includes(role);
-      rows.push({ ...base, userId: user?.id ?? null, status: leaving ? 'leaving' : 'not-taken', change: leaving ? `Leaves the course (${m.status} on the learning platform): their ${role} role ends; their work is kept.` : `${m.status} on the learning platform and not in this course.` });
+      rows.push({
+        ...base,
+        userId: user?.id ?? null,
+        status: leaving ? 'leaving' : 'not-taken',
+        change: leaving
+          ? `Leaves the course (${m.status} on the learning platform): their ${role} role ends; their work is kept.`
+          : `${m.status} on the learning platform and not in this course.`,
+      });
       continue;
     }
     if (!role) {
-      rows.push({ ...base, userId: user?.id ?? null, status: 'not-taken', change: 'Their role on the learning platform has no counterpart in Oscillab.' });
+      rows.push({
+        ...base,
+        userId: user?.id ?? null,
+        status: 'not-taken',
+        change: 'Their role on the learning platform has no counterpart in Oscillab.',
+      });
       continue;
     }
     if (match.kind === 'conflict') {
@@ -97,36 +115,68 @@ export async function classifyRoster(ctx: LtiContext, members: PlatformMember[],
     }
     const needsRole = !(held.includes(role) || (role === 'student' && held.some((r) => STAFF.includes(r))));
     if (needsRole && role === 'student' && !newStudentCohort) {
-      rows.push({ ...base, userId: user?.id ?? null, status: 'not-taken', change: 'No cohort is chosen for students from the learning platform (choose one above).' });
+      rows.push({
+        ...base,
+        userId: user?.id ?? null,
+        status: 'not-taken',
+        change: 'No cohort is chosen for students from the learning platform (choose one above).',
+      });
       continue;
     }
     if (needsRole) {
-      const what = match.kind === 'new' ? 'New account' : match.kind === 'by-email' ? 'Existing account (matched by e-mail)' : 'Existing account';
-      rows.push({ ...base, userId: user?.id ?? null, status: 'new', change: `${what}; becomes ${role === 'ta' ? 'teaching assistant' : role} in this course.` });
+      const what =
+        match.kind === 'new' ? 'New account' : match.kind === 'by-email' ? 'Existing account (matched by e-mail)' : 'Existing account';
+      rows.push({
+        ...base,
+        userId: user?.id ?? null,
+        status: 'new',
+        change: `${what}; becomes ${role === 'ta' ? 'teaching assistant' : role} in this course.`,
+      });
       continue;
     }
     const renamed = user && user.name !== person.name;
     const unlinked = match.kind === 'by-email';
     if (renamed || unlinked) {
-      rows.push({ ...base, userId: user!.id, status: 'changed', change: [renamed ? `Name changes from “${user!.name}”.` : '', unlinked ? 'Account gets connected to the learning platform.' : ''].filter(Boolean).join(' ') });
+      rows.push({
+        ...base,
+        userId: user!.id,
+        status: 'changed',
+        change: [renamed ? `Name changes from “${user!.name}”.` : '', unlinked ? 'Account gets connected to the learning platform.' : '']
+          .filter(Boolean)
+          .join(' '),
+      });
       continue;
     }
     rows.push({ ...base, userId: user?.id ?? null, status: 'unchanged', change: '—' });
   }
 
   // People Oscillab connected to this platform who hold a role here but are no longer on its roster.
-  const links = await LtiUserLink.findAll({ where: { registrationId: ctx.registrationId, userId: [...new Set(memberships.map((m) => m.userId))] }, transaction });
+  const links = await LtiUserLink.findAll({
+    where: { registrationId: ctx.registrationId, userId: [...new Set(memberships.map((m) => m.userId))] },
+    transaction,
+  });
   for (const link of links) {
     if (seen.has(link.sub)) continue;
     const user = await User.findByPk(link.userId, { transaction });
     const held = rolesOf(link.userId).filter((r) => r !== 'lead');
     if (!user || !held.length) continue;
-    rows.push({ sub: link.sub, name: user.name, email: user.email, platformRoles: [], role: held[0], userId: user.id, status: 'leaving', change: `No longer on the learning platform’s roster: their ${held.join(' and ')} role ends; their work is kept.` });
+    rows.push({
+      sub: link.sub,
+      name: user.name,
+      email: user.email,
+      platformRoles: [],
+      role: held[0],
+      userId: user.id,
+      status: 'leaving',
+      change: `No longer on the learning platform’s roster: their ${held.join(' and ')} role ends; their work is kept.`,
+    });
   }
 
   const counts: Record<PlatformRosterStatus, number> = { new: 0, changed: 0, leaving: 0, unchanged: 0, 'not-taken': 0 };
   for (const r of rows) counts[r.status]++;
-  const changes = rows.filter((r) => r.status === 'new' || r.status === 'changed' || r.status === 'leaving').map((r) => [r.sub, r.status, r.role, r.name, r.email]);
+  const changes = rows
+    .filter((r) => r.status === 'new' || r.status === 'changed' || r.status === 'leaving')
+    .map((r) => [r.sub, r.status, r.role, r.name, r.email]);
   const fingerprint = crypto.createHash('sha256').update(JSON.stringify(changes)).digest('hex').slice(0, 32);
   return { ltiContextId: ctx.id, courseId: ctx.courseId, rows, counts, fingerprint };
 }
@@ -135,7 +185,9 @@ export async function previewPlatformRoster(ctx: LtiContext): Promise<PlatformRo
   return classifyRoster(ctx, await rosterFromPlatform(ctx));
 }
 
-export type PlatformRosterResult = PlatformRosterPreview & { applied: { added: number; renamed: number; connected: number; removed: number } };
+export type PlatformRosterResult = PlatformRosterPreview & {
+  applied: { added: number; renamed: number; connected: number; removed: number };
+};
 
 /** Write the changes the preview showed (same fingerprint), all or nothing. */
 export async function applyPlatformRoster(ctx: LtiContext, fingerprint: string, actorId: number): Promise<PlatformRosterResult> {
@@ -143,7 +195,11 @@ export async function applyPlatformRoster(ctx: LtiContext, fingerprint: string, 
   const { CourseMembership, LtiContext: Contexts, User } = models();
   return sequelize().transaction(async (t) => {
     const preview = await classifyRoster(ctx, members, t);
-    if (preview.fingerprint !== fingerprint) throw new HttpError(409, 'The roster changed since the preview (on the learning platform or in Oscillab). Nothing was written; look at the new preview and confirm again.');
+    if (preview.fingerprint !== fingerprint)
+      throw new HttpError(
+        409,
+        'The roster changed since the preview (on the learning platform or in Oscillab). Nothing was written; look at the new preview and confirm again.',
+      );
     const applied = { added: 0, renamed: 0, connected: 0, removed: 0 };
     const byMember = new Map(members.map((m) => [m.user_id.slice(0, 255), m]));
     for (const row of preview.rows) {
@@ -171,11 +227,24 @@ export async function applyPlatformRoster(ctx: LtiContext, fingerprint: string, 
         const member = byMember.get(row.sub);
         // Inactive on the platform: the role it maps to ends. Gone from the roster: every role here but course lead.
         const roles: CourseRole[] = member ? [row.role!] : (['student', 'ta', 'instructor'] as CourseRole[]);
-        applied.removed += await CourseMembership.destroy({ where: { userId: row.userId!, courseId: ctx.courseId, role: roles }, transaction: t });
+        applied.removed += await CourseMembership.destroy({
+          where: { userId: row.userId!, courseId: ctx.courseId, role: roles },
+          transaction: t,
+        });
       }
     }
     await Contexts.update({ rosterSyncedAt: new Date() }, { where: { id: ctx.id }, transaction: t });
-    await audit({ actorId, action: 'lti.roster.sync', entityType: 'course', entityId: ctx.courseId, before: null, after: { ltiContextId: ctx.id, ...applied } }, t);
+    await audit(
+      {
+        actorId,
+        action: 'lti.roster.sync',
+        entityType: 'course',
+        entityId: ctx.courseId,
+        before: null,
+        after: { ltiContextId: ctx.id, ...applied },
+      },
+      t,
+    );
     return { ...preview, applied };
   });
 }

@@ -72,7 +72,8 @@ export async function queueReleaseScores(view: ReleasedView, releaseNumber: numb
     );
     queued++;
   }
-  if (queued && process.env.OUTBOX_WORKER !== 'off') transaction.afterCommit(() => void deliverScores().catch((e) => log().error({ err: e }, 'score delivery failed')));
+  if (queued && process.env.OUTBOX_WORKER !== 'off')
+    transaction.afterCommit(() => void deliverScores().catch((e) => log().error({ err: e }, 'score delivery failed')));
   return queued;
 }
 
@@ -137,7 +138,10 @@ async function deliverDueScores(logger: Logger, options: { limit?: number; now?:
         activityProgress: 'Completed',
         gradingProgress: 'FullyGraded',
       });
-      await LtiScoreOutbox.update({ status: 'sent', sentAt: now(), lineItemUrl, lockedUntil: null, lastError: null, attempts }, { where: { id: row.id } });
+      await LtiScoreOutbox.update(
+        { status: 'sent', sentAt: now(), lineItemUrl, lockedUntil: null, lastError: null, attempts },
+        { where: { id: row.id } },
+      );
       sent++;
     } catch (error) {
       const final = !retryable(error) || attempts >= MAX_ATTEMPTS;
@@ -172,16 +176,37 @@ export async function resendScore(id: number): Promise<void> {
     const now = new Date();
     await LtiScoreOutbox.create({
       dedupeKey: `${row.dedupeKey}:resend-${now.getTime()}`.slice(0, 200),
-      ltiContextId: row.ltiContextId, practicalId: row.practicalId, submissionId: row.submissionId, userId: row.userId,
-      platformUserId: row.platformUserId, scoreGiven: row.scoreGiven, scoreMaximum: row.scoreMaximum, comment: row.comment,
-      scoredAt: now, lineItemUrl: row.lineItemUrl, nextAttemptAt: now, lockedUntil: null, lastError: null, sentAt: null,
+      ltiContextId: row.ltiContextId,
+      practicalId: row.practicalId,
+      submissionId: row.submissionId,
+      userId: row.userId,
+      platformUserId: row.platformUserId,
+      scoreGiven: row.scoreGiven,
+      scoreMaximum: row.scoreMaximum,
+      comment: row.comment,
+      scoredAt: now,
+      lineItemUrl: row.lineItemUrl,
+      nextAttemptAt: now,
+      lockedUntil: null,
+      lastError: null,
+      sentAt: null,
     });
   } else {
     await LtiScoreOutbox.update({ status: 'queued', nextAttemptAt: new Date(), attempts: 0, lockedUntil: null }, { where: { id } });
   }
 }
 
-export type ScoreDelivery = { id: number; platformCourse: string; status: string; attempts: number; scoreGiven: number; scoreMaximum: number; lastError: string | null; sentAt: string | null; createdAt: string };
+export type ScoreDelivery = {
+  id: number;
+  platformCourse: string;
+  status: string;
+  attempts: number;
+  scoreGiven: number;
+  scoreMaximum: number;
+  lastError: string | null;
+  sentAt: string | null;
+  createdAt: string;
+};
 
 /** The score deliveries of one submission, for the marking page (beside the e-mail's). */
 /** GET /api/lti/submissions/[id]/scores's answer. */

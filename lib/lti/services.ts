@@ -27,7 +27,12 @@ export async function accessToken(registration: LtiRegistration, scopes: string[
   if (cached && cached.expiresAt > Date.now()) return cached.value;
   const assertion = await signAsTool(
     { jti: crypto.randomUUID() },
-    { issuer: registration.clientId, subject: registration.clientId, audience: registration.tokenAudience || registration.authTokenUrl, expiresInSeconds: 300 },
+    {
+      issuer: registration.clientId,
+      subject: registration.clientId,
+      audience: registration.tokenAudience || registration.authTokenUrl,
+      expiresInSeconds: 300,
+    },
   );
   const body = new URLSearchParams({
     grant_type: 'client_credentials',
@@ -40,7 +45,8 @@ export async function accessToken(registration: LtiRegistration, scopes: string[
     headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'application/json' },
     body,
   });
-  if (typeof data?.access_token !== 'string' || !data.access_token) throw new PlatformAnswered(registration.authTokenUrl, 200, 'no access_token in the answer');
+  if (typeof data?.access_token !== 'string' || !data.access_token)
+    throw new PlatformAnswered(registration.authTokenUrl, 200, 'no access_token in the answer');
   const seconds = typeof data.expires_in === 'number' && data.expires_in > 0 ? data.expires_in : 3600;
   // A minute's margin (or a tenth of a short life) so a token never expires on its way.
   tokens.set(key, { value: data.access_token, expiresAt: Date.now() + Math.max(0, seconds * 1000 - Math.min(60_000, seconds * 100)) });
@@ -81,14 +87,19 @@ const nextLink = (header: string | null): string | null => {
 
 /** Every member of the platform course, following the container's "next" pages. */
 export async function fetchRoster(ctx: LtiContext): Promise<PlatformMember[]> {
-  if (!ctx.membershipsUrl) throw new Error('The learning platform has not offered its roster for this course yet: launch Oscillab once from the course as an instructor.');
+  if (!ctx.membershipsUrl)
+    throw new Error(
+      'The learning platform has not offered its roster for this course yet: launch Oscillab once from the course as an instructor.',
+    );
   const registration = await registrationOf(ctx);
   const token = await accessToken(registration, [SCOPE.roster]);
   const members: PlatformMember[] = [];
   let url: string | null = ctx.membershipsUrl;
   for (let page = 0; url && page < 100; page++) {
     if (!isAcceptablePlatformUrl(url)) throw new Error('The roster continues at an address Oscillab does not call.');
-    const res: { data: { members?: unknown }; headers: Headers } = await platformJson<{ members?: unknown }>(url, { headers: { authorization: `Bearer ${token}`, accept: MEDIA.roster } });
+    const res: { data: { members?: unknown }; headers: Headers } = await platformJson<{ members?: unknown }>(url, {
+      headers: { authorization: `Bearer ${token}`, accept: MEDIA.roster },
+    });
     if (!Array.isArray(res.data?.members)) throw new PlatformAnswered(url, 200, 'the answer has no members list');
     for (const m of res.data.members as PlatformMember[]) {
       if (m && typeof m.user_id === 'string' && Array.isArray(m.roles)) members.push(m);
@@ -114,23 +125,37 @@ export async function lineItemFor(ctx: LtiContext, practical: Practical): Promis
   const { LtiLineItem } = models();
   const known = await LtiLineItem.findOne({ where: { ltiContextId: ctx.id, practicalId: practical.id } });
   if (known) return known.url;
-  if (!ctx.lineItemsUrl) throw new Error('The learning platform has not offered its gradebook for this course yet: launch Oscillab once from the course.');
+  if (!ctx.lineItemsUrl)
+    throw new Error('The learning platform has not offered its gradebook for this course yet: launch Oscillab once from the course.');
   const registration = await registrationOf(ctx);
   const token = await accessToken(registration, [SCOPE.lineItem, SCOPE.score]);
   const search = new URL(ctx.lineItemsUrl);
   search.searchParams.set('resource_id', lineItemResourceId(practical.id));
-  const { data: found } = await platformJson<unknown[]>(search.toString(), { headers: { authorization: `Bearer ${token}`, accept: MEDIA.lineItems } });
-  let url = Array.isArray(found) ? (found.find((i) => (i as { resourceId?: string }).resourceId === lineItemResourceId(practical.id)) as { id?: string } | undefined)?.id : undefined;
+  const { data: found } = await platformJson<unknown[]>(search.toString(), {
+    headers: { authorization: `Bearer ${token}`, accept: MEDIA.lineItems },
+  });
+  let url = Array.isArray(found)
+    ? (found.find((i) => (i as { resourceId?: string }).resourceId === lineItemResourceId(practical.id)) as { id?: string } | undefined)?.id
+    : undefined;
   if (!url) {
     const { data: created } = await platformJson<{ id?: string }>(ctx.lineItemsUrl, {
       method: 'POST',
       headers: { authorization: `Bearer ${token}`, 'content-type': MEDIA.lineItem, accept: MEDIA.lineItem },
-      body: JSON.stringify({ scoreMaximum: Math.max(1, await practicalMaximum(practical)), label: practical.title, resourceId: lineItemResourceId(practical.id), tag: 'oscillab' }),
+      body: JSON.stringify({
+        scoreMaximum: Math.max(1, await practicalMaximum(practical)),
+        label: practical.title,
+        resourceId: lineItemResourceId(practical.id),
+        tag: 'oscillab',
+      }),
     });
     url = created?.id;
   }
-  if (typeof url !== 'string' || !isAcceptablePlatformUrl(url)) throw new Error('The learning platform did not give a usable line item address.');
-  const [row] = await LtiLineItem.findOrCreate({ where: { ltiContextId: ctx.id, practicalId: practical.id }, defaults: { ltiContextId: ctx.id, practicalId: practical.id, url } });
+  if (typeof url !== 'string' || !isAcceptablePlatformUrl(url))
+    throw new Error('The learning platform did not give a usable line item address.');
+  const [row] = await LtiLineItem.findOrCreate({
+    where: { ltiContextId: ctx.id, practicalId: practical.id },
+    defaults: { ltiContextId: ctx.id, practicalId: practical.id, url },
+  });
   return row.url;
 }
 

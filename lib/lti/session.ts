@@ -12,7 +12,10 @@ type Account = { id: number; email: string; name: string; sessionVersion: number
 
 function cookieSettings() {
   const secure = authOptions.useSecureCookies ?? (process.env.NEXTAUTH_URL ?? '').startsWith('https://');
-  const fallback = { name: `${secure ? '__Secure-' : ''}next-auth.session-token`, options: { httpOnly: true, sameSite: 'lax', path: '/', secure } };
+  const fallback = {
+    name: `${secure ? '__Secure-' : ''}next-auth.session-token`,
+    options: { httpOnly: true, sameSite: 'lax', path: '/', secure },
+  };
   const custom = authOptions.cookies?.sessionToken;
   return { name: custom?.name ?? fallback.name, options: { ...fallback.options, ...(custom?.options ?? {}) } as typeof fallback.options };
 }
@@ -32,7 +35,13 @@ export async function sessionCookieFor(user: Account): Promise<string> {
   }
   const value = await (authOptions.jwt?.encode ?? encode)({ token, secret: sessionSecret(), maxAge });
   const { name, options } = cookieSettings();
-  const parts = [`${name}=${value}`, `Path=${options.path}`, `Max-Age=${maxAge}`, `Expires=${new Date(Date.now() + maxAge * 1000).toUTCString()}`, `SameSite=${options.sameSite === 'lax' ? 'Lax' : String(options.sameSite)}`];
+  const parts = [
+    `${name}=${value}`,
+    `Path=${options.path}`,
+    `Max-Age=${maxAge}`,
+    `Expires=${new Date(Date.now() + maxAge * 1000).toUTCString()}`,
+    `SameSite=${options.sameSite === 'lax' ? 'Lax' : String(options.sameSite)}`,
+  ];
   if (options.httpOnly) parts.push('HttpOnly');
   if (options.secure) parts.push('Secure');
   return parts.join('; ');

@@ -41,7 +41,14 @@ export function readLoginParameters(source: URLSearchParams): LoginParameters {
   if (!iss) refuse('login-no-issuer', 'The request does not say which learning platform it comes from (iss).');
   if (!loginHint) refuse('login-no-hint', 'The request does not name the person signing in (login_hint).');
   if (!target) refuse('login-no-target', 'The request does not say where in Oscillab to go (target_link_uri).');
-  return { iss, login_hint: loginHint, target_link_uri: target, lti_message_hint: get('lti_message_hint'), lti_deployment_id: get('lti_deployment_id'), client_id: get('client_id') };
+  return {
+    iss,
+    login_hint: loginHint,
+    target_link_uri: target,
+    lti_message_hint: get('lti_message_hint'),
+    lti_deployment_id: get('lti_deployment_id'),
+    client_id: get('client_id'),
+  };
 }
 
 /** The registration a login initiation or launch names; refused when unknown, ambiguous or switched off. */
@@ -49,16 +56,37 @@ export async function registrationFor(issuer: string, clientId?: string): Promis
   const rows = await models().LtiRegistration.findAll({ where: { issuer } });
   const matching = clientId ? rows.filter((r) => r.clientId === clientId) : rows;
   if (rows.length === 0) {
-    throw new LaunchRefused(401, 'unknown-platform', 'This learning platform is not connected to Oscillab', `No learning platform with the issuer “${issuer.slice(0, 200)}” is registered in Oscillab.`, 'The site administrator registers learning platforms on Oscillab’s administration page.');
+    throw new LaunchRefused(
+      401,
+      'unknown-platform',
+      'This learning platform is not connected to Oscillab',
+      `No learning platform with the issuer “${issuer.slice(0, 200)}” is registered in Oscillab.`,
+      'The site administrator registers learning platforms on Oscillab’s administration page.',
+    );
   }
   if (matching.length === 0) {
-    throw new LaunchRefused(401, 'wrong-audience', 'This sign-in was meant for another tool', 'The learning platform is registered, but not with this client id.');
+    throw new LaunchRefused(
+      401,
+      'wrong-audience',
+      'This sign-in was meant for another tool',
+      'The learning platform is registered, but not with this client id.',
+    );
   }
   if (matching.length > 1) {
-    throw new LaunchRefused(400, 'ambiguous-platform', 'Oscillab cannot tell which registration this is', 'Several registrations share this issuer; the learning platform must send its client id.');
+    throw new LaunchRefused(
+      400,
+      'ambiguous-platform',
+      'Oscillab cannot tell which registration this is',
+      'Several registrations share this issuer; the learning platform must send its client id.',
+    );
   }
   if (!matching[0].active) {
-    throw new LaunchRefused(403, 'platform-switched-off', 'This learning platform’s connection is switched off', 'The site administrator has switched off this learning platform’s connection to Oscillab.');
+    throw new LaunchRefused(
+      403,
+      'platform-switched-off',
+      'This learning platform’s connection is switched off',
+      'The site administrator has switched off this learning platform’s connection to Oscillab.',
+    );
   }
   return matching[0];
 }
@@ -69,8 +97,16 @@ export async function beginLogin(params: LoginParameters): Promise<{ location: s
     refuse('login-foreign-target', 'The request asks to go to an address outside Oscillab.');
   }
   if (params.lti_deployment_id) {
-    const known = await models().LtiDeployment.findOne({ where: { registrationId: registration.id, deploymentId: params.lti_deployment_id } });
-    if (!known) throw new LaunchRefused(401, 'unknown-deployment', 'This deployment is not known to Oscillab', 'The learning platform named a deployment that is not registered in Oscillab.');
+    const known = await models().LtiDeployment.findOne({
+      where: { registrationId: registration.id, deploymentId: params.lti_deployment_id },
+    });
+    if (!known)
+      throw new LaunchRefused(
+        401,
+        'unknown-deployment',
+        'This deployment is not known to Oscillab',
+        'The learning platform named a deployment that is not registered in Oscillab.',
+      );
   }
   const state = crypto.randomBytes(32).toString('base64url');
   const nonce = crypto.randomBytes(24).toString('base64url');
@@ -78,7 +114,13 @@ export async function beginLogin(params: LoginParameters): Promise<{ location: s
   const { LtiLaunchState } = models();
   // Old rows are of no use once expired; a day's margin keeps the table small without racing a launch.
   await LtiLaunchState.destroy({ where: { expiresAt: { [Op.lt]: new Date(now - 86400_000) } } });
-  await LtiLaunchState.create({ stateHash: sha256(state), nonce, registrationId: registration.id, expiresAt: new Date(now + limits.stateSeconds * 1000), usedAt: null });
+  await LtiLaunchState.create({
+    stateHash: sha256(state),
+    nonce,
+    registrationId: registration.id,
+    expiresAt: new Date(now + limits.stateSeconds * 1000),
+    usedAt: null,
+  });
 
   const url = new URL(registration.authLoginUrl);
   const query: Record<string, string | undefined> = {
@@ -95,7 +137,14 @@ export async function beginLogin(params: LoginParameters): Promise<{ location: s
   };
   for (const [k, v] of Object.entries(query)) if (v !== undefined) url.searchParams.set(k, v);
   const secure = secureCookies();
-  const cookie = [`${cookieName(state)}=${state}`, 'Path=/', `Max-Age=${limits.stateSeconds}`, 'HttpOnly', 'SameSite=Lax', ...(secure ? ['Secure'] : [])].join('; ');
+  const cookie = [
+    `${cookieName(state)}=${state}`,
+    'Path=/',
+    `Max-Age=${limits.stateSeconds}`,
+    'HttpOnly',
+    'SameSite=Lax',
+    ...(secure ? ['Secure'] : []),
+  ].join('; ');
   return { location: url.toString(), cookie };
 }
 

@@ -37,7 +37,7 @@ export async function queueEmail(mail: QueuedMail, transaction?: Transaction): P
       dedupeKey: mail.dedupeKey,
       toAddress: mail.to,
       // One line, whatever the caller built it from: a line break would end the header early.
-      // eslint-disable-next-line no-control-regex
+      // eslint-disable-next-line no-control-regex -- control characters are exactly what this pattern removes
       subject: mail.subject.replace(/[\u0000-\u001f\u007f-\u009f\u2028\u2029]+/g, ' ').slice(0, 300),
       textBody: mail.text,
       htmlBody: mail.html ?? null,
@@ -96,7 +96,11 @@ async function messageFor(row: OutboxRow): Promise<MailMessage> {
     const doc = await models().FeedbackDocument.findByPk(row.feedbackDocumentId);
     if (doc) {
       message.attachments = [
-        { filename: `feedback-${row.submissionId ?? doc.submissionId}.pdf`, content: await fs.readFile(feedbackPath(doc.storedName)), contentType: 'application/pdf' },
+        {
+          filename: `feedback-${row.submissionId ?? doc.submissionId}.pdf`,
+          content: await fs.readFile(feedbackPath(doc.storedName)),
+          contentType: 'application/pdf',
+        },
       ];
     }
   }
@@ -130,7 +134,10 @@ async function deliverDue(logger: Logger, options: { limit?: number; now?: () =>
     try {
       const { messageId } = await sendMail(await messageFor(row));
       // Written by id, not through the stale instance: claim() changed the row behind its back.
-      await EmailOutbox.update({ status: 'sent', sentAt: now(), messageId, lockedUntil: null, lastError: null, attempts: row.attempts + 1 }, { where: { id: row.id } });
+      await EmailOutbox.update(
+        { status: 'sent', sentAt: now(), messageId, lockedUntil: null, lastError: null, attempts: row.attempts + 1 },
+        { where: { id: row.id } },
+      );
       sent++;
     } catch (error) {
       const attempts = row.attempts + 1;

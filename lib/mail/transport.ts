@@ -36,12 +36,19 @@ export function transporter(): Transporter {
       url,
       // Pool and time limits as URL parameters: nodemailer reads a connection URL for the whole
       // configuration (options passed beside it are taken as message defaults, or dropped).
-      transporter: nodemailer.createTransport(withParameters(url, {
-        // maxRequeues 0: a message whose connection drops mid-send goes back to the outbox (which
-        // retries it with back-off and the same Message-ID), not round the pool again unrecorded.
-        pool: 'true', maxConnections: String(smtpPoolSize()), maxMessages: '500', maxRequeues: '0',
-        connectionTimeout: '5000', greetingTimeout: '5000', socketTimeout: '10000',
-      })),
+      transporter: nodemailer.createTransport(
+        withParameters(url, {
+          // maxRequeues 0: a message whose connection drops mid-send goes back to the outbox (which
+          // retries it with back-off and the same Message-ID), not round the pool again unrecorded.
+          pool: 'true',
+          maxConnections: String(smtpPoolSize()),
+          maxMessages: '500',
+          maxRequeues: '0',
+          connectionTimeout: '5000',
+          greetingTimeout: '5000',
+          socketTimeout: '10000',
+        }),
+      ),
     };
   }
   return cached.transporter;

@@ -34,19 +34,33 @@ export function feedbackInputFromView(view: MarkingView, now = new Date()): Feed
       return {
         label: q.label,
         reported: q.reportedTyped,
-        rows: [q.consistency, q.accuracy].filter((r) => r !== null).map((r) => ({ basis: r.basis, expected: r.expectedDisplay, deviation: r.deviationDisplay, verdict: r.verdict })),
+        rows: [q.consistency, q.accuracy]
+          .filter((r) => r !== null)
+          .map((r) => ({ basis: r.basis, expected: r.expectedDisplay, deviation: r.deviationDisplay, verdict: r.verdict })),
         marks: mark ? `${n(mark.awarded ?? mark.proposed)}/${n(mark.maxMarks)}` : '',
       };
     }),
     slips: slipsByCode(view.slips),
     plots: view.fits
       .filter((f) => f.residuals.length > 0)
-      .map((f) => ({ species: speciesDisplay(f.species), fit: fitPlotModel(f), residuals: residualModel(f), description: f.description, notices: f.notices.map((x) => x.message) })),
+      .map((f) => ({
+        species: speciesDisplay(f.species),
+        fit: fitPlotModel(f),
+        residuals: residualModel(f),
+        description: f.description,
+        notices: f.notices.map((x) => x.message),
+      })),
     fromSpectrum: view.spectrumAnalysis?.comparison
       ? {
           legend: view.spectrumAnalysis.comparison.legend,
           verdicts: Object.values(SPECTRUM_VERDICT),
-          rows: view.spectrumAnalysis.comparison.rows.map((r) => ({ label: r.label, reported: r.reported, fromSpectrum: r.fromSpectrum, deviation: r.deviation, verdict: SPECTRUM_VERDICT[r.verdict] })),
+          rows: view.spectrumAnalysis.comparison.rows.map((r) => ({
+            label: r.label,
+            reported: r.reported,
+            fromSpectrum: r.fromSpectrum,
+            deviation: r.deviation,
+            verdict: SPECTRUM_VERDICT[r.verdict],
+          })),
         }
       : null,
     rubric: view.marks.filter((m) => m.handMarked).map((m) => ({ label: m.label, marks: `${n(m.awarded)}/${n(m.maxMarks)}` })),

@@ -30,18 +30,31 @@ export function fitPlotModel(fit: FitData, options: { width?: number; height?: n
   const xt = niceTicks(xmin, xmax, Math.max(3, Math.round(area.width / 70)));
   const yt = niceTicks(ymin, ymax, Math.max(3, Math.round(area.height / 45)));
   const curve: [number, number][] = [];
-  if (fit.coefficients.length) for (let i = 0; i <= 120; i++) {
-    const m = xmin + ((xmax - xmin) * i) / 120;
-    curve.push([r2(px(m)), r2(py(poly(m)))]);
-  }
+  if (fit.coefficients.length)
+    for (let i = 0; i <= 120; i++) {
+      const m = xmin + ((xmax - xmin) * i) / 120;
+      curve.push([r2(px(m)), r2(py(poly(m)))]);
+    }
   const ly = height - 10;
   return {
     kind: 'band',
     width,
     height,
     area,
-    xAxis: { label: 'Running index m', min: xmin, max: xmax, reversed: false, ticks: xt.values.filter(Number.isInteger).map((v) => ({ value: v, pos: r2(px(v)), label: tick(v, 0) })) },
-    yAxis: { label: 'Line position ν̃ / cm⁻¹', min: ymin, max: ymax, reversed: false, ticks: yt.values.map((v) => ({ value: v, pos: r2(py(v)), label: tick(v, yt.decimals) })) },
+    xAxis: {
+      label: 'Running index m',
+      min: xmin,
+      max: xmax,
+      reversed: false,
+      ticks: xt.values.filter(Number.isInteger).map((v) => ({ value: v, pos: r2(px(v)), label: tick(v, 0) })),
+    },
+    yAxis: {
+      label: 'Line position ν̃ / cm⁻¹',
+      min: ymin,
+      max: ymax,
+      reversed: false,
+      ticks: yt.values.map((v) => ({ value: v, pos: r2(py(v)), label: tick(v, yt.decimals) })),
+    },
     curve,
     markers: pts.map((p) => ({
       x: r2(px(p.m)),
@@ -62,5 +75,8 @@ export function fitPlotModel(fit: FitData, options: { width?: number; height?: n
 }
 
 export function residualModel(fit: FitData, options: { width?: number; height?: number } = {}): PlotModel {
-  return residualPlotModel(fit.residuals.map((r) => ({ m: r.m, residual: r.residual })), options);
+  return residualPlotModel(
+    fit.residuals.map((r) => ({ m: r.m, residual: r.residual })),
+    options,
+  );
 }

@@ -26,7 +26,8 @@ export async function claimVersion(submissionId: number, version: number, t: Tra
   );
   if (count === 1) return;
   const now = await Submission.findByPk(submissionId, { transaction: t });
-  if (now && !statuses.includes(now.status)) throw new HttpError(409, `This submission is ${now.status.replace('-', ' ')}; its marks can no longer be changed here.`);
+  if (now && !statuses.includes(now.status))
+    throw new HttpError(409, `This submission is ${now.status.replace('-', ' ')}; its marks can no longer be changed here.`);
   throw new HttpError(409, STALE_MESSAGE);
 }
 
@@ -55,7 +56,9 @@ export async function saveMarks(actorId: number, submissionId: number, input: Sa
         throw new HttpError(400, `${mark.label}: at most ${mark.maxMarks} marks.`, { [item.itemKey]: [`At most ${mark.maxMarks}.`] });
       const overrides = mark.proposed !== null && item.awarded !== null && !close(item.awarded, mark.proposed);
       if (overrides && !(item.comment && item.comment.trim()))
-        throw new HttpError(400, `${mark.label}: say why you changed the proposed mark (a comment is required).`, { [item.itemKey]: ['A comment is required when you change the proposed mark.'] });
+        throw new HttpError(400, `${mark.label}: say why you changed the proposed mark (a comment is required).`, {
+          [item.itemKey]: ['A comment is required when you change the proposed mark.'],
+        });
     }
     await claimVersion(submissionId, input.version, t);
     const submission = (await Submission.findByPk(submissionId, { transaction: t }))!;
@@ -69,13 +72,16 @@ export async function saveMarks(actorId: number, submissionId: number, input: Sa
       after[item.itemKey] = { awarded: item.awarded, comment };
       await mark.update({ awarded: item.awarded, comment, markerId: actorId }, { transaction: t });
     }
-    const markerComment = input.markerComment === undefined ? submission.markerComment ?? null : input.markerComment?.trim() || null;
+    const markerComment = input.markerComment === undefined ? (submission.markerComment ?? null) : input.markerComment?.trim() || null;
     if (markerComment !== (submission.markerComment ?? null)) {
       before.markerComment = submission.markerComment ?? null;
       after.markerComment = markerComment;
     }
     const unmarked = marks.filter((m) => m.awarded === null).length;
-    const total = totalAfterPenalty(marks.map((m) => m.awarded), submission.latePenalty);
+    const total = totalAfterPenalty(
+      marks.map((m) => m.awarded),
+      submission.latePenalty,
+    );
     const status: SubmissionStatus = unmarked === 0 && marks.length > 0 ? 'marked' : submission.status;
     const changes = {
       markerComment,

@@ -30,17 +30,30 @@ export async function moderationSample(courseId: number, share = DEFAULT_SHARE) 
   const practicals = await Practical.findAll({ where: { courseId }, attributes: ['id', 'title'] });
   if (!practicals.length) return [];
   const subs = await Submission.findAll({
-    where: { practicalId: practicals.map((p) => p.id), status: { [Op.in]: ['marked', 'released'] }, isMarkedAttempt: true, markedById: { [Op.ne]: null } },
-    include: [{ model: User, as: 'student', attributes: ['name'] }, { model: Cohort, attributes: ['name', 'term'] }],
+    where: {
+      practicalId: practicals.map((p) => p.id),
+      status: { [Op.in]: ['marked', 'released'] },
+      isMarkedAttempt: true,
+      markedById: { [Op.ne]: null },
+    },
+    include: [
+      { model: User, as: 'student', attributes: ['name'] },
+      { model: Cohort, attributes: ['name', 'term'] },
+    ],
     order: [['id', 'ASC']],
   });
   const byMarker = new Map<number, typeof subs>();
   for (const s of subs) byMarker.set(s.markedById!, [...(byMarker.get(s.markedById!) ?? []), s]);
   const markers = await User.findAll({ where: { id: [...byMarker.keys()] }, attributes: ['id', 'name'] });
-  const picked = [...byMarker.entries()].flatMap(([, list]) => [...list].sort((a, b) => rank(a.id) - rank(b.id)).slice(0, sampleSize(list.length, share)));
+  const picked = [...byMarker.entries()].flatMap(([, list]) =>
+    [...list].sort((a, b) => rank(a.id) - rank(b.id)).slice(0, sampleSize(list.length, share)),
+  );
   const ids = picked.map((s) => s.id);
   const [mods, marks] = ids.length
-    ? await Promise.all([Moderation.findAll({ where: { submissionId: ids }, order: [['id', 'ASC']] }), Mark.findAll({ where: { submissionId: ids }, order: [['id', 'ASC']] })])
+    ? await Promise.all([
+        Moderation.findAll({ where: { submissionId: ids }, order: [['id', 'ASC']] }),
+        Mark.findAll({ where: { submissionId: ids }, order: [['id', 'ASC']] }),
+      ])
     : [[], []];
   const title = new Map(practicals.map((p) => [p.id, p.title]));
   return [...byMarker.entries()].map(([markerId, list]) => ({
@@ -62,7 +75,16 @@ export async function moderationSample(courseId: number, share = DEFAULT_SHARE) 
           awardedTotal: s.awardedTotal,
           latePenalty: s.latePenalty,
           moderation: last ? { decision: last.decision, note: last.note, at: last.createdAt.toISOString() } : null,
-          items: marks.filter((m) => m.submissionId === s.id).map((m) => ({ itemKey: m.itemKey, label: m.label, maxMarks: m.maxMarks, proposed: m.proposed, awarded: m.awarded, comment: m.comment })),
+          items: marks
+            .filter((m) => m.submissionId === s.id)
+            .map((m) => ({
+              itemKey: m.itemKey,
+              label: m.label,
+              maxMarks: m.maxMarks,
+              proposed: m.proposed,
+              awarded: m.awarded,
+              comment: m.comment,
+            })),
         };
       }),
   }));
@@ -78,7 +100,8 @@ export async function moderate(
     const s = await Submission.findByPk(submissionId, { transaction: t });
     if (!s) throw new HttpError(404, 'Not found.');
     if (!s.markedById || !['marked', 'released'].includes(s.status)) throw new HttpError(409, 'Only marked submissions can be moderated.');
-    if (input.decision === 'changed' && s.status === 'released') throw new HttpError(409, 'This feedback has already been released; its marks cannot be changed in moderation.');
+    if (input.decision === 'changed' && s.status === 'released')
+      throw new HttpError(409, 'This feedback has already been released; its marks cannot be changed in moderation.');
     const marks = await Mark.findAll({ where: { submissionId }, transaction: t });
     const byKey = new Map(marks.map((m) => [m.itemKey, m]));
     for (const item of input.items) {
@@ -100,14 +123,24 @@ export async function moderate(
         await m.update({ awarded: item.awarded }, { transaction: t });
       }
     }
-    const totalAfter = totalAfterPenalty(marks.map((m) => m.awarded), s.latePenalty);
+    const totalAfter = totalAfterPenalty(
+      marks.map((m) => m.awarded),
+      s.latePenalty,
+    );
     if (input.decision === 'changed') await s.update({ awardedTotal: totalAfter }, { transaction: t });
     const row = await Moderation.create(
       { submissionId, moderatorId, markerId: s.markedById, decision: input.decision, totalBefore, totalAfter, note: input.note ?? null },
       { transaction: t },
     );
     await audit(
-      { actorId: moderatorId, action: `moderation.${input.decision}`, entityType: 'submission', entityId: submissionId, before: { ...before, awardedTotal: totalBefore }, after: { ...after, awardedTotal: totalAfter, moderationId: row.id } },
+      {
+        actorId: moderatorId,
+        action: `moderation.${input.decision}`,
+        entityType: 'submission',
+        entityId: submissionId,
+        before: { ...before, awardedTotal: totalBefore },
+        after: { ...after, awardedTotal: totalAfter, moderationId: row.id },
+      },
       t,
     );
     return { id: row.id, decision: row.decision, totalBefore, totalAfter };

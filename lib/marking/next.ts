@@ -14,7 +14,10 @@ export async function nextToMark(actor: Actor, currentId: number): Promise<{ id:
   const next = await Submission.findOne({
     where: { [Op.and]: [scope, { isMarkedAttempt: true, status: 'submitted', id: { [Op.ne]: currentId } }] },
     attributes: ['id', 'studentId'],
-    order: [['submittedAt', 'ASC'], ['id', 'ASC']],
+    order: [
+      ['submittedAt', 'ASC'],
+      ['id', 'ASC'],
+    ],
   });
   if (!next) return null;
   const student = await User.findByPk(next.studentId, { attributes: ['name'] });

@@ -15,15 +15,25 @@ import { cohortName } from '@/lib/display';
 import { models } from '@/models';
 import type { QueueQuery } from '@/lib/schemas/marking';
 
-const FLAG_COLUMN = { outside: 'flagOutside', slip: 'flagSlip', late: 'flagLate', duplicate: 'flagDuplicate', spectrum: 'flagSpectrumMismatch' } as const;
+const FLAG_COLUMN = {
+  outside: 'flagOutside',
+  slip: 'flagSlip',
+  late: 'flagLate',
+  duplicate: 'flagDuplicate',
+  spectrum: 'flagSpectrumMismatch',
+} as const;
 
 /** Which submissions the actor may mark: everything, whole cohorts, or named students of a cohort (null: none at all). */
-export async function markingCells(actor: Actor): Promise<{ all: boolean; cohorts: number[]; students: { cohortId: number; studentId: number }[] } | null> {
+export async function markingCells(
+  actor: Actor,
+): Promise<{ all: boolean; cohorts: number[]; students: { cohortId: number; studentId: number }[] } | null> {
   if (actor.isAdmin) return { all: true, cohorts: [], students: [] };
   const { Cohort } = models();
   const managed = [...new Set(actor.memberships.filter((m) => m.role === 'instructor' || m.role === 'lead').map((m) => m.courseId))];
   const taCourses = new Set(actor.memberships.filter((m) => m.role === 'ta').map((m) => m.courseId));
-  const managedCohorts = managed.length ? (await Cohort.findAll({ where: { courseId: managed }, attributes: ['id'] })).map((c) => c.id) : [];
+  const managedCohorts = managed.length
+    ? (await Cohort.findAll({ where: { courseId: managed }, attributes: ['id'] })).map((c) => c.id)
+    : [];
   let duties = actor.taDuties;
   if (duties.length) {
     // A TA duty counts only while the person is still a TA in that cohort's course.
@@ -90,13 +100,19 @@ const SORT_COLUMN: Record<QueueQuery['sort'], string> = {
   awardedTotal: 's."awardedTotal"',
 };
 const SORT_ALIAS: Record<QueueQuery['sort'], string> = {
-  submittedAt: 'submittedAt', student: 'studentName', practical: 'practicalTitle', status: 'status', proposedTotal: 'proposedTotal', awardedTotal: 'awardedTotal',
+  submittedAt: 'submittedAt',
+  student: 'studentName',
+  practical: 'practicalTitle',
+  status: 'status',
+  proposedTotal: 'proposedTotal',
+  awardedTotal: 'awardedTotal',
 };
 
 type Cursor = { v: string | number | null; d?: 1; i: number };
 
 function encodeCursor(value: unknown, id: number): string {
-  const c: Cursor = value instanceof Date ? { v: value.toISOString(), d: 1, i: id } : { v: (value ?? null) as string | number | null, i: id };
+  const c: Cursor =
+    value instanceof Date ? { v: value.toISOString(), d: 1, i: id } : { v: (value ?? null) as string | number | null, i: id };
   return Buffer.from(JSON.stringify(c)).toString('base64url');
 }
 
@@ -104,7 +120,8 @@ function decodeCursor(text: string): { value: unknown; id: number } {
   try {
     const c = JSON.parse(Buffer.from(text, 'base64url').toString('utf8')) as Cursor;
     const okValue = c.v === null || typeof c.v === 'number' || (typeof c.v === 'string' && c.v.length <= 300);
-    if (!okValue || !Number.isSafeInteger(c.i) || c.i <= 0 || (c.d && (typeof c.v !== 'string' || Number.isNaN(Date.parse(c.v))))) throw new Error('bad');
+    if (!okValue || !Number.isSafeInteger(c.i) || c.i <= 0 || (c.d && (typeof c.v !== 'string' || Number.isNaN(Date.parse(c.v)))))
+      throw new Error('bad');
     return { value: c.d ? new Date(c.v as string) : c.v, id: c.i };
   } catch {
     throw new HttpError(400, 'The page link is not valid any more: go back to the first page of the queue.');
@@ -117,7 +134,14 @@ function decodeCursor(text: string): { value: unknown; id: number } {
  * NULLS FIRST/LAST and an index in the sort column's order serves it (SQLite cannot use an index
  * for NULLS LAST, and would sort every row of the queue).
  */
-function keysetAfter(col: string, ascending: boolean, idAscending: boolean, value: unknown, nullsLargest: boolean, replacements: Record<string, unknown>): string {
+function keysetAfter(
+  col: string,
+  ascending: boolean,
+  idAscending: boolean,
+  value: unknown,
+  nullsLargest: boolean,
+  replacements: Record<string, unknown>,
+): string {
   replacements.kv = value;
   const idCmp = `s.id ${idAscending ? '>' : '<'} :ki`;
   const nullsAfter = ascending === nullsLargest; // in this direction, do NULLs come after every value?
@@ -205,7 +229,12 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage>
   const { EmailOutbox } = models();
   const ids = pageRows.map((r) => Number(r.id));
   const mail = ids.length
-    ? await EmailOutbox.findAll({ where: { submissionId: ids, dedupeKey: { [Op.like]: 'release:%' } }, attributes: ['submissionId', 'status', 'id'], order: [['id', 'ASC']], raw: true })
+    ? await EmailOutbox.findAll({
+        where: { submissionId: ids, dedupeKey: { [Op.like]: 'release:%' } },
+        attributes: ['submissionId', 'status', 'id'],
+        order: [['id', 'ASC']],
+        raw: true,
+      })
     : [];
   const lastRelease = new Map<number, string>();
   for (const m of mail) if (m.submissionId) lastRelease.set(m.submissionId, m.status);
@@ -214,12 +243,26 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage>
   const numOrNull = (v: unknown) => (v === null || v === undefined ? null : Number(v));
   const out: QueueRow[] = pageRows.map((r) => {
     const id = Number(r.id);
-    const submittedAt = r.submittedAt === null || r.submittedAt === undefined ? null : new Date(r.submittedAt instanceof Date ? r.submittedAt : String(r.submittedAt).replace(' ', 'T').replace(' ', ''));
+    const submittedAt =
+      r.submittedAt === null || r.submittedAt === undefined
+        ? null
+        : new Date(r.submittedAt instanceof Date ? r.submittedAt : String(r.submittedAt).replace(' ', 'T').replace(' ', ''));
     return {
       id,
-      student: { id: Number(r.studentId), name: String(r.studentName), email: String(r.studentEmail), studentNumber: r.studentNumber === null || r.studentNumber === undefined ? null : String(r.studentNumber) },
+      student: {
+        id: Number(r.studentId),
+        name: String(r.studentName),
+        email: String(r.studentEmail),
+        studentNumber: r.studentNumber === null || r.studentNumber === undefined ? null : String(r.studentNumber),
+      },
       practical: { id: Number(r.practicalId), title: String(r.practicalTitle) },
-      cohort: { id: Number(r.cohortId), name: cohortName({ name: String(r.cohortName), term: r.cohortTerm === null || r.cohortTerm === undefined ? null : String(r.cohortTerm) }) },
+      cohort: {
+        id: Number(r.cohortId),
+        name: cohortName({
+          name: String(r.cohortName),
+          term: r.cohortTerm === null || r.cohortTerm === undefined ? null : String(r.cohortTerm),
+        }),
+      },
       status: String(r.status),
       attempt: Number(r.attempt),
       submittedAt: submittedAt && !Number.isNaN(submittedAt.getTime()) ? submittedAt.toISOString() : null,
@@ -227,10 +270,22 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage>
       awardedTotal: numOrNull(r.awardedTotal),
       maxTotal: numOrNull(r.maxTotal),
       version: Number(r.version),
-      flags: { outside: bool(r.flagOutside), slip: bool(r.flagSlip), late: bool(r.flagLate), duplicate: bool(r.flagDuplicate), spectrum: bool(r.flagSpectrumMismatch) },
+      flags: {
+        outside: bool(r.flagOutside),
+        slip: bool(r.flagSlip),
+        late: bool(r.flagLate),
+        duplicate: bool(r.flagDuplicate),
+        spectrum: bool(r.flagSpectrumMismatch),
+      },
       summary: {
-        within: Number(r.verdictsWithin), partial: Number(r.verdictsPartial), outside: Number(r.verdictsOutside), notChecked: Number(r.verdictsNotChecked),
-        slips: String(r.slipCodes ?? '').split(',').filter(Boolean).map((code) => ({ code, title: slipTitle(code) })),
+        within: Number(r.verdictsWithin),
+        partial: Number(r.verdictsPartial),
+        outside: Number(r.verdictsOutside),
+        notChecked: Number(r.verdictsNotChecked),
+        slips: String(r.slipCodes ?? '')
+          .split(',')
+          .filter(Boolean)
+          .map((code) => ({ code, title: slipTitle(code) })),
       },
       delivery: lastRelease.get(id) ?? null,
     };
@@ -266,8 +321,17 @@ export async function queueFilters(actor: Actor) {
     if (managed.length) (await Cohort.findAll({ where: { courseId: managed }, attributes: ['id'] })).forEach((c) => cohortIds.add(c.id));
     actor.taDuties.forEach((d) => cohortIds.add(d.cohortId));
   }
-  const cohorts = await Cohort.findAll({ where: { id: [...cohortIds] }, order: [['term', 'DESC'], ['name', 'ASC']] });
+  const cohorts = await Cohort.findAll({
+    where: { id: [...cohortIds] },
+    order: [
+      ['term', 'DESC'],
+      ['name', 'ASC'],
+    ],
+  });
   const links = await PracticalCohort.findAll({ where: { cohortId: [...cohortIds] }, attributes: ['practicalId'] });
   const practicals = await Practical.findAll({ where: { id: [...new Set(links.map((l) => l.practicalId))] }, order: [['title', 'ASC']] });
-  return { practicals: practicals.map((p) => ({ id: p.id, title: p.title })), cohorts: cohorts.map((c) => ({ id: c.id, name: cohortName(c) })) };
+  return {
+    practicals: practicals.map((p) => ({ id: p.id, title: p.title })),
+    cohorts: cohorts.map((c) => ({ id: c.id, name: cohortName(c) })),
+  };
 }

@@ -66,13 +66,27 @@ async function commitRelease(actorId: number, submissionId: number, view: Loaded
         link: `${appUrl()}/student/practicals/${view.practical.id}#attempt-${submissionId}`,
       });
       await queueEmail(
-        { dedupeKey: `release:${submissionId}:${n}`, to: view.student.email, subject: mail.subject, text: mail.text, submissionId, feedbackDocumentId: doc.id },
+        {
+          dedupeKey: `release:${submissionId}:${n}`,
+          to: view.student.email,
+          subject: mail.subject,
+          text: mail.text,
+          submissionId,
+          feedbackDocumentId: doc.id,
+        },
         t,
       );
       // The score for the learning platform's gradebook, if the course is connected to one.
       await queueReleaseScores(view, n, t);
       await audit(
-        { actorId, action: 'submission.release', entityType: 'submission', entityId: submissionId, before: { status: 'marked' }, after: { status: 'released', feedbackDocumentId: doc.id } },
+        {
+          actorId,
+          action: 'submission.release',
+          entityType: 'submission',
+          entityId: submissionId,
+          before: { status: 'marked' },
+          after: { status: 'released', feedbackDocumentId: doc.id },
+        },
         t,
       );
       return { submissionId, ok: true, feedbackDocumentId: doc.id };
@@ -89,7 +103,8 @@ async function releaseWith(actorId: number, submissionId: number, batchSize: num
   const view = await loadMarkingView(submissionId);
   if (timings) timings.load += performance.now() - t0;
   if (view.submission.status === 'released') return { submissionId, ok: false, message: 'Already released.' };
-  if (view.submission.status !== 'marked') return { submissionId, ok: false, message: 'Only marked submissions can be released: finish marking first.' };
+  if (view.submission.status !== 'marked')
+    return { submissionId, ok: false, message: 'Only marked submissions can be released: finish marking first.' };
   t0 = performance.now();
   const pdf = await renderFeedbackPdf(feedbackInputFromView(view), batchSize);
   if (timings) timings.render += performance.now() - t0;

@@ -13,7 +13,8 @@ export async function requestResubmission(actor: { id: number; name: string }, s
   return sequelize().transaction(async (t) => {
     const s = await Submission.findByPk(submissionId, { transaction: t });
     if (!s) throw new HttpError(404, 'Not found.');
-    if (!['submitted', 'marked'].includes(s.status)) throw new HttpError(409, `This submission is ${s.status.replace('-', ' ')}; a resubmission can only be asked for before release.`);
+    if (!['submitted', 'marked'].includes(s.status))
+      throw new HttpError(409, `This submission is ${s.status.replace('-', ' ')}; a resubmission can only be asked for before release.`);
     const where: Record<string, unknown> = { id: submissionId, status: s.status, version: version ?? s.version };
     const [count] = await Submission.update(
       {
@@ -40,7 +41,16 @@ export async function requestResubmission(actor: { id: number; name: string }, s
       message,
       link: `${appUrl()}/student`,
     });
-    await queueEmail({ dedupeKey: `resubmit:${submissionId}:${s.extraAttempts + 1}`, to: student!.email, subject: mail.subject, text: mail.text, submissionId }, t);
+    await queueEmail(
+      {
+        dedupeKey: `resubmit:${submissionId}:${s.extraAttempts + 1}`,
+        to: student!.email,
+        subject: mail.subject,
+        text: mail.text,
+        submissionId,
+      },
+      t,
+    );
     await audit(
       {
         actorId: actor.id,

@@ -19,7 +19,8 @@ export async function createFixturePractical(courseId: number, cohortIds: number
     copiedFromId: null,
     archivedAt: null,
   });
-  for (const cohortId of cohortIds) await PracticalCohort.create({ practicalId: practical.id, cohortId, opensAt: null, deadline: new Date('2026-12-01T17:00:00Z') });
+  for (const cohortId of cohortIds)
+    await PracticalCohort.create({ practicalId: practical.id, cohortId, opensAt: null, deadline: new Date('2026-12-01T17:00:00Z') });
   return practical;
 }
 
@@ -44,13 +45,22 @@ export async function createCheckedSubmission(opts: {
   submittedAt?: Date;
 }) {
   const { Submission, SubmittedValue, CheckResult, SlipFinding, Mark, LineAssignment } = models();
-  const lines = simulateLineList(FIXTURE_SPECIES, { jMax: 8 }).map((l) => ({ branch: l.branch as 'P' | 'R', J: l.J, wavenumber: Math.round(l.wavenumber * 100) / 100 }));
+  const lines = simulateLineList(FIXTURE_SPECIES, { jMax: 8 }).map((l) => ({
+    branch: l.branch as 'P' | 'R',
+    J: l.J,
+    wavenumber: Math.round(l.wavenumber * 100) / 100,
+  }));
   const reported = reportedValues(opts);
   const result = checkSubmission({
     species: FIXTURE_SPECIES as never,
     measured: { bandCentre: reported.bandCentre, lines },
     reported,
-    tolerances: { bandCentre: { absolute: 2, unit: 'cm-1' }, forceConstant: { relative: 0.01 }, B0: { relative: 0.01, partial: { relative: 0.03 } }, reducedMass: { relative: 0.001 } },
+    tolerances: {
+      bandCentre: { absolute: 2, unit: 'cm-1' },
+      forceConstant: { relative: 0.01 },
+      B0: { relative: 0.01, partial: { relative: 0.03 } },
+      reducedMass: { relative: 0.001 },
+    },
     requireUncertainty: false,
   });
   const quantities = result.quantities;
@@ -80,15 +90,40 @@ export async function createCheckedSubmission(opts: {
     resubmissionMessage: null,
   });
   const sid = submission.id;
-  await LineAssignment.bulkCreate(lines.map((l) => ({ submissionId: sid, species: FIXTURE_SPECIES, branch: l.branch, J: l.J, wavenumber: l.wavenumber, source: 'student' })));
+  await LineAssignment.bulkCreate(
+    lines.map((l) => ({
+      submissionId: sid,
+      species: FIXTURE_SPECIES,
+      branch: l.branch,
+      J: l.J,
+      wavenumber: l.wavenumber,
+      source: 'student',
+    })),
+  );
   for (const [key, num] of Object.entries(reported)) {
     const q = quantities.find((x) => x.key === key);
-    await SubmittedValue.create({ submissionId: sid, key, species: FIXTURE_SPECIES, valueText: String(num!.value), unit: num!.unit, uncertaintyText: null, valueSI: q?.reportedSI ?? null });
+    await SubmittedValue.create({
+      submissionId: sid,
+      key,
+      species: FIXTURE_SPECIES,
+      valueText: String(num!.value),
+      unit: num!.unit,
+      uncertaintyText: null,
+      valueSI: q?.reportedSI ?? null,
+    });
   }
   await CheckResult.bulkCreate(
     quantities.map((q) => ({
-      submissionId: sid, key: q.key, species: FIXTURE_SPECIES, basis: q.basis, reportedSI: q.reportedSI, expectedSI: q.expectedSI,
-      deviation: q.deviation, relativeDeviation: q.relativeDeviation, verdict: q.verdict, slipCodes: q.diagnoses.map((d) => d.code).join(','),
+      submissionId: sid,
+      key: q.key,
+      species: FIXTURE_SPECIES,
+      basis: q.basis,
+      reportedSI: q.reportedSI,
+      expectedSI: q.expectedSI,
+      deviation: q.deviation,
+      relativeDeviation: q.relativeDeviation,
+      verdict: q.verdict,
+      slipCodes: q.diagnoses.map((d) => d.code).join(','),
     })),
   );
   if (slips.length) await SlipFinding.bulkCreate(slips.map((s) => ({ submissionId: sid, ...s })));
@@ -96,18 +131,42 @@ export async function createCheckedSubmission(opts: {
   let maxTotal = 0;
   for (const key of Object.keys(reported) as QuantityKey[]) {
     const checks = quantities.filter((q) => q.key === key);
-    const verdict = worstVerdict(checks.find((c) => c.basis === 'consistency')?.verdict, checks.find((c) => c.basis === 'accuracy')?.verdict);
+    const verdict = worstVerdict(
+      checks.find((c) => c.basis === 'consistency')?.verdict,
+      checks.find((c) => c.basis === 'accuracy')?.verdict,
+    );
     const proposed = marksFor(verdict === 'not-checked' ? 'outside' : verdict, 2);
     proposedTotal += proposed;
     maxTotal += 2;
-    await Mark.create({ submissionId: sid, itemKey: `${key}:${FIXTURE_SPECIES}`, label: `${QUANTITIES[key].label} (${FIXTURE_SPECIES})`, maxMarks: 2, proposed, awarded: null, comment: null, markerId: null });
+    await Mark.create({
+      submissionId: sid,
+      itemKey: `${key}:${FIXTURE_SPECIES}`,
+      label: `${QUANTITIES[key].label} (${FIXTURE_SPECIES})`,
+      maxMarks: 2,
+      proposed,
+      awarded: null,
+      comment: null,
+      markerId: null,
+    });
   }
-  await Mark.create({ submissionId: sid, itemKey: 'rubric:discussion', label: 'Discussion of errors', maxMarks: 2, proposed: null, awarded: null, comment: null, markerId: null });
+  await Mark.create({
+    submissionId: sid,
+    itemKey: 'rubric:discussion',
+    label: 'Discussion of errors',
+    maxMarks: 2,
+    proposed: null,
+    awarded: null,
+    comment: null,
+    markerId: null,
+  });
   maxTotal += 2;
   const count = (v: string) => quantities.filter((q) => q.verdict === v).length;
   await submission.update({
-    proposedTotal, maxTotal,
-    verdictsWithin: count('within'), verdictsPartial: count('partial'), verdictsOutside: count('outside'),
+    proposedTotal,
+    maxTotal,
+    verdictsWithin: count('within'),
+    verdictsPartial: count('partial'),
+    verdictsOutside: count('outside'),
     verdictsNotChecked: quantities.length - count('within') - count('partial') - count('outside'),
     slipCodes: [...new Set(slips.map((s) => s.code))].sort().join(','),
   });

@@ -76,7 +76,6 @@ function display(valueSI: number | null | undefined, key: string, signed = false
   return joinUnit(`${sign}${text}`, unit);
 }
 
-
 function labelFor(key: string, species: string): string {
   const base = isQuantityKey(key) ? QUANTITIES[key].label : key;
   return species ? `${base} (${speciesDisplay(species)})` : base;
@@ -102,7 +101,8 @@ export function fitsFromSummary(summary: unknown): FitData[] {
       });
       return;
     }
-    for (const [k, v] of Object.entries(n)) if (v && typeof v === 'object' && k !== 'quantities') visit(v, Array.isArray(n) ? speciesHint : k, depth + 1);
+    for (const [k, v] of Object.entries(n))
+      if (v && typeof v === 'object' && k !== 'quantities') visit(v, Array.isArray(n) ? speciesHint : k, depth + 1);
   };
   visit(summary, '', 0);
   return out;
@@ -113,8 +113,20 @@ export function fitsFromSummary(summary: unknown): FitData[] {
  * reads them to authorise), so they are not read twice; every other read goes out at once.
  */
 export async function loadMarkingView(submissionId: number, loaded?: { submission: Submission; practical: Practical }) {
-  const { Submission: SubmissionModel, Practical: PracticalModel, Course, Cohort, User, SubmittedValue, CheckResult, Mark, Upload, FeedbackDocument, EmailOutbox, Moderation } =
-    models();
+  const {
+    Submission: SubmissionModel,
+    Practical: PracticalModel,
+    Course,
+    Cohort,
+    User,
+    SubmittedValue,
+    CheckResult,
+    Mark,
+    Upload,
+    FeedbackDocument,
+    EmailOutbox,
+    Moderation,
+  } = models();
   const submission = loaded?.submission ?? (await SubmissionModel.findByPk(submissionId));
   if (!submission || submission.status === 'draft') throw new HttpError(404, 'Not found.');
   const where = { submissionId };
@@ -142,7 +154,17 @@ export async function loadMarkingView(submissionId: number, loaded?: { submissio
     if (!row) {
       const typed = values.find((v) => v.key === key && v.species === species);
       const typedText = typed ? formatTyped(typed.valueText, typed.unit, typed.uncertaintyText) : '—';
-      row = { key, species, label: labelFor(key, species), reportedTyped: typedText, reportedDisplay: display(typed?.valueSI, key), consistency: null, accuracy: null, verdict: 'not-checked', itemKey: id };
+      row = {
+        key,
+        species,
+        label: labelFor(key, species),
+        reportedTyped: typedText,
+        reportedDisplay: display(typed?.valueSI, key),
+        consistency: null,
+        accuracy: null,
+        verdict: 'not-checked',
+        itemKey: id,
+      };
       rows.set(id, row);
     }
     return row;
@@ -202,7 +224,8 @@ export async function loadMarkingView(submissionId: number, loaded?: { submissio
     });
   };
   // From the check rows, which name the species; a slip found on both bases is listed once.
-  for (const row of rows.values()) for (const b of [row.consistency, row.accuracy]) for (const code of b?.slipCodes ?? []) addSlip(`${row.key}:${row.species}`, code);
+  for (const row of rows.values())
+    for (const b of [row.consistency, row.accuracy]) for (const code of b?.slipCodes ?? []) addSlip(`${row.key}:${row.species}`, code);
 
   const report = uploads.find((u) => u.kind === 'report') ?? null;
   const spectrum = uploads.find((u) => u.kind === 'spectrum') ?? null;
@@ -257,6 +280,14 @@ export async function loadMarkingView(submissionId: number, loaded?: { submissio
       sentAt: o.sentAt?.toISOString() ?? null,
       createdAt: o.createdAt.toISOString(),
     })),
-    moderations: moderations.map((m) => ({ id: m.id, decision: m.decision, totalBefore: m.totalBefore, totalAfter: m.totalAfter, note: m.note, moderatorId: m.moderatorId, createdAt: m.createdAt.toISOString() })),
+    moderations: moderations.map((m) => ({
+      id: m.id,
+      decision: m.decision,
+      totalBefore: m.totalBefore,
+      totalAfter: m.totalAfter,
+      note: m.note,
+      moderatorId: m.moderatorId,
+      createdAt: m.createdAt.toISOString(),
+    })),
   };
 }

@@ -16,7 +16,11 @@ const AXIS = INK;
  * pdf-lib's drawSvgPath takes SVG (y-down) coordinates relative to a point, so the model's
  * pixel coordinates are used as they are.
  */
-export function drawPlot(page: PDFPage, model: PlotModel, opts: { left: number; top: number; scale: number; font: PDFFont; mono: PDFFont }): void {
+export function drawPlot(
+  page: PDFPage,
+  model: PlotModel,
+  opts: { left: number; top: number; scale: number; font: PDFFont; mono: PDFFont },
+): void {
   const { left, top, scale: s, font, mono } = opts;
   const X = (x: number) => left + x * s;
   const Y = (y: number) => top - y * s;
@@ -27,7 +31,14 @@ export function drawPlot(page: PDFPage, model: PlotModel, opts: { left: number; 
     page.drawLine({ start: { x: X(x1), y: Y(y1) }, end: { x: X(x2), y: Y(y2) }, thickness, color, dashArray: dash });
   for (const t of xAxis.ticks) line(t.pos, area.top, t.pos, bottom, COLOURS.grid, 0.3);
   for (const t of yAxis.ticks) line(area.left, t.pos, right, t.pos, COLOURS.grid, 0.3);
-  page.drawRectangle({ x: X(area.left), y: Y(bottom), width: area.width * s, height: area.height * s, borderColor: AXIS, borderWidth: 0.7 });
+  page.drawRectangle({
+    x: X(area.left),
+    y: Y(bottom),
+    width: area.width * s,
+    height: area.height * s,
+    borderColor: AXIS,
+    borderWidth: 0.7,
+  });
   const tickSize = 11 * s;
   for (const t of xAxis.ticks) {
     line(t.pos, bottom, t.pos, bottom + 5, AXIS, 0.7);
@@ -42,7 +53,14 @@ export function drawPlot(page: PDFPage, model: PlotModel, opts: { left: number; 
   const xl = textWidth(xAxis.label, font, tickSize);
   page.drawText(xAxis.label, { x: X(area.left + area.width / 2) - xl / 2, y: Y(bottom + 36), size: tickSize, font, color: AXIS });
   const yl = textWidth(yAxis.label, font, tickSize);
-  page.drawText(yAxis.label, { x: X(20), y: Y(area.top + area.height / 2) - yl / 2, size: tickSize, font, color: AXIS, rotate: degrees(90) });
+  page.drawText(yAxis.label, {
+    x: X(20),
+    y: Y(area.top + area.height / 2) - yl / 2,
+    size: tickSize,
+    font,
+    color: AXIS,
+    rotate: degrees(90),
+  });
   if (model.zeroLine !== null) line(area.left, model.zeroLine, right, model.zeroLine, AXIS, 0.6, [3, 2]);
   if (model.curve.length > 1) {
     const d = model.curve.map(([x, y], i) => `${i ? 'L' : 'M'}${x * s} ${y * s}`).join(' ');
@@ -57,7 +75,13 @@ export function drawPlot(page: PDFPage, model: PlotModel, opts: { left: number; 
   }
   for (const l of model.legend) {
     const colour = COLOURS[l.group] ?? AXIS;
-    page.drawSvgPath(markerPath(l.shape, (l.x + 5) * s, (l.y - 4) * s, MARKER_SIZE * s), { x: left, y: top, color: colour, borderColor: colour, borderWidth: 0.5 });
+    page.drawSvgPath(markerPath(l.shape, (l.x + 5) * s, (l.y - 4) * s, MARKER_SIZE * s), {
+      x: left,
+      y: top,
+      color: colour,
+      borderColor: colour,
+      borderWidth: 0.5,
+    });
     page.drawText(l.text, { x: X(l.x + 14), y: Y(l.y), size: tickSize, font, color: AXIS });
   }
 }

@@ -34,7 +34,13 @@ export type FeedbackInput = {
   fromSpectrum?: {
     legend: string;
     verdicts: { word: string; symbol: string; rgb: [number, number, number] }[];
-    rows: { label: string; reported: string; fromSpectrum: string; deviation: string; verdict: { word: string; symbol: string; rgb: [number, number, number] } }[];
+    rows: {
+      label: string;
+      reported: string;
+      fromSpectrum: string;
+      deviation: string;
+      verdict: { word: string; symbol: string; rgb: [number, number, number] };
+    }[];
   } | null;
   rubric: { label: string; marks: string }[];
   comments: { label: string; text: string }[];
@@ -63,7 +69,10 @@ class Writer {
   page!: PDFPage;
   y = 0;
   pages: PDFPage[] = [];
-  constructor(private doc: PDFDocument, readonly f: Fonts) {
+  constructor(
+    private doc: PDFDocument,
+    readonly f: Fonts,
+  ) {
     this.newPage();
   }
   newPage() {
@@ -129,14 +138,18 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
   w.text(fill(T.cohort, { cohort: input.cohort }));
   w.text(fill(T.student, { student: input.student }));
   w.text(fill(T.submitted, { submittedAt: input.submittedAt, attempt: input.attempt }));
-  if (input.daysLate > 0 || input.latePenalty > 0) w.text(fill(T.late, { days: input.daysLate, penalty: input.latePenalty }), { font: f.bold });
+  if (input.daysLate > 0 || input.latePenalty > 0)
+    w.text(fill(T.late, { days: input.daysLate, penalty: input.latePenalty }), { font: f.bold });
   w.rule();
 
   // Quantities.
   w.heading(fill(T.quantitiesHeading, {}), 90);
   w.text(fill(T.quantitiesIntro, {}), { size: 8.5, color: SOFT, gap: 4 });
   const header = [T.colQuantity, T.colReported, T.colExpected, T.colDeviation, T.colVerdict, T.colMarks];
-  const drawRow = (cells: string[], opts: { bold?: boolean; size?: number; colours?: (ReturnType<typeof rgb> | undefined)[]; monoCols?: number[] }) => {
+  const drawRow = (
+    cells: string[],
+    opts: { bold?: boolean; size?: number; colours?: (ReturnType<typeof rgb> | undefined)[]; monoCols?: number[] },
+  ) => {
     const size = opts.size ?? 8;
     const wrapped = cells.map((c, i) => wrap(c, opts.bold ? f.bold : opts.monoCols?.includes(i) ? f.mono : f.regular, size, COLS[i].w - 4));
     const lines = Math.max(...wrapped.map((l) => l.length));
@@ -159,7 +172,14 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
     for (const r of q.rows) {
       const v = verdictInfo(r.verdict);
       drawRow(
-        [`   ${r.basis === 'consistency' ? T.basisConsistency : T.basisAccuracy}`, '', r.expected, r.deviation, `${v.symbol} ${v.word}`, ''],
+        [
+          `   ${r.basis === 'consistency' ? T.basisConsistency : T.basisAccuracy}`,
+          '',
+          r.expected,
+          r.deviation,
+          `${v.symbol} ${v.word}`,
+          '',
+        ],
         { size: 7.5, monoCols: [2, 3], colours: [SOFT, undefined, undefined, undefined, rgb(...v.rgb)] },
       );
     }
@@ -201,13 +221,21 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
     const fs = input.fromSpectrum;
     w.heading(fill(T.spectrumHeading, {}));
     w.text(fill(T.spectrumIntro, { legend: fs.legend }), { size: 8.5, color: SOFT, gap: 2 });
-    w.text(fill(T.spectrumVerdicts, { verdicts: fs.verdicts.map((v) => `${v.symbol} ${v.word}`).join(' · ') }), { size: 8.5, color: SOFT, gap: 4 });
+    w.text(fill(T.spectrumVerdicts, { verdicts: fs.verdicts.map((v) => `${v.symbol} ${v.word}`).join(' · ') }), {
+      size: 8.5,
+      color: SOFT,
+      gap: 4,
+    });
     if (fs.rows.length === 0) w.text(fill(T.spectrumNone, {}));
     else {
       drawRow([T.colQuantity, T.colReported, T.colFromSpectrum, T.colDeviation, T.colVerdict, ''], { bold: true, size: 8 });
       w.rule();
       for (const r of fs.rows) {
-        drawRow([r.label, r.reported, r.fromSpectrum, r.deviation, `${r.verdict.symbol} ${r.verdict.word}`, ''], { size: 7.5, monoCols: [1, 2, 3], colours: [undefined, undefined, undefined, undefined, rgb(...r.verdict.rgb)] });
+        drawRow([r.label, r.reported, r.fromSpectrum, r.deviation, `${r.verdict.symbol} ${r.verdict.word}`, ''], {
+          size: 7.5,
+          monoCols: [1, 2, 3],
+          colours: [undefined, undefined, undefined, undefined, rgb(...r.verdict.rgb)],
+        });
       }
       w.rule();
     }
@@ -218,7 +246,12 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
     for (const r of input.rubric) drawRow([r.label, '', '', '', '', r.marks], { monoCols: [5] });
   }
 
-  w.heading(fill(T.commentsHeading, {}), input.comments.length ? 9 * 1.35 + wrap(input.comments[0].text, f.regular, 9.5, A4.width - 2 * MARGIN).slice(0, 3).length * 9.5 * 1.35 : 14);
+  w.heading(
+    fill(T.commentsHeading, {}),
+    input.comments.length
+      ? 9 * 1.35 + wrap(input.comments[0].text, f.regular, 9.5, A4.width - 2 * MARGIN).slice(0, 3).length * 9.5 * 1.35
+      : 14,
+  );
   if (input.comments.length === 0) w.text(fill(T.commentsNone, {}));
   for (const c of input.comments) {
     if (c.label) w.text(c.label, { font: f.bold, size: 9 });

@@ -27,9 +27,13 @@ const REPERTOIRE: [number, number][] = [
   [0x391, 0x3c9], // Greek letters
   [0x2010, 0x2044], // dashes, quotes, bullets, …, ‰, ′, ⁄
   [0x2070, 0x208e], // superscripts and subscripts
-  [0x2103, 0x2103], [0x2113, 0x2113], [0x212b, 0x212b], // ℃ ℓ Å
+  [0x2103, 0x2103],
+  [0x2113, 0x2113],
+  [0x212b, 0x212b], // ℃ ℓ Å
   [0x2190, 0x2195], // arrows
-  [0x2202, 0x221e], [0x2248, 0x2248], [0x2260, 0x2265], // ∂ … ∞, ≈, ≠ ≤ ≥
+  [0x2202, 0x221e],
+  [0x2248, 0x2248],
+  [0x2260, 0x2265], // ∂ … ∞, ≈, ≠ ≤ ≥
   [0x25cb, 0x25d1], // ○ ● ◐ ◑
   [0x2713, 0x2718], // ✓ ✗
 ];
@@ -75,12 +79,20 @@ function toUnicodeCMap(entries: [number, number][]): string {
     blocks.push(`${part.length} beginbfchar\n${part.map(([gid, cp]) => `<${hex4(gid)}> <${hex4(cp)}>`).join('\n')}\nendbfchar`);
   }
   return [
-    '/CIDInit /ProcSet findresource begin', '12 dict begin', 'begincmap',
+    '/CIDInit /ProcSet findresource begin',
+    '12 dict begin',
+    'begincmap',
     '/CIDSystemInfo << /Registry (Adobe) /Ordering (UCS) /Supplement 0 >> def',
-    '/CMapName /Adobe-Identity-UCS def', '/CMapType 2 def',
-    '1 begincodespacerange', '<0000><ffff>', 'endcodespacerange',
+    '/CMapName /Adobe-Identity-UCS def',
+    '/CMapType 2 def',
+    '1 begincodespacerange',
+    '<0000><ffff>',
+    'endcodespacerange',
     ...blocks,
-    'endcmap', 'CMapName currentdict /CIDInit /ProcSet findresource /defineresource pop', 'end', 'end',
+    'endcmap',
+    'CMapName currentdict /CIDInit /ProcSet findresource /defineresource pop',
+    'end',
+    'end',
   ].join('\n');
 }
 
@@ -106,13 +118,20 @@ async function prepare(bytes: Buffer): Promise<PreparedFont> {
   const program = await new Promise<Uint8Array>((resolve, reject) => {
     const parts: Uint8Array[] = [];
     const stream = subset.encodeStream() as unknown as NodeJS.EventEmitter;
-    stream.on('data', (b: Uint8Array) => parts.push(b)).on('end', () => resolve(Buffer.concat(parts))).on('error', reject);
+    stream
+      .on('data', (b: Uint8Array) => parts.push(b))
+      .on('end', () => resolve(Buffer.concat(parts)))
+      .on('error', reject);
   });
   // Glyphs a composite glyph pulled in have ids after ours; they are drawn only as parts.
   for (let i = 0; i < widths.length; i++) widths[i] ??= 0;
   return {
-    font, glyph, advance, widths,
-    fontFile: zlib.deflateSync(program), fontFileLength: program.byteLength,
+    font,
+    glyph,
+    advance,
+    widths,
+    fontFile: zlib.deflateSync(program),
+    fontFileLength: program.byteLength,
     toUnicode: zlib.deflateSync(Buffer.from(toUnicodeCMap(cmap), 'latin1')),
   };
 }
@@ -131,7 +150,11 @@ function preparedFont(name: FontName): Promise<PreparedFont> {
 class SharedSubsetEmbedder extends CustomFontEmbedder {
   constructor(private readonly p: PreparedFont) {
     // A six-letter tag marks an embedded subset (PDF 32000-1 9.6.4).
-    super(p.font as never, p.fontFile, `${Array.from({ length: 6 }, () => String.fromCharCode(65 + Math.floor(Math.random() * 26))).join('')}+${p.font.postscriptName}`);
+    super(
+      p.font as never,
+      p.fontFile,
+      `${Array.from({ length: 6 }, () => String.fromCharCode(65 + Math.floor(Math.random() * 26))).join('')}+${p.font.postscriptName}`,
+    );
   }
 
   encodeText(text: string): PDFHexString {

@@ -48,7 +48,8 @@ export function instructionsProblem(markdown: string): string | null {
   const prose = markdown.replace(MATH, (_, display: string | undefined, inline: string | undefined) => {
     const tex = display ?? inline ?? '';
     formulas++;
-    if (!problem && tex.length > L.formulaChars) problem = `A formula is ${tex.length} characters long; keep each formula under ${L.formulaChars}.`;
+    if (!problem && tex.length > L.formulaChars)
+      problem = `A formula is ${tex.length} characters long; keep each formula under ${L.formulaChars}.`;
     if (!problem && formulaDepth(tex) > L.formulaDepth) problem = `A formula nests braces more than ${L.formulaDepth} deep; simplify it.`;
     return ' ';
   });
@@ -59,9 +60,11 @@ export function instructionsProblem(markdown: string): string | null {
     const quotes = /^(?:\s{0,3}>)+/.exec(line)?.[0].split('>').length ?? 1;
     if (quotes - 1 > L.quoteDepth) return `A quotation is nested ${quotes - 1} deep; at most ${L.quoteDepth} levels can be shown.`;
     const indent = /^([ \t]*)(?:[-*+]|\d{1,9}[.)])(?:\s|$)/.exec(line)?.[1].replace(/\t/g, '    ').length ?? 0;
-    if (indent > L.listIndent) return `A list item is indented ${indent} spaces; lists can be nested about ${L.listIndent / 4} levels deep at most.`;
+    if (indent > L.listIndent)
+      return `A list item is indented ${indent} spaces; lists can be nested about ${L.listIndent / 4} levels deep at most.`;
   }
   for (let i = 0; i < prose.length; i++) if (prose[i] === '*' || prose[i] === '_') marks++;
-  if (marks > L.emphasisMarks) return `The instructions use ${marks} * and _ marks outside formulas; at most ${L.emphasisMarks} can be shown.`;
+  if (marks > L.emphasisMarks)
+    return `The instructions use ${marks} * and _ marks outside formulas; at most ${L.emphasisMarks} can be shown.`;
   return null;
 }

@@ -18,7 +18,12 @@ const longText = (max: number) => multiLine(z.string().trim().max(max, `At most 
 const id = z.number().int().positive().max(Number.MAX_SAFE_INTEGER);
 
 export const courseCreateSchema = z.object({
-  code: z.string().trim().min(2, 'At least 2 characters.').max(40).regex(/^[A-Za-z0-9_-]+$/, 'Letters, digits, - and _ only.'),
+  code: z
+    .string()
+    .trim()
+    .min(2, 'At least 2 characters.')
+    .max(40)
+    .regex(/^[A-Za-z0-9_-]+$/, 'Letters, digits, - and _ only.'),
   title: text(200),
 });
 export type CourseCreateInput = z.infer<typeof courseCreateSchema>;
@@ -58,10 +63,20 @@ export const taAssignmentSchema = z.object({
 });
 export type TaAssignmentInput = z.input<typeof taAssignmentSchema>;
 
-const speciesText = z.string().trim().min(1).max(40).refine((s) => parseSpecies(s).ok, { message: 'Not a diatomic isotopologue the engine knows (e.g. H35Cl, D35Cl, 12C16O).' });
+const speciesText = z
+  .string()
+  .trim()
+  .min(1)
+  .max(40)
+  .refine((s) => parseSpecies(s).ok, { message: 'Not a diatomic isotopologue the engine knows (e.g. H35Cl, D35Cl, 12C16O).' });
 
 export const RUBRIC_ITEM = z.object({
-  key: z.string().trim().min(1).max(60).regex(/^[a-z0-9-]+$/, 'Lower-case letters, digits and - only.'),
+  key: z
+    .string()
+    .trim()
+    .min(1)
+    .max(60)
+    .regex(/^[a-z0-9-]+$/, 'Lower-case letters, digits and - only.'),
   title: text(200),
   marks: z.number().min(0).max(1000),
   guidance: longText(2000).default(''),
@@ -71,7 +86,11 @@ export const practicalSchema = z
   .object({
     title: text(200),
     species: z.array(speciesText).min(1, 'Give at least one isotopologue.').max(6),
-    instructions: longText(50_000).refine((s) => instructionsProblem(s) === null, { error: (i) => instructionsProblem(String(i.input)) ?? 'The instructions cannot be shown.' }).default(''),
+    instructions: longText(50_000)
+      .refine((s) => instructionsProblem(s) === null, {
+        error: (i) => instructionsProblem(String(i.input)) ?? 'The instructions cannot be shown.',
+      })
+      .default(''),
     hazardNotes: longText(5_000).default(''),
     mode: z.enum(['practice', 'assessed']),
     maxAttempts: z.number().int().min(1, 'At least 1.').max(20, 'At most 20.'),
@@ -80,7 +99,15 @@ export const practicalSchema = z
     latePenaltyCap: z.number().min(0).max(100),
     rubric: z.array(RUBRIC_ITEM).max(30).default([]),
     deadlines: z
-      .array(z.object({ cohortId: id, deadline: z.string().min(1, 'Required.').refine((s) => !Number.isNaN(Date.parse(s)), 'Not a date.') }))
+      .array(
+        z.object({
+          cohortId: id,
+          deadline: z
+            .string()
+            .min(1, 'Required.')
+            .refine((s) => !Number.isNaN(Date.parse(s)), 'Not a date.'),
+        }),
+      )
       .max(50)
       .default([]),
   })
@@ -127,7 +154,10 @@ export const bandSchema = z
     /** When submissions exist: true re-checks them with the new band, false keeps their results. */
     recheck: z.boolean().optional(),
   })
-  .refine((b) => b.outer == null || b.outer >= b.inner, { message: 'The outer band must be at least as wide as the inner band.', path: ['outer'] })
+  .refine((b) => b.outer == null || b.outer >= b.inner, {
+    message: 'The outer band must be at least as wide as the inner band.',
+    path: ['outer'],
+  })
   .refine((b) => b.kind !== 'absolute' || !!b.unit?.trim(), { message: 'An absolute band needs a unit.', path: ['unit'] });
 export type BandInput = z.input<typeof bandSchema>;
 
@@ -148,7 +178,10 @@ export const copySchema = z.object({
   title: text(200),
   /** Each cohort override of the source practical: the cohort it moves to, or null to drop it. */
   cohortMap: z.record(z.string().regex(/^\d+$/), id.nullable()).default({}),
-  deadlines: z.array(z.object({ cohortId: id, deadline: z.string().refine((s) => !Number.isNaN(Date.parse(s)), 'Not a date.') })).max(50).default([]),
+  deadlines: z
+    .array(z.object({ cohortId: id, deadline: z.string().refine((s) => !Number.isNaN(Date.parse(s)), 'Not a date.') }))
+    .max(50)
+    .default([]),
 });
 export type CopyInput = z.input<typeof copySchema>;
 
@@ -162,7 +195,12 @@ export const welcomeSchema = z
 
 /** The spectra a practical takes and the third comparison's switch (lib/submissions/spectrum-analysis.ts). */
 export const spectrumSampleSchema = z.object({
-  key: z.string().trim().min(1).max(40).regex(/^[a-z0-9-]+$/, 'Lower-case letters, digits and - only.'),
+  key: z
+    .string()
+    .trim()
+    .min(1)
+    .max(40)
+    .regex(/^[a-z0-9-]+$/, 'Lower-case letters, digits and - only.'),
   label: text(80),
   molecules: z
     .array(
@@ -173,8 +211,12 @@ export const spectrumSampleSchema = z.object({
         .max(40)
         .regex(/^[A-Za-z0-9()\s\-^⁰¹²³⁴⁵⁶⁷⁸⁹]+$/u, 'Write a molecule with letters and digits only, like HCl, DCl or H35Cl.'),
     )
-    .min(1, 'Name at least one molecule (e.g. HCl).').max(4),
-  bands: z.array(z.enum(['fundamental', 'overtone'])).min(1, 'Expect at least one band.').max(2),
+    .min(1, 'Name at least one molecule (e.g. HCl).')
+    .max(4),
+  bands: z
+    .array(z.enum(['fundamental', 'overtone']))
+    .min(1, 'Expect at least one band.')
+    .max(2),
 });
 
 export const spectrumSettingsSchema = z.object({

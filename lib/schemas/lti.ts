@@ -8,17 +8,31 @@ import { isAcceptablePlatformUrl } from '@/lib/lti/config';
 
 const id = z.number().int().positive().max(Number.MAX_SAFE_INTEGER);
 const text = (max: number) => z.string().trim().min(1, 'Required.').max(max, `At most ${max} characters.`);
-const platformUrl = text(1000).refine(isAcceptablePlatformUrl, 'An https address (http only on this machine, for the local fake platform).');
+const platformUrl = text(1000).refine(
+  isAcceptablePlatformUrl,
+  'An https address (http only on this machine, for the local fake platform).',
+);
 
 export const registrationSchema = z.object({
   name: text(200),
-  issuer: text(500).refine((v) => isAcceptablePlatformUrl(v), 'The issuer is the platform’s https address, exactly as it puts it in its tokens.'),
+  issuer: text(500).refine(
+    (v) => isAcceptablePlatformUrl(v),
+    'The issuer is the platform’s https address, exactly as it puts it in its tokens.',
+  ),
   clientId: text(255),
   deploymentIds: z.array(text(255)).min(1, 'At least one deployment id.').max(20, 'At most 20 deployment ids.'),
   authLoginUrl: platformUrl,
   authTokenUrl: platformUrl,
   keySetUrl: platformUrl,
-  tokenAudience: z.union([z.literal(''), text(1000).refine((v) => /^https?:\/\/[^\s]+$/.test(v) && URL.canParse(v), 'An address (the audience the platform expects in token requests).')]).optional(),
+  tokenAudience: z
+    .union([
+      z.literal(''),
+      text(1000).refine(
+        (v) => /^https?:\/\/[^\s]+$/.test(v) && URL.canParse(v),
+        'An address (the audience the platform expects in token requests).',
+      ),
+    ])
+    .optional(),
   active: z.boolean().optional(),
 });
 export type RegistrationInput = z.infer<typeof registrationSchema>;

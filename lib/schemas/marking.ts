@@ -7,7 +7,10 @@ export const QUEUE_STATUSES = ['submitted', 'marked', 'released', 'resubmission-
 export const QUEUE_FLAGS = ['outside', 'slip', 'late', 'duplicate', 'spectrum'] as const;
 export const QUEUE_SORTS = ['submittedAt', 'student', 'practical', 'status', 'proposedTotal', 'awardedTotal'] as const;
 
-const optionalId = z.preprocess((v) => (v === '' || v === null ? undefined : v), z.coerce.number().int().positive().max(Number.MAX_SAFE_INTEGER).optional());
+const optionalId = z.preprocess(
+  (v) => (v === '' || v === null ? undefined : v),
+  z.coerce.number().int().positive().max(Number.MAX_SAFE_INTEGER).optional(),
+);
 const optionalEnum = <T extends readonly [string, ...string[]]>(values: T) =>
   z.preprocess((v) => (v === '' || v === null ? undefined : v), z.enum(values).optional());
 
@@ -21,8 +24,22 @@ export const queueQuerySchema = z.object({
   page: z.preprocess((v) => (v === '' || v === null ? undefined : v), z.coerce.number().int().min(1).max(100000).default(1)),
   pageSize: z.preprocess((v) => (v === '' || v === null ? undefined : v), z.coerce.number().int().min(1).max(100).default(25)),
   /** Keyset cursors from the previous answer's `next` / `prev`: the page after or before that row. */
-  after: z.preprocess((v) => (v === '' || v === null ? undefined : v), z.string().max(600).regex(/^[A-Za-z0-9_-]+$/, 'Not a page link.').optional()),
-  before: z.preprocess((v) => (v === '' || v === null ? undefined : v), z.string().max(600).regex(/^[A-Za-z0-9_-]+$/, 'Not a page link.').optional()),
+  after: z.preprocess(
+    (v) => (v === '' || v === null ? undefined : v),
+    z
+      .string()
+      .max(600)
+      .regex(/^[A-Za-z0-9_-]+$/, 'Not a page link.')
+      .optional(),
+  ),
+  before: z.preprocess(
+    (v) => (v === '' || v === null ? undefined : v),
+    z
+      .string()
+      .max(600)
+      .regex(/^[A-Za-z0-9_-]+$/, 'Not a page link.')
+      .optional(),
+  ),
 });
 export type QueueQuery = z.infer<typeof queueQuerySchema>;
 
@@ -59,7 +76,13 @@ export const moderationSchema = z
   .object({
     decision: z.enum(['confirmed', 'changed']),
     version: z.number().int().min(0),
-    items: z.array(z.object({ itemKey: oneLine(z.string().min(1).max(100)), awarded: marks })).max(200).default([]),
+    items: z
+      .array(z.object({ itemKey: oneLine(z.string().min(1).max(100)), awarded: marks }))
+      .max(200)
+      .default([]),
     note: multiLine(z.string().trim().max(5000)).optional().nullable(),
   })
-  .refine((v) => v.decision === 'confirmed' || (v.note && v.note.length > 0), { message: 'Say why the marks were changed.', path: ['note'] });
+  .refine((v) => v.decision === 'confirmed' || (v.note && v.note.length > 0), {
+    message: 'Say why the marks were changed.',
+    path: ['note'],
+  });

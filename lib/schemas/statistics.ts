@@ -4,7 +4,11 @@ import { z } from 'zod';
 
 /** `?cohortId=`: one cohort, or (absent) every cohort of the practical. */
 export const cohortQuery = z.object({
-  cohortId: z.string().regex(/^\d{1,12}$/, 'cohortId must be a positive whole number.').transform(Number).optional(),
+  cohortId: z
+    .string()
+    .regex(/^\d{1,12}$/, 'cohortId must be a positive whole number.')
+    .transform(Number)
+    .optional(),
 });
 
 /** `?by=`: what the comparison puts side by side. */

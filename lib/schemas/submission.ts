@@ -68,7 +68,9 @@ export type UploadKind = (typeof UPLOAD_KINDS)[number];
 
 export function emptyDraft(species: string[]): Draft {
   return {
-    species: Object.fromEntries(species.map((s) => [s, { lineText: '', lines: [], bandCentre: { value: '', unit: 'cm-1', uncertainty: '' }, values: {} }])),
+    species: Object.fromEntries(
+      species.map((s) => [s, { lineText: '', lines: [], bandCentre: { value: '', unit: 'cm-1', uncertainty: '' }, values: {} }]),
+    ),
     spectrumUploadId: null,
     reportUploadId: null,
   };

@@ -39,13 +39,40 @@ import {
   type Isotopologue,
   type PredictedLine,
 } from './bands';
-import { detectLines, fitGroup, prepareSpectrum, refineLines, remeasureShape, type DetectedLine, type LineShapeReport, type PreparedSpectrum } from './detect';
+import {
+  detectLines,
+  fitGroup,
+  prepareSpectrum,
+  refineLines,
+  remeasureShape,
+  type DetectedLine,
+  type LineShapeReport,
+  type PreparedSpectrum,
+} from './detect';
 import type { LineProfile } from './lineshape';
 import type { Spectrum } from './types';
-import type { AnalyseOptions, AssignedLine, BandAnalysis, BandFitReport, BandStatus, CalibrationReport, ExcludedLine, UnassignedLine } from './analysis-types';
+import type {
+  AnalyseOptions,
+  AssignedLine,
+  BandAnalysis,
+  BandFitReport,
+  BandStatus,
+  CalibrationReport,
+  ExcludedLine,
+  UnassignedLine,
+} from './analysis-types';
 import { analyseVibration, type VibrationalAnalysis } from './vibration';
 
-export type { AnalyseOptions, AssignedLine, BandAnalysis, BandFitReport, BandStatus, CalibrationReport, ExcludedLine, UnassignedLine } from './analysis-types';
+export type {
+  AnalyseOptions,
+  AssignedLine,
+  BandAnalysis,
+  BandFitReport,
+  BandStatus,
+  CalibrationReport,
+  ExcludedLine,
+  UnassignedLine,
+} from './analysis-types';
 
 export interface SpectrumAnalysis {
   ok: boolean;
@@ -207,7 +234,10 @@ function searchShift(groups: Group[], found: DetectedLine[], fwhm: number, maxOf
       let s = 0;
       for (let g = 0; g < groups.length; g++) s += at(curves[g], offset + scale * (groups[g].members[0].constants.origin - centre));
       // On a tie, the smaller correction.
-      if (s > best.score + 1e-9 || (Math.abs(s - best.score) <= 1e-9 && Math.abs(offset) + Math.abs(scale) * 1e4 < Math.abs(best.offset) + Math.abs(best.scale) * 1e4)) {
+      if (
+        s > best.score + 1e-9 ||
+        (Math.abs(s - best.score) <= 1e-9 && Math.abs(offset) + Math.abs(scale) * 1e4 < Math.abs(best.offset) + Math.abs(best.scale) * 1e4)
+      ) {
         best = { score: s, offset, scale };
       }
     }
@@ -246,7 +276,10 @@ function inRange(ctx: Context, w: number): boolean {
 }
 
 function insertFound(ctx: Context, line: DetectedLine): void {
-  const i = lowerBound(ctx.found.map((l) => l.wavenumber), line.wavenumber);
+  const i = lowerBound(
+    ctx.found.map((l) => l.wavenumber),
+    line.wavenumber,
+  );
   ctx.found.splice(i, 0, line);
 }
 
@@ -281,7 +314,10 @@ function probe(ctx: Context, centre: number, tolerance: number): DetectedLine | 
   // The neighbours were measured without this line; take their positions from the joint fit.
   for (const l of fitted) {
     if (l.probed) continue;
-    const old = neighbours.reduce((b, n) => (Math.abs(n.wavenumber - l.wavenumber) < Math.abs(b.wavenumber - l.wavenumber) ? n : b), neighbours[0]);
+    const old = neighbours.reduce(
+      (b, n) => (Math.abs(n.wavenumber - l.wavenumber) < Math.abs(b.wavenumber - l.wavenumber) ? n : b),
+      neighbours[0],
+    );
     if (old && Math.abs(old.wavenumber - l.wavenumber) < 0.3 * shape.fwhm) {
       old.wavenumber = l.wavenumber;
       old.sigma = l.sigma;
@@ -301,7 +337,12 @@ const BLENDED_DOUBLET_WIDTHS = 2.5;
 const POSITION_FLOOR_SHARE = 5e-5;
 
 function fitWork(w: Work, species: Species, fwhm: number): void {
-  const lines = [...w.assigned].map(([m, l]) => ({ branch: (m > 0 ? 'R' : 'P') as 'P' | 'R', J: m > 0 ? m - 1 : -m, wavenumber: l.wavenumber, stdError: l.sigma }));
+  const lines = [...w.assigned].map(([m, l]) => ({
+    branch: (m > 0 ? 'R' : 'P') as 'P' | 'R',
+    J: m > 0 ? m - 1 : -m,
+    wavenumber: l.wavenumber,
+    stdError: l.sigma,
+  }));
   if (lines.length < MIN_FIT_LINES) {
     w.fit = null;
     w.covariance = null;
@@ -483,7 +524,12 @@ function finalFit(w: Work, fwhm: number): void {
     const bad = res[worst];
     const line = w.assigned.get(bad.m)!;
     w.assigned.delete(bad.m);
-    w.excluded.push({ branch: bad.branch, J: bad.J, wavenumber: line.wavenumber, reason: `${fmt(bad.residual, 3)} cm⁻¹ off the fit, ${(worstScore / spread).toFixed(0)} times its uncertainty` });
+    w.excluded.push({
+      branch: bad.branch,
+      J: bad.J,
+      wavenumber: line.wavenumber,
+      reason: `${fmt(bad.residual, 3)} cm⁻¹ off the fit, ${(worstScore / spread).toFixed(0)} times its uncertainty`,
+    });
     w.excludedLines.add(line);
   }
 }
@@ -537,7 +583,9 @@ function fitReport(w: Work): BandFitReport | null {
     r0: f.r0,
     rms: f.rms,
     otherModelRms: f.otherModelRms,
-    alternative: f.otherModel ? { model: f.otherModel.model, ...constantsOf(f.otherModel.coefficients, f.otherModel.covariance, overtone) } : undefined,
+    alternative: f.otherModel
+      ? { model: f.otherModel.model, ...constantsOf(f.otherModel.coefficients, f.otherModel.covariance, overtone) }
+      : undefined,
     lineCount: f.lineCount,
     degreesOfFreedom: f.degreesOfFreedom,
   };
@@ -603,7 +651,9 @@ function assignGroups(ctx: Context, active: Group[], maxOffset: number): { group
         mw.warnings.push(
           `Its lines lie only about ${fmt(s, 2)} cm⁻¹ from those of ${main.prediction.isotopologue.display}, less than the line width (${fmt(ctx.shape.fwhm, 2)} cm⁻¹): the two are recorded as one line, so the ${main.prediction.isotopologue.display} fit describes the blend.`,
         );
-        main.warnings.push(`The ${mw.prediction.isotopologue.display} lines are not resolved from these (about ${fmt(s, 2)} cm⁻¹ apart): the fitted constants are those of the blend.`);
+        main.warnings.push(
+          `The ${mw.prediction.isotopologue.display} lines are not resolved from these (about ${fmt(s, 2)} cm⁻¹ apart): the fitted constants are those of the blend.`,
+        );
         continue;
       }
       // Start from the main isotopologue's fit, moved by the published isotope relation.
@@ -680,7 +730,8 @@ function assignAll(ctx: Context, active: Group[], maxOffset: number): GroupWorks
   const again = remeasureShape(ctx.prep, pairs.slice(0, 12), ctx.shape.fwhm);
   if (!again) return first;
   const at = ctx.found.filter((l) => !l.probed).map((l) => ({ wavenumber: l.wavenumber, probed: false }));
-  for (const w of partnerPlaces) if (!at.some((x) => Math.abs(x.wavenumber - w) < 0.35 * again.shape.fwhm)) at.push({ wavenumber: w, probed: true });
+  for (const w of partnerPlaces)
+    if (!at.some((x) => Math.abs(x.wavenumber - w) < 0.35 * again.shape.fwhm)) at.push({ wavenumber: w, probed: true });
   ctx.found = refineLines(ctx.prep, again.profile, at);
   ctx.shape = again.shape;
   ctx.profile = again.profile;
@@ -690,7 +741,8 @@ function assignAll(ctx: Context, active: Group[], maxOffset: number): GroupWorks
 /** A line claimed by two bands belongs to neither: it is left out of both, with the reason. */
 function leaveOutSharedLines(works: GroupWorks): void {
   const claimedBy = new Map<DetectedLine, Work[]>();
-  for (const { works: ws } of works) for (const w of ws) for (const l of w.assigned.values()) claimedBy.set(l, [...(claimedBy.get(l) ?? []), w]);
+  for (const { works: ws } of works)
+    for (const w of ws) for (const l of w.assigned.values()) claimedBy.set(l, [...(claimedBy.get(l) ?? []), w]);
   for (const [line, owners] of claimedBy) {
     if (owners.length < 2) continue;
     for (const w of owners) {
@@ -699,7 +751,11 @@ function leaveOutSharedLines(works: GroupWorks): void {
         w.assigned.delete(m);
         const others = owners.filter((o) => o !== w).map((o) => `${o.prediction.isotopologue.display} ${o.prediction.band}`);
         const lab = { branch: m > 0 ? 'R' : 'P', J: m > 0 ? m - 1 : -m } as const;
-        w.excluded.push({ ...lab, wavenumber: line.wavenumber, reason: `also a line of the ${others.join(', ')}; a shared line is left out of both fits` });
+        w.excluded.push({
+          ...lab,
+          wavenumber: line.wavenumber,
+          reason: `also a line of the ${others.join(', ')}; a shared line is left out of both fits`,
+        });
         w.excludedLines.add(line);
       }
     }
@@ -753,8 +809,12 @@ function fitWarnings(w: Work, report: BandFitReport, lines: AssignedLine[]): str
   const warnings: string[] = [];
   if (report.lineCount < 8) warnings.push(`Only ${report.lineCount} lines were fitted: the standard errors are rough.`);
   const probedCount = lines.filter((l) => l.probed).length;
-  if (probedCount) warnings.push(`${probedCount} weak line${probedCount === 1 ? ' was' : 's were'} found by looking where the band predicts ${probedCount === 1 ? 'it' : 'them'}.`);
-  if (w.excluded.length) warnings.push(`Left out of the fit: ${w.excluded.map((e) => `${label(e)} at ${fmt(e.wavenumber, 3)} cm⁻¹ (${e.reason})`).join('; ')}.`);
+  if (probedCount)
+    warnings.push(
+      `${probedCount} weak line${probedCount === 1 ? ' was' : 's were'} found by looking where the band predicts ${probedCount === 1 ? 'it' : 'them'}.`,
+    );
+  if (w.excluded.length)
+    warnings.push(`Left out of the fit: ${w.excluded.map((e) => `${label(e)} at ${fmt(e.wavenumber, 3)} cm⁻¹ (${e.reason})`).join('; ')}.`);
   return warnings;
 }
 
@@ -764,7 +824,8 @@ function tooWeakWarning(w: Work, main: Work, ctx: Context): string | null {
   const strongestMinor = Math.max(...w.prediction.lines.map((l) => l.intensity));
   const expected = main.heightScale * strongestMinor;
   const noise = noiseAt(ctx, w.prediction.constants.origin);
-  if (main.assigned.size > 0 && expected < 3 * noise) return `Its strongest lines would be about ${fmt(expected / noise, 1)} times the noise, too weak to be found.`;
+  if (main.assigned.size > 0 && expected < 3 * noise)
+    return `Its strongest lines would be about ${fmt(expected / noise, 1)} times the noise, too weak to be found.`;
   return null;
 }
 
@@ -791,11 +852,18 @@ function bandAnalysisOf(w: Work, main: Work, ctx: Context, claimed: Set<Detected
     status = 'outside-range';
     warnings.length = 0;
   } else if (extent[0] < ctx.x0 || extent[1] > ctx.x1) {
-    warnings.push(`Part of the band (${fmt(extent[0], 0)}–${fmt(extent[1], 0)} cm⁻¹) lies outside the recorded range (${fmt(ctx.x0, 0)}–${fmt(ctx.x1, 0)} cm⁻¹).`);
+    warnings.push(
+      `Part of the band (${fmt(extent[0], 0)}–${fmt(extent[1], 0)} cm⁻¹) lies outside the recorded range (${fmt(ctx.x0, 0)}–${fmt(ctx.x1, 0)} cm⁻¹).`,
+    );
   }
   if (status === 'fitted' && report) {
     warnings.push(...fitWarnings(w, report, lines));
-    fittedOrigins.push({ label: bandLabel, fitted: report.nu0, reference: w.prediction.termOrigin.value, referenceUncertainty: w.prediction.termOrigin.uncertainty });
+    fittedOrigins.push({
+      label: bandLabel,
+      fitted: report.nu0,
+      reference: w.prediction.termOrigin.value,
+      referenceUncertainty: w.prediction.termOrigin.uncertainty,
+    });
   }
   if (status === 'not-found' && iso.rank > 0) {
     const weak = tooWeakWarning(w, main, ctx);
@@ -845,11 +913,17 @@ function bandProblems(analyses: BandAnalysis[], x0: number, x1: number): string[
   const problems: string[] = [];
   for (const b of analyses) {
     if (b.status === 'outside-range') {
-      problems.push(`The ${b.label} lies near ${fmt(b.predictedOrigin, 0)} cm⁻¹, outside the recorded range (${fmt(x0, 0)}–${fmt(x1, 0)} cm⁻¹).`);
+      problems.push(
+        `The ${b.label} lies near ${fmt(b.predictedOrigin, 0)} cm⁻¹, outside the recorded range (${fmt(x0, 0)}–${fmt(x1, 0)} cm⁻¹).`,
+      );
     } else if (b.status === 'not-found' && !b.warnings.some((w) => /too weak/.test(w))) {
-      problems.push(`No lines of the ${b.label} (near ${fmt(b.predictedOrigin, 0)} cm⁻¹) were found, although the recorded range covers it.`);
+      problems.push(
+        `No lines of the ${b.label} (near ${fmt(b.predictedOrigin, 0)} cm⁻¹) were found, although the recorded range covers it.`,
+      );
     } else if (b.status === 'too-few-lines') {
-      problems.push(`Only ${b.lines.length} line${b.lines.length === 1 ? '' : 's'} of the ${b.label} ${b.lines.length === 1 ? 'was' : 'were'} found; at least ${MIN_FIT_LINES} are needed for a fit.`);
+      problems.push(
+        `Only ${b.lines.length} line${b.lines.length === 1 ? '' : 's'} of the ${b.label} ${b.lines.length === 1 ? 'was' : 'were'} found; at least ${MIN_FIT_LINES} are needed for a fit.`,
+      );
     }
   }
   return problems;
@@ -877,7 +951,10 @@ export function analyseSpectrum(spectrum: Spectrum, options: AnalyseOptions): Sp
   const works = assignAll(ctx, active, maxOffset);
   leaveOutSharedLines(works);
   fitAll(works, ctx);
-  nameBlends(works.flatMap((g) => g.works), ctx);
+  nameBlends(
+    works.flatMap((g) => g.works),
+    ctx,
+  );
 
   // Reports, band by band.
   const fittedOrigins: FittedOrigin[] = [];
@@ -920,7 +997,9 @@ export function analyseSpectrum(spectrum: Spectrum, options: AnalyseOptions): Sp
  * ν̃(recorded) − ν̃(published) for each fitted band, fitted as offset + ε·(ν̃ − ν̃ref): with
  * bands spread over ≥ 1000 cm⁻¹ both parts, otherwise the offset alone (weighted mean).
  */
-function calibrationReport(bands: { label: string; fitted: Estimate; reference: number; referenceUncertainty: number }[]): CalibrationReport | null {
+function calibrationReport(
+  bands: { label: string; fitted: Estimate; reference: number; referenceUncertainty: number }[],
+): CalibrationReport | null {
   if (bands.length === 0) return null;
   const y = bands.map((b) => b.fitted.value - b.reference);
   const s = bands.map((b) => Math.hypot(b.fitted.stdError, b.referenceUncertainty));
@@ -959,8 +1038,14 @@ function calibrationReport(bands: { label: string; fitted: Estimate; reference: 
   const offsetClear = Math.abs(offset.value) > Math.max(3 * offset.stdError, 0.2);
   const detected = offsetClear || scaleClear;
   const parts: string[] = [];
-  if (offsetClear) parts.push(`shifted by ${offset.value > 0 ? '+' : '−'}${fmt(Math.abs(offset.value), 2)} ± ${fmt(offset.stdError, 2)} cm⁻¹${scale ? ` at ${fmt(ref, 0)} cm⁻¹` : ''}`);
-  if (scale) parts.push(`stretched by ${(scale.value * 1e6).toFixed(0)} ± ${(scale.stdError * 1e6).toFixed(0)} parts per million (${fmt(scaleEffect, 2)} cm⁻¹ at the ends of the bands)`);
+  if (offsetClear)
+    parts.push(
+      `shifted by ${offset.value > 0 ? '+' : '−'}${fmt(Math.abs(offset.value), 2)} ± ${fmt(offset.stdError, 2)} cm⁻¹${scale ? ` at ${fmt(ref, 0)} cm⁻¹` : ''}`,
+    );
+  if (scale)
+    parts.push(
+      `stretched by ${(scale.value * 1e6).toFixed(0)} ± ${(scale.stdError * 1e6).toFixed(0)} parts per million (${fmt(scaleEffect, 2)} cm⁻¹ at the ends of the bands)`,
+    );
   const message = detected
     ? `The wavenumber scale of this spectrum appears ${parts.join(' and ')} against the published band origins (${bands.length} band${bands.length === 1 ? '' : 's'} compared). The fitted band origins are given as recorded, not corrected; check the instrument's calibration.`
     : `The band origins agree with the published ones (${bands.length} band${bands.length === 1 ? '' : 's'} compared): no calibration error is seen.`;

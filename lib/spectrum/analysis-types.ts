@@ -55,7 +55,15 @@ export interface BandFitReport {
   rms: number;
   otherModelRms?: number;
   /** The same constants from the model not chosen (with or without D), for comparison with a student who used it. */
-  alternative?: { model: 'quadratic' | 'cubic'; nu0: Estimate; B0: Estimate; Bupper: Estimate; Be: Estimate; alphaE: Estimate; D?: Estimate };
+  alternative?: {
+    model: 'quadratic' | 'cubic';
+    nu0: Estimate;
+    B0: Estimate;
+    Bupper: Estimate;
+    Be: Estimate;
+    alphaE: Estimate;
+    D?: Estimate;
+  };
   lineCount: number;
   degreesOfFreedom: number;
 }

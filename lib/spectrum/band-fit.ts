@@ -19,7 +19,17 @@
  * reduced χ² when that exceeds 1 (the Birge ratio: the σ's were too optimistic). Without
  * standard errors (a student's list) the fit is lib/grading's own fitBand.
  */
-import { bondLengthFromB, CENTRIFUGAL_TEST_LEVEL, fitBandModels, leastSquares, parseSpecies, partialFTest, type BandFit, type Estimate, type Species } from '@/lib/grading';
+import {
+  bondLengthFromB,
+  CENTRIFUGAL_TEST_LEVEL,
+  fitBandModels,
+  leastSquares,
+  parseSpecies,
+  partialFTest,
+  type BandFit,
+  type Estimate,
+  type Species,
+} from '@/lib/grading';
 
 /** Fewest lines for the cubic model to leave a degree of freedom for the test (as in lib/grading). */
 export const MIN_LINES_FOR_CENTRIFUGAL = 5;
@@ -117,7 +127,12 @@ function fromEngine(f: BandFit): RawFit {
   return { beta: f.coefficients, cov: f.covariance, residuals: f.residuals.map((x) => x.residual), rms: f.rms, dof: f.degreesOfFreedom };
 }
 
-function report(lines: readonly FitLine[], raw: RawFit, species: Species | undefined, weighted: boolean): Omit<ChosenBandFit, 'modelNote' | 'otherModelRms' | 'otherModel'> {
+function report(
+  lines: readonly FitLine[],
+  raw: RawFit,
+  species: Species | undefined,
+  weighted: boolean,
+): Omit<ChosenBandFit, 'modelNote' | 'otherModelRms' | 'otherModel'> {
   const [a, b, c] = raw.beta;
   const V = raw.cov;
   const cubic = raw.beta.length === 4;
@@ -157,7 +172,8 @@ export function fitAssignedLines(lines: readonly FitLine[], speciesIn: Species |
   const floor = options.floor ?? 0;
   const quadratic = lines.length >= 3 ? weightedFit(lines, 3, floor) : undefined;
   const cubic = lines.length >= MIN_LINES_FOR_CENTRIFUGAL ? weightedFit(lines, 4, floor) : undefined;
-  if (!quadratic && !cubic) return { ok: false, message: `${lines.length} lines cannot be fitted (at least 3 are needed, in both branches).` };
+  if (!quadratic && !cubic)
+    return { ok: false, message: `${lines.length} lines cannot be fitted (at least 3 are needed, in both branches).` };
   if (cubic && quadratic) {
     // The weighted sums of squares are χ² × degrees of freedom.
     const test = partialFTest((quadratic.chi2 ?? 0) * quadratic.dof, (cubic.chi2 ?? 0) * cubic.dof, 1, cubic.dof);
@@ -177,19 +193,29 @@ export function fitAssignedLines(lines: readonly FitLine[], speciesIn: Species |
 
 /** A student's list (no standard errors per line): the grading engine's own fits and choice. */
 function unweighted(lines: readonly FitLine[], species: Species | undefined): BandFitResult {
-  const models = fitBandModels(lines.map((l) => ({ branch: l.branch, J: l.J, wavenumber: l.wavenumber })), { species });
+  const models = fitBandModels(
+    lines.map((l) => ({ branch: l.branch, J: l.J, wavenumber: l.wavenumber })),
+    { species },
+  );
   if (!models.ok) return { ok: false, message: models.problems.map((p) => p.message).join(' ') };
   const { fit, alternative, choice } = models;
   const cubic = fit.model === 'cubic';
   return {
     ...report(lines, fromEngine(fit), species, false),
-    modelNote: choice.reason === 'too-few-lines' ? `without the centrifugal term: ${lines.length} lines are too few to test it` : modelNote(cubic, choice.fTest?.p),
+    modelNote:
+      choice.reason === 'too-few-lines'
+        ? `without the centrifugal term: ${lines.length} lines are too few to test it`
+        : modelNote(cubic, choice.fTest?.p),
     otherModelRms: alternative?.rms,
-    otherModel: alternative ? { model: alternative.model, coefficients: alternative.coefficients, covariance: alternative.covariance } : undefined,
+    otherModel: alternative
+      ? { model: alternative.model, coefficients: alternative.coefficients, covariance: alternative.covariance }
+      : undefined,
   };
 }
 
 function modelNote(cubic: boolean, p: number | undefined): string {
   const test = p === undefined ? '' : ` (F-test p ${p < 1e-4 ? '< 0.0001' : `= ${p.toPrecision(2)}`})`;
-  return cubic ? `with the centrifugal term −4Dm³: the lines need it${test}` : `without the centrifugal term: the lines do not need it${test}`;
+  return cubic
+    ? `with the centrifugal term −4Dm³: the lines need it${test}`
+    : `without the centrifugal term: the lines do not need it${test}`;
 }

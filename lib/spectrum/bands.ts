@@ -58,7 +58,18 @@ export interface Isotopologue {
 
 export type IsotopologueList = { ok: true; isotopologues: Isotopologue[] } | { ok: false; message: string };
 
-const SUPERSCRIPT_DIGITS: Record<string, string> = { '⁰': '0', '¹': '1', '²': '2', '³': '3', '⁴': '4', '⁵': '5', '⁶': '6', '⁷': '7', '⁸': '8', '⁹': '9' };
+const SUPERSCRIPT_DIGITS: Record<string, string> = {
+  '⁰': '0',
+  '¹': '1',
+  '²': '2',
+  '³': '3',
+  '⁴': '4',
+  '⁵': '5',
+  '⁶': '6',
+  '⁷': '7',
+  '⁸': '8',
+  '⁹': '9',
+};
 
 /** Whether the name writes the atom's isotope out ("35Cl", "D", "¹³C"). */
 function isotopeWrittenOut(name: string, atom: Species['atoms'][0]): boolean {
@@ -73,12 +84,18 @@ export function isotopologuesOf(name: string): IsotopologueList {
   if (!parsed.ok) return { ok: false, message: parsed.message };
   const [a, b] = parsed.species.atoms;
   if (a.symbol === b.symbol) {
-    return { ok: false, message: `${parsed.species.display} has no dipole moment to change, so it has no infrared vibrational spectrum of its own.` };
+    return {
+      ok: false,
+      message: `${parsed.species.display} has no dipole moment to change, so it has no infrared vibrational spectrum of its own.`,
+    };
   }
   const choices = [a, b].map((atom) => {
     if (isotopeWrittenOut(name, atom)) return [{ atom, abundance: 1 }];
     const natural = stableIsotopes(atom.symbol).filter((i) => i.abundance >= MIN_NATURAL_ABUNDANCE);
-    return natural.map((i) => ({ atom: { symbol: atom.symbol, massNumber: i.massNumber, massU: i.massU, source: i.source }, abundance: i.abundance }));
+    return natural.map((i) => ({
+      atom: { symbol: atom.symbol, massNumber: i.massNumber, massU: i.massU, source: i.source },
+      abundance: i.abundance,
+    }));
   });
   const out: Isotopologue[] = [];
   for (const x of choices[0]) {
@@ -173,7 +190,10 @@ function overtoneOrigin(k: MolecularConstants, iso: Isotopologue): { value: numb
     const parent = referenceEntry(entry.derivedFrom);
     if (parent?.overtone) {
       const parentComputed = vibrationalTerm(parent.constants, 2) - vibrationalTerm(parent.constants, 0);
-      return { value: parent.overtone.value + computed - parentComputed, provenance: `computed from ${parent.formula} (${parent.overtone.provenance}) by isotope relations` };
+      return {
+        value: parent.overtone.value + computed - parentComputed,
+        provenance: `computed from ${parent.formula} (${parent.overtone.provenance}) by isotope relations`,
+      };
     }
   }
   return { value: computed, provenance: 'G(2) − G(0) from the reference constants' };
@@ -190,9 +210,17 @@ export function predictBand(iso: Isotopologue, band: BandKind): BandPrediction |
   const v = band === 'fundamental' ? 1 : 2;
   const origin =
     band === 'fundamental'
-      ? entry.bandOrigin ?? { value: vibrationalTerm(k, 1) - vibrationalTerm(k, 0), provenance: 'G(1) − G(0) from the reference constants' }
+      ? (entry.bandOrigin ?? {
+          value: vibrationalTerm(k, 1) - vibrationalTerm(k, 0),
+          provenance: 'G(1) − G(0) from the reference constants',
+        })
       : overtoneOrigin(k, iso);
-  const constants: BandConstantsGuess = { origin: origin.value, B0: k.Be - k.alphaE / 2, Bupper: k.Be - k.alphaE * (v + 0.5), D: k.De ?? 0 };
+  const constants: BandConstantsGuess = {
+    origin: origin.value,
+    B0: k.Be - k.alphaE / 2,
+    Bupper: k.Be - k.alphaE * (v + 0.5),
+    D: k.De ?? 0,
+  };
   const beta = SECOND_RADIATION / TEMPERATURE;
   const population = (J: number) => Math.exp(-beta * (constants.B0 * J * (J + 1) - constants.D * J * J * (J + 1) * (J + 1)));
   const raw: PredictedLine[] = [];

@@ -11,7 +11,17 @@
  *
  * Everything here is measured on the spectrum itself; nothing about molecules is assumed.
  */
-import { fitCluster, instrumentProfile, measureShape, ProfileTable, pseudoVoigtTable, SaturationProfiles, ScaledProfile, type InstrumentShape, type LineProfile } from './lineshape';
+import {
+  fitCluster,
+  instrumentProfile,
+  measureShape,
+  ProfileTable,
+  pseudoVoigtTable,
+  SaturationProfiles,
+  ScaledProfile,
+  type InstrumentShape,
+  type LineProfile,
+} from './lineshape';
 import { toAbsorbance } from './peaks';
 import type { Spectrum } from './types';
 
@@ -317,7 +327,11 @@ export function detectLines(prepared: PreparedSpectrum): LineSearch {
     const d = den < 0 ? (0.5 * (a[i - 1] - a[i + 1])) / den : 0;
     return p.x[i] + Math.max(-0.5, Math.min(0.5, d)) * step;
   };
-  const lines = refineLines(p, profile, kept.map((i) => ({ wavenumber: vertex(i), probed: false })));
+  const lines = refineLines(
+    p,
+    profile,
+    kept.map((i) => ({ wavenumber: vertex(i), probed: false })),
+  );
   return { prepared: p, shape, profile, lines };
 }
 
@@ -331,11 +345,25 @@ function shapeFreedom(fwhm: number, step: number): { terms: number; fitGamma: bo
 }
 
 /** The line model from the shapes measured on clean lines (their median), or a bell shape when too few were measured. */
-function profileFrom(measured: InstrumentShape[], fwhm: number): { shape: LineShapeReport; profile: LineProfile; lobeShape?: ProfileTable } {
+function profileFrom(
+  measured: InstrumentShape[],
+  fwhm: number,
+): { shape: LineShapeReport; profile: LineProfile; lobeShape?: ProfileTable } {
   if (measured.length >= 3) {
-    const L = quantile(measured.map((m) => m.L), 0.5);
-    const gamma = quantile(measured.map((m) => m.gamma), 0.5);
-    const coeffs = measured[0].a.map((_, k) => quantile(measured.map((m) => m.a[k]), 0.5));
+    const L = quantile(
+      measured.map((m) => m.L),
+      0.5,
+    );
+    const gamma = quantile(
+      measured.map((m) => m.gamma),
+      0.5,
+    );
+    const coeffs = measured[0].a.map((_, k) =>
+      quantile(
+        measured.map((m) => m.a[k]),
+        0.5,
+      ),
+    );
     const instrument: InstrumentShape = { L, gamma, a: coeffs };
     const table = new ProfileTable((d) => instrumentProfile(d, instrument), fwhm);
     if (table.fwhm > 0.3 * fwhm && table.fwhm < 3 * fwhm) {
@@ -380,7 +408,11 @@ export function refineLines(p: PreparedSpectrum, profile: LineProfile, at: { wav
  * isotope doublet at low resolution looks like one broad line), each fitted with its partner at
  * the given position, and returns the new model, or undefined when too few pairs could be measured.
  */
-export function remeasureShape(p: PreparedSpectrum, pairs: { main: number; partner: number }[], fwhm: number): { shape: LineShapeReport; profile: LineProfile } | undefined {
+export function remeasureShape(
+  p: PreparedSpectrum,
+  pairs: { main: number; partner: number }[],
+  fwhm: number,
+): { shape: LineShapeReport; profile: LineProfile } | undefined {
   const measured: InstrumentShape[] = [];
   // The width measured on the blends overstates the instrument's; start from less, and keep the
   // window short of the next lines.
@@ -426,7 +458,13 @@ const TAPER_INNER = 1.5;
  * line shape beside a strong line) is dropped and the rest refitted without it.
  * With `fixed`, the listed centres are first held where predicted, then let go.
  */
-export function fitGroup(p: PreparedSpectrum, profile: LineProfile, centresIn: number[], topsIn: number[], options: { fixed?: number[]; probed?: boolean[] } = {}): DetectedLine[] {
+export function fitGroup(
+  p: PreparedSpectrum,
+  profile: LineProfile,
+  centresIn: number[],
+  topsIn: number[],
+  options: { fixed?: number[]; probed?: boolean[] } = {},
+): DetectedLine[] {
   let centres = centresIn.slice();
   let tops = topsIn.slice();
   let probed = centresIn.map((_, k) => options.probed?.[k] ?? false);
@@ -440,7 +478,18 @@ export function fitGroup(p: PreparedSpectrum, profile: LineProfile, centresIn: n
     const localNoise = p.noise[indexOf(p, centres[0])];
     // Strong lines get their own width (saturation broadens them); weak ones keep the instrument's.
     const fitShapes = tops.map((t, k) => t - p.baseline[indexOf(p, centres[k])] > WIDTH_FIT_SNR * localNoise);
-    let fit = fitCluster({ x: p.x, y: p.a, lo: win[0], hi: win[1], centres, heights: tops, profile, fitShapes, fixedCentres: [...fixed], taper });
+    let fit = fitCluster({
+      x: p.x,
+      y: p.a,
+      lo: win[0],
+      hi: win[1],
+      centres,
+      heights: tops,
+      profile,
+      fitShapes,
+      fixedCentres: [...fixed],
+      taper,
+    });
     // Fit again in a window centred on the fitted lines (and with held lines let go): a window
     // placed by the highest samples is lopsided by up to a point, and any difference between
     // the true line shape and the model then pulls the centre.
@@ -448,7 +497,12 @@ export function fitGroup(p: PreparedSpectrum, profile: LineProfile, centresIn: n
     const hi = Math.max(...fit.centres.filter(Number.isFinite));
     const win2 = Number.isFinite(lo) && Number.isFinite(hi) ? windowAround(p, lo, hi, MARGIN * fwhm) : undefined;
     const moved = Math.max(...fit.centres.map((c, k) => Math.abs(c - centres[k])));
-    if (win2 && (moved > RECENTRE_SHARE * p.step || fixed.size) && Math.abs(lo - Math.min(...centres)) < fwhm && Math.abs(hi - Math.max(...centres)) < fwhm) {
+    if (
+      win2 &&
+      (moved > RECENTRE_SHARE * p.step || fixed.size) &&
+      Math.abs(lo - Math.min(...centres)) < fwhm &&
+      Math.abs(hi - Math.max(...centres)) < fwhm
+    ) {
       const refit = fitCluster({
         x: p.x,
         y: p.a,
@@ -463,7 +517,17 @@ export function fitGroup(p: PreparedSpectrum, profile: LineProfile, centresIn: n
       });
       if (refit.ok || !fit.ok) fit = refit;
     } else if (fixed.size) {
-      fit = fitCluster({ x: p.x, y: p.a, lo: win[0], hi: win[1], centres: fit.centres, heights: fit.heights.map((h) => h + fit.baseline[0]), profile, shapes: fit.shapes, taper });
+      fit = fitCluster({
+        x: p.x,
+        y: p.a,
+        lo: win[0],
+        hi: win[1],
+        centres: fit.centres,
+        heights: fit.heights.map((h) => h + fit.baseline[0]),
+        profile,
+        shapes: fit.shapes,
+        taper,
+      });
     }
     // The least convincing line, if any is not convincing.
     let worst = -1;
@@ -472,7 +536,13 @@ export function fitGroup(p: PreparedSpectrum, profile: LineProfile, centresIn: n
       const c = fit.centres[k];
       const h = fit.heights[k];
       const bad =
-        !Number.isFinite(c) || c < p.x[win[0]] || c > p.x[win[1]] || Math.abs(c - centres[k]) > fwhm || !(h > 0) || !Number.isFinite(fit.centreErrors[k]) || !(h > 2 * fit.heightErrors[k]);
+        !Number.isFinite(c) ||
+        c < p.x[win[0]] ||
+        c > p.x[win[1]] ||
+        Math.abs(c - centres[k]) > fwhm ||
+        !(h > 0) ||
+        !Number.isFinite(fit.centreErrors[k]) ||
+        !(h > 2 * fit.heightErrors[k]);
       const score = bad ? (Number.isFinite(h / fit.heightErrors[k]) ? h / fit.heightErrors[k] : -Infinity) : Infinity;
       if (bad && score < worstScore) {
         worstScore = score;
@@ -483,7 +553,14 @@ export function fitGroup(p: PreparedSpectrum, profile: LineProfile, centresIn: n
       return centres.map((_, k) => {
         const c = fit.centres[k];
         const h = fit.heights[k];
-        return { wavenumber: c, sigma: fit.centreErrors[k], height: h, heightError: fit.heightErrors[k], snr: h / p.noise[indexOf(p, c)], probed: probed[k] };
+        return {
+          wavenumber: c,
+          sigma: fit.centreErrors[k],
+          height: h,
+          heightError: fit.heightErrors[k],
+          snr: h / p.noise[indexOf(p, c)],
+          probed: probed[k],
+        };
       });
     }
     centres = centres.filter((_, k) => k !== worst);

@@ -8,7 +8,17 @@ export * from './synthesize';
 export * from './jcamp-write';
 export * from './random';
 export { analyseSpectrum } from './analyse';
-export type { AnalyseOptions, SpectrumAnalysis, BandAnalysis, BandFitReport, BandStatus, AssignedLine, ExcludedLine, UnassignedLine, CalibrationReport } from './analyse';
+export type {
+  AnalyseOptions,
+  SpectrumAnalysis,
+  BandAnalysis,
+  BandFitReport,
+  BandStatus,
+  AssignedLine,
+  ExcludedLine,
+  UnassignedLine,
+  CalibrationReport,
+} from './analyse';
 export { isotopologuesOf, isotopologuesOfAll, predictBand, linePosition, BAND_LABEL } from './bands';
 export type { Isotopologue, BandKind, BandPrediction, PredictedLine } from './bands';
 export { fitAssignedLines } from './band-fit';

@@ -50,7 +50,10 @@ export function evenSpacing(x: ArrayLike<number>): number | null {
 
 /** One labelled record; long text values continue on following lines to keep lines within 80 characters. */
 function record(label: string, value: string | number, maxLen = 80): string {
-  const text = String(value).replace(/[\r\n]+/g, ' ').replace(/##/g, '# #').replace(/\$\$/g, '$ $');
+  const text = String(value)
+    .replace(/[\r\n]+/g, ' ')
+    .replace(/##/g, '# #')
+    .replace(/\$\$/g, '$ $');
   const head = `##${label}=`;
   if (head.length + text.length <= maxLen) return head + text;
   const lines: string[] = [];

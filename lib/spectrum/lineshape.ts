@@ -831,7 +831,17 @@ export function measureShape(
         continue;
       }
       const trial = clamp(
-        q.map((v, i) => v + (i < nc ? Math.max(-start.fwhm, Math.min(start.fwhm, st[i])) : i === iL ? Math.max(-0.5, Math.min(0.5, st[i])) : i === iG ? Math.max(-1, Math.min(1, st[i])) : Math.max(-0.2, Math.min(0.2, st[i])))),
+        q.map(
+          (v, i) =>
+            v +
+            (i < nc
+              ? Math.max(-start.fwhm, Math.min(start.fwhm, st[i]))
+              : i === iL
+                ? Math.max(-0.5, Math.min(0.5, st[i]))
+                : i === iG
+                  ? Math.max(-1, Math.min(1, st[i]))
+                  : Math.max(-0.2, Math.min(0.2, st[i]))),
+        ),
       );
       const r = residuals(trial);
       const ft = r ? r.r.reduce((acc, v) => acc + v * v, 0) : Infinity;

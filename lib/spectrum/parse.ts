@@ -17,9 +17,7 @@ export const CSV_MAX_LINE_CHARS = 1_000;
 /** Heading and comment rows allowed on top of the points. */
 const CSV_EXTRA_ROWS = 1_000;
 
-export type SpectrumParse =
-  | { ok: true; spectrum: Spectrum; warnings: string[] }
-  | { ok: false; message: string };
+export type SpectrumParse = { ok: true; spectrum: Spectrum; warnings: string[] } | { ok: false; message: string };
 
 export interface ParseSpectrumOptions {
   maxPoints?: number;
@@ -241,7 +239,9 @@ function parseJcamp(raw: string, maxPoints: number): SpectrumParse {
   const lines = text.split('\n').length;
   const counted = countJcampValues(text, maxPoints + lines);
   if (counted > maxPoints + lines) {
-    return fail(`The spectrum's data expand to more than ${maxPoints} points (JCAMP-DX compression); at most ${maxPoints} are accepted. Export it at a coarser spacing.`);
+    return fail(
+      `The spectrum's data expand to more than ${maxPoints} points (JCAMP-DX compression); at most ${maxPoints} are accepted. Export it at a coarser spacing.`,
+    );
   }
   let result;
   try {
@@ -257,14 +257,18 @@ function parseJcamp(raw: string, maxPoints: number): SpectrumParse {
   const sp = entry.spectra.find((s) => s.isXYdata && s.data.x.length > 0)!;
   const n = sp.data.x.length;
   if (typeof sp.nbPoints === 'number' && sp.nbPoints !== n) {
-    return fail(`The JCAMP-DX file declares ${sp.nbPoints} points (##NPOINTS) but its data holds ${n}; the data are damaged or incomplete.`);
+    return fail(
+      `The JCAMP-DX file declares ${sp.nbPoints} points (##NPOINTS) but its data holds ${n}; the data are damaged or incomplete.`,
+    );
   }
   const xu = xUnitOf(sp.xUnits);
   if (!xu) return fail(`The x axis is in ${sp.xUnits}; Oscillab reads infrared spectra in 1/CM (or micrometres).`);
   let yu = yUnitOf(sp.yUnits);
   if (!yu) {
     yu = inferY(sp.data.y);
-    warnings.push(`The y units "${sp.yUnits ?? ''}" are not absorbance or transmittance; read as ${yu.percent ? 'percent ' : ''}${yu.kind} from the values.`);
+    warnings.push(
+      `The y units "${sp.yUnits ?? ''}" are not absorbance or transmittance; read as ${yu.percent ? 'percent ' : ''}${yu.kind} from the values.`,
+    );
   } else if (yu.kind === 'transmittance' && !yu.percent) {
     // Many instruments write YUNITS=TRANSMITTANCE with values in percent.
     if (maxOf(sp.data.y) > 1.5) yu = { kind: 'transmittance', percent: true };
@@ -293,7 +297,8 @@ function csvShapeProblem(body: string, maxPoints: number): string | null {
     if (i - start > CSV_MAX_LINE_CHARS) {
       return `Line ${rows} of the CSV file is ${i - start} characters long; a spectrum row is two numbers (at most ${CSV_MAX_LINE_CHARS} characters).`;
     }
-    if (rows > maxRows) return `The CSV file has more than ${maxRows} lines; a spectrum of at most ${maxPoints} points needs fewer. Export it at a coarser spacing.`;
+    if (rows > maxRows)
+      return `The CSV file has more than ${maxRows} lines; a spectrum of at most ${maxPoints} points needs fewer. Export it at a coarser spacing.`;
     if (c === 13 && body.charCodeAt(i + 1) === 10) i++;
     start = i + 1;
   }
@@ -314,7 +319,11 @@ function parseCsv(text: string, maxPoints: number): SpectrumParse {
   const delimiter = probe.includes('\t') ? '\t' : probe.includes(';') ? ';' : probe.includes(',') ? ',' : ' ';
   let rows: string[][];
   if (delimiter === ' ') {
-    rows = body.split(/\r\n|\r|\n/).map((r) => r.trim()).filter((r) => r !== '').map((r) => r.split(/\s+/));
+    rows = body
+      .split(/\r\n|\r|\n/)
+      .map((r) => r.trim())
+      .filter((r) => r !== '')
+      .map((r) => r.split(/\s+/));
   } else {
     const roughRows = body.length / 8; // a refusal for absurd files before papaparse builds them
     if (roughRows > maxPoints * 20) return fail(`The file is far larger than a spectrum of ${maxPoints} points.`);
@@ -343,7 +352,8 @@ function parseCsv(text: string, maxPoints: number): SpectrumParse {
     if (decimalComma && (cells[0].includes(',') || (cells[1] ?? '').includes(','))) usedDecimalComma = true;
     x.push(a);
     y.push(b);
-    if (x.length > maxPoints) return fail(`The spectrum has more than ${maxPoints} points; at most ${maxPoints} are accepted. Export it at a coarser spacing.`);
+    if (x.length > maxPoints)
+      return fail(`The spectrum has more than ${maxPoints} points; at most ${maxPoints} are accepted. Export it at a coarser spacing.`);
   }
   if (x.length === 0) return fail('The CSV file holds no rows of two numbers (wavenumber, intensity).');
   const warnings: string[] = [];
@@ -358,7 +368,9 @@ function parseCsv(text: string, maxPoints: number): SpectrumParse {
   else if (/absorb|\bA\b/i.test(head)) yu = { kind: 'absorbance', percent: false };
   if (!yu) {
     yu = inferY(y);
-    warnings.push(`The file does not say whether it holds absorbance or transmittance; read as ${yu.percent ? 'percent ' : ''}${yu.kind} from the values.`);
+    warnings.push(
+      `The file does not say whether it holds absorbance or transmittance; read as ${yu.percent ? 'percent ' : ''}${yu.kind} from the values.`,
+    );
   } else if (yu.kind === 'transmittance' && !yu.percent && maxOf(y) > 1.5) {
     yu = { kind: 'transmittance', percent: true };
   }

@@ -245,7 +245,12 @@ function bandCurve(spectrum: Spectrum, f: BandFrame): [number, number][] {
   let iLo = 0;
   while (iLo < n && spectrum.x[iLo] < f.xmin) iLo++;
   const count = Math.max(0, iHi - iLo + 1);
-  return polyline(count, (k) => f.px(spectrum.x[iHi - k]), (k) => f.py(f.yValues[iHi - k]), Math.ceil(f.area.width));
+  return polyline(
+    count,
+    (k) => f.px(spectrum.x[iHi - k]),
+    (k) => f.py(f.yValues[iHi - k]),
+    Math.ceil(f.area.width),
+  );
 }
 
 /** Pixel height of the curve at a wavenumber (linear between points), for the guide lines. */
@@ -298,7 +303,10 @@ function reportedLineMarkers(input: BandPlotInput, lines: ReportedLine[], f: Ban
       labelAngle: label ? 90 : undefined,
       labelX: label ? x + 3.5 : undefined,
       labelY: label ? markerY - MARKER_SIZE - 3 : undefined,
-      guide: { y1: round2(area.top), y2: round2(Math.min(area.top + area.height, Math.max(area.top, curveHeightAt(input.spectrum, f, l.wavenumber)))) },
+      guide: {
+        y1: round2(area.top),
+        y2: round2(Math.min(area.top + area.height, Math.max(area.top, curveHeightAt(input.spectrum, f, l.wavenumber)))),
+      },
       note,
     });
   }
@@ -434,9 +442,7 @@ export function residualPlotModel(residuals: Residual[], options: { width?: numb
     min: xmin,
     max: xmax,
     reversed: false,
-    ticks: xt.values
-      .filter((v) => Number.isInteger(v))
-      .map((v) => ({ value: v, pos: round2(px(v)), label: formatTick(v, xdec) })),
+    ticks: xt.values.filter((v) => Number.isInteger(v)).map((v) => ({ value: v, pos: round2(px(v)), label: formatTick(v, xdec) })),
   };
   const yAxis: PlotAxis = {
     label: 'Residual / cm⁻¹',

@@ -126,14 +126,18 @@ function sniffPdf(bytes: Uint8Array, problems: string[]): boolean {
     return false;
   }
   if (ACTIVE_CONTENT_RE.test(head)) {
-    problems.push('The PDF carries HTML or script markup at its start, so it could be read as a web page; save the report again as a plain PDF.');
+    problems.push(
+      'The PDF carries HTML or script markup at its start, so it could be read as a web page; save the report again as a plain PDF.',
+    );
   }
   if (/##\s*TITLE\s*=/i.test(head)) {
     problems.push('The PDF also carries a JCAMP-DX header at its start; one file cannot be both.');
   }
   const active = activePdfName(bytes);
   if (active) {
-    problems.push(`The PDF contains ${active === 'Launch' ? 'a launch action' : active === 'RichMedia' ? 'embedded media' : 'embedded JavaScript'}; save the report again as a plain PDF.`);
+    problems.push(
+      `The PDF contains ${active === 'Launch' ? 'a launch action' : active === 'RichMedia' ? 'embedded media' : 'embedded JavaScript'}; save the report again as a plain PDF.`,
+    );
   }
   return true;
 }
@@ -177,7 +181,7 @@ function activePdfName(bytes: Uint8Array): string | null {
   const plain = activeNameIn(bytes);
   if (plain) return plain;
   let budget = PDF_INFLATE_BUDGET;
-  for (let at = indexOfAscii(bytes, 'stream'); at !== -1 && budget > 0; ) {
+  for (let at = indexOfAscii(bytes, 'stream'); at !== -1 && budget > 0;) {
     const dictStart = Math.max(0, at - 512);
     const dict = latin1(bytes, dictStart, at);
     let dataStart = at + 6;

@@ -121,7 +121,8 @@ function apodizationAt(kind: Apodization, delta: number, L: number): number {
   if (kind === 'boxcar') return 1;
   if (kind === 'triangular') return 1 - delta / L;
   // Three-term Blackman–Harris (F. J. Harris, Proc. IEEE 66, 51 (1978)), weighting from δ = 0 to L.
-  if (kind === 'blackman-harris') return 0.42323 + 0.49755 * Math.cos((Math.PI * delta) / L) + 0.07922 * Math.cos((2 * Math.PI * delta) / L);
+  if (kind === 'blackman-harris')
+    return 0.42323 + 0.49755 * Math.cos((Math.PI * delta) / L) + 0.07922 * Math.cos((2 * Math.PI * delta) / L);
   return 0.54 + 0.46 * Math.cos((Math.PI * delta) / L);
 }
 
@@ -148,7 +149,8 @@ function synthesizeThroughInstrument(opts: SynthesizeOptions, inst: InstrumentOp
   const kind = inst.apodization ?? 'happ-genzel';
   const lineWidth = inst.lineWidth ?? 0.15;
   if (!(opts.to > opts.from)) throw new RangeError('synthesizeSpectrum: "to" must be greater than "from".');
-  if (!(step > 0) || !(inst.resolution > 0) || !(lineWidth > 0)) throw new RangeError('synthesizeSpectrum: step, resolution and line width must be positive.');
+  if (!(step > 0) || !(inst.resolution > 0) || !(lineWidth > 0))
+    throw new RangeError('synthesizeSpectrum: step, resolution and line width must be positive.');
   const x = wavenumberGrid(opts.from, opts.to, step);
   if (x.length > SYNTH_MAX_POINTS) throw new RangeError(`synthesizeSpectrum: ${x.length} points exceed ${SYNTH_MAX_POINTS}.`);
   const L = 1 / inst.resolution;
@@ -160,7 +162,10 @@ function synthesizeThroughInstrument(opts: SynthesizeOptions, inst: InstrumentOp
   const start = opts.from - padPoints * fine;
   const needed = (x.length - 1) * oversample + 2 * padPoints + 1;
   const n = nextPowerOfTwo(needed);
-  if (n > FINE_MAX_POINTS) throw new RangeError(`synthesizeSpectrum: the fine grid would need ${n} points (limit ${FINE_MAX_POINTS}); use a coarser step or a shorter range.`);
+  if (n > FINE_MAX_POINTS)
+    throw new RangeError(
+      `synthesizeSpectrum: the fine grid would need ${n} points (limit ${FINE_MAX_POINTS}); use a coarser step or a shorter range.`,
+    );
   const strongest = opts.lines.reduce((m, l) => Math.max(m, l.intensity), 0);
   // Area of each line such that, were nothing saturated, the strongest would be recorded at peakA.
   const areaScale = strongest > 0 ? peakA / recordedPeakPerUnitArea(kind, L, lineWidth) / strongest : 0;

@@ -5,6 +5,8 @@ let tsImport;
 try {
   ({ tsImport } = await import('tsx/esm/api'));
 } catch {
-  throw new Error('The upload reader is not compiled and tsx (a development dependency) is not installed: run `npm run build`, which compiles it into the build folder.');
+  throw new Error(
+    'The upload reader is not compiled and tsx (a development dependency) is not installed: run `npm run build`, which compiles it into the build folder.',
+  );
 }
 await tsImport('./upload-worker.ts', import.meta.url);

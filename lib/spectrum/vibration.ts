@@ -71,7 +71,10 @@ function corrected(o: Origin, cal: { offset: number; scale: number; ref: number 
  * estimate it returns. The calibration error is common to all bands, so it is propagated by
  * recomputing with the offset (and scale) moved by one standard error, not added band by band.
  */
-function withCalibration<T extends Record<string, unknown>>(cal: CalibrationReport, compute: (c: (o: Origin) => Origin) => T | undefined): T | undefined {
+function withCalibration<T extends Record<string, unknown>>(
+  cal: CalibrationReport,
+  compute: (c: (o: Origin) => Origin) => T | undefined,
+): T | undefined {
   const base = { offset: cal.offset.value, scale: cal.scale?.value ?? 0, ref: cal.referenceWavenumber };
   const result = compute((o) => corrected(o, base));
   if (!result) return undefined;
@@ -93,7 +96,11 @@ function withCalibration<T extends Record<string, unknown>>(cal: CalibrationRepo
 }
 
 function twoTerm(fund: Origin, over: Origin, reducedMassKg: number): AnharmonicNumbers | undefined {
-  const r = anharmonicFromOvertone(fund.value, over.value, { reducedMassKg, sigmaFundamental: fund.stdError, sigmaOvertone: over.stdError });
+  const r = anharmonicFromOvertone(fund.value, over.value, {
+    reducedMassKg,
+    sigmaFundamental: fund.stdError,
+    sigmaOvertone: over.stdError,
+  });
   if (!r.ok) return undefined;
   const est = (value: number, stdError: number | undefined): Estimate => ({ value, stdError: stdError ?? 0 });
   return {
@@ -115,7 +122,10 @@ function combinedFit(rows: { rho: number; fundamental: Origin; overtone: Origin 
   const y = new Float64Array(n);
   let i = 0;
   for (const r of rows) {
-    for (const [v, o] of [[1, r.fundamental], [2, r.overtone]] as const) {
+    for (const [v, o] of [
+      [1, r.fundamental],
+      [2, r.overtone],
+    ] as const) {
       const w = 1 / Math.max(o.stdError, MIN_ORIGIN_ERROR);
       // G(v) − G(0) for v = 1: ωₑ − 2ωₑxₑ + 13/4 ωₑyₑ; for v = 2: 2ωₑ − 6ωₑxₑ + 31/2 ωₑyₑ.
       const coeff = v === 1 ? [1, -2, 13 / 4] : [2, -6, 31 / 2];
@@ -146,7 +156,11 @@ function combinedFit(rows: { rho: number; fundamental: Origin; overtone: Origin 
   };
 }
 
-export function analyseVibration(bands: BandAnalysis[], isotopologues: Isotopologue[], calibration: CalibrationReport | null): VibrationalAnalysis {
+export function analyseVibration(
+  bands: BandAnalysis[],
+  isotopologues: Isotopologue[],
+  calibration: CalibrationReport | null,
+): VibrationalAnalysis {
   const out: VibrationalAnalysis = { isotopologues: [], combined: [], notes: [] };
   const origin = (formula: string, band: 'fundamental' | 'overtone'): Origin | undefined => {
     const b = bands.find((x) => x.isotopologue === formula && x.band === band && x.status === 'fitted' && x.fit);
@@ -159,7 +173,9 @@ export function analyseVibration(bands: BandAnalysis[], isotopologues: Isotopolo
     if (!f || !o) continue;
     const asRecorded = twoTerm(f, o, iso.species.reducedMassKg);
     if (!asRecorded) {
-      out.notes.push(`${iso.display}: the overtone and fundamental origins do not give an anharmonic oscillator (the overtone must lie below twice the fundamental).`);
+      out.notes.push(
+        `${iso.display}: the overtone and fundamental origins do not give an anharmonic oscillator (the overtone must lie below twice the fundamental).`,
+      );
       continue;
     }
     const calibrated = calibration?.detected
@@ -176,17 +192,24 @@ export function analyseVibration(bands: BandAnalysis[], isotopologues: Isotopolo
     both.push({ iso, fundamental: f, overtone: o });
   }
   if (out.isotopologues.length) {
-    out.notes.push('The two-band formulas leave out ωₑyₑ: they give ωₑxₑ − 4.5ωₑyₑ and ωₑ − 5.75ωₑyₑ. The Morse Dₑ and D₀ are the model’s estimates and lie well above the measured dissociation energy.');
+    out.notes.push(
+      'The two-band formulas leave out ωₑyₑ: they give ωₑxₑ − 4.5ωₑyₑ and ωₑ − 5.75ωₑyₑ. The Morse Dₑ and D₀ are the model’s estimates and lie well above the measured dissociation energy.',
+    );
   }
   // One potential per set of elements (HCl and DCl together).
   const byElements = new Map<string, typeof both>();
   for (const b of both) byElements.set(b.iso.elements, [...(byElements.get(b.iso.elements) ?? []), b]);
   for (const set of byElements.values()) {
     if (set.length < 2) continue;
-    const ref = set.reduce((a, b) => (b.iso.rank < a.iso.rank || (b.iso.rank === a.iso.rank && b.iso.species.reducedMassU < a.iso.species.reducedMassU) ? b : a), set[0]);
+    const ref = set.reduce(
+      (a, b) => (b.iso.rank < a.iso.rank || (b.iso.rank === a.iso.rank && b.iso.species.reducedMassU < a.iso.species.reducedMassU) ? b : a),
+      set[0],
+    );
     const rhos = set.map((b) => Math.sqrt(ref.iso.species.reducedMassU / b.iso.species.reducedMassU));
     if (Math.max(...rhos) - Math.min(...rhos) < 0.05) {
-      out.notes.push(`${set.map((b) => b.iso.display).join(', ')}: their reduced masses are too alike to separate ωₑyₑ (it takes H and D, for example).`);
+      out.notes.push(
+        `${set.map((b) => b.iso.display).join(', ')}: their reduced masses are too alike to separate ωₑyₑ (it takes H and D, for example).`,
+      );
       continue;
     }
     const rows = set.map((b, i) => ({ rho: rhos[i], fundamental: b.fundamental, overtone: b.overtone }));
@@ -194,7 +217,9 @@ export function analyseVibration(bands: BandAnalysis[], isotopologues: Isotopolo
     if (!asRecorded) continue;
     let calibrated: CombinedVibration['calibrated'];
     if (calibration?.detected) {
-      calibrated = withCalibration(calibration, (fix) => combinedFit(rows.map((r) => ({ rho: r.rho, fundamental: fix(r.fundamental), overtone: fix(r.overtone) }))));
+      calibrated = withCalibration(calibration, (fix) =>
+        combinedFit(rows.map((r) => ({ rho: r.rho, fundamental: fix(r.fundamental), overtone: fix(r.overtone) }))),
+      );
     }
     out.combined.push({
       reference: ref.iso.formula,

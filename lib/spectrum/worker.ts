@@ -25,7 +25,8 @@ export function uploadParseLimits(): WorkerLimits {
   return { timeoutMs: positive(process.env.UPLOAD_PARSE_MS, 15_000), maxMemoryMb: positive(process.env.UPLOAD_PARSE_MB, 256) };
 }
 
-export type OffThreadReading = { ok: true; reading: UploadReading } | { ok: false; reason: 'timeout' | 'memory' | 'failed'; message: string };
+export type OffThreadReading =
+  { ok: true; reading: UploadReading } | { ok: false; reason: 'timeout' | 'memory' | 'failed'; message: string };
 
 /**
  * Which file the worker runs. Under `next start` (production): the compiled copy `npm run build`
@@ -44,7 +45,12 @@ export function uploadWorkerEntry(): string {
   return path.join(/* turbopackIgnore: true */ root, 'lib', 'spectrum', 'upload-worker.mjs');
 }
 
-export function readUploadOffThread(bytes: Uint8Array, name: string, wantSpectrum: boolean, limits: WorkerLimits = uploadParseLimits()): Promise<OffThreadReading> {
+export function readUploadOffThread(
+  bytes: Uint8Array,
+  name: string,
+  wantSpectrum: boolean,
+  limits: WorkerLimits = uploadParseLimits(),
+): Promise<OffThreadReading> {
   return new Promise((resolve) => {
     // A copy the worker owns: the caller keeps its bytes (it hashes and stores them afterwards).
     const copy = new Uint8Array(bytes);
@@ -64,12 +70,22 @@ export function readUploadOffThread(bytes: Uint8Array, name: string, wantSpectru
       worker.terminate().catch(() => undefined);
     };
     const timer = setTimeout(
-      () => finish({ ok: false, reason: 'timeout', message: `Reading the file took longer than ${limits.timeoutMs < 1000 ? `${limits.timeoutMs} ms` : `${Math.round(limits.timeoutMs / 100) / 10} s`} and was stopped.` }),
+      () =>
+        finish({
+          ok: false,
+          reason: 'timeout',
+          message: `Reading the file took longer than ${limits.timeoutMs < 1000 ? `${limits.timeoutMs} ms` : `${Math.round(limits.timeoutMs / 100) / 10} s`} and was stopped.`,
+        }),
       limits.timeoutMs,
     );
     worker.once('message', (reading: UploadReading) => finish({ ok: true, reading }));
     worker.once('error', (error: Error & { code?: string }) => {
-      if (error.code === 'ERR_WORKER_OUT_OF_MEMORY') finish({ ok: false, reason: 'memory', message: `Reading the file needed more than ${limits.maxMemoryMb} MB of memory and was stopped.` });
+      if (error.code === 'ERR_WORKER_OUT_OF_MEMORY')
+        finish({
+          ok: false,
+          reason: 'memory',
+          message: `Reading the file needed more than ${limits.maxMemoryMb} MB of memory and was stopped.`,
+        });
       else {
         log().error({ err: error, file: name }, 'upload reader failed');
         finish({ ok: false, reason: 'failed', message: 'The file could not be read.' });

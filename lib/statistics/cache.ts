@@ -31,7 +31,10 @@ export async function changeStamp(scope: Scope): Promise<string> {
   const cohorts = [{ t: cells[cells.length - 1]?.cohortsChanged }];
   const t = cohorts[0]?.t;
   return [
-    ...cells.filter((r) => Number(r.practicalId) > 0).map((r) => `${r.practicalId}/${r.cohortId}=${r.changeToken}`).sort(),
+    ...cells
+      .filter((r) => Number(r.practicalId) > 0)
+      .map((r) => `${r.practicalId}/${r.cohortId}=${r.changeToken}`)
+      .sort(),
     `cohorts=${t instanceof Date ? t.toISOString() : String(t)}`,
   ].join(';');
 }

@@ -35,12 +35,18 @@ export interface ComparisonTarget {
   cohorts: Cohort[];
 }
 
-export async function comparison({ practical, practicalIds, cohorts: visible }: ComparisonTarget, by: Exclude<GroupBy, 'none'>): Promise<Comparison> {
+export async function comparison(
+  { practical, practicalIds, cohorts: visible }: ComparisonTarget,
+  by: Exclude<GroupBy, 'none'>,
+): Promise<Comparison> {
   // Instruments are compared only for staff who see every cohort (a TA's group would be one bench anyway).
   const scope = { practicalIds, cohortIds: visible.length ? visible.map((c) => c.id) : [-1] };
-  const [counts, quantities, marks] = await cachedStatistics('compare', scope, { by }, async () => [
-    await submissionCounts(scope, by), await quantityStatistics(scope, by), await markSummary(scope, by),
-  ] as const);
+  const [counts, quantities, marks] = await cachedStatistics(
+    'compare',
+    scope,
+    { by },
+    async () => [await submissionCounts(scope, by), await quantityStatistics(scope, by), await markSummary(scope, by)] as const,
+  );
   const cohortById = new Map(visible.map((c) => [String(c.id), c]));
   const groups: ComparisonGroup[] = counts.map(({ group, ...rest }) => {
     const cohort = by === 'cohort' ? cohortById.get(group) : undefined;
@@ -53,11 +59,15 @@ export async function comparison({ practical, practicalIds, cohorts: visible }: 
       instrument: cohort ? cohort.instrument : group,
       counts: rest,
       suppressed,
-      meanMark: suppressed ? null : m?.meanMark ?? null,
-      sdMark: suppressed ? null : m?.sdMark ?? null,
-      quantities: quantities.filter((q) => q.group === group).map((q) =>
-        suppressed || q.suppressed ? { group: q.group, key: q.key, species: q.species, basis: q.basis, n: q.n, students: q.students, suppressed: true } : q,
-      ),
+      meanMark: suppressed ? null : (m?.meanMark ?? null),
+      sdMark: suppressed ? null : (m?.sdMark ?? null),
+      quantities: quantities
+        .filter((q) => q.group === group)
+        .map((q) =>
+          suppressed || q.suppressed
+            ? { group: q.group, key: q.key, species: q.species, basis: q.basis, n: q.n, students: q.students, suppressed: true }
+            : q,
+        ),
     };
   });
   groups.sort((a, b) => (a.term ?? '').localeCompare(b.term ?? '') || a.label.localeCompare(b.label));

@@ -36,7 +36,13 @@ const round = (v: number | null | undefined, digits = 4) => (v === null || v ===
 
 export async function marksCsv(s: StatisticsScope): Promise<{ header: string[]; csv: string }> {
   const { QuantityDefinition } = models();
-  const quantities = await QuantityDefinition.findAll({ where: { practicalId: s.practical.id }, order: [['position', 'ASC'], ['id', 'ASC']] });
+  const quantities = await QuantityDefinition.findAll({
+    where: { practicalId: s.practical.id },
+    order: [
+      ['position', 'ASC'],
+      ['id', 'ASC'],
+    ],
+  });
   const rubric = Array.isArray(s.practical.rubric) ? s.practical.rubric : [];
   const header = [
     ...MARKS_CSV_LEADING,
@@ -57,9 +63,15 @@ export async function marksCsv(s: StatisticsScope): Promise<{ header: string[]; 
            AND s2."isMarkedAttempt" = :yes AND s2.status <> 'draft' AND s2."submittedAt" IS NOT NULL AND s2.attempt > s.attempt)
      WHERE cm.role = 'student' AND cm."courseId" = :courseId AND cm."cohortId" IN (:cohortIds)
      ORDER BY c.term, c.name, u."studentNumber", u.name, u.id`,
-    { replacements: { practicalId: s.practical.id, courseId: s.practical.courseId, cohortIds: s.scope.cohortIds, yes: true }, type: QueryTypes.SELECT },
+    {
+      replacements: { practicalId: s.practical.id, courseId: s.practical.courseId, cohortIds: s.scope.cohortIds, yes: true },
+      type: QueryTypes.SELECT,
+    },
   );
-  const ids = students.map((r) => r.sid).filter((v) => v !== null && v !== undefined).map(Number);
+  const ids = students
+    .map((r) => r.sid)
+    .filter((v) => v !== null && v !== undefined)
+    .map(Number);
   const marks = ids.length
     ? await sequelize().query<{ submissionId: number; itemKey: string; awarded: number | null }>(
         `SELECT "submissionId", "itemKey", awarded FROM marks WHERE "submissionId" IN (:ids)`,
@@ -82,9 +94,18 @@ export async function marksCsv(s: StatisticsScope): Promise<{ header: string[]; 
     const cells = has ? bySubmission.get(Number(r.sid)) : undefined;
     const submittedAt = r.submittedAt ? new Date(r.submittedAt as string).toISOString() : '';
     return [
-      r.studentNumber ?? '', r.name, r.email, `${r.cohort} (${r.term})`, s.practical.title,
-      has ? Number(r.attempt) : '', submittedAt, has ? Number(r.daysLate) : '', has ? round(Number(r.latePenalty), 2) : '',
-      ...header.slice(MARKS_CSV_LEADING.length, header.length - MARKS_CSV_TRAILING.length).map((col) => (cells?.has(col) ? round(cells.get(col)!, 2) : '')),
+      r.studentNumber ?? '',
+      r.name,
+      r.email,
+      `${r.cohort} (${r.term})`,
+      s.practical.title,
+      has ? Number(r.attempt) : '',
+      submittedAt,
+      has ? Number(r.daysLate) : '',
+      has ? round(Number(r.latePenalty), 2) : '',
+      ...header
+        .slice(MARKS_CSV_LEADING.length, header.length - MARKS_CSV_TRAILING.length)
+        .map((col) => (cells?.has(col) ? round(cells.get(col)!, 2) : '')),
       has && r.awardedTotal !== null ? round(Number(r.awardedTotal), 2) : '',
       has && r.maxTotal !== null ? round(Number(r.maxTotal), 2) : '',
       has ? String(r.status) : 'not-submitted',
@@ -95,9 +116,21 @@ export async function marksCsv(s: StatisticsScope): Promise<{ header: string[]; 
 
 export function statisticsCsv(report: PracticalReport): string {
   const rows = report.quantities.map((q) => [
-    report.scope.label, q.key, q.species, q.basis, q.n,
-    q.verdicts?.within ?? '', q.verdicts?.partial ?? '', q.verdicts?.outside ?? '', q.verdicts?.notChecked ?? '',
-    round(q.box?.min), round(q.box?.q1), round(q.box?.median), round(q.box?.q3), round(q.box?.max), round(q.mean ?? null),
+    report.scope.label,
+    q.key,
+    q.species,
+    q.basis,
+    q.n,
+    q.verdicts?.within ?? '',
+    q.verdicts?.partial ?? '',
+    q.verdicts?.outside ?? '',
+    q.verdicts?.notChecked ?? '',
+    round(q.box?.min),
+    round(q.box?.q1),
+    round(q.box?.median),
+    round(q.box?.q3),
+    round(q.box?.max),
+    round(q.mean ?? null),
   ]);
   return toCsv(STATS_CSV_HEADER, rows);
 }

@@ -47,12 +47,33 @@ export const DEFAULT_MARKER_THRESHOLD = 10; // percentage points of the maximum 
  * start with = + - @ (or tab / carriage return) are prefixed with ' so spreadsheets do not run them.
  */
 export const MARKS_CSV_LEADING = [
-  'student_number', 'name', 'email', 'cohort', 'practical', 'attempt', 'submitted_at', 'late_days', 'late_penalty_percent',
+  'student_number',
+  'name',
+  'email',
+  'cohort',
+  'practical',
+  'attempt',
+  'submitted_at',
+  'late_days',
+  'late_penalty_percent',
 ] as const;
 export const MARKS_CSV_TRAILING = ['total', 'max_total', 'status'] as const;
 
 /** Statistics CSV: one row per quantity and basis for the scope asked for (header below). */
 export const STATS_CSV_HEADER = [
-  'scope', 'quantity', 'species', 'basis', 'n', 'within', 'partial', 'outside', 'not_checked',
-  'min_percent', 'q1_percent', 'median_percent', 'q3_percent', 'max_percent', 'mean_percent',
+  'scope',
+  'quantity',
+  'species',
+  'basis',
+  'n',
+  'within',
+  'partial',
+  'outside',
+  'not_checked',
+  'min_percent',
+  'q1_percent',
+  'median_percent',
+  'q3_percent',
+  'max_percent',
+  'mean_percent',
 ] as const;

@@ -8,8 +8,14 @@ import type { ModelStatic, Model, Transaction, WhereOptions } from 'sequelize';
 import { noteChangedSubmissions } from './keep';
 
 type AnyModel = ModelStatic<Model>;
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
-type HookOptions = { transaction?: Transaction | null; where?: WhereOptions; fields?: any[]; attributes?: Record<string, unknown>; keptIds?: number[] };
+type HookOptions = {
+  transaction?: Transaction | null;
+  where?: WhereOptions;
+  // eslint-disable-next-line @typescript-eslint/no-explicit-any -- Sequelize types `fields` differently per hook; these handlers only compare the names as strings
+  fields?: any[];
+  attributes?: Record<string, unknown>;
+  keptIds?: number[];
+};
 
 interface Kept {
   /** The column naming the submission (id for submissions themselves). */
@@ -21,7 +27,20 @@ interface Kept {
 const KEPT: Record<string, Kept> = {
   Submission: {
     column: 'id',
-    fields: ['practicalId', 'cohortId', 'studentId', 'status', 'submittedAt', 'isMarkedAttempt', 'daysLate', 'releasedAt', 'awardedTotal', 'proposedTotal', 'maxTotal', 'markedById'],
+    fields: [
+      'practicalId',
+      'cohortId',
+      'studentId',
+      'status',
+      'submittedAt',
+      'isMarkedAttempt',
+      'daysLate',
+      'releasedAt',
+      'awardedTotal',
+      'proposedTotal',
+      'maxTotal',
+      'markedById',
+    ],
   },
   CheckResult: { column: 'submissionId', fields: ['submissionId', 'key', 'species', 'basis', 'verdict', 'relativeDeviation'] },
   SlipFinding: { column: 'submissionId', fields: ['submissionId', 'key', 'code'] },
@@ -40,7 +59,8 @@ function idsInWhere(where: WhereOptions | undefined, column: string): number[] |
   return null;
 }
 
-const countedNow = (s: Model) => s.get('status') !== 'draft' && s.get('submittedAt') !== null && s.get('submittedAt') !== undefined && s.get('isMarkedAttempt') !== false;
+const countedNow = (s: Model) =>
+  s.get('status') !== 'draft' && s.get('submittedAt') !== null && s.get('submittedAt') !== undefined && s.get('isMarkedAttempt') !== false;
 
 const touches = (kept: Kept, fields: unknown[] | undefined) => !fields || fields.some((f) => kept.fields.includes(String(f)));
 
@@ -56,7 +76,12 @@ export function keepStatisticsHooks(models: Record<string, AnyModel>): void {
     const findIds = async (options: HookOptions) => {
       const direct = idsInWhere(options.where, kept.column);
       if (direct) return direct;
-      const rows = await model.findAll({ where: options.where, attributes: [kept.column], transaction: options.transaction ?? undefined, raw: true });
+      const rows = await model.findAll({
+        where: options.where,
+        attributes: [kept.column],
+        transaction: options.transaction ?? undefined,
+        raw: true,
+      });
       return rows.map((r) => Number((r as unknown as Record<string, unknown>)[kept.column]));
     };
     hook('afterCreate', async (instance: Model, options: HookOptions) => {

@@ -41,7 +41,11 @@ type Row = Record<string, unknown>;
 
 const isPostgres = () => sequelize().getDialect() === 'postgres';
 const sel = <T extends object = Row>(sql: string, replacements: object, transaction?: Transaction | null) =>
-  sequelize().query<T>(sql, { replacements: { yes: true, ...replacements }, type: QueryTypes.SELECT, transaction: transaction ?? undefined });
+  sequelize().query<T>(sql, {
+    replacements: { yes: true, ...replacements },
+    type: QueryTypes.SELECT,
+    transaction: transaction ?? undefined,
+  });
 const run = (sql: string, options: { replacements?: Record<string, unknown>; bind?: unknown[]; transaction?: Transaction | null }) =>
   sequelize().query(sql, { ...options, type: QueryTypes.RAW, transaction: options.transaction ?? undefined });
 
@@ -56,8 +60,18 @@ const numOrNull = (v: unknown): number | null => (v === null || v === undefined 
 // ---------------------------------------------------------------------------------------------
 // What one counted submission contributes.
 
-export interface ValueRow { key: string; species: string; basis: string; verdict: string; x: number | null; bin: number | null }
-export interface SlipRow { key: string; code: string }
+export interface ValueRow {
+  key: string;
+  species: string;
+  basis: string;
+  verdict: string;
+  x: number | null;
+  bin: number | null;
+}
+export interface SlipRow {
+  key: string;
+  code: string;
+}
 
 export interface Contribution {
   submissionId: number;
@@ -82,14 +96,35 @@ const COUNTED = `s.status <> 'draft' AND s."submittedAt" IS NOT NULL AND s."isMa
 const counted = (r: Row) => r.status !== 'draft' && r.submittedAt !== null && r.submittedAt !== undefined && bool(r.isMarkedAttempt);
 
 const scalarSignature = (c: Contribution) =>
-  JSON.stringify([c.practicalId, c.cohortId, c.studentId, c.spans, c.late, c.marked, c.released, c.markedById, c.markPercent, c.differencePercent, c.overrides, c.moderations]);
+  JSON.stringify([
+    c.practicalId,
+    c.cohortId,
+    c.studentId,
+    c.spans,
+    c.late,
+    c.marked,
+    c.released,
+    c.markedById,
+    c.markPercent,
+    c.differencePercent,
+    c.overrides,
+    c.moderations,
+  ]);
 const valueOrder = (a: ValueRow, b: ValueRow) =>
-  a.key.localeCompare(b.key) || a.species.localeCompare(b.species) || a.basis.localeCompare(b.basis) || a.verdict.localeCompare(b.verdict) || (a.x ?? -Infinity) - (b.x ?? -Infinity);
-const valuesSignature = (c: Contribution) => JSON.stringify([c.cohortId, [...c.values].sort(valueOrder).map((v) => [v.key, v.species, v.basis, v.verdict, v.x])]);
+  a.key.localeCompare(b.key) ||
+  a.species.localeCompare(b.species) ||
+  a.basis.localeCompare(b.basis) ||
+  a.verdict.localeCompare(b.verdict) ||
+  (a.x ?? -Infinity) - (b.x ?? -Infinity);
+const valuesSignature = (c: Contribution) =>
+  JSON.stringify([c.cohortId, [...c.values].sort(valueOrder).map((v) => [v.key, v.species, v.basis, v.verdict, v.x])]);
 const slipsSignature = (c: Contribution) => JSON.stringify([c.cohortId, c.slips.map((s) => `${s.key}${SEP}${s.code}`).sort()]);
 
 export function valueRow(r: { key: string; species: string; basis: string; verdict: string; relativeDeviation: number | null }): ValueRow {
-  const x = r.verdict !== 'not-checked' && r.relativeDeviation !== null && r.relativeDeviation !== undefined ? Number(r.relativeDeviation) * 100 : null;
+  const x =
+    r.verdict !== 'not-checked' && r.relativeDeviation !== null && r.relativeDeviation !== undefined
+      ? Number(r.relativeDeviation) * 100
+      : null;
   return { key: r.key, species: r.species, basis: r.basis, verdict: r.verdict, x, bin: x === null || Number.isNaN(x) ? null : fineBin(x) };
 }
 
@@ -116,7 +151,11 @@ async function currentContributions(pairs: Pair[], t: Transaction): Promise<Cont
   if (!subs.length) return [];
   const ids = subs.map((r) => Number(r.id));
   // One after another: a transaction has one connection (pg would queue them anyway).
-  const values = await sel(`SELECT "submissionId", key, species, basis, verdict, "relativeDeviation" FROM check_results WHERE "submissionId" IN (:ids)`, { ids }, t);
+  const values = await sel(
+    `SELECT "submissionId", key, species, basis, verdict, "relativeDeviation" FROM check_results WHERE "submissionId" IN (:ids)`,
+    { ids },
+    t,
+  );
   const slips = await sel(`SELECT "submissionId", key, code FROM slip_findings WHERE "submissionId" IN (:ids)`, { ids }, t);
   const overrides = await sel(
     `SELECT "submissionId", COUNT(*) AS n FROM marks
@@ -125,7 +164,11 @@ async function currentContributions(pairs: Pair[], t: Transaction): Promise<Cont
     { ids },
     t,
   );
-  const moderations = await sel(`SELECT "submissionId", "markerId", decision FROM moderations WHERE "submissionId" IN (:ids) AND "markerId" IS NOT NULL`, { ids }, t);
+  const moderations = await sel(
+    `SELECT "submissionId", "markerId", decision FROM moderations WHERE "submissionId" IN (:ids) AND "markerId" IS NOT NULL`,
+    { ids },
+    t,
+  );
   const by = <T extends Row>(rows: T[]) => {
     const m = new Map<number, T[]>();
     for (const r of rows) {
@@ -167,9 +210,18 @@ async function currentContributions(pairs: Pair[], t: Transaction): Promise<Cont
       markPercent: marked && max !== null && max > 0 && awarded !== null ? (100 * awarded) / max : null,
       differencePercent: max !== null && max > 0 && awarded !== null && proposed !== null ? (100 * (awarded - proposed)) / max : null,
       overrides: overridesBy.get(id) ?? 0,
-      moderations: (moderationsBy.get(id) ?? []).map((m) => `${Number(m.markerId)}:${m.decision === 'changed' ? 1 : 0}`).sort().join(','),
+      moderations: (moderationsBy.get(id) ?? [])
+        .map((m) => `${Number(m.markerId)}:${m.decision === 'changed' ? 1 : 0}`)
+        .sort()
+        .join(','),
       values: (valuesBy.get(id) ?? []).map((v) =>
-        valueRow({ key: String(v.key), species: String(v.species), basis: String(v.basis), verdict: String(v.verdict), relativeDeviation: numOrNull(v.relativeDeviation) }),
+        valueRow({
+          key: String(v.key),
+          species: String(v.species),
+          basis: String(v.basis),
+          verdict: String(v.verdict),
+          relativeDeviation: numOrNull(v.relativeDeviation),
+        }),
       ),
       slips: (slipsBy.get(id) ?? []).map((s) => ({ key: String(s.key), code: String(s.code) })),
     };
@@ -189,13 +241,24 @@ async function appliedContributions(pairs: Pair[], t: Transaction): Promise<Cont
   ).filter((r) => wanted.has(`${r.practicalId}|${r.studentId}`));
   if (!subs.length) return [];
   const ids = subs.map((r) => Number(r.submissionId));
-  const values = await sel(`SELECT "submissionId", key, species, basis, verdict, x, bin FROM statistics_values WHERE "submissionId" IN (:ids)`, { ids }, t);
+  const values = await sel(
+    `SELECT "submissionId", key, species, basis, verdict, x, bin FROM statistics_values WHERE "submissionId" IN (:ids)`,
+    { ids },
+    t,
+  );
   const slips = await sel(`SELECT "submissionId", key, code FROM statistics_slip_findings WHERE "submissionId" IN (:ids)`, { ids }, t);
   const valuesBy = new Map<number, ValueRow[]>();
   for (const v of values) {
     const k = Number(v.submissionId);
     if (!valuesBy.has(k)) valuesBy.set(k, []);
-    valuesBy.get(k)!.push({ key: String(v.key), species: String(v.species), basis: String(v.basis), verdict: String(v.verdict), x: numOrNull(v.x), bin: numOrNull(v.bin) });
+    valuesBy.get(k)!.push({
+      key: String(v.key),
+      species: String(v.species),
+      basis: String(v.basis),
+      verdict: String(v.verdict),
+      x: numOrNull(v.x),
+      bin: numOrNull(v.bin),
+    });
   }
   const slipsBy = new Map<number, SlipRow[]>();
   for (const s of slips) {
@@ -225,14 +288,39 @@ async function appliedContributions(pairs: Pair[], t: Transaction): Promise<Cont
 // ---------------------------------------------------------------------------------------------
 // Differences to the aggregates.
 
-interface GroupDelta { students: number; submitted: number; late: number; marked: number; released: number; markCount: number; markSum: Exact; markSquares: Exact }
+interface GroupDelta {
+  students: number;
+  submitted: number;
+  late: number;
+  marked: number;
+  released: number;
+  markCount: number;
+  markSum: Exact;
+  markSquares: Exact;
+}
 interface QuantityDelta {
-  n: number; students: number; within: number; partial: number; outside: number; notChecked: number; checked: number;
-  xSum: Exact; xSquares: Exact; bins: FineHistogram;
+  n: number;
+  students: number;
+  within: number;
+  partial: number;
+  outside: number;
+  notChecked: number;
+  checked: number;
+  xSum: Exact;
+  xSquares: Exact;
+  bins: FineHistogram;
 }
 interface MarkerDelta {
-  submissions: number; markCount: number; markSum: Exact; markSquares: Exact;
-  differenceCount: number; differenceSum: Exact; differenceSquares: Exact; overrides: number; moderations: number; moderationChanges: number;
+  submissions: number;
+  markCount: number;
+  markSum: Exact;
+  markSquares: Exact;
+  differenceCount: number;
+  differenceSum: Exact;
+  differenceSquares: Exact;
+  overrides: number;
+  moderations: number;
+  moderationChanges: number;
 }
 
 export class Deltas {
@@ -248,18 +336,48 @@ export class Deltas {
 
   private group(cell: string): GroupDelta {
     let g = this.groups.get(cell);
-    if (!g) this.groups.set(cell, (g = { students: 0, submitted: 0, late: 0, marked: 0, released: 0, markCount: 0, markSum: ZERO, markSquares: ZERO }));
+    if (!g)
+      this.groups.set(
+        cell,
+        (g = { students: 0, submitted: 0, late: 0, marked: 0, released: 0, markCount: 0, markSum: ZERO, markSquares: ZERO }),
+      );
     return g;
   }
   private quantity(k: string): QuantityDelta {
     let q = this.quantities.get(k);
-    if (!q) this.quantities.set(k, (q = { n: 0, students: 0, within: 0, partial: 0, outside: 0, notChecked: 0, checked: 0, xSum: ZERO, xSquares: ZERO, bins: new Map() }));
+    if (!q)
+      this.quantities.set(
+        k,
+        (q = {
+          n: 0,
+          students: 0,
+          within: 0,
+          partial: 0,
+          outside: 0,
+          notChecked: 0,
+          checked: 0,
+          xSum: ZERO,
+          xSquares: ZERO,
+          bins: new Map(),
+        }),
+      );
     return q;
   }
   private marker(k: string): MarkerDelta {
     let m = this.markers.get(k);
     if (!m) {
-      m = { submissions: 0, markCount: 0, markSum: ZERO, markSquares: ZERO, differenceCount: 0, differenceSum: ZERO, differenceSquares: ZERO, overrides: 0, moderations: 0, moderationChanges: 0 };
+      m = {
+        submissions: 0,
+        markCount: 0,
+        markSum: ZERO,
+        markSquares: ZERO,
+        differenceCount: 0,
+        differenceSum: ZERO,
+        differenceSquares: ZERO,
+        overrides: 0,
+        moderations: 0,
+        moderationChanges: 0,
+      };
       this.markers.set(k, m);
     }
     return m;
@@ -344,20 +462,46 @@ export class Deltas {
       this.cells.add(`${p}|${c}`);
     };
     for (const [k, g] of this.groups) {
-      if (!g.students && !g.submitted && !g.late && !g.marked && !g.released && !g.markCount && isZero(g.markSum) && isZero(g.markSquares)) this.groups.delete(k);
+      if (!g.students && !g.submitted && !g.late && !g.marked && !g.released && !g.markCount && isZero(g.markSum) && isZero(g.markSquares))
+        this.groups.delete(k);
       else this.cells.add(k);
     }
     for (const [k, q] of this.quantities) {
       for (const [b, c] of q.bins) if (c === 0) q.bins.delete(b);
-      if (!q.n && !q.students && !q.within && !q.partial && !q.outside && !q.notChecked && !q.checked && isZero(q.xSum) && isZero(q.xSquares) && !q.bins.size) this.quantities.delete(k);
+      if (
+        !q.n &&
+        !q.students &&
+        !q.within &&
+        !q.partial &&
+        !q.outside &&
+        !q.notChecked &&
+        !q.checked &&
+        isZero(q.xSum) &&
+        isZero(q.xSquares) &&
+        !q.bins.size
+      )
+        this.quantities.delete(k);
       else note(k);
     }
-    for (const [k, n] of this.slips) if (!n) this.slips.delete(k); else note(k);
+    for (const [k, n] of this.slips)
+      if (!n) this.slips.delete(k);
+      else note(k);
     for (const [k, n] of this.slipCodes) if (!n) this.slipCodes.delete(k);
     for (const k of this.codes) note(k); // the example may change even when the counts do not
     for (const [k, m] of this.markers) {
-      if (!m.submissions && !m.markCount && !m.differenceCount && !m.overrides && !m.moderations && !m.moderationChanges
-        && isZero(m.markSum) && isZero(m.markSquares) && isZero(m.differenceSum) && isZero(m.differenceSquares)) this.markers.delete(k);
+      if (
+        !m.submissions &&
+        !m.markCount &&
+        !m.differenceCount &&
+        !m.overrides &&
+        !m.moderations &&
+        !m.moderationChanges &&
+        isZero(m.markSum) &&
+        isZero(m.markSquares) &&
+        isZero(m.differenceSum) &&
+        isZero(m.differenceSquares)
+      )
+        this.markers.delete(k);
       else note(k);
     }
   }
@@ -394,17 +538,40 @@ function cellFilter(keys: Iterable<string>, sep = SEP) {
  * to the transaction's connection: Sequelize binds by name, and SQLite looks every name up in a
  * list, which made a 500-row insert quadratic.
  */
-async function insertRows(table: string, columns: string[], rows: unknown[][], t: Transaction, conflict?: { keys: string[]; update: string[] }) {
+async function insertRows(
+  table: string,
+  columns: string[],
+  rows: unknown[][],
+  t: Transaction,
+  conflict?: { keys: string[]; update: string[] },
+) {
   const sqlite = !isPostgres();
   const per = Math.max(1, Math.floor(30000 / columns.length));
   for (const part of chunks(rows, Math.min(per, CHUNK))) {
     const params: unknown[] = [];
-    const tuples = part.map((r) => `(${r.map((v) => { params.push(v); return sqlite ? '?' : `$${params.length}`; }).join(', ')})`);
+    const tuples = part.map(
+      (r) =>
+        `(${r
+          .map((v) => {
+            params.push(v);
+            return sqlite ? '?' : `$${params.length}`;
+          })
+          .join(', ')})`,
+    );
     let sql = `INSERT INTO ${table} (${columns.map((c) => `"${c}"`).join(', ')}) VALUES ${tuples.join(', ')}`;
-    if (conflict) sql += ` ON CONFLICT (${conflict.keys.map((c) => `"${c}"`).join(', ')}) DO UPDATE SET ${conflict.update.map((c) => `"${c}" = excluded."${c}"`).join(', ')}`;
+    if (conflict)
+      sql += ` ON CONFLICT (${conflict.keys.map((c) => `"${c}"`).join(', ')}) DO UPDATE SET ${conflict.update.map((c) => `"${c}" = excluded."${c}"`).join(', ')}`;
     if (sqlite) {
-      const connection = (t as unknown as { connection: { run: (sql: string, params: unknown[], cb: (err: Error | null) => void) => void } }).connection;
-      await new Promise<void>((resolve, reject) => connection.run(sql, params.map((v) => (typeof v === 'boolean' ? (v ? 1 : 0) : v)), (err) => (err ? reject(err) : resolve())));
+      const connection = (
+        t as unknown as { connection: { run: (sql: string, params: unknown[], cb: (err: Error | null) => void) => void } }
+      ).connection;
+      await new Promise<void>((resolve, reject) =>
+        connection.run(
+          sql,
+          params.map((v) => (typeof v === 'boolean' ? (v ? 1 : 0) : v)),
+          (err) => (err ? reject(err) : resolve()),
+        ),
+      );
     } else {
       await run(sql, { bind: params, transaction: t });
     }
@@ -412,7 +579,8 @@ async function insertRows(table: string, columns: string[], rows: unknown[][], t
 }
 
 async function deleteIds(table: string, column: string, ids: number[], t: Transaction) {
-  for (const part of chunks(ids)) await run(`DELETE FROM ${table} WHERE "${column}" IN (:ids)`, { replacements: { ids: part }, transaction: t });
+  for (const part of chunks(ids))
+    await run(`DELETE FROM ${table} WHERE "${column}" IN (:ids)`, { replacements: { ids: part }, transaction: t });
 }
 
 /** Replace the applied rows of submissions whose contribution changed. */
@@ -430,29 +598,89 @@ async function writeApplied(before: Contribution[], after: Contribution[], t: Tr
     if (!a || !b ? (a ?? b)!.slips.length > 0 : slipsSignature(a) !== slipsSignature(b)) slips.push(id);
   }
   if (scalars.length) {
-    await deleteIds('statistics_submissions', 'submissionId', scalars.filter((id) => old.has(id)), t);
-    const rows = scalars.filter((id) => now.has(id)).map((id) => {
-      const c = now.get(id)!;
-      return [c.submissionId, c.practicalId, c.cohortId, c.studentId, c.spans, c.late, c.marked, c.released, c.markedById, c.markPercent, c.differencePercent, c.overrides, c.moderations];
-    });
+    await deleteIds(
+      'statistics_submissions',
+      'submissionId',
+      scalars.filter((id) => old.has(id)),
+      t,
+    );
+    const rows = scalars
+      .filter((id) => now.has(id))
+      .map((id) => {
+        const c = now.get(id)!;
+        return [
+          c.submissionId,
+          c.practicalId,
+          c.cohortId,
+          c.studentId,
+          c.spans,
+          c.late,
+          c.marked,
+          c.released,
+          c.markedById,
+          c.markPercent,
+          c.differencePercent,
+          c.overrides,
+          c.moderations,
+        ];
+      });
     if (rows.length) {
-      await insertRows('statistics_submissions', ['submissionId', 'practicalId', 'cohortId', 'studentId', 'spans', 'late', 'marked', 'released', 'markedById', 'markPercent', 'differencePercent', 'overrides', 'moderations'], rows, t);
+      await insertRows(
+        'statistics_submissions',
+        [
+          'submissionId',
+          'practicalId',
+          'cohortId',
+          'studentId',
+          'spans',
+          'late',
+          'marked',
+          'released',
+          'markedById',
+          'markPercent',
+          'differencePercent',
+          'overrides',
+          'moderations',
+        ],
+        rows,
+        t,
+      );
     }
   }
   if (values.length) {
-    await deleteIds('statistics_values', 'submissionId', values.filter((id) => old.has(id)), t);
-    const rows = values.filter((id) => now.has(id)).flatMap((id) => {
-      const c = now.get(id)!;
-      return c.values.map((v) => [c.submissionId, c.practicalId, c.cohortId, v.key, v.species, v.basis, v.verdict, v.x, v.bin]);
-    });
-    if (rows.length) await insertRows('statistics_values', ['submissionId', 'practicalId', 'cohortId', 'key', 'species', 'basis', 'verdict', 'x', 'bin'], rows, t);
+    await deleteIds(
+      'statistics_values',
+      'submissionId',
+      values.filter((id) => old.has(id)),
+      t,
+    );
+    const rows = values
+      .filter((id) => now.has(id))
+      .flatMap((id) => {
+        const c = now.get(id)!;
+        return c.values.map((v) => [c.submissionId, c.practicalId, c.cohortId, v.key, v.species, v.basis, v.verdict, v.x, v.bin]);
+      });
+    if (rows.length)
+      await insertRows(
+        'statistics_values',
+        ['submissionId', 'practicalId', 'cohortId', 'key', 'species', 'basis', 'verdict', 'x', 'bin'],
+        rows,
+        t,
+      );
   }
   if (slips.length) {
-    await deleteIds('statistics_slip_findings', 'submissionId', slips.filter((id) => old.has(id)), t);
-    const rows = slips.filter((id) => now.has(id)).flatMap((id) => {
-      const c = now.get(id)!;
-      return c.slips.map((s) => [c.submissionId, c.practicalId, c.cohortId, s.key, s.code]);
-    });
+    await deleteIds(
+      'statistics_slip_findings',
+      'submissionId',
+      slips.filter((id) => old.has(id)),
+      t,
+    );
+    const rows = slips
+      .filter((id) => now.has(id))
+      .flatMap((id) => {
+        const c = now.get(id)!;
+        return c.slips.map((s) => [c.submissionId, c.practicalId, c.cohortId, s.key, s.code]);
+      });
     if (rows.length) await insertRows('statistics_slip_findings', ['submissionId', 'practicalId', 'cohortId', 'key', 'code'], rows, t);
   }
 }
@@ -462,7 +690,11 @@ async function readKeyed(table: string, keys: string[], keyOf: (r: Row) => strin
   if (!keys.length) return out;
   const { practicals, cohorts } = cellFilter(keys);
   const want = new Set(keys);
-  for (const r of await sel(`SELECT * FROM ${table} WHERE "practicalId" IN (:practicals) AND "cohortId" IN (:cohorts)`, { practicals, cohorts }, t)) {
+  for (const r of await sel(
+    `SELECT * FROM ${table} WHERE "practicalId" IN (:practicals) AND "cohortId" IN (:cohorts)`,
+    { practicals, cohorts },
+    t,
+  )) {
     const k = keyOf(r);
     if (want.has(k)) out.set(k, r);
   }
@@ -495,17 +727,46 @@ async function applyDeltas(d: Deltas, t: Transaction) {
       if (old) groupGone.push(Number(old.id));
       continue;
     }
-    groupRows.push([p, c, v.students, v.submitted, v.late, v.marked, v.released, v.markCount, serialise(v.markSum), serialise(v.markSquares), crypto.randomBytes(8).toString('hex')]);
+    groupRows.push([
+      p,
+      c,
+      v.students,
+      v.submitted,
+      v.late,
+      v.marked,
+      v.released,
+      v.markCount,
+      serialise(v.markSum),
+      serialise(v.markSquares),
+      crypto.randomBytes(8).toString('hex'),
+    ]);
   }
   await deleteIds('statistics_groups', 'id', groupGone, t);
   if (groupRows.length) {
-    const cols = ['practicalId', 'cohortId', 'students', 'submitted', 'late', 'marked', 'released', 'markCount', 'markSum', 'markSquares', 'changeToken'];
+    const cols = [
+      'practicalId',
+      'cohortId',
+      'students',
+      'submitted',
+      'late',
+      'marked',
+      'released',
+      'markCount',
+      'markSum',
+      'markSquares',
+      'changeToken',
+    ];
     await insertRows('statistics_groups', cols, groupRows, t, { keys: ['practicalId', 'cohortId'], update: cols.slice(2) });
   }
 
   // Quantities.
   const qKeys = [...d.quantities.keys()];
-  const quantities = await readKeyed('statistics_quantities', qKeys, (r) => [r.practicalId, r.cohortId, r.key, r.species, r.basis].join(SEP), t);
+  const quantities = await readKeyed(
+    'statistics_quantities',
+    qKeys,
+    (r) => [r.practicalId, r.cohortId, r.key, r.species, r.basis].join(SEP),
+    t,
+  );
   const qRows: unknown[][] = [];
   const qGone: number[] = [];
   for (const [k, delta] of d.quantities) {
@@ -523,15 +784,42 @@ async function applyDeltas(d: Deltas, t: Transaction) {
     }
     const [p, c, key, species, basis] = k.split(SEP);
     qRows.push([
-      Number(p), Number(c), key, species, basis, n, num(old?.students) + delta.students,
-      num(old?.within) + delta.within, num(old?.partial) + delta.partial, num(old?.outside) + delta.outside,
-      num(old?.notChecked) + delta.notChecked, num(old?.checked) + delta.checked,
-      serialise(add(parse(old?.xSum as string), delta.xSum)), serialise(add(parse(old?.xSquares as string), delta.xSquares)), histogramText(bins),
+      Number(p),
+      Number(c),
+      key,
+      species,
+      basis,
+      n,
+      num(old?.students) + delta.students,
+      num(old?.within) + delta.within,
+      num(old?.partial) + delta.partial,
+      num(old?.outside) + delta.outside,
+      num(old?.notChecked) + delta.notChecked,
+      num(old?.checked) + delta.checked,
+      serialise(add(parse(old?.xSum as string), delta.xSum)),
+      serialise(add(parse(old?.xSquares as string), delta.xSquares)),
+      histogramText(bins),
     ]);
   }
   await deleteIds('statistics_quantities', 'id', qGone, t);
   if (qRows.length) {
-    const cols = ['practicalId', 'cohortId', 'key', 'species', 'basis', 'n', 'students', 'within', 'partial', 'outside', 'notChecked', 'checked', 'xSum', 'xSquares', 'bins'];
+    const cols = [
+      'practicalId',
+      'cohortId',
+      'key',
+      'species',
+      'basis',
+      'n',
+      'students',
+      'within',
+      'partial',
+      'outside',
+      'notChecked',
+      'checked',
+      'xSum',
+      'xSquares',
+      'bins',
+    ];
     await insertRows('statistics_quantities', cols, qRows, t, { keys: cols.slice(0, 5), update: cols.slice(5) });
   }
 
@@ -550,14 +838,23 @@ async function applyDeltas(d: Deltas, t: Transaction) {
     sRows.push([Number(p), Number(c), code, key, n]);
   }
   await deleteIds('statistics_slips', 'id', sGone, t);
-  if (sRows.length) await insertRows('statistics_slips', ['practicalId', 'cohortId', 'code', 'key', 'findings'], sRows, t, { keys: ['practicalId', 'cohortId', 'code', 'key'], update: ['findings'] });
+  if (sRows.length)
+    await insertRows('statistics_slips', ['practicalId', 'cohortId', 'code', 'key', 'findings'], sRows, t, {
+      keys: ['practicalId', 'cohortId', 'code', 'key'],
+      update: ['findings'],
+    });
 
   // Slips per code: submissions, and the lowest submission id as the example (read from the applied rows).
   const codeKeys = [...d.codes];
   const codes = await readKeyed('statistics_slip_codes', codeKeys, (r) => [r.practicalId, r.cohortId, r.code].join(SEP), t);
   const examples = new Map<string, number | null>();
   for (const part of chunks(codeKeys, 200)) {
-    const sql = part.map((_, i) => `SELECT ${i} AS i, MIN("submissionId") AS example FROM statistics_slip_findings WHERE "practicalId" = :p${i} AND "cohortId" = :c${i} AND code = :k${i}`).join(' UNION ALL ');
+    const sql = part
+      .map(
+        (_, i) =>
+          `SELECT ${i} AS i, MIN("submissionId") AS example FROM statistics_slip_findings WHERE "practicalId" = :p${i} AND "cohortId" = :c${i} AND code = :k${i}`,
+      )
+      .join(' UNION ALL ');
     const replacements: Record<string, unknown> = {};
     part.forEach((k, i) => {
       const [p, c, code] = k.split(SEP);
@@ -580,7 +877,11 @@ async function applyDeltas(d: Deltas, t: Transaction) {
     cRows.push([Number(p), Number(c), code, n, examples.get(k) ?? null]);
   }
   await deleteIds('statistics_slip_codes', 'id', cGone, t);
-  if (cRows.length) await insertRows('statistics_slip_codes', ['practicalId', 'cohortId', 'code', 'submissions', 'example'], cRows, t, { keys: ['practicalId', 'cohortId', 'code'], update: ['submissions', 'example'] });
+  if (cRows.length)
+    await insertRows('statistics_slip_codes', ['practicalId', 'cohortId', 'code', 'submissions', 'example'], cRows, t, {
+      keys: ['practicalId', 'cohortId', 'code'],
+      update: ['submissions', 'example'],
+    });
 
   // Markers.
   const markers = await readKeyed('statistics_markers', [...d.markers.keys()], (r) => [r.practicalId, r.cohortId, r.markerId].join(SEP), t);
@@ -602,17 +903,52 @@ async function applyDeltas(d: Deltas, t: Transaction) {
       differenceSum: add(parse(old?.differenceSum as string), delta.differenceSum),
       differenceSquares: add(parse(old?.differenceSquares as string), delta.differenceSquares),
     };
-    if (!v.submissions && !v.markCount && !v.differenceCount && !v.overrides && !v.moderations && !v.moderationChanges && Object.values(sums).every(isZero)) {
+    if (
+      !v.submissions &&
+      !v.markCount &&
+      !v.differenceCount &&
+      !v.overrides &&
+      !v.moderations &&
+      !v.moderationChanges &&
+      Object.values(sums).every(isZero)
+    ) {
       if (old) mGone.push(Number(old.id));
       continue;
     }
     const [p, c, markerId] = k.split(SEP).map(Number);
-    mRows.push([p, c, markerId, v.submissions, v.markCount, serialise(sums.markSum), serialise(sums.markSquares), v.differenceCount,
-      serialise(sums.differenceSum), serialise(sums.differenceSquares), v.overrides, v.moderations, v.moderationChanges]);
+    mRows.push([
+      p,
+      c,
+      markerId,
+      v.submissions,
+      v.markCount,
+      serialise(sums.markSum),
+      serialise(sums.markSquares),
+      v.differenceCount,
+      serialise(sums.differenceSum),
+      serialise(sums.differenceSquares),
+      v.overrides,
+      v.moderations,
+      v.moderationChanges,
+    ]);
   }
   await deleteIds('statistics_markers', 'id', mGone, t);
   if (mRows.length) {
-    const cols = ['practicalId', 'cohortId', 'markerId', 'submissions', 'markCount', 'markSum', 'markSquares', 'differenceCount', 'differenceSum', 'differenceSquares', 'overrides', 'moderations', 'moderationChanges'];
+    const cols = [
+      'practicalId',
+      'cohortId',
+      'markerId',
+      'submissions',
+      'markCount',
+      'markSum',
+      'markSquares',
+      'differenceCount',
+      'differenceSum',
+      'differenceSquares',
+      'overrides',
+      'moderations',
+      'moderationChanges',
+    ];
     await insertRows('statistics_markers', cols, mRows, t, { keys: cols.slice(0, 3), update: cols.slice(3) });
   }
 }
@@ -673,7 +1009,10 @@ export async function keepStatisticsFor(submissionIds: number[], t: Transaction)
   if (!submissionIds.length) return;
   const pairs = await pairsOf(submissionIds, t);
   if (!pairs.length) return;
-  await lockPracticals(pairs.map((p) => p.practicalId), t);
+  await lockPracticals(
+    pairs.map((p) => p.practicalId),
+    t,
+  );
   const deltas = new Deltas();
   await collect(pairs, t, deltas);
   deltas.settle();
@@ -736,8 +1075,14 @@ export async function withoutKeeping<T>(fn: () => Promise<T>): Promise<T> {
 // Rebuilding from scratch.
 
 const KEPT_TABLES = [
-  'statistics_groups', 'statistics_quantities', 'statistics_slips', 'statistics_slip_codes', 'statistics_markers',
-  'statistics_submissions', 'statistics_values', 'statistics_slip_findings',
+  'statistics_groups',
+  'statistics_quantities',
+  'statistics_slips',
+  'statistics_slip_codes',
+  'statistics_markers',
+  'statistics_submissions',
+  'statistics_values',
+  'statistics_slip_findings',
 ];
 
 /**
@@ -758,7 +1103,8 @@ export async function rebuildStatistics(
     const only = options.practicalIds;
     for (const table of KEPT_TABLES) {
       if (only) {
-        for (const ids of chunks(only)) await run(`DELETE FROM ${table} WHERE "practicalId" IN (:ids)`, { replacements: { ids }, transaction: t });
+        for (const ids of chunks(only))
+          await run(`DELETE FROM ${table} WHERE "practicalId" IN (:ids)`, { replacements: { ids }, transaction: t });
       } else await run(`DELETE FROM ${table}`, { transaction: t });
     }
     const pairs = (
@@ -775,7 +1121,8 @@ export async function rebuildStatistics(
     }
     deltas.settle();
     await applyDeltas(deltas, t);
-    if (!only) await run('UPDATE statistics_meta SET "keptVersion" = :v WHERE id = 1', { replacements: { v: KEPT_VERSION }, transaction: t });
+    if (!only)
+      await run('UPDATE statistics_meta SET "keptVersion" = :v WHERE id = 1', { replacements: { v: KEPT_VERSION }, transaction: t });
     const [{ n }] = await sel<{ n: number }>('SELECT COUNT(*) AS n FROM statistics_submissions', {}, t);
     return { students: pairs.length, submissions: Number(n) };
   });
@@ -807,7 +1154,10 @@ export function forgetKeptCheck(): void {
 export async function keptSnapshot(practicalIds?: number[]): Promise<Record<string, Row[]>> {
   const out: Record<string, Row[]> = {};
   for (const table of KEPT_TABLES) {
-    const rows = await sel(`SELECT * FROM ${table}${practicalIds ? ' WHERE "practicalId" IN (:p)' : ''}`, practicalIds ? { p: practicalIds } : {});
+    const rows = await sel(
+      `SELECT * FROM ${table}${practicalIds ? ' WHERE "practicalId" IN (:p)' : ''}`,
+      practicalIds ? { p: practicalIds } : {},
+    );
     out[table] = rows
       .map((r) => {
         const { id: _id, changeToken: _t, ...rest } = r as Row;

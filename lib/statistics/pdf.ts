@@ -28,7 +28,11 @@ class Pages {
   page: PDFPage;
   y: number;
   readonly all: PDFPage[] = [];
-  constructor(private doc: PDFDocument, readonly regular: PDFFont, readonly bold: PDFFont) {
+  constructor(
+    private doc: PDFDocument,
+    readonly regular: PDFFont,
+    readonly bold: PDFFont,
+  ) {
     this.page = this.add();
     this.y = A4.height - M;
   }
@@ -54,7 +58,11 @@ export async function summaryPdf(report: PracticalReport, generatedAt = new Date
   const doc = await PDFDocument.create();
   doc.registerFontkit(fontkit);
   // Everything the summary prints beyond the report's own strings: quantity names (with ₑ …) and the axis's ticks.
-  const printed = [JSON.stringify(report), ...report.quantities.map((q) => quantityLabel(q.key, q.species)), ...SYMLOG_TICKS.map(tickLabel)].join('');
+  const printed = [
+    JSON.stringify(report),
+    ...report.quantities.map((q) => quantityLabel(q.key, q.species)),
+    ...SYMLOG_TICKS.map(tickLabel),
+  ].join('');
   const { regular, bold } = await embedFonts(doc, ['regular', 'bold'], printed);
   doc.setTitle(`Cohort statistics: ${report.practical.title}, ${report.scope.label}`);
   doc.setCreator('Oscillab');
@@ -69,7 +77,13 @@ export async function summaryPdf(report: PracticalReport, generatedAt = new Date
   w.text(`Generated ${generatedAt.toISOString().slice(0, 16).replace('T', ' ')} UTC by Oscillab`, M, w.y, 8, regular, SOFT);
   w.y -= 18;
   const c = report.counts;
-  w.text(`Students ${c.students}   Submitted ${c.submitted}   On time ${c.onTime}   Late ${c.late}   Marked ${c.marked}   Released ${c.released}`, M, w.y, 10, bold);
+  w.text(
+    `Students ${c.students}   Submitted ${c.submitted}   On time ${c.onTime}   Late ${c.late}   Marked ${c.marked}   Released ${c.released}`,
+    M,
+    w.y,
+    10,
+    bold,
+  );
   w.y -= 20;
 
   if (report.suppressed) {
@@ -83,7 +97,13 @@ export async function summaryPdf(report: PracticalReport, generatedAt = new Date
 
   const total = w.all.length;
   w.all.forEach((p, i) => {
-    p.drawText(`Oscillab · ${report.practical.title} · ${report.scope.label} · page ${i + 1} of ${total}`, { x: M, y: M - 16, size: 7, font: regular, color: SOFT });
+    p.drawText(`Oscillab · ${report.practical.title} · ${report.scope.label} · page ${i + 1} of ${total}`, {
+      x: M,
+      y: M - 16,
+      size: 7,
+      font: regular,
+      color: SOFT,
+    });
   });
   return doc.save();
 }
@@ -98,11 +118,21 @@ function boxPlots(w: Pages, report: PracticalReport, basis: 'consistency' | 'acc
   const lo = symlog(-100);
   const hi = symlog(1000);
   const px = (v: number) => x0 + ((Math.min(hi, Math.max(lo, symlog(v))) - lo) / (hi - lo)) * (x1 - x0);
-  const title = basis === 'consistency' ? 'Consistency: is each number right from the student’s own data?' : 'Accuracy: is the measurement close to the accepted value?';
+  const title =
+    basis === 'consistency'
+      ? 'Consistency: is each number right from the student’s own data?'
+      : 'Accuracy: is the measurement close to the accepted value?';
   w.need(60);
   w.text(title, M, w.y, 10, w.bold);
   w.y -= 12;
-  w.text('Relative deviation per quantity. Box: middle half (first to third quartile), bar: median, whiskers: smallest to largest; log-scaled axis.', M, w.y, 7, w.regular, SOFT);
+  w.text(
+    'Relative deviation per quantity. Box: middle half (first to third quartile), bar: median, whiskers: smallest to largest; log-scaled axis.',
+    M,
+    w.y,
+    7,
+    w.regular,
+    SOFT,
+  );
   w.y -= 8;
   const drawAxis = () => {
     for (const t of SYMLOG_TICKS) {
@@ -122,15 +152,18 @@ function boxPlots(w: Pages, report: PracticalReport, basis: 'consistency' | 'acc
     const top = w.y;
     const mid = top - rowH / 2;
     label.forEach((l, i) => w.text(l, M, top - 9 - i * 9, 7.5));
-    for (const t of SYMLOG_TICKS) w.page.drawLine({ start: { x: px(t), y: top }, end: { x: px(t), y: top - rowH }, thickness: t === 0 ? 0.8 : 0.3, color: RULE });
+    for (const t of SYMLOG_TICKS)
+      w.page.drawLine({ start: { x: px(t), y: top }, end: { x: px(t), y: top - rowH }, thickness: t === 0 ? 0.8 : 0.3, color: RULE });
     const b = q.box!;
     w.page.drawLine({ start: { x: px(b.min), y: mid }, end: { x: px(b.max), y: mid }, thickness: 0.8, color: INK });
-    for (const v of [b.min, b.max]) w.page.drawLine({ start: { x: px(v), y: mid - 4 }, end: { x: px(v), y: mid + 4 }, thickness: 0.8, color: INK });
+    for (const v of [b.min, b.max])
+      w.page.drawLine({ start: { x: px(v), y: mid - 4 }, end: { x: px(v), y: mid + 4 }, thickness: 0.8, color: INK });
     const bx = px(b.q1);
     const bw = Math.max(1.5, px(b.q3) - px(b.q1));
     w.page.drawRectangle({ x: bx, y: mid - 5, width: bw, height: 10, color: rgb(1, 1, 1), borderColor: INK, borderWidth: 0.8 });
     // Hatching so the box reads without colour.
-    for (let hx = bx + 3; hx < bx + bw; hx += 3) w.page.drawLine({ start: { x: hx, y: mid - 5 }, end: { x: Math.min(bx + bw, hx + 3), y: mid + 5 }, thickness: 0.3, color: ACCENT });
+    for (let hx = bx + 3; hx < bx + bw; hx += 3)
+      w.page.drawLine({ start: { x: hx, y: mid - 5 }, end: { x: Math.min(bx + bw, hx + 3), y: mid + 5 }, thickness: 0.3, color: ACCENT });
     w.page.drawLine({ start: { x: px(b.median), y: mid - 6 }, end: { x: px(b.median), y: mid + 6 }, thickness: 2, color: INK });
     const sh = q.shares!;
     w.text(`median ${formatPercent(b.median)}`, x1 + 8, top - 8, 7);
@@ -163,7 +196,9 @@ function slipTable(w: Pages, report: PracticalReport) {
   };
   header();
   for (const s of report.slips) {
-    const cells = [s.title, s.quantities.join(', '), String(s.count), String(s.submissions), s.example].map((t, i) => wrap(t, cols[i].w, 7.5, w.regular));
+    const cells = [s.title, s.quantities.join(', '), String(s.count), String(s.submissions), s.example].map((t, i) =>
+      wrap(t, cols[i].w, 7.5, w.regular),
+    );
     const h = Math.max(...cells.map((c) => c.length)) * 9 + 5;
     if (w.y - h < M + 14) {
       w.newPage();
@@ -201,7 +236,13 @@ function histograms(w: Pages, report: PracticalReport) {
     bins.forEach((b, j) => {
       const bh = (b.count / max) * (h - 18);
       if (b.count > 0) {
-        w.page.drawRectangle({ x: x + j * bw + 0.5, y: base, width: bw - 1, height: bh, color: j === 0 || j === bins.length - 1 ? RULE : ACCENT });
+        w.page.drawRectangle({
+          x: x + j * bw + 0.5,
+          y: base,
+          width: bw - 1,
+          height: bh,
+          color: j === 0 || j === bins.length - 1 ? RULE : ACCENT,
+        });
         const t = String(b.count);
         w.text(t, x + j * bw + (bw - textWidth(t, w.regular, 5)) / 2, base + bh + 1.5, 5);
       }

@@ -68,10 +68,12 @@ async function studentOvercount(scope: Scope, groupBy: GroupBy): Promise<{ group
   const group = new Map<string, number>();
   const quantity = new Map<string, number>();
   const candidates = new Set<number>(
-    (await q<{ studentId: number }>(
-      `SELECT "studentId" FROM statistics_submissions WHERE "practicalId" IN (:practicalIds) AND spans = :yes AND "cohortId" IN (:cohortIds)`,
-      scope,
-    )).map((r) => Number(r.studentId)),
+    (
+      await q<{ studentId: number }>(
+        `SELECT "studentId" FROM statistics_submissions WHERE "practicalId" IN (:practicalIds) AND spans = :yes AND "cohortId" IN (:cohortIds)`,
+        scope,
+      )
+    ).map((r) => Number(r.studentId)),
   );
   if (scope.practicalIds.length > 1) {
     // Side by side across practicals: a student who took two of them (a repeat year).
@@ -79,7 +81,8 @@ async function studentOvercount(scope: Scope, groupBy: GroupBy): Promise<{ group
       `SELECT "studentId" FROM statistics_submissions WHERE "practicalId" IN (:practicalIds) AND "cohortId" IN (:cohortIds)
        GROUP BY "studentId" HAVING COUNT(DISTINCT "practicalId") > 1`,
       scope,
-    )) candidates.add(Number(r.studentId));
+    ))
+      candidates.add(Number(r.studentId));
   }
   if (!candidates.size) return { group, quantity };
   const subs = await q(
@@ -88,7 +91,9 @@ async function studentOvercount(scope: Scope, groupBy: GroupBy): Promise<{ group
     { ...scope, students: [...candidates] },
   );
   const values = subs.length
-    ? await q(`SELECT DISTINCT "submissionId", key, species, basis FROM statistics_values WHERE "submissionId" IN (:ids)`, { ids: subs.map((s) => Number(s.submissionId)) })
+    ? await q(`SELECT DISTINCT "submissionId", key, species, basis FROM statistics_values WHERE "submissionId" IN (:ids)`, {
+        ids: subs.map((s) => Number(s.submissionId)),
+      })
     : [];
   const groupOf = await groups(scope, groupBy);
   const cellsIn = new Map<string, Set<string>>(); // student\0group → cells
@@ -129,14 +134,24 @@ export interface Counts {
   released: number;
 }
 
-interface GroupSum { students: number; submitted: number; late: number; marked: number; released: number; markCount: number; markSum: Exact; markSquares: Exact }
+interface GroupSum {
+  students: number;
+  submitted: number;
+  late: number;
+  marked: number;
+  released: number;
+  markCount: number;
+  markSum: Exact;
+  markSquares: Exact;
+}
 
 async function groupSums(scope: Scope, groupBy: GroupBy): Promise<Map<string, GroupSum>> {
   const [rows, over] = await Promise.all([scoped('statistics_groups', scope, groupBy), studentOvercount(scope, groupBy)]);
   const out = new Map<string, GroupSum>();
   for (const r of rows) {
     let s = out.get(r.g);
-    if (!s) out.set(r.g, (s = { students: 0, submitted: 0, late: 0, marked: 0, released: 0, markCount: 0, markSum: ZERO, markSquares: ZERO }));
+    if (!s)
+      out.set(r.g, (s = { students: 0, submitted: 0, late: 0, marked: 0, released: 0, markCount: 0, markSum: ZERO, markSquares: ZERO }));
     s.students += num(r.students);
     s.submitted += num(r.submitted);
     s.late += num(r.late);
@@ -153,13 +168,25 @@ async function groupSums(scope: Scope, groupBy: GroupBy): Promise<Map<string, Gr
 export async function submissionCounts(scope: Scope, groupBy: GroupBy = 'none'): Promise<Counts[]> {
   const sums = await groupSums(scope, groupBy);
   return [...sums.entries()].map(([group, s]) => ({
-    group, students: s.students, submitted: s.submitted, onTime: s.submitted - s.late, late: s.late, marked: s.marked, released: s.released,
+    group,
+    students: s.students,
+    submitted: s.submitted,
+    onTime: s.submitted - s.late,
+    late: s.late,
+    marked: s.marked,
+    released: s.released,
   }));
 }
 
 // ---------------------------------------------------------------------------------------------
 
-export interface BoxPlot { min: number; q1: number; median: number; q3: number; max: number }
+export interface BoxPlot {
+  min: number;
+  q1: number;
+  median: number;
+  q3: number;
+  max: number;
+}
 
 export interface QuantityStat {
   group: string;
@@ -182,9 +209,21 @@ export interface QuantityStat {
 }
 
 interface QuantitySum {
-  g: string; key: string; species: string; basis: string; cohorts: Set<number>;
-  n: number; students: number; within: number; partial: number; outside: number; notChecked: number; checked: number;
-  xSum: Exact; xSquares: Exact; bins: FineHistogram;
+  g: string;
+  key: string;
+  species: string;
+  basis: string;
+  cohorts: Set<number>;
+  n: number;
+  students: number;
+  within: number;
+  partial: number;
+  outside: number;
+  notChecked: number;
+  checked: number;
+  xSum: Exact;
+  xSquares: Exact;
+  bins: FineHistogram;
 }
 
 /** 1-based ranks of the order statistics R type 7 needs for p = 1/4, 1/2, 3/4 among n values, plus the extremes. */
@@ -213,7 +252,10 @@ function interpolate(os: Map<number, number>, n: number, numerator: number, den:
  * from the kept histogram, then one ordered, limited read per bin (in as few statements as the
  * database allows).
  */
-async function orderStatistics(scope: Scope, wanted: { sum: QuantitySum; ranks: number[] }[]): Promise<Map<QuantitySum, Map<number, number>>> {
+async function orderStatistics(
+  scope: Scope,
+  wanted: { sum: QuantitySum; ranks: number[] }[],
+): Promise<Map<QuantitySum, Map<number, number>>> {
   type Read = { sum: QuantitySum; bin: number; offset: number; limit: number; ranks: { rank: number; at: number }[] };
   const reads: Read[] = [];
   for (const { sum, ranks } of wanted) {
@@ -241,10 +283,11 @@ async function orderStatistics(scope: Scope, wanted: { sum: QuantitySum; ranks: 
   for (let start = 0; start < reads.length; start += 400) {
     const part = reads.slice(start, start + 400);
     const sql = part
-      .map((r, i) =>
-        `SELECT ${i} AS t, x FROM (SELECT x FROM statistics_values WHERE "practicalId" IN (${practicals}) AND key = ${s.escape(r.sum.key)}` +
-        ` AND species = ${s.escape(r.sum.species)} AND basis = ${s.escape(r.sum.basis)} AND bin = ${Number(r.bin)}` +
-        ` AND "cohortId" IN (${[...r.sum.cohorts].map(Number).join(', ')}) ORDER BY x LIMIT ${Number(r.limit)} OFFSET ${Number(r.offset)}) q${i}`,
+      .map(
+        (r, i) =>
+          `SELECT ${i} AS t, x FROM (SELECT x FROM statistics_values WHERE "practicalId" IN (${practicals}) AND key = ${s.escape(r.sum.key)}` +
+          ` AND species = ${s.escape(r.sum.species)} AND basis = ${s.escape(r.sum.basis)} AND bin = ${Number(r.bin)}` +
+          ` AND "cohortId" IN (${[...r.sum.cohorts].map(Number).join(', ')}) ORDER BY x LIMIT ${Number(r.limit)} OFFSET ${Number(r.offset)}) q${i}`,
       )
       .join(' UNION ALL ');
     const rows = await s.query<{ t: number; x: number }>(sql, { type: QueryTypes.SELECT });
@@ -256,7 +299,8 @@ async function orderStatistics(scope: Scope, wanted: { sum: QuantitySum; ranks: 
     }
     part.forEach((r, i) => {
       const xs = (got.get(i) ?? []).sort((a, b) => a - b);
-      if (xs.length !== r.limit) throw new Error(`kept values of ${r.sum.key} do not match the kept histogram: rebuild the kept statistics`);
+      if (xs.length !== r.limit)
+        throw new Error(`kept values of ${r.sum.key} do not match the kept histogram: rebuild the kept statistics`);
       if (!out.has(r.sum)) out.set(r.sum, new Map());
       for (const { rank, at } of r.ranks) out.get(r.sum)!.set(rank, xs[at - r.offset]);
     });
@@ -272,8 +316,21 @@ export async function quantityStatistics(scope: Scope, groupBy: GroupBy = 'none'
     let s = sums.get(k);
     if (!s) {
       s = {
-        g: r.g, key: String(r.key), species: String(r.species), basis: String(r.basis), cohorts: new Set(),
-        n: 0, students: 0, within: 0, partial: 0, outside: 0, notChecked: 0, checked: 0, xSum: ZERO, xSquares: ZERO, bins: new Map(),
+        g: r.g,
+        key: String(r.key),
+        species: String(r.species),
+        basis: String(r.basis),
+        cohorts: new Set(),
+        n: 0,
+        students: 0,
+        within: 0,
+        partial: 0,
+        outside: 0,
+        notChecked: 0,
+        checked: 0,
+        xSum: ZERO,
+        xSquares: ZERO,
+        bins: new Map(),
       };
       sums.set(k, s);
     }
@@ -293,14 +350,27 @@ export async function quantityStatistics(scope: Scope, groupBy: GroupBy = 'none'
   // In code-unit order of group, quantity, species, basis (the same on every database).
   const ordered = [...sums.entries()].sort((a, b) => (a[0] < b[0] ? -1 : a[0] > b[0] ? 1 : 0)).map(([, s]) => s);
   const shown = ordered.filter((s) => s.students >= MIN_GROUP && s.checked > 0);
-  const order = await orderStatistics(scope, shown.map((sum) => ({ sum, ranks: wantedRanks(sum.checked) })));
+  const order = await orderStatistics(
+    scope,
+    shown.map((sum) => ({ sum, ranks: wantedRanks(sum.checked) })),
+  );
 
   return ordered.map((s) => {
-    const stat: QuantityStat = { group: s.g, key: s.key, species: s.species, basis: s.basis as Basis, n: s.n, students: s.students, suppressed: s.students < MIN_GROUP };
+    const stat: QuantityStat = {
+      group: s.g,
+      key: s.key,
+      species: s.species,
+      basis: s.basis as Basis,
+      n: s.n,
+      students: s.students,
+      suppressed: s.students < MIN_GROUP,
+    };
     if (stat.suppressed) return stat;
     const judged = s.within + s.partial + s.outside;
     stat.verdicts = { within: s.within, partial: s.partial, outside: s.outside, notChecked: s.notChecked };
-    stat.shares = judged ? { within: s.within / judged, partial: s.partial / judged, outside: s.outside / judged } : { within: 0, partial: 0, outside: 0 };
+    stat.shares = judged
+      ? { within: s.within / judged, partial: s.partial / judged, outside: s.outside / judged }
+      : { within: 0, partial: 0, outside: 0 };
     stat.checked = s.checked;
     if (s.checked > 0) {
       const { mean, variance } = meanAndVariance(s.checked, s.xSum, s.xSquares);
@@ -311,9 +381,16 @@ export async function quantityStatistics(scope: Scope, groupBy: GroupBy = 'none'
       stat.sd = 0;
     }
     const os = order.get(s);
-    stat.box = s.checked > 0 && os
-      ? { min: os.get(1)!, q1: interpolate(os, s.checked, 1, 4), median: interpolate(os, s.checked, 1, 2), q3: interpolate(os, s.checked, 3, 4), max: os.get(s.checked)! }
-      : null;
+    stat.box =
+      s.checked > 0 && os
+        ? {
+            min: os.get(1)!,
+            q1: interpolate(os, s.checked, 1, 4),
+            median: interpolate(os, s.checked, 1, 2),
+            q3: interpolate(os, s.checked, 3, 4),
+            max: os.get(s.checked)!,
+          }
+        : null;
     const buckets = new Array<number>(HISTOGRAM_EDGES_PERCENT.length + 1).fill(0);
     for (const [bin, count] of s.bins) buckets[coarseOfFine[bin]] += count;
     stat.histogram = buckets.map((count, b) => ({ bucket: b, label: bucketLabel(b), count }));
@@ -323,7 +400,13 @@ export async function quantityStatistics(scope: Scope, groupBy: GroupBy = 'none'
 
 // ---------------------------------------------------------------------------------------------
 
-export interface SlipStat { code: string; count: number; submissions: number; exampleSubmissionId: number; keys: string[] }
+export interface SlipStat {
+  code: string;
+  count: number;
+  submissions: number;
+  exampleSubmissionId: number;
+  keys: string[];
+}
 
 export async function frequentSlips(scope: Scope, limit = 10): Promise<SlipStat[]> {
   const [findings, codes] = await Promise.all([scoped('statistics_slips', scope, 'none'), scoped('statistics_slip_codes', scope, 'none')]);
@@ -341,7 +424,8 @@ export async function frequentSlips(scope: Scope, limit = 10): Promise<SlipStat[
   for (const r of codes) {
     const e = entry(String(r.code));
     e.submissions += num(r.submissions);
-    if (r.example !== null && r.example !== undefined) e.example = e.example === null ? Number(r.example) : Math.min(e.example, Number(r.example));
+    if (r.example !== null && r.example !== undefined)
+      e.example = e.example === null ? Number(r.example) : Math.min(e.example, Number(r.example));
   }
   const cmp = (a: string, b: string) => (a < b ? -1 : a > b ? 1 : 0);
   return [...byCode.entries()]
@@ -349,7 +433,10 @@ export async function frequentSlips(scope: Scope, limit = 10): Promise<SlipStat[
     .sort((a, b) => b[1].count - a[1].count || cmp(a[0], b[0]))
     .slice(0, limit)
     .map(([code, e]) => ({
-      code, count: e.count, submissions: e.submissions, exampleSubmissionId: e.example ?? 0,
+      code,
+      count: e.count,
+      submissions: e.submissions,
+      exampleSubmissionId: e.example ?? 0,
       keys: [...e.keys.entries()].sort((a, b) => b[1] - a[1] || cmp(a[0], b[0])).map(([k]) => k),
     }));
 }
@@ -384,11 +471,40 @@ const spread = (n: number, sum: Exact, squares: Exact) => {
 
 export async function markerConsistency(scope: Scope, thresholdPoints: number): Promise<MarkerRow[]> {
   const rows = await scoped('statistics_markers', scope, 'none');
-  const by = new Map<number, { submissions: number; markCount: number; markSum: Exact; markSquares: Exact; differenceCount: number; differenceSum: Exact; differenceSquares: Exact; overrides: number; moderations: number; moderationChanges: number }>();
+  const by = new Map<
+    number,
+    {
+      submissions: number;
+      markCount: number;
+      markSum: Exact;
+      markSquares: Exact;
+      differenceCount: number;
+      differenceSum: Exact;
+      differenceSquares: Exact;
+      overrides: number;
+      moderations: number;
+      moderationChanges: number;
+    }
+  >();
   for (const r of rows) {
     const id = Number(r.markerId);
     let m = by.get(id);
-    if (!m) by.set(id, (m = { submissions: 0, markCount: 0, markSum: ZERO, markSquares: ZERO, differenceCount: 0, differenceSum: ZERO, differenceSquares: ZERO, overrides: 0, moderations: 0, moderationChanges: 0 }));
+    if (!m)
+      by.set(
+        id,
+        (m = {
+          submissions: 0,
+          markCount: 0,
+          markSum: ZERO,
+          markSquares: ZERO,
+          differenceCount: 0,
+          differenceSum: ZERO,
+          differenceSquares: ZERO,
+          overrides: 0,
+          moderations: 0,
+          moderationChanges: 0,
+        }),
+      );
     m.submissions += num(r.submissions);
     m.markCount += num(r.markCount);
     m.markSum = add(m.markSum, parse(r.markSum as string));
@@ -408,11 +524,20 @@ export async function markerConsistency(scope: Scope, thresholdPoints: number): 
       const marks = spread(m.markCount, m.markSum, m.markSquares);
       const diffs = spread(m.differenceCount, m.differenceSum, m.differenceSquares);
       return {
-        markerId, submissions: m.submissions,
-        meanMark: marks.mean, sdMark: marks.sd, meanDifference: diffs.mean, sdDifference: diffs.sd,
-        overrides: m.overrides, moderations: m.moderations, moderationChanges: m.moderationChanges,
-        othersMean: null, flagged: false, suppressed: m.submissions < MIN_GROUP,
-        sumMark: toNumber(m.markSum), markCount: m.markCount,
+        markerId,
+        submissions: m.submissions,
+        meanMark: marks.mean,
+        sdMark: marks.sd,
+        meanDifference: diffs.mean,
+        sdDifference: diffs.sd,
+        overrides: m.overrides,
+        moderations: m.moderations,
+        moderationChanges: m.moderationChanges,
+        othersMean: null,
+        flagged: false,
+        suppressed: m.submissions < MIN_GROUP,
+        sumMark: toNumber(m.markSum),
+        markCount: m.markCount,
       };
     });
   const totalSum = [...by.values()].filter((m) => m.submissions > 0).reduce((a, m) => add(a, m.markSum), ZERO);
@@ -421,8 +546,12 @@ export async function markerConsistency(scope: Scope, thresholdPoints: number): 
     const othersCount = totalCount - r.markCount;
     const mine = by.get(r.markerId)!;
     r.othersMean = othersCount > 0 ? toNumber(add(totalSum, negate(mine.markSum))) / othersCount : null;
-    r.flagged = !r.suppressed && othersCount >= MIN_GROUP && r.meanMark !== null && r.othersMean !== null
-      && Math.abs(r.meanMark - r.othersMean) > thresholdPoints;
+    r.flagged =
+      !r.suppressed &&
+      othersCount >= MIN_GROUP &&
+      r.meanMark !== null &&
+      r.othersMean !== null &&
+      Math.abs(r.meanMark - r.othersMean) > thresholdPoints;
     if (r.suppressed) {
       r.meanMark = r.sdMark = r.meanDifference = r.sdDifference = null;
     }
@@ -432,7 +561,13 @@ export async function markerConsistency(scope: Scope, thresholdPoints: number): 
 
 // ---------------------------------------------------------------------------------------------
 
-export interface MarkSummary { group: string; students: number; marked: number; meanMark: number | null; sdMark: number | null }
+export interface MarkSummary {
+  group: string;
+  students: number;
+  marked: number;
+  meanMark: number | null;
+  sdMark: number | null;
+}
 
 /** Mean and population SD of awarded / max (percent) per group, over marked counted submissions. */
 export async function markSummary(scope: Scope, groupBy: GroupBy): Promise<MarkSummary[]> {

@@ -33,7 +33,6 @@ const numOrNull = (v: unknown): number | null => (v === null || v === undefined 
 
 // ---------------------------------------------------------------------------------------------
 
-
 export async function submissionCounts(scope: Scope, groupBy: GroupBy = 'none'): Promise<Counts[]> {
   // Grouped on the derived column g: PostgreSQL refuses GROUP BY on a bare constant ('all').
   const rows = await q<Record<string, unknown>>(
@@ -51,14 +50,17 @@ export async function submissionCounts(scope: Scope, groupBy: GroupBy = 'none'):
     { ...scope },
   );
   return rows.map((r) => ({
-    group: String(r.g), students: num(r.students), submitted: num(r.submitted), onTime: num(r.onTime),
-    late: num(r.late), marked: num(r.marked), released: num(r.released),
+    group: String(r.g),
+    students: num(r.students),
+    submitted: num(r.submitted),
+    onTime: num(r.onTime),
+    late: num(r.late),
+    marked: num(r.marked),
+    released: num(r.released),
   }));
 }
 
 // ---------------------------------------------------------------------------------------------
-
-
 
 /** The check rows of the counted submissions, relative deviation x in percent (null when not checked). */
 const checkRows = (groupBy: GroupBy) => `
@@ -77,7 +79,9 @@ const edgeReplacements = Object.fromEntries(HISTOGRAM_EDGES_PERCENT.map((e, i) =
  * Bucket b (= number of edges at or below x) then holds ge<b−1> − ge<b>, with ge<−1> = checked
  * and ge<last+1> = 0 — the same counts, because the edges increase.
  */
-const cumulativeColumns = HISTOGRAM_EDGES_PERCENT.map((_, i) => `SUM(CASE WHEN x >= :e${i} THEN 1 ELSE 0 END) AS ge${i}`).join(',\n         ');
+const cumulativeColumns = HISTOGRAM_EDGES_PERCENT.map((_, i) => `SUM(CASE WHEN x >= :e${i} THEN 1 ELSE 0 END) AS ge${i}`).join(
+  ',\n         ',
+);
 
 const quantityKey = (g: string, k: string, sp: string, b: string) => `${g}\u0000${k}\u0000${sp}\u0000${b}`;
 
@@ -129,14 +133,23 @@ export async function quantityStatistics(scope: Scope, groupBy: GroupBy = 'none'
     const n = num(r.n);
     const students = num(r.students);
     const stat: QuantityStat = {
-      group: String(r.g), key: String(r.qkey), species: String(r.species), basis: String(r.basis) as Basis,
-      n, students, suppressed: students < MIN_GROUP,
+      group: String(r.g),
+      key: String(r.qkey),
+      species: String(r.species),
+      basis: String(r.basis) as Basis,
+      n,
+      students,
+      suppressed: students < MIN_GROUP,
     };
     if (stat.suppressed) return stat;
-    const within = num(r.within), partial = num(r.partial), outside = num(r.outside);
+    const within = num(r.within),
+      partial = num(r.partial),
+      outside = num(r.outside);
     const judged = within + partial + outside;
     stat.verdicts = { within, partial, outside, notChecked: num(r.notChecked) };
-    stat.shares = judged ? { within: within / judged, partial: partial / judged, outside: outside / judged } : { within: 0, partial: 0, outside: 0 };
+    stat.shares = judged
+      ? { within: within / judged, partial: partial / judged, outside: outside / judged }
+      : { within: 0, partial: 0, outside: 0 };
     stat.checked = num(r.checked);
     stat.mean = numOrNull(r.mean);
     // Population SD √(mean(x²) − mean(x)²), 0 when that is not positive (rounding) or nothing was checked.
@@ -144,11 +157,22 @@ export async function quantityStatistics(scope: Scope, groupBy: GroupBy = 'none'
     const variance = stat.mean === null || meanSquare === null ? null : meanSquare - stat.mean * stat.mean;
     stat.sd = variance !== null && variance > 0 ? Math.sqrt(variance) : 0;
     const os = orderStats.get(k);
-    stat.box = stat.checked > 0 && os
-      ? { min: Number(r.min), q1: interpolate(os, stat.checked, 1, 4), median: interpolate(os, stat.checked, 1, 2), q3: interpolate(os, stat.checked, 3, 4), max: Number(r.max) }
-      : null;
+    stat.box =
+      stat.checked > 0 && os
+        ? {
+            min: Number(r.min),
+            q1: interpolate(os, stat.checked, 1, 4),
+            median: interpolate(os, stat.checked, 1, 2),
+            q3: interpolate(os, stat.checked, 3, 4),
+            max: Number(r.max),
+          }
+        : null;
     const ge = (i: number) => (i < 0 ? stat.checked! : i >= HISTOGRAM_EDGES_PERCENT.length ? 0 : num(r[`ge${i}`]));
-    stat.histogram = Array.from({ length: HISTOGRAM_EDGES_PERCENT.length + 1 }, (_, b) => ({ bucket: b, label: bucketLabel(b), count: ge(b - 1) - ge(b) }));
+    stat.histogram = Array.from({ length: HISTOGRAM_EDGES_PERCENT.length + 1 }, (_, b) => ({
+      bucket: b,
+      label: bucketLabel(b),
+      count: ge(b - 1) - ge(b),
+    }));
     return stat;
   });
 }
@@ -164,7 +188,6 @@ function interpolate(os: Map<number, number>, n: number, num: number, den: numbe
 }
 
 // ---------------------------------------------------------------------------------------------
-
 
 export async function frequentSlips(scope: Scope, limit = 10): Promise<SlipStat[]> {
   const [rows, keys] = await Promise.all([
@@ -184,16 +207,19 @@ export async function frequentSlips(scope: Scope, limit = 10): Promise<SlipStat[
     ),
   ]);
   return rows.map((r) => ({
-    code: String(r.code), count: num(r.n), submissions: num(r.submissions), exampleSubmissionId: num(r.example),
+    code: String(r.code),
+    count: num(r.n),
+    submissions: num(r.submissions),
+    exampleSubmissionId: num(r.example),
     keys: keys.filter((k) => k.code === r.code).map((k) => String(k.qkey)),
   }));
 }
 
 // ---------------------------------------------------------------------------------------------
 
-
 export async function markerConsistency(scope: Scope, thresholdPoints: number): Promise<MarkerRow[]> {
-  const sdOf = (e: string) => `CASE WHEN AVG(${e} * ${e}) - AVG(${e}) * AVG(${e}) > 0 THEN SQRT(AVG(${e} * ${e}) - AVG(${e}) * AVG(${e})) ELSE 0 END`;
+  const sdOf = (e: string) =>
+    `CASE WHEN AVG(${e} * ${e}) - AVG(${e}) * AVG(${e}) > 0 THEN SQRT(AVG(${e} * ${e}) - AVG(${e}) * AVG(${e})) ELSE 0 END`;
   const [marks, overrides, moderations] = await Promise.all([
     q<Record<string, unknown>>(
       `SELECT "markerId", COUNT(*) AS submissions, COUNT(f) AS "markCount", SUM(f) AS "sumMark", AVG(f) AS "meanMark", ${sdOf('f')} AS "sdMark",
@@ -227,21 +253,32 @@ export async function markerConsistency(scope: Scope, thresholdPoints: number): 
   const ov = new Map(overrides.map((r) => [num(r.markerId), num(r.n)]));
   const mo = new Map(moderations.map((r) => [num(r.markerId), { n: num(r.n), changed: num(r.changed) }]));
   const rows: MarkerRow[] = marks.map((r) => ({
-    markerId: num(r.markerId), submissions: num(r.submissions),
-    meanMark: numOrNull(r.meanMark), sdMark: numOrNull(r.sdMark),
-    meanDifference: numOrNull(r.meanDifference), sdDifference: numOrNull(r.sdDifference),
+    markerId: num(r.markerId),
+    submissions: num(r.submissions),
+    meanMark: numOrNull(r.meanMark),
+    sdMark: numOrNull(r.sdMark),
+    meanDifference: numOrNull(r.meanDifference),
+    sdDifference: numOrNull(r.sdDifference),
     overrides: ov.get(num(r.markerId)) ?? 0,
-    moderations: mo.get(num(r.markerId))?.n ?? 0, moderationChanges: mo.get(num(r.markerId))?.changed ?? 0,
-    othersMean: null, flagged: false, suppressed: num(r.submissions) < MIN_GROUP,
-    sumMark: num(r.sumMark), markCount: num(r.markCount),
+    moderations: mo.get(num(r.markerId))?.n ?? 0,
+    moderationChanges: mo.get(num(r.markerId))?.changed ?? 0,
+    othersMean: null,
+    flagged: false,
+    suppressed: num(r.submissions) < MIN_GROUP,
+    sumMark: num(r.sumMark),
+    markCount: num(r.markCount),
   }));
   const totalSum = rows.reduce((a, r) => a + r.sumMark, 0);
   const totalCount = rows.reduce((a, r) => a + r.markCount, 0);
   for (const r of rows) {
     const othersCount = totalCount - r.markCount;
     r.othersMean = othersCount > 0 ? (totalSum - r.sumMark) / othersCount : null;
-    r.flagged = !r.suppressed && othersCount >= MIN_GROUP && r.meanMark !== null && r.othersMean !== null
-      && Math.abs(r.meanMark - r.othersMean) > thresholdPoints;
+    r.flagged =
+      !r.suppressed &&
+      othersCount >= MIN_GROUP &&
+      r.meanMark !== null &&
+      r.othersMean !== null &&
+      Math.abs(r.meanMark - r.othersMean) > thresholdPoints;
     if (r.suppressed) {
       r.meanMark = r.sdMark = r.meanDifference = r.sdDifference = null;
     }
@@ -250,7 +287,6 @@ export async function markerConsistency(scope: Scope, thresholdPoints: number): 
 }
 
 // ---------------------------------------------------------------------------------------------
-
 
 /** Mean and population SD of awarded / max (percent) per group, over marked counted submissions. */
 export async function markSummary(scope: Scope, groupBy: GroupBy): Promise<MarkSummary[]> {
@@ -266,5 +302,11 @@ export async function markSummary(scope: Scope, groupBy: GroupBy): Promise<MarkS
      ) m GROUP BY g`,
     scope,
   );
-  return rows.map((r) => ({ group: String(r.g), students: num(r.students), marked: num(r.marked), meanMark: numOrNull(r.mean), sdMark: numOrNull(r.sd) }));
+  return rows.map((r) => ({
+    group: String(r.g),
+    students: num(r.students),
+    marked: num(r.marked),
+    meanMark: numOrNull(r.mean),
+    sdMark: numOrNull(r.sd),
+  }));
 }

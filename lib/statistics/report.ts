@@ -4,7 +4,16 @@ import { QUANTITIES, SLIPS } from '@/lib/grading';
 import { models } from '@/models';
 import { validate } from '@/lib/http';
 import { DEFAULT_MARKER_THRESHOLD, HISTOGRAM_EDGES_PERCENT, MIN_GROUP } from './definitions';
-import { frequentSlips, markerConsistency, quantityStatistics, submissionCounts, type Counts, type MarkerRow, type QuantityStat, type SlipStat } from './queries';
+import {
+  frequentSlips,
+  markerConsistency,
+  quantityStatistics,
+  submissionCounts,
+  type Counts,
+  type MarkerRow,
+  type QuantityStat,
+  type SlipStat,
+} from './queries';
 import { cachedStatistics } from './cache';
 import { markerLabels, type StatisticsScope } from './scope';
 
@@ -19,7 +28,9 @@ async function exampleLabels(ids: number[]): Promise<Map<number, string>> {
   if (!ids.length) return out;
   const { Submission, User } = models();
   const subs = await Submission.findAll({ where: { id: [...new Set(ids)] }, attributes: ['id', 'attempt', 'studentId'] });
-  const users = subs.length ? await User.findAll({ where: { id: [...new Set(subs.map((x) => x.studentId))] }, attributes: ['id', 'name'] }) : [];
+  const users = subs.length
+    ? await User.findAll({ where: { id: [...new Set(subs.map((x) => x.studentId))] }, attributes: ['id', 'name'] })
+    : [];
   for (const sub of subs) out.set(sub.id, `${users.find((u) => u.id === sub.studentId)?.name ?? 'A student'}, attempt ${sub.attempt}`);
   return out;
 }
@@ -29,8 +40,12 @@ export function slipTitle(code: string): string {
 }
 
 const thresholdQuery = z.object({
-  threshold: z.string().regex(/^\d{1,3}(\.\d{1,2})?$/, 'threshold is percentage points, e.g. 10').transform(Number)
-    .refine((v) => v >= 0 && v <= 100, 'threshold must be between 0 and 100.').optional(),
+  threshold: z
+    .string()
+    .regex(/^\d{1,3}(\.\d{1,2})?$/, 'threshold is percentage points, e.g. 10')
+    .transform(Number)
+    .refine((v) => v >= 0 && v <= 100, 'threshold must be between 0 and 100.')
+    .optional(),
 });
 
 export function thresholdFrom(request: Request): number {
@@ -59,16 +74,26 @@ export interface PracticalReport {
 
 export async function practicalReport(s: StatisticsScope, threshold: number): Promise<PracticalReport> {
   // Sequential: SQLite has one connection, so running them together gains nothing.
-  const [countRows, quantities, slips, markers] = await cachedStatistics('report', s.scope, { threshold }, async () => [
-    await submissionCounts(s.scope),
-    await quantityStatistics(s.scope),
-    await frequentSlips(s.scope),
-    await markerConsistency(s.scope, threshold),
-  ] as const);
+  const [countRows, quantities, slips, markers] = await cachedStatistics(
+    'report',
+    s.scope,
+    { threshold },
+    async () =>
+      [
+        await submissionCounts(s.scope),
+        await quantityStatistics(s.scope),
+        await frequentSlips(s.scope),
+        await markerConsistency(s.scope, threshold),
+      ] as const,
+  );
   const counts = countRows[0] ?? { group: 'all', students: 0, submitted: 0, onTime: 0, late: 0, marked: 0, released: 0 };
   const suppressed = counts.students < MIN_GROUP;
   const [labels, examples] = await Promise.all([
-    markerLabels(s.actor, s.manages, markers.map((m) => m.markerId)),
+    markerLabels(
+      s.actor,
+      s.manages,
+      markers.map((m) => m.markerId),
+    ),
     exampleLabels(slips.map((sl) => sl.exampleSubmissionId)),
   ]);
   const { group: _g, ...plainCounts } = counts;
@@ -84,7 +109,17 @@ export async function practicalReport(s: StatisticsScope, threshold: number): Pr
     suppressed,
     counts: plainCounts,
     // A small group shows counts only, whatever size each quantity has.
-    quantities: suppressed ? quantities.map((q) => ({ group: q.group, key: q.key, species: q.species, basis: q.basis, n: q.n, students: q.students, suppressed: true })) : quantities,
+    quantities: suppressed
+      ? quantities.map((q) => ({
+          group: q.group,
+          key: q.key,
+          species: q.species,
+          basis: q.basis,
+          n: q.n,
+          students: q.students,
+          suppressed: true,
+        }))
+      : quantities,
     histogramEdgesPercent: HISTOGRAM_EDGES_PERCENT,
     slips: slips.map((sl) => ({
       ...sl,
@@ -97,10 +132,19 @@ export async function practicalReport(s: StatisticsScope, threshold: number): Pr
       threshold,
       namesShown: s.manages,
       rows: markers.map((m) => ({
-        label: labels.get(m.markerId)!, own: m.markerId === s.actor.id, submissions: m.submissions, suppressed: m.suppressed,
-        meanMark: m.meanMark, sdMark: m.sdMark, meanDifference: m.meanDifference, sdDifference: m.sdDifference,
-        overrides: m.overrides, moderations: m.moderations, moderationChanges: m.moderationChanges,
-        othersMean: m.suppressed ? null : m.othersMean, flagged: m.flagged,
+        label: labels.get(m.markerId)!,
+        own: m.markerId === s.actor.id,
+        submissions: m.submissions,
+        suppressed: m.suppressed,
+        meanMark: m.meanMark,
+        sdMark: m.sdMark,
+        meanDifference: m.meanDifference,
+        sdDifference: m.sdDifference,
+        overrides: m.overrides,
+        moderations: m.moderations,
+        moderationChanges: m.moderationChanges,
+        othersMean: m.suppressed ? null : m.othersMean,
+        flagged: m.flagged,
       })),
     },
   };

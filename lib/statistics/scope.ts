@@ -43,7 +43,13 @@ export async function cohortsOfPractical(practicalId: number): Promise<Cohort[]>
     { replacements: { p: practicalId }, type: QueryTypes.SELECT },
   );
   if (!rows.length) return [];
-  return Cohort.findAll({ where: { id: rows.map((r) => Number(r.id)) }, order: [['term', 'ASC'], ['name', 'ASC']] });
+  return Cohort.findAll({
+    where: { id: rows.map((r) => Number(r.id)) },
+    order: [
+      ['term', 'ASC'],
+      ['name', 'ASC'],
+    ],
+  });
 }
 
 /** Markers' names are shown to course managers; a TA sees only their own name, others as "Marker n". */
@@ -72,7 +78,13 @@ export async function cohortsOfPracticals(practicalIds: number[]): Promise<Map<n
     { replacements: { ids: practicalIds }, type: QueryTypes.SELECT },
   );
   if (!rows.length) return out;
-  const cohorts = await models().Cohort.findAll({ where: { id: [...new Set(rows.map((r) => Number(r.cohortId)))] }, order: [['term', 'ASC'], ['name', 'ASC']] });
+  const cohorts = await models().Cohort.findAll({
+    where: { id: [...new Set(rows.map((r) => Number(r.cohortId)))] },
+    order: [
+      ['term', 'ASC'],
+      ['name', 'ASC'],
+    ],
+  });
   for (const r of rows) {
     const c = cohorts.find((x) => x.id === Number(r.cohortId));
     const list = out.get(Number(r.practicalId));

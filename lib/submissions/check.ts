@@ -49,7 +49,14 @@ import { loadSpectrum } from './load-spectrum';
 import { spectraOfSubmission } from './spectra';
 
 export { loadSpectrum } from './load-spectrum';
-import { compareWithAnalysis, FROM_SPECTRUM_LEGEND, matchByBand, type BandMatch, type FromSpectrumRow, type StoredAnalysis } from './spectrum-analysis';
+import {
+  compareWithAnalysis,
+  FROM_SPECTRUM_LEGEND,
+  matchByBand,
+  type BandMatch,
+  type FromSpectrumRow,
+  type StoredAnalysis,
+} from './spectrum-analysis';
 import { log } from '@/lib/log';
 
 type LineComparisonSummary = LinePeakComparison['summary'];
@@ -120,7 +127,14 @@ async function flagDuplicates(ids: number[]): Promise<void> {
 export type TypedValue = { key: string; species: string; valueText: string; unit: string; uncertaintyText: string | null };
 /** A line of the student's list, as stored (line_assignments) or as in a draft. */
 export type TypedLine = { species: string; branch: 'P' | 'R' | null; J: number | null; wavenumber: number };
-type QuantityDefinitionLike = { id: number; key: string; species: string; referenceKind: string; referenceValueSI: number | null; uncertaintyRequired: boolean };
+type QuantityDefinitionLike = {
+  id: number;
+  key: string;
+  species: string;
+  referenceKind: string;
+  referenceValueSI: number | null;
+  uncertaintyRequired: boolean;
+};
 
 /**
  * The grading engine over one submission's values and lines: checkSubmission once per
@@ -165,7 +179,9 @@ export function runChecks(
     }
     const band = valueOf('bandCentre', sp);
     const overtone = valueOf('overtone', sp);
-    const spLines = lines.filter((l) => l.species === sp && l.branch && l.J !== null).map((l) => ({ branch: l.branch as 'P' | 'R', J: l.J as number, wavenumber: l.wavenumber }));
+    const spLines = lines
+      .filter((l) => l.species === sp && l.branch && l.J !== null)
+      .map((l) => ({ branch: l.branch as 'P' | 'R', J: l.J as number, wavenumber: l.wavenumber }));
     const partnerName = speciesList.find((o) => o !== sp);
     const partnerBand = partnerName ? valueOf('bandCentre', partnerName) : undefined;
     results[sp] = checkSubmission({
@@ -174,7 +190,9 @@ export function runChecks(
         ...(band && band.valueText.trim() ? { bandCentre: asNum(band) } : {}),
         ...(overtone && overtone.valueText.trim() ? { overtone: asNum(overtone) } : {}),
         ...(spLines.length ? { lines: spLines } : {}),
-        ...(partnerName && partnerBand && partnerBand.valueText.trim() ? { partner: { species: partnerName, bandCentre: asNum(partnerBand) } } : {}),
+        ...(partnerName && partnerBand && partnerBand.valueText.trim()
+          ? { partner: { species: partnerName, bandCentre: asNum(partnerBand) } }
+          : {}),
       },
       reported,
       reference,
@@ -189,9 +207,15 @@ export function runChecks(
 /** The bands that apply to a cohort, per quantity definition and basis. */
 export async function bandsForCohort(qdefIds: number[], cohortId: number, transaction?: Transaction) {
   const bandRows = qdefIds.length
-    ? await models().ToleranceBand.findAll({ where: { quantityDefinitionId: qdefIds, [Op.or]: [{ cohortId: null }, { cohortId }] }, transaction })
+    ? await models().ToleranceBand.findAll({
+        where: { quantityDefinitionId: qdefIds, [Op.or]: [{ cohortId: null }, { cohortId }] },
+        transaction,
+      })
     : [];
-  return pickBands(bandRows.map((r) => r.get({ plain: true }) as ResolvedBand), cohortId);
+  return pickBands(
+    bandRows.map((r) => r.get({ plain: true }) as ResolvedBand),
+    cohortId,
+  );
 }
 
 async function run(submissionId: number, transaction: Transaction): Promise<CheckSummary> {
@@ -200,8 +224,19 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
   if (!submission) throw new Error(`Submission ${submissionId} does not exist`);
   const practical = await Practical.findByPk(submission.practicalId, { transaction });
   if (!practical) throw new Error(`Practical ${submission.practicalId} does not exist`);
-  const qdefs = await QuantityDefinition.findAll({ where: { practicalId: practical.id }, order: [['position', 'ASC'], ['id', 'ASC']], transaction });
-  const bands = await bandsForCohort(qdefs.map((q) => q.id), submission.cohortId, transaction);
+  const qdefs = await QuantityDefinition.findAll({
+    where: { practicalId: practical.id },
+    order: [
+      ['position', 'ASC'],
+      ['id', 'ASC'],
+    ],
+    transaction,
+  });
+  const bands = await bandsForCohort(
+    qdefs.map((q) => q.id),
+    submission.cohortId,
+    transaction,
+  );
   const values = await SubmittedValue.findAll({ where: { submissionId }, transaction });
   const lines = await LineAssignment.findAll({ where: { submissionId }, order: [['id', 'ASC']], transaction });
   const speciesList: string[] = Array.isArray(practical.species) ? practical.species : [];
@@ -216,8 +251,19 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
   const spectraRows = await spectraOfSubmission(submission, practical, { transaction });
   const analyses = spectraRows.map((r) => r.analysis).filter((a): a is StoredAnalysis => a !== null);
   const spectra: SpectraCheckSummary = {
-    samples: spectraRows.map((r) => ({ key: r.sample.key, label: r.sample.label, uploadId: r.upload?.id ?? null, originalName: r.upload?.originalName ?? null, analysis: r.analysis })),
-    perBand: analyses.length ? matchByBand(lines.map((l) => ({ species: l.species, branch: l.branch, J: l.J, wavenumber: l.wavenumber })), analyses) : [],
+    samples: spectraRows.map((r) => ({
+      key: r.sample.key,
+      label: r.sample.label,
+      uploadId: r.upload?.id ?? null,
+      originalName: r.upload?.originalName ?? null,
+      analysis: r.analysis,
+    })),
+    perBand: analyses.length
+      ? matchByBand(
+          lines.map((l) => ({ species: l.species, branch: l.branch, J: l.J, wavenumber: l.wavenumber })),
+          analyses,
+        )
+      : [],
   };
   let fromSpectrum: CheckSummary['fromSpectrum'] = null;
   if (practical.spectrumAnalysis && analyses.length) {
@@ -226,7 +272,14 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
       .map((v) => {
         const q = qdefs.find((d) => d.key === v.key && d.species === v.species);
         const band = q ? bands.get(q.id)?.accuracy : undefined;
-        return { key: v.key, species: v.species, valueText: v.valueText, unit: v.unit, uncertaintyText: v.uncertaintyText, accuracy: band ? toleranceFor(band) : undefined };
+        return {
+          key: v.key,
+          species: v.species,
+          valueText: v.valueText,
+          unit: v.unit,
+          uncertaintyText: v.uncertaintyText,
+          accuracy: band ? toleranceFor(band) : undefined,
+        };
       });
     fromSpectrum = { legend: FROM_SPECTRUM_LEGEND, rows: compareWithAnalysis(reportedForComparison, analyses) };
   }
@@ -246,7 +299,10 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
     dupLines = same.length > 0;
   }
   if (spectrumUpload) {
-    const same = await Upload.findAll({ where: { sha256: spectrumUpload.sha256, kind: 'spectrum', id: { [Op.ne]: spectrumUpload.id } }, transaction });
+    const same = await Upload.findAll({
+      where: { sha256: spectrumUpload.sha256, kind: 'spectrum', id: { [Op.ne]: spectrumUpload.id } },
+      transaction,
+    });
     const subIds = same.map((u) => u.submissionId).filter((x): x is number => x !== null);
     if (subIds.length) {
       const subs = await Submission.findAll({
@@ -276,9 +332,16 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
       const codes = q.diagnoses.map((d) => d.code);
       if (q.verdict === 'outside') anyOutside = true;
       checkRows.push({
-        submissionId, key: q.key, species: sp, basis: q.basis,
-        reportedSI: finite(q.reportedSI), expectedSI: finite(q.expectedSI), deviation: finite(q.deviation), relativeDeviation: finite(q.relativeDeviation),
-        verdict: q.verdict, slipCodes: codes.join(',').slice(0, 400),
+        submissionId,
+        key: q.key,
+        species: sp,
+        basis: q.basis,
+        reportedSI: finite(q.reportedSI),
+        expectedSI: finite(q.expectedSI),
+        deviation: finite(q.deviation),
+        relativeDeviation: finite(q.relativeDeviation),
+        verdict: q.verdict,
+        slipCodes: codes.join(',').slice(0, 400),
       });
       for (const code of codes) {
         if (!(code in SLIPS) || seen.has(`${q.key}|${code}`)) continue;
@@ -303,7 +366,12 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
       proposed = checks.reduce((s, c) => s + marksFor(c.verdict, q.marks) * (BASIS_SHARE[c.basis] / shareTotal), 0);
       proposed = Math.round(proposed * 100) / 100;
     }
-    items.push({ itemKey: `${q.key}:${q.species}`, label: `${QUANTITIES[q.key].label}, ${speciesDisplay(q.species)}`, maxMarks: q.marks, proposed });
+    items.push({
+      itemKey: `${q.key}:${q.species}`,
+      label: `${QUANTITIES[q.key].label}, ${speciesDisplay(q.species)}`,
+      maxMarks: q.marks,
+      proposed,
+    });
   }
   for (const r of Array.isArray(practical.rubric) ? practical.rubric : []) {
     items.push({ itemKey: `rubric:${r.key}`, label: r.title, maxMarks: r.marks, proposed: null });
@@ -319,7 +387,9 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
     else await Mark.create({ submissionId, ...item, awarded: null, comment: null, markerId: null }, { transaction });
   }
   const quantityItems = items.filter((i) => !i.itemKey.startsWith('rubric:'));
-  const proposedTotal = quantityItems.some((i) => i.proposed !== null) ? Math.round(quantityItems.reduce((s, i) => s + (i.proposed ?? 0), 0) * 100) / 100 : null;
+  const proposedTotal = quantityItems.some((i) => i.proposed !== null)
+    ? Math.round(quantityItems.reduce((s, i) => s + (i.proposed ?? 0), 0) * 100) / 100
+    : null;
   const maxTotal = items.reduce((s, i) => s + i.maxMarks, 0);
 
   // What the marking queue shows, kept on the row so the queue never reads the summary above.
@@ -381,19 +451,37 @@ export function compareWithSpectrum(
   upload: { id: number; storedName: string; originalName: string },
   lines: { species: string; branch: 'P' | 'R' | null; J: number | null; wavenumber: number }[],
 ): SpectrumCheckSummary {
-  const empty = { uploadId: upload.id, reported: lines.length, matched: 0, unmatched: 0, strongPeaks: 0, missing: 0, tolerance: 0, unmatchedLines: [], missingPeaks: [] };
+  const empty = {
+    uploadId: upload.id,
+    reported: lines.length,
+    matched: 0,
+    unmatched: 0,
+    strongPeaks: 0,
+    missing: 0,
+    tolerance: 0,
+    unmatchedLines: [],
+    missingPeaks: [],
+  };
   const loaded = loadSpectrum(upload);
   if (!loaded.ok) return { ...empty, ok: false, message: loaded.message };
   const peaks = pickPeaks(loaded.spectrum);
-  const cmp = compareLinesToPeaks(lines.map((l) => ({ species: l.species, wavenumber: l.wavenumber, branch: l.branch ?? undefined, J: l.J ?? undefined })), peaks);
+  const cmp = compareLinesToPeaks(
+    lines.map((l) => ({ species: l.species, wavenumber: l.wavenumber, branch: l.branch ?? undefined, J: l.J ?? undefined })),
+    peaks,
+  );
   return {
     uploadId: upload.id,
     ok: true,
     ...cmp.summary,
     unmatchedLines: cmp.lines
       .filter((c) => !c.matched)
-      .map((c) => ({ species: c.line.species, branch: c.line.branch ?? null, J: c.line.J ?? null, wavenumber: c.line.wavenumber, nearest: c.nearest ? c.nearest.wavenumber : null })),
+      .map((c) => ({
+        species: c.line.species,
+        branch: c.line.branch ?? null,
+        J: c.line.J ?? null,
+        wavenumber: c.line.wavenumber,
+        nearest: c.nearest ? c.nearest.wavenumber : null,
+      })),
     missingPeaks: cmp.missing.map((p) => Math.round(p.wavenumber * 1000) / 1000).slice(0, 100),
   };
 }
-

@@ -22,8 +22,12 @@ export function describeFit(fit: { model?: unknown; rms?: unknown; lineCount?: u
   const why: string[] = [];
   if (choice) {
     why.push(REASON[choice.reason] ?? choice.reason);
-    if (choice.fTest && Number.isFinite(choice.fTest.p)) why.push(`F-test p ${choice.fTest.p < 1e-4 ? '< 0.0001' : `= ${formatNumber(choice.fTest.p, 2)}`}`);
-    if (choice.alternative) why.push(`${choice.alternative.model === 'cubic' ? 'with' : 'without'} the term: rms ${formatNumber(choice.alternative.rms, 2)} cm⁻¹`);
+    if (choice.fTest && Number.isFinite(choice.fTest.p))
+      why.push(`F-test p ${choice.fTest.p < 1e-4 ? '< 0.0001' : `= ${formatNumber(choice.fTest.p, 2)}`}`);
+    if (choice.alternative)
+      why.push(
+        `${choice.alternative.model === 'cubic' ? 'with' : 'without'} the term: rms ${formatNumber(choice.alternative.rms, 2)} cm⁻¹`,
+      );
   }
   return `Least-squares fit of ${lines} ${model}${why.length ? ` (${why.join('; ')})` : ''}${rms ? `: ${rms}` : ''}.`;
 }

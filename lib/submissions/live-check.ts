@@ -9,7 +9,11 @@ import { parseTypedNumber } from '@/lib/grading/uncertainty';
 
 export type LiveIssue = { field: 'value' | 'unit' | 'uncertainty'; message: string };
 
-export function liveCheck(input: { value: string; unit: string; uncertainty: string }, dimension: Dimension, uncertaintyRequired: boolean): LiveIssue[] {
+export function liveCheck(
+  input: { value: string; unit: string; uncertainty: string },
+  dimension: Dimension,
+  uncertaintyRequired: boolean,
+): LiveIssue[] {
   const value = input.value.trim();
   const unit = input.unit.trim();
   const uncertainty = input.uncertainty.trim();
@@ -26,7 +30,11 @@ export function liveCheck(input: { value: string; unit: string; uncertainty: str
   const inValue = typed && typed.ok && typed.uncertainty !== undefined;
   if (uncertainty) {
     const u = Number(uncertainty.replace(/^±\s*/, '').replace(',', '.'));
-    if (!Number.isFinite(u) || u < 0) issues.push({ field: 'uncertainty', message: `"${uncertainty}" is not an uncertainty: type a positive number in the same unit as the value, e.g. 0.5.` });
+    if (!Number.isFinite(u) || u < 0)
+      issues.push({
+        field: 'uncertainty',
+        message: `"${uncertainty}" is not an uncertainty: type a positive number in the same unit as the value, e.g. 0.5.`,
+      });
   } else if (uncertaintyRequired && value && !inValue) {
     issues.push({ field: 'uncertainty', message: 'An uncertainty is required for this quantity (in the same unit as the value).' });
   }

@@ -29,16 +29,33 @@ export interface PrecheckView extends StudentChecksView {
   late: { days: number; penalty: number; accepted: boolean };
 }
 
-export async function precheckDraft(actor: Actor, practical: Practical, cohortId: number, draft: Draft, now = new Date()): Promise<PrecheckView> {
+export async function precheckDraft(
+  actor: Actor,
+  practical: Practical,
+  cohortId: number,
+  draft: Draft,
+  now = new Date(),
+): Promise<PrecheckView> {
   const { QuantityDefinition, PracticalCohort, Upload } = models();
   await assertOwnUploads(draft, actor.id);
   const [qdefs, pc, attempts, uploads] = await Promise.all([
-    QuantityDefinition.findAll({ where: { practicalId: practical.id }, order: [['position', 'ASC'], ['id', 'ASC']] }),
+    QuantityDefinition.findAll({
+      where: { practicalId: practical.id },
+      order: [
+        ['position', 'ASC'],
+        ['id', 'ASC'],
+      ],
+    }),
     PracticalCohort.findOne({ where: { practicalId: practical.id, cohortId } }),
     attemptsUsed(practical.id, actor.id),
-    Upload.findAll({ where: { id: [draft.spectrumUploadId, draft.reportUploadId].filter((x): x is number => x !== null), ownerId: actor.id } }),
+    Upload.findAll({
+      where: { id: [draft.spectrumUploadId, draft.reportUploadId].filter((x): x is number => x !== null), ownerId: actor.id },
+    }),
   ]);
-  const bands = await bandsForCohort(qdefs.map((q) => q.id), cohortId);
+  const bands = await bandsForCohort(
+    qdefs.map((q) => q.id),
+    cohortId,
+  );
   const values = draftValues(draft, practical.species);
   const lines = draftLines(draft, practical.species);
   const results = runChecks(practical, qdefs, bands, values, lines);

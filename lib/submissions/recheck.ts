@@ -19,7 +19,9 @@ export async function recheckPractical(practicalId: number): Promise<{ rechecked
  * Marks a TA awarded and their comments are kept; proposed marks follow the new verdicts.
  * `onProgress` is called after each submission (for the command's output).
  */
-export async function recheckAll(onProgress?: (done: number, total: number) => void): Promise<{ rechecked: number; failed: { id: number; message: string }[] }> {
+export async function recheckAll(
+  onProgress?: (done: number, total: number) => void,
+): Promise<{ rechecked: number; failed: { id: number; message: string }[] }> {
   const { Submission } = models();
   const rows = await Submission.findAll({ where: { attempt: { [Op.gt]: 0 } }, attributes: ['id'], order: [['id', 'ASC']] });
   const failed: { id: number; message: string }[] = [];

@@ -42,7 +42,11 @@ export function latePenaltyFor(practical: Pick<Practical, 'lateRule' | 'latePena
 }
 
 export async function attemptsUsed(practicalId: number, studentId: number, transaction?: Transaction) {
-  const rows = await models().Submission.findAll({ where: { practicalId, studentId }, attributes: ['attempt', 'extraAttempts'], transaction });
+  const rows = await models().Submission.findAll({
+    where: { practicalId, studentId },
+    attributes: ['attempt', 'extraAttempts'],
+    transaction,
+  });
   const used = rows.filter((r) => r.attempt > 0).length;
   const lastAttempt = rows.reduce((m, r) => Math.max(m, r.attempt), 0);
   const extra = rows.reduce((m, r) => Math.max(m, r.extraAttempts), 0);
@@ -66,7 +70,8 @@ function draftUploads(draft: Draft): { field: string; kind: 'spectrum' | 'report
 export async function assertOwnUploads(draft: Draft, studentId: number, transaction?: Transaction) {
   for (const { field, kind, id } of draftUploads(draft)) {
     const up = await models().Upload.findByPk(id, { transaction });
-    if (!up || up.ownerId !== studentId || up.kind !== kind) throw new HttpError(400, `The ${kind} file named in the draft is not one of your uploads.`, { [field]: ['Upload the file again.'] });
+    if (!up || up.ownerId !== studentId || up.kind !== kind)
+      throw new HttpError(400, `The ${kind} file named in the draft is not one of your uploads.`, { [field]: ['Upload the file again.'] });
   }
 }
 
@@ -87,7 +92,12 @@ export type DraftSaved = { id: number; version: number; savedAt: string };
 /** POST /api/submissions/[id]/submit's answer: the attempt's result and the draft's new version. */
 export type SubmitAnswer = { result: StudentAttemptView; draftVersion: number };
 
-export async function saveDraft(actor: Actor, practical: Pick<Practical, 'id' | 'species'>, cohortId: number, draftIn: Draft): Promise<{ id: number; version: number; updatedAt: Date }> {
+export async function saveDraft(
+  actor: Actor,
+  practical: Pick<Practical, 'id' | 'species'>,
+  cohortId: number,
+  draftIn: Draft,
+): Promise<{ id: number; version: number; updatedAt: Date }> {
   const draft = trimDraft(draftIn, practical);
   await assertOwnUploads(draft, actor.id);
   const update = async () => {
@@ -103,9 +113,24 @@ export async function saveDraft(actor: Actor, practical: Pick<Practical, 'id' | 
   if (updated) return updated;
   try {
     const row = await models().Submission.create({
-      practicalId: practical.id, cohortId, studentId: actor.id, attempt: 0, status: 'draft', draft, submittedAt: null, isMarkedAttempt: false,
-      checkSummary: null, lineListHash: null, proposedTotal: null, awardedTotal: null, maxTotal: null, markedById: null, markedAt: null, releasedAt: null,
-      resubmissionMessage: null, version: 1,
+      practicalId: practical.id,
+      cohortId,
+      studentId: actor.id,
+      attempt: 0,
+      status: 'draft',
+      draft,
+      submittedAt: null,
+      isMarkedAttempt: false,
+      checkSummary: null,
+      lineListHash: null,
+      proposedTotal: null,
+      awardedTotal: null,
+      maxTotal: null,
+      markedById: null,
+      markedAt: null,
+      releasedAt: null,
+      resubmissionMessage: null,
+      version: 1,
     });
     return { id: row.id, version: row.version, updatedAt: row.updatedAt };
   } catch (e) {
@@ -126,7 +151,10 @@ export function validateForSubmit(draft: Draft, practical: Practical, _qdefs: { 
     const d = draft.species[sp];
     return d && (d.lines.length > 0 || Object.values(d.values).some((v) => v.value.trim() !== ''));
   });
-  if (!anything) throw new HttpError(400, 'The submission is empty: enter your line list and the required values first.', { species: ['At least one line or one value is required.'] });
+  if (!anything)
+    throw new HttpError(400, 'The submission is empty: enter your line list and the required values first.', {
+      species: ['At least one line or one value is required.'],
+    });
 }
 
 /** The values a draft reports, as they would be stored on submitting (blank values left out). */
@@ -136,7 +164,8 @@ export function draftValues(draft: Draft, species: string[]): TypedValue[] {
     const d = draft.species[sp];
     if (!d) continue;
     const put = (key: string, v: { value: string; unit: string; uncertainty: string } | undefined) => {
-      if (v && v.value.trim() !== '') out.push({ key, species: sp, valueText: v.value.trim(), unit: v.unit.trim(), uncertaintyText: v.uncertainty.trim() || null });
+      if (v && v.value.trim() !== '')
+        out.push({ key, species: sp, valueText: v.value.trim(), unit: v.unit.trim(), uncertaintyText: v.uncertainty.trim() || null });
     };
     put('bandCentre', d.values.bandCentre ?? d.bandCentre);
     put('overtone', d.overtone);
@@ -147,7 +176,9 @@ export function draftValues(draft: Draft, species: string[]): TypedValue[] {
 
 /** The lines of a draft, per isotopologue of the practical. */
 export function draftLines(draft: Draft, species: string[]): TypedLine[] {
-  return species.flatMap((sp) => (draft.species[sp]?.lines ?? []).map((l) => ({ species: sp, branch: l.branch, J: l.J, wavenumber: l.wavenumber })));
+  return species.flatMap((sp) =>
+    (draft.species[sp]?.lines ?? []).map((l) => ({ species: sp, branch: l.branch, J: l.J, wavenumber: l.wavenumber })),
+  );
 }
 
 function randomName(ext: string) {
@@ -164,13 +195,22 @@ function serialised<T>(key: number, fn: () => Promise<T>): Promise<T> {
   const prev = submitQueues.get(key) ?? Promise.resolve();
   const next = prev.catch(() => undefined).then(fn);
   submitQueues.set(key, next);
-  void next.finally(() => {
-    if (submitQueues.get(key) === next) submitQueues.delete(key);
-  }).catch(() => undefined);
+  void next
+    .finally(() => {
+      if (submitQueues.get(key) === next) submitQueues.delete(key);
+    })
+    .catch(() => undefined);
   return next;
 }
 
-export async function submitDraft(actor: Actor, draftRow: Submission, practical: Practical, version: number, draftIn: Draft, now = new Date()) {
+export async function submitDraft(
+  actor: Actor,
+  draftRow: Submission,
+  practical: Practical,
+  version: number,
+  draftIn: Draft,
+  now = new Date(),
+) {
   return serialised(draftRow.id, () => submitDraftNow(actor, draftRow, practical, version, draftIn, now));
 }
 
@@ -192,17 +232,39 @@ async function submitDraftNow(actor: Actor, draftRow: Submission, practical: Pra
   try {
     return await sequelize().transaction(async (transaction) => {
       const { used, lastAttempt, extra } = await attemptsUsed(practical.id, actor.id, transaction);
-      if (used >= practical.maxAttempts + extra) throw new HttpError(409, `You have used all ${practical.maxAttempts + extra} attempts for this practical.`);
+      if (used >= practical.maxAttempts + extra)
+        throw new HttpError(409, `You have used all ${practical.maxAttempts + extra} attempts for this practical.`);
       const [bumped] = await Submission.update({ version: version + 1, draft }, { where: { id: draftRow.id, version }, transaction });
-      if (bumped === 0) throw new HttpError(409, 'This draft was already submitted or changed in another tab. Reload the page to see your latest attempt.');
+      if (bumped === 0)
+        throw new HttpError(409, 'This draft was already submitted or changed in another tab. Reload the page to see your latest attempt.');
 
-      await Submission.update({ isMarkedAttempt: false }, { where: { practicalId: practical.id, studentId: actor.id, attempt: { [Op.gt]: 0 } }, transaction });
+      await Submission.update(
+        { isMarkedAttempt: false },
+        { where: { practicalId: practical.id, studentId: actor.id, attempt: { [Op.gt]: 0 } }, transaction },
+      );
       const attempt = await Submission.create(
         {
-          practicalId: practical.id, cohortId: draftRow.cohortId, studentId: actor.id, attempt: lastAttempt + 1, status: 'submitted', draft,
-          submittedAt: now, daysLate: late, latePenalty: latePenaltyFor(practical, late), flagLate: late > 0, isMarkedAttempt: true,
-          checkSummary: null, lineListHash: null, proposedTotal: null, awardedTotal: null, maxTotal: null, markedById: null, markedAt: null,
-          releasedAt: null, resubmissionMessage: null, version: 0,
+          practicalId: practical.id,
+          cohortId: draftRow.cohortId,
+          studentId: actor.id,
+          attempt: lastAttempt + 1,
+          status: 'submitted',
+          draft,
+          submittedAt: now,
+          daysLate: late,
+          latePenalty: latePenaltyFor(practical, late),
+          flagLate: late > 0,
+          isMarkedAttempt: true,
+          checkSummary: null,
+          lineListHash: null,
+          proposedTotal: null,
+          awardedTotal: null,
+          maxTotal: null,
+          markedById: null,
+          markedAt: null,
+          releasedAt: null,
+          resubmissionMessage: null,
+          version: 0,
         },
         { transaction },
       );
@@ -222,19 +284,43 @@ async function submitDraftNow(actor: Actor, draftRow: Submission, practical: Pra
           const storedName = randomName(ext);
           fs.copyFileSync(uploadPath(up.storedName), uploadPath(storedName));
           copied.push(storedName);
-          const copy = await Upload.create({ ownerId: up.ownerId, submissionId: attempt.id, kind: up.kind, originalName: up.originalName, storedName, sha256: up.sha256, size: up.size, contentType: up.contentType, sample: up.sample }, { transaction });
+          const copy = await Upload.create(
+            {
+              ownerId: up.ownerId,
+              submissionId: attempt.id,
+              kind: up.kind,
+              originalName: up.originalName,
+              storedName,
+              sha256: up.sha256,
+              size: up.size,
+              contentType: up.contentType,
+              sample: up.sample,
+            },
+            { transaction },
+          );
           // The same bytes: the analysis made at upload holds for the copy too.
           if (up.analysis) await copy.update({ analysis: { ...up.analysis, uploadId: copy.id } }, { transaction });
         }
       }
       await checkStoredSubmission(attempt.id, { transaction });
-      await audit({ actorId: actor.id, action: 'submission.submit', entityType: 'submission', entityId: attempt.id, after: { attempt: attempt.attempt, daysLate: late } }, transaction);
+      await audit(
+        {
+          actorId: actor.id,
+          action: 'submission.submit',
+          entityType: 'submission',
+          entityId: attempt.id,
+          after: { attempt: attempt.attempt, daysLate: late },
+        },
+        transaction,
+      );
       return attempt;
     });
   } catch (e) {
     for (const name of copied) fs.rmSync(uploadPath(name), { force: true });
-    if (e instanceof UniqueConstraintError) throw new HttpError(409, 'This attempt was already submitted (a second click?). Reload the page to see it.');
-    if (e instanceof Error && /SQLITE_BUSY/.test(String((e as { parent?: unknown }).parent ?? e.message))) throw new HttpError(409, 'Another change to this submission is being saved; try again in a moment.');
+    if (e instanceof UniqueConstraintError)
+      throw new HttpError(409, 'This attempt was already submitted (a second click?). Reload the page to see it.');
+    if (e instanceof Error && /SQLITE_BUSY/.test(String((e as { parent?: unknown }).parent ?? e.message)))
+      throw new HttpError(409, 'Another change to this submission is being saved; try again in a moment.');
     throw e;
   }
 }

@@ -10,10 +10,22 @@ import type { Submission } from '@/models/submission';
 import type { Upload } from '@/models/upload';
 import { readDraft } from './draft';
 import { loadSpectrum } from './load-spectrum';
-import { analyseForSample, ANALYSIS_VERSION, isCurrent, OVERTONE_QUANTITIES, samplesOf, type SpectrumSample, type StoredAnalysis } from './spectrum-analysis';
+import {
+  analyseForSample,
+  ANALYSIS_VERSION,
+  isCurrent,
+  OVERTONE_QUANTITIES,
+  samplesOf,
+  type SpectrumSample,
+  type StoredAnalysis,
+} from './spectrum-analysis';
 
-export async function samplesForPractical(practical: Pick<Practical, 'id' | 'species' | 'spectrumSamples'>, transaction?: Transaction): Promise<SpectrumSample[]> {
-  const overtone = (await models().QuantityDefinition.count({ where: { practicalId: practical.id, key: [...OVERTONE_QUANTITIES] }, transaction })) > 0;
+export async function samplesForPractical(
+  practical: Pick<Practical, 'id' | 'species' | 'spectrumSamples'>,
+  transaction?: Transaction,
+): Promise<SpectrumSample[]> {
+  const overtone =
+    (await models().QuantityDefinition.count({ where: { practicalId: practical.id, key: [...OVERTONE_QUANTITIES] }, transaction })) > 0;
   return samplesOf(practical, overtone);
 }
 
@@ -25,7 +37,16 @@ export function sampleOf(upload: Pick<Upload, 'sample'>, samples: SpectrumSample
 /** Analyses a spectrum file already stored (for an upload being created, or one without a current analysis). */
 export function analyseFile(file: { storedName: string; originalName: string }, uploadId: number, sample: SpectrumSample): StoredAnalysis {
   const loaded = loadSpectrum(file);
-  if (!loaded.ok) return { version: ANALYSIS_VERSION, ok: false, uploadId, sample: sample.key, molecules: sample.molecules, bands: sample.bands, message: loaded.message };
+  if (!loaded.ok)
+    return {
+      version: ANALYSIS_VERSION,
+      ok: false,
+      uploadId,
+      sample: sample.key,
+      molecules: sample.molecules,
+      bands: sample.bands,
+      message: loaded.message,
+    };
   return analyseForSample(loaded.spectrum, uploadId, sample);
 }
 
@@ -47,7 +68,11 @@ export interface SubmissionSpectrum {
  * Each spectrum the practical takes, with the submission's upload for it and that upload's
  * analysis. A draft names its uploads in the draft; a submitted attempt owns them.
  */
-export async function spectraOfSubmission(submission: Submission, practical: Practical, options: { transaction?: Transaction; analyse?: boolean } = {}): Promise<SubmissionSpectrum[]> {
+export async function spectraOfSubmission(
+  submission: Submission,
+  practical: Practical,
+  options: { transaction?: Transaction; analyse?: boolean } = {},
+): Promise<SubmissionSpectrum[]> {
   const { transaction } = options;
   const { Upload } = models();
   const samples = await samplesForPractical(practical, transaction);

@@ -9,12 +9,33 @@ import type { BandMatch, FromSpectrumRow, StoredAnalysis } from './spectrum-anal
 export type SpectrumVerdict = 'within' | 'partial' | 'outside' | 'not-checked';
 
 /** The third comparison's own verdicts: word + symbol + colour (the verdict tokens' colours). */
-export const SPECTRUM_VERDICT: Record<SpectrumVerdict, { word: string; symbol: string; className: string; rgb: [number, number, number] }> = {
-  within: { word: 'agrees with the spectrum', symbol: '✓', className: 'text-verdict-within bg-verdict-within-bg', rgb: [0x1d / 255, 0x6a / 255, 0x3b / 255] },
-  partial: { word: 'near the spectrum', symbol: '◐', className: 'text-verdict-partial bg-verdict-partial-bg', rgb: [0x7d / 255, 0x4e / 255, 0] },
-  outside: { word: 'differs from the spectrum', symbol: '✗', className: 'text-verdict-outside bg-verdict-outside-bg', rgb: [0xa3 / 255, 0x26 / 255, 0x1c / 255] },
-  'not-checked': { word: 'not compared', symbol: '–', className: 'text-verdict-unchecked bg-verdict-unchecked-bg', rgb: [0x4a / 255, 0x53 / 255, 0x61 / 255] },
-};
+export const SPECTRUM_VERDICT: Record<SpectrumVerdict, { word: string; symbol: string; className: string; rgb: [number, number, number] }> =
+  {
+    within: {
+      word: 'agrees with the spectrum',
+      symbol: '✓',
+      className: 'text-verdict-within bg-verdict-within-bg',
+      rgb: [0x1d / 255, 0x6a / 255, 0x3b / 255],
+    },
+    partial: {
+      word: 'near the spectrum',
+      symbol: '◐',
+      className: 'text-verdict-partial bg-verdict-partial-bg',
+      rgb: [0x7d / 255, 0x4e / 255, 0],
+    },
+    outside: {
+      word: 'differs from the spectrum',
+      symbol: '✗',
+      className: 'text-verdict-outside bg-verdict-outside-bg',
+      rgb: [0xa3 / 255, 0x26 / 255, 0x1c / 255],
+    },
+    'not-checked': {
+      word: 'not compared',
+      symbol: '–',
+      className: 'text-verdict-unchecked bg-verdict-unchecked-bg',
+      rgb: [0x4a / 255, 0x53 / 255, 0x61 / 255],
+    },
+  };
 
 export interface FromSpectrumDisplayRow {
   label: string;
@@ -64,7 +85,8 @@ function percent(rel: number): string {
   return `${p < 0 ? '−' : p > 0 ? '+' : ''}${text} %`;
 }
 
-const est = (e: { value: number; stdError: number } | undefined, digits: number) => (e ? `${e.value.toFixed(digits)} ± ${e.stdError.toFixed(digits)}` : null);
+const est = (e: { value: number; stdError: number } | undefined, digits: number) =>
+  e ? `${e.value.toFixed(digits)} ± ${e.stdError.toFixed(digits)}` : null;
 
 const STATUS: Record<string, string> = {
   fitted: 'found and fitted',
@@ -76,8 +98,28 @@ const STATUS: Record<string, string> = {
 
 function sampleDisplay(s: { label: string; originalName: string | null; analysis: StoredAnalysis | null }): SpectrumSampleDisplay {
   const a = s.analysis;
-  if (!a) return { label: s.label, file: s.originalName, message: s.originalName ? 'Not analysed.' : 'No spectrum was uploaded.', lineShape: null, bands: [], calibration: null, unassigned: null, problems: [] };
-  if (!a.ok) return { label: s.label, file: s.originalName, message: a.message, lineShape: null, bands: [], calibration: null, unassigned: null, problems: [] };
+  if (!a)
+    return {
+      label: s.label,
+      file: s.originalName,
+      message: s.originalName ? 'Not analysed.' : 'No spectrum was uploaded.',
+      lineShape: null,
+      bands: [],
+      calibration: null,
+      unassigned: null,
+      problems: [],
+    };
+  if (!a.ok)
+    return {
+      label: s.label,
+      file: s.originalName,
+      message: a.message,
+      lineShape: null,
+      bands: [],
+      calibration: null,
+      unassigned: null,
+      problems: [],
+    };
   return {
     label: s.label,
     file: s.originalName,
@@ -95,7 +137,12 @@ function sampleDisplay(s: { label: string; originalName: string | null; analysis
         warnings: r.warnings,
       })),
     calibration: a.calibration?.detected ? a.calibration.message : null,
-    unassigned: a.unassigned.length ? `${a.unassigned.length} line${a.unassigned.length === 1 ? '' : 's'} belong to no band of the named molecules (e.g. ${a.unassigned.slice(0, 3).map((u) => `${u.wavenumber.toFixed(2)} cm⁻¹`).join(', ')}).` : null,
+    unassigned: a.unassigned.length
+      ? `${a.unassigned.length} line${a.unassigned.length === 1 ? '' : 's'} belong to no band of the named molecules (e.g. ${a.unassigned
+          .slice(0, 3)
+          .map((u) => `${u.wavenumber.toFixed(2)} cm⁻¹`)
+          .join(', ')}).`
+      : null,
     problems: a.problems.filter((p) => !/outside the recorded range/.test(p)),
   };
 }
@@ -103,7 +150,10 @@ function sampleDisplay(s: { label: string; originalName: string | null; analysis
 /** From the stored check summary (unknown shape, older summaries have none of this). */
 export function spectrumAnalysisView(summary: unknown): SpectrumAnalysisView | null {
   if (!summary || typeof summary !== 'object') return null;
-  const s = summary as { spectra?: { samples: { label: string; originalName: string | null; analysis: StoredAnalysis | null }[]; perBand: BandMatch[] }; fromSpectrum?: { legend: string; rows: FromSpectrumRow[] } | null };
+  const s = summary as {
+    spectra?: { samples: { label: string; originalName: string | null; analysis: StoredAnalysis | null }[]; perBand: BandMatch[] };
+    fromSpectrum?: { legend: string; rows: FromSpectrumRow[] } | null;
+  };
   if (!s.spectra) return null;
   const comparison = s.fromSpectrum
     ? {

@@ -34,7 +34,14 @@ import type { SpectrumSampleSetting } from '@/models/practical';
 import { log } from '@/lib/log';
 
 /** Quantities that need the first overtone: a practical asking for them expects the 2←0 band. */
-export const OVERTONE_QUANTITIES = new Set(['omegaE', 'omegaExe', 'forceConstantE', 'zeroPointEnergy', 'dissociationEnergy', 'dissociationEnergy0']);
+export const OVERTONE_QUANTITIES = new Set([
+  'omegaE',
+  'omegaExe',
+  'forceConstantE',
+  'zeroPointEnergy',
+  'dissociationEnergy',
+  'dissociationEnergy0',
+]);
 
 export type SpectrumSample = SpectrumSampleSetting;
 
@@ -51,8 +58,13 @@ const KEY_RE = /^[a-z0-9-]{1,40}$/;
  * The spectra a practical takes. Without a setting: one spectrum ("cell") holding every molecule
  * of the practical, with the fundamental, and the overtone when a quantity needs it.
  */
-export function samplesOf(practical: { species: string[]; spectrumSamples?: SpectrumSampleSetting[] | null }, overtone: boolean): SpectrumSample[] {
-  const set = Array.isArray(practical.spectrumSamples) ? practical.spectrumSamples.filter((s) => s && KEY_RE.test(s.key) && s.molecules?.length) : [];
+export function samplesOf(
+  practical: { species: string[]; spectrumSamples?: SpectrumSampleSetting[] | null },
+  overtone: boolean,
+): SpectrumSample[] {
+  const set = Array.isArray(practical.spectrumSamples)
+    ? practical.spectrumSamples.filter((s) => s && KEY_RE.test(s.key) && s.molecules?.length)
+    : [];
   if (set.length) return set;
   const molecules = [...new Set(practical.species.map(moleculeOf))];
   return [{ key: 'cell', label: 'Spectrum', molecules, bands: overtone ? ['fundamental', 'overtone'] : ['fundamental'] }];
@@ -110,10 +122,26 @@ export type StoredAnalysis =
       found: number[];
       unassigned: { wavenumber: number; intensity: number }[];
       calibration: { detected: boolean; message: string; offset: Estimate; scale: Estimate | null } | null;
-      vibration: { isotopologue: string; omegaE: Estimate; omegaExe: Estimate; forceConstantE?: Estimate; zeroPointEnergy: Estimate; morseDe: Estimate; morseD0: Estimate }[];
+      vibration: {
+        isotopologue: string;
+        omegaE: Estimate;
+        omegaExe: Estimate;
+        forceConstantE?: Estimate;
+        zeroPointEnergy: Estimate;
+        morseDe: Estimate;
+        morseD0: Estimate;
+      }[];
       problems: string[];
     }
-  | { version: typeof ANALYSIS_VERSION; ok: false; uploadId: number; sample: string; molecules: string[]; bands: BandKind[]; message: string };
+  | {
+      version: typeof ANALYSIS_VERSION;
+      ok: false;
+      uploadId: number;
+      sample: string;
+      molecules: string[];
+      bands: BandKind[];
+      message: string;
+    };
 
 const round = (v: number, digits = 6) => Math.round(v * 10 ** digits) / 10 ** digits;
 
@@ -132,7 +160,10 @@ export function storeAnalysis(a: SpectrumAnalysis, uploadId: number, sample: Spe
     molecules: sample.molecules,
     bands: sample.bands,
     range: { from: a.range.from, to: a.range.to },
-    lineShape: { fwhm: round(a.lineShape.fwhm, 4), resolution: a.lineShape.resolution === undefined ? undefined : round(a.lineShape.resolution, 3) },
+    lineShape: {
+      fwhm: round(a.lineShape.fwhm, 4),
+      resolution: a.lineShape.resolution === undefined ? undefined : round(a.lineShape.resolution, 3),
+    },
     results: a.bands.map((b) => ({
       isotopologue: b.isotopologue,
       display: b.display,
@@ -156,7 +187,14 @@ export function storeAnalysis(a: SpectrumAnalysis, uploadId: number, sample: Spe
             rms: b.fit.rms,
             lineCount: b.fit.lineCount,
             alternative: b.fit.alternative
-              ? { model: b.fit.alternative.model, nu0: b.fit.alternative.nu0, B0: b.fit.alternative.B0, Bupper: b.fit.alternative.Bupper, Be: b.fit.alternative.Be, alphaE: b.fit.alternative.alphaE }
+              ? {
+                  model: b.fit.alternative.model,
+                  nu0: b.fit.alternative.nu0,
+                  B0: b.fit.alternative.B0,
+                  Bupper: b.fit.alternative.Bupper,
+                  Be: b.fit.alternative.Be,
+                  alphaE: b.fit.alternative.alphaE,
+                }
               : undefined,
           }
         : null,
@@ -164,7 +202,9 @@ export function storeAnalysis(a: SpectrumAnalysis, uploadId: number, sample: Spe
     })),
     found: [...found].sort((x, y) => x - y),
     unassigned: a.unassigned.slice(0, 40).map((u) => ({ wavenumber: round(u.wavenumber, 4), intensity: round(u.intensity, 5) })),
-    calibration: a.calibration ? { detected: a.calibration.detected, message: a.calibration.message, offset: a.calibration.offset, scale: a.calibration.scale } : null,
+    calibration: a.calibration
+      ? { detected: a.calibration.detected, message: a.calibration.message, offset: a.calibration.offset, scale: a.calibration.scale }
+      : null,
     vibration: a.vibration.isotopologues.map((v) => ({
       isotopologue: v.isotopologue,
       omegaE: v.asRecorded.omegaE,
@@ -185,7 +225,15 @@ export function analyseForSample(spectrum: Spectrum, uploadId: number, sample: S
   } catch (e) {
     // analyseSpectrum does not throw for any spectrum parse accepts; if it ever does, say so rather than fail the upload.
     log().error({ err: e, uploadId, sample: sample.key }, 'spectrum analysis failed');
-    return { version: ANALYSIS_VERSION, ok: false, uploadId, sample: sample.key, molecules: sample.molecules, bands: sample.bands, message: 'Oscillab could not analyse this spectrum.' };
+    return {
+      version: ANALYSIS_VERSION,
+      ok: false,
+      uploadId,
+      sample: sample.key,
+      molecules: sample.molecules,
+      bands: sample.bands,
+      message: 'Oscillab could not analyse this spectrum.',
+    };
   }
 }
 
@@ -251,7 +299,17 @@ export function matchByBand(lines: ReportedLine[], analyses: StoredAnalysis[]): 
     const holders = ok.filter((a) => a.results.some((r) => r.isotopologue === sp));
     const display = speciesDisplay(sp);
     if (holders.length === 0) {
-      out.push({ species: sp, display, band: null, label: display, reported: mine.length, matched: 0, outsideRange: false, noSpectrum: true, message: `${display}: no uploaded spectrum is for this molecule, so your ${mine.length} line${mine.length === 1 ? '' : 's'} could not be checked.` });
+      out.push({
+        species: sp,
+        display,
+        band: null,
+        label: display,
+        reported: mine.length,
+        matched: 0,
+        outsideRange: false,
+        noSpectrum: true,
+        message: `${display}: no uploaded spectrum is for this molecule, so your ${mine.length} line${mine.length === 1 ? '' : 's'} could not be checked.`,
+      });
       continue;
     }
     const candidates = holders.flatMap((a) => a.results.filter((r) => r.isotopologue === sp).map((r) => ({ a, r })));
@@ -259,7 +317,9 @@ export function matchByBand(lines: ReportedLine[], analyses: StoredAnalysis[]): 
     for (const l of mine) {
       // The band whose range holds the line, else the nearest by origin.
       const inside = candidates.filter(({ r }) => l.wavenumber >= r.predictedRange[0] - 30 && l.wavenumber <= r.predictedRange[1] + 30);
-      const pick = (inside.length ? inside : candidates).reduce((b, c) => (Math.abs(c.r.predictedOrigin - l.wavenumber) < Math.abs(b.r.predictedOrigin - l.wavenumber) ? c : b));
+      const pick = (inside.length ? inside : candidates).reduce((b, c) =>
+        Math.abs(c.r.predictedOrigin - l.wavenumber) < Math.abs(b.r.predictedOrigin - l.wavenumber) ? c : b,
+      );
       const key = pick.r.band;
       const g = groups.get(key) ?? { a: [], r: pick.r, lines: [] };
       g.lines.push(l);
@@ -272,7 +332,14 @@ export function matchByBand(lines: ReportedLine[], analyses: StoredAnalysis[]): 
       if (covering.length === 0) {
         const ranges = holders.map((a) => `${fmt0(a.range.from)}–${fmt0(a.range.to)} cm⁻¹`).join(' and ');
         out.push({
-          species: sp, display, band: g.r.band, label, reported: g.lines.length, matched: 0, outsideRange: true, noSpectrum: false,
+          species: sp,
+          display,
+          band: g.r.band,
+          label,
+          reported: g.lines.length,
+          matched: 0,
+          outsideRange: true,
+          noSpectrum: false,
           message: `${label}: your ${g.lines.length} line${g.lines.length === 1 ? ' lies' : 's lie'} near ${fmt0(g.r.predictedOrigin)} cm⁻¹, outside the spectrum you uploaded (${ranges}); upload the spectrum that holds this band.`,
         });
         continue;
@@ -281,7 +348,14 @@ export function matchByBand(lines: ReportedLine[], analyses: StoredAnalysis[]): 
       const tol = Math.max(0.3, 0.6 * Math.max(...covering.map((a) => a.lineShape.fwhm)));
       const matched = g.lines.filter((l) => nearestDistance(found, l.wavenumber) <= tol).length;
       out.push({
-        species: sp, display, band: g.r.band, label, reported: g.lines.length, matched, outsideRange: false, noSpectrum: false,
+        species: sp,
+        display,
+        band: g.r.band,
+        label,
+        reported: g.lines.length,
+        matched,
+        outsideRange: false,
+        noSpectrum: false,
         message: `${label}: ${matched} of ${g.lines.length} of your lines match a peak of your spectrum (within ±${tol.toFixed(2)} cm⁻¹).`,
       });
     }
@@ -299,7 +373,8 @@ export function bandsFound(analyses: StoredAnalysis[]): string[] {
     }
     for (const r of a.results) {
       if (r.status === 'fitted') out.push(`${r.label}: ${r.lines.length} lines found and assigned.`);
-      else if (r.status === 'outside-range') out.push(`${r.label}: outside the uploaded range (${fmt0(a.range.from)}–${fmt0(a.range.to)} cm⁻¹).`);
+      else if (r.status === 'outside-range')
+        out.push(`${r.label}: outside the uploaded range (${fmt0(a.range.from)}–${fmt0(a.range.to)} cm⁻¹).`);
       else if (r.status === 'unresolved') out.push(`${r.label}: not separated from its isotope partner at this resolution.`);
       else out.push(`${r.label}: ${r.lines.length ? `only ${r.lines.length} line${r.lines.length === 1 ? '' : 's'} found` : 'not found'}.`);
     }
@@ -315,11 +390,20 @@ export type SpectrumLinesAnswer = {
   problems: string[];
 };
 
-export function linesForSpecies(analyses: StoredAnalysis[], species: string[]): Record<string, { branch: 'P' | 'R'; J: number; wavenumber: number }[]> {
+export function linesForSpecies(
+  analyses: StoredAnalysis[],
+  species: string[],
+): Record<string, { branch: 'P' | 'R'; J: number; wavenumber: number }[]> {
   const out: Record<string, { branch: 'P' | 'R'; J: number; wavenumber: number }[]> = {};
   for (const sp of species) {
-    const band = analyses.flatMap((a) => (a.ok ? a.results : [])).find((r) => r.isotopologue === sp && r.band === 'fundamental' && r.lines.length > 0);
-    out[sp] = band ? band.lines.map((l) => ({ branch: l.branch, J: l.J, wavenumber: Number(l.wavenumber.toFixed(3)) })).sort((a, b) => a.wavenumber - b.wavenumber) : [];
+    const band = analyses
+      .flatMap((a) => (a.ok ? a.results : []))
+      .find((r) => r.isotopologue === sp && r.band === 'fundamental' && r.lines.length > 0);
+    out[sp] = band
+      ? band.lines
+          .map((l) => ({ branch: l.branch, J: l.J, wavenumber: Number(l.wavenumber.toFixed(3)) }))
+          .sort((a, b) => a.wavenumber - b.wavenumber)
+      : [];
   }
   return out;
 }
@@ -347,7 +431,6 @@ export const FROM_SPECTRUM_LEGEND =
 
 type AnalysisValue = { value: number; stdError: number; unit: string };
 
-
 /**
  * The analysis' value of a quantity for an isotopologue, in its display unit (cm⁻¹, Å, N m⁻¹):
  * one per fit model when the band was fitted both with and without D (a student may defensibly
@@ -360,7 +443,10 @@ function analysisValues(key: QuantityKey, species: string, analyses: StoredAnaly
   const cm = (e: Estimate | undefined): AnalysisValue[] => (e ? [{ value: e.value, stdError: e.stdError, unit: 'cm-1' }] : []);
   const models = fit ? [fit, ...(fit.alternative ? [{ ...fit.alternative, re: undefined, r0: undefined, D: undefined }] : [])] : [];
   const both = (pick: (m: (typeof models)[number]) => Estimate | undefined, unit = 'cm-1'): AnalysisValue[] =>
-    models.map(pick).filter((e): e is Estimate => e !== undefined).map((e) => ({ value: e.value, stdError: e.stdError, unit }));
+    models
+      .map(pick)
+      .filter((e): e is Estimate => e !== undefined)
+      .map((e) => ({ value: e.value, stdError: e.stdError, unit }));
   const p = parseSpecies(species);
   switch (key) {
     case 'bandCentre':
@@ -412,7 +498,9 @@ function analysisValues(key: QuantityKey, species: string, analyses: StoredAnaly
 
 /** The overtone band origin is reported under the key "overtone", not a quantity key. */
 function overtoneValues(species: string, analyses: StoredAnalysis[]): AnalysisValue[] {
-  const fit = analyses.flatMap((a) => (a.ok ? a.results : [])).find((r) => r.isotopologue === species && r.band === 'overtone' && r.fit)?.fit;
+  const fit = analyses
+    .flatMap((a) => (a.ok ? a.results : []))
+    .find((r) => r.isotopologue === species && r.band === 'overtone' && r.fit)?.fit;
   if (!fit) return [];
   return [fit.nu0, ...(fit.alternative ? [fit.alternative.nu0] : [])].map((e) => ({ value: e.value, stdError: e.stdError, unit: 'cm-1' }));
 }
@@ -478,7 +566,11 @@ export function compareWithAnalysis(reported: ReportedForComparison[], analyses:
       const specErr = toSI(a.stdError, a.unit, dim);
       if (!spec.ok || !specErr.ok) continue;
       const combined = Math.hypot(Math.abs(specErr.valueSI), statedSI);
-      const j = judge(rep.valueSI, spec.valueSI, tolerance, { uncertaintySI: combined > 0 ? combined : undefined, dimension: dim, roundingSI });
+      const j = judge(rep.valueSI, spec.valueSI, tolerance, {
+        uncertaintySI: combined > 0 ? combined : undefined,
+        dimension: dim,
+        roundingSI,
+      });
       const row: FromSpectrumRow = {
         key: isOvertone ? 'overtone' : key,
         species: r.species,
@@ -490,7 +582,12 @@ export function compareWithAnalysis(reported: ReportedForComparison[], analyses:
         verdict: j.verdict,
         basis: r.accuracy ? "the practical's accuracy band" : position(key, isOvertone),
       };
-      if (!best || RANK[row.verdict] < RANK[best.verdict] || (RANK[row.verdict] === RANK[best.verdict] && Math.abs(row.deviation) < Math.abs(best.deviation))) best = row;
+      if (
+        !best ||
+        RANK[row.verdict] < RANK[best.verdict] ||
+        (RANK[row.verdict] === RANK[best.verdict] && Math.abs(row.deviation) < Math.abs(best.deviation))
+      )
+        best = row;
     }
     if (best) out.push(best);
   }

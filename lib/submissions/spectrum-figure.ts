@@ -31,21 +31,42 @@ export type SpectrumFigure =
   | { ok: false; status: 404 | 422; message: string };
 
 /** GET /api/submissions/[id]/spectrum's answer. */
-export type SpectrumFigureAnswer = Pick<Extract<SpectrumFigure, { ok: true }>, 'plot' | 'description' | 'summary' | 'samples' | 'sample' | 'bands' | 'perBand'>;
+export type SpectrumFigureAnswer = Pick<
+  Extract<SpectrumFigure, { ok: true }>,
+  'plot' | 'description' | 'summary' | 'samples' | 'sample' | 'bands' | 'perBand'
+>;
 
-export async function spectrumFigure(submission: Submission, practical: Practical, audience: 'student' | 'staff' = 'student', sampleKey?: string): Promise<SpectrumFigure> {
+export async function spectrumFigure(
+  submission: Submission,
+  practical: Practical,
+  audience: 'student' | 'staff' = 'student',
+  sampleKey?: string,
+): Promise<SpectrumFigure> {
   const { LineAssignment } = models();
   let lines: FigureLine[];
   if (submission.attempt === 0) {
     const draft = readDraft(submission.draft, practical.species);
     lines = Object.entries(draft.species).flatMap(([species, d]) => d.lines.map((l) => ({ species, ...l })));
   } else {
-    lines = (await LineAssignment.findAll({ where: { submissionId: submission.id }, order: [['id', 'ASC']] })).map((l) => ({ species: l.species, branch: l.branch, J: l.J, wavenumber: l.wavenumber }));
+    lines = (await LineAssignment.findAll({ where: { submissionId: submission.id }, order: [['id', 'ASC']] })).map((l) => ({
+      species: l.species,
+      branch: l.branch,
+      J: l.J,
+      wavenumber: l.wavenumber,
+    }));
   }
   const spectra = await spectraOfSubmission(submission, practical);
   const chosen = (sampleKey ? spectra.find((x) => x.sample.key === sampleKey) : spectra.find((x) => x.upload)) ?? spectra[0];
   const upload = chosen?.upload ?? null;
-  if (!upload) return { ok: false, status: 404, message: sampleKey && spectra.length > 1 ? `No spectrum has been uploaded for “${chosen?.sample.label ?? sampleKey}”.` : 'No spectrum has been uploaded for this submission.' };
+  if (!upload)
+    return {
+      ok: false,
+      status: 404,
+      message:
+        sampleKey && spectra.length > 1
+          ? `No spectrum has been uploaded for “${chosen?.sample.label ?? sampleKey}”.`
+          : 'No spectrum has been uploaded for this submission.',
+    };
   const analyses = spectra.map((x) => x.analysis).filter((a): a is StoredAnalysis => a !== null);
   const loaded = loadSpectrum(upload);
   if (!loaded.ok) return { ok: false, status: 422, message: loaded.message };

@@ -30,7 +30,11 @@ export async function spectrumFormProps(practical: Practical, draft: Draft) {
     }
   }
   return {
-    samples: samples.map((s) => ({ key: s.key, label: s.label, holds: `${list(s.molecules)}: ${s.bands.map((b) => BAND_LABEL[b]).join(', ')}` })),
+    samples: samples.map((s) => ({
+      key: s.key,
+      label: s.label,
+      holds: `${list(s.molecules)}: ${s.bands.map((b) => BAND_LABEL[b]).join(', ')}`,
+    })),
     spectrumNames,
     expectedRange: Number.isFinite(from) ? { from: Math.floor(from), to: Math.ceil(to) } : undefined,
   };

@@ -30,9 +30,16 @@ export async function openPracticalsFor(actor: Actor) {
     const latest = mine.find((s) => s.attempt > 0) ?? null;
     const released = Boolean(latest?.releasedAt);
     out.push({
-      practicalId: practical.id, title: practical.title, mode: practical.mode, cohortName: cohort ? cohortName(cohort) : '', deadline: pc.deadline,
-      attemptsLeft: Math.max(0, practical.maxAttempts + extra - used), attemptsUsed: used,
-      hasDraft: mine.some((s) => s.attempt === 0), latestStatus: latest?.status ?? null, released,
+      practicalId: practical.id,
+      title: practical.title,
+      mode: practical.mode,
+      cohortName: cohort ? cohortName(cohort) : '',
+      deadline: pc.deadline,
+      attemptsLeft: Math.max(0, practical.maxAttempts + extra - used),
+      attemptsUsed: used,
+      hasDraft: mine.some((s) => s.attempt === 0),
+      latestStatus: latest?.status ?? null,
+      released,
       mark: released && latest ? { awarded: latest.awardedTotal ?? latest.proposedTotal, max: latest.maxTotal } : null,
     });
   }
@@ -46,4 +53,3 @@ export function timeLeft(deadline: Date, now = new Date()): string {
   if (h < 48) return `${h} h ${Math.floor((ms % 3_600_000) / 60_000)} min left`;
   return `${Math.floor(h / 24)} days left`;
 }
-

@@ -79,7 +79,10 @@ export interface ReceivedFile {
 }
 
 /** Streams a multipart request through formidable into the upload directory; temp files are removed on any failure. */
-export async function receiveMultipart(request: Request, maxBytes: number): Promise<{ fields: Record<string, string>; file: ReceivedFile | null; cleanup: () => void }> {
+export async function receiveMultipart(
+  request: Request,
+  maxBytes: number,
+): Promise<{ fields: Record<string, string>; file: ReceivedFile | null; cleanup: () => void }> {
   const type = request.headers.get('content-type') ?? '';
   if (!type.toLowerCase().startsWith('multipart/form-data')) throw new HttpError(415, 'Send the file as multipart/form-data.');
   const declared = Number(request.headers.get('content-length') ?? 0);
@@ -138,17 +141,23 @@ export async function receiveMultipart(request: Request, maxBytes: number): Prom
   } catch (e) {
     // A file may still be opening when formidable gives up (e.g. a second file): removing it
     // before its stream has closed would let the open create it again afterwards.
-    await Promise.all(streams.map((ws) => (ws.closed ? null : new Promise<void>((resolve) => ws.once('close', () => resolve()).destroy()))));
+    await Promise.all(
+      streams.map((ws) => (ws.closed ? null : new Promise<void>((resolve) => ws.once('close', () => resolve()).destroy()))),
+    );
     cleanup();
     if (e instanceof UploadTimeout) {
-      throw new HttpError(408, e.why === 'idle'
-        ? `The upload stalled (nothing arrived for ${formatDuration(timeouts.idleMs)}) and was stopped; nothing was saved. Try again on a steadier connection.`
-        : `The upload took longer than ${formatDuration(timeouts.totalMs)} and was stopped; nothing was saved. Try again on a faster connection.`);
+      throw new HttpError(
+        408,
+        e.why === 'idle'
+          ? `The upload stalled (nothing arrived for ${formatDuration(timeouts.idleMs)}) and was stopped; nothing was saved. Try again on a steadier connection.`
+          : `The upload took longer than ${formatDuration(timeouts.totalMs)} and was stopped; nothing was saved. Try again on a faster connection.`,
+      );
     }
     const refusal = storageRefusal(e) ?? storageRefusal(streams.find((ws) => ws.errored)?.errored);
     if (refusal) throw refusal;
     const err = e as { httpCode?: number; code?: number; message?: string };
-    if (err.httpCode === 413 || /maxFileSize|maxTotalFileSize|exceeded/i.test(err.message ?? '')) throw new HttpError(413, `The file is too large (limit ${formatBytes(maxBytes)}).`);
+    if (err.httpCode === 413 || /maxFileSize|maxTotalFileSize|exceeded/i.test(err.message ?? ''))
+      throw new HttpError(413, `The file is too large (limit ${formatBytes(maxBytes)}).`);
     if (/maxFiles/i.test(err.message ?? '')) throw new HttpError(400, 'Send one file at a time.');
     throw new HttpError(400, 'The upload could not be read as multipart form data.');
   }
@@ -162,12 +171,15 @@ const UNCHANGED = 'Your draft and earlier submissions are unchanged; try again l
 export function storageRefusal(error: unknown): HttpError | null {
   const code = (error as { code?: unknown } | null | undefined)?.code;
   if (typeof code !== 'string') return null;
-  if (STORAGE_FULL.has(code)) return new HttpError(507, `The server has no room left to store files, so your file was not saved. ${UNCHANGED}`);
-  if (STORAGE_UNAVAILABLE.has(code)) return new HttpError(503, `File storage is unavailable right now, so your file was not saved. ${UNCHANGED}`);
+  if (STORAGE_FULL.has(code))
+    return new HttpError(507, `The server has no room left to store files, so your file was not saved. ${UNCHANGED}`);
+  if (STORAGE_UNAVAILABLE.has(code))
+    return new HttpError(503, `File storage is unavailable right now, so your file was not saved. ${UNCHANGED}`);
   return null;
 }
 
-const formatDuration = (ms: number) => (ms < 1000 ? `${ms} ms` : ms < 120_000 ? `${+(ms / 1000).toFixed(1)} s` : `${+(ms / 60_000).toFixed(1)} minutes`);
+const formatDuration = (ms: number) =>
+  ms < 1000 ? `${ms} ms` : ms < 120_000 ? `${+(ms / 1000).toFixed(1)} s` : `${+(ms / 60_000).toFixed(1)} minutes`;
 
 export function formatBytes(n: number): string {
   return n >= MB ? `${+(n / MB).toFixed(1)} MB` : `${Math.ceil(n / 1024)} kB`;
@@ -202,25 +214,45 @@ export interface AcceptedFile {
  * so no file can stall or end the process that serves everyone else.
  */
 /** POST /api/uploads's answer. */
-export type UploadAccepted = { id: number; kind: string; sample: string | null; originalName: string; size: number; version: number; warnings: string[] };
+export type UploadAccepted = {
+  id: number;
+  kind: string;
+  sample: string | null;
+  originalName: string;
+  size: number;
+  version: number;
+  warnings: string[];
+};
 
 export async function acceptFile(file: ReceivedFile, kind: UploadKind): Promise<AcceptedFile> {
   const limits = uploadLimits();
   const originalName = checkOriginalName(file.originalName);
-  if (file.size > limits[kind]) throw new HttpError(413, `A ${kind === 'report' ? 'report' : 'spectrum'} may be at most ${formatBytes(limits[kind])}; this file is ${formatBytes(file.size)}.`);
+  if (file.size > limits[kind])
+    throw new HttpError(
+      413,
+      `A ${kind === 'report' ? 'report' : 'spectrum'} may be at most ${formatBytes(limits[kind])}; this file is ${formatBytes(file.size)}.`,
+    );
   const bytes = fs.readFileSync(file.tempPath);
   if (bytes.length === 0) throw new HttpError(400, 'The file is empty (0 bytes).');
   const read = await readUploadOffThread(new Uint8Array(bytes), originalName, kind === 'spectrum');
   if (!read.ok) {
-    if (read.reason === 'failed') throw new HttpError(422, 'The file could not be read; check that it is a PDF report or a JCAMP-DX or CSV spectrum and upload it again.');
-    throw new HttpError(422, `${read.message} A ${kind === 'report' ? 'report PDF' : 'spectrum'} should read in well under a second; ${kind === 'report' ? 'save the report again as a plain PDF' : 'export the spectrum again at a coarser spacing'}.`);
+    if (read.reason === 'failed')
+      throw new HttpError(
+        422,
+        'The file could not be read; check that it is a PDF report or a JCAMP-DX or CSV spectrum and upload it again.',
+      );
+    throw new HttpError(
+      422,
+      `${read.message} A ${kind === 'report' ? 'report PDF' : 'spectrum'} should read in well under a second; ${kind === 'report' ? 'save the report again as a plain PDF' : 'export the spectrum again at a coarser spacing'}.`,
+    );
   }
   const { sniff, parsed } = read.reading;
   if (!sniff.ok) throw new HttpError(415, sniff.problems.join(' '));
   const warnings: string[] = [];
   if (kind === 'report' && sniff.kind !== 'pdf') throw new HttpError(415, 'The report must be a PDF document.');
   if (kind === 'spectrum') {
-    if (sniff.kind !== 'jcamp' && sniff.kind !== 'csv') throw new HttpError(415, 'The spectrum must be a JCAMP-DX (.jdx, .dx) or two-column CSV file.');
+    if (sniff.kind !== 'jcamp' && sniff.kind !== 'csv')
+      throw new HttpError(415, 'The spectrum must be a JCAMP-DX (.jdx, .dx) or two-column CSV file.');
     if (!parsed) throw new HttpError(422, 'The spectrum could not be read.');
     if (!parsed.ok) throw new HttpError(422, `The spectrum could not be read: ${parsed.message}`);
     warnings.push(...parsed.warnings);
@@ -233,5 +265,13 @@ export async function acceptFile(file: ReceivedFile, kind: UploadKind): Promise<
   } catch (e) {
     throw storageRefusal(e) ?? e;
   }
-  return { storedName, sha256: crypto.createHash('sha256').update(bytes).digest('hex'), size: bytes.length, contentType: ct.type, originalName: path.basename(originalName), finalPath, warnings };
+  return {
+    storedName,
+    sha256: crypto.createHash('sha256').update(bytes).digest('hex'),
+    size: bytes.length,
+    contentType: ct.type,
+    originalName: path.basename(originalName),
+    finalPath,
+    warnings,
+  };
 }

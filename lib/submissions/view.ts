@@ -4,7 +4,16 @@
  * units, impossible values, precision, missing uncertainties) until the marking is released.
  * Staff-only facts (duplicate data) are never part of this view.
  */
-import { formatTyped, isQuantityKey, QUANTITIES, SLIPS, speciesDisplay, type SlipCode, type SubmissionResult, type Verdict } from '@/lib/grading';
+import {
+  formatTyped,
+  isQuantityKey,
+  QUANTITIES,
+  SLIPS,
+  speciesDisplay,
+  type SlipCode,
+  type SubmissionResult,
+  type Verdict,
+} from '@/lib/grading';
 import { expectedToPrecision } from '@/lib/display';
 import { models } from '@/models';
 import type { Practical } from '@/models/practical';
@@ -54,7 +63,12 @@ export interface StudentAttemptView extends StudentChecksView {
   feedbackUrl: string | null;
 }
 
-const FORMAT_CODES = new Set(['missing-uncertainty', 'too-many-significant-figures', 'too-few-significant-figures', 'uncertainty-too-precise']);
+const FORMAT_CODES = new Set([
+  'missing-uncertainty',
+  'too-many-significant-figures',
+  'too-few-significant-figures',
+  'uncertainty-too-precise',
+]);
 
 /**
  * The format notes and (when shown) the verdicts of one set of engine results, from the values as
@@ -70,7 +84,8 @@ export function studentChecks(input: {
   const { results, values, qdefs, showVerdicts } = input;
   const formatNotes: { species: string; message: string }[] = [];
   for (const v of values) {
-    if (v.unit.trim() === '' && isQuantityKey(v.key)) formatNotes.push({ species: v.species, message: `${QUANTITIES[v.key].label} (${speciesDisplay(v.species)}) has no unit.` });
+    if (v.unit.trim() === '' && isQuantityKey(v.key))
+      formatNotes.push({ species: v.species, message: `${QUANTITIES[v.key].label} (${speciesDisplay(v.species)}) has no unit.` });
   }
   for (const q of qdefs) {
     if (isQuantityKey(q.key) && !values.some((v) => v.key === q.key && v.species === q.species)) {
@@ -84,15 +99,23 @@ export function studentChecks(input: {
   for (const [sp, r] of Object.entries(results)) {
     // Notices about the data as given are format notes; the rest come with the verdicts.
     const notices = noticesOf(r);
-    for (const n of notices) if (DATA_NOTICE_CODES.has(n.code)) formatNotes.push({ species: sp, message: `${speciesDisplay(sp)}: ${n.message}` });
-    if (showVerdicts && r.derived?.fit) fits.push({ species: sp, description: describeFit(r.derived.fit, r.derived.fitChoice), notices: notices.filter((n) => !DATA_NOTICE_CODES.has(n.code)) });
+    for (const n of notices)
+      if (DATA_NOTICE_CODES.has(n.code)) formatNotes.push({ species: sp, message: `${speciesDisplay(sp)}: ${n.message}` });
+    if (showVerdicts && r.derived?.fit)
+      fits.push({
+        species: sp,
+        description: describeFit(r.derived.fit, r.derived.fitChoice),
+        notices: notices.filter((n) => !DATA_NOTICE_CODES.has(n.code)),
+      });
     for (const p of r.problems) {
-      if (p.field === '' || p.field.startsWith('reported.') || p.field.startsWith('measured.')) formatNotes.push({ species: sp, message: `${speciesDisplay(sp)}: ${p.message}` });
+      if (p.field === '' || p.field.startsWith('reported.') || p.field.startsWith('measured.'))
+        formatNotes.push({ species: sp, message: `${speciesDisplay(sp)}: ${p.message}` });
     }
     const byKey = new Map<string, StudentQuantityView>();
     for (const q of r.quantities) {
       for (const n of q.notes) {
-        if (FORMAT_CODES.has(n.code) && !formatNotes.some((f) => f.species === sp && f.message.endsWith(n.message))) formatNotes.push({ species: sp, message: `${speciesDisplay(sp)}: ${n.message}` });
+        if (FORMAT_CODES.has(n.code) && !formatNotes.some((f) => f.species === sp && f.message.endsWith(n.message)))
+          formatNotes.push({ species: sp, message: `${speciesDisplay(sp)}: ${n.message}` });
       }
       if (!showVerdicts) continue;
       const typed = values.find((v) => v.key === q.key && v.species === sp);
@@ -103,7 +126,9 @@ export function studentChecks(input: {
         byKey.set(q.key, view);
         quantities.push(view);
       }
-      const expectedDisplay = Number.isFinite(q.expectedSI) ? expectedToPrecision(q.expectedSI, q.key, typed?.valueText) : q.expectedDisplay;
+      const expectedDisplay = Number.isFinite(q.expectedSI)
+        ? expectedToPrecision(q.expectedSI, q.key, typed?.valueText)
+        : q.expectedDisplay;
       view[q.basis] = { verdict: q.verdict, expectedDisplay, expectedSource: q.expectedSource };
       for (const d of q.diagnoses) {
         if (view.slips.some((s) => s.code === d.code)) continue;
@@ -128,15 +153,28 @@ export async function studentAttemptViews(subs: Submission[], practical: Practic
   const releasedIds = subs.filter((s) => s.releasedAt !== null || s.status === 'released').map((s) => s.id);
   const [values, qdefs, marks, docs] = await Promise.all([
     SubmittedValue.findAll({ where: { submissionId: ids } }),
-    QuantityDefinition.findAll({ where: { practicalId: practical.id }, order: [['position', 'ASC'], ['id', 'ASC']] }),
+    QuantityDefinition.findAll({
+      where: { practicalId: practical.id },
+      order: [
+        ['position', 'ASC'],
+        ['id', 'ASC'],
+      ],
+    }),
     releasedIds.length ? Mark.findAll({ where: { submissionId: releasedIds }, order: [['id', 'ASC']] }) : Promise.resolve([]),
-    releasedIds.length ? FeedbackDocument.findAll({ where: { submissionId: releasedIds }, attributes: ['id', 'submissionId'] }) : Promise.resolve([]),
+    releasedIds.length
+      ? FeedbackDocument.findAll({ where: { submissionId: releasedIds }, attributes: ['id', 'submissionId'] })
+      : Promise.resolve([]),
   ]);
   return subs.map((sub) => {
     const summary = (sub.checkSummary ?? null) as CheckSummary | null;
     const released = releasedIds.includes(sub.id);
     const showVerdicts = practical.mode === 'practice' || released;
-    const checks = studentChecks({ results: summary?.species ?? {}, values: values.filter((v) => v.submissionId === sub.id), qdefs, showVerdicts });
+    const checks = studentChecks({
+      results: summary?.species ?? {},
+      values: values.filter((v) => v.submissionId === sub.id),
+      qdefs,
+      showVerdicts,
+    });
     return {
       id: sub.id,
       attempt: sub.attempt,
@@ -151,7 +189,9 @@ export async function studentAttemptViews(subs: Submission[], practical: Practic
       ...checks,
       spectrum: summary?.spectrum ?? null,
       marks: released
-        ? marks.filter((m) => m.submissionId === sub.id).map((m) => ({ label: m.label, maxMarks: m.maxMarks, awarded: m.awarded ?? m.proposed, comment: m.comment }))
+        ? marks
+            .filter((m) => m.submissionId === sub.id)
+            .map((m) => ({ label: m.label, maxMarks: m.maxMarks, awarded: m.awarded ?? m.proposed, comment: m.comment }))
         : null,
       total: released ? { awarded: sub.awardedTotal ?? sub.proposedTotal, max: sub.maxTotal } : null,
       feedbackUrl: released && docs.some((d) => d.submissionId === sub.id) ? `/api/submissions/${sub.id}/feedback` : null,

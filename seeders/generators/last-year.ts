@@ -17,11 +17,27 @@ import { checkStoredSubmission } from '@/lib/submissions/check';
 import { DEMO_PASSWORD, FIRST_NAMES, LAST_NAMES } from '../data/demo-cast.cjs';
 import { noisyLineList, reportedValues, type DemoLine, type DemoSlip, type DemoValue } from './report';
 
-export const LAST_YEAR = { term: '2025 Autumn', name: 'Group A', instrument: 'FTIR bench 1 (0.5 cm⁻¹)', deadline: '2025-11-14T17:00:00.000Z' };
+export const LAST_YEAR = {
+  term: '2025 Autumn',
+  name: 'Group A',
+  instrument: 'FTIR bench 1 (0.5 cm⁻¹)',
+  deadline: '2025-11-14T17:00:00.000Z',
+};
 const TITLE = 'HCl/DCl fundamental band';
 const ALUMNI = 20;
 // Last year's briefing did not stress 2π in ν = (1/2π)√(k/μ) or SI masses: more of those slips.
-const SLIP_PLAN: readonly DemoSlip[] = ['correct', 'missing-2pi', 'correct', 'mass-numbers-used', 'correct', 'grams-not-kilograms', 'missing-2pi', 'correct', 'r0-reported-as-re', 'correct'];
+const SLIP_PLAN: readonly DemoSlip[] = [
+  'correct',
+  'missing-2pi',
+  'correct',
+  'mass-numbers-used',
+  'correct',
+  'grams-not-kilograms',
+  'missing-2pi',
+  'correct',
+  'r0-reported-as-re',
+  'correct',
+];
 const OVERRIDES: Record<number, { delta: number; comment: string }> = {
   3: { delta: 0.5, comment: 'Method fully correct; only the masses were taken as mass numbers — some credit restored.' },
   9: { delta: -1, comment: 'Band centre read from the strongest line, not the band origin.' },
@@ -47,13 +63,20 @@ export async function seedLastYearDemo(): Promise<{ created: number; skipped: st
   let practical = existingLink ? await Practical.findOne({ where: { id: existingLink.practicalId, title: TITLE } }) : null;
   if (!practical) {
     // The instructor workspace's own copy: quantities and bands, Group A's overrides mapped onto last year's Group A.
-    practical = await copyPractical(source, {
-      title: TITLE,
-      cohortMap: thisYearA ? { [String(thisYearA.id)]: cohort.id } : {},
-      deadlines: [{ cohortId: cohort.id, deadline: LAST_YEAR.deadline }],
-    }, lead.id);
+    practical = await copyPractical(
+      source,
+      {
+        title: TITLE,
+        cohortMap: thisYearA ? { [String(thisYearA.id)]: cohort.id } : {},
+        deadlines: [{ cohortId: cohort.id, deadline: LAST_YEAR.deadline }],
+      },
+      lead.id,
+    );
   }
-  const [taDuty] = await models().TaAssignment.findOrCreate({ where: { cohortId: cohort.id, taId: ta1.id, studentId: null }, defaults: { cohortId: cohort.id, taId: ta1.id, studentId: null } });
+  const [taDuty] = await models().TaAssignment.findOrCreate({
+    where: { cohortId: cohort.id, taId: ta1.id, studentId: null },
+    defaults: { cohortId: cohort.id, taId: ta1.id, studentId: null },
+  });
   void taDuty;
 
   const { hashSync } = await import('bcryptjs');
@@ -69,21 +92,50 @@ export async function seedLastYearDemo(): Promise<{ created: number; skipped: st
       const name = `${FIRST_NAMES[(n * 5 + 3) % FIRST_NAMES.length]} ${LAST_NAMES[(n * 11 + 4) % LAST_NAMES.length]}`;
       student = await User.create({ email, name, passwordHash: hash, isAdmin: false, studentNumber: `NM25${String(3800 + n)}` });
     }
-    await CourseMembership.findOrCreate({ where: { userId: student.id, courseId: course.id, role: 'student' }, defaults: { userId: student.id, courseId: course.id, role: 'student', cohortId: cohort.id } });
+    await CourseMembership.findOrCreate({
+      where: { userId: student.id, courseId: course.id, role: 'student' },
+      defaults: { userId: student.id, courseId: course.id, role: 'student', cohortId: cohort.id },
+    });
     if (await Submission.findOne({ where: { practicalId: practical.id, studentId: student.id, attempt: { [Op.gt]: 0 } } })) continue;
 
     const plan = SLIP_PLAN[n % SLIP_PLAN.length];
     const late = n % 7 === 0 ? 1 : 0;
     const submittedAt = new Date(deadline.getTime() + (late ? 20 : -(ALUMNI - n) * 5) * 3600_000);
     const sub = await Submission.create({
-      practicalId: practical.id, cohortId: cohort.id, studentId: student.id, attempt: 1, status: 'submitted', draft: null,
-      submittedAt, daysLate: late, latePenalty: late ? Math.min(practical.latePenaltyCap, practical.latePenaltyPerDay * late) : 0,
-      flagLate: late > 0, isMarkedAttempt: true, checkSummary: null, lineListHash: null, proposedTotal: null, awardedTotal: null, maxTotal: null,
-      markedById: null, markedAt: null, releasedAt: null, resubmissionMessage: null, version: 0,
+      practicalId: practical.id,
+      cohortId: cohort.id,
+      studentId: student.id,
+      attempt: 1,
+      status: 'submitted',
+      draft: null,
+      submittedAt,
+      daysLate: late,
+      latePenalty: late ? Math.min(practical.latePenaltyCap, practical.latePenaltyPerDay * late) : 0,
+      flagLate: late > 0,
+      isMarkedAttempt: true,
+      checkSummary: null,
+      lineListHash: null,
+      proposedTotal: null,
+      awardedTotal: null,
+      maxTotal: null,
+      markedById: null,
+      markedAt: null,
+      releasedAt: null,
+      resubmissionMessage: null,
+      version: 0,
     });
     const { values, lines } = reportOf(practical.species, plan, 7000 + n);
     await SubmittedValue.bulkCreate(values.map((v) => ({ ...v, submissionId: sub.id, valueSI: null })));
-    await LineAssignment.bulkCreate(lines.map((l) => ({ submissionId: sub.id, species: l.species, branch: l.branch, J: l.J, wavenumber: l.wavenumber, source: 'student' as const })));
+    await LineAssignment.bulkCreate(
+      lines.map((l) => ({
+        submissionId: sub.id,
+        species: l.species,
+        branch: l.branch,
+        J: l.J,
+        wavenumber: l.wavenumber,
+        source: 'student' as const,
+      })),
+    );
     await checkStoredSubmission(sub.id);
 
     // Marking by ta1: the proposal, hand marks for the rubric, and a few overrides with a reason.

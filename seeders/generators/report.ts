@@ -9,13 +9,7 @@ import { bondLengthFromB, fitBandModels, forceConstantFromBand, parseSpecies, si
 
 /** The slip a demo student makes (in H³⁵Cl's values), or none. */
 export type DemoSlip =
-  | 'correct'
-  | 'missing-2pi'
-  | 'mass-numbers-used'
-  | 'grams-not-kilograms'
-  | 'r0-reported-as-re'
-  | 'b0-b1-swapped'
-  | 'unit-mismatch';
+  'correct' | 'missing-2pi' | 'mass-numbers-used' | 'grams-not-kilograms' | 'r0-reported-as-re' | 'b0-b1-swapped' | 'unit-mismatch';
 
 export interface DemoLine {
   species: string;
@@ -51,7 +45,12 @@ export function noisyLineList(species: string, sigma: number, noise: () => numbe
  * `plan` goes into H³⁵Cl's values, except that r₀ is reported as rₑ for every species unless
  * `r0OnlyInH35Cl`. Null when the species or the fit fails.
  */
-export function reportedValues(sp: string, lines: DemoLine[], plan: DemoSlip, options: { r0OnlyInH35Cl?: boolean } = {}): DemoValue[] | null {
+export function reportedValues(
+  sp: string,
+  lines: DemoLine[],
+  plan: DemoSlip,
+  options: { r0OnlyInH35Cl?: boolean } = {},
+): DemoValue[] | null {
   const parsed = parseSpecies(sp);
   if (!parsed.ok) return null;
   const models = fitBandModels(lines);
@@ -78,7 +77,8 @@ export function reportedValues(sp: string, lines: DemoLine[], plan: DemoSlip, op
   const r0Slip = plan === 'r0-reported-as-re' && (slipHere || !options.r0OnlyInH35Cl);
   const re = r0Slip ? bondLengthFromB(fit.B0.value * 100, muKg) : bondLengthFromB(fit.Be.value * 100, muKg);
   const values: DemoValue[] = [];
-  const put = (key: string, valueText: string, unit: string, unc: string | null) => values.push({ key, species: sp, valueText, unit, uncertaintyText: unc });
+  const put = (key: string, valueText: string, unit: string, unc: string | null) =>
+    values.push({ key, species: sp, valueText, unit, uncertaintyText: unc });
   put('bandCentre', nu0.toFixed(1), 'cm-1', '0.3');
   put('reducedMass', kMu.toFixed(5), 'u', null);
   put('forceConstant', k.toPrecision(4), kUnit, (k * 0.002).toPrecision(1));

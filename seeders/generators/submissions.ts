@@ -13,7 +13,18 @@ import { mulberry32, gaussian, synthesizeSpectrum, toJcampDx } from '@/lib/spect
 import { checkStoredSubmission } from '@/lib/submissions/check';
 import { noisyLineList, reportedValues, type DemoLine, type DemoSlip, type DemoValue } from './report';
 
-const SLIP_PLAN: readonly DemoSlip[] = ['correct', 'mass-numbers-used', 'missing-2pi', 'correct', 'grams-not-kilograms', 'r0-reported-as-re', 'b0-b1-swapped', 'unit-mismatch', 'correct', 'correct'];
+const SLIP_PLAN: readonly DemoSlip[] = [
+  'correct',
+  'mass-numbers-used',
+  'missing-2pi',
+  'correct',
+  'grams-not-kilograms',
+  'r0-reported-as-re',
+  'b0-b1-swapped',
+  'unit-mismatch',
+  'correct',
+  'correct',
+];
 const SKIP = new Set([1, 21, 15, 35]);
 
 export async function seedDemoSubmissions(): Promise<{ created: number; skipped: string | null }> {
@@ -39,10 +50,27 @@ export async function seedDemoSubmissions(): Promise<{ created: number; skipped:
     const plan = SLIP_PLAN[n % SLIP_PLAN.length];
     const late = n % 9 === 0 ? 1 + (n % 2) : 0;
     const sub = await Submission.create({
-      practicalId: practical.id, cohortId: cohort.id, studentId: student.id, attempt: 1, status: 'submitted', draft: null,
-      submittedAt: new Date(Date.now() - (40 - n) * 3600_000), daysLate: late, latePenalty: late ? Math.min(practical.latePenaltyCap, practical.latePenaltyPerDay * late) : 0,
-      flagLate: late > 0, isMarkedAttempt: true, checkSummary: null, lineListHash: null, proposedTotal: null, awardedTotal: null, maxTotal: null,
-      markedById: null, markedAt: null, releasedAt: null, resubmissionMessage: null, version: 0,
+      practicalId: practical.id,
+      cohortId: cohort.id,
+      studentId: student.id,
+      attempt: 1,
+      status: 'submitted',
+      draft: null,
+      submittedAt: new Date(Date.now() - (40 - n) * 3600_000),
+      daysLate: late,
+      latePenalty: late ? Math.min(practical.latePenaltyCap, practical.latePenaltyPerDay * late) : 0,
+      flagLate: late > 0,
+      isMarkedAttempt: true,
+      checkSummary: null,
+      lineListHash: null,
+      proposedTotal: null,
+      awardedTotal: null,
+      maxTotal: null,
+      markedById: null,
+      markedAt: null,
+      releasedAt: null,
+      resubmissionMessage: null,
+      version: 0,
     });
     const values: DemoValue[] = [];
     const allLines: DemoLine[] = [];
@@ -52,13 +80,44 @@ export async function seedDemoSubmissions(): Promise<{ created: number; skipped:
       values.push(...(reportedValues(sp, lines, plan) ?? []));
     }
     await SubmittedValue.bulkCreate(values.map((v) => ({ ...v, submissionId: sub.id, valueSI: null })));
-    await LineAssignment.bulkCreate(allLines.map((l) => ({ submissionId: sub.id, species: l.species, branch: l.branch, J: l.J, wavenumber: l.wavenumber, source: 'student' as const })));
+    await LineAssignment.bulkCreate(
+      allLines.map((l) => ({
+        submissionId: sub.id,
+        species: l.species,
+        branch: l.branch,
+        J: l.J,
+        wavenumber: l.wavenumber,
+        source: 'student' as const,
+      })),
+    );
     if (n % 3 !== 0) {
-      const spectrum = synthesizeSpectrum({ lines: allLines.map((l) => ({ wavenumber: l.wavenumber, intensity: l.intensity })), from: 1950, to: 3150, step: 0.25, fwhm: 0.8, noise: 0.003, seed: 500 + n, title: `SYNTHETIC demo spectrum, student ${n}` });
-      const text = toJcampDx(spectrum, { title: `SYNTHETIC HCl/DCl demo spectrum ${n} (not a measurement)`, origin: 'Oscillab demo seeder', owner: 'Public domain (synthetic data)' });
+      const spectrum = synthesizeSpectrum({
+        lines: allLines.map((l) => ({ wavenumber: l.wavenumber, intensity: l.intensity })),
+        from: 1950,
+        to: 3150,
+        step: 0.25,
+        fwhm: 0.8,
+        noise: 0.003,
+        seed: 500 + n,
+        title: `SYNTHETIC demo spectrum, student ${n}`,
+      });
+      const text = toJcampDx(spectrum, {
+        title: `SYNTHETIC HCl/DCl demo spectrum ${n} (not a measurement)`,
+        origin: 'Oscillab demo seeder',
+        owner: 'Public domain (synthetic data)',
+      });
       const storedName = `${crypto.randomBytes(16).toString('hex')}.jdx`;
       fs.writeFileSync(uploadPath(storedName), text);
-      await Upload.create({ ownerId: student.id, submissionId: sub.id, kind: 'spectrum', originalName: `hcl-dcl-bench-${n}.jdx`, storedName, sha256: crypto.createHash('sha256').update(text).digest('hex'), size: Buffer.byteLength(text), contentType: 'chemical/x-jcamp-dx' });
+      await Upload.create({
+        ownerId: student.id,
+        submissionId: sub.id,
+        kind: 'spectrum',
+        originalName: `hcl-dcl-bench-${n}.jdx`,
+        storedName,
+        sha256: crypto.createHash('sha256').update(text).digest('hex'),
+        size: Buffer.byteLength(text),
+        contentType: 'chemical/x-jcamp-dx',
+      });
     }
     await checkStoredSubmission(sub.id);
     created++;

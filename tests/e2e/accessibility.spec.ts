@@ -26,7 +26,9 @@ async function scan(page: Page, label: string): Promise<string[]> {
   return bad.map(
     (v) =>
       `${label} (${new URL(page.url()).pathname}): [${v.impact}] ${v.id} — ${v.help}\n` +
-      v.nodes.map((n) => `    at ${n.target.join(' ')}${n.failureSummary ? `\n      ${n.failureSummary.replace(/\n/g, '\n      ')}` : ''}`).join('\n'),
+      v.nodes
+        .map((n) => `    at ${n.target.join(' ')}${n.failureSummary ? `\n      ${n.failureSummary.replace(/\n/g, '\n      ')}` : ''}`)
+        .join('\n'),
   );
 }
 

@@ -70,7 +70,9 @@ test('signing out returns to the sign-in page and closes the session', async ({ 
   await expect(page).toHaveURL(/\/signin\?next=%2Fmarking$/);
 });
 
-test('the header links every page a role works in: a course lead reaches courses and moderation, a student only their own', async ({ page }) => {
+test('the header links every page a role works in: a course lead reaches courses and moderation, a student only their own', async ({
+  page,
+}) => {
   await signIn(page, 'lead@northmere.example');
   const nav = page.getByRole('navigation', { name: 'Main' });
   await expect(nav.getByRole('link', { name: 'Cohort statistics' })).toHaveAttribute('aria-current', 'page');

@@ -11,7 +11,11 @@ async function signIn(page: Page, email: string, password = PASSWORD) {
   await page.getByRole('button', { name: 'Sign in' }).click();
 }
 
-test('an instructor sets up a cohort, a roster and a practical with per-cohort bands; the invitation sets a password', async ({ page, browser, baseURL }) => {
+test('an instructor sets up a cohort, a roster and a practical with per-cohort bands; the invitation sets a password', async ({
+  page,
+  browser,
+  baseURL,
+}) => {
   test.setTimeout(120_000);
   const stamp = Date.now().toString(36);
   const cohort = `Group E2E ${stamp}`;
@@ -19,7 +23,10 @@ test('an instructor sets up a cohort, a roster and a practical with per-cohort b
 
   await signIn(page, 'instructor1@northmere.example');
   await expect(page).toHaveURL(/\/courses$/);
-  await page.getByRole('link', { name: /CHEM2041/ }).first().click();
+  await page
+    .getByRole('link', { name: /CHEM2041/ })
+    .first()
+    .click();
   await expect(page.getByRole('heading', { level: 1, name: /CHEM2041/ })).toBeVisible();
 
   // A new cohort on the coarser bench.

@@ -22,7 +22,10 @@ async function signIn(page: Page, email: string) {
   await page.waitForURL((u) => !u.pathname.startsWith('/signin'), { timeout: 30000 });
 }
 
-test('a correct long line list without D reported: every rotational constant within; the marking screen shows no arc', async ({ page, browser }) => {
+test('a correct long line list without D reported: every rotational constant within; the marking screen shows no arc', async ({
+  page,
+  browser,
+}) => {
   test.setTimeout(120_000);
   const k = PUBLISHED.H35Cl;
   const mu = speciesMassU(k);
@@ -32,7 +35,10 @@ test('a correct long line list without D reported: every rotational constant wit
   await signIn(page, 'student21@northmere.example');
   await page.goto('/student');
   await page.getByRole('link', { name: 'HCl/DCl fundamental band' }).click();
-  await page.getByLabel(/Line list for H/).first().fill(pasted);
+  await page
+    .getByLabel(/Line list for H/)
+    .first()
+    .fill(pasted);
   await expect(page.getByText(/21 lines read/)).toBeVisible();
 
   const h = 'H35Cl';
@@ -51,7 +57,13 @@ test('a correct long line list without D reported: every rotational constant wit
   await page.getByRole('button', { name: 'Submit…' }).click();
   await page.getByRole('dialog').getByRole('button', { name: 'Submit this attempt' }).click();
   await expect(page.getByRole('heading', { name: 'Result of your submission' })).toBeVisible({ timeout: 30000 });
-  for (const label of ['Rotational constant B₀', 'Rotational constant B₁', 'Equilibrium rotational constant Bₑ', 'Vibration–rotation constant αₑ', 'Equilibrium bond length rₑ']) {
+  for (const label of [
+    'Rotational constant B₀',
+    'Rotational constant B₁',
+    'Equilibrium rotational constant Bₑ',
+    'Vibration–rotation constant αₑ',
+    'Equilibrium bond length rₑ',
+  ]) {
     const row = page.locator('tr', { has: page.getByText(label, { exact: false }) }).first();
     await expect(row.locator('td').nth(2), label).toContainText('within tolerance');
   }

@@ -13,7 +13,10 @@ const PLATFORM = process.env.E2E_PLATFORM_URL ?? 'http://127.0.0.1:3150';
 const shots = 'test-results/lti';
 
 async function shoot(page: Page, name: string) {
-  for (const [w, h] of [[1440, 900], [390, 844]] as const) {
+  for (const [w, h] of [
+    [1440, 900],
+    [390, 844],
+  ] as const) {
     await page.setViewportSize({ width: w, height: h });
     await page.screenshot({ path: `${shots}/${name}-${w}.png`, fullPage: true });
   }
@@ -42,7 +45,9 @@ test('an instructor places an Oscillab practical in the platform course by deep 
   itemId = item.id;
 });
 
-test('a student launches from the platform page: the frame offers a new window, which lands signed in on the practical', async ({ page }) => {
+test('a student launches from the platform page: the frame offers a new window, which lands signed in on the practical', async ({
+  page,
+}) => {
   const violations: string[] = [];
   page.on('console', (m) => {
     if (/Refused to (frame|display)|frame-ancestors|X-Frame-Options/i.test(m.text())) violations.push(m.text());
@@ -70,23 +75,34 @@ test('a student launches from the platform page: the frame offers a new window, 
 
 test('a refused launch (a role Oscillab has nothing for) shows a clear page in the new window', async ({ page }) => {
   await page.goto(`${PLATFORM}/launch?item=${encodeURIComponent(itemId)}`);
-  const [popup] = await Promise.all([page.waitForEvent('popup'), page.getByRole('button', { name: 'Launch as Casimir Dorn in a new window' }).click()]);
+  const [popup] = await Promise.all([
+    page.waitForEvent('popup'),
+    page.getByRole('button', { name: 'Launch as Casimir Dorn in a new window' }).click(),
+  ]);
   await expect(popup.getByRole('heading', { name: 'Oscillab has nothing for your role here' })).toBeVisible({ timeout: 30_000 });
   await expect(popup.getByText('Mentor')).toBeVisible();
   await shoot(popup, 'refused-role');
 });
 
-test('a TA from the platform releases a marked submission; the score reaches the platform gradebook and shows as sent', async ({ page }) => {
+test('a TA from the platform releases a marked submission; the score reaches the platform gradebook and shows as sent', async ({
+  page,
+}) => {
   test.setTimeout(120_000);
   // Vesna Whitlock (student22, Group B: the other browser tests use Group A's queue) launches once, so Oscillab knows her platform id.
   await page.goto(`${PLATFORM}/launch?item=${encodeURIComponent(itemId)}`);
-  const [student] = await Promise.all([page.waitForEvent('popup'), page.getByRole('button', { name: 'Launch as Vesna Whitlock in a new window' }).click()]);
+  const [student] = await Promise.all([
+    page.waitForEvent('popup'),
+    page.getByRole('button', { name: 'Launch as Vesna Whitlock in a new window' }).click(),
+  ]);
   await student.waitForURL(/\/student\/practicals\/\d+$/, { timeout: 30_000 });
   await student.close();
   await page.context().clearCookies();
 
   await page.goto(`${PLATFORM}/launch?item=${encodeURIComponent(itemId)}`);
-  const [ta] = await Promise.all([page.waitForEvent('popup'), page.getByRole('button', { name: 'Launch as Tomas Vey in a new window' }).click()]);
+  const [ta] = await Promise.all([
+    page.waitForEvent('popup'),
+    page.getByRole('button', { name: 'Launch as Tomas Vey in a new window' }).click(),
+  ]);
   await ta.waitForURL(/\/marking$/, { timeout: 30_000 });
   const origin = new URL(ta.url()).origin;
   const queue = await (await ta.request.get('/api/marking/queue?sort=student&pageSize=100')).json();
@@ -95,7 +111,9 @@ test('a TA from the platform releases a marked submission; the score reaches the
   const headers = { origin, 'content-type': 'application/json' };
   const accepted = await (await ta.request.post(`/api/marking/${row.id}/accept`, { headers, data: { version: row.version } })).json();
   const view = await (await ta.request.get(`/api/marking/${row.id}`)).json();
-  const hand = view.marks.filter((m: { handMarked: boolean }) => m.handMarked).map((m: { itemKey: string; maxMarks: number }) => ({ itemKey: m.itemKey, awarded: m.maxMarks - 1 }));
+  const hand = view.marks
+    .filter((m: { handMarked: boolean }) => m.handMarked)
+    .map((m: { itemKey: string; maxMarks: number }) => ({ itemKey: m.itemKey, awarded: m.maxMarks - 1 }));
   const saved = await ta.request.put(`/api/marking/${row.id}`, { headers, data: { version: accepted.version, items: hand } });
   expect(saved.status()).toBe(200);
   const released = await (await ta.request.post('/api/release', { headers, data: { submissionIds: [row.id] } })).json();
@@ -119,7 +137,9 @@ test('a TA from the platform releases a marked submission; the score reaches the
   await shoot(ta, 'marking-score-delivery');
 });
 
-test('the administrator sees the URLs to copy; the instructor compares the course with the platform roster (writing nothing)', async ({ page }) => {
+test('the administrator sees the URLs to copy; the instructor compares the course with the platform roster (writing nothing)', async ({
+  page,
+}) => {
   await page.goto('/signin');
   await page.locator('#email').fill('admin@northmere.example');
   await page.locator('#password').fill('northmere-demo-26');
@@ -138,7 +158,10 @@ test('the administrator sees the URLs to copy; the instructor compares the cours
   await page.getByRole('button', { name: 'Sign in' }).click();
   await page.waitForURL((u) => !u.pathname.startsWith('/signin'));
   await page.goto('/courses');
-  await page.getByRole('link', { name: /CHEM2041/ }).first().click();
+  await page
+    .getByRole('link', { name: /CHEM2041/ })
+    .first()
+    .click();
   await page.getByRole('link', { name: 'Learning platform' }).click();
   await page.getByRole('button', { name: 'Compare with the platform' }).click();
   const table = page.getByRole('table', { name: 'Roster comparison' });

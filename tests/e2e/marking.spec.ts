@@ -54,7 +54,8 @@ test('a TA marks with an override, releases five, and the feedback arrives', asy
   await page.getByRole('button', { name: 'Save marks' }).click();
   await expect(page.getByTestId('marking-problem')).toContainText(/comment/i);
   await row.locator('textarea').fill('The method is right; half a mark back for the working shown.');
-  for (const hand of await page.locator('tr[data-item^="rubric:"] input[type=number]').all()) if (!(await hand.inputValue())) await hand.fill('1');
+  for (const hand of await page.locator('tr[data-item^="rubric:"] input[type=number]').all())
+    if (!(await hand.inputValue())) await hand.fill('1');
   await page.getByRole('button', { name: 'Save marks' }).click();
   await expect(page.getByTestId('marking-status')).toContainText(/Saved/);
   // The total reads as one sum, and the next submission is one click away.
@@ -68,7 +69,8 @@ test('a TA marks with an override, releases five, and the feedback arrives', asy
     const next = page.locator('tbody tr[data-submission]').first();
     await expect(next).toBeVisible();
     await page.goto(`/marking/${await next.getAttribute('data-submission')}`);
-    for (const hand of await page.locator('tr[data-item^="rubric:"] input[type=number]').all()) if (!(await hand.inputValue())) await hand.fill('1');
+    for (const hand of await page.locator('tr[data-item^="rubric:"] input[type=number]').all())
+      if (!(await hand.inputValue())) await hand.fill('1');
     await page.getByRole('button', { name: 'Save marks' }).click();
     await expect(page.getByTestId('marking-status')).toContainText(/Saved: marked/);
   }
@@ -93,23 +95,38 @@ test('a TA marks with an override, releases five, and the feedback arrives', asy
   await expect(page.getByTestId('queue-message')).toContainText('Released 5 of 5');
 
   // Five e-mails, each with a PDF attachment.
-  let mails: { id: string; to: { address: string }[]; attachments?: { generatedFileName: string; contentType: string }[]; subject: string }[] = [];
-  await expect.poll(async () => {
-    mails = ((await (await fetch(`${api()}/api/email`)).json()) as typeof mails).filter((m) => m.subject.startsWith('Feedback released'));
-    return mails.length;
-  }, { timeout: 30_000 }).toBe(5);
+  let mails: {
+    id: string;
+    to: { address: string }[];
+    attachments?: { generatedFileName: string; contentType: string }[];
+    subject: string;
+  }[] = [];
+  await expect
+    .poll(
+      async () => {
+        mails = ((await (await fetch(`${api()}/api/email`)).json()) as typeof mails).filter((m) =>
+          m.subject.startsWith('Feedback released'),
+        );
+        return mails.length;
+      },
+      { timeout: 30_000 },
+    )
+    .toBe(5);
   for (const m of mails) expect(m.attachments?.[0]?.contentType).toBe('application/pdf');
 
   // The overridden submission's PDF: the student's values and the named slip.
   const view = await (await page.request.get(`/api/marking/${markedId}`)).json();
   const studentEmail: string = view.student.email;
-  const typed: string = view.quantities.find((q: { key: string }) => q.key === 'forceConstant')?.reportedTyped ?? view.quantities[0].reportedTyped;
+  const typed: string =
+    view.quantities.find((q: { key: string }) => q.key === 'forceConstant')?.reportedTyped ?? view.quantities[0].reportedTyped;
   const mail = mails.find((m) => m.to.some((t) => t.address.toLowerCase() === studentEmail.toLowerCase()))!;
   expect(mail).toBeTruthy();
   // The e-mail links to the released attempt on the practical's page, not to the student home.
   const full = (await (await fetch(`${api()}/api/email/${mail.id}`)).json()) as { text: string };
   expect(full.text).toMatch(new RegExp(`/student/practicals/\\d+#attempt-${markedId}`));
-  const fromMail = Buffer.from(await (await fetch(`${api()}/api/email/${mail.id}/attachment/${mail.attachments![0].generatedFileName}`)).arrayBuffer());
+  const fromMail = Buffer.from(
+    await (await fetch(`${api()}/api/email/${mail.id}/attachment/${mail.attachments![0].generatedFileName}`)).arrayBuffer(),
+  );
   const text = pdfText(fromMail);
   expect(text).toContain(typed.split(' ')[0]);
   if (view.slips.length) expect(text).toContain(view.slips[0].title);

@@ -38,12 +38,16 @@ async function fits(page: Page, info: TestInfo, path: string, name: string, prob
     wide: [...document.querySelectorAll('body *')]
       .filter((el) => el.getBoundingClientRect().right > window.innerWidth + 1 && !el.closest('.table-scroll, [role=region]'))
       .slice(0, 3)
-      .map((el) => `${el.tagName.toLowerCase()}${el.id ? `#${el.id}` : ''}.${(el.getAttribute('class') ?? '').split(' ').slice(0, 3).join('.')}`),
+      .map(
+        (el) =>
+          `${el.tagName.toLowerCase()}${el.id ? `#${el.id}` : ''}.${(el.getAttribute('class') ?? '').split(' ').slice(0, 3).join('.')}`,
+      ),
   }));
   const file = info.outputPath(`${name}.png`);
   await page.screenshot({ path: file, fullPage: true });
   await info.attach(name, { path: file, contentType: 'image/png' });
-  if (scrollWidth > innerWidth) problems.push(`${name} (${path}): ${scrollWidth} px wide on a ${innerWidth} px screen; sticking out: ${wide.join(', ')}`);
+  if (scrollWidth > innerWidth)
+    problems.push(`${name} (${path}): ${scrollWidth} px wide on a ${innerWidth} px screen; sticking out: ${wide.join(', ')}`);
 }
 
 test('student pages fit a phone', async ({ page }, info) => {

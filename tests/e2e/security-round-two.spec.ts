@@ -41,7 +41,9 @@ async function sql(statement: string, values: unknown[] = []): Promise<Record<st
   const file = (process.env.DATABASE_URL ?? '').replace(/^sqlite:/, '');
   const db = new sqlite3.Database(file);
   try {
-    return await new Promise((resolve, reject) => db.all(statement, values, (err: Error | null, rows: Record<string, unknown>[]) => (err ? reject(err) : resolve(rows))));
+    return await new Promise((resolve, reject) =>
+      db.all(statement, values, (err: Error | null, rows: Record<string, unknown>[]) => (err ? reject(err) : resolve(rows))),
+    );
   } finally {
     db.close();
   }
@@ -118,7 +120,10 @@ test('"Sign out everywhere" in the account menu ends the sessions on other devic
   await phone.close();
 });
 
-test('a client cannot become a new address by writing X-Forwarded-For: the (account, address) block holds', async ({ browser, baseURL }) => {
+test('a client cannot become a new address by writing X-Forwarded-For: the (account, address) block holds', async ({
+  browser,
+  baseURL,
+}) => {
   // Five wrong passwords for one account (the pair limit), each claiming another address; then the right password
   // with yet another claimed address. Without a trusted proxy every one of them is this connection.
   const ctx = await browser.newContext({ baseURL });
@@ -145,7 +150,7 @@ test('the administrator opens the moderation page, as its API allows', async ({ 
   await expect(page.getByRole('heading', { name: 'Moderation' })).toBeVisible();
 });
 
-test('pages carry object-src \'none\'; user files a sandboxed policy of their own', async ({ request }) => {
+test("pages carry object-src 'none'; user files a sandboxed policy of their own", async ({ request }) => {
   const page = await request.get('/signin');
   expect(page.headers()['content-security-policy']).toContain("object-src 'none'");
   for (const p of ['/api/uploads/1', '/api/marking/1/preview', '/api/submissions/1/feedback']) {

@@ -49,7 +49,10 @@ async function settle(page: Page) {
 
 function directives(csp: string): Map<string, string[]> {
   const map = new Map<string, string[]>();
-  for (const part of csp.split(';').map((p) => p.trim()).filter(Boolean)) {
+  for (const part of csp
+    .split(';')
+    .map((p) => p.trim())
+    .filter(Boolean)) {
     const [name, ...values] = part.split(/\s+/);
     map.set(name.toLowerCase(), values);
   }
@@ -57,7 +60,10 @@ function directives(csp: string): Map<string, string[]> {
 }
 
 function setCookies(response: APIResponse): string[] {
-  return response.headersArray().filter((h) => h.name.toLowerCase() === 'set-cookie').map((h) => h.value);
+  return response
+    .headersArray()
+    .filter((h) => h.name.toLowerCase() === 'set-cookie')
+    .map((h) => h.value);
 }
 
 /** next-auth's credentials callback on the https-URL server; returns the Set-Cookie lines of the answer. */
@@ -82,7 +88,11 @@ async function signInSecure(api: APIRequestContext, email: string): Promise<stri
 
 const cookieNamed = (lines: string[], name: string) => lines.find((l) => l.startsWith(`${name}=`));
 const cookieValue = (line: string) => line.slice(line.indexOf('=') + 1).split(';')[0];
-const attributes = (line: string) => line.split(';').slice(1).map((a) => a.trim().toLowerCase());
+const attributes = (line: string) =>
+  line
+    .split(';')
+    .slice(1)
+    .map((a) => a.trim().toLowerCase());
 
 test.describe('security headers', () => {
   for (const path of ['/signin', '/reset', '/api/me', '/fonts/DejaVuSans.ttf']) {
@@ -108,7 +118,10 @@ test.describe('security headers', () => {
       expect(csp).not.toMatch(/(^|\s)\*(\s|;|$)|https?:/);
       for (const name of ['connect-src', 'img-src', 'font-src', 'style-src']) {
         expect(policy.get(name), name).toContain("'self'");
-        expect(policy.get(name)!.some((v) => /^https?:|^\*$/.test(v)), `${name} names no other host`).toBe(false);
+        expect(
+          policy.get(name)!.some((v) => /^https?:|^\*$/.test(v)),
+          `${name} names no other host`,
+        ).toBe(false);
       }
     });
   }
@@ -191,7 +204,10 @@ test.describe('cookies', () => {
     await signIn(page, 'student08@northmere.example');
     const raw = await (await callback).headersArray();
     await expect(page).toHaveURL(/\/student$/);
-    const session = raw.filter((h) => h.name.toLowerCase() === 'set-cookie').map((h) => h.value).find((v) => v.startsWith('next-auth.session-token='));
+    const session = raw
+      .filter((h) => h.name.toLowerCase() === 'set-cookie')
+      .map((h) => h.value)
+      .find((v) => v.startsWith('next-auth.session-token='));
     expect(session, 'Set-Cookie for the session').toBeTruthy();
     expect(attributes(session!)).toEqual(expect.arrayContaining(['httponly', 'samesite=lax', 'path=/']));
 
@@ -203,7 +219,10 @@ test.describe('cookies', () => {
   });
 
   test('behind an https URL, next-auth cookies are Secure with __Secure-/__Host- names, and the app accepts them', async () => {
-    const api = await playwrightRequest.newContext({ baseURL: SECURE_URL, extraHTTPHeaders: { origin: SECURE_URL.replace('http://', 'https://') } });
+    const api = await playwrightRequest.newContext({
+      baseURL: SECURE_URL,
+      extraHTTPHeaders: { origin: SECURE_URL.replace('http://', 'https://') },
+    });
     try {
       const csrf = await api.get('/api/auth/csrf');
       expect(csrf.status()).toBe(200);
@@ -236,19 +255,28 @@ test.describe('cookies', () => {
 });
 
 test.describe('cross-site requests', () => {
-  test('a POST to an API route from another origin gets 403; the same request from this origin is judged on its content', async ({ page, baseURL }) => {
+  test('a POST to an API route from another origin gets 403; the same request from this origin is judged on its content', async ({
+    page,
+    baseURL,
+  }) => {
     await signIn(page, 'instructor1@northmere.example');
     await expect(page).toHaveURL(/\/courses$/);
     // page.request shares the signed-in cookies, as a forged request riding on the session would.
     const evil = await page.request.post('/api/courses', { data: { code: 'X', title: '' }, headers: { origin: 'https://evil.example' } });
     expect(evil.status()).toBe(403);
     expect((await evil.json()).error).toMatch(/Cross-site request refused/);
-    const noOrigin = await page.request.post('/api/courses', { data: { code: 'X', title: '' }, headers: { 'sec-fetch-site': 'cross-site' } });
+    const noOrigin = await page.request.post('/api/courses', {
+      data: { code: 'X', title: '' },
+      headers: { 'sec-fetch-site': 'cross-site' },
+    });
     expect(noOrigin.status()).toBe(403);
     const own = await page.request.post('/api/courses', { data: { code: 'X', title: '' }, headers: { origin: baseURL! } });
     expect(own.status()).toBe(400);
 
-    const reset = await page.request.post('/api/password-reset', { data: { email: 'student10@northmere.example' }, headers: { origin: 'https://evil.example' } });
+    const reset = await page.request.post('/api/password-reset', {
+      data: { email: 'student10@northmere.example' },
+      headers: { origin: 'https://evil.example' },
+    });
     expect(reset.status()).toBe(403);
   });
 
@@ -257,7 +285,10 @@ test.describe('cross-site requests', () => {
     await page.setContent(
       `<form method="post" action="${baseURL}/api/password-reset" enctype="text/plain"><input name='{"email":"student10@northmere.example","x":"' value='"}'><button>go</button></form>`,
     );
-    const [response] = await Promise.all([page.waitForResponse(`${baseURL}/api/password-reset`), page.getByRole('button', { name: 'go' }).click()]);
+    const [response] = await Promise.all([
+      page.waitForResponse(`${baseURL}/api/password-reset`),
+      page.getByRole('button', { name: 'go' }).click(),
+    ]);
     expect(response.status()).toBe(403);
   });
 });
@@ -349,8 +380,16 @@ test.describe('slow uploads', () => {
       socket.on('error', reject);
       socket.on('connect', () => {
         socket.write(
-          [`POST /api/uploads HTTP/1.1`, `Host: ${hostname}:${port}`, `Origin: ${url}`, `Cookie: ${cookie}`,
-            `Content-Type: multipart/form-data; boundary=${boundary}`, `Content-Length: 200000`, '', ''].join('\r\n') + start,
+          [
+            `POST /api/uploads HTTP/1.1`,
+            `Host: ${hostname}:${port}`,
+            `Origin: ${url}`,
+            `Cookie: ${cookie}`,
+            `Content-Type: multipart/form-data; boundary=${boundary}`,
+            `Content-Length: 200000`,
+            '',
+            '',
+          ].join('\r\n') + start,
         );
         sentAt = Date.now();
       });
@@ -364,10 +403,14 @@ test.describe('slow uploads', () => {
   }
 
   test('an upload that stalls is answered 408 by the server after its idle limit, and leaves no partial file', async () => {
-    const api = await playwrightRequest.newContext({ baseURL: SECURE_URL, extraHTTPHeaders: { origin: SECURE_URL.replace('http://', 'https://') } });
+    const api = await playwrightRequest.newContext({
+      baseURL: SECURE_URL,
+      extraHTTPHeaders: { origin: SECURE_URL.replace('http://', 'https://') },
+    });
     try {
       const session = await signInSecure(api, 'student10@northmere.example');
-      const partials = () => (fs.existsSync(process.env.UPLOAD_DIR!) ? fs.readdirSync(process.env.UPLOAD_DIR!).filter((f) => f.endsWith('.part')) : []);
+      const partials = () =>
+        fs.existsSync(process.env.UPLOAD_DIR!) ? fs.readdirSync(process.env.UPLOAD_DIR!).filter((f) => f.endsWith('.part')) : [];
       const before = partials();
       const answer = await stalledUpload(SECURE_URL, `__Secure-next-auth.session-token=${session}`);
       expect(answer.head.split('\r\n')[0]).toBe('HTTP/1.1 408 Request Timeout');

@@ -11,8 +11,20 @@ import { bandLines, record } from '../helpers/diatomic-lines';
 
 function twoBandFile(): Buffer {
   const lines = [...bandLines('H35Cl', 1), ...bandLines('H37Cl', 1), ...bandLines('D35Cl', 1), ...bandLines('D37Cl', 1)];
-  const spectrum = record({ lines, from: 1850, to: 3200, step: 0.25, resolution: 0.5, noise: 5e-4, seed: 21, baselineSlope: 1e-5, yKind: 'transmittance' });
-  return Buffer.from(toJcampDx(spectrum, { title: 'SYNTHETIC HCl + DCl cell (test)', notes: ['SYNTHETIC test spectrum, not a measurement.'] }));
+  const spectrum = record({
+    lines,
+    from: 1850,
+    to: 3200,
+    step: 0.25,
+    resolution: 0.5,
+    noise: 5e-4,
+    seed: 21,
+    baselineSlope: 1e-5,
+    yKind: 'transmittance',
+  });
+  return Buffer.from(
+    toJcampDx(spectrum, { title: 'SYNTHETIC HCl + DCl cell (test)', notes: ['SYNTHETIC test spectrum, not a measurement.'] }),
+  );
 }
 
 test('a student uploads a two-band spectrum, takes the lines from it, and the match summary names each band', async ({ page }) => {
@@ -33,7 +45,9 @@ test('a student uploads a two-band spectrum, takes the lines from it, and the ma
 
   await page.getByRole('button', { name: 'Take the lines from my spectrum' }).click();
   const taken = page.getByTestId('taken-lines');
-  await expect(taken.getByText(/^H³⁵Cl: \d+ lines of the fundamental \(1←0\), P\(1\)–P\(\d+\), R\(0\)–R\(\d+\)$/)).toBeVisible({ timeout: 30000 });
+  await expect(taken.getByText(/^H³⁵Cl: \d+ lines of the fundamental \(1←0\), P\(1\)–P\(\d+\), R\(0\)–R\(\d+\)$/)).toBeVisible({
+    timeout: 30000,
+  });
   await expect(taken.getByText(/^D³⁵Cl: \d+ lines of the fundamental \(1←0\)/)).toBeVisible();
   await page.getByRole('button', { name: 'Use these lines' }).click();
 
@@ -47,6 +61,8 @@ test('a student uploads a two-band spectrum, takes the lines from it, and the ma
 
   // The match summary counts the student's lines per isotopologue and band, naming each band.
   const summary = page.getByTestId('match-summary');
-  await expect(summary.getByText(/H³⁵Cl fundamental \(1←0\): (\d+) of \1 of your lines match a peak of your spectrum/)).toBeVisible({ timeout: 30000 });
+  await expect(summary.getByText(/H³⁵Cl fundamental \(1←0\): (\d+) of \1 of your lines match a peak of your spectrum/)).toBeVisible({
+    timeout: 30000,
+  });
   await expect(summary.getByText(/D³⁵Cl fundamental \(1←0\): (\d+) of \1 of your lines match a peak of your spectrum/)).toBeVisible();
 });

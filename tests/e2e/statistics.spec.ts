@@ -14,7 +14,10 @@ test('course lead sees cohort statistics and downloads the marks CSV', async ({ 
 
   await page.goto('/statistics');
   await expect(page.getByRole('heading', { level: 1, name: 'Cohort statistics' })).toBeVisible();
-  await page.getByRole('link', { name: /Group A/ }).first().click();
+  await page
+    .getByRole('link', { name: /Group A/ })
+    .first()
+    .click();
   await expect(page.getByRole('heading', { level: 1, name: /Statistics:/ })).toBeVisible();
   await expect(page.getByRole('heading', { name: /Submissions — Group A/ })).toBeVisible();
 
@@ -31,7 +34,9 @@ test('course lead sees cohort statistics and downloads the marks CSV', async ({ 
   expect(found.length).toBeGreaterThan(0);
   for (const cell of found) {
     expect(cell).not.toMatch(/\b(forceConstant|reducedMass|bandCentre|alphaE|B0|B1|Be|re|r0)\b/);
-    expect(cell).toMatch(/Force constant|Reduced mass|Band centre|Rotational constant|Vibration–rotation|bond length|Isotope|Harmonic|Anharmonicity|Dissociation|Zero-point|Centrifugal/);
+    expect(cell).toMatch(
+      /Force constant|Reduced mass|Band centre|Rotational constant|Vibration–rotation|bond length|Isotope|Harmonic|Anharmonicity|Dissociation|Zero-point|Centrifugal/,
+    );
   }
   // Deviations read as people write them: no e-notation anywhere in the figures.
   expect(await page.locator('main').innerText()).not.toMatch(/\d(\.\d+)?e[-+]?\d/);
@@ -40,6 +45,8 @@ test('course lead sees cohort statistics and downloads the marks CSV', async ({ 
   await page.getByRole('link', { name: /Marks CSV/ }).click();
   const file = await (await download).path();
   const text = fs.readFileSync(file!, 'utf8').replace(/^\ufeff/, '');
-  expect(text.split(/\r?\n/)[0]).toMatch(/^student_number,name,email,cohort,practical,attempt,submitted_at,late_days,late_penalty_percent,.*total,max_total,status$/);
+  expect(text.split(/\r?\n/)[0]).toMatch(
+    /^student_number,name,email,cohort,practical,attempt,submitted_at,late_days,late_penalty_percent,.*total,max_total,status$/,
+  );
   expect(text.split(/\r?\n/).filter(Boolean).length).toBe(21); // header + the 20 students of Group A
 });

@@ -35,7 +35,10 @@ test('student pastes a line list, uploads files, submits and sees a named slip',
   await expect(page.getByText(/take precedence/)).toBeVisible();
 
   const text = thirtyLines();
-  await page.getByLabel(/Line list for H/).first().fill(text);
+  await page
+    .getByLabel(/Line list for H/)
+    .first()
+    .fill(text);
   await expect(page.getByText(/30 lines read/)).toBeVisible();
 
   const nu0 = 2886.0;
@@ -53,7 +56,9 @@ test('student pastes a line list, uploads files, submits and sees a named slip',
 
   await page.setInputFiles('#spectrum-file', path.join(SPECTRA, 'hcl-298k.jdx'));
   await expect(page.getByText(/Uploaded hcl-298k\.jdx/)).toBeVisible({ timeout: 20000 });
-  const pdf = Buffer.from('%PDF-1.4\n1 0 obj<</Type/Catalog/Pages 2 0 R>>endobj\n2 0 obj<</Type/Pages/Kids[3 0 R]/Count 1>>endobj\n3 0 obj<</Type/Page/Parent 2 0 R/MediaBox[0 0 612 792]>>endobj\ntrailer<</Root 1 0 R>>\n%%EOF\n');
+  const pdf = Buffer.from(
+    '%PDF-1.4\n1 0 obj<</Type/Catalog/Pages 2 0 R>>endobj\n2 0 obj<</Type/Pages/Kids[3 0 R]/Count 1>>endobj\n3 0 obj<</Type/Page/Parent 2 0 R/MediaBox[0 0 612 792]>>endobj\ntrailer<</Root 1 0 R>>\n%%EOF\n',
+  );
   await page.setInputFiles('#report-file', { name: 'report.pdf', mimeType: 'application/pdf', buffer: pdf });
   await expect(page.getByText(/Uploaded report\.pdf/)).toBeVisible({ timeout: 20000 });
 

@@ -58,7 +58,14 @@ export const MASS = {
   C13: iso('C', 13).mass,
   O16: iso('O', 16).mass,
 };
-export const ABUNDANCE = { Cl35: iso('Cl', 35).abundance, Cl37: iso('Cl', 37).abundance, Br79: iso('Br', 79).abundance, Br81: iso('Br', 81).abundance, C12: iso('C', 12).abundance, C13: iso('C', 13).abundance };
+export const ABUNDANCE = {
+  Cl35: iso('Cl', 35).abundance,
+  Cl37: iso('Cl', 37).abundance,
+  Br79: iso('Br', 79).abundance,
+  Br81: iso('Br', 81).abundance,
+  C12: iso('C', 12).abundance,
+  C13: iso('C', 13).abundance,
+};
 
 const mu = (a: number, b: number) => (a * b) / (a + b);
 
@@ -76,12 +83,25 @@ export const REDUCED_MASS: Record<Isotopologue, number> = {
 };
 
 const PARENT: Record<Isotopologue, keyof typeof HH> = {
-  H35Cl: 'H35Cl', H37Cl: 'H35Cl', D35Cl: 'D35Cl', D37Cl: 'D35Cl', H79Br: 'H79Br', H81Br: 'H79Br', '12C16O': '12C16O', '13C16O': '12C16O',
+  H35Cl: 'H35Cl',
+  H37Cl: 'H35Cl',
+  D35Cl: 'D35Cl',
+  D37Cl: 'D35Cl',
+  H79Br: 'H79Br',
+  H81Br: 'H79Br',
+  '12C16O': '12C16O',
+  '13C16O': '12C16O',
 };
 
 export const NATURAL_WEIGHT: Record<Isotopologue, number> = {
-  H35Cl: ABUNDANCE.Cl35, H37Cl: ABUNDANCE.Cl37, D35Cl: ABUNDANCE.Cl35, D37Cl: ABUNDANCE.Cl37,
-  H79Br: ABUNDANCE.Br79, H81Br: ABUNDANCE.Br81, '12C16O': ABUNDANCE.C12, '13C16O': ABUNDANCE.C13,
+  H35Cl: ABUNDANCE.Cl35,
+  H37Cl: ABUNDANCE.Cl37,
+  D35Cl: ABUNDANCE.Cl35,
+  D37Cl: ABUNDANCE.Cl37,
+  H79Br: ABUNDANCE.Br79,
+  H81Br: ABUNDANCE.Br81,
+  '12C16O': ABUNDANCE.C12,
+  '13C16O': ABUNDANCE.C13,
 };
 
 /** The isotopologue's constants: the table row, or computed from it by the isotope relations. */
@@ -142,8 +162,23 @@ export function bandLines(x: Isotopologue, vUpper: 1 | 2, opts: { jMax?: number;
   const boltz = (J: number) => Math.exp((-HC_OVER_K * F(k, 0, J)) / T);
   const out: Line[] = [];
   for (let J = 0; J <= jMax; J++) {
-    out.push({ species: x, vUpper, branch: 'R', J, wavenumber: nu0 + F(k, vUpper, J + 1) - F(k, 0, J), intensity: weight * (J + 1) * boltz(J) });
-    if (J >= 1) out.push({ species: x, vUpper, branch: 'P', J, wavenumber: nu0 + F(k, vUpper, J - 1) - F(k, 0, J), intensity: weight * J * boltz(J) });
+    out.push({
+      species: x,
+      vUpper,
+      branch: 'R',
+      J,
+      wavenumber: nu0 + F(k, vUpper, J + 1) - F(k, 0, J),
+      intensity: weight * (J + 1) * boltz(J),
+    });
+    if (J >= 1)
+      out.push({
+        species: x,
+        vUpper,
+        branch: 'P',
+        J,
+        wavenumber: nu0 + F(k, vUpper, J - 1) - F(k, 0, J),
+        intensity: weight * J * boltz(J),
+      });
   }
   return out;
 }

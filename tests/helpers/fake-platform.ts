@@ -23,7 +23,16 @@ export type FakePlatform = {
 export type PlatformState = {
   items: { id: string; title: string; custom: Record<string, string>; lineItemId: string | null }[];
   lineItems: { id: string; label: string; scoreMaximum: number; resourceId?: string; resourceLinkId?: string }[];
-  results: { lineItemId: string; userId: string; scoreGiven: number; scoreMaximum: number; comment?: string; timestamp: string; gradingProgress: string; activityProgress: string }[];
+  results: {
+    lineItemId: string;
+    userId: string;
+    scoreGiven: number;
+    scoreMaximum: number;
+    comment?: string;
+    timestamp: string;
+    gradingProgress: string;
+    activityProgress: string;
+  }[];
   deliveries: { lineItemId: string; userId: string; timestamp: string; applied: boolean }[];
   users: { id: string; name: string; email: string; roles: string[]; status: string }[];
   keys: { kid: string; active: boolean }[];
@@ -46,8 +55,12 @@ export async function startFakePlatform(port: number, oscillabUrl: string, extra
     if (Date.now() > end || child.exitCode !== null) throw new Error(`the fake platform did not start on ${port}: ${log}`);
     await new Promise((r) => setTimeout(r, 100));
   }
-  const control = async <T,>(what: string, body?: unknown): Promise<T> => {
-    const res = await fetch(`${url}/control/${what}`, { method: 'POST', headers: { 'content-type': 'application/json', accept: 'application/json' }, body: JSON.stringify(body ?? {}) });
+  const control = async <T>(what: string, body?: unknown): Promise<T> => {
+    const res = await fetch(`${url}/control/${what}`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', accept: 'application/json' },
+      body: JSON.stringify(body ?? {}),
+    });
     if (!res.ok) throw new Error(`control ${what}: ${res.status}`);
     return (await res.json()) as T;
   };
@@ -82,7 +95,11 @@ export async function serveHandlers(port: number, routes: Routes): Promise<{ url
     for await (const c of req) chunks.push(c as Buffer);
     const headers = new Headers();
     for (const [k, v] of Object.entries(req.headers)) if (typeof v === 'string') headers.set(k, v);
-    const request = new Request(url, { method: req.method, headers, body: ['GET', 'HEAD'].includes(req.method!) ? undefined : Buffer.concat(chunks) });
+    const request = new Request(url, {
+      method: req.method,
+      headers,
+      body: ['GET', 'HEAD'].includes(req.method!) ? undefined : Buffer.concat(chunks),
+    });
     try {
       const response = await hit[2](request, { params: Promise.resolve(params) });
       const out: Record<string, string | string[]> = {};
@@ -145,7 +162,10 @@ export class Browser {
   }
 
   /** A navigation (top level): follows redirects while `follow(url)` says so. */
-  async go(url: string, options: { method?: string; form?: Record<string, string>; initiator?: string | null; follow?: (url: string) => boolean } = {}): Promise<Page> {
+  async go(
+    url: string,
+    options: { method?: string; form?: Record<string, string>; initiator?: string | null; follow?: (url: string) => boolean } = {},
+  ): Promise<Page> {
     let method = options.method ?? (options.form ? 'POST' : 'GET');
     let body: string | undefined = options.form ? new URLSearchParams(options.form).toString() : undefined;
     let initiator = options.initiator ?? null;
@@ -157,7 +177,14 @@ export class Browser {
       if (body !== undefined) headers['content-type'] = 'application/x-www-form-urlencoded';
       if (method === 'POST' && initiator) headers.origin = new URL(initiator).origin;
       headers['sec-fetch-dest'] = 'document';
-      headers['sec-fetch-site'] = initiator === null ? 'none' : new URL(initiator).origin === new URL(current).origin ? 'same-origin' : site(initiator) === site(current) ? 'same-site' : 'cross-site';
+      headers['sec-fetch-site'] =
+        initiator === null
+          ? 'none'
+          : new URL(initiator).origin === new URL(current).origin
+            ? 'same-origin'
+            : site(initiator) === site(current)
+              ? 'same-site'
+              : 'cross-site';
       const res = await fetch(current, { method, headers, body, redirect: 'manual' });
       this.store(current, res.headers);
       const location = res.headers.get('location');
@@ -181,15 +208,30 @@ export class Browser {
   async submit(page: Page, extra: Record<string, string> = {}, follow?: (url: string) => boolean): Promise<Page> {
     const form = /<form[^>]*action="([^"]*)"[^>]*>([\s\S]*?)<\/form>/i.exec(page.html);
     if (!form) throw new Error(`no form on ${page.url}: ${page.html.slice(0, 300)}`);
-    const unescape = (s: string) => s.replace(/&quot;/g, '"').replace(/&#39;/g, "'").replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&amp;/g, '&');
+    const unescape = (s: string) =>
+      s
+        .replace(/&quot;/g, '"')
+        .replace(/&#39;/g, "'")
+        .replace(/&lt;/g, '<')
+        .replace(/&gt;/g, '>')
+        .replace(/&amp;/g, '&');
     const fields: Record<string, string> = {};
     for (const m of form[2].matchAll(/<input type="hidden" name="([^"]*)" value="([^"]*)">/g)) fields[unescape(m[1])] = unescape(m[2]);
-    return this.go(new URL(unescape(form[1]), page.url).toString(), { method: 'POST', form: { ...fields, ...extra }, initiator: page.url, follow });
+    return this.go(new URL(unescape(form[1]), page.url).toString(), {
+      method: 'POST',
+      form: { ...fields, ...extra },
+      initiator: page.url,
+      follow,
+    });
   }
 }
 
 export const formFields = (html: string): Record<string, string> => {
   const out: Record<string, string> = {};
-  for (const m of html.matchAll(/<input type="hidden" name="([^"]*)" value="([^"]*)">/g)) out[m[1]] = m[2].replace(/&quot;/g, '"').replace(/&#39;/g, "'").replace(/&amp;/g, '&');
+  for (const m of html.matchAll(/<input type="hidden" name="([^"]*)" value="([^"]*)">/g))
+    out[m[1]] = m[2]
+      .replace(/&quot;/g, '"')
+      .replace(/&#39;/g, "'")
+      .replace(/&amp;/g, '&');
   return out;
 };

@@ -138,7 +138,7 @@ export async function stallingRelay(upstreamPort: number, passFirst: number) {
  * BEGIN IMMEDIATE, a write, then COMMIT. Resolves once the lock is held; `released` settles at COMMIT.
  */
 export async function holdWriteLock(file: string, ms: number): Promise<{ released: Promise<void>; heldAt: number }> {
-  // eslint-disable-next-line @typescript-eslint/no-require-imports
+  // eslint-disable-next-line @typescript-eslint/no-require-imports -- loaded only when a fault test needs the raw driver
   const sqlite3 = require('sqlite3') as typeof import('sqlite3');
   const db = new sqlite3.Database(file);
   const exec = (sql: string) => new Promise<void>((resolve, reject) => db.exec(sql, (err) => (err ? reject(err) : resolve())));

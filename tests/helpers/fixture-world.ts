@@ -62,12 +62,24 @@ export async function buildFixtureWorld() {
   // report, and submits; submit runs checkStoredSubmission in its transaction.
   const { practical, defs } = await buildPractical(world);
   const draft = { ...draftFor('H35Cl', correctValues()) };
-  const saved = await ok(await saveDraftRoute(await apiRequest('/api/submissions/draft', { as: people.student.id, method: 'PUT', body: { practicalId: practical.id, draft } }), {}), 'save draft');
+  const saved = await ok(
+    await saveDraftRoute(
+      await apiRequest('/api/submissions/draft', { as: people.student.id, method: 'PUT', body: { practicalId: practical.id, draft } }),
+      {},
+    ),
+    'save draft',
+  );
   const spectrum = await ok(await uploadAs(people.student.id, saved.id, 'spectrum', 'hcl.jdx', JCAMP), 'upload spectrum');
   const report = await ok(await uploadAs(people.student.id, saved.id, 'report', 'report.pdf', PDF), 'upload report');
   const toSubmit = { ...draft, spectrumUploadId: spectrum.id, reportUploadId: report.id };
   const submitted = await ok(
-    await submitRoute(await apiRequest(`/api/submissions/${saved.id}/submit`, { as: people.student.id, body: { version: report.version, draft: toSubmit } }), params({ id: String(saved.id) })),
+    await submitRoute(
+      await apiRequest(`/api/submissions/${saved.id}/submit`, {
+        as: people.student.id,
+        body: { version: report.version, draft: toSubmit },
+      }),
+      params({ id: String(saved.id) }),
+    ),
     'submit',
   );
   const submission = (await Submission.findByPk(submitted.result.id))!;
@@ -76,12 +88,29 @@ export async function buildFixtureWorld() {
   // Practical B (both cohorts): a filled-in draft of `student`, still to be submitted.
   const practicalB = (await buildPractical(world)).practical;
   const draftB = { ...draftFor('H35Cl', correctValues()) };
-  const savedB = await ok(await saveDraftRoute(await apiRequest('/api/submissions/draft', { as: people.student.id, method: 'PUT', body: { practicalId: practicalB.id, draft: draftB } }), {}), 'save draft B');
+  const savedB = await ok(
+    await saveDraftRoute(
+      await apiRequest('/api/submissions/draft', {
+        as: people.student.id,
+        method: 'PUT',
+        body: { practicalId: practicalB.id, draft: draftB },
+      }),
+      {},
+    ),
+    'save draft B',
+  );
 
   // Practical C (only `student`'s cohort): drafts and uploads of `otherStudent` are not allowed here.
   const practicalC = await createFixturePractical(course.id, [cohort.id]);
   const savedC = await ok(
-    await saveDraftRoute(await apiRequest('/api/submissions/draft', { as: people.student.id, method: 'PUT', body: { practicalId: practicalC.id, draft: emptyDraft(practicalC.species) } }), {}),
+    await saveDraftRoute(
+      await apiRequest('/api/submissions/draft', {
+        as: people.student.id,
+        method: 'PUT',
+        body: { practicalId: practicalC.id, draft: emptyDraft(practicalC.species) },
+      }),
+      {},
+    ),
     'save draft C',
   );
 

@@ -25,7 +25,9 @@ export const E = math.elementaryCharge.toNumber('C');
 
 /** Isotopic mass in u (AME2020 via chemical-elements); symbol D means ²H. */
 export function isotopicMass(symbol: string, massNumber: number): number {
-  const el = (elementsAndIsotopesObject as Record<string, { isotopes: { nominal: number; mass: number; abundance?: number }[] }>)[symbol === 'D' ? 'H' : symbol];
+  const el = (elementsAndIsotopesObject as Record<string, { isotopes: { nominal: number; mass: number; abundance?: number }[] }>)[
+    symbol === 'D' ? 'H' : symbol
+  ];
   const iso = el?.isotopes.find((i) => i.nominal === massNumber);
   if (!iso) throw new Error(`no isotope ${symbol}-${massNumber}`);
   return iso.mass;
@@ -36,10 +38,11 @@ export function meanAtomicMass(symbol: string): number {
   const el = (elementsAndIsotopesObject as Record<string, { isotopes: { mass: number; abundance?: number }[] }>)[symbol];
   let m = 0;
   let w = 0;
-  for (const i of el.isotopes) if (i.abundance) {
-    m += i.mass * i.abundance;
-    w += i.abundance;
-  }
+  for (const i of el.isotopes)
+    if (i.abundance) {
+      m += i.mass * i.abundance;
+      w += i.abundance;
+    }
   return m / w;
 }
 
@@ -61,15 +64,73 @@ export interface Constants {
 /** Rows of shared/reference-diatomics.md (Huber & Herzberg via NIST WebBook; provenance as stated there). */
 export const PUBLISHED: Record<string, Constants> = {
   // memory; NIST CCCBDB agrees
-  H35Cl: { omegaE: 2990.946, omegaExe: 52.8186, omegaEye: 0.2243, Be: 10.59341, alphaE: 0.30718, De: 5.3194e-4, bandOrigin: 2885.98, atoms: [['H', 1], ['Cl', 35]] },
+  H35Cl: {
+    omegaE: 2990.946,
+    omegaExe: 52.8186,
+    omegaEye: 0.2243,
+    Be: 10.59341,
+    alphaE: 0.30718,
+    De: 5.3194e-4,
+    bandOrigin: 2885.98,
+    atoms: [
+      ['H', 1],
+      ['Cl', 35],
+    ],
+  },
   // memory
-  D35Cl: { omegaE: 2145.163, omegaExe: 27.1825, omegaEye: 0.08649, Be: 5.448794, alphaE: 0.113291, De: 1.395e-4, atoms: [['D', 2], ['Cl', 35]] },
+  D35Cl: {
+    omegaE: 2145.163,
+    omegaExe: 27.1825,
+    omegaEye: 0.08649,
+    Be: 5.448794,
+    alphaE: 0.113291,
+    De: 1.395e-4,
+    atoms: [
+      ['D', 2],
+      ['Cl', 35],
+    ],
+  },
   // memory
-  H79Br: { omegaE: 2648.975, omegaExe: 45.2175, omegaEye: -0.0029, Be: 8.464884, alphaE: 0.23328, De: 3.4575e-4, bandOrigin: 2558.53, atoms: [['H', 1], ['Br', 79]] },
+  H79Br: {
+    omegaE: 2648.975,
+    omegaExe: 45.2175,
+    omegaEye: -0.0029,
+    Be: 8.464884,
+    alphaE: 0.23328,
+    De: 3.4575e-4,
+    bandOrigin: 2558.53,
+    atoms: [
+      ['H', 1],
+      ['Br', 79],
+    ],
+  },
   // memory
-  '12C16O': { omegaE: 2169.81358, omegaExe: 13.28831, omegaEye: 0.010511, Be: 1.93128087, alphaE: 0.01750441, De: 6.12147e-6, bandOrigin: 2143.27, atoms: [['C', 12], ['O', 16]] },
+  '12C16O': {
+    omegaE: 2169.81358,
+    omegaExe: 13.28831,
+    omegaEye: 0.010511,
+    Be: 1.93128087,
+    alphaE: 0.01750441,
+    De: 6.12147e-6,
+    bandOrigin: 2143.27,
+    atoms: [
+      ['C', 12],
+      ['O', 16],
+    ],
+  },
   // read from a stored NIST WebBook page
-  '7LiH': { omegaE: 1405.65, omegaExe: 23.2, omegaEye: 0.163, Be: 7.5131, alphaE: 0.2132, De: 8.617e-4, atoms: [['Li', 7], ['H', 1]] },
+  '7LiH': {
+    omegaE: 1405.65,
+    omegaExe: 23.2,
+    omegaEye: 0.163,
+    Be: 7.5131,
+    alphaE: 0.2132,
+    De: 8.617e-4,
+    atoms: [
+      ['Li', 7],
+      ['H', 1],
+    ],
+  },
 };
 
 export function speciesMassU(c: Constants): number {
@@ -95,7 +156,8 @@ export function isotopologue(parent: Constants, atoms: Constants['atoms']): Cons
   };
 }
 
-export const vibrationalTerm = (k: Constants, v: number) => k.omegaE * (v + 0.5) - k.omegaExe * (v + 0.5) ** 2 + k.omegaEye * (v + 0.5) ** 3;
+export const vibrationalTerm = (k: Constants, v: number) =>
+  k.omegaE * (v + 0.5) - k.omegaExe * (v + 0.5) ** 2 + k.omegaEye * (v + 0.5) ** 3;
 
 /** ν̃₀ of v = 1 ← 0: the measured band origin where the table has one, else G(1) − G(0). */
 export const bandOrigin = (k: Constants) => k.bandOrigin ?? vibrationalTerm(k, 1) - vibrationalTerm(k, 0);
@@ -103,7 +165,12 @@ export const bandOrigin = (k: Constants) => k.bandOrigin ?? vibrationalTerm(k, 1
 export const Bv = (k: Constants, v: number) => k.Be - k.alphaE * (v + 0.5);
 
 /** Lines of the fundamental, P(pMax)…P(1), R(0)…R(rMax), in cm⁻¹, with the centrifugal term. */
-export function fundamentalLines(k: Constants, pMax: number, rMax: number, withD = true): { branch: 'P' | 'R'; J: number; wavenumber: number }[] {
+export function fundamentalLines(
+  k: Constants,
+  pMax: number,
+  rMax: number,
+  withD = true,
+): { branch: 'P' | 'R'; J: number; wavenumber: number }[] {
   const D = withD ? k.De : 0;
   const F = (v: number, J: number) => Bv(k, v) * J * (J + 1) - D * J * J * (J + 1) * (J + 1);
   const nu0 = bandOrigin(k);
@@ -124,7 +191,10 @@ export function forceConstant(nu: number, muU: number): number {
 }
 
 /** Least-squares polynomial ν̃(m) of the given degree through the lines (normal equations in mathjs), cm⁻¹. */
-export function studentFit(lines: { branch: 'P' | 'R'; J: number; wavenumber: number }[], degree: 2 | 3): { nu0: number; B0: number; B1: number; Be: number; alphaE: number; D?: number } {
+export function studentFit(
+  lines: { branch: 'P' | 'R'; J: number; wavenumber: number }[],
+  degree: 2 | 3,
+): { nu0: number; B0: number; B1: number; Be: number; alphaE: number; D?: number } {
   const m = lines.map((l) => (l.branch === 'R' ? l.J + 1 : -l.J));
   const X = m.map((x) => Array.from({ length: degree + 1 }, (_, k) => x ** k));
   const y = lines.map((l) => [l.wavenumber]);

@@ -47,7 +47,9 @@ export async function routeHandlers(): Promise<RouteHandler[]> {
       if (typeof mod[method] === 'function') out.push({ ...f, method, key: `${method} ${f.pattern}`, handler: mod[method] as Handler });
     }
     // HEAD / OPTIONS exports would escape the tables below: refuse them until they have entries.
-    for (const other of ['HEAD', 'OPTIONS']) if (typeof mod[other] === 'function') out.push({ ...f, method: other as HttpMethod, key: `${other} ${f.pattern}`, handler: mod[other] as Handler });
+    for (const other of ['HEAD', 'OPTIONS'])
+      if (typeof mod[other] === 'function')
+        out.push({ ...f, method: other as HttpMethod, key: `${other} ${f.pattern}`, handler: mod[other] as Handler });
   }
   return out;
 }
@@ -73,7 +75,9 @@ export async function tableChecksums(): Promise<Record<string, string>> {
   const { sequelize } = await import('@/lib/db');
   const db = sequelize();
   const qi = db.getQueryInterface();
-  const tables = ((await qi.showAllTables()) as (string | { tableName: string })[]).map((t) => (typeof t === 'string' ? t : t.tableName)).sort();
+  const tables = ((await qi.showAllTables()) as (string | { tableName: string })[])
+    .map((t) => (typeof t === 'string' ? t : t.tableName))
+    .sort();
   if (db.getDialect() === 'sqlite') {
     // AUTOINCREMENT counters: a rolled-back insert must not move them either.
     const [seq] = await db.query("SELECT name FROM sqlite_master WHERE type = 'table' AND name = 'sqlite_sequence'");
@@ -85,7 +89,9 @@ export async function tableChecksums(): Promise<Record<string, string>> {
     if (table === 'sqlite_sequence') order = ['name'];
     else {
       const cols = await qi.describeTable(table);
-      order = Object.entries(cols).filter(([, c]) => c.primaryKey).map(([n]) => n);
+      order = Object.entries(cols)
+        .filter(([, c]) => c.primaryKey)
+        .map(([n]) => n);
       if (!order.length) order = Object.keys(cols);
     }
     const [rows] = await db.query(`SELECT * FROM "${table}" ORDER BY ${order.map((c) => `"${c}"`).join(', ')}`);

@@ -63,15 +63,22 @@ export async function schemaDrift(model: ModelStatic<Model>, qi: QueryInterface)
     const wantType = modelType(a.type);
     const haveType = dbType(dialect, column.type);
     if (wantType !== haveType) out.push(`${table}.${field}: type ${haveType} in the database, ${wantType} in the model`);
-    if (Boolean(a.primaryKey) !== Boolean(column.primaryKey)) out.push(`${table}.${field}: primary key ${column.primaryKey ? 'in the database only' : 'in the model only'}`);
+    if (Boolean(a.primaryKey) !== Boolean(column.primaryKey))
+      out.push(`${table}.${field}: primary key ${column.primaryKey ? 'in the database only' : 'in the model only'}`);
     // SQLite reports an INTEGER PRIMARY KEY (the rowid) as nullable; a primary key never holds NULL.
     const dbNullable = column.primaryKey ? false : column.allowNull;
     const modelNullable = a.primaryKey ? false : a.allowNull !== false;
-    if (dbNullable !== modelNullable) out.push(`${table}.${field}: ${dbNullable ? 'nullable' : 'NOT NULL'} in the database, ${modelNullable ? 'nullable' : 'NOT NULL'} in the model`);
+    if (dbNullable !== modelNullable)
+      out.push(
+        `${table}.${field}: ${dbNullable ? 'nullable' : 'NOT NULL'} in the database, ${modelNullable ? 'nullable' : 'NOT NULL'} in the model`,
+      );
     if (!a.autoIncrement && !column.primaryKey) {
       const have = dbDefault(column.defaultValue, haveType);
       const want = a.defaultValue ?? undefined;
-      if (have !== want) out.push(`${table}.${field}: default ${JSON.stringify(have) ?? 'none'} in the database, ${JSON.stringify(want) ?? 'none'} in the model`);
+      if (have !== want)
+        out.push(
+          `${table}.${field}: default ${JSON.stringify(have) ?? 'none'} in the database, ${JSON.stringify(want) ?? 'none'} in the model`,
+        );
     }
   }
 
@@ -82,14 +89,32 @@ export async function schemaDrift(model: ModelStatic<Model>, qi: QueryInterface)
     name: i.name ?? defaultIndexName(table, i.fields.map(fieldName)),
     key: indexKey(Boolean(i.unique), i.fields.map(fieldName)),
   }));
-  const uniqueColumns = [...byField].filter(([, a]) => a.unique === true || typeof a.unique === 'string').map(([field]) => indexKey(true, [field]));
+  const uniqueColumns = [...byField]
+    .filter(([, a]) => a.unique === true || typeof a.unique === 'string')
+    .map(([field]) => indexKey(true, [field]));
   const want = [...declared.map((d) => d.key), ...uniqueColumns].sort();
-  const have = dbIndexes.map((i) => indexKey(i.unique, i.fields.map((f) => f.attribute))).sort();
+  const have = dbIndexes
+    .map((i) =>
+      indexKey(
+        i.unique,
+        i.fields.map((f) => f.attribute),
+      ),
+    )
+    .sort();
   for (const k of difference(have, want)) out.push(`${table}: ${k} in the database, not in the model`);
   for (const k of difference(want, have)) out.push(`${table}: ${k} in the model, not in the database`);
-  const dbNames = new Map(dbIndexes.map((i) => [i.name, indexKey(i.unique, i.fields.map((f) => f.attribute))]));
+  const dbNames = new Map(
+    dbIndexes.map((i) => [
+      i.name,
+      indexKey(
+        i.unique,
+        i.fields.map((f) => f.attribute),
+      ),
+    ]),
+  );
   for (const d of declared) {
-    if (have.includes(d.key) && dbNames.get(d.name) !== d.key) out.push(`${table}: the model names ${d.key} "${d.name}", the database does not`);
+    if (have.includes(d.key) && dbNames.get(d.name) !== d.key)
+      out.push(`${table}: the model names ${d.key} "${d.name}", the database does not`);
   }
   return out;
 }

@@ -6,7 +6,11 @@ import { encode } from 'next-auth/jwt';
  * `sessionVersion` is the account's at sign-in (0 until a password is set or sessions are ended);
  * `sessionId` the session's own id (random, as sign-in makes it).
  */
-export async function sessionCookie(userId: number, sessionVersion = 0, sessionId = crypto.randomBytes(16).toString('hex')): Promise<string> {
+export async function sessionCookie(
+  userId: number,
+  sessionVersion = 0,
+  sessionId = crypto.randomBytes(16).toString('hex'),
+): Promise<string> {
   const token = await encode({ token: { sub: String(userId), sv: sessionVersion, sid: sessionId }, secret: process.env.NEXTAUTH_SECRET! });
   return `next-auth.session-token=${token}`;
 }

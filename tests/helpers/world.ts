@@ -20,9 +20,27 @@ export async function buildWorld() {
 
   const course = await Course.create({ code: `TEST${n}01`, title: 'Test course', archivedAt: null });
   const otherCourse = await Course.create({ code: `TEST${n}02`, title: 'Other test course', archivedAt: null });
-  const cohort = await Cohort.create({ courseId: course.id, name: 'Cohort 1', term: '2026 Autumn', instrument: 'Bench 1', archivedAt: null });
-  const otherCohort = await Cohort.create({ courseId: course.id, name: 'Cohort 2', term: '2026 Autumn', instrument: 'Bench 2', archivedAt: null });
-  const foreignCohort = await Cohort.create({ courseId: otherCourse.id, name: 'Cohort X', term: '2026 Autumn', instrument: null, archivedAt: null });
+  const cohort = await Cohort.create({
+    courseId: course.id,
+    name: 'Cohort 1',
+    term: '2026 Autumn',
+    instrument: 'Bench 1',
+    archivedAt: null,
+  });
+  const otherCohort = await Cohort.create({
+    courseId: course.id,
+    name: 'Cohort 2',
+    term: '2026 Autumn',
+    instrument: 'Bench 2',
+    archivedAt: null,
+  });
+  const foreignCohort = await Cohort.create({
+    courseId: otherCourse.id,
+    name: 'Cohort X',
+    term: '2026 Autumn',
+    instrument: null,
+    archivedAt: null,
+  });
 
   const people = {
     admin: await user('admin', { isAdmin: true }),

@@ -23,14 +23,22 @@ beforeAll(async () => {
 describe('course roles', () => {
   it('the administrator grants a TA role, finds it in the people list, and removes it', async () => {
     const who = w.people.nobody;
-    const res = await grant.POST(await apiRequest('/api/admin/memberships', { as: w.people.admin.id, body: { email: who.email, courseId: w.course.id, role: 'ta' } }), params({}));
+    const res = await grant.POST(
+      await apiRequest('/api/admin/memberships', { as: w.people.admin.id, body: { email: who.email, courseId: w.course.id, role: 'ta' } }),
+      params({}),
+    );
     expect(res.status).toBe(201);
     const { membership } = await res.json();
     const found = await searchPeople({ q: who.email });
     expect(found.people).toHaveLength(1);
-    expect(found.people[0].roles).toEqual([expect.objectContaining({ membershipId: membership.id, course: w.course.code, role: 'ta', cohort: null })]);
+    expect(found.people[0].roles).toEqual([
+      expect.objectContaining({ membershipId: membership.id, course: w.course.code, role: 'ta', cohort: null }),
+    ]);
 
-    const del = await removeRole.DELETE(await apiRequest(`/api/admin/memberships/${membership.id}`, { as: w.people.admin.id, method: 'DELETE' }), params({ membershipId: String(membership.id) }));
+    const del = await removeRole.DELETE(
+      await apiRequest(`/api/admin/memberships/${membership.id}`, { as: w.people.admin.id, method: 'DELETE' }),
+      params({ membershipId: String(membership.id) }),
+    );
     expect(del.status).toBe(200);
     expect(await models().CourseMembership.findByPk(membership.id)).toBeNull();
     const log = await auditLog(auditQuery.parse({ action: 'membership.remove' }));
@@ -39,7 +47,13 @@ describe('course roles', () => {
   });
 
   it('a student role names its cohort, shown with its term', async () => {
-    const res = await grant.POST(await apiRequest('/api/admin/memberships', { as: w.people.admin.id, body: { email: w.people.nobody.email, courseId: w.course.id, role: 'student', cohortId: w.cohort.id } }), params({}));
+    const res = await grant.POST(
+      await apiRequest('/api/admin/memberships', {
+        as: w.people.admin.id,
+        body: { email: w.people.nobody.email, courseId: w.course.id, role: 'student', cohortId: w.cohort.id },
+      }),
+      params({}),
+    );
     expect(res.status).toBe(201);
     const found = await searchPeople({ q: 'nobody' });
     expect(found.people[0].roles.find((r) => r.role === 'student')?.cohort).toBe(`${w.cohort.name} (${w.cohort.term})`);
@@ -48,11 +62,17 @@ describe('course roles', () => {
   it('refuses everyone but the administrator, changing nothing', async () => {
     const before = await models().CourseMembership.count();
     for (const as of [w.people.lead.id, w.people.instructor.id, w.people.ta.id, null]) {
-      const res = await grant.POST(await apiRequest('/api/admin/memberships', { as, body: { email: w.people.nobody.email, courseId: w.course.id, role: 'lead' } }), params({}));
+      const res = await grant.POST(
+        await apiRequest('/api/admin/memberships', { as, body: { email: w.people.nobody.email, courseId: w.course.id, role: 'lead' } }),
+        params({}),
+      );
       expect([401, 403]).toContain(res.status);
     }
     const someone = (await models().CourseMembership.findOne())!;
-    const del = await removeRole.DELETE(await apiRequest(`/api/admin/memberships/${someone.id}`, { as: w.people.lead.id, method: 'DELETE' }), params({ membershipId: String(someone.id) }));
+    const del = await removeRole.DELETE(
+      await apiRequest(`/api/admin/memberships/${someone.id}`, { as: w.people.lead.id, method: 'DELETE' }),
+      params({ membershipId: String(someone.id) }),
+    );
     expect(del.status).toBe(403);
     expect(await models().CourseMembership.count()).toBe(before);
   });
@@ -69,20 +89,41 @@ describe('mail outbox', () => {
     const { EmailOutbox } = models();
     const to = `retry-${Date.now()}@test.example`;
     const row = await EmailOutbox.create({
-      dedupeKey: `test-retry:${to}`, toAddress: to, subject: 'Feedback released: retry test', textBody: 'Sent again by the administrator.', htmlBody: null,
-      submissionId: null, feedbackDocumentId: null, status: 'failed', attempts: 12, nextAttemptAt: new Date(), lockedUntil: null,
-      lastError: 'connect ECONNREFUSED 127.0.0.1:25', messageId: null, sentAt: null,
+      dedupeKey: `test-retry:${to}`,
+      toAddress: to,
+      subject: 'Feedback released: retry test',
+      textBody: 'Sent again by the administrator.',
+      htmlBody: null,
+      submissionId: null,
+      feedbackDocumentId: null,
+      status: 'failed',
+      attempts: 12,
+      nextAttemptAt: new Date(),
+      lockedUntil: null,
+      lastError: 'connect ECONNREFUSED 127.0.0.1:25',
+      messageId: null,
+      sentAt: null,
     });
     const health = await outboxHealth();
     expect(health.counts.failed).toBeGreaterThanOrEqual(1);
-    expect(health.problems.find((p) => p.id === row.id)).toMatchObject({ status: 'failed', attempts: 12, lastError: 'connect ECONNREFUSED 127.0.0.1:25' });
+    expect(health.problems.find((p) => p.id === row.id)).toMatchObject({
+      status: 'failed',
+      attempts: 12,
+      lastError: 'connect ECONNREFUSED 127.0.0.1:25',
+    });
     expect(health.lastError?.message).toBeTruthy();
 
-    const refused = await retry.POST(await apiRequest(`/api/admin/outbox/${row.id}/retry`, { as: w.people.lead.id, method: 'POST', body: {} }), params({ id: String(row.id) }));
+    const refused = await retry.POST(
+      await apiRequest(`/api/admin/outbox/${row.id}/retry`, { as: w.people.lead.id, method: 'POST', body: {} }),
+      params({ id: String(row.id) }),
+    );
     expect(refused.status).toBe(403);
     expect((await EmailOutbox.findByPk(row.id))!.status).toBe('failed');
 
-    const res = await retry.POST(await apiRequest(`/api/admin/outbox/${row.id}/retry`, { as: w.people.admin.id, method: 'POST', body: {} }), params({ id: String(row.id) }));
+    const res = await retry.POST(
+      await apiRequest(`/api/admin/outbox/${row.id}/retry`, { as: w.people.admin.id, method: 'POST', body: {} }),
+      params({ id: String(row.id) }),
+    );
     expect(res.status).toBe(200);
     // The route starts a delivery pass at once; the message reaches the mail catcher.
     await expect.poll(async () => (await EmailOutbox.findByPk(row.id))!.status, { timeout: 10_000 }).toBe('sent');
@@ -92,7 +133,10 @@ describe('mail outbox', () => {
     expect(log.rows[0]).toMatchObject({ entity: 'email_outbox', entityId: row.id });
 
     // A sent message is not sent again from here.
-    const again = await retry.POST(await apiRequest(`/api/admin/outbox/${row.id}/retry`, { as: w.people.admin.id, method: 'POST', body: {} }), params({ id: String(row.id) }));
+    const again = await retry.POST(
+      await apiRequest(`/api/admin/outbox/${row.id}/retry`, { as: w.people.admin.id, method: 'POST', body: {} }),
+      params({ id: String(row.id) }),
+    );
     expect(again.status).toBe(409);
   });
 });

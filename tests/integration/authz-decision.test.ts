@@ -70,11 +70,15 @@ describe('authorisation helper', () => {
   });
 
   it('decides in lib/authz/ only: no loader or manager test repeated elsewhere', () => {
-    const files = execFileSync('git', ['ls-files', 'lib', 'app'], { encoding: 'utf8' }).split('\n').filter((f) => /\.tsx?$/.test(f) && !f.startsWith('lib/authz/'));
+    const files = execFileSync('git', ['ls-files', 'lib', 'app'], { encoding: 'utf8' })
+      .split('\n')
+      .filter((f) => /\.tsx?$/.test(f) && !f.startsWith('lib/authz/'));
     const repeats = files.filter((f) => {
       const text = fs.readFileSync(f, 'utf8');
       // The manager test written out by hand, or an access module of its own beside lib/authz/.
-      return /hasRole\(actor, '(instructor|lead)'\)/.test(text) || /roles\.includes\('(lead|instructor)'\)/.test(text) || /\/access\.ts$/.test(f);
+      return (
+        /hasRole\(actor, '(instructor|lead)'\)/.test(text) || /roles\.includes\('(lead|instructor)'\)/.test(text) || /\/access\.ts$/.test(f)
+      );
     });
     expect(repeats).toEqual([]);
   });
@@ -82,13 +86,21 @@ describe('authorisation helper', () => {
   it('authorize throws 401 without a session and 403 when not allowed', async () => {
     const { course, people } = world;
     await expect(authorize(await apiRequest('/x'))).rejects.toMatchObject({ status: 401 });
-    await expect(authorize(await apiRequest('/x', { as: people.student.id }), { kind: 'course-manage', courseId: course.id })).rejects.toBeInstanceOf(HttpError);
-    await expect(authorize(await apiRequest('/x', { as: people.student.id }), { kind: 'course-manage', courseId: course.id })).rejects.toMatchObject({ status: 403 });
-    await expect(authorize(await apiRequest('/x', { as: people.instructor.id }), { kind: 'course-manage', courseId: course.id })).resolves.toMatchObject({ id: people.instructor.id });
+    await expect(
+      authorize(await apiRequest('/x', { as: people.student.id }), { kind: 'course-manage', courseId: course.id }),
+    ).rejects.toBeInstanceOf(HttpError);
+    await expect(
+      authorize(await apiRequest('/x', { as: people.student.id }), { kind: 'course-manage', courseId: course.id }),
+    ).rejects.toMatchObject({ status: 403 });
+    await expect(
+      authorize(await apiRequest('/x', { as: people.instructor.id }), { kind: 'course-manage', courseId: course.id }),
+    ).resolves.toMatchObject({ id: people.instructor.id });
   });
 
   it('a forged or foreign-signed session cookie counts as signed out', async () => {
-    const forged = new Request('http://localhost:3000/api/me', { headers: { cookie: 'next-auth.session-token=eyJhbGciOiJIUzI1NiJ9.e30.abc' } });
+    const forged = new Request('http://localhost:3000/api/me', {
+      headers: { cookie: 'next-auth.session-token=eyJhbGciOiJIUzI1NiJ9.e30.abc' },
+    });
     const res = await getMe(forged, undefined);
     expect(res.status).toBe(401);
   });
@@ -97,7 +109,8 @@ describe('authorisation helper', () => {
 describe('an API route under the helper', () => {
   it('GET /api/courses/:id gives 401, 403 and 200 by role, 404 for a bad id', async () => {
     const { course, people } = world;
-    const call = async (as: number | null, id = String(course.id)) => (await getCourse(await apiRequest(`/api/courses/${id}`, { as }), params({ courseId: id }))).status;
+    const call = async (as: number | null, id = String(course.id)) =>
+      (await getCourse(await apiRequest(`/api/courses/${id}`, { as }), params({ courseId: id }))).status;
     expect(await call(null)).toBe(401);
     expect(await call(people.student.id)).toBe(403);
     expect(await call(people.otherLead.id)).toBe(403);

@@ -23,7 +23,16 @@ type Role = (typeof ROLES)[number];
 /** An exact status, or 'allowed': anything but 401/403 (used only where a fully valid call is impractical). */
 type Expected = number | 'allowed';
 /** One expected status per role, in the order of ROLES. */
-type Row = [anonymous: Expected, student: Expected, otherStudent: Expected, ta: Expected, otherTa: Expected, instructor: Expected, otherLead: Expected, admin: Expected];
+type Row = [
+  anonymous: Expected,
+  student: Expected,
+  otherStudent: Expected,
+  ta: Expected,
+  otherTa: Expected,
+  instructor: Expected,
+  otherLead: Expected,
+  admin: Expected,
+];
 
 type Call = { url: string; params?: Record<string, string>; body?: unknown; rawBody?: BodyInit; headers?: Record<string, string> };
 /** `mails`: the route starts deliverOutbox() in the background; the next call waits for it (see settleOutbox). */
@@ -42,7 +51,13 @@ let n = 0;
 const uniq = (role: Role) => `${role}-${++n}`;
 
 async function spareUser(tag: string) {
-  return models().User.create({ email: `spare.${tag}@test.example`, name: `Spare ${tag}`, passwordHash: await hashPassword('spare-password-123'), isAdmin: false, studentNumber: null });
+  return models().User.create({
+    email: `spare.${tag}@test.example`,
+    name: `Spare ${tag}`,
+    passwordHash: await hashPassword('spare-password-123'),
+    isAdmin: false,
+    studentNumber: null,
+  });
 }
 async function spareTa(w: FixtureWorld, tag: string) {
   const u = await spareUser(tag);
@@ -51,10 +66,14 @@ async function spareTa(w: FixtureWorld, tag: string) {
 }
 const version = async (id: number) => (await models().Submission.findByPk(id))!.version;
 
-
 const LTI_REGISTRATION = {
-  name: 'Matrix platform', issuer: 'https://matrix-platform.example', clientId: 'matrix-client', deploymentIds: ['matrix-deployment'],
-  authLoginUrl: 'https://matrix-platform.example/auth', authTokenUrl: 'https://matrix-platform.example/token', keySetUrl: 'https://matrix-platform.example/jwks',
+  name: 'Matrix platform',
+  issuer: 'https://matrix-platform.example',
+  clientId: 'matrix-client',
+  deploymentIds: ['matrix-deployment'],
+  authLoginUrl: 'https://matrix-platform.example/auth',
+  authTokenUrl: 'https://matrix-platform.example/token',
+  keySetUrl: 'https://matrix-platform.example/jwks',
 };
 let ltiMemo: { registrationId: number; contextId: number } | null = null;
 /** A registration and a connected context of the world's course, made once. */
@@ -86,8 +105,20 @@ const MATRIX: Record<string, Case> = {
     mails: true,
     call: async (_w, role) => {
       const row = await models().EmailOutbox.create({
-        dedupeKey: `matrix-retry:${uniq(role)}`, toAddress: 'matrix.retry@test.example', subject: 'Matrix retry', textBody: 'Test message.', htmlBody: null,
-        submissionId: null, feedbackDocumentId: null, status: 'failed', attempts: 12, nextAttemptAt: new Date(), lockedUntil: null, lastError: 'test', messageId: null, sentAt: null,
+        dedupeKey: `matrix-retry:${uniq(role)}`,
+        toAddress: 'matrix.retry@test.example',
+        subject: 'Matrix retry',
+        textBody: 'Test message.',
+        htmlBody: null,
+        submissionId: null,
+        feedbackDocumentId: null,
+        status: 'failed',
+        attempts: 12,
+        nextAttemptAt: new Date(),
+        lockedUntil: null,
+        lastError: 'test',
+        messageId: null,
+        sentAt: null,
       });
       return { url: `/api/admin/outbox/${row.id}/retry`, params: { id: String(row.id) }, body: {} };
     },
@@ -111,18 +142,34 @@ const MATRIX: Record<string, Case> = {
   },
   'POST /api/courses/[courseId]/cohorts': {
     expect: [401, 403, 403, 403, 403, 201, 403, 201],
-    call: (w, role) => ({ url: `/api/courses/${w.course.id}/cohorts`, params: { courseId: String(w.course.id) }, body: { name: `Matrix ${uniq(role)}`, term: '2027 Spring' } }),
+    call: (w, role) => ({
+      url: `/api/courses/${w.course.id}/cohorts`,
+      params: { courseId: String(w.course.id) },
+      body: { name: `Matrix ${uniq(role)}`, term: '2027 Spring' },
+    }),
   },
   'PATCH /api/courses/[courseId]/cohorts/[cohortId]': {
     expect: [401, 403, 403, 403, 403, 200, 403, 200],
-    call: (w) => ({ url: `/api/courses/${w.course.id}/cohorts/${w.cohort.id}`, params: { courseId: String(w.course.id), cohortId: String(w.cohort.id) }, body: { name: w.cohort.name } }),
+    call: (w) => ({
+      url: `/api/courses/${w.course.id}/cohorts/${w.cohort.id}`,
+      params: { courseId: String(w.course.id), cohortId: String(w.cohort.id) },
+      body: { name: w.cohort.name },
+    }),
   },
   'POST /api/courses/[courseId]/practicals': {
     expect: [401, 403, 403, 403, 403, 201, 403, 201],
     call: (w) => ({
       url: `/api/courses/${w.course.id}/practicals`,
       params: { courseId: String(w.course.id) },
-      body: { title: 'Matrix practical', species: ['H35Cl'], mode: 'practice', maxAttempts: 3, lateRule: 'none', latePenaltyPerDay: 0, latePenaltyCap: 0 },
+      body: {
+        title: 'Matrix practical',
+        species: ['H35Cl'],
+        mode: 'practice',
+        maxAttempts: 3,
+        lateRule: 'none',
+        latePenaltyPerDay: 0,
+        latePenaltyCap: 0,
+      },
     }),
   },
   'GET /api/courses/[courseId]/roster': {
@@ -150,14 +197,21 @@ const MATRIX: Record<string, Case> = {
     expect: [401, 403, 403, 403, 403, 200, 403, 200],
     call: async (w, role) => {
       const { membership } = await spareTa(w, `remove-${uniq(role)}`);
-      return { url: `/api/courses/${w.course.id}/staff/${membership.id}`, params: { courseId: String(w.course.id), membershipId: String(membership.id) } };
+      return {
+        url: `/api/courses/${w.course.id}/staff/${membership.id}`,
+        params: { courseId: String(w.course.id), membershipId: String(membership.id) },
+      };
     },
   },
   'POST /api/courses/[courseId]/ta-assignments': {
     expect: [401, 403, 403, 403, 403, 201, 403, 201],
     call: async (w, role) => {
       const { user } = await spareTa(w, `assign-${uniq(role)}`);
-      return { url: `/api/courses/${w.course.id}/ta-assignments`, params: { courseId: String(w.course.id) }, body: { taId: user.id, cohortId: w.otherCohort.id } };
+      return {
+        url: `/api/courses/${w.course.id}/ta-assignments`,
+        params: { courseId: String(w.course.id) },
+        body: { taId: user.id, cohortId: w.otherCohort.id },
+      };
     },
   },
   'DELETE /api/courses/[courseId]/ta-assignments/[assignmentId]': {
@@ -165,18 +219,28 @@ const MATRIX: Record<string, Case> = {
     call: async (w, role) => {
       const { user } = await spareTa(w, `unassign-${uniq(role)}`);
       const a = await models().TaAssignment.create({ cohortId: w.otherCohort.id, taId: user.id, studentId: null });
-      return { url: `/api/courses/${w.course.id}/ta-assignments/${a.id}`, params: { courseId: String(w.course.id), assignmentId: String(a.id) } };
+      return {
+        url: `/api/courses/${w.course.id}/ta-assignments/${a.id}`,
+        params: { courseId: String(w.course.id), assignmentId: String(a.id) },
+      };
     },
   },
   'POST /api/invitations/accept': {
     // Public: a one-time token is the only credential. An unknown token is 400 for everyone, never 401/403.
     expect: [400, 400, 400, 400, 400, 400, 400, 400],
-    call: () => ({ url: '/api/invitations/accept', body: { token: 'matrix-unknown-token-0123456789', password: 'correct-horse-battery-9', confirm: 'correct-horse-battery-9' } }),
+    call: () => ({
+      url: '/api/invitations/accept',
+      body: { token: 'matrix-unknown-token-0123456789', password: 'correct-horse-battery-9', confirm: 'correct-horse-battery-9' },
+    }),
   },
   'POST /api/password-reset': {
     // Public, and the same answer whether or not the address has an account (no enumeration).
     expect: [200, 200, 200, 200, 200, 200, 200, 200],
-    call: (_w, role) => ({ url: '/api/password-reset', body: { email: `no-account.${uniq(role)}@test.example` }, headers: { 'x-forwarded-for': `192.0.2.${n}` } }),
+    call: (_w, role) => ({
+      url: '/api/password-reset',
+      body: { email: `no-account.${uniq(role)}@test.example` },
+      headers: { 'x-forwarded-for': `192.0.2.${n}` },
+    }),
   },
   'GET /api/health': {
     // Public on purpose (load-balancer health check): a fixed body, no database, no session.
@@ -198,11 +262,19 @@ const MATRIX: Record<string, Case> = {
   },
   'PUT /api/marking/[submissionId]': {
     expect: [401, 403, 403, 200, 403, 200, 403, 200],
-    call: async (w) => ({ url: `/api/marking/${w.submission.id}`, params: { submissionId: String(w.submission.id) }, body: { version: await version(w.submission.id), items: [], markerComment: null } }),
+    call: async (w) => ({
+      url: `/api/marking/${w.submission.id}`,
+      params: { submissionId: String(w.submission.id) },
+      body: { version: await version(w.submission.id), items: [], markerComment: null },
+    }),
   },
   'POST /api/marking/[submissionId]/accept': {
     expect: [401, 403, 403, 200, 403, 200, 403, 200],
-    call: async (w) => ({ url: `/api/marking/${w.submission.id}/accept`, params: { submissionId: String(w.submission.id) }, body: { version: await version(w.submission.id) } }),
+    call: async (w) => ({
+      url: `/api/marking/${w.submission.id}/accept`,
+      params: { submissionId: String(w.submission.id) },
+      body: { version: await version(w.submission.id) },
+    }),
   },
   'GET /api/marking/[submissionId]/preview': {
     expect: [401, 403, 403, 200, 403, 200, 403, 200],
@@ -218,10 +290,26 @@ const MATRIX: Record<string, Case> = {
     expect: [401, 403, 403, 200, 403, 200, 403, 200],
     call: async (w, role) => {
       const row = await models().EmailOutbox.create({
-        dedupeKey: `matrix-resend:${uniq(role)}`, toAddress: w.people.student.email, subject: `Matrix resend ${n}`, textBody: 'Matrix test message.', htmlBody: null,
-        submissionId: w.submission.id, feedbackDocumentId: null, status: 'failed', attempts: 5, nextAttemptAt: new Date(), lockedUntil: null, lastError: 'test', messageId: null, sentAt: null,
+        dedupeKey: `matrix-resend:${uniq(role)}`,
+        toAddress: w.people.student.email,
+        subject: `Matrix resend ${n}`,
+        textBody: 'Matrix test message.',
+        htmlBody: null,
+        submissionId: w.submission.id,
+        feedbackDocumentId: null,
+        status: 'failed',
+        attempts: 5,
+        nextAttemptAt: new Date(),
+        lockedUntil: null,
+        lastError: 'test',
+        messageId: null,
+        sentAt: null,
       });
-      return { url: `/api/marking/${w.submission.id}/resend`, params: { submissionId: String(w.submission.id) }, body: { outboxId: row.id } };
+      return {
+        url: `/api/marking/${w.submission.id}/resend`,
+        params: { submissionId: String(w.submission.id) },
+        body: { outboxId: row.id },
+      };
     },
   },
   'POST /api/marking/[submissionId]/resubmission': {
@@ -229,7 +317,11 @@ const MATRIX: Record<string, Case> = {
     expect: [401, 403, 403, 200, 403, 200, 403, 200],
     call: async (w) => {
       const s = await freshSubmission(w, 'submitted');
-      return { url: `/api/marking/${s.id}/resubmission`, params: { submissionId: String(s.id) }, body: { message: 'Please redo the band centre.', version: s.version } };
+      return {
+        url: `/api/marking/${s.id}/resubmission`,
+        params: { submissionId: String(s.id) },
+        body: { message: 'Please redo the band centre.', version: s.version },
+      };
     },
   },
   'GET /api/moderation': {
@@ -240,7 +332,11 @@ const MATRIX: Record<string, Case> = {
     expect: [401, 403, 403, 403, 403, 200, 403, 200],
     call: async (w) => {
       const s = await freshSubmission(w, 'marked');
-      return { url: `/api/moderation/${s.id}`, params: { submissionId: String(s.id) }, body: { decision: 'confirmed', version: s.version } };
+      return {
+        url: `/api/moderation/${s.id}`,
+        params: { submissionId: String(s.id) },
+        body: { decision: 'confirmed', version: s.version },
+      };
     },
   },
   'POST /api/release': {
@@ -266,8 +362,17 @@ const MATRIX: Record<string, Case> = {
       url: `/api/practicals/${w.setup.id}`,
       params: { practicalId: String(w.setup.id) },
       body: {
-        title: w.setup.title, species: w.setup.species, instructions: w.setup.instructions, hazardNotes: w.setup.hazardNotes, mode: w.setup.mode, maxAttempts: w.setup.maxAttempts,
-        lateRule: w.setup.lateRule, latePenaltyPerDay: w.setup.latePenaltyPerDay, latePenaltyCap: w.setup.latePenaltyCap, rubric: w.setup.rubric, deadlines: [],
+        title: w.setup.title,
+        species: w.setup.species,
+        instructions: w.setup.instructions,
+        hazardNotes: w.setup.hazardNotes,
+        mode: w.setup.mode,
+        maxAttempts: w.setup.maxAttempts,
+        lateRule: w.setup.lateRule,
+        latePenaltyPerDay: w.setup.latePenaltyPerDay,
+        latePenaltyCap: w.setup.latePenaltyCap,
+        rubric: w.setup.rubric,
+        deadlines: [],
       },
     }),
   },
@@ -277,7 +382,16 @@ const MATRIX: Record<string, Case> = {
     call: (w) => ({
       url: `/api/practicals/${w.practical.id}/bands`,
       params: { practicalId: String(w.practical.id) },
-      body: { quantityDefinitionId: w.defs['bandCentre:H35Cl'].id, cohortId: null, basis: 'accuracy', kind: 'absolute', inner: 2, outer: 5, unit: 'cm-1', recheck: false },
+      body: {
+        quantityDefinitionId: w.defs['bandCentre:H35Cl'].id,
+        cohortId: null,
+        basis: 'accuracy',
+        kind: 'absolute',
+        inner: 2,
+        outer: 5,
+        unit: 'cm-1',
+        recheck: false,
+      },
     }),
   },
   'DELETE /api/practicals/[practicalId]/bands': {
@@ -285,7 +399,16 @@ const MATRIX: Record<string, Case> = {
     call: async (w) => {
       const [band] = await models().ToleranceBand.findOrCreate({
         where: { quantityDefinitionId: w.setupQuantity.id, cohortId: w.cohort.id, basis: 'accuracy' },
-        defaults: { quantityDefinitionId: w.setupQuantity.id, cohortId: w.cohort.id, basis: 'accuracy', kind: 'absolute', inner: 1, outer: null, unit: 'cm-1', updatedById: null },
+        defaults: {
+          quantityDefinitionId: w.setupQuantity.id,
+          cohortId: w.cohort.id,
+          basis: 'accuracy',
+          kind: 'absolute',
+          inner: 1,
+          outer: null,
+          unit: 'cm-1',
+          updatedById: null,
+        },
       });
       return { url: `/api/practicals/${w.setup.id}/bands`, params: { practicalId: String(w.setup.id) }, body: { bandId: band.id } };
     },
@@ -296,15 +419,27 @@ const MATRIX: Record<string, Case> = {
   },
   'PUT /api/practicals/[practicalId]/spectrum-settings': {
     expect: [401, 403, 403, 403, 403, 200, 403, 200],
-    call: (w) => ({ url: `/api/practicals/${w.setup.id}/spectrum-settings`, params: { practicalId: String(w.setup.id) }, body: { spectrumAnalysis: true, samples: null } }),
+    call: (w) => ({
+      url: `/api/practicals/${w.setup.id}/spectrum-settings`,
+      params: { practicalId: String(w.setup.id) },
+      body: { spectrumAnalysis: true, samples: null },
+    }),
   },
   'POST /api/practicals/[practicalId]/copy': {
     expect: [401, 403, 403, 403, 403, 201, 403, 201],
-    call: (w) => ({ url: `/api/practicals/${w.setup.id}/copy`, params: { practicalId: String(w.setup.id) }, body: { title: 'Matrix copy', cohortMap: {}, deadlines: [] } }),
+    call: (w) => ({
+      url: `/api/practicals/${w.setup.id}/copy`,
+      params: { practicalId: String(w.setup.id) },
+      body: { title: 'Matrix copy', cohortMap: {}, deadlines: [] },
+    }),
   },
   'POST /api/practicals/[practicalId]/preview': {
     expect: [401, 403, 403, 403, 403, 200, 403, 200],
-    call: (w) => ({ url: `/api/practicals/${w.practical.id}/preview`, params: { practicalId: String(w.practical.id) }, body: { quantityDefinitionId: w.defs['bandCentre:H35Cl'].id, cohortId: w.cohort.id, value: 2886.0, unit: 'cm-1' } }),
+    call: (w) => ({
+      url: `/api/practicals/${w.practical.id}/preview`,
+      params: { practicalId: String(w.practical.id) },
+      body: { quantityDefinitionId: w.defs['bandCentre:H35Cl'].id, cohortId: w.cohort.id, value: 2886.0, unit: 'cm-1' },
+    }),
   },
   'POST /api/practicals/[practicalId]/quantities': {
     expect: [401, 403, 403, 403, 403, 201, 403, 201],
@@ -313,7 +448,16 @@ const MATRIX: Record<string, Case> = {
       return {
         url: `/api/practicals/${w.setup.id}/quantities`,
         params: { practicalId: String(w.setup.id) },
-        body: { key: 'B1', species: 'H35Cl', unit: 'cm-1', marks: 1, uncertaintyRequired: false, referenceKind: 'department', referenceValue: 10.1, referenceNote: 'Matrix test value (invented).' },
+        body: {
+          key: 'B1',
+          species: 'H35Cl',
+          unit: 'cm-1',
+          marks: 1,
+          uncertaintyRequired: false,
+          referenceKind: 'department',
+          referenceValue: 10.1,
+          referenceNote: 'Matrix test value (invented).',
+        },
       };
     },
   },
@@ -330,9 +474,23 @@ const MATRIX: Record<string, Case> = {
     call: async (w) => {
       const [q] = await models().QuantityDefinition.findOrCreate({
         where: { practicalId: w.setup.id, key: 'B0', species: 'H35Cl' },
-        defaults: { practicalId: w.setup.id, key: 'B0', species: 'H35Cl', unit: 'cm-1', marks: 1, uncertaintyRequired: false, referenceKind: 'literature', referenceValueSI: null, referenceNote: null, position: 9 },
+        defaults: {
+          practicalId: w.setup.id,
+          key: 'B0',
+          species: 'H35Cl',
+          unit: 'cm-1',
+          marks: 1,
+          uncertaintyRequired: false,
+          referenceKind: 'literature',
+          referenceValueSI: null,
+          referenceNote: null,
+          position: 9,
+        },
       });
-      return { url: `/api/practicals/${w.setup.id}/quantities/${q.id}`, params: { practicalId: String(w.setup.id), quantityId: String(q.id) } };
+      return {
+        url: `/api/practicals/${w.setup.id}/quantities/${q.id}`,
+        params: { practicalId: String(w.setup.id), quantityId: String(q.id) },
+      };
     },
   },
   // Statistics of one cohort: its TA and the course's managers; a TA of another cohort not.
@@ -348,15 +506,24 @@ const MATRIX: Record<string, Case> = {
   'GET /api/statistics/practicals/[id]/export/marks': {
     // Records export: managers only, not TAs.
     expect: [401, 403, 403, 403, 403, 200, 403, 200],
-    call: (w) => ({ url: `/api/statistics/practicals/${w.practical.id}/export/marks?cohortId=${w.cohort.id}`, params: { id: String(w.practical.id) } }),
+    call: (w) => ({
+      url: `/api/statistics/practicals/${w.practical.id}/export/marks?cohortId=${w.cohort.id}`,
+      params: { id: String(w.practical.id) },
+    }),
   },
   'GET /api/statistics/practicals/[id]/export/statistics': {
     expect: [401, 403, 403, 200, 403, 200, 403, 200],
-    call: (w) => ({ url: `/api/statistics/practicals/${w.practical.id}/export/statistics?cohortId=${w.cohort.id}`, params: { id: String(w.practical.id) } }),
+    call: (w) => ({
+      url: `/api/statistics/practicals/${w.practical.id}/export/statistics?cohortId=${w.cohort.id}`,
+      params: { id: String(w.practical.id) },
+    }),
   },
   'GET /api/statistics/practicals/[id]/export/summary': {
     expect: [401, 403, 403, 200, 403, 200, 403, 200],
-    call: (w) => ({ url: `/api/statistics/practicals/${w.practical.id}/export/summary?cohortId=${w.cohort.id}`, params: { id: String(w.practical.id) } }),
+    call: (w) => ({
+      url: `/api/statistics/practicals/${w.practical.id}/export/summary?cohortId=${w.cohort.id}`,
+      params: { id: String(w.practical.id) },
+    }),
   },
   'GET /api/submissions/[id]': {
     expect: [401, 200, 403, 200, 403, 200, 403, 200],
@@ -378,17 +545,27 @@ const MATRIX: Record<string, Case> = {
   'POST /api/submissions/[id]/submit': {
     // Only the student themself; not even an admin submits for them. One real submit (201).
     expect: [401, 201, 403, 403, 403, 403, 403, 403],
-    call: async (w) => ({ url: `/api/submissions/${w.draftB.id}/submit`, params: { id: String(w.draftB.id) }, body: { version: await version(w.draftB.id), draft: w.draftB.draft } }),
+    call: async (w) => ({
+      url: `/api/submissions/${w.draftB.id}/submit`,
+      params: { id: String(w.draftB.id) },
+      body: { version: await version(w.draftB.id), draft: w.draftB.draft },
+    }),
   },
   'POST /api/submissions/check': {
     // The same callers as autosave: only a student of a cohort the practical is set for. Writes nothing.
     expect: [401, 200, 403, 403, 403, 403, 403, 403],
-    call: (w) => ({ url: '/api/submissions/check', body: { practicalId: w.draftC.practicalId, draft: { species: {}, spectrumUploadId: null, reportUploadId: null } } }),
+    call: (w) => ({
+      url: '/api/submissions/check',
+      body: { practicalId: w.draftC.practicalId, draft: { species: {}, spectrumUploadId: null, reportUploadId: null } },
+    }),
   },
   'PUT /api/submissions/draft': {
     // Practical C is set only for `student`'s cohort: the other cohort's student is refused too.
     expect: [401, 200, 403, 403, 403, 403, 403, 403],
-    call: (w) => ({ url: '/api/submissions/draft', body: { practicalId: w.draftC.practicalId, draft: { species: {}, spectrumUploadId: null, reportUploadId: null } } }),
+    call: (w) => ({
+      url: '/api/submissions/draft',
+      body: { practicalId: w.draftC.practicalId, draft: { species: {}, spectrumUploadId: null, reportUploadId: null } },
+    }),
   },
   'POST /api/uploads': {
     expect: [401, 201, 403, 403, 403, 403, 403, 403],
@@ -421,12 +598,20 @@ const MATRIX: Record<string, Case> = {
   },
   'POST /api/lti/launch': {
     expect: [401, 401, 401, 401, 401, 401, 401, 401],
-    call: () => ({ url: '/api/lti/launch', rawBody: 'id_token=x.y.z&state=not-this-browsers&oscillab_relay=1', headers: { 'content-type': 'application/x-www-form-urlencoded' } }),
+    call: () => ({
+      url: '/api/lti/launch',
+      rawBody: 'id_token=x.y.z&state=not-this-browsers&oscillab_relay=1',
+      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+    }),
   },
   'POST /api/lti/deep-link': {
     // Signed in, then the ticket (bound to the account that launched) decides: a forged one is a 400 for everyone.
     expect: [401, 400, 400, 400, 400, 400, 400, 400],
-    call: () => ({ url: '/api/lti/deep-link', rawBody: 't=forged&practicalId=1', headers: { 'content-type': 'application/x-www-form-urlencoded' } }),
+    call: () => ({
+      url: '/api/lti/deep-link',
+      rawBody: 't=forged&practicalId=1',
+      headers: { 'content-type': 'application/x-www-form-urlencoded' },
+    }),
   },
   'GET /api/lti/registrations': {
     expect: [401, 403, 403, 403, 403, 403, 403, 200],
@@ -440,7 +625,11 @@ const MATRIX: Record<string, Case> = {
     expect: [401, 403, 403, 403, 403, 403, 403, 200],
     call: async (w) => {
       const { registrationId } = await ltiRows(w);
-      return { url: `/api/lti/registrations/${registrationId}`, params: { registrationId: String(registrationId) }, body: { name: LTI_REGISTRATION.name } };
+      return {
+        url: `/api/lti/registrations/${registrationId}`,
+        params: { registrationId: String(registrationId) },
+        body: { name: LTI_REGISTRATION.name },
+      };
     },
   },
   'DELETE /api/lti/registrations/[registrationId]': {
@@ -477,7 +666,17 @@ const MATRIX: Record<string, Case> = {
     expect: [401, 403, 403, 403, 403, 403, 403, 200],
     call: async (w, role) => {
       const { registrationId } = await ltiRows(w);
-      const row = await models().LtiContext.create({ registrationId, contextId: `matrix-del-${uniq(role)}`, courseId: w.course.id, defaultCohortId: null, title: null, membershipsUrl: null, lineItemsUrl: null, agsScopes: null, rosterSyncedAt: null });
+      const row = await models().LtiContext.create({
+        registrationId,
+        contextId: `matrix-del-${uniq(role)}`,
+        courseId: w.course.id,
+        defaultCohortId: null,
+        title: null,
+        membershipsUrl: null,
+        lineItemsUrl: null,
+        agsScopes: null,
+        rosterSyncedAt: null,
+      });
       return { url: `/api/lti/contexts/${row.id}`, params: { contextId: String(row.id) } };
     },
   },
@@ -493,7 +692,11 @@ const MATRIX: Record<string, Case> = {
     expect: [401, 403, 403, 403, 403, 409, 403, 409],
     call: async (w) => {
       const { contextId } = await ltiRows(w);
-      return { url: `/api/lti/contexts/${contextId}/roster`, params: { contextId: String(contextId) }, body: { fingerprint: '0'.repeat(32) } };
+      return {
+        url: `/api/lti/contexts/${contextId}/roster`,
+        params: { contextId: String(contextId) },
+        body: { fingerprint: '0'.repeat(32) },
+      };
     },
   },
   'GET /api/lti/submissions/[submissionId]/scores': {
@@ -505,9 +708,23 @@ const MATRIX: Record<string, Case> = {
     call: async (w, role) => {
       const { contextId } = await ltiRows(w);
       const row = await models().LtiScoreOutbox.create({
-        dedupeKey: `matrix-score:${uniq(role)}`, ltiContextId: contextId, practicalId: w.submission.practicalId, submissionId: w.submission.id, userId: w.people.student.id,
-        platformUserId: 'matrix-user', scoreGiven: 1, scoreMaximum: 2, comment: null, scoredAt: new Date(), lineItemUrl: null, status: 'failed', attempts: 12,
-        nextAttemptAt: new Date(), lockedUntil: null, lastError: 'test', sentAt: null,
+        dedupeKey: `matrix-score:${uniq(role)}`,
+        ltiContextId: contextId,
+        practicalId: w.submission.practicalId,
+        submissionId: w.submission.id,
+        userId: w.people.student.id,
+        platformUserId: 'matrix-user',
+        scoreGiven: 1,
+        scoreMaximum: 2,
+        comment: null,
+        scoredAt: new Date(),
+        lineItemUrl: null,
+        status: 'failed',
+        attempts: 12,
+        nextAttemptAt: new Date(),
+        lockedUntil: null,
+        lastError: 'test',
+        sentAt: null,
       });
       return { url: `/api/lti/scores/${row.id}/resend`, params: { scoreId: String(row.id) } };
     },
@@ -554,7 +771,9 @@ async function settleOutbox() {
   // …and then we wait for the background run to finish the row it may still be sending.
   const end = Date.now() + 10_000;
   while (Date.now() < end) {
-    const due = await models().EmailOutbox.count({ where: { [Op.or]: [{ status: 'sending' }, { status: 'queued', nextAttemptAt: { [Op.lte]: new Date() } }] } });
+    const due = await models().EmailOutbox.count({
+      where: { [Op.or]: [{ status: 'sending' }, { status: 'queued', nextAttemptAt: { [Op.lte]: new Date() } }] },
+    });
     if (due === 0) return;
     await new Promise((r) => setTimeout(r, 50));
   }
@@ -568,7 +787,10 @@ describe('authorisation matrix', () => {
   it('has exactly one entry (or a reasoned skip) for every route handler in app/api', () => {
     const found = handlers.map((h) => h.key).sort();
     const listed = [...Object.keys(MATRIX), ...Object.keys(SKIPPED)].sort();
-    expect({ missingFromMatrix: found.filter((k) => !listed.includes(k)), noSuchRoute: listed.filter((k) => !found.includes(k)) }).toEqual({ missingFromMatrix: [], noSuchRoute: [] });
+    expect({ missingFromMatrix: found.filter((k) => !listed.includes(k)), noSuchRoute: listed.filter((k) => !found.includes(k)) }).toEqual({
+      missingFromMatrix: [],
+      noSuchRoute: [],
+    });
     expect(Object.keys(MATRIX).filter((k) => k in SKIPPED)).toEqual([]);
   });
 
@@ -585,11 +807,18 @@ describe('authorisation matrix', () => {
       const wanted: Record<string, number | string> = {};
       for (const [i, role] of ROLES.entries()) {
         const call = await c.call(world, role);
-        const request = await apiRequest(call.url, { method, as: userId(role), body: call.body, rawBody: call.rawBody, headers: call.headers });
+        const request = await apiRequest(call.url, {
+          method,
+          as: userId(role),
+          body: call.body,
+          rawBody: call.rawBody,
+          headers: call.headers,
+        });
         const res = await handler!.handler(request, call.params ? params(call.params) : {});
         const exp = c.expect[i];
         let detail = '';
-        if (!matches(exp, res.status) && (res.headers.get('content-type') ?? '').includes('json')) detail = ` ${JSON.stringify(await res.json()).slice(0, 200)}`;
+        if (!matches(exp, res.status) && (res.headers.get('content-type') ?? '').includes('json'))
+          detail = ` ${JSON.stringify(await res.json()).slice(0, 200)}`;
         else await res.arrayBuffer();
         if (c.mails) await settleOutbox();
         actual[role] = matches(exp, res.status) ? exp : `${res.status}${detail}`;

@@ -124,7 +124,11 @@ function variants(e: Entry, valid: { [k: string]: Json }): Variant[] {
     { name: '1 MB extra field', body: { ...valid, padding: MB } },
     { name: '1 MB array of numbers', raw: `[${'1,'.repeat(550_000)}1]` },
     { name: 'text/plain', body: valid, type: 'text/plain' },
-    { name: 'form-encoded', raw: new URLSearchParams(Object.entries(valid).map(([k, v]) => [k, String(v)])).toString(), type: 'application/x-www-form-urlencoded' },
+    {
+      name: 'form-encoded',
+      raw: new URLSearchParams(Object.entries(valid).map(([k, v]) => [k, String(v)])).toString(),
+      type: 'application/x-www-form-urlencoded',
+    },
     { name: 'multipart type with JSON', body: valid, type: 'multipart/form-data; boundary=x' },
     { name: 'no content type', body: valid, type: null },
   );
@@ -135,7 +139,8 @@ function variants(e: Entry, valid: { [k: string]: Json }): Variant[] {
   out.push({ name: 'nested 100 000 deep (raw)', raw: `${'['.repeat(100_000)}${']'.repeat(100_000)}` });
 
   // Missing required fields.
-  for (const k of Object.keys(valid)) if (!(e.optional ?? []).includes(k)) out.push({ name: `missing ${k}`, body: setAt(valid, [k], undefined) });
+  for (const k of Object.keys(valid))
+    if (!(e.optional ?? []).includes(k)) out.push({ name: `missing ${k}`, body: setAt(valid, [k], undefined) });
 
   // One field at a time.
   for (const path of paths(valid)) {
@@ -162,8 +167,13 @@ function variants(e: Entry, valid: { [k: string]: Json }): Variant[] {
       if (text.has(name)) {
         const breaker = breakFor(path);
         if (breaker) {
-          for (const [label, s] of INJECTIONS) out.push({ name: `${name} = ${label} (+ ${Object.keys(breaker)[0]} broken)`, body: { ...(setAt(valid, path, s) as object), ...breaker } });
-          for (const [label, lit] of RAW_STRINGS) raw(`${name} = ${label} (+ ${Object.keys(breaker)[0]} broken)`, { ...valid, ...breaker }, path, lit);
+          for (const [label, s] of INJECTIONS)
+            out.push({
+              name: `${name} = ${label} (+ ${Object.keys(breaker)[0]} broken)`,
+              body: { ...(setAt(valid, path, s) as object), ...breaker },
+            });
+          for (const [label, lit] of RAW_STRINGS)
+            raw(`${name} = ${label} (+ ${Object.keys(breaker)[0]} broken)`, { ...valid, ...breaker }, path, lit);
         }
       } else {
         for (const [label, s] of INJECTIONS) put(label, s);
@@ -195,7 +205,12 @@ function variants(e: Entry, valid: { [k: string]: Json }): Variant[] {
 }
 
 const version = async (id: number) => (await models().Submission.findByPk(id))!.version;
-let extra: { outboxId: number; marked: { id: number; version: number }; open: { id: number; version: number }; lti: { registrationId: number; contextId: number } };
+let extra: {
+  outboxId: number;
+  marked: { id: number; version: number };
+  open: { id: number; version: number };
+  lti: { registrationId: number; contextId: number };
+};
 
 const practicalBody = (w: FixtureWorld): { [k: string]: Json } => ({
   title: 'Bad input practical',
@@ -211,13 +226,23 @@ const practicalBody = (w: FixtureWorld): { [k: string]: Json } => ({
   deadlines: [{ cohortId: w.cohort.id, deadline: '2027-01-15T17:00:00Z' }],
 });
 const PRACTICAL_TEXT = ['title', 'instructions', 'hazardNotes', 'rubric.0.title', 'rubric.0.guidance'];
-const draftText = ['lineText', 'bandCentre.value', 'bandCentre.unit', 'bandCentre.uncertainty', ...['bandCentre', 'reducedMass', 'forceConstant'].flatMap((k) => ['value', 'unit', 'uncertainty'].map((f) => `values.${k}.${f}`))].map(
-  (p) => `draft.species.H35Cl.${p}`,
-);
+const draftText = [
+  'lineText',
+  'bandCentre.value',
+  'bandCentre.unit',
+  'bandCentre.uncertainty',
+  ...['bandCentre', 'reducedMass', 'forceConstant'].flatMap((k) => ['value', 'unit', 'uncertainty'].map((f) => `values.${k}.${f}`)),
+].map((p) => `draft.species.H35Cl.${p}`);
 
 const LTI_REGISTRATION = {
-  name: 'Bad input platform', issuer: 'https://bad-input-new.example', clientId: 'bad-input-client', deploymentIds: ['bad-input-deployment'],
-  authLoginUrl: 'https://bad-input-new.example/auth', authTokenUrl: 'https://bad-input-new.example/token', keySetUrl: 'https://bad-input-new.example/jwks', tokenAudience: 'https://bad-input-new.example/token',
+  name: 'Bad input platform',
+  issuer: 'https://bad-input-new.example',
+  clientId: 'bad-input-client',
+  deploymentIds: ['bad-input-deployment'],
+  authLoginUrl: 'https://bad-input-new.example/auth',
+  authTokenUrl: 'https://bad-input-new.example/token',
+  keySetUrl: 'https://bad-input-new.example/jwks',
+  tokenAudience: 'https://bad-input-new.example/token',
 };
 
 const BAD: Record<string, Entry> = {
@@ -231,7 +256,10 @@ const BAD: Record<string, Entry> = {
   },
   'PATCH /api/lti/registrations/[registrationId]': {
     as: 'admin',
-    call: () => ({ url: `/api/lti/registrations/${extra.lti.registrationId}`, params: { registrationId: String(extra.lti.registrationId) } }),
+    call: () => ({
+      url: `/api/lti/registrations/${extra.lti.registrationId}`,
+      params: { registrationId: String(extra.lti.registrationId) },
+    }),
     body: () => ({ ...LTI_REGISTRATION, issuer: 'https://bad-input-platform.example', active: true }),
     optional: Object.keys({ ...LTI_REGISTRATION, active: true }),
     text: ['name', 'clientId', 'deploymentIds.0'],
@@ -240,7 +268,12 @@ const BAD: Record<string, Entry> = {
   'POST /api/lti/contexts': {
     as: 'admin',
     call: () => ({ url: '/api/lti/contexts' }),
-    body: (w) => ({ registrationId: extra.lti.registrationId, contextId: 'bad-input-new-context', courseId: w.course.id, defaultCohortId: w.cohort.id }),
+    body: (w) => ({
+      registrationId: extra.lti.registrationId,
+      contextId: 'bad-input-new-context',
+      courseId: w.course.id,
+      defaultCohortId: w.cohort.id,
+    }),
     optional: ['defaultCohortId'],
     text: ['contextId'],
     breakers: { registrationId: 'first', courseId: 'this one' },
@@ -286,7 +319,10 @@ const BAD: Record<string, Entry> = {
   },
   'PATCH /api/courses/[courseId]/cohorts/[cohortId]': {
     as: 'admin',
-    call: (w) => ({ url: `/api/courses/${w.course.id}/cohorts/${w.cohort.id}`, params: { courseId: String(w.course.id), cohortId: String(w.cohort.id) } }),
+    call: (w) => ({
+      url: `/api/courses/${w.course.id}/cohorts/${w.cohort.id}`,
+      params: { courseId: String(w.course.id), cohortId: String(w.cohort.id) },
+    }),
     body: () => ({ name: 'Renamed cohort', term: '2027 Spring', instrument: 'Bench 9', archived: false }),
     optional: ['name', 'term', 'instrument', 'archived'],
     text: ['name', 'term', 'instrument'],
@@ -330,7 +366,11 @@ const BAD: Record<string, Entry> = {
   'PUT /api/marking/[submissionId]': {
     as: 'admin',
     call: (w) => ({ url: `/api/marking/${w.submission.id}`, params: { submissionId: String(w.submission.id) } }),
-    body: (w) => ({ version: w.submission.version, items: [{ itemKey: 'rubric:discussion', awarded: 1, comment: 'Good discussion.' }], markerComment: 'Well done.' }),
+    body: (w) => ({
+      version: w.submission.version,
+      items: [{ itemKey: 'rubric:discussion', awarded: 1, comment: 'Good discussion.' }],
+      markerComment: 'Well done.',
+    }),
     optional: ['markerComment'],
     text: ['items.0.comment', 'markerComment'],
     breakers: { version: 'one', items: 'none' },
@@ -356,7 +396,12 @@ const BAD: Record<string, Entry> = {
   'POST /api/moderation/[submissionId]': {
     as: 'admin',
     call: () => ({ url: `/api/moderation/${extra.marked.id}`, params: { submissionId: String(extra.marked.id) } }),
-    body: () => ({ decision: 'changed', version: extra.marked.version, items: [{ itemKey: 'rubric:discussion', awarded: 2 }], note: 'Discussion deserved full marks.' }),
+    body: () => ({
+      decision: 'changed',
+      version: extra.marked.version,
+      items: [{ itemKey: 'rubric:discussion', awarded: 2 }],
+      note: 'Discussion deserved full marks.',
+    }),
     optional: ['items'],
     text: ['note'],
     breakers: { decision: 'maybe' },
@@ -386,7 +431,16 @@ const BAD: Record<string, Entry> = {
   'PUT /api/practicals/[practicalId]/bands': {
     as: 'admin',
     call: (w) => ({ url: `/api/practicals/${w.practical.id}/bands`, params: { practicalId: String(w.practical.id) } }),
-    body: (w) => ({ quantityDefinitionId: w.defs['bandCentre:H35Cl'].id, cohortId: null, basis: 'accuracy', kind: 'absolute', inner: 1, outer: 4, unit: 'cm-1', recheck: false }),
+    body: (w) => ({
+      quantityDefinitionId: w.defs['bandCentre:H35Cl'].id,
+      cohortId: null,
+      basis: 'accuracy',
+      kind: 'absolute',
+      inner: 1,
+      outer: 4,
+      unit: 'cm-1',
+      recheck: false,
+    }),
     optional: ['outer'],
     text: ['unit'],
     breakers: { basis: 'both' },
@@ -415,7 +469,14 @@ const BAD: Record<string, Entry> = {
   'POST /api/practicals/[practicalId]/preview': {
     as: 'admin',
     call: (w) => ({ url: `/api/practicals/${w.practical.id}/preview`, params: { practicalId: String(w.practical.id) } }),
-    body: (w) => ({ quantityDefinitionId: w.defs['bandCentre:H35Cl'].id, cohortId: w.cohort.id, value: 2886.0, unit: 'cm-1', uncertainty: 0.5, recomputed: 2886.1 }),
+    body: (w) => ({
+      quantityDefinitionId: w.defs['bandCentre:H35Cl'].id,
+      cohortId: w.cohort.id,
+      value: 2886.0,
+      unit: 'cm-1',
+      uncertainty: 0.5,
+      recomputed: 2886.1,
+    }),
     optional: ['uncertainty', 'recomputed'],
     text: ['unit'],
     breakers: { value: 'about 2886' },
@@ -423,15 +484,38 @@ const BAD: Record<string, Entry> = {
   'POST /api/practicals/[practicalId]/quantities': {
     as: 'admin',
     call: (w) => ({ url: `/api/practicals/${w.setup.id}/quantities`, params: { practicalId: String(w.setup.id) } }),
-    body: () => ({ key: 'B1', species: 'H35Cl', unit: 'cm-1', marks: 1, uncertaintyRequired: false, referenceKind: 'department', referenceValue: 10.1, referenceNote: 'Invented department value.', position: 5 }),
+    body: () => ({
+      key: 'B1',
+      species: 'H35Cl',
+      unit: 'cm-1',
+      marks: 1,
+      uncertaintyRequired: false,
+      referenceKind: 'department',
+      referenceValue: 10.1,
+      referenceNote: 'Invented department value.',
+      position: 5,
+    }),
     optional: ['position'],
     text: ['referenceNote'],
     breakers: { key: 'notAQuantity' },
   },
   'PUT /api/practicals/[practicalId]/quantities/[quantityId]': {
     as: 'admin',
-    call: (w) => ({ url: `/api/practicals/${w.setup.id}/quantities/${w.setupQuantity.id}`, params: { practicalId: String(w.setup.id), quantityId: String(w.setupQuantity.id) } }),
-    body: () => ({ key: 'bandCentre', species: 'H35Cl', unit: 'cm-1', marks: 3, uncertaintyRequired: false, referenceKind: 'department', referenceValue: 2886.1, referenceNote: 'Invented department value.', position: 1 }),
+    call: (w) => ({
+      url: `/api/practicals/${w.setup.id}/quantities/${w.setupQuantity.id}`,
+      params: { practicalId: String(w.setup.id), quantityId: String(w.setupQuantity.id) },
+    }),
+    body: () => ({
+      key: 'bandCentre',
+      species: 'H35Cl',
+      unit: 'cm-1',
+      marks: 3,
+      uncertaintyRequired: false,
+      referenceKind: 'department',
+      referenceValue: 2886.1,
+      referenceNote: 'Invented department value.',
+      position: 1,
+    }),
     optional: ['position'],
     text: ['referenceNote'],
     breakers: { key: 'notAQuantity' },
@@ -481,12 +565,35 @@ beforeAll(async () => {
   const open = await freshSubmission(world, 'submitted');
   const marked = await freshSubmission(world, 'marked');
   const row = await models().EmailOutbox.create({
-    dedupeKey: 'bad-input:resend', toAddress: world.people.student.email, subject: 'Bad input resend', textBody: 'Test message.', htmlBody: null,
-    submissionId: world.submission.id, feedbackDocumentId: null, status: 'failed', attempts: 5, nextAttemptAt: new Date(), lockedUntil: null, lastError: 'test', messageId: null, sentAt: null,
+    dedupeKey: 'bad-input:resend',
+    toAddress: world.people.student.email,
+    subject: 'Bad input resend',
+    textBody: 'Test message.',
+    htmlBody: null,
+    submissionId: world.submission.id,
+    feedbackDocumentId: null,
+    status: 'failed',
+    attempts: 5,
+    nextAttemptAt: new Date(),
+    lockedUntil: null,
+    lastError: 'test',
+    messageId: null,
+    sentAt: null,
   });
-  const registration = await createRegistration({ ...LTI_REGISTRATION, issuer: 'https://bad-input-platform.example' }, world.people.admin.id);
-  const context = await connectContext({ registrationId: registration.id, contextId: 'bad-input-context', courseId: world.course.id }, world.people.admin.id);
-  extra = { outboxId: row.id, open: { id: open.id, version: open.version }, marked: { id: marked.id, version: marked.version }, lti: { registrationId: registration.id, contextId: context.id } };
+  const registration = await createRegistration(
+    { ...LTI_REGISTRATION, issuer: 'https://bad-input-platform.example' },
+    world.people.admin.id,
+  );
+  const context = await connectContext(
+    { registrationId: registration.id, contextId: 'bad-input-context', courseId: world.course.id },
+    world.people.admin.id,
+  );
+  extra = {
+    outboxId: row.id,
+    open: { id: open.id, version: open.version },
+    marked: { id: marked.id, version: marked.version },
+    lti: { registrationId: registration.id, contextId: context.id },
+  };
   extraDraftVersion = await version(world.draftB.id);
   world.submission = (await models().Submission.findByPk(world.submission.id))!;
   before = await tableChecksums();
@@ -495,7 +602,12 @@ beforeAll(async () => {
 
 /** A sentence a person can act on: starts with a capital, several words, no internals. */
 function readsAsSentence(error: unknown): boolean {
-  return typeof error === 'string' && /^["'\p{Lu}\d]/u.test(error) && error.trim().split(/\s+/).length >= 3 && !/undefined|\[object |at \w+ \(|Sequelize|SQLITE|TypeError/.test(error);
+  return (
+    typeof error === 'string' &&
+    /^["'\p{Lu}\d]/u.test(error) &&
+    error.trim().split(/\s+/).length >= 3 &&
+    !/undefined|\[object |at \w+ \(|Sequelize|SQLITE|TypeError/.test(error)
+  );
 }
 
 async function send(h: RouteHandler, e: Entry, v: Variant) {
@@ -525,9 +637,15 @@ function methodSource(source: string, method: string): string {
 
 describe('bad input', () => {
   it('every state-changing handler that reads JSON has a garbage entry (or a reason it reads none)', () => {
-    const jsonHandlers = handlers.filter((h) => h.method !== 'GET' && /readJson\(/.test(methodSource(h.source, h.method))).map((h) => h.key);
+    const jsonHandlers = handlers
+      .filter((h) => h.method !== 'GET' && /readJson\(/.test(methodSource(h.source, h.method)))
+      .map((h) => h.key);
     const writers = handlers.filter((h) => h.method !== 'GET').map((h) => h.key);
-    expect({ missing: jsonHandlers.filter((k) => !(k in BAD)), notJson: jsonHandlers.filter((k) => k in NOT_JSON), stale: [...Object.keys(BAD), ...Object.keys(NOT_JSON)].filter((k) => !writers.includes(k)) }).toEqual({
+    expect({
+      missing: jsonHandlers.filter((k) => !(k in BAD)),
+      notJson: jsonHandlers.filter((k) => k in NOT_JSON),
+      stale: [...Object.keys(BAD), ...Object.keys(NOT_JSON)].filter((k) => !writers.includes(k)),
+    }).toEqual({
       missing: [],
       notJson: [],
       stale: [],
@@ -549,7 +667,8 @@ describe('bad input', () => {
         try {
           body = JSON.parse(text);
         } catch {}
-        if (res.status < 400 || res.status >= 500 || !readsAsSentence(body.error)) failures.push(`${v.name}: ${res.status} ${text.slice(0, 160)}`);
+        if (res.status < 400 || res.status >= 500 || !readsAsSentence(body.error))
+          failures.push(`${v.name}: ${res.status} ${text.slice(0, 160)}`);
       }
       expect(all.length).toBeGreaterThan(20);
       const end = await tableChecksums();
@@ -568,15 +687,47 @@ describe('bad input', () => {
     const cases: [string, BodyInit, string][] = [
       ['no boundary', 'whatever', 'multipart/form-data'],
       ['wrong boundary', `${part('submissionId', id)}${part('kind', 'spectrum')}--${b}--\r\n`, 'multipart/form-data; boundary=other'],
-      ['truncated', `${part('submissionId', id)}${part('kind', 'spectrum')}--${b}\r\nContent-Disposition: form-data; name="file"; filename="a.jdx"\r\n\r\n##TITLE=`, `multipart/form-data; boundary=${b}`],
+      [
+        'truncated',
+        `${part('submissionId', id)}${part('kind', 'spectrum')}--${b}\r\nContent-Disposition: form-data; name="file"; filename="a.jdx"\r\n\r\n##TITLE=`,
+        `multipart/form-data; boundary=${b}`,
+      ],
       ['no file', `${part('submissionId', id)}${part('kind', 'spectrum')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
-      ['sql in submissionId', `${part('submissionId', SQLI)}${part('kind', 'spectrum')}${part('file', '##TITLE=x', 'a.jdx')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
-      ['1e309 submissionId', `${part('submissionId', '1e309')}${part('kind', 'spectrum')}${part('file', '##TITLE=x', 'a.jdx')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
-      ['html kind', `${part('submissionId', id)}${part('kind', '<script>alert(1)</script>')}${part('file', '##TITLE=x', 'a.jdx')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
-      ['two files', `${part('submissionId', id)}${part('kind', 'spectrum')}${part('file', '##TITLE=x', 'a.jdx')}${part('file2', '##TITLE=y', 'b.jdx')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
-      ['NUL and RTL in the file name', `${part('submissionId', id)}${part('kind', 'report')}${part('file', '%PDF-1.4 nonsense', 'a\u0000\u202Efdp.exe')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
-      ['JCAMP-DX DUP bomb (188 bytes, 200 million points)', `${part('submissionId', id)}${part('kind', 'spectrum')}${part('file', JCAMP_DUP_BOMB, 'bomb.jdx')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
-      ['garbage bytes as a spectrum', `${part('submissionId', id)}${part('kind', 'spectrum')}${part('file', '\u0000\u0001\u0002\uFFFD'.repeat(100), 'x.jdx')}--${b}--\r\n`, `multipart/form-data; boundary=${b}`],
+      [
+        'sql in submissionId',
+        `${part('submissionId', SQLI)}${part('kind', 'spectrum')}${part('file', '##TITLE=x', 'a.jdx')}--${b}--\r\n`,
+        `multipart/form-data; boundary=${b}`,
+      ],
+      [
+        '1e309 submissionId',
+        `${part('submissionId', '1e309')}${part('kind', 'spectrum')}${part('file', '##TITLE=x', 'a.jdx')}--${b}--\r\n`,
+        `multipart/form-data; boundary=${b}`,
+      ],
+      [
+        'html kind',
+        `${part('submissionId', id)}${part('kind', '<script>alert(1)</script>')}${part('file', '##TITLE=x', 'a.jdx')}--${b}--\r\n`,
+        `multipart/form-data; boundary=${b}`,
+      ],
+      [
+        'two files',
+        `${part('submissionId', id)}${part('kind', 'spectrum')}${part('file', '##TITLE=x', 'a.jdx')}${part('file2', '##TITLE=y', 'b.jdx')}--${b}--\r\n`,
+        `multipart/form-data; boundary=${b}`,
+      ],
+      [
+        'NUL and RTL in the file name',
+        `${part('submissionId', id)}${part('kind', 'report')}${part('file', '%PDF-1.4 nonsense', 'a\u0000\u202Efdp.exe')}--${b}--\r\n`,
+        `multipart/form-data; boundary=${b}`,
+      ],
+      [
+        'JCAMP-DX DUP bomb (188 bytes, 200 million points)',
+        `${part('submissionId', id)}${part('kind', 'spectrum')}${part('file', JCAMP_DUP_BOMB, 'bomb.jdx')}--${b}--\r\n`,
+        `multipart/form-data; boundary=${b}`,
+      ],
+      [
+        'garbage bytes as a spectrum',
+        `${part('submissionId', id)}${part('kind', 'spectrum')}${part('file', '\u0000\u0001\u0002\uFFFD'.repeat(100), 'x.jdx')}--${b}--\r\n`,
+        `multipart/form-data; boundary=${b}`,
+      ],
       ['JSON body', JSON.stringify({ submissionId: Number(id), kind: 'spectrum' }), 'application/json'],
       ['text body', 'file contents', 'text/plain'],
     ];
@@ -584,13 +735,17 @@ describe('bad input', () => {
     const failures: string[] = [];
     for (const [name, body, type] of cases) {
       const filesBefore = dirListing(process.env.UPLOAD_DIR!);
-      const res = await h.handler(await apiRequest('/api/uploads', { method: 'POST', rawBody: body, headers: { cookie: cookies.student!, 'content-type': type } }), {});
+      const res = await h.handler(
+        await apiRequest('/api/uploads', { method: 'POST', rawBody: body, headers: { cookie: cookies.student!, 'content-type': type } }),
+        {},
+      );
       const text = await res.text();
       let json: { error?: unknown } = {};
       try {
         json = JSON.parse(text);
       } catch {}
-      if (res.status < 400 || res.status >= 500 || !readsAsSentence(json.error)) failures.push(`${name}: ${res.status} ${text.slice(0, 160)}`);
+      if (res.status < 400 || res.status >= 500 || !readsAsSentence(json.error))
+        failures.push(`${name}: ${res.status} ${text.slice(0, 160)}`);
       await new Promise((r) => setTimeout(r, 100)); // let any file stream still open finish
       const left = dirListing(process.env.UPLOAD_DIR!).filter((f) => !filesBefore.includes(f));
       if (left.length) failures.push(`${name}: left ${left.join(', ')}`);

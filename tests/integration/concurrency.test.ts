@@ -51,21 +51,39 @@ describe('students submitting at once', () => {
     const { practical } = await buildPractical(w);
     const students: { id: number; email: string }[] = [];
     for (let i = 0; i < 50; i++) {
-      const s = await User.create({ email: `crowd.${i}@test.example`, name: `Crowd Student ${i}`, passwordHash: null, isAdmin: false, studentNumber: `C${1000 + i}` });
+      const s = await User.create({
+        email: `crowd.${i}@test.example`,
+        name: `Crowd Student ${i}`,
+        passwordHash: null,
+        isAdmin: false,
+        studentNumber: `C${1000 + i}`,
+      });
       await CourseMembership.create({ userId: s.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
       students.push(s);
     }
     // Every draft through the real autosave route, all at once too.
     const draft = draftFor('H35Cl', correctValues());
     const drafts = await Promise.all(
-      students.map(async (s) => body(await saveDraftRoute(await apiRequest('/api/submissions/draft', { as: s.id, method: 'PUT', body: { practicalId: practical.id, draft } }), {}))),
+      students.map(async (s) =>
+        body(
+          await saveDraftRoute(
+            await apiRequest('/api/submissions/draft', { as: s.id, method: 'PUT', body: { practicalId: practical.id, draft } }),
+            {},
+          ),
+        ),
+      ),
     );
     expect(drafts.map((d) => d.status)).toEqual(students.map(() => 200));
 
     const answers = await Promise.all(
       students.map(async (s, i) => {
         const d = drafts[i].body as { id: number; version: number };
-        return body(await submitRoute(await apiRequest(`/api/submissions/${d.id}/submit`, { as: s.id, body: { version: d.version, draft } }), params({ id: String(d.id) })));
+        return body(
+          await submitRoute(
+            await apiRequest(`/api/submissions/${d.id}/submit`, { as: s.id, body: { version: d.version, draft } }),
+            params({ id: String(d.id) }),
+          ),
+        );
       }),
     );
     expect(answers.map((a) => a.status)).toEqual(students.map(() => 201));
@@ -89,52 +107,92 @@ describe('students submitting at once', () => {
     // Every draft moved on exactly once.
     const after = await Submission.findAll({ where: { practicalId: practical.id, attempt: 0 } });
     expect(after).toHaveLength(50);
-    for (const d of after) expect(d.version).toBe((drafts.find((x) => (x.body as { id: number }).id === d.id)!.body as { version: number }).version + 1);
+    for (const d of after)
+      expect(d.version).toBe((drafts.find((x) => (x.body as { id: number }).id === d.id)!.body as { version: number }).version + 1);
   });
 
   it('one student double-submitting (5 requests at once): exactly one attempt, four clear 409s, no 500', { timeout: 30_000 }, async () => {
     const { Submission } = models();
     const { practical } = await buildPractical(w);
     const draft = draftFor('H35Cl', correctValues());
-    const saved = await body(await saveDraftRoute(await apiRequest('/api/submissions/draft', { as: w.people.student.id, method: 'PUT', body: { practicalId: practical.id, draft } }), {}));
+    const saved = await body(
+      await saveDraftRoute(
+        await apiRequest('/api/submissions/draft', { as: w.people.student.id, method: 'PUT', body: { practicalId: practical.id, draft } }),
+        {},
+      ),
+    );
     const { id, version } = saved.body as { id: number; version: number };
     const answers = await Promise.all(
-      Array.from({ length: 5 }, async () => body(await submitRoute(await apiRequest(`/api/submissions/${id}/submit`, { as: w.people.student.id, body: { version, draft } }), params({ id: String(id) })))),
+      Array.from({ length: 5 }, async () =>
+        body(
+          await submitRoute(
+            await apiRequest(`/api/submissions/${id}/submit`, { as: w.people.student.id, body: { version, draft } }),
+            params({ id: String(id) }),
+          ),
+        ),
+      ),
     );
     const statuses = answers.map((a) => a.status).sort();
     expect(statuses).toEqual([201, 409, 409, 409, 409]);
     for (const a of answers.filter((x) => x.status === 409)) expect(a.body.error).toMatch(/already submitted|changed in another tab/i);
-    expect(await Submission.count({ where: { practicalId: practical.id, studentId: w.people.student.id, attempt: { [Op.gt]: 0 } } })).toBe(1);
+    expect(await Submission.count({ where: { practicalId: practical.id, studentId: w.people.student.id, attempt: { [Op.gt]: 0 } } })).toBe(
+      1,
+    );
   });
 });
 
 describe('one student autosaving from several tabs at once', () => {
-  it('the first save from 4 tabs at the same moment: one draft row, four 200s with distinct versions, the stored draft is the last one counted', { timeout: 30_000 }, async () => {
-    const { Submission } = models();
-    const { practical } = await buildPractical(w);
-    const student = await models().User.create({ email: 'tabs@test.example', name: 'Four Tabs', passwordHash: null, isAdmin: false, studentNumber: 'T4000' });
-    await models().CourseMembership.create({ userId: student.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
-    const drafts = [2885.1, 2885.2, 2885.3, 2885.4].map((centre) => draftFor('H35Cl', { ...correctValues(), bandCentre: { value: String(centre), unit: 'cm-1', uncertainty: '0.5' } }));
-    const answers = await Promise.all(
-      drafts.map(async (draft) => body(await saveDraftRoute(await apiRequest('/api/submissions/draft', { as: student.id, method: 'PUT', body: { practicalId: practical.id, draft } }), {}))),
-    );
-    expect(answers.map((a) => a.status)).toEqual([200, 200, 200, 200]);
-    const rows = await Submission.findAll({ where: { practicalId: practical.id, studentId: student.id } });
-    expect(rows).toHaveLength(1);
-    expect(new Set(answers.map((a) => a.body.id))).toEqual(new Set([rows[0].id]));
-    const versions = answers.map((a) => a.body.version as number).sort();
-    expect(versions).toEqual([1, 2, 3, 4]);
-    expect(rows[0].version).toBe(4);
-    // The row holds the draft of the save that was counted last, read back intact.
-    const last = answers.findIndex((a) => a.body.version === 4);
-    expect(rows[0].draft).toEqual(JSON.parse(JSON.stringify(drafts[last])));
-  });
+  it(
+    'the first save from 4 tabs at the same moment: one draft row, four 200s with distinct versions, the stored draft is the last one counted',
+    { timeout: 30_000 },
+    async () => {
+      const { Submission } = models();
+      const { practical } = await buildPractical(w);
+      const student = await models().User.create({
+        email: 'tabs@test.example',
+        name: 'Four Tabs',
+        passwordHash: null,
+        isAdmin: false,
+        studentNumber: 'T4000',
+      });
+      await models().CourseMembership.create({ userId: student.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
+      const drafts = [2885.1, 2885.2, 2885.3, 2885.4].map((centre) =>
+        draftFor('H35Cl', { ...correctValues(), bandCentre: { value: String(centre), unit: 'cm-1', uncertainty: '0.5' } }),
+      );
+      const answers = await Promise.all(
+        drafts.map(async (draft) =>
+          body(
+            await saveDraftRoute(
+              await apiRequest('/api/submissions/draft', { as: student.id, method: 'PUT', body: { practicalId: practical.id, draft } }),
+              {},
+            ),
+          ),
+        ),
+      );
+      expect(answers.map((a) => a.status)).toEqual([200, 200, 200, 200]);
+      const rows = await Submission.findAll({ where: { practicalId: practical.id, studentId: student.id } });
+      expect(rows).toHaveLength(1);
+      expect(new Set(answers.map((a) => a.body.id))).toEqual(new Set([rows[0].id]));
+      const versions = answers.map((a) => a.body.version as number).sort();
+      expect(versions).toEqual([1, 2, 3, 4]);
+      expect(rows[0].version).toBe(4);
+      // The row holds the draft of the save that was counted last, read back intact.
+      const last = answers.findIndex((a) => a.body.version === 4);
+      expect(rows[0].draft).toEqual(JSON.parse(JSON.stringify(drafts[last])));
+    },
+  );
 });
 
 describe('two TAs saving marks on the same submission at once', () => {
   it('one 200, the other 409 "someone else saved"; the stored marks are the winner\'s', { timeout: 60_000 }, async () => {
     const { User, CourseMembership, TaAssignment, Mark, Submission, AuditEntry } = models();
-    const ta2 = await User.create({ email: 'second.ta@test.example', name: 'Second TA', passwordHash: null, isAdmin: false, studentNumber: null });
+    const ta2 = await User.create({
+      email: 'second.ta@test.example',
+      name: 'Second TA',
+      passwordHash: null,
+      isAdmin: false,
+      studentNumber: null,
+    });
     await CourseMembership.create({ userId: ta2.id, courseId: w.course.id, role: 'ta', cohortId: null });
     await TaAssignment.create({ cohortId: w.cohort.id, taId: ta2.id, studentId: null });
     // Several rounds: which TA wins is up to the scheduler; the rule must hold either way.
@@ -142,7 +200,12 @@ describe('two TAs saving marks on the same submission at once', () => {
     for (let round = 0; round < 4; round++) {
       // A practical of its own per round (attempt numbers are unique per practical and student).
       const practical = await createFixturePractical(w.course.id, [w.cohort.id]);
-      const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: w.people.student.id, offset: round });
+      const sub = await createCheckedSubmission({
+        practicalId: practical.id,
+        cohortId: w.cohort.id,
+        studentId: w.people.student.id,
+        offset: round,
+      });
       const start = (await acceptProposal(w.people.ta.id, sub.id, sub.version)).version;
       const tas = [
         { id: w.people.ta.id, awarded: 2, comment: `TA one, round ${round}` },
@@ -152,7 +215,11 @@ describe('two TAs saving marks on the same submission at once', () => {
         tas.map(async (t) =>
           body(
             await saveMarksRoute(
-              await apiRequest(`/api/marking/${sub.id}`, { as: t.id, method: 'PUT', body: { version: start, items: [{ itemKey: 'rubric:discussion', awarded: t.awarded, comment: t.comment }] } }),
+              await apiRequest(`/api/marking/${sub.id}`, {
+                as: t.id,
+                method: 'PUT',
+                body: { version: start, items: [{ itemKey: 'rubric:discussion', awarded: t.awarded, comment: t.comment }] },
+              }),
               params({ submissionId: String(sub.id) }),
             ),
           ),
@@ -177,7 +244,11 @@ describe('two TAs saving marks on the same submission at once', () => {
 
       // The loser reloads (new version) and saves again: now it is accepted, nothing silently lost.
       const retry = await saveMarksRoute(
-        await apiRequest(`/api/marking/${sub.id}`, { as: tas.find((t) => t.id !== winner.id)!.id, method: 'PUT', body: { version: fresh.version, items: [{ itemKey: 'rubric:discussion', awarded: 1, comment: 'after reload' }] } }),
+        await apiRequest(`/api/marking/${sub.id}`, {
+          as: tas.find((t) => t.id !== winner.id)!.id,
+          method: 'PUT',
+          body: { version: fresh.version, items: [{ itemKey: 'rubric:discussion', awarded: 1, comment: 'after reload' }] },
+        }),
         params({ submissionId: String(sub.id) }),
       );
       expect(retry.status).toBe(200);
@@ -194,12 +265,22 @@ describe('concurrent releases of the same submission', () => {
     const ids: number[] = [];
     const emails: string[] = [];
     for (let i = 0; i < 3; i++) {
-      const s = await User.create({ email: `release.race.${i}@test.example`, name: `Race Student ${i}`, passwordHash: null, isAdmin: false, studentNumber: `RR${i}` });
+      const s = await User.create({
+        email: `release.race.${i}@test.example`,
+        name: `Race Student ${i}`,
+        passwordHash: null,
+        isAdmin: false,
+        studentNumber: `RR${i}`,
+      });
       await CourseMembership.create({ userId: s.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
       const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: s.id });
       const v = (await acceptProposal(w.people.ta.id, sub.id, sub.version)).version;
       const r = await saveMarksRoute(
-        await apiRequest(`/api/marking/${sub.id}`, { as: w.people.ta.id, method: 'PUT', body: { version: v, items: [{ itemKey: 'rubric:discussion', awarded: 1 }] } }),
+        await apiRequest(`/api/marking/${sub.id}`, {
+          as: w.people.ta.id,
+          method: 'PUT',
+          body: { version: v, items: [{ itemKey: 'rubric:discussion', awarded: 1 }] },
+        }),
         params({ submissionId: String(sub.id) }),
       );
       expect(r.status).toBe(200);
@@ -208,12 +289,15 @@ describe('concurrent releases of the same submission', () => {
     }
     const pdfsBefore = fs.readdirSync(feedbackDir()).length;
     const callers = [w.people.ta.id, w.people.instructor.id, w.people.ta.id, w.people.lead.id];
-    const answers = await Promise.all(callers.map(async (as) => body(await releaseRoute(await apiRequest('/api/release', { as, body: { submissionIds: ids } }), {}))));
+    const answers = await Promise.all(
+      callers.map(async (as) => body(await releaseRoute(await apiRequest('/api/release', { as, body: { submissionIds: ids } }), {}))),
+    );
     expect(answers.map((a) => a.status)).toEqual(callers.map(() => 200));
     // Each submission released by exactly one of the four requests.
     expect(answers.reduce((n, a) => n + (a.body.released as number), 0)).toBe(ids.length);
     for (const a of answers) {
-      for (const r of a.body.results as { ok: boolean; message?: string }[]) if (!r.ok) expect(r.message).toMatch(/already released|changed while it was being released/i);
+      for (const r of a.body.results as { ok: boolean; message?: string }[])
+        if (!r.ok) expect(r.message).toMatch(/already released|changed while it was being released/i);
     }
 
     expect(await Submission.count({ where: { id: ids, status: 'released' } })).toBe(ids.length);

@@ -16,9 +16,16 @@ const counts = async () => {
 };
 
 const signInPost = (body: string, type = 'application/x-www-form-urlencoded') =>
-  authPost(new Request('http://localhost:3000/api/auth/callback/credentials', { method: 'POST', headers: { 'content-type': type, origin: 'http://localhost:3000' }, body }), {
-    params: Promise.resolve({ nextauth: ['callback', 'credentials'] }),
-  });
+  authPost(
+    new Request('http://localhost:3000/api/auth/callback/credentials', {
+      method: 'POST',
+      headers: { 'content-type': type, origin: 'http://localhost:3000' },
+      body,
+    }),
+    {
+      params: Promise.resolve({ nextauth: ['callback', 'credentials'] }),
+    },
+  );
 
 describe('bad input is refused with a clear 4xx and changes nothing', () => {
   it('malformed sign-in bodies', async () => {
@@ -44,7 +51,8 @@ describe('bad input is refused with a clear 4xx and changes nothing', () => {
   it('granting an unknown role, or to unknown people or courses', async () => {
     const { course, people } = world;
     const before = await counts();
-    const send = async (body: unknown, as = people.admin.id) => grantRole(await apiRequest('/api/admin/memberships', { as, body }), undefined);
+    const send = async (body: unknown, as = people.admin.id) =>
+      grantRole(await apiRequest('/api/admin/memberships', { as, body }), undefined);
     const cases: [unknown, number][] = [
       [{ email: people.nobody.email, courseId: course.id, role: 'superuser' }, 400],
       [{ email: people.nobody.email, courseId: course.id, role: 'TA' }, 400],
@@ -61,9 +69,19 @@ describe('bad input is refused with a clear 4xx and changes nothing', () => {
       expect(res.status, JSON.stringify(body)).toBe(status);
       expect((await res.json()).error).toMatch(/\w{4,}/);
     }
-    const notJson = await grantRole(await apiRequest('/api/admin/memberships', { as: people.admin.id, rawBody: '{oops', headers: { 'content-type': 'application/json' } }), undefined);
+    const notJson = await grantRole(
+      await apiRequest('/api/admin/memberships', {
+        as: people.admin.id,
+        rawBody: '{oops',
+        headers: { 'content-type': 'application/json' },
+      }),
+      undefined,
+    );
     expect(notJson.status).toBe(400);
-    const wrongType = await grantRole(await apiRequest('/api/admin/memberships', { as: people.admin.id, rawBody: 'a=b', headers: { 'content-type': 'text/plain' } }), undefined);
+    const wrongType = await grantRole(
+      await apiRequest('/api/admin/memberships', { as: people.admin.id, rawBody: 'a=b', headers: { 'content-type': 'text/plain' } }),
+      undefined,
+    );
     expect(wrongType.status).toBe(415);
     let deep: unknown = 1;
     for (let i = 0; i < 100; i++) deep = { deep };
@@ -74,7 +92,11 @@ describe('bad input is refused with a clear 4xx and changes nothing', () => {
 
   it('refuses a state-changing request from another site', async () => {
     const { course, people } = world;
-    const req = await apiRequest('/api/admin/memberships', { as: people.admin.id, body: { email: people.nobody.email, courseId: course.id, role: 'ta' }, headers: { origin: 'https://evil.example' } });
+    const req = await apiRequest('/api/admin/memberships', {
+      as: people.admin.id,
+      body: { email: people.nobody.email, courseId: course.id, role: 'ta' },
+      headers: { origin: 'https://evil.example' },
+    });
     expect((await grantRole(req, undefined)).status).toBe(403);
   });
 

@@ -34,7 +34,10 @@ describe('mail module', () => {
     expect((await deliverOutbox()).sent).toBeGreaterThanOrEqual(1);
     const row = (await models().EmailOutbox.findOne({ where: { dedupeKey: `repeat:${to}` } }))!;
     // What a worker killed between the relay's "250 OK" and its own UPDATE leaves behind.
-    await models().EmailOutbox.update({ status: 'sending', sentAt: null, lockedUntil: new Date(Date.now() - 1000) }, { where: { id: row.id } });
+    await models().EmailOutbox.update(
+      { status: 'sending', sentAt: null, lockedUntil: new Date(Date.now() - 1000) },
+      { where: { id: row.id } },
+    );
     expect((await deliverOutbox()).sent).toBeGreaterThanOrEqual(1);
     const copies = await waitForMail(to, 2);
     expect(copies).toHaveLength(2);

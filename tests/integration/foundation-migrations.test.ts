@@ -7,12 +7,37 @@ import { Sequelize, QueryTypes } from 'sequelize';
 
 const cli = path.resolve('node_modules/sequelize-cli/lib/sequelize');
 const REQUIRED_TABLES = [
-  'users', 'courses', 'cohorts', 'course_memberships', 'ta_assignments', 'practicals', 'practical_cohorts',
-  'quantity_definitions', 'tolerance_bands', 'submissions', 'submitted_values', 'line_assignments', 'uploads',
-  'check_results', 'slip_findings', 'marks', 'moderations', 'feedback_documents', 'email_outbox', 'audit_log',
-  'one_time_tokens', 'sign_in_failures',
-  'lti_tool_keys', 'lti_registrations', 'lti_deployments', 'lti_contexts', 'lti_resource_links', 'lti_line_items',
-  'lti_user_links', 'lti_launch_states', 'lti_score_outbox',
+  'users',
+  'courses',
+  'cohorts',
+  'course_memberships',
+  'ta_assignments',
+  'practicals',
+  'practical_cohorts',
+  'quantity_definitions',
+  'tolerance_bands',
+  'submissions',
+  'submitted_values',
+  'line_assignments',
+  'uploads',
+  'check_results',
+  'slip_findings',
+  'marks',
+  'moderations',
+  'feedback_documents',
+  'email_outbox',
+  'audit_log',
+  'one_time_tokens',
+  'sign_in_failures',
+  'lti_tool_keys',
+  'lti_registrations',
+  'lti_deployments',
+  'lti_contexts',
+  'lti_resource_links',
+  'lti_line_items',
+  'lti_user_links',
+  'lti_launch_states',
+  'lti_score_outbox',
 ];
 
 describe('migrations', () => {
@@ -35,14 +60,17 @@ describe('migrations', () => {
     fs.rmSync(dir, { recursive: true, force: true });
   });
 
-  it.skipIf(!process.env.DATABASE_URL?.startsWith('sqlite:'))('the app connection uses WAL, foreign keys and a busy timeout on SQLite', async () => {
-    const { sequelize } = await import('@/lib/db');
-    const s = sequelize();
-    const [mode] = await s.query<{ journal_mode: string }>('PRAGMA journal_mode', { type: QueryTypes.SELECT });
-    const [fk] = await s.query<{ foreign_keys: number }>('PRAGMA foreign_keys', { type: QueryTypes.SELECT });
-    const [busy] = await s.query<Record<string, number>>('PRAGMA busy_timeout', { type: QueryTypes.SELECT });
-    expect(mode.journal_mode).toBe('wal');
-    expect(fk.foreign_keys).toBe(1);
-    expect(Object.values(busy)[0]).toBeGreaterThanOrEqual(1000);
-  });
+  it.skipIf(!process.env.DATABASE_URL?.startsWith('sqlite:'))(
+    'the app connection uses WAL, foreign keys and a busy timeout on SQLite',
+    async () => {
+      const { sequelize } = await import('@/lib/db');
+      const s = sequelize();
+      const [mode] = await s.query<{ journal_mode: string }>('PRAGMA journal_mode', { type: QueryTypes.SELECT });
+      const [fk] = await s.query<{ foreign_keys: number }>('PRAGMA foreign_keys', { type: QueryTypes.SELECT });
+      const [busy] = await s.query<Record<string, number>>('PRAGMA busy_timeout', { type: QueryTypes.SELECT });
+      expect(mode.journal_mode).toBe('wal');
+      expect(fk.foreign_keys).toBe(1);
+      expect(Object.values(busy)[0]).toBeGreaterThanOrEqual(1000);
+    },
+  );
 });

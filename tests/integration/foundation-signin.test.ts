@@ -15,7 +15,9 @@ const from = (address: string) => ({ headers: { 'x-forwarded-for': address } });
 describe('sign-in with e-mail and password', () => {
   it('accepts the right password and refuses a wrong one the same way as an unknown account', async () => {
     const { student } = world.people;
-    expect(await authorizeCredentials({ email: student.email, password: TEST_PASSWORD }, from('10.0.0.1'))).toMatchObject({ id: String(student.id) });
+    expect(await authorizeCredentials({ email: student.email, password: TEST_PASSWORD }, from('10.0.0.1'))).toMatchObject({
+      id: String(student.id),
+    });
     expect(await authorizeCredentials({ email: student.email, password: 'wrong-password' }, from('10.0.0.1'))).toBeNull();
     expect(await authorizeCredentials({ email: 'nobody-here@test.example', password: 'wrong-password' }, from('10.0.0.1'))).toBeNull();
   });
@@ -31,8 +33,11 @@ describe('sign-in with e-mail and password', () => {
 
   it('blocks one address failing across many accounts', async () => {
     const { instructor } = world.people;
-    for (let i = 0; i < 31; i++) await authorizeCredentials({ email: `someone-${i}@test.example`, password: 'x' }, from('10.2.0.9')).catch(() => null);
+    for (let i = 0; i < 31; i++)
+      await authorizeCredentials({ email: `someone-${i}@test.example`, password: 'x' }, from('10.2.0.9')).catch(() => null);
     await expect(authorizeCredentials({ email: instructor.email, password: TEST_PASSWORD }, from('10.2.0.9'))).rejects.toThrow('throttled');
-    expect(await authorizeCredentials({ email: instructor.email, password: TEST_PASSWORD }, from('10.2.0.10'))).toMatchObject({ id: String(instructor.id) });
+    expect(await authorizeCredentials({ email: instructor.email, password: TEST_PASSWORD }, from('10.2.0.10'))).toMatchObject({
+      id: String(instructor.id),
+    });
   });
 });

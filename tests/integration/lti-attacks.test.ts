@@ -59,10 +59,21 @@ beforeAll(async () => {
   practicalId = (await buildPractical(w)).practical.id;
   foreignPracticalId = (await createFixturePractical(w.otherCourse.id, [w.foreignCohort.id])).id;
   const reg = await createRegistration(
-    { name: 'Stand-in', issuer: platform.url, clientId: CLIENT_ID, deploymentIds: ['northmere-main'], authLoginUrl: `${platform.url}/auth`, authTokenUrl: `${platform.url}/token`, keySetUrl: `${platform.url}/jwks` },
+    {
+      name: 'Stand-in',
+      issuer: platform.url,
+      clientId: CLIENT_ID,
+      deploymentIds: ['northmere-main'],
+      authLoginUrl: `${platform.url}/auth`,
+      authTokenUrl: `${platform.url}/token`,
+      keySetUrl: `${platform.url}/jwks`,
+    },
     w.people.admin.id,
   );
-  await connectContext({ registrationId: reg.id, contextId: 'nmu-chem2041-2026', courseId: w.course.id, defaultCohortId: w.cohort.id }, w.people.admin.id);
+  await connectContext(
+    { registrationId: reg.id, contextId: 'nmu-chem2041-2026', courseId: w.course.id, defaultCohortId: w.cohort.id },
+    w.people.admin.id,
+  );
   itemId = (await platform.control<{ id: string }>('items', { title: 'HCl', custom: { oscillab_practical: String(practicalId) } })).id;
 }, 60_000);
 
@@ -89,9 +100,19 @@ async function begin(user = STUDENT, browser = new Browser()): Promise<Started> 
 function claims(s: Started, changes: Record<string, unknown> = {}, user = STUDENT): JWTPayload {
   const now = Math.floor(Date.now() / 1000);
   const base: Record<string, unknown> = {
-    iss: platform.url, aud: CLIENT_ID, azp: CLIENT_ID, sub: user, iat: now, exp: now + 300, nonce: s.nonce,
-    name: 'Amara Abernethy', email: 'student01@northmere.example',
-    [C.messageType]: 'LtiResourceLinkRequest', [C.version]: '1.3.0', [C.deploymentId]: 'northmere-main', [C.targetLinkUri]: `${OSCILLAB}/api/lti/launch`,
+    iss: platform.url,
+    aud: CLIENT_ID,
+    azp: CLIENT_ID,
+    sub: user,
+    iat: now,
+    exp: now + 300,
+    nonce: s.nonce,
+    name: 'Amara Abernethy',
+    email: 'student01@northmere.example',
+    [C.messageType]: 'LtiResourceLinkRequest',
+    [C.version]: '1.3.0',
+    [C.deploymentId]: 'northmere-main',
+    [C.targetLinkUri]: `${OSCILLAB}/api/lti/launch`,
     [C.resourceLink]: { id: itemId, title: 'HCl' },
     [C.roles]: ['http://purl.imsglobal.org/vocab/lis/v2/membership#Learner'],
     [C.context]: { id: 'nmu-chem2041-2026', title: 'CHEM2041' },
@@ -104,11 +125,16 @@ function claims(s: Started, changes: Record<string, unknown> = {}, user = STUDEN
   return base as JWTPayload;
 }
 
-const signed = async (payload: JWTPayload, header: Record<string, unknown> = {}) => (await platform.control<{ jwt: string }>('sign', { payload, header })).jwt;
+const signed = async (payload: JWTPayload, header: Record<string, unknown> = {}) =>
+  (await platform.control<{ jwt: string }>('sign', { payload, header })).jwt;
 
 /** Post the id_token to the launch URL from Oscillab's own page (so the state cookie goes with it). */
 async function post(s: Started, idToken: string, state = s.state, extra: Record<string, string> = {}) {
-  const page = await s.browser.go(`${OSCILLAB}/api/lti/launch`, { form: { id_token: idToken, state, oscillab_relay: '1', ...extra }, initiator: `${OSCILLAB}/api/lti/launch`, follow: () => false });
+  const page = await s.browser.go(`${OSCILLAB}/api/lti/launch`, {
+    form: { id_token: idToken, state, oscillab_relay: '1', ...extra },
+    initiator: `${OSCILLAB}/api/lti/launch`,
+    follow: () => false,
+  });
   return page;
 }
 
@@ -130,7 +156,9 @@ describe('a correct launch made the same way', () => {
     const res = await post(s, await signed(claims(s)));
     expect(res.status).toBe(303);
     expect(res.headers.get('location')).toBe(`/student/practicals/${practicalId}`);
-    expect(res.headers.getSetCookie().some((c) => c.startsWith('next-auth.session-token=') && /HttpOnly/.test(c) && /SameSite=Lax/.test(c))).toBe(true);
+    expect(
+      res.headers.getSetCookie().some((c) => c.startsWith('next-auth.session-token=') && /HttpOnly/.test(c) && /SameSite=Lax/.test(c)),
+    ).toBe(true);
   });
 });
 
@@ -141,28 +169,55 @@ describe('bad and hostile launches are refused with a clear page and write nothi
     ['issued in the future (not yet valid)', 401, 'not-yet-valid', async (s) => signed(claims(s, { iat: now() + 900, exp: now() + 1200 }))],
     ['nbf in the future (not yet valid)', 401, 'not-yet-valid', async (s) => signed(claims(s, { nbf: now() + 900 }))],
     ['wrong audience', 401, 'wrong-audience', async (s) => signed(claims(s, { aud: 'some-other-tool', azp: 'some-other-tool' }))],
-    ['several audiences without Oscillab as azp', 401, 'wrong-azp', async (s) => signed(claims(s, { aud: [CLIENT_ID, 'another-tool'], azp: 'another-tool' }))],
+    [
+      'several audiences without Oscillab as azp',
+      401,
+      'wrong-azp',
+      async (s) => signed(claims(s, { aud: [CLIENT_ID, 'another-tool'], azp: 'another-tool' })),
+    ],
     ['wrong issuer', 401, 'unknown-platform', async (s) => signed(claims(s, { iss: 'https://elsewhere.example' }))],
     ['unknown deployment', 401, 'unknown-deployment', async (s) => signed(claims(s, { [C.deploymentId]: 'some-other-deployment' }))],
     ['a nonce from another sign-in', 401, 'replayed', async (s) => signed(claims(s, { nonce: 'not-the-nonce-of-this-state' }))],
-    ['alg: none', 401, 'algorithm-refused', async (s) => {
-      const part = (o: object) => Buffer.from(JSON.stringify(o)).toString('base64url');
-      return `${part({ alg: 'none', typ: 'JWT' })}.${part(claims(s))}.`;
-    }],
-    ['HS256 keyed with the platform’s public key', 401, 'algorithm-refused', async (s) => {
-      const { keys } = (await (await fetch(`${platform.url}/jwks`)).json()) as { keys: crypto.JsonWebKey[] };
-      const pem = crypto.createPublicKey({ key: keys[0], format: 'jwk' }).export({ type: 'spki', format: 'pem' });
-      return new SignJWT(claims(s)).setProtectedHeader({ alg: 'HS256', kid: String(keys[0].kid) }).sign(new TextEncoder().encode(String(pem)));
-    }],
-    ['a key id the platform does not publish', 401, 'unknown-key', async (s) => {
-      const { privateKey } = await generateKeyPair('RS256');
-      return new SignJWT(claims(s)).setProtectedHeader({ alg: 'RS256', kid: 'not-a-platform-key' }).sign(privateKey);
-    }],
-    ['the platform’s key id on a signature by another key', 401, 'bad-signature', async (s) => {
-      const { keys } = (await (await fetch(`${platform.url}/jwks`)).json()) as { keys: { kid: string }[] };
-      const { privateKey } = await generateKeyPair('RS256');
-      return new SignJWT(claims(s)).setProtectedHeader({ alg: 'RS256', kid: keys[0].kid }).sign(privateKey);
-    }],
+    [
+      'alg: none',
+      401,
+      'algorithm-refused',
+      async (s) => {
+        const part = (o: object) => Buffer.from(JSON.stringify(o)).toString('base64url');
+        return `${part({ alg: 'none', typ: 'JWT' })}.${part(claims(s))}.`;
+      },
+    ],
+    [
+      'HS256 keyed with the platform’s public key',
+      401,
+      'algorithm-refused',
+      async (s) => {
+        const { keys } = (await (await fetch(`${platform.url}/jwks`)).json()) as { keys: crypto.JsonWebKey[] };
+        const pem = crypto.createPublicKey({ key: keys[0], format: 'jwk' }).export({ type: 'spki', format: 'pem' });
+        return new SignJWT(claims(s))
+          .setProtectedHeader({ alg: 'HS256', kid: String(keys[0].kid) })
+          .sign(new TextEncoder().encode(String(pem)));
+      },
+    ],
+    [
+      'a key id the platform does not publish',
+      401,
+      'unknown-key',
+      async (s) => {
+        const { privateKey } = await generateKeyPair('RS256');
+        return new SignJWT(claims(s)).setProtectedHeader({ alg: 'RS256', kid: 'not-a-platform-key' }).sign(privateKey);
+      },
+    ],
+    [
+      'the platform’s key id on a signature by another key',
+      401,
+      'bad-signature',
+      async (s) => {
+        const { keys } = (await (await fetch(`${platform.url}/jwks`)).json()) as { keys: { kid: string }[] };
+        const { privateKey } = await generateKeyPair('RS256');
+        return new SignJWT(claims(s)).setProtectedHeader({ alg: 'RS256', kid: keys[0].kid }).sign(privateKey);
+      },
+    ],
     ['an oversized token', 413, 'token-too-large', async (s) => signed(claims(s, { padding: 'x'.repeat(20_000) }))],
     ['no roles claim', 400, 'missing-claim', async (s) => signed(claims(s, { [C.roles]: undefined }))],
     ['no context claim', 400, 'missing-claim', async (s) => signed(claims(s, { [C.context]: undefined }))],
@@ -172,12 +227,51 @@ describe('bad and hostile launches are refused with a clear page and write nothi
     ['no sub', 400, 'missing-claim', async (s) => signed(claims(s, { sub: undefined }))],
     ['no version', 400, 'wrong-version', async (s) => signed(claims(s, { [C.version]: undefined }))],
     ['no message type', 400, 'unsupported-message', async (s) => signed(claims(s, { [C.messageType]: undefined }))],
-    ['an item naming a practical of another course', 403, 'other-course', async (s) => signed(claims(s, { [C.resourceLink]: { id: 'forged-item' }, [C.custom]: { oscillab_practical: String(foreignPracticalId) } }))],
-    ['an instructor role with an item naming another course’s practical', 403, 'other-course', async (s) =>
-      signed(claims(s, { [C.roles]: ['http://purl.imsglobal.org/vocab/lis/v2/membership#Instructor'], [C.resourceLink]: { id: 'forged-item-2' }, [C.custom]: { oscillab_practical: String(foreignPracticalId) } }))],
-    ['a course not connected to Oscillab', 403, 'course-not-connected', async (s) => signed(claims(s, { [C.context]: { id: 'some-other-course', title: 'Elsewhere' } }))],
-    ['a role Oscillab has nothing for (Mentor)', 403, 'no-role', async (s) => signed(claims(s, { [C.roles]: ['http://purl.imsglobal.org/vocab/lis/v2/membership#Mentor'], sub: MENTOR, email: 'mentor@northmere.example' }, MENTOR))],
-    ['an institution role only', 403, 'no-role', async (s) => signed(claims(s, { [C.roles]: ['http://purl.imsglobal.org/vocab/lis/v2/institution/person#Administrator'] }))],
+    [
+      'an item naming a practical of another course',
+      403,
+      'other-course',
+      async (s) =>
+        signed(claims(s, { [C.resourceLink]: { id: 'forged-item' }, [C.custom]: { oscillab_practical: String(foreignPracticalId) } })),
+    ],
+    [
+      'an instructor role with an item naming another course’s practical',
+      403,
+      'other-course',
+      async (s) =>
+        signed(
+          claims(s, {
+            [C.roles]: ['http://purl.imsglobal.org/vocab/lis/v2/membership#Instructor'],
+            [C.resourceLink]: { id: 'forged-item-2' },
+            [C.custom]: { oscillab_practical: String(foreignPracticalId) },
+          }),
+        ),
+    ],
+    [
+      'a course not connected to Oscillab',
+      403,
+      'course-not-connected',
+      async (s) => signed(claims(s, { [C.context]: { id: 'some-other-course', title: 'Elsewhere' } })),
+    ],
+    [
+      'a role Oscillab has nothing for (Mentor)',
+      403,
+      'no-role',
+      async (s) =>
+        signed(
+          claims(
+            s,
+            { [C.roles]: ['http://purl.imsglobal.org/vocab/lis/v2/membership#Mentor'], sub: MENTOR, email: 'mentor@northmere.example' },
+            MENTOR,
+          ),
+        ),
+    ],
+    [
+      'an institution role only',
+      403,
+      'no-role',
+      async (s) => signed(claims(s, { [C.roles]: ['http://purl.imsglobal.org/vocab/lis/v2/institution/person#Administrator'] })),
+    ],
   ];
   for (const [name, status, code, token] of cases) {
     it(name, async () => {
@@ -214,7 +308,16 @@ describe('bad and hostile launches are refused with a clear page and write nothi
 
   it('the platform’s own error answer', async () => {
     const s = await begin();
-    const res = await expectRefused(() => s.browser.go(`${OSCILLAB}/api/lti/launch`, { form: { error: 'login_required', error_description: '<script>alert(1)</script>', state: s.state }, initiator: platform.url, follow: () => false }), 400, 'platform-error');
+    const res = await expectRefused(
+      () =>
+        s.browser.go(`${OSCILLAB}/api/lti/launch`, {
+          form: { error: 'login_required', error_description: '<script>alert(1)</script>', state: s.state },
+          initiator: platform.url,
+          follow: () => false,
+        }),
+      400,
+      'platform-error',
+    );
     expect(res.html).not.toContain('<script>alert');
     expect(res.html).toContain('&lt;script&gt;');
   });
@@ -225,7 +328,11 @@ describe('bad and hostile launches are refused with a clear page and write nothi
     const good = { iss: platform.url, login_hint: STUDENT, target_link_uri: `${OSCILLAB}/api/lti/launch`, client_id: CLIENT_ID };
     await expectRefused(() => b.go(q({ ...good, iss: '' }), { follow: () => false }), 400, 'login-no-issuer');
     await expectRefused(() => b.go(q({ ...good, iss: 'https://elsewhere.example' }), { follow: () => false }), 401, 'unknown-platform');
-    await expectRefused(() => b.go(q({ ...good, target_link_uri: 'https://evil.example/' }), { follow: () => false }), 400, 'login-foreign-target');
+    await expectRefused(
+      () => b.go(q({ ...good, target_link_uri: 'https://evil.example/' }), { follow: () => false }),
+      400,
+      'login-foreign-target',
+    );
     await expectRefused(() => b.go(q({ ...good, lti_deployment_id: 'nope' }), { follow: () => false }), 401, 'unknown-deployment');
     await expectRefused(() => b.go(q({ ...good, client_id: 'other' }), { follow: () => false }), 401, 'wrong-audience');
   });
@@ -253,7 +360,10 @@ describe('the platform’s key set unreachable', () => {
       expect(res.html).toContain('try again in a few minutes');
       expect((await health.GET(new Request(`${OSCILLAB}/api/health`), {})).status).toBe(200);
       expect((await jwks.GET(new Request(`${OSCILLAB}/api/lti/jwks`), {})).status).toBe(200);
-      const signedIn = await me.GET(new Request(`${OSCILLAB}/api/me`, { headers: { cookie: await sessionCookie(w.people.instructor.id) } }), {});
+      const signedIn = await me.GET(
+        new Request(`${OSCILLAB}/api/me`, { headers: { cookie: await sessionCookie(w.people.instructor.id) } }),
+        {},
+      );
       expect(signedIn.status).toBe(200);
     } finally {
       await platform.control('jwks', { down: false });

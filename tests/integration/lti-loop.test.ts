@@ -115,11 +115,19 @@ describe('the whole loop with the learning platform', () => {
     );
     expect(reg.status).toBe(201);
     const { id: registrationId } = await reg.json();
-    const ctx = await contexts.POST(await apiRequest('/api/lti/contexts', { as: w.people.admin.id, body: { registrationId, contextId: CONTEXT_ID, courseId: w.course.id, defaultCohortId: w.cohort.id } }), {});
+    const ctx = await contexts.POST(
+      await apiRequest('/api/lti/contexts', {
+        as: w.people.admin.id,
+        body: { registrationId, contextId: CONTEXT_ID, courseId: w.course.id, defaultCohortId: w.cohort.id },
+      }),
+      {},
+    );
     expect(ctx.status).toBe(201);
     ltiContextId = (await ctx.json()).id;
     // Not for an instructor: registering is the administrator's.
-    expect((await registrations.POST(await apiRequest('/api/lti/registrations', { as: w.people.instructor.id, body: {} }), {})).status).toBe(403);
+    expect(
+      (await registrations.POST(await apiRequest('/api/lti/registrations', { as: w.people.instructor.id, body: {} }), {})).status,
+    ).toBe(403);
   });
 
   it('the instructor places an item by deep linking: Oscillab signs the answer, the platform checks it against Oscillab’s key set', async () => {
@@ -129,7 +137,11 @@ describe('the whole loop with the learning platform', () => {
     expect(chooser.pathname).toBe('/lti/deep-link');
     expect(session(instructor)).toBeTruthy();
     // What the chooser page's form posts (the page itself is covered by the browser test).
-    const answer = await instructor.go(`${OSCILLAB}/api/lti/deep-link`, { form: { t: chooser.searchParams.get('t')!, practicalId: String(practicalId) }, initiator: page.url, follow });
+    const answer = await instructor.go(`${OSCILLAB}/api/lti/deep-link`, {
+      form: { t: chooser.searchParams.get('t')!, practicalId: String(practicalId) },
+      initiator: page.url,
+      follow,
+    });
     expect(answer.status).toBe(200);
     const placed = await instructor.submit(answer, {}, follow);
     expect(placed.html).toContain('Item placed');
@@ -158,7 +170,10 @@ describe('the whole loop with the learning platform', () => {
 
   it('roster sync: the preview writes nothing; confirming adds, renames and ends roles as shown', async () => {
     const before = await tableChecksums();
-    const previewRes = await roster.GET(new Request(`${OSCILLAB}/api/lti/contexts/${ltiContextId}/roster`, { headers: asCookie(instructor) }), params({ contextId: String(ltiContextId) }));
+    const previewRes = await roster.GET(
+      new Request(`${OSCILLAB}/api/lti/contexts/${ltiContextId}/roster`, { headers: asCookie(instructor) }),
+      params({ contextId: String(ltiContextId) }),
+    );
     expect(previewRes.status).toBe(200);
     const preview = await previewRes.json();
     expect(await tableChecksums()).toEqual(before);
@@ -170,7 +185,14 @@ describe('the whole loop with the learning platform', () => {
     expect(status('nmu-40d1bc')).toBe('not-taken'); // inactive on the platform and not in the course
 
     const confirm = (fingerprint: string) =>
-      roster.POST(new Request(`${OSCILLAB}/api/lti/contexts/${ltiContextId}/roster`, { method: 'POST', headers: { ...asCookie(instructor), origin: OSCILLAB, 'content-type': 'application/json' }, body: JSON.stringify({ fingerprint }) }), params({ contextId: String(ltiContextId) }));
+      roster.POST(
+        new Request(`${OSCILLAB}/api/lti/contexts/${ltiContextId}/roster`, {
+          method: 'POST',
+          headers: { ...asCookie(instructor), origin: OSCILLAB, 'content-type': 'application/json' },
+          body: JSON.stringify({ fingerprint }),
+        }),
+        params({ contextId: String(ltiContextId) }),
+      );
     const stale = await confirm('0'.repeat(32));
     expect(stale.status).toBe(409);
     expect(await tableChecksums()).toEqual(before);
@@ -179,14 +201,24 @@ describe('the whole loop with the learning platform', () => {
     expect((await done.json()).applied).toMatchObject({ added: 8, removed: 0 });
     const { User, CourseMembership } = models();
     const amara = (await User.findOne({ where: { email: 'student01@northmere.example' } }))!;
-    expect(await CourseMembership.findOne({ where: { userId: amara.id, courseId: w.course.id } })).toMatchObject({ role: 'student', cohortId: w.cohort.id });
+    expect(await CourseMembership.findOne({ where: { userId: amara.id, courseId: w.course.id } })).toMatchObject({
+      role: 'student',
+      cohortId: w.cohort.id,
+    });
     const tomas = (await User.findOne({ where: { email: 'ta3@northmere.example' } }))!;
-    expect((await CourseMembership.findAll({ where: { userId: tomas.id } })).map((m) => [m.courseId, m.role])).toEqual([[w.course.id, 'ta']]);
+    expect((await CourseMembership.findAll({ where: { userId: tomas.id } })).map((m) => [m.courseId, m.role])).toEqual([
+      [w.course.id, 'ta'],
+    ]);
 
     // On the platform: Celeste withdraws, Bram's name changes.
     await platform.control('users', { set: { id: P.celeste, status: 'Inactive' } });
     await platform.control('users', { set: { id: P.bram, name: 'Bram Hartigan' } });
-    const again = await (await roster.GET(new Request(`${OSCILLAB}/api/lti/contexts/${ltiContextId}/roster`, { headers: asCookie(instructor) }), params({ contextId: String(ltiContextId) }))).json();
+    const again = await (
+      await roster.GET(
+        new Request(`${OSCILLAB}/api/lti/contexts/${ltiContextId}/roster`, { headers: asCookie(instructor) }),
+        params({ contextId: String(ltiContextId) }),
+      )
+    ).json();
     expect(again.counts).toMatchObject({ new: 0, changed: 1, leaving: 1 });
     const applied = await (await confirm(again.fingerprint)).json();
     expect(applied.applied).toMatchObject({ renamed: 1, removed: 1 });
@@ -203,31 +235,51 @@ describe('the whole loop with the learning platform', () => {
 
     // Submit with the session the launch issued.
     const call = (path: string, method: string, body: unknown) =>
-      new Request(new URL(path, OSCILLAB), { method, headers: { ...asCookie(student), origin: OSCILLAB, 'content-type': 'application/json' }, body: JSON.stringify(body) });
+      new Request(new URL(path, OSCILLAB), {
+        method,
+        headers: { ...asCookie(student), origin: OSCILLAB, 'content-type': 'application/json' },
+        body: JSON.stringify(body),
+      });
     const draft = draftFor('H35Cl', correctValues());
     const saved = await saveDraft(call('/api/submissions/draft', 'PUT', { practicalId, draft }), {});
     expect(saved.status).toBe(200);
     const savedBody = await saved.json();
     const spectrum = await (await uploadAs(amaraId, savedBody.id, 'spectrum', 'hcl.jdx', JCAMP)).json();
     const report = await (await uploadAs(amaraId, savedBody.id, 'report', 'report.pdf', PDF)).json();
-    const submitted = await submitRoute(call(`/api/submissions/${savedBody.id}/submit`, 'POST', { version: report.version, draft: { ...draft, spectrumUploadId: spectrum.id, reportUploadId: report.id } }), params({ id: String(savedBody.id) }));
+    const submitted = await submitRoute(
+      call(`/api/submissions/${savedBody.id}/submit`, 'POST', {
+        version: report.version,
+        draft: { ...draft, spectrumUploadId: spectrum.id, reportUploadId: report.id },
+      }),
+      params({ id: String(savedBody.id) }),
+    );
     expect(submitted.status).toBe(201);
     const submissionId: number = (await submitted.json()).result.id;
 
     const sub = (await models().Submission.findByPk(submissionId))!;
     const r = await acceptProposal(w.people.ta.id, submissionId, sub.version);
     await saveMarks(w.people.ta.id, submissionId, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 2 }] });
-    const released = await releaseRoute(await apiRequest('/api/release', { as: w.people.instructor.id, body: { submissionIds: [submissionId] } }), {});
+    const released = await releaseRoute(
+      await apiRequest('/api/release', { as: w.people.instructor.id, body: { submissionIds: [submissionId] } }),
+      {},
+    );
     expect((await released.json()).released).toBe(1);
     const marked = (await models().Submission.findByPk(submissionId))!;
     const queued = await models().LtiScoreOutbox.findAll({ where: { submissionId } });
-    expect(queued.map((q) => [q.status, q.platformUserId, q.scoreGiven, q.scoreMaximum])).toEqual([['queued', P.amara, marked.awardedTotal, 8]]);
+    expect(queued.map((q) => [q.status, q.platformUserId, q.scoreGiven, q.scoreMaximum])).toEqual([
+      ['queued', P.amara, marked.awardedTotal, 8],
+    ]);
 
     expect(await deliverScores()).toMatchObject({ sent: 1, failed: 0, remaining: 0 });
     const state = await platform.state();
     const results = state.results.filter((x) => x.userId === P.amara);
     expect(results).toHaveLength(1);
-    expect(results[0]).toMatchObject({ scoreGiven: marked.awardedTotal, scoreMaximum: 8, activityProgress: 'Completed', gradingProgress: 'FullyGraded' });
+    expect(results[0]).toMatchObject({
+      scoreGiven: marked.awardedTotal,
+      scoreMaximum: 8,
+      activityProgress: 'Completed',
+      gradingProgress: 'FullyGraded',
+    });
     expect(results[0].comment).toBe(`Feedback: ${OSCILLAB}/student/practicals/${practicalId}`);
     const gradebook = await (await fetch(`${platform.url}/gradebook`)).text();
     expect(gradebook).toContain(`data-score="${marked.awardedTotal}"`);
@@ -237,7 +289,9 @@ describe('the whole loop with the learning platform', () => {
 
   it('a launch never grants a role in another course', async () => {
     const { User, CourseMembership } = models();
-    const platformPeople = await User.findAll({ where: { email: ['instructor1@northmere.example', 'student01@northmere.example', 'ta3@northmere.example'] } });
+    const platformPeople = await User.findAll({
+      where: { email: ['instructor1@northmere.example', 'student01@northmere.example', 'ta3@northmere.example'] },
+    });
     const courses = await CourseMembership.findAll({ where: { userId: platformPeople.map((u) => u.id) } });
     expect(new Set(courses.map((m) => m.courseId))).toEqual(new Set([w.course.id]));
   });
@@ -317,7 +371,10 @@ describe('key rotation on both sides', () => {
     const s = await createCheckedSubmission({ practicalId: second.id, cohortId: w.cohort.id, studentId: amara.id });
     const r = await acceptProposal(w.people.ta.id, s.id, s.version);
     await saveMarks(w.people.ta.id, s.id, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 2 }] });
-    expect((await (await releaseRoute(await apiRequest('/api/release', { as: w.people.ta.id, body: { submissionIds: [s.id] } }), {})).json()).released).toBe(1);
+    expect(
+      (await (await releaseRoute(await apiRequest('/api/release', { as: w.people.ta.id, body: { submissionIds: [s.id] } }), {})).json())
+        .released,
+    ).toBe(1);
     expect(await deliverScores()).toMatchObject({ sent: 1, failed: 0 });
     const state = await platform.state();
     const made = state.lineItems.find((l) => l.resourceId === `oscillab-practical-${second.id}`)!;
@@ -328,7 +385,11 @@ describe('key rotation on both sides', () => {
     const b = new Browser();
     const page = await launchAs(b, P.instructor, { deeplink: true });
     const t = new URL(page.url).searchParams.get('t')!;
-    const answer = await b.go(`${OSCILLAB}/api/lti/deep-link`, { form: { t, practicalId: String(practicalId) }, initiator: page.url, follow });
+    const answer = await b.go(`${OSCILLAB}/api/lti/deep-link`, {
+      form: { t, practicalId: String(practicalId) },
+      initiator: page.url,
+      follow,
+    });
     const jwt = /name="JWT" value="([^"]+)"/.exec(answer.html)![1];
     expect(JSON.parse(Buffer.from(jwt.split('.')[0], 'base64url').toString()).kid).toBe(kid);
     expect((await b.submit(answer, {}, follow)).html).toContain('Item placed');

@@ -24,10 +24,18 @@ let lateId: number;
 beforeAll(async () => {
   w = await buildWorld();
   const practical = await createFixturePractical(w.course.id, [w.cohort.id, w.otherCohort.id]);
-  ownId = (await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: w.people.student.id, slip: true })).id;
-  otherId = (await createCheckedSubmission({ practicalId: practical.id, cohortId: w.otherCohort.id, studentId: w.people.otherStudent.id })).id;
+  ownId = (await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: w.people.student.id, slip: true }))
+    .id;
+  otherId = (await createCheckedSubmission({ practicalId: practical.id, cohortId: w.otherCohort.id, studentId: w.people.otherStudent.id }))
+    .id;
   const { User, CourseMembership } = models();
-  const late = await User.create({ email: 'late.student@test.example', name: 'Late Student', passwordHash: null, isAdmin: false, studentNumber: 'L1' });
+  const late = await User.create({
+    email: 'late.student@test.example',
+    name: 'Late Student',
+    passwordHash: null,
+    isAdmin: false,
+    studentNumber: 'L1',
+  });
   await CourseMembership.create({ userId: late.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
   lateId = (await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: late.id, latePenalty: 10 })).id;
 });
@@ -45,14 +53,17 @@ describe('queue', () => {
     expect(body.rows.map((r: { id: number }) => r.id).sort()).toEqual([ownId, lateId].sort());
     const slip = await (await queueGET(await apiRequest('/api/marking/queue?flag=slip', { as: w.people.ta.id }), {})).json();
     expect(slip.rows.map((r: { id: number }) => r.id)).toEqual([ownId]);
-    const inst = await (await queueGET(await apiRequest('/api/marking/queue?pageSize=2&sort=student&dir=desc', { as: w.people.instructor.id }), {})).json();
+    const inst = await (
+      await queueGET(await apiRequest('/api/marking/queue?pageSize=2&sort=student&dir=desc', { as: w.people.instructor.id }), {})
+    ).json();
     expect(inst.total).toBe(3);
     expect(inst.rows).toHaveLength(2);
     expect(inst.pages).toBe(2);
   });
 
   it('pages by cursor (keyset) forwards and back in every sort, NULLs included; rows carry the kept verdict counts and slip names', async () => {
-    const get = async (query: string) => (await queueGET(await apiRequest(`/api/marking/queue?${query}`, { as: w.people.instructor.id }), {})).json();
+    const get = async (query: string) =>
+      (await queueGET(await apiRequest(`/api/marking/queue?${query}`, { as: w.people.instructor.id }), {})).json();
     for (const sort of ['submittedAt', 'student', 'practical', 'status', 'proposedTotal', 'awardedTotal']) {
       for (const dir of ['asc', 'desc']) {
         const all = (await get(`sort=${sort}&dir=${dir}&pageSize=100`)).rows.map((r: { id: number }) => r.id);
@@ -78,7 +89,9 @@ describe('queue', () => {
     }
     // awardedTotal is NULL for all three (none marked yet): ties fall back to the id, ascending.
     const byAwarded = await get('sort=awardedTotal&dir=asc&pageSize=100');
-    expect(byAwarded.rows.map((r: { id: number }) => r.id)).toEqual([...byAwarded.rows.map((r: { id: number }) => r.id)].sort((a, b) => a - b));
+    expect(byAwarded.rows.map((r: { id: number }) => r.id)).toEqual(
+      [...byAwarded.rows.map((r: { id: number }) => r.id)].sort((a, b) => a - b),
+    );
     const own = (await get('pageSize=100')).rows.find((r: { id: number }) => r.id === ownId);
     const { CheckResult } = models();
     const checks = await CheckResult.findAll({ where: { submissionId: ownId } });
@@ -100,7 +113,10 @@ describe('queue', () => {
 describe('marking', () => {
   it('a TA cannot open or mark a cohort not assigned to them (403); a student cannot mark (403); unknown id 404', async () => {
     expect((await view(otherId, w.people.ta.id)).status).toBe(403);
-    const res = await savePUT(await apiRequest(`/api/marking/${otherId}`, { as: w.people.ta.id, method: 'PUT', body: { version: 0, items: [] } }), params({ submissionId: String(otherId) }));
+    const res = await savePUT(
+      await apiRequest(`/api/marking/${otherId}`, { as: w.people.ta.id, method: 'PUT', body: { version: 0, items: [] } }),
+      params({ submissionId: String(otherId) }),
+    );
     expect(res.status).toBe(403);
     expect((await view(ownId, w.people.student.id)).status).toBe(403);
     expect((await view(999999, w.people.ta.id)).status).toBe(404);
@@ -119,7 +135,11 @@ describe('marking', () => {
     const { body } = await view(ownId, w.people.ta.id);
     const k = body.marks.find((m: { itemKey: string }) => m.itemKey.startsWith('forceConstant:'));
     const res = await savePUT(
-      await apiRequest(`/api/marking/${ownId}`, { as: w.people.ta.id, method: 'PUT', body: { version: body.submission.version, items: [{ itemKey: k.itemKey, awarded: k.maxMarks }] } }),
+      await apiRequest(`/api/marking/${ownId}`, {
+        as: w.people.ta.id,
+        method: 'PUT',
+        body: { version: body.submission.version, items: [{ itemKey: k.itemKey, awarded: k.maxMarks }] },
+      }),
       params({ submissionId: String(ownId) }),
     );
     expect(res.status).toBe(400);
@@ -137,7 +157,14 @@ describe('marking', () => {
         ? { itemKey: m.itemKey, awarded: 1, comment: 'Method right; masses wrong — half the marks.' }
         : { itemKey: m.itemKey, awarded: m.proposed ?? 1.5 },
     );
-    const res = await savePUT(await apiRequest(`/api/marking/${ownId}`, { as: w.people.ta.id, method: 'PUT', body: { version: v0, items, markerComment: 'Good spectrum.' } }), params({ submissionId: String(ownId) }));
+    const res = await savePUT(
+      await apiRequest(`/api/marking/${ownId}`, {
+        as: w.people.ta.id,
+        method: 'PUT',
+        body: { version: v0, items, markerComment: 'Good spectrum.' },
+      }),
+      params({ submissionId: String(ownId) }),
+    );
     expect(res.status).toBe(200);
     const saved = await res.json();
     expect(saved.status).toBe('marked');
@@ -155,7 +182,14 @@ describe('marking', () => {
     expect((entries[0].after as Record<string, { awarded: number }>)[kKey].awarded).toBe(1);
 
     // A second marker who opened the page at v0 must not overwrite silently.
-    const stale = await savePUT(await apiRequest(`/api/marking/${ownId}`, { as: w.people.instructor.id, method: 'PUT', body: { version: v0, items: [{ itemKey: kKey, awarded: 2, comment: 'I disagree' }] } }), params({ submissionId: String(ownId) }));
+    const stale = await savePUT(
+      await apiRequest(`/api/marking/${ownId}`, {
+        as: w.people.instructor.id,
+        method: 'PUT',
+        body: { version: v0, items: [{ itemKey: kKey, awarded: 2, comment: 'I disagree' }] },
+      }),
+      params({ submissionId: String(ownId) }),
+    );
     expect(stale.status).toBe(409);
     expect((await stale.json()).error).toMatch(/someone else saved/i);
     expect((await models().Mark.findOne({ where: { submissionId: ownId, itemKey: kKey } }))!.awarded).toBe(1);
@@ -163,13 +197,20 @@ describe('marking', () => {
 
   it('accepting the proposal leaves hand-marked items open; the total subtracts the late penalty (10 %)', async () => {
     const { body } = await view(lateId, w.people.ta.id);
-    const res = await acceptPOST(await apiRequest(`/api/marking/${lateId}/accept`, { as: w.people.ta.id, body: { version: body.submission.version } }), params({ submissionId: String(lateId) }));
+    const res = await acceptPOST(
+      await apiRequest(`/api/marking/${lateId}/accept`, { as: w.people.ta.id, body: { version: body.submission.version } }),
+      params({ submissionId: String(lateId) }),
+    );
     expect(res.status).toBe(200);
     const r = await res.json();
     expect(r.status).toBe('submitted');
     expect(r.unmarked).toBe(1);
     const save = await savePUT(
-      await apiRequest(`/api/marking/${lateId}`, { as: w.people.ta.id, method: 'PUT', body: { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 2 }] } }),
+      await apiRequest(`/api/marking/${lateId}`, {
+        as: w.people.ta.id,
+        method: 'PUT',
+        body: { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 2 }] },
+      }),
       params({ submissionId: String(lateId) }),
     );
     const saved = await save.json();
@@ -182,7 +223,10 @@ describe('marking', () => {
   it('refuses marks above the maximum and unknown items (400)', async () => {
     const s = await models().Submission.findByPk(lateId);
     for (const items of [[{ itemKey: 'rubric:discussion', awarded: 3 }], [{ itemKey: 'rubric:nope', awarded: 1 }]]) {
-      const res = await savePUT(await apiRequest(`/api/marking/${lateId}`, { as: w.people.ta.id, method: 'PUT', body: { version: s!.version, items } }), params({ submissionId: String(lateId) }));
+      const res = await savePUT(
+        await apiRequest(`/api/marking/${lateId}`, { as: w.people.ta.id, method: 'PUT', body: { version: s!.version, items } }),
+        params({ submissionId: String(lateId) }),
+      );
       expect(res.status).toBe(400);
     }
   });
@@ -201,10 +245,24 @@ describe('moderation', () => {
     expect(markers[0].markedCount).toBe(2);
     expect(markers[0].sample).toHaveLength(1);
     const pick = markers[0].sample[0];
-    const noNote = await modPOST(await apiRequest(`/api/moderation/${pick.id}`, { as: w.people.instructor.id, body: { decision: 'changed', version: pick.version, items: [{ itemKey: 'rubric:discussion', awarded: 1 }] } }), params({ submissionId: String(pick.id) }));
+    const noNote = await modPOST(
+      await apiRequest(`/api/moderation/${pick.id}`, {
+        as: w.people.instructor.id,
+        body: { decision: 'changed', version: pick.version, items: [{ itemKey: 'rubric:discussion', awarded: 1 }] },
+      }),
+      params({ submissionId: String(pick.id) }),
+    );
     expect(noNote.status).toBe(400);
     const ok = await modPOST(
-      await apiRequest(`/api/moderation/${pick.id}`, { as: w.people.instructor.id, body: { decision: 'changed', version: pick.version, items: [{ itemKey: 'rubric:discussion', awarded: 1 }], note: 'Discussion is thin.' } }),
+      await apiRequest(`/api/moderation/${pick.id}`, {
+        as: w.people.instructor.id,
+        body: {
+          decision: 'changed',
+          version: pick.version,
+          items: [{ itemKey: 'rubric:discussion', awarded: 1 }],
+          note: 'Discussion is thin.',
+        },
+      }),
       params({ submissionId: String(pick.id) }),
     );
     expect(ok.status).toBe(200);
@@ -220,7 +278,10 @@ describe('resubmission', () => {
     const { Submission, EmailOutbox } = models();
     const s = await Submission.findByPk(otherId);
     const res = await resubmitPOST(
-      await apiRequest(`/api/marking/${otherId}/resubmission`, { as: w.people.otherTa.id, body: { version: s!.version, message: 'Please redo the fit with m = J + 1 for the R branch.' } }),
+      await apiRequest(`/api/marking/${otherId}/resubmission`, {
+        as: w.people.otherTa.id,
+        body: { version: s!.version, message: 'Please redo the fit with m = J + 1 for the R branch.' },
+      }),
       params({ submissionId: String(otherId) }),
     );
     expect(res.status).toBe(200);
@@ -230,7 +291,10 @@ describe('resubmission', () => {
     const mail = await EmailOutbox.findOne({ where: { submissionId: otherId, dedupeKey: `resubmit:${otherId}:1` } });
     expect(mail!.textBody).toContain('m = J + 1');
     expect(mail!.toAddress).toBe(w.people.otherStudent.email);
-    const empty = await resubmitPOST(await apiRequest(`/api/marking/${otherId}/resubmission`, { as: w.people.otherTa.id, body: { message: '  ' } }), params({ submissionId: String(otherId) }));
+    const empty = await resubmitPOST(
+      await apiRequest(`/api/marking/${otherId}/resubmission`, { as: w.people.otherTa.id, body: { message: '  ' } }),
+      params({ submissionId: String(otherId) }),
+    );
     expect(empty.status).toBe(400);
   });
 });

@@ -61,7 +61,8 @@ async function linkFromMail(email: string): Promise<string> {
   return match![1];
 }
 
-const signInWith = (email: string, password: string) => authorizeCredentials({ email, password }, { headers: { 'x-forwarded-for': freshClient() } });
+const signInWith = (email: string, password: string) =>
+  authorizeCredentials({ email, password }, { headers: { 'x-forwarded-for': freshClient() } });
 
 describe('asking for a reset link', () => {
   it('answers a known and an unknown address with the same status, body and roughly the same time; only the known one gets mail', async () => {
@@ -313,10 +314,21 @@ describe('throttling', () => {
 
 describe('malformed requests', () => {
   it('answers 4xx with a reason, writes nothing and sends nothing', async () => {
-    const counts = async () => [await models().OneTimeToken.count(), await models().SignInFailure.count(), await models().EmailOutbox.count()];
+    const counts = async () => [
+      await models().OneTimeToken.count(),
+      await models().SignInFailure.count(),
+      await models().EmailOutbox.count(),
+    ];
     const before = await counts();
     const raw = (rawBody: string, type = 'application/json') =>
-      resetRoute.POST(new Request('http://localhost:3000/api/password-reset', { method: 'POST', headers: { origin: 'http://localhost:3000', 'content-type': type }, body: rawBody }), {});
+      resetRoute.POST(
+        new Request('http://localhost:3000/api/password-reset', {
+          method: 'POST',
+          headers: { origin: 'http://localhost:3000', 'content-type': type },
+          body: rawBody,
+        }),
+        {},
+      );
 
     const cases: [Promise<Response>, number, RegExp][] = [
       [raw('{"email": '), 400, /not valid JSON/],
@@ -341,9 +353,18 @@ describe('malformed requests', () => {
 
   it('refuses a cross-site request with 403 before looking at the address', async () => {
     const user = await person('csrf');
-    const res = await resetRoute.POST(await apiRequest('/api/password-reset', { body: { email: user.email }, headers: { origin: 'https://evil.example' } }), {});
+    const res = await resetRoute.POST(
+      await apiRequest('/api/password-reset', { body: { email: user.email }, headers: { origin: 'https://evil.example' } }),
+      {},
+    );
     expect(res.status).toBe(403);
-    const set = await accept.POST(await apiRequest('/api/invitations/accept', { body: { token: 'x'.repeat(40), password: 'rotational-lines-77', confirm: 'rotational-lines-77' }, headers: { origin: 'https://evil.example' } }), {});
+    const set = await accept.POST(
+      await apiRequest('/api/invitations/accept', {
+        body: { token: 'x'.repeat(40), password: 'rotational-lines-77', confirm: 'rotational-lines-77' },
+        headers: { origin: 'https://evil.example' },
+      }),
+      {},
+    );
     expect(set.status).toBe(403);
     expect(await models().OneTimeToken.count({ where: { userId: user.id } })).toBe(0);
   });

@@ -35,9 +35,19 @@ export function inkShare(pgm: Buffer): number {
 beforeAll(async () => {
   const w = await buildWorld();
   const practical = await createFixturePractical(w.course.id, [w.cohort.id]);
-  const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: w.people.student.id, slip: true, latePenalty: 10 });
+  const sub = await createCheckedSubmission({
+    practicalId: practical.id,
+    cohortId: w.cohort.id,
+    studentId: w.people.student.id,
+    slip: true,
+    latePenalty: 10,
+  });
   const r = await acceptProposal(w.people.ta.id, sub.id, sub.version);
-  await saveMarks(w.people.ta.id, sub.id, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 1, comment: 'Say which error dominates.' }], markerComment: 'Clear report; check μ.' });
+  await saveMarks(w.people.ta.id, sub.id, {
+    version: r.version,
+    items: [{ itemKey: 'rubric:discussion', awarded: 1, comment: 'Say which error dominates.' }],
+    markerComment: 'Clear report; check μ.',
+  });
   submissionId = sub.id;
   const pdf = await buildFeedbackPdf(feedbackInputFromView(await loadMarkingView(sub.id)));
   pdfFile = path.join(dir, 'feedback.pdf');
@@ -71,7 +81,10 @@ describe('feedback PDF', () => {
     const base = feedbackInputFromView(await loadMarkingView(submissionId));
     const orphans: string[] = [];
     for (let n = 14; n <= 40; n += 2) {
-      const input = { ...base, quantities: Array.from({ length: n }, (_, i) => ({ ...base.quantities[i % base.quantities.length], label: `Quantity ${i + 1}` })) };
+      const input = {
+        ...base,
+        quantities: Array.from({ length: n }, (_, i) => ({ ...base.quantities[i % base.quantities.length], label: `Quantity ${i + 1}` })),
+      };
       const file = path.join(dir, `sweep-${n}.pdf`);
       fs.writeFileSync(file, await buildFeedbackPdf(input));
       const pages = Number(/Pages:\s+(\d+)/.exec(execFileSync('pdfinfo', [file]).toString('utf8'))![1]);

@@ -24,10 +24,17 @@ const MU = muU(CONST.mH, CONST.mCl35);
 
 async function counts() {
   const { Submission, SubmittedValue, CheckResult, Mark, AuditEntry } = models();
-  return { subs: await Submission.count(), values: await SubmittedValue.count(), checks: await CheckResult.count(), marks: await Mark.count(), audit: await AuditEntry.count() };
+  return {
+    subs: await Submission.count(),
+    values: await SubmittedValue.count(),
+    checks: await CheckResult.count(),
+    marks: await Mark.count(),
+    audit: await AuditEntry.count(),
+  };
 }
 
-const runCheck = async (as: number, practicalId: number, draft: unknown) => check(await apiRequest('/api/submissions/check', { as, body: { practicalId, draft } }), params({}));
+const runCheck = async (as: number, practicalId: number, draft: unknown) =>
+  check(await apiRequest('/api/submissions/check', { as, body: { practicalId, draft } }), params({}));
 
 beforeAll(async () => {
   world = await buildWorld();
@@ -66,9 +73,14 @@ describe('check without submitting', () => {
   it('is refused to anyone who may not submit to the practical, and for a bad body', async () => {
     const draft = draftFor('H35Cl', {});
     expect((await runCheck(world.people.ta.id, practiceId, draft)).status).toBe(403);
-    expect((await check(await apiRequest('/api/submissions/check', { body: { practicalId: practiceId, draft } }), params({}))).status).toBe(401);
+    expect((await check(await apiRequest('/api/submissions/check', { body: { practicalId: practiceId, draft } }), params({}))).status).toBe(
+      401,
+    );
     expect((await runCheck(world.people.student.id, 999999, draft)).status).toBe(404);
-    expect((await check(await apiRequest('/api/submissions/check', { as: world.people.student.id, body: { practicalId: 'x' } }), params({}))).status).toBe(400);
+    expect(
+      (await check(await apiRequest('/api/submissions/check', { as: world.people.student.id, body: { practicalId: 'x' } }), params({})))
+        .status,
+    ).toBe(400);
   });
 });
 
@@ -78,9 +90,19 @@ describe('a quantity not reported', () => {
       bandCentre: { value: NU0.toFixed(1), unit: 'cm-1', uncertainty: '0.5' },
       forceConstant: { value: kFrom(NU0, MU).toFixed(1), unit: 'N/m', uncertainty: '0.3' },
     });
-    const saved = await saveDraftRoute(await apiRequest('/api/submissions/draft', { as: world.people.otherStudent.id, method: 'PUT', body: { practicalId: practiceId, draft } }), {});
+    const saved = await saveDraftRoute(
+      await apiRequest('/api/submissions/draft', {
+        as: world.people.otherStudent.id,
+        method: 'PUT',
+        body: { practicalId: practiceId, draft },
+      }),
+      {},
+    );
     const { id, version } = await saved.json();
-    const res = await submit(await apiRequest(`/api/submissions/${id}/submit`, { as: world.people.otherStudent.id, body: { version, draft } }), params({ id: String(id) }));
+    const res = await submit(
+      await apiRequest(`/api/submissions/${id}/submit`, { as: world.people.otherStudent.id, body: { version, draft } }),
+      params({ id: String(id) }),
+    );
     expect(res.status).toBe(201);
     const { result } = await res.json();
     const view = await loadMarkingView(result.id);

@@ -40,7 +40,13 @@ beforeAll(async () => {
   const practical = await createFixturePractical(w.course.id, [w.cohort.id]);
   const { User, CourseMembership } = models();
   for (let i = 0; i < 4; i++) {
-    const s = await User.create({ email: `release.${i}@test.example`, name: `Release Student ${i}`, passwordHash: null, isAdmin: false, studentNumber: `R${i}` });
+    const s = await User.create({
+      email: `release.${i}@test.example`,
+      name: `Release Student ${i}`,
+      passwordHash: null,
+      isAdmin: false,
+      studentNumber: `R${i}`,
+    });
     await CourseMembership.create({ userId: s.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
     students.push({ id: s.id, email: s.email });
     const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: s.id, slip: i % 2 === 0 });
@@ -86,7 +92,9 @@ describe('release', () => {
     expect(await FeedbackDocument.count({ where: { submissionId: ids } })).toBe(4);
 
     // Releasing again is refused per submission and queues nothing new.
-    const again = await (await releasePOST(await apiRequest('/api/release', { as: w.people.ta.id, body: { submissionIds: ids } }), {})).json();
+    const again = await (
+      await releasePOST(await apiRequest('/api/release', { as: w.people.ta.id, body: { submissionIds: ids } }), {})
+    ).json();
     expect(again.released).toBe(0);
     expect(await EmailOutbox.count({ where: { submissionId: ids } })).toBe(4);
 
@@ -111,49 +119,76 @@ describe('release', () => {
 
   it('staff can resend a sent message; it arrives once more', async () => {
     const row = await models().EmailOutbox.findOne({ where: { submissionId: ids[0] } });
-    const res = await resendPOST(await apiRequest(`/api/marking/${ids[0]}/resend`, { as: w.people.ta.id, body: { outboxId: row!.id } }), params({ submissionId: String(ids[0]) }));
+    const res = await resendPOST(
+      await apiRequest(`/api/marking/${ids[0]}/resend`, { as: w.people.ta.id, body: { outboxId: row!.id } }),
+      params({ submissionId: String(ids[0]) }),
+    );
     expect(res.status).toBe(200);
     await new Promise((r) => setTimeout(r, 300));
     await deliverOutbox();
     expect(await mailTo(students[0].email)).toHaveLength(2);
-    const wrong = await resendPOST(await apiRequest(`/api/marking/${ids[1]}/resend`, { as: w.people.ta.id, body: { outboxId: row!.id } }), params({ submissionId: String(ids[1]) }));
+    const wrong = await resendPOST(
+      await apiRequest(`/api/marking/${ids[1]}/resend`, { as: w.people.ta.id, body: { outboxId: row!.id } }),
+      params({ submissionId: String(ids[1]) }),
+    );
     expect(wrong.status).toBe(404);
   });
 
-  it('a batch reports progress line by line (NDJSON) while its PDFs render on worker threads; every PDF is whole and names its student', { timeout: 120_000 }, async () => {
-    const { User, CourseMembership, FeedbackDocument } = models();
-    const practical = await createFixturePractical(w.course.id, [w.cohort.id]);
-    const batch: number[] = [];
-    const names: string[] = [];
-    for (let i = 0; i < 5; i++) {
-      const s = await User.create({ email: `progress.${i}@test.example`, name: `Progress Student ${i}`, passwordHash: null, isAdmin: false, studentNumber: `P${i}` });
-      await CourseMembership.create({ userId: s.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
-      const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: s.id, slip: i === 0 });
-      const r = await acceptProposal(w.people.ta.id, sub.id, sub.version);
-      await saveMarks(w.people.ta.id, sub.id, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 2 }] });
-      batch.push(sub.id);
-      names.push(s.name);
-    }
-    const res = await releasePOST(await apiRequest('/api/release', { as: w.people.ta.id, body: { submissionIds: batch }, headers: { accept: 'application/x-ndjson' } }), {});
-    expect(res.status).toBe(200);
-    expect(res.headers.get('content-type')).toContain('application/x-ndjson');
-    const lines = (await res.text()).trim().split('\n').map((l) => JSON.parse(l));
-    expect(lines.slice(0, 5).map((l) => l.done)).toEqual([1, 2, 3, 4, 5]);
-    expect(lines.slice(0, 5).every((l) => l.total === 5 && l.ok)).toBe(true);
-    expect(lines[5].released).toBe(5);
-    expect(lines[5].results.map((r: { submissionId: number }) => r.submissionId)).toEqual(batch); // in the order asked
-    const { PDFDocument } = await import('pdf-lib');
-    const { execFileSync } = await import('node:child_process');
-    const { feedbackPath } = await import('@/lib/storage');
-    for (const [i, id] of batch.entries()) {
-      const doc = (await FeedbackDocument.findOne({ where: { submissionId: id } }))!;
-      const file = feedbackPath(doc.storedName);
-      expect((await PDFDocument.load(new Uint8Array((await import('node:fs')).readFileSync(file)))).getPageCount()).toBeGreaterThan(0);
-      expect(execFileSync('pdftotext', ['-enc', 'UTF-8', file, '-']).toString('utf8')).toContain(names[i]);
-    }
-    const { stopPdfWorkers } = await import('@/lib/pdf/pool');
-    await stopPdfWorkers();
-    // Let the delivery the release started finish before the database goes away.
-    for (let t = 0; t < 50 && (await models().EmailOutbox.count({ where: { submissionId: batch, status: 'sending' } })) > 0; t++) await new Promise((r) => setTimeout(r, 200));
-  });
+  it(
+    'a batch reports progress line by line (NDJSON) while its PDFs render on worker threads; every PDF is whole and names its student',
+    { timeout: 120_000 },
+    async () => {
+      const { User, CourseMembership, FeedbackDocument } = models();
+      const practical = await createFixturePractical(w.course.id, [w.cohort.id]);
+      const batch: number[] = [];
+      const names: string[] = [];
+      for (let i = 0; i < 5; i++) {
+        const s = await User.create({
+          email: `progress.${i}@test.example`,
+          name: `Progress Student ${i}`,
+          passwordHash: null,
+          isAdmin: false,
+          studentNumber: `P${i}`,
+        });
+        await CourseMembership.create({ userId: s.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
+        const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: s.id, slip: i === 0 });
+        const r = await acceptProposal(w.people.ta.id, sub.id, sub.version);
+        await saveMarks(w.people.ta.id, sub.id, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 2 }] });
+        batch.push(sub.id);
+        names.push(s.name);
+      }
+      const res = await releasePOST(
+        await apiRequest('/api/release', {
+          as: w.people.ta.id,
+          body: { submissionIds: batch },
+          headers: { accept: 'application/x-ndjson' },
+        }),
+        {},
+      );
+      expect(res.status).toBe(200);
+      expect(res.headers.get('content-type')).toContain('application/x-ndjson');
+      const lines = (await res.text())
+        .trim()
+        .split('\n')
+        .map((l) => JSON.parse(l));
+      expect(lines.slice(0, 5).map((l) => l.done)).toEqual([1, 2, 3, 4, 5]);
+      expect(lines.slice(0, 5).every((l) => l.total === 5 && l.ok)).toBe(true);
+      expect(lines[5].released).toBe(5);
+      expect(lines[5].results.map((r: { submissionId: number }) => r.submissionId)).toEqual(batch); // in the order asked
+      const { PDFDocument } = await import('pdf-lib');
+      const { execFileSync } = await import('node:child_process');
+      const { feedbackPath } = await import('@/lib/storage');
+      for (const [i, id] of batch.entries()) {
+        const doc = (await FeedbackDocument.findOne({ where: { submissionId: id } }))!;
+        const file = feedbackPath(doc.storedName);
+        expect((await PDFDocument.load(new Uint8Array((await import('node:fs')).readFileSync(file)))).getPageCount()).toBeGreaterThan(0);
+        expect(execFileSync('pdftotext', ['-enc', 'UTF-8', file, '-']).toString('utf8')).toContain(names[i]);
+      }
+      const { stopPdfWorkers } = await import('@/lib/pdf/pool');
+      await stopPdfWorkers();
+      // Let the delivery the release started finish before the database goes away.
+      for (let t = 0; t < 50 && (await models().EmailOutbox.count({ where: { submissionId: batch, status: 'sending' } })) > 0; t++)
+        await new Promise((r) => setTimeout(r, 200));
+    },
+  );
 });

@@ -19,7 +19,14 @@ const level = process.env.LOG_LEVEL;
 beforeEach(() => {
   lines = [];
   process.env.LOG_LEVEL = 'info';
-  setLogDestination(new Writable({ write(chunk, _enc, done) { for (const l of String(chunk).split('\n').filter(Boolean)) lines.push(JSON.parse(l)); done(); } }));
+  setLogDestination(
+    new Writable({
+      write(chunk, _enc, done) {
+        for (const l of String(chunk).split('\n').filter(Boolean)) lines.push(JSON.parse(l));
+        done();
+      },
+    }),
+  );
 });
 afterEach(() => {
   process.env.LOG_LEVEL = level;

@@ -62,11 +62,17 @@ describe(`models match the schema the migrations build (${sequelize().getDialect
       { tableName: 'sign_in_failures' },
     );
     const submissionColumns = Object.fromEntries(
-      Object.entries(models().Submission.getAttributes()).map(([k, a]) => [k, { type: a.type, allowNull: a.allowNull, primaryKey: a.primaryKey, autoIncrement: a.autoIncrement, defaultValue: a.defaultValue }]),
+      Object.entries(models().Submission.getAttributes()).map(([k, a]) => [
+        k,
+        { type: a.type, allowNull: a.allowNull, primaryKey: a.primaryKey, autoIncrement: a.autoIncrement, defaultValue: a.defaultValue },
+      ]),
     );
     const submissionsIndexRenamed = sequelize().define('DriftProbeIndexName', submissionColumns, {
       tableName: 'submissions',
-      indexes: (models().Submission.options.indexes ?? []).map((i) => ({ ...i, name: i.name === 'submissions_statistics_scope' ? 'submissions_scope' : i.name })),
+      indexes: (models().Submission.options.indexes ?? []).map((i) => ({
+        ...i,
+        name: i.name === 'submissions_statistics_scope' ? 'submissions_scope' : i.name,
+      })),
     });
     try {
       const drift = await schemaDrift(wrong as ModelStatic<Model>, qi());

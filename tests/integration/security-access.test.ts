@@ -29,7 +29,7 @@ const handler = (key: string) => handlers.find((h) => h.key === key)!.handler;
 const call = async (key: string, url: string, as: number | null, p: Record<string, string>, body?: unknown) =>
   handler(key)(await apiRequest(url, { as, method: key.split(' ')[0], body }), params(p));
 
-describe('drafts are the student\'s own until submitted (item 9)', () => {
+describe("drafts are the student's own until submitted (item 9)", () => {
   it('staff and the administrator get 404 for a draft through the submission API, as on the marking pages; the student reads it', async () => {
     const id = String(w.draftB.id);
     expect((await models().Submission.findByPk(w.draftB.id))!.status).toBe('draft');
@@ -49,7 +49,16 @@ describe('drafts are the student\'s own until submitted (item 9)', () => {
   it('a file uploaded to a draft is not readable by staff either; once submitted, it is', async () => {
     const storedName = `${'d'.repeat(32)}.pdf`;
     fs.writeFileSync(uploadPath(storedName), '%PDF-1.4\n%%EOF\n');
-    const draftUpload = await models().Upload.create({ ownerId: w.people.student.id, submissionId: w.draftB.id, kind: 'report', originalName: 'draft.pdf', storedName, sha256: 'x'.repeat(64), size: 15, contentType: 'application/pdf' });
+    const draftUpload = await models().Upload.create({
+      ownerId: w.people.student.id,
+      submissionId: w.draftB.id,
+      kind: 'report',
+      originalName: 'draft.pdf',
+      storedName,
+      sha256: 'x'.repeat(64),
+      size: 15,
+      contentType: 'application/pdf',
+    });
     const id = String(draftUpload.id);
     expect((await call('GET /api/uploads/[id]', `/api/uploads/${id}`, w.people.ta.id, { id })).status).toBe(404);
     expect((await call('GET /api/uploads/[id]', `/api/uploads/${id}`, w.people.student.id, { id })).status).toBe(200);
@@ -70,7 +79,12 @@ describe('drafts are the student\'s own until submitted (item 9)', () => {
 
 describe('roster preview across courses (item 5)', () => {
   async function preview(csv: string) {
-    const req = await apiRequest(`/api/courses/${w.course.id}/roster?mode=preview`, { as: w.people.instructor.id, method: 'POST', rawBody: csv, headers: { 'content-type': 'text/csv' } });
+    const req = await apiRequest(`/api/courses/${w.course.id}/roster?mode=preview`, {
+      as: w.people.instructor.id,
+      method: 'POST',
+      rawBody: csv,
+      headers: { 'content-type': 'text/csv' },
+    });
     const r = await handler('POST /api/courses/[courseId]/roster')(req, params({ courseId: String(w.course.id) }));
     expect(r.status).toBe(200);
     return (await r.json()).rows as { email: string; status: string; reason?: string; newAccount?: boolean }[];
@@ -80,9 +94,21 @@ describe('roster preview across courses (item 5)', () => {
     const { User, Course, Cohort, CourseMembership } = models();
     const elsewhere = await Course.create({ code: `ELSE${w.course.id}`, title: 'Another department', archivedAt: null });
     const cohort = await Cohort.create({ courseId: elsewhere.id, name: 'X', term: 'T', instrument: null, archivedAt: null });
-    const outsider = await User.create({ email: `outsider.${w.course.id}@test.example`, name: 'Outsider', passwordHash: await hashPassword('outsider-password-1'), isAdmin: false, studentNumber: 'NM264100' });
+    const outsider = await User.create({
+      email: `outsider.${w.course.id}@test.example`,
+      name: 'Outsider',
+      passwordHash: await hashPassword('outsider-password-1'),
+      isAdmin: false,
+      studentNumber: 'NM264100',
+    });
     await CourseMembership.create({ userId: outsider.id, courseId: elsewhere.id, role: 'student', cohortId: cohort.id });
-    const known = await User.create({ email: `known.${w.course.id}@test.example`, name: 'Known', passwordHash: null, isAdmin: false, studentNumber: 'NM264200' });
+    const known = await User.create({
+      email: `known.${w.course.id}@test.example`,
+      name: 'Known',
+      passwordHash: null,
+      isAdmin: false,
+      studentNumber: 'NM264200',
+    });
     await CourseMembership.create({ userId: known.id, courseId: elsewhere.id, role: 'student', cohortId: cohort.id });
     const rows = await preview(
       `name,email,student_number,cohort\nOutsider,${outsider.email},ZZZ000,Cohort 1\nSomeone,someone.${w.course.id}@test.example,NM264100,Cohort 1\nNobody,nobody.new.${w.course.id}@test.example,NEW001,Cohort 1\nKnown,${known.email},NM264200,Cohort 1\n`,
@@ -111,13 +137,33 @@ describe('resend (item 8)', () => {
     const to = `resend.${Date.now()}.${w.course.id}@test.example`;
     const { EmailOutbox } = models();
     const row = await EmailOutbox.create({
-      dedupeKey: `resend-test:${w.submission.id}`, toAddress: to, subject: 'Feedback released (resend test)', textBody: 'Your feedback.', htmlBody: null,
-      submissionId: w.submission.id, feedbackDocumentId: null, nextAttemptAt: new Date(), lockedUntil: null, lastError: null, messageId: null, sentAt: null,
+      dedupeKey: `resend-test:${w.submission.id}`,
+      toAddress: to,
+      subject: 'Feedback released (resend test)',
+      textBody: 'Your feedback.',
+      htmlBody: null,
+      submissionId: w.submission.id,
+      feedbackDocumentId: null,
+      nextAttemptAt: new Date(),
+      lockedUntil: null,
+      lastError: null,
+      messageId: null,
+      sentAt: null,
     });
     await deliverOutbox();
     expect((await EmailOutbox.findByPk(row.id))!.status).toBe('sent');
     const id = String(w.submission.id);
-    const answers = await Promise.all(Array.from({ length: 10 }, () => call('POST /api/marking/[submissionId]/resend', `/api/marking/${id}/resend`, w.people.ta.id, { submissionId: id }, { outboxId: row.id })));
+    const answers = await Promise.all(
+      Array.from({ length: 10 }, () =>
+        call(
+          'POST /api/marking/[submissionId]/resend',
+          `/api/marking/${id}/resend`,
+          w.people.ta.id,
+          { submissionId: id },
+          { outboxId: row.id },
+        ),
+      ),
+    );
     const statuses = answers.map((r) => r.status).sort();
     expect(statuses).toEqual([200, 409, 409, 409, 409, 409, 409, 409, 409, 409]);
     for (const r of answers.filter((a) => a.status === 409)) expect((await r.json()).error).toMatch(/already|still waiting/);
@@ -128,10 +174,22 @@ describe('resend (item 8)', () => {
     expect(mail.map((m) => m.headers['message-id'])).toEqual([expected, expected]);
     expect(await EmailOutbox.count({ where: { toAddress: to } })).toBe(1);
     // Another click within the window is refused; after it, allowed again.
-    const again = await call('POST /api/marking/[submissionId]/resend', `/api/marking/${id}/resend`, w.people.ta.id, { submissionId: id }, { outboxId: row.id });
+    const again = await call(
+      'POST /api/marking/[submissionId]/resend',
+      `/api/marking/${id}/resend`,
+      w.people.ta.id,
+      { submissionId: id },
+      { outboxId: row.id },
+    );
     expect(again.status).toBe(409);
     await EmailOutbox.update({ resentAt: new Date(Date.now() - RESEND_WINDOW_MS - 1000) }, { where: { id: row.id } });
-    const later = await call('POST /api/marking/[submissionId]/resend', `/api/marking/${id}/resend`, w.people.ta.id, { submissionId: id }, { outboxId: row.id });
+    const later = await call(
+      'POST /api/marking/[submissionId]/resend',
+      `/api/marking/${id}/resend`,
+      w.people.ta.id,
+      { submissionId: id },
+      { outboxId: row.id },
+    );
     expect(later.status).toBe(200);
   });
 });
@@ -141,8 +199,16 @@ describe('informational items (item 11)', () => {
   // the browser-bound state are the proof) and fetches Oscillab's public keys; signing out when
   // already signed out just clears the cookie and goes to sign-in (it looks nothing up).
   const PUBLIC = new Set([
-    'GET /api/health', 'POST /api/password-reset', 'POST /api/invitations/accept', 'GET /api/auth/[...nextauth]', 'POST /api/auth/[...nextauth]',
-    'GET /api/lti/jwks', 'GET /api/lti/login', 'POST /api/lti/login', 'POST /api/lti/launch', 'POST /api/me/sign-out',
+    'GET /api/health',
+    'POST /api/password-reset',
+    'POST /api/invitations/accept',
+    'GET /api/auth/[...nextauth]',
+    'POST /api/auth/[...nextauth]',
+    'GET /api/lti/jwks',
+    'GET /api/lti/login',
+    'POST /api/lti/login',
+    'POST /api/lti/launch',
+    'POST /api/me/sign-out',
   ]);
 
   it('signed out, every route answers 401 whether or not the id exists (never 404 first)', async () => {
@@ -153,7 +219,10 @@ describe('informational items (item 11)', () => {
       for (const value of ['999999', String(w.submission.id)]) {
         const p = Object.fromEntries(names.map((n) => [n, value]));
         const url = h.pattern.replace(/\[(\w+)\]/g, value);
-        const res = await h.handler(await apiRequest(url, { method: h.method, body: h.method === 'GET' || h.method === 'DELETE' ? undefined : {} }), params(p));
+        const res = await h.handler(
+          await apiRequest(url, { method: h.method, body: h.method === 'GET' || h.method === 'DELETE' ? undefined : {} }),
+          params(p),
+        );
         if (res.status !== 401) wrong.push(`${h.key} (${value}): ${res.status}`);
       }
     }
@@ -165,7 +234,10 @@ describe('informational items (item 11)', () => {
     const listed = await coursesWhere(admin, 'moderate');
     const open = (await models().Course.findAll({ where: { archivedAt: null } })).map((c) => c.id);
     expect(listed.sort()).toEqual(open.sort());
-    const res = await handler('GET /api/moderation')(await apiRequest(`/api/moderation?courseId=${w.course.id}`, { as: w.people.admin.id }), {});
+    const res = await handler('GET /api/moderation')(
+      await apiRequest(`/api/moderation?courseId=${w.course.id}`, { as: w.people.admin.id }),
+      {},
+    );
     expect(res.status).toBe(200);
     const instructor = (await loadActor(w.people.instructor.id))!;
     expect(await coursesWhere(instructor, 'moderate')).toEqual([w.course.id]);
@@ -173,17 +245,25 @@ describe('informational items (item 11)', () => {
     expect(page).toContain("coursesWhere(actor, 'moderate')");
   });
 
-  it('the site-wide policy has object-src \'none\'; user files get a sandboxed policy of their own', async () => {
-    const config = (await import('@/next.config.mjs')).default as { headers: () => Promise<{ source: string; headers: { key: string; value: string }[] }[]> };
+  it("the site-wide policy has object-src 'none'; user files get a sandboxed policy of their own", async () => {
+    const config = (await import('@/next.config.mjs')).default as {
+      headers: () => Promise<{ source: string; headers: { key: string; value: string }[] }[]>;
+    };
     const rules = await config.headers();
     const effective = (pathname: string) => {
       const out: Record<string, string> = {};
-      for (const rule of rules) if ((pathToRegexp(rule.source) as RegExp).test(pathname)) for (const h of rule.headers) out[h.key.toLowerCase()] = h.value; // later rules win, as in Next
+      for (const rule of rules)
+        if ((pathToRegexp(rule.source) as RegExp).test(pathname)) for (const h of rule.headers) out[h.key.toLowerCase()] = h.value; // later rules win, as in Next
       return out;
     };
     expect(effective('/signin')['content-security-policy']).toContain("object-src 'none'");
     expect(effective('/signin')['content-security-policy']).not.toContain('sandbox');
-    for (const [p, frame] of [['/api/uploads/12', 'SAMEORIGIN'], ['/api/marking/3/report', 'SAMEORIGIN'], ['/api/marking/3/preview', 'DENY'], ['/api/submissions/4/feedback', 'DENY']]) {
+    for (const [p, frame] of [
+      ['/api/uploads/12', 'SAMEORIGIN'],
+      ['/api/marking/3/report', 'SAMEORIGIN'],
+      ['/api/marking/3/preview', 'DENY'],
+      ['/api/submissions/4/feedback', 'DENY'],
+    ]) {
       const h = effective(p);
       expect(h['content-security-policy'], p).toMatch(/^sandbox; default-src 'none'; object-src 'none'; frame-ancestors/);
       expect(h['x-frame-options'], p).toBe(frame);

@@ -31,10 +31,24 @@ beforeAll(async () => {
 });
 
 const practicalBody = (over: Record<string, unknown>) => ({
-  title: 'Nested formula practical', species: ['H35Cl'], instructions: 'Record the band.', hazardNotes: '', mode: 'practice', maxAttempts: 3,
-  lateRule: 'penalty', latePenaltyPerDay: 10, latePenaltyCap: 50, rubric: [], deadlines: [], ...over,
+  title: 'Nested formula practical',
+  species: ['H35Cl'],
+  instructions: 'Record the band.',
+  hazardNotes: '',
+  mode: 'practice',
+  maxAttempts: 3,
+  lateRule: 'penalty',
+  latePenaltyPerDay: 10,
+  latePenaltyCap: 50,
+  rubric: [],
+  deadlines: [],
+  ...over,
 });
-const put = async (body: unknown) => putPractical(await apiRequest(`/api/practicals/${practicalId}`, { as: world.people.instructor.id, method: 'PUT', body }), params({ practicalId: String(practicalId) }));
+const put = async (body: unknown) =>
+  putPractical(
+    await apiRequest(`/api/practicals/${practicalId}`, { as: world.people.instructor.id, method: 'PUT', body }),
+    params({ practicalId: String(practicalId) }),
+  );
 
 describe('a deeply nested formula (item 7)', () => {
   it('is refused when saved, with the reason, and nothing changes', async () => {
@@ -50,7 +64,10 @@ describe('a deeply nested formula (item 7)', () => {
   it('already stored, the practical still opens for staff and students: a notice instead of a 500', async () => {
     await models().Practical.update({ instructions: NESTED_FORMULA }, { where: { id: practicalId } });
     try {
-      const res = await getPractical(await apiRequest(`/api/practicals/${practicalId}`, { as: world.people.instructor.id }), params({ practicalId: String(practicalId) }));
+      const res = await getPractical(
+        await apiRequest(`/api/practicals/${practicalId}`, { as: world.people.instructor.id }),
+        params({ practicalId: String(practicalId) }),
+      );
       expect(res.status).toBe(200);
       const { instructionsHtml } = await res.json();
       expect(instructionsHtml).toContain('Not shown:');
@@ -67,7 +84,10 @@ describe('a deeply nested formula (item 7)', () => {
       const html = renderInstructions(md);
       expect(html).toMatch(/Not shown:/);
     }
-    const res = await markdownPreview(await apiRequest('/api/practicals/markdown', { as: world.people.instructor.id, body: { markdown: NESTED_FORMULA } }), {});
+    const res = await markdownPreview(
+      await apiRequest('/api/practicals/markdown', { as: world.people.instructor.id, body: { markdown: NESTED_FORMULA } }),
+      {},
+    );
     expect(res.status).toBe(200);
     expect((await res.json()).html).toMatch(/Not shown:/);
   });
@@ -83,7 +103,13 @@ describe('a deeply nested formula (item 7)', () => {
 describe('control characters (item 7)', () => {
   it('a NUL byte in a cohort name or a practical title is refused at once, nothing is written', async () => {
     const cohorts = await models().Cohort.count();
-    const res = await createCohort(await apiRequest(`/api/courses/${world.course.id}/cohorts`, { as: world.people.instructor.id, body: { name: 'Group\u0000A', term: '2027 Spring' } }), params({ courseId: String(world.course.id) }));
+    const res = await createCohort(
+      await apiRequest(`/api/courses/${world.course.id}/cohorts`, {
+        as: world.people.instructor.id,
+        body: { name: 'Group\u0000A', term: '2027 Spring' },
+      }),
+      params({ courseId: String(world.course.id) }),
+    );
     expect(res.status).toBe(400);
     expect((await res.json()).error).toMatch(/one line, without tabs or control characters/);
     expect(await models().Cohort.count()).toBe(cohorts);
@@ -98,15 +124,36 @@ describe('control characters (item 7)', () => {
   it('line breaks stay allowed in multi-line text and refused in one-line fields', async () => {
     const ok = await put(practicalBody({ title: 'HCl fundamental band', instructions: 'Line one.\r\nLine two.\n\n\tIndented.' }));
     expect(ok.status).toBe(200);
-    const res = await createCourse(await apiRequest('/api/courses', { as: world.people.admin.id, body: { code: 'CRLF-1', title: 'Spectroscopy\r\nBcc: someone@example.org' } }), {});
+    const res = await createCourse(
+      await apiRequest('/api/courses', {
+        as: world.people.admin.id,
+        body: { code: 'CRLF-1', title: 'Spectroscopy\r\nBcc: someone@example.org' },
+      }),
+      {},
+    );
     expect(res.status).toBe(400);
     expect((await res.json()).error).toMatch(/one line/);
-    const patch = await updateCourse(await apiRequest(`/api/courses/${world.course.id}`, { as: world.people.admin.id, method: 'PATCH', body: { title: 'Renamed\nsecond line' } }), params({ courseId: String(world.course.id) }));
+    const patch = await updateCourse(
+      await apiRequest(`/api/courses/${world.course.id}`, {
+        as: world.people.admin.id,
+        method: 'PATCH',
+        body: { title: 'Renamed\nsecond line' },
+      }),
+      params({ courseId: String(world.course.id) }),
+    );
     expect(patch.status).toBe(400);
   });
 
   it('a title stored with CR/LF before the rule no longer cuts an e-mail subject', async () => {
-    const { subject, text } = renderEmail('invitation', { name: 'Ada', email: 'ada@test.example', course: 'CHEM 1\r\nBcc: x@example.org', role: 'student', link: 'http://x', expires: 'soon', days: 7 });
+    const { subject, text } = renderEmail('invitation', {
+      name: 'Ada',
+      email: 'ada@test.example',
+      course: 'CHEM 1\r\nBcc: x@example.org',
+      role: 'student',
+      link: 'http://x',
+      expires: 'soon',
+      days: 7,
+    });
     expect(subject).toBe('Your Oscillab account for CHEM 1 Bcc: x@example.org');
     expect(text.split('\n')[0]).toBe('Dear Ada,');
     await queueEmail({ dedupeKey: 'crlf-subject', to: 'ada@test.example', subject: 'A\r\nB\u0000C', text: 'x' });

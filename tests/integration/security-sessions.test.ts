@@ -63,7 +63,10 @@ describe('signing out ends the session (item 4)', () => {
     const laptop = await signedInCookie(instructor.email);
     const phone = await signedInCookie(instructor.email);
     const someoneElse = await signedInCookie(lead.email);
-    const res = await signOutEverywhere(await apiRequest('/api/me/sign-out-everywhere', { method: 'POST', headers: { cookie: laptop } }), {});
+    const res = await signOutEverywhere(
+      await apiRequest('/api/me/sign-out-everywhere', { method: 'POST', headers: { cookie: laptop } }),
+      {},
+    );
     expect(res.status).toBe(200);
     expect(await whoAmI(laptop)).toBe(401);
     expect(await whoAmI(phone)).toBe(401);
@@ -78,13 +81,17 @@ describe('signing out ends the session (item 4)', () => {
 /** The header's buttons are plain form posts (no next-auth client script on every page). */
 describe('signing out with a plain form post', () => {
   const FORM = { 'content-type': 'application/x-www-form-urlencoded' };
-  const removed = (res: Response) => res.headers.getSetCookie().filter((c) => /^(__Secure-)?next-auth\.session-token=;/.test(c) && /Max-Age=0/.test(c));
+  const removed = (res: Response) =>
+    res.headers.getSetCookie().filter((c) => /^(__Secure-)?next-auth\.session-token=;/.test(c) && /Max-Age=0/.test(c));
 
   it('"Sign out" ends this session only, removes the cookie and sends the browser to sign-in with a 303', async () => {
     const { ta } = world.people;
     const laptop = await signedInCookie(ta.email);
     const phone = await signedInCookie(ta.email);
-    const res = await signOutHere(await apiRequest('/api/me/sign-out', { method: 'POST', headers: { cookie: laptop, ...FORM }, rawBody: '' }), {});
+    const res = await signOutHere(
+      await apiRequest('/api/me/sign-out', { method: 'POST', headers: { cookie: laptop, ...FORM }, rawBody: '' }),
+      {},
+    );
     expect(res.status).toBe(303);
     expect(res.headers.get('location')).toBe('/signin');
     expect(removed(res)).toHaveLength(2);
@@ -95,7 +102,10 @@ describe('signing out with a plain form post', () => {
   it('signed out already, or with a forged cookie, it changes nothing and still goes to sign-in', async () => {
     const before = await models().EndedSession.count();
     for (const cookie of [undefined, 'next-auth.session-token=not-a-token']) {
-      const res = await signOutHere(await apiRequest('/api/me/sign-out', { method: 'POST', headers: { ...(cookie ? { cookie } : {}), ...FORM }, rawBody: '' }), {});
+      const res = await signOutHere(
+        await apiRequest('/api/me/sign-out', { method: 'POST', headers: { ...(cookie ? { cookie } : {}), ...FORM }, rawBody: '' }),
+        {},
+      );
       expect(res.status).toBe(303);
       expect(removed(res)).toHaveLength(2);
     }
@@ -105,7 +115,14 @@ describe('signing out with a plain form post', () => {
   it('a form posted from another site is refused and the session stays', async () => {
     const cookie = await signedInCookie(world.people.ta.email);
     for (const handler of [signOutHere, signOutEverywhere]) {
-      const res = await handler(await apiRequest('/api/me/sign-out', { method: 'POST', headers: { cookie, ...FORM, origin: 'https://elsewhere.example' }, rawBody: '' }), {});
+      const res = await handler(
+        await apiRequest('/api/me/sign-out', {
+          method: 'POST',
+          headers: { cookie, ...FORM, origin: 'https://elsewhere.example' },
+          rawBody: '',
+        }),
+        {},
+      );
       expect(res.status).toBe(403);
     }
     expect(await whoAmI(cookie)).toBe(200);
@@ -115,12 +132,18 @@ describe('signing out with a plain form post', () => {
     const { lead } = world.people;
     const laptop = await signedInCookie(lead.email);
     const phone = await signedInCookie(lead.email);
-    const res = await signOutEverywhere(await apiRequest('/api/me/sign-out-everywhere', { method: 'POST', headers: { cookie: laptop, ...FORM }, rawBody: '' }), {});
+    const res = await signOutEverywhere(
+      await apiRequest('/api/me/sign-out-everywhere', { method: 'POST', headers: { cookie: laptop, ...FORM }, rawBody: '' }),
+      {},
+    );
     expect(res.status).toBe(303);
     expect(res.headers.get('location')).toBe('/signin');
     expect(removed(res)).toHaveLength(2);
     expect(await whoAmI(phone)).toBe(401);
-    const again = await signOutEverywhere(await apiRequest('/api/me/sign-out-everywhere', { method: 'POST', headers: { cookie: phone, ...FORM }, rawBody: '' }), {});
+    const again = await signOutEverywhere(
+      await apiRequest('/api/me/sign-out-everywhere', { method: 'POST', headers: { cookie: phone, ...FORM }, rawBody: '' }),
+      {},
+    );
     expect(again.status).toBe(303);
     expect(await models().AuditEntry.count({ where: { action: 'session.end-all', actorId: lead.id } })).toBe(1);
   });

@@ -13,7 +13,10 @@ import { assertSameOrigin } from '@/lib/http';
 import { buildWorld, TEST_PASSWORD, type World } from '../helpers/world';
 import { models } from '@/models';
 
-type Authorize = (credentials: Record<string, string>, req: { headers: Record<string, string | string[] | undefined> }) => Promise<{ id: string } | null>;
+type Authorize = (
+  credentials: Record<string, string>,
+  req: { headers: Record<string, string | string[] | undefined> },
+) => Promise<{ id: string } | null>;
 const authorizeCredentials = (authOptions.providers[0] as unknown as { options: { authorize: Authorize } }).options.authorize;
 const from = (address: string) => ({ headers: { 'x-forwarded-for': address } });
 
@@ -30,10 +33,12 @@ beforeAll(async () => {
   process.env.SIGNIN_MAX_DELAY_MS = '20'; // the soft delay is measured by softDelayMs below, not waited for here
   await guardForwardedHeaders();
   server = http.createServer(async (req, res) => {
-    const body = JSON.parse(await new Promise<string>((resolve) => {
-      let s = '';
-      req.on('data', (c) => (s += c)).on('end', () => resolve(s));
-    }));
+    const body = JSON.parse(
+      await new Promise<string>((resolve) => {
+        let s = '';
+        req.on('data', (c) => (s += c)).on('end', () => resolve(s));
+      }),
+    );
     let outcome: string;
     try {
       outcome = (await authorizeCredentials(body, { headers: req.headers })) ? 'signed-in' : 'refused';
@@ -52,7 +57,11 @@ afterAll(async () => {
 });
 
 async function signIn(email: string, password: string, headers: Record<string, string> = {}) {
-  const res = await fetch(base, { method: 'POST', headers: { 'content-type': 'application/json', ...headers }, body: JSON.stringify({ email, password }) });
+  const res = await fetch(base, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', ...headers },
+    body: JSON.stringify({ email, password }),
+  });
   return (await res.json()) as { outcome: string; client: string };
 }
 
@@ -85,7 +94,10 @@ describe('the per-address limit uses the connection, not a header the client wri
 
   it('the same-origin check believes X-Forwarded-Host only from a trusted proxy', () => {
     const spoofed = () =>
-      new Request('http://localhost:3000/api/courses', { method: 'POST', headers: { origin: 'http://evil.example', host: 'localhost:3000', 'x-forwarded-host': 'evil.example' } });
+      new Request('http://localhost:3000/api/courses', {
+        method: 'POST',
+        headers: { origin: 'http://evil.example', host: 'localhost:3000', 'x-forwarded-host': 'evil.example' },
+      });
     expect(() => assertSameOrigin(spoofed())).toThrow('Cross-site request refused.');
     process.env.TRUSTED_PROXIES = '1';
     try {
@@ -99,8 +111,11 @@ describe('the per-address limit uses the connection, not a header the client wri
 describe('no one can lock an account out (item 3)', () => {
   it('after 30 failures from 30 addresses, the owner signs in with the right password from an address with no failures', async () => {
     const { student } = world.people;
-    for (let i = 0; i < 30; i++) expect(await authorizeCredentials({ email: student.email, password: `guess-${i}` }, from(`10.9.0.${i}`))).toBeNull();
-    expect(await authorizeCredentials({ email: student.email, password: TEST_PASSWORD }, from('10.9.1.1'))).toMatchObject({ id: String(student.id) });
+    for (let i = 0; i < 30; i++)
+      expect(await authorizeCredentials({ email: student.email, password: `guess-${i}` }, from(`10.9.0.${i}`))).toBeNull();
+    expect(await authorizeCredentials({ email: student.email, password: TEST_PASSWORD }, from('10.9.1.1'))).toMatchObject({
+      id: String(student.id),
+    });
     // The account's own count is a soft limit: it delays answers, it never blocks.
     const account = await models().SignInFailure.findOne({ where: { subject: `account:${student.email}` } });
     expect(account!.failures).toBe(30);
@@ -109,9 +124,12 @@ describe('no one can lock an account out (item 3)', () => {
 
   it('the address that guessed is blocked for that account; a few requests per quarter hour cannot keep the owner out', async () => {
     const { lead } = world.people;
-    for (let i = 0; i < 6; i++) await authorizeCredentials({ email: lead.email, password: `guess-${i}` }, from('10.9.2.1')).catch(() => null);
+    for (let i = 0; i < 6; i++)
+      await authorizeCredentials({ email: lead.email, password: `guess-${i}` }, from('10.9.2.1')).catch(() => null);
     await expect(authorizeCredentials({ email: lead.email, password: TEST_PASSWORD }, from('10.9.2.1'))).rejects.toThrow('throttled');
-    expect(await authorizeCredentials({ email: lead.email, password: TEST_PASSWORD }, from('10.9.2.2'))).toMatchObject({ id: String(lead.id) });
+    expect(await authorizeCredentials({ email: lead.email, password: TEST_PASSWORD }, from('10.9.2.2'))).toMatchObject({
+      id: String(lead.id),
+    });
   });
 
   it('past the soft limit failed attempts on the account are answered after a growing delay, capped', () => {

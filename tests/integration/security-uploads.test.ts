@@ -63,7 +63,14 @@ async function expectRefused(name: string, bytes: Buffer, kind: 'spectrum' | 're
 beforeAll(async () => {
   world = await buildWorld();
   const practicalId = (await buildPractical(world)).practical.id;
-  const res = await saveDraftRoute(await apiRequest('/api/submissions/draft', { as: world.people.student.id, method: 'PUT', body: { practicalId, draft: draftFor('H35Cl', {}) } }), {});
+  const res = await saveDraftRoute(
+    await apiRequest('/api/submissions/draft', {
+      as: world.people.student.id,
+      method: 'PUT',
+      body: { practicalId, draft: draftFor('H35Cl', {}) },
+    }),
+    {},
+  );
   draftId = (await res.json()).id;
 });
 
@@ -82,13 +89,17 @@ describe('spectra that expand past the limit', () => {
     const ok = await send('hcl.jdx', fs.readFileSync(path.join(SPECTRA_DIR, 'hcl-298k.jdx')), 'spectrum');
     expect(ok.status, JSON.stringify(ok.body)).toBe(201);
     // SQZ values with DUP counts that expand to 12 points: within the limit.
-    const small = Buffer.from('##TITLE=small\n##JCAMP-DX=4.24\n##XUNITS=1/CM\n##YUNITS=ABSORBANCE\n##XFACTOR=1\n##YFACTOR=1\n##FIRSTX=2000\n##LASTX=2011\n##NPOINTS=12\n##XYDATA=(X++(Y..Y))\n2000 A0U B0U\n2006 C0U D0U\n##END=\n');
+    const small = Buffer.from(
+      '##TITLE=small\n##JCAMP-DX=4.24\n##XUNITS=1/CM\n##YUNITS=ABSORBANCE\n##XFACTOR=1\n##YFACTOR=1\n##FIRSTX=2000\n##LASTX=2011\n##NPOINTS=12\n##XYDATA=(X++(Y..Y))\n2000 A0U B0U\n2006 C0U D0U\n##END=\n',
+    );
     const dup = await send('small.jdx', small, 'spectrum');
     expect(dup.status, JSON.stringify(dup.body)).toBe(201);
   });
 
   it('refuses a CSV row far longer than two numbers, and a CSV with more rows than a spectrum may have', async () => {
-    const wide = Buffer.from(`wavenumber,absorbance\n2000,0.1\n2001,0.2\n2002,0.3\n2003,0.2\n2004,0.1\n2005,0.2,${'1,'.repeat(50_000)}1\n2006,0.3\n`);
+    const wide = Buffer.from(
+      `wavenumber,absorbance\n2000,0.1\n2001,0.2\n2002,0.3\n2003,0.2\n2004,0.1\n2005,0.2,${'1,'.repeat(50_000)}1\n2006,0.3\n`,
+    );
     await expectRefused('wide.csv', wide, 'spectrum', 422, /Line 7 of the CSV file is 100010 characters long/);
     const rows: string[] = [];
     for (let i = 0; i < 202_000; i++) rows.push(`${1000 + i / 100},${i % 7}`);
@@ -98,9 +109,17 @@ describe('spectra that expand past the limit', () => {
 
 describe('report PDFs', () => {
   it('refuses JavaScript written with a name escape (/Java#53cript)', async () => {
-    const escaped = pdfWith(['1 0 obj<</Type/Catalog/Pages 2 0 R/OpenAction 3 0 R>>endobj', '2 0 obj<</Type/Pages/Kids[]/Count 0>>endobj', '3 0 obj<</S/Java#53cript/JS(app.alert(1))>>endobj']);
+    const escaped = pdfWith([
+      '1 0 obj<</Type/Catalog/Pages 2 0 R/OpenAction 3 0 R>>endobj',
+      '2 0 obj<</Type/Pages/Kids[]/Count 0>>endobj',
+      '3 0 obj<</S/Java#53cript/JS(app.alert(1))>>endobj',
+    ]);
     await expectRefused('report.pdf', escaped, 'report', 415, /embedded JavaScript/);
-    const shortName = pdfWith(['1 0 obj<</Type/Catalog/Pages 2 0 R/OpenAction 3 0 R>>endobj', '2 0 obj<</Type/Pages/Kids[]/Count 0>>endobj', '3 0 obj<</S/#4a#61vaScript/#4A#53(app.alert(1))>>endobj']);
+    const shortName = pdfWith([
+      '1 0 obj<</Type/Catalog/Pages 2 0 R/OpenAction 3 0 R>>endobj',
+      '2 0 obj<</Type/Pages/Kids[]/Count 0>>endobj',
+      '3 0 obj<</S/#4a#61vaScript/#4A#53(app.alert(1))>>endobj',
+    ]);
     await expectRefused('report.pdf', shortName, 'report', 415, /embedded JavaScript/);
   });
 
@@ -116,7 +135,10 @@ describe('report PDFs', () => {
   });
 
   it('still accepts a plain PDF whose names only look alike (/JSON, /Javascripts)', async () => {
-    const plain = pdfWith(['1 0 obj<</Type/Catalog/Pages 2 0 R/JSON 1/Javascripts 2>>endobj', '2 0 obj<</Type/Pages/Kids[]/Count 0>>endobj']);
+    const plain = pdfWith([
+      '1 0 obj<</Type/Catalog/Pages 2 0 R/JSON 1/Javascripts 2>>endobj',
+      '2 0 obj<</Type/Pages/Kids[]/Count 0>>endobj',
+    ]);
     const r = await send('report.pdf', plain, 'report');
     expect(r.status, JSON.stringify(r.body)).toBe(201);
   });

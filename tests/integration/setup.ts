@@ -33,7 +33,10 @@ process.env.OUTBOX_WORKER = 'off';
 process.env.SMTP_URL ||= 'smtp://127.0.0.1:1125';
 process.env.MAILDEV_API ||= 'http://127.0.0.1:1180';
 
-execFileSync(process.execPath, [path.resolve('node_modules/sequelize-cli/lib/sequelize'), 'db:migrate'], { env: process.env, stdio: 'pipe' });
+execFileSync(process.execPath, [path.resolve('node_modules/sequelize-cli/lib/sequelize'), 'db:migrate'], {
+  env: process.env,
+  stdio: 'pipe',
+});
 
 afterAll(async () => {
   const { closeDatabase } = await import('@/lib/db');

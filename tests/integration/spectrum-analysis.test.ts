@@ -38,9 +38,14 @@ function jcamp(lines: Line[], from: number, to: number, title: string): Buffer {
 
 /** A student's line list: the isotopologue's lines of J ≤ 9, rounded to 0.01 cm⁻¹ as read from a peak table. */
 const studentLines = (lines: Line[], species: string) =>
-  lines.filter((l) => l.species === species && l.J <= 9).map((l) => ({ branch: l.branch, J: l.J, wavenumber: Math.round(l.wavenumber * 100) / 100 }));
+  lines
+    .filter((l) => l.species === species && l.J <= 9)
+    .map((l) => ({ branch: l.branch, J: l.J, wavenumber: Math.round(l.wavenumber * 100) / 100 }));
 
-function draft(lines: Record<string, { branch: 'P' | 'R'; J: number; wavenumber: number }[]>, values: Record<string, Record<string, { value: string; unit: string; uncertainty?: string }>> = {}) {
+function draft(
+  lines: Record<string, { branch: 'P' | 'R'; J: number; wavenumber: number }[]>,
+  values: Record<string, Record<string, { value: string; unit: string; uncertainty?: string }>> = {},
+) {
   return {
     species: Object.fromEntries(
       Object.entries(lines).map(([sp, l]) => [
@@ -59,7 +64,10 @@ function draft(lines: Record<string, { branch: 'P' | 'R'; J: number; wavenumber:
 }
 
 async function newDraft(practicalId: number, body: ReturnType<typeof draft>) {
-  const res = await saveDraftRoute(await apiRequest('/api/submissions/draft', { as: world.people.student.id, method: 'PUT', body: { practicalId, draft: body } }), {});
+  const res = await saveDraftRoute(
+    await apiRequest('/api/submissions/draft', { as: world.people.student.id, method: 'PUT', body: { practicalId, draft: body } }),
+    {},
+  );
   expect(res.status).toBe(200);
   return (await res.json()).id as number;
 }
@@ -101,7 +109,10 @@ describe('one spectrum holding two bands (HCl and DCl in one cell)', () => {
     const row = await models().Upload.findByPk(r.body.id);
     const a = row!.analysis as { ok: boolean; results: { isotopologue: string; band: string; status: string }[] };
     expect(a.ok).toBe(true);
-    const fitted = a.results.filter((b) => b.status === 'fitted').map((b) => `${b.isotopologue} ${b.band}`).sort();
+    const fitted = a.results
+      .filter((b) => b.status === 'fitted')
+      .map((b) => `${b.isotopologue} ${b.band}`)
+      .sort();
     expect(fitted).toEqual(['D35Cl fundamental', 'D37Cl fundamental', 'H35Cl fundamental', 'H37Cl fundamental']);
   });
 
@@ -131,10 +142,16 @@ describe('one spectrum holding two bands (HCl and DCl in one cell)', () => {
   });
 
   it('gives the lines it assigned, per isotopologue, for the student to take into the form', async () => {
-    const res = await linesRoute(await apiRequest(`/api/submissions/${draftId}/spectrum-lines`, { as: world.people.student.id }), params({ id: String(draftId) }));
+    const res = await linesRoute(
+      await apiRequest(`/api/submissions/${draftId}/spectrum-lines`, { as: world.people.student.id }),
+      params({ id: String(draftId) }),
+    );
     expect(res.status).toBe(200);
     const body = await res.json();
-    for (const [sp, truth] of [['H35Cl', hcl], ['D35Cl', dcl]] as const) {
+    for (const [sp, truth] of [
+      ['H35Cl', hcl],
+      ['D35Cl', dcl],
+    ] as const) {
       const got = body.species[sp];
       expect(got.count).toBeGreaterThanOrEqual(18);
       expect(got.text.split('\n')[0]).toBe('branch,J,wavenumber (cm-1)');
@@ -144,7 +161,10 @@ describe('one spectrum holding two bands (HCl and DCl in one cell)', () => {
       }
     }
     // Not for anyone else, and not into a submitted attempt.
-    const other = await linesRoute(await apiRequest(`/api/submissions/${draftId}/spectrum-lines`, { as: world.people.ta.id }), params({ id: String(draftId) }));
+    const other = await linesRoute(
+      await apiRequest(`/api/submissions/${draftId}/spectrum-lines`, { as: world.people.ta.id }),
+      params({ id: String(draftId) }),
+    );
     expect(other.status).toBe(403);
   });
 
@@ -154,7 +174,9 @@ describe('one spectrum holding two bands (HCl and DCl in one cell)', () => {
     const f = await figure(draftId);
     const d = f.body.perBand.find((b: { label: string }) => b.label.startsWith('D³⁵Cl'));
     expect(d.outsideRange).toBe(true);
-    expect(d.message).toBe('D³⁵Cl fundamental (1←0): your 19 lines lie near 2091 cm⁻¹, outside the spectrum you uploaded (2500–3200 cm⁻¹); upload the spectrum that holds this band.');
+    expect(d.message).toBe(
+      'D³⁵Cl fundamental (1←0): your 19 lines lie near 2091 cm⁻¹, outside the spectrum you uploaded (2500–3200 cm⁻¹); upload the spectrum that holds this band.',
+    );
     // The replaced file is gone with its row.
     expect(await models().Upload.count({ where: { submissionId: draftId, kind: 'spectrum' } })).toBe(1);
   });
@@ -178,10 +200,19 @@ describe('one spectrum per sample, and the third comparison', () => {
 
   it('lets the instructor say which spectra the practical takes, and refuses what cannot work', async () => {
     const put = async (body: unknown, as = world.people.instructor.id) =>
-      putSettings(await apiRequest(`/api/practicals/${practicalId}/spectrum-settings`, { as, method: 'PUT', body }), params({ practicalId: String(practicalId) }));
-    const unknown = await put({ spectrumAnalysis: true, samples: [{ key: 'a', label: 'A', molecules: ['HCl', 'XeQ'], bands: ['fundamental'] }] });
+      putSettings(
+        await apiRequest(`/api/practicals/${practicalId}/spectrum-settings`, { as, method: 'PUT', body }),
+        params({ practicalId: String(practicalId) }),
+      );
+    const unknown = await put({
+      spectrumAnalysis: true,
+      samples: [{ key: 'a', label: 'A', molecules: ['HCl', 'XeQ'], bands: ['fundamental'] }],
+    });
     expect(unknown.status).toBe(400);
-    const missing = await put({ spectrumAnalysis: true, samples: [{ key: 'hcl', label: 'HCl cell', molecules: ['HCl'], bands: ['fundamental'] }] });
+    const missing = await put({
+      spectrumAnalysis: true,
+      samples: [{ key: 'hcl', label: 'HCl cell', molecules: ['HCl'], bands: ['fundamental'] }],
+    });
     expect(missing.status).toBe(400);
     expect((await missing.json()).error).toMatch(/No spectrum holds DCl/);
     expect((await put({ spectrumAnalysis: true, samples: null }, world.people.ta.id)).status).toBe(403);
@@ -193,7 +224,12 @@ describe('one spectrum per sample, and the third comparison', () => {
       ],
     });
     expect(ok.status).toBe(200);
-    const got = await (await getSettings(await apiRequest(`/api/practicals/${practicalId}/spectrum-settings`, { as: world.people.instructor.id }), params({ practicalId: String(practicalId) }))).json();
+    const got = await (
+      await getSettings(
+        await apiRequest(`/api/practicals/${practicalId}/spectrum-settings`, { as: world.people.instructor.id }),
+        params({ practicalId: String(practicalId) }),
+      )
+    ).json();
     expect(got.spectrumAnalysis).toBe(true);
     expect(got.effective.map((s: { key: string }) => s.key)).toEqual(['hcl', 'dcl']);
   });
@@ -208,7 +244,10 @@ describe('one spectrum per sample, and the third comparison', () => {
       draft(
         { H35Cl: studentLines(hcl, 'H35Cl'), D35Cl: studentLines(dcl, 'D35Cl') },
         {
-          H35Cl: { bandCentre: { value: eH.origin.toFixed(2), unit: 'cm-1', uncertainty: '0.05' }, B0: { value: eH.B0.toFixed(3), unit: 'cm-1' } },
+          H35Cl: {
+            bandCentre: { value: eH.origin.toFixed(2), unit: 'cm-1', uncertainty: '0.05' },
+            B0: { value: eH.B0.toFixed(3), unit: 'cm-1' },
+          },
           D35Cl: { bandCentre: { value: (eD.origin - 2 * eD.B0).toFixed(2), unit: 'cm-1', uncertainty: '0.05' } },
         },
       ),
@@ -226,7 +265,11 @@ describe('one spectrum per sample, and the third comparison', () => {
 
     const version = saved!.version;
     const res = await submitRoute(
-      await apiRequest(`/api/submissions/${draftId}/submit`, { as: world.people.student.id, method: 'POST', body: { version, draft: saved!.draft } }),
+      await apiRequest(`/api/submissions/${draftId}/submit`, {
+        as: world.people.student.id,
+        method: 'POST',
+        body: { version, draft: saved!.draft },
+      }),
       params({ id: String(draftId) }),
     );
     expect(res.status, JSON.stringify(await res.clone().json())).toBe(201);

@@ -17,14 +17,21 @@ let practicalId: number;
 let submissionIds: number[];
 
 async function report(): Promise<PracticalReport> {
-  const res = await getStats(await apiRequest(`/api/statistics/practicals/${practicalId}?cohortId=${world.cohort.id}`, { as: world.people.lead.id }), params({ id: String(practicalId) }));
+  const res = await getStats(
+    await apiRequest(`/api/statistics/practicals/${practicalId}?cohortId=${world.cohort.id}`, { as: world.people.lead.id }),
+    params({ id: String(practicalId) }),
+  );
   expect(res.status).toBe(200);
   return res.json();
 }
 
 async function uncached(): Promise<PracticalReport> {
   process.env.STATS_CACHE = 'off';
-  try { return await report(); } finally { delete process.env.STATS_CACHE; }
+  try {
+    return await report();
+  } finally {
+    delete process.env.STATS_CACHE;
+  }
 }
 
 beforeAll(async () => {
@@ -32,12 +39,25 @@ beforeAll(async () => {
   const { User, CourseMembership } = models();
   const ids = [world.people.student.id];
   for (let i = 0; i < 11; i++) {
-    const u = await User.create({ email: `cache${i}@stats.example`, name: `Cache student ${i}`, passwordHash: null, isAdmin: false, studentNumber: `CA${1000 + i}` });
+    const u = await User.create({
+      email: `cache${i}@stats.example`,
+      name: `Cache student ${i}`,
+      passwordHash: null,
+      isAdmin: false,
+      studentNumber: `CA${1000 + i}`,
+    });
     await CourseMembership.create({ userId: u.id, courseId: world.course.id, role: 'student', cohortId: world.cohort.id });
     ids.push(u.id);
   }
   practicalId = (await createPractical(world.course.id, [world.cohort.id])).id;
-  submissionIds = await seedSubmissions({ practicalId, cohortId: world.cohort.id, studentIds: ids, markerIds: [world.people.ta.id], moderatorId: world.people.lead.id, seed: 5 });
+  submissionIds = await seedSubmissions({
+    practicalId,
+    cohortId: world.cohort.id,
+    studentIds: ids,
+    markerIds: [world.people.ta.id],
+    moderatorId: world.people.lead.id,
+    seed: 5,
+  });
   clearStatisticsCache();
 });
 
@@ -50,7 +70,7 @@ describe('statistics cache', () => {
 
   it('a changed mark, a replaced check result, a new moderation and a removed submission show at once', async () => {
     const { Mark, CheckResult, Moderation, Submission } = models();
-    const counted = (await Submission.findAll({ where: { id: submissionIds, isMarkedAttempt: true, markedById: world.people.ta.id } }));
+    const counted = await Submission.findAll({ where: { id: submissionIds, isMarkedAttempt: true, markedById: world.people.ta.id } });
     const start = await report();
 
     const mark = (await Mark.findOne({ where: { submissionId: counted[0].id, proposed: { [(await import('sequelize')).Op.ne]: null } } }))!;
@@ -68,7 +88,15 @@ describe('statistics cache', () => {
     expect(afterCheck.quantities.find((q) => q.key === 'bandCentre' && q.basis === 'accuracy')!.box!.max).toBeCloseTo(2000, 9);
 
     const before = (await report()).markers.rows[0].moderations;
-    await Moderation.create({ submissionId: counted[2].id, moderatorId: world.people.lead.id, markerId: world.people.ta.id, decision: 'changed', totalBefore: 5, totalAfter: 6, note: null });
+    await Moderation.create({
+      submissionId: counted[2].id,
+      moderatorId: world.people.lead.id,
+      markerId: world.people.ta.id,
+      decision: 'changed',
+      totalBefore: 5,
+      totalAfter: 6,
+      note: null,
+    });
     expect((await report()).markers.rows[0].moderations).toBe(before + 1);
 
     const submitted = (await report()).counts.submitted;

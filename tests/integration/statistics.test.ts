@@ -45,7 +45,13 @@ async function students(cohortId: number, courseId: number, count: number, tag: 
   const { User, CourseMembership } = models();
   const ids: number[] = [];
   for (let i = 0; i < count; i++) {
-    const u = await User.create({ email: `${tag}${i}@stats.example`, name: i === 0 && firstName ? firstName : `Student ${tag}${i}`, passwordHash: null, isAdmin: false, studentNumber: `${tag.toUpperCase()}${1000 + i}` });
+    const u = await User.create({
+      email: `${tag}${i}@stats.example`,
+      name: i === 0 && firstName ? firstName : `Student ${tag}${i}`,
+      passwordHash: null,
+      isAdmin: false,
+      studentNumber: `${tag.toUpperCase()}${1000 + i}`,
+    });
     await CourseMembership.create({ userId: u.id, courseId, role: 'student', cohortId });
     ids.push(u.id);
   }
@@ -62,12 +68,29 @@ beforeAll(async () => {
   practicalId = practical.id;
   instructorUserId = world.people.instructor.id;
   // 29 more students in cohort 1 (one with a name that a spreadsheet would run as a formula), 3 more in cohort 2.
-  const c1 = [world.people.student.id, ...(await students(world.cohort.id, world.course.id, 29, 'a', '=HYPERLINK("http://x.example","click")'))];
+  const c1 = [
+    world.people.student.id,
+    ...(await students(world.cohort.id, world.course.id, 29, 'a', '=HYPERLINK("http://x.example","click")')),
+  ];
   const c2 = [world.people.otherStudent.id, ...(await students(world.otherCohort.id, world.course.id, 3, 'b'))];
-  await seedSubmissions({ practicalId, cohortId: world.cohort.id, studentIds: c1.slice(0, 28), markerIds: [world.people.ta.id, world.people.otherTa.id, instructorUserId], moderatorId: world.people.lead.id, seed: 7, firstMarkerBonus: 3 });
+  await seedSubmissions({
+    practicalId,
+    cohortId: world.cohort.id,
+    studentIds: c1.slice(0, 28),
+    markerIds: [world.people.ta.id, world.people.otherTa.id, instructorUserId],
+    moderatorId: world.people.lead.id,
+    seed: 7,
+    firstMarkerBonus: 3,
+  });
   await seedSubmissions({ practicalId, cohortId: world.otherCohort.id, studentIds: c2, markerIds: [world.people.otherTa.id], seed: 11 });
   // Last year's cohort of the same practical title (a copy), for the side-by-side comparison.
-  const lastYear = await Cohort.create({ courseId: world.course.id, name: 'Cohort 1', term: '2025 Autumn', instrument: 'Bench 1', archivedAt: null });
+  const lastYear = await Cohort.create({
+    courseId: world.course.id,
+    name: 'Cohort 1',
+    term: '2025 Autumn',
+    instrument: 'Bench 1',
+    archivedAt: null,
+  });
   lastYearCohortId = lastYear.id;
   const old = await createPractical(world.course.id, [lastYear.id], 'HCl Fundamental Band ');
   void PracticalCohort;
@@ -111,7 +134,10 @@ describe('statistics API against simple-statistics on the same rows', () => {
     expect(report.quantities).toHaveLength(SEED_QUANTITIES.length * 2);
     for (const q of report.quantities) {
       const mine = rows.filter((r) => r.key === q.key && r.species === q.species && r.basis === q.basis);
-      const xs = mine.filter((r) => r.verdict !== 'not-checked' && r.relativeDeviation !== null).map((r) => r.relativeDeviation! * 100).sort((a, b) => a - b);
+      const xs = mine
+        .filter((r) => r.verdict !== 'not-checked' && r.relativeDeviation !== null)
+        .map((r) => r.relativeDeviation! * 100)
+        .sort((a, b) => a - b);
       expect(q.n).toBe(mine.length);
       expect(q.checked).toBe(xs.length);
       expect(q.box!.min).toBeCloseTo(min(xs), 9);
@@ -159,7 +185,9 @@ describe('statistics API against simple-statistics on the same rows', () => {
 
   it('marker consistency: mean and population SD of marks and of (awarded − proposed), overrides, moderation changes, flag', async () => {
     const { Mark, Moderation } = models();
-    const subs = (await countedSubmissions(world.cohort.id)).filter((s) => s.markedById && (s.status === 'marked' || s.status === 'released'));
+    const subs = (await countedSubmissions(world.cohort.id)).filter(
+      (s) => s.markedById && (s.status === 'marked' || s.status === 'released'),
+    );
     const marks = await Mark.findAll({ where: { submissionId: subs.map((s) => s.id) } });
     const mods = await Moderation.findAll({ where: { submissionId: subs.map((s) => s.id) } });
     const { User } = models();
@@ -175,7 +203,9 @@ describe('statistics API against simple-statistics on the same rows', () => {
       expect(row.meanDifference!).toBeCloseTo(mean(d), 8);
       expect(row.sdDifference!).toBeCloseTo(standardDeviation(d), 6);
       const ids = new Set(mine.map((s) => s.id));
-      expect(row.overrides).toBe(marks.filter((m) => ids.has(m.submissionId) && m.proposed !== null && m.awarded !== null && m.awarded !== m.proposed).length);
+      expect(row.overrides).toBe(
+        marks.filter((m) => ids.has(m.submissionId) && m.proposed !== null && m.awarded !== null && m.awarded !== m.proposed).length,
+      );
       expect(row.moderationChanges).toBe(mods.filter((m) => m.markerId === user!.id && m.decision === 'changed').length);
       const others = subs.filter((s) => s.markedById !== user!.id).map((s) => (100 * s.awardedTotal!) / s.maxTotal!);
       expect(row.othersMean!).toBeCloseTo(mean(others), 8);
@@ -200,7 +230,10 @@ describe('privacy and scoping', () => {
   });
 
   it('404 for a practical that does not exist or a cohort of another course; 400 for a bad threshold', async () => {
-    const res = await getStats(await apiRequest('/api/statistics/practicals/999999', { as: world.people.lead.id }), params({ id: '999999' }));
+    const res = await getStats(
+      await apiRequest('/api/statistics/practicals/999999', { as: world.people.lead.id }),
+      params({ id: '999999' }),
+    );
     expect(res.status).toBe(404);
     expect((await stats(world.people.lead.id, `?cohortId=${world.foreignCohort.id}`)).status).toBe(404);
     expect((await stats(world.people.lead.id, `?cohortId=abc`)).status).toBe(400);
@@ -216,7 +249,12 @@ describe('privacy and scoping', () => {
     expect(text).not.toContain(world.people.otherTa.name);
     expect(text).not.toContain(world.people.instructor.name);
     expect(body.markers.rows.find((r) => r.own)!.label).toContain(world.people.ta.name);
-    expect(body.markers.rows.filter((r) => !r.own).map((r) => r.label).sort()).toEqual(['Marker 1', 'Marker 2']);
+    expect(
+      body.markers.rows
+        .filter((r) => !r.own)
+        .map((r) => r.label)
+        .sort(),
+    ).toEqual(['Marker 1', 'Marker 2']);
   });
 
   it('a group of fewer than five students shows counts only', async () => {
@@ -235,7 +273,10 @@ describe('privacy and scoping', () => {
 
 describe('across cohorts and years', () => {
   it('puts cohorts of practicals with the same title side by side, this year and last', async () => {
-    const res = await getCompare(await apiRequest(`/api/statistics/practicals/${practicalId}/compare`, { as: world.people.lead.id }), params({ id: String(practicalId) }));
+    const res = await getCompare(
+      await apiRequest(`/api/statistics/practicals/${practicalId}/compare`, { as: world.people.lead.id }),
+      params({ id: String(practicalId) }),
+    );
     expect(res.status).toBe(200);
     const body: Comparison = await res.json();
     expect(body.practicalIds).toHaveLength(2);
@@ -244,30 +285,53 @@ describe('across cohorts and years', () => {
     const last = body.groups.find((g) => g.group === String(lastYearCohortId))!;
     expect(last.counts.submitted).toBe(12);
     const { Submission } = models();
-    const lastSubs = (await Submission.findAll({ where: { cohortId: lastYearCohortId } })).filter((s) => s.isMarkedAttempt && (s.status === 'marked' || s.status === 'released'));
+    const lastSubs = (await Submission.findAll({ where: { cohortId: lastYearCohortId } })).filter(
+      (s) => s.isMarkedAttempt && (s.status === 'marked' || s.status === 'released'),
+    );
     expect(last.meanMark!).toBeCloseTo(mean(lastSubs.map((s) => (100 * s.awardedTotal!) / s.maxTotal!)), 8); // simple-statistics mean
     expect(body.groups.find((g) => g.label.startsWith('Cohort 2'))!.suppressed).toBe(true);
-    const byInstrument: Comparison = await (await getCompare(await apiRequest(`/api/statistics/practicals/${practicalId}/compare?by=instrument`, { as: world.people.lead.id }), params({ id: String(practicalId) }))).json();
+    const byInstrument: Comparison = await (
+      await getCompare(
+        await apiRequest(`/api/statistics/practicals/${practicalId}/compare?by=instrument`, { as: world.people.lead.id }),
+        params({ id: String(practicalId) }),
+      )
+    ).json();
     expect(byInstrument.groups.map((g) => g.label).sort()).toEqual(['Bench 1', 'Bench 2']);
     expect(byInstrument.groups.find((g) => g.label === 'Bench 1')!.counts.submitted).toBe(28 + 12);
   });
 
   it('a TA compares only the cohorts they mark', async () => {
-    const body: Comparison = await (await getCompare(await apiRequest(`/api/statistics/practicals/${practicalId}/compare`, { as: world.people.otherTa.id }), params({ id: String(practicalId) }))).json();
+    const body: Comparison = await (
+      await getCompare(
+        await apiRequest(`/api/statistics/practicals/${practicalId}/compare`, { as: world.people.otherTa.id }),
+        params({ id: String(practicalId) }),
+      )
+    ).json();
     expect(body.groups.map((g) => g.group)).toEqual([String(world.otherCohort.id)]);
-    const student = await getCompare(await apiRequest(`/api/statistics/practicals/${practicalId}/compare`, { as: world.people.student.id }), params({ id: String(practicalId) }));
+    const student = await getCompare(
+      await apiRequest(`/api/statistics/practicals/${practicalId}/compare`, { as: world.people.student.id }),
+      params({ id: String(practicalId) }),
+    );
     expect(student.status).toBe(403);
   });
 });
 
 describe('exports', () => {
   it('marks CSV round-trips through papaparse with the documented header, one row per student, formula cells neutralised', async () => {
-    const res = await getMarksCsv(await apiRequest(`/api/statistics/practicals/${practicalId}/export/marks?cohortId=${world.cohort.id}`, { as: world.people.lead.id }), params({ id: String(practicalId) }));
+    const res = await getMarksCsv(
+      await apiRequest(`/api/statistics/practicals/${practicalId}/export/marks?cohortId=${world.cohort.id}`, { as: world.people.lead.id }),
+      params({ id: String(practicalId) }),
+    );
     expect(res.status).toBe(200);
     expect(res.headers.get('content-type')).toContain('text/csv');
     const parsed = Papa.parse<Record<string, string>>(await res.text(), { header: true, skipEmptyLines: true });
     expect(parsed.errors).toEqual([]);
-    const header = [...MARKS_CSV_LEADING, ...SEED_QUANTITIES.map((q) => `mark_${q.key}_${q.species}`), 'mark_report', ...MARKS_CSV_TRAILING];
+    const header = [
+      ...MARKS_CSV_LEADING,
+      ...SEED_QUANTITIES.map((q) => `mark_${q.key}_${q.species}`),
+      'mark_report',
+      ...MARKS_CSV_TRAILING,
+    ];
     expect(parsed.meta.fields).toEqual(header);
     expect(parsed.data).toHaveLength(30); // the whole roster of cohort 1, with or without a submission
     const subs = await countedSubmissions(world.cohort.id);
@@ -287,13 +351,21 @@ describe('exports', () => {
   });
 
   it('marks CSV is for leads and instructors only', async () => {
-    const res = await getMarksCsv(await apiRequest(`/api/statistics/practicals/${practicalId}/export/marks?cohortId=${world.cohort.id}`, { as: world.people.ta.id }), params({ id: String(practicalId) }));
+    const res = await getMarksCsv(
+      await apiRequest(`/api/statistics/practicals/${practicalId}/export/marks?cohortId=${world.cohort.id}`, { as: world.people.ta.id }),
+      params({ id: String(practicalId) }),
+    );
     expect(res.status).toBe(403);
   });
 
   it('statistics CSV has the documented header and the API figures', async () => {
     const report: PracticalReport = await (await stats(world.people.lead.id, `?cohortId=${world.cohort.id}`)).json();
-    const res = await getStatsCsv(await apiRequest(`/api/statistics/practicals/${practicalId}/export/statistics?cohortId=${world.cohort.id}`, { as: world.people.ta.id }), params({ id: String(practicalId) }));
+    const res = await getStatsCsv(
+      await apiRequest(`/api/statistics/practicals/${practicalId}/export/statistics?cohortId=${world.cohort.id}`, {
+        as: world.people.ta.id,
+      }),
+      params({ id: String(practicalId) }),
+    );
     expect(res.status).toBe(200);
     const parsed = Papa.parse<Record<string, string>>(await res.text(), { header: true, skipEmptyLines: true });
     expect(parsed.meta.fields).toEqual([...STATS_CSV_HEADER]);
@@ -306,7 +378,12 @@ describe('exports', () => {
 
   it('PDF summary: every quantity and every listed slip on page 1, by name; histograms after', async () => {
     const report: PracticalReport = await (await stats(world.people.lead.id, `?cohortId=${world.cohort.id}`)).json();
-    const res = await getPdf(await apiRequest(`/api/statistics/practicals/${practicalId}/export/summary?cohortId=${world.cohort.id}`, { as: world.people.lead.id }), params({ id: String(practicalId) }));
+    const res = await getPdf(
+      await apiRequest(`/api/statistics/practicals/${practicalId}/export/summary?cohortId=${world.cohort.id}`, {
+        as: world.people.lead.id,
+      }),
+      params({ id: String(practicalId) }),
+    );
     expect(res.status).toBe(200);
     expect(res.headers.get('content-type')).toBe('application/pdf');
     const bytes = new Uint8Array(await res.arrayBuffer());
@@ -314,7 +391,8 @@ describe('exports', () => {
     expect(pdf.getPageCount()).toBe(2);
     expect(pdf.getTitle()).toContain('HCl fundamental band');
     const page1 = pdfPageText(bytes, 1);
-    for (const q of report.quantities.filter((x) => x.box)) expect(page1).toContain((QUANTITIES as Record<string, { label: string } | undefined>)[q.key]?.label ?? q.key);
+    for (const q of report.quantities.filter((x) => x.box))
+      expect(page1).toContain((QUANTITIES as Record<string, { label: string } | undefined>)[q.key]?.label ?? q.key);
     for (const sl of report.slips) {
       expect(page1).toContain(sl.title.split(' ').slice(0, 3).join(' '));
       expect(page1).toContain(sl.example.split(',')[0]);

@@ -38,7 +38,14 @@ describe('storage sweep', () => {
     const released = await freshSubmission(world, 'released');
     const doc = (await models().FeedbackDocument.findOne({ where: { submissionId: released.id } }))!;
     const practicalId = (await buildPractical(world)).practical.id;
-    const saved = await saveDraft(await apiRequest('/api/submissions/draft', { as: world.people.student.id, method: 'PUT', body: { practicalId, draft: draftFor('H35Cl', {}) } }), {});
+    const saved = await saveDraft(
+      await apiRequest('/api/submissions/draft', {
+        as: world.people.student.id,
+        method: 'PUT',
+        body: { practicalId, draft: draftFor('H35Cl', {}) },
+      }),
+      {},
+    );
     const draftId = (await saved.json()).id;
     expect((await uploadAs(world.people.student.id, draftId, 'report', 'report.pdf', PDF)).status).toBe(201);
     const referencedUploads = (await models().Upload.findAll()).map((u) => u.storedName);
@@ -59,7 +66,13 @@ describe('storage sweep', () => {
     const report = await sweepOrphanFiles();
     expect(report.removed.sort()).toEqual([orphanPdf, orphanUpload, stalePart].map((f) => path.relative(uploadDir(), f)).sort());
     for (const gone of [orphanPdf, orphanUpload, stalePart]) expect(fs.existsSync(gone)).toBe(false);
-    for (const kept of [recentOrphan, livePart, foreign, path.join(feedbackDir(), doc.storedName), ...referencedUploads.map((n) => path.join(uploadDir(), n))]) {
+    for (const kept of [
+      recentOrphan,
+      livePart,
+      foreign,
+      path.join(feedbackDir(), doc.storedName),
+      ...referencedUploads.map((n) => path.join(uploadDir(), n)),
+    ]) {
       expect(fs.existsSync(kept), kept).toBe(true);
     }
     // The feedback PDF a row refers to still downloads as it did.

@@ -27,10 +27,16 @@ async function submitAs(studentId: number, values: Parameters<typeof draftFor>[1
   const saved = await saveDraft(await apiRequest('/api/submissions/draft', { as: studentId, method: 'PUT', body: { practicalId, draft } }));
   expect(saved.status).toBe(200);
   const { id, version } = await saved.json();
-  const res = await submit(await apiRequest(`/api/submissions/${id}/submit`, { as: studentId, body: { version, draft } }), params({ id: String(id) }));
+  const res = await submit(
+    await apiRequest(`/api/submissions/${id}/submit`, { as: studentId, body: { version, draft } }),
+    params({ id: String(id) }),
+  );
   const body = await res.json();
   expect(res.status, JSON.stringify(body)).toBe(201);
-  return body.result as { id: number; quantities: { key: string; consistency?: { verdict: string }; accuracy?: { verdict: string }; slips: { code: string }[] }[] };
+  return body.result as {
+    id: number;
+    quantities: { key: string; consistency?: { verdict: string }; accuracy?: { verdict: string }; slips: { code: string }[] }[];
+  };
 }
 
 beforeAll(async () => {
@@ -57,7 +63,12 @@ describe('checkStoredSubmission', () => {
     expect(sub!.flagOutside).toBe(false);
     expect(sub!.flagSlip).toBe(false);
     const marks = await Mark.findAll({ where: { submissionId: result.id } });
-    expect(marks.map((m) => m.itemKey).sort()).toEqual(['bandCentre:H35Cl', 'forceConstant:H35Cl', 'reducedMass:H35Cl', 'rubric:discussion']);
+    expect(marks.map((m) => m.itemKey).sort()).toEqual([
+      'bandCentre:H35Cl',
+      'forceConstant:H35Cl',
+      'reducedMass:H35Cl',
+      'rubric:discussion',
+    ]);
     expect(marks.find((m) => m.itemKey === 'forceConstant:H35Cl')!.proposed).toBe(2);
     expect(marks.find((m) => m.itemKey === 'rubric:discussion')!.proposed).toBeNull();
     expect(sub!.proposedTotal).toBe(6);

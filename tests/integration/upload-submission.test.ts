@@ -55,7 +55,13 @@ async function expectRefused(as: number, name: string, bytes: Buffer | Uint8Arra
 beforeAll(async () => {
   world = await buildWorld();
   practicalId = (await buildPractical(world)).practical.id;
-  const res = await saveDraft(await apiRequest('/api/submissions/draft', { as: world.people.student.id, method: 'PUT', body: { practicalId, draft: draftFor('H35Cl', {}) } }));
+  const res = await saveDraft(
+    await apiRequest('/api/submissions/draft', {
+      as: world.people.student.id,
+      method: 'PUT',
+      body: { practicalId, draft: draftFor('H35Cl', {}) },
+    }),
+  );
   draftId = (await res.json()).id;
 });
 
@@ -68,17 +74,30 @@ describe('uploads', () => {
     const row = await models().Upload.findByPk(s.body.id);
     expect(row!.storedName).toMatch(/^[a-f0-9]{32}\.jdx$/);
     expect(row!.sha256).toMatch(/^[a-f0-9]{64}$/);
-    const got = await getUpload(await apiRequest(`/api/uploads/${p.body.id}`, { as: world.people.student.id }), params({ id: String(p.body.id) }));
+    const got = await getUpload(
+      await apiRequest(`/api/uploads/${p.body.id}`, { as: world.people.student.id }),
+      params({ id: String(p.body.id) }),
+    );
     expect(got.status).toBe(200);
     expect(got.headers.get('x-content-type-options')).toBe('nosniff');
     expect(got.headers.get('content-disposition')).toMatch(/^inline/);
     expect(Buffer.from(await got.arrayBuffer()).equals(PDF)).toBe(true);
-    const spec = await getUpload(await apiRequest(`/api/uploads/${s.body.id}`, { as: world.people.student.id }), params({ id: String(s.body.id) }));
+    const spec = await getUpload(
+      await apiRequest(`/api/uploads/${s.body.id}`, { as: world.people.student.id }),
+      params({ id: String(s.body.id) }),
+    );
     expect(spec.headers.get('content-disposition')).toMatch(/^attachment/);
   });
 
   it('refuses a file that lies about its type (HTML named .pdf, PDF named .jdx)', async () => {
-    await expectRefused(world.people.student.id, 'report.pdf', Buffer.from('<html><script>alert(1)</script></html>'), 'report', 415, /HTML|not a PDF|PDF/i);
+    await expectRefused(
+      world.people.student.id,
+      'report.pdf',
+      Buffer.from('<html><script>alert(1)</script></html>'),
+      'report',
+      415,
+      /HTML|not a PDF|PDF/i,
+    );
     await expectRefused(world.people.student.id, 'spectrum.jdx', PDF, 'spectrum', 415, /content is a PDF|spectrum/i);
   });
 
@@ -102,14 +121,25 @@ describe('uploads', () => {
       // Written by hand: FormData would strip the folders before they reach the server.
       const boundary = 'oscillabtestboundary';
       const body = Buffer.concat([
-        Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="submissionId"\r\n\r\n${draftId}\r\n--${boundary}\r\nContent-Disposition: form-data; name="kind"\r\n\r\nreport\r\n`),
-        Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="${name.replace(/\\/g, '\\\\')}"\r\nContent-Type: application/pdf\r\n\r\n`),
+        Buffer.from(
+          `--${boundary}\r\nContent-Disposition: form-data; name="submissionId"\r\n\r\n${draftId}\r\n--${boundary}\r\nContent-Disposition: form-data; name="kind"\r\n\r\nreport\r\n`,
+        ),
+        Buffer.from(
+          `--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="${name.replace(/\\/g, '\\\\')}"\r\nContent-Type: application/pdf\r\n\r\n`,
+        ),
         PDF,
         Buffer.from(`\r\n--${boundary}--\r\n`),
       ]);
       const rowsBefore = await models().Upload.count();
       const filesBefore = uploadDirFiles().length;
-      const res = await upload(await apiRequest('/api/uploads', { as: world.people.student.id, method: 'POST', rawBody: body, headers: { 'content-type': `multipart/form-data; boundary=${boundary}`, 'content-length': String(body.length) } }));
+      const res = await upload(
+        await apiRequest('/api/uploads', {
+          as: world.people.student.id,
+          method: 'POST',
+          rawBody: body,
+          headers: { 'content-type': `multipart/form-data; boundary=${boundary}`, 'content-length': String(body.length) },
+        }),
+      );
       const json = await res.json();
       if (name.includes('\\') && res.status === 201) {
         // formidable itself drops everything before a backslash: only the plain name survives, stored under a random name.
@@ -129,8 +159,12 @@ describe('uploads', () => {
     const boundary = 'oscillabslowboundary';
     const multipart = () =>
       Buffer.concat([
-        Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="submissionId"\r\n\r\n${draftId}\r\n--${boundary}\r\nContent-Disposition: form-data; name="kind"\r\n\r\nreport\r\n`),
-        Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="slow.pdf"\r\nContent-Type: application/pdf\r\n\r\n`),
+        Buffer.from(
+          `--${boundary}\r\nContent-Disposition: form-data; name="submissionId"\r\n\r\n${draftId}\r\n--${boundary}\r\nContent-Disposition: form-data; name="kind"\r\n\r\nreport\r\n`,
+        ),
+        Buffer.from(
+          `--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="slow.pdf"\r\nContent-Type: application/pdf\r\n\r\n`,
+        ),
         PDF,
         Buffer.from(`\r\n--${boundary}--\r\n`),
       ]);
@@ -147,7 +181,7 @@ describe('uploads', () => {
           const chunk = body.subarray(sent * size, (sent + 1) * size);
           sent++;
           if (chunk.length) controller.enqueue(new Uint8Array(chunk));
-          if ((sent) * size >= body.length) controller.close();
+          if (sent * size >= body.length) controller.close();
         },
         cancel() {
           cancelled = true;
@@ -156,12 +190,19 @@ describe('uploads', () => {
       return { stream, wasCancelled: () => cancelled };
     }
     async function post(stream: ReadableStream<Uint8Array>) {
-      const req = await apiRequest('/api/uploads', { as: world.people.student.id, method: 'POST', headers: { 'content-type': `multipart/form-data; boundary=${boundary}` } });
+      const req = await apiRequest('/api/uploads', {
+        as: world.people.student.id,
+        method: 'POST',
+        headers: { 'content-type': `multipart/form-data; boundary=${boundary}` },
+      });
       return upload(new Request(req.url, { method: 'POST', headers: req.headers, body: stream, duplex: 'half' } as RequestInit));
     }
     const saved = { idle: process.env.UPLOAD_IDLE_MS, total: process.env.UPLOAD_TOTAL_MS };
     afterEach(() => {
-      for (const [k, v] of [['UPLOAD_IDLE_MS', saved.idle], ['UPLOAD_TOTAL_MS', saved.total]] as const) {
+      for (const [k, v] of [
+        ['UPLOAD_IDLE_MS', saved.idle],
+        ['UPLOAD_TOTAL_MS', saved.total],
+      ] as const) {
         if (v === undefined) delete process.env[k];
         else process.env[k] = v;
       }
@@ -211,7 +252,9 @@ describe('uploads', () => {
   });
 
   it('refuses a JCAMP file with garbage data', async () => {
-    const garbage = Buffer.from('##TITLE=x\n##JCAMP-DX=4.24\n##XUNITS=1/CM\n##YUNITS=ABSORBANCE\n##XYDATA=(X++(Y..Y))\nhello world ?? §§\nmore junk\n##END=\n');
+    const garbage = Buffer.from(
+      '##TITLE=x\n##JCAMP-DX=4.24\n##XUNITS=1/CM\n##YUNITS=ABSORBANCE\n##XYDATA=(X++(Y..Y))\nhello world ?? §§\nmore junk\n##END=\n',
+    );
     const r = await send(world.people.student.id, 'bad.jdx', garbage, 'spectrum');
     expect([415, 422]).toContain(r.status);
     expect(r.body.error).toMatch(/spectrum|JCAMP|could not/i);
@@ -219,7 +262,10 @@ describe('uploads', () => {
 
   it('another student cannot read the file or upload to the draft by changing an id', async () => {
     const up = await models().Upload.findOne({ where: { ownerId: world.people.student.id } });
-    const res = await getUpload(await apiRequest(`/api/uploads/${up!.id}`, { as: world.people.otherStudent.id }), params({ id: String(up!.id) }));
+    const res = await getUpload(
+      await apiRequest(`/api/uploads/${up!.id}`, { as: world.people.otherStudent.id }),
+      params({ id: String(up!.id) }),
+    );
     // A draft's file is its student's own: to anyone else it does not exist (issue 14, item 9).
     expect(res.status).toBe(404);
     await expectRefused(world.people.otherStudent.id, 'report.pdf', PDF, 'report', 403, /permission/i);
@@ -232,19 +278,37 @@ describe('drafts and submits', () => {
   it('a line list of 10⁵ rows is refused with nothing written', async () => {
     const lines = Array.from({ length: 100_000 }, (_, i) => ({ branch: null, J: null, wavenumber: 2000 + i / 100 }));
     const before = await models().Submission.findByPk(draftId);
-    const res = await saveDraft(await apiRequest('/api/submissions/draft', { as: world.people.student.id, method: 'PUT', body: { practicalId, draft: { ...draftFor('H35Cl', {}), species: { H35Cl: { ...draftFor('H35Cl', {}).species.H35Cl, lines } } } } }));
+    const res = await saveDraft(
+      await apiRequest('/api/submissions/draft', {
+        as: world.people.student.id,
+        method: 'PUT',
+        body: { practicalId, draft: { ...draftFor('H35Cl', {}), species: { H35Cl: { ...draftFor('H35Cl', {}).species.H35Cl, lines } } } },
+      }),
+    );
     expect([400, 413]).toContain(res.status);
     expect((await res.json()).error).toMatch(/too large|At most/i);
     const after = await models().Submission.findByPk(draftId);
     expect(after!.version).toBe(before!.version);
   });
 
-  it('another student cannot read (404: a draft is its student\'s own) or submit (403) this draft, and unknown ids are 404', async () => {
-    const read = await getSubmission(await apiRequest(`/api/submissions/${draftId}`, { as: world.people.otherStudent.id }), params({ id: String(draftId) }));
+  it("another student cannot read (404: a draft is its student's own) or submit (403) this draft, and unknown ids are 404", async () => {
+    const read = await getSubmission(
+      await apiRequest(`/api/submissions/${draftId}`, { as: world.people.otherStudent.id }),
+      params({ id: String(draftId) }),
+    );
     expect(read.status).toBe(404);
-    const write = await submit(await apiRequest(`/api/submissions/${draftId}/submit`, { as: world.people.otherStudent.id, body: { version: 1, draft: draftFor('H35Cl', {}) } }), params({ id: String(draftId) }));
+    const write = await submit(
+      await apiRequest(`/api/submissions/${draftId}/submit`, {
+        as: world.people.otherStudent.id,
+        body: { version: 1, draft: draftFor('H35Cl', {}) },
+      }),
+      params({ id: String(draftId) }),
+    );
     expect(write.status).toBe(403);
-    const none = await getSubmission(await apiRequest('/api/submissions/424242', { as: world.people.student.id }), params({ id: '424242' }));
+    const none = await getSubmission(
+      await apiRequest('/api/submissions/424242', { as: world.people.student.id }),
+      params({ id: '424242' }),
+    );
     expect(none.status).toBe(404);
   });
 
@@ -252,13 +316,21 @@ describe('drafts and submits', () => {
     const nu = 2886.0;
     const mu = muU(CONST.mH, CONST.mCl35); // AME2020 isotopic masses
     const cur = (await models().Submission.findByPk(draftId))!;
-    const d = (cur.draft as ReturnType<typeof draftFor>);
-    const draft = { ...draftFor('H35Cl', {
-      bandCentre: { value: '2886.0', unit: 'cm-1', uncertainty: '0.5' },
-      reducedMass: { value: mu.toFixed(6), unit: 'u' },
-      forceConstant: { value: kFrom(nu, mu).toFixed(1), unit: 'N/m', uncertainty: '0.3' }, // CODATA 2018 c
-    }), spectrumUploadId: d.spectrumUploadId, reportUploadId: d.reportUploadId };
-    const click = async () => submit(await apiRequest(`/api/submissions/${draftId}/submit`, { as: world.people.student.id, body: { version: cur.version, draft } }), params({ id: String(draftId) }));
+    const d = cur.draft as ReturnType<typeof draftFor>;
+    const draft = {
+      ...draftFor('H35Cl', {
+        bandCentre: { value: '2886.0', unit: 'cm-1', uncertainty: '0.5' },
+        reducedMass: { value: mu.toFixed(6), unit: 'u' },
+        forceConstant: { value: kFrom(nu, mu).toFixed(1), unit: 'N/m', uncertainty: '0.3' }, // CODATA 2018 c
+      }),
+      spectrumUploadId: d.spectrumUploadId,
+      reportUploadId: d.reportUploadId,
+    };
+    const click = async () =>
+      submit(
+        await apiRequest(`/api/submissions/${draftId}/submit`, { as: world.people.student.id, body: { version: cur.version, draft } }),
+        params({ id: String(draftId) }),
+      );
     const [a, b] = await Promise.all([click(), click()]);
     expect([a.status, b.status].sort()).toEqual([201, 409]);
     const attempts = await models().Submission.findAll({ where: { practicalId, studentId: world.people.student.id, attempt: 1 } });
@@ -273,13 +345,22 @@ describe('drafts and submits', () => {
 
   it('feedback is 404 until released', async () => {
     const att = await models().Submission.findOne({ where: { practicalId, studentId: world.people.student.id, attempt: 1 } });
-    const res = await getFeedback(await apiRequest(`/api/submissions/${att!.id}/feedback`, { as: world.people.student.id }), params({ id: String(att!.id) }));
+    const res = await getFeedback(
+      await apiRequest(`/api/submissions/${att!.id}/feedback`, { as: world.people.student.id }),
+      params({ id: String(att!.id) }),
+    );
     expect(res.status).toBe(404);
   });
 
   it('an empty submission is refused with a message and no attempt', async () => {
     const cur = (await models().Submission.findByPk(draftId))!;
-    const res = await submit(await apiRequest(`/api/submissions/${draftId}/submit`, { as: world.people.student.id, body: { version: cur.version, draft: draftFor('H35Cl', {}, []) } }), params({ id: String(draftId) }));
+    const res = await submit(
+      await apiRequest(`/api/submissions/${draftId}/submit`, {
+        as: world.people.student.id,
+        body: { version: cur.version, draft: draftFor('H35Cl', {}, []) },
+      }),
+      params({ id: String(draftId) }),
+    );
     expect(res.status).toBe(400);
     expect((await res.json()).error).toMatch(/empty/);
     expect(await models().Submission.count({ where: { practicalId, studentId: world.people.student.id, attempt: 2 } })).toBe(0);

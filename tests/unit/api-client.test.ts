@@ -1,7 +1,8 @@
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { api, ApiError, getJson, postStream } from '@/lib/api-client';
 
-const json = (body: unknown, status = 200, type = 'application/json') => new Response(typeof body === 'string' ? body : JSON.stringify(body), { status, headers: { 'content-type': type } });
+const json = (body: unknown, status = 200, type = 'application/json') =>
+  new Response(typeof body === 'string' ? body : JSON.stringify(body), { status, headers: { 'content-type': type } });
 
 function stubFetch(answer: (url: string, init: RequestInit) => Response | Promise<Response>) {
   const calls: { url: string; init: RequestInit }[] = [];
@@ -52,7 +53,9 @@ describe('api', () => {
     stubFetch(() => new Response('<html>Bad gateway</html>', { status: 502 }));
     const r = await api.get('/api/x');
     expect(!r.ok && r.error.message).toBe('The server answered 502.');
-    vi.stubGlobal('fetch', async () => { throw new TypeError('Failed to fetch'); });
+    vi.stubGlobal('fetch', async () => {
+      throw new TypeError('Failed to fetch');
+    });
     const down = await api.get('/api/x');
     expect(!down.ok && down.status).toBe(0);
     await expect(getJson('/api/x')).rejects.toMatchObject({ name: 'ApiError', status: 0 });
@@ -65,14 +68,22 @@ describe('postStream', () => {
   it('passes each progress line on and answers the last line', async () => {
     stubFetch(() => json('{"done":1,"total":2}\n{"done":2,"total":2}\n{"released":2,"results":[]}\n', 200, 'application/x-ndjson'));
     const seen: number[] = [];
-    const r = await postStream<{ released: number }, { done: number }>('/api/release', {}, { isProgress: progress, onProgress: (m) => seen.push(m.done), incomplete: 'stopped' });
+    const r = await postStream<{ released: number }, { done: number }>(
+      '/api/release',
+      {},
+      { isProgress: progress, onProgress: (m) => seen.push(m.done), incomplete: 'stopped' },
+    );
     expect(seen).toEqual([1, 2]);
     expect(r.ok && r.data.released).toBe(2);
   });
 
   it('is an ApiError when the stream ends without an answer or answers an error', async () => {
     stubFetch(() => json('{"done":1,"total":2}\n', 200, 'application/x-ndjson'));
-    const cut = await postStream('/api/release', {}, { isProgress: progress, onProgress: () => {}, incomplete: 'The release stopped before it finished.' });
+    const cut = await postStream(
+      '/api/release',
+      {},
+      { isProgress: progress, onProgress: () => {}, incomplete: 'The release stopped before it finished.' },
+    );
     expect(!cut.ok && cut.error.message).toBe('The release stopped before it finished.');
     stubFetch(() => json('{"error":"Something went wrong on our side."}\n', 200, 'application/x-ndjson'));
     const failed = await postStream('/api/release', {}, { isProgress: progress, onProgress: () => {}, incomplete: 'x' });

@@ -27,7 +27,14 @@ function exampleVariables(): string[] {
 
 /** Every process.env.NAME read by the app and the scripts a production install runs. */
 function variablesReadByTheApp(): string[] {
-  const files: string[] = ['instrumentation.ts', 'proxy.ts', 'next.config.mjs', 'scripts/db-backup.mjs', 'scripts/db-restore.mjs', 'scripts/recheck.ts'];
+  const files: string[] = [
+    'instrumentation.ts',
+    'proxy.ts',
+    'next.config.mjs',
+    'scripts/db-backup.mjs',
+    'scripts/db-restore.mjs',
+    'scripts/recheck.ts',
+  ];
   for (const dir of ['app', 'lib', 'components', 'models', 'templates']) {
     for (const f of fs.readdirSync(path.join(ROOT, dir), { recursive: true }) as string[]) {
       if (/\.(ts|tsx|mjs|cjs|js)$/.test(f)) files.push(path.join(dir, f));

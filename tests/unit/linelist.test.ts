@@ -261,7 +261,10 @@ describe('parseLineList: files from real instruments and other languages', () =>
     const nm = parseLineList('Wellenlänge / nm;Intensität\n3440,86;0,41\n3490,28;0,44');
     expect(nm.errors).toEqual([]);
     expect(nm.format.unit).toBe('nm');
-    expect(nm.lines.map((l) => Number(l.wavenumber.toFixed(2)))).toEqual([Number((1e7 / 3440.86).toFixed(2)), Number((1e7 / 3490.28).toFixed(2))]);
+    expect(nm.lines.map((l) => Number(l.wavenumber.toFixed(2)))).toEqual([
+      Number((1e7 / 3440.86).toFixed(2)),
+      Number((1e7 / 3490.28).toFixed(2)),
+    ]);
     // A wavelength header without a unit: µm told from the size of the values.
     const bare = parseLineList('lambda\n3.44086\n3.49028');
     expect(bare.format.unit).toBe('µm');

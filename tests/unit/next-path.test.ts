@@ -8,7 +8,17 @@ describe('safeNextPath', () => {
     expect(safeNextPath('/statistics/2?cohortId=4')).toBe('/statistics/2?cohortId=4');
   });
   it('refuses other hosts and odd forms', () => {
-    for (const bad of ['//evil.example/x', '/\\evil.example', 'https://evil.example', 'javascript:alert(1)', '', null, '/a\nb', '/signin', '/api/auth/signout']) {
+    for (const bad of [
+      '//evil.example/x',
+      '/\\evil.example',
+      'https://evil.example',
+      'javascript:alert(1)',
+      '',
+      null,
+      '/a\nb',
+      '/signin',
+      '/api/auth/signout',
+    ]) {
       expect(safeNextPath(bad as string | null)).toBeNull();
     }
   });

@@ -15,7 +15,14 @@ const level = process.env.LOG_LEVEL;
 beforeEach(() => {
   lines = [];
   process.env.LOG_LEVEL = 'info';
-  setLogDestination(new Writable({ write(chunk, _enc, done) { for (const l of String(chunk).split('\n').filter(Boolean)) lines.push(JSON.parse(l)); done(); } }));
+  setLogDestination(
+    new Writable({
+      write(chunk, _enc, done) {
+        for (const l of String(chunk).split('\n').filter(Boolean)) lines.push(JSON.parse(l));
+        done();
+      },
+    }),
+  );
 });
 afterEach(() => {
   process.env.LOG_LEVEL = level;
@@ -49,16 +56,22 @@ describe('request ids', () => {
   });
 
   it('4xx answers and redirects (immutable headers) carry it too', async () => {
-    const refused = route(async () => { throw new HttpError(403, 'No.'); });
+    const refused = route(async () => {
+      throw new HttpError(403, 'No.');
+    });
     const res = await refused(get({ 'x-request-id': 'proxy-id-12345678' }), undefined);
     expect(res.status).toBe(403);
     expect(res.headers.get('x-request-id')).toBe('proxy-id-12345678');
     const moved = route(async () => Response.redirect('http://localhost:3000/elsewhere', 303));
     const r = await moved(get({ 'x-request-id': 'proxy-id-87654321' }), undefined);
-    expect([r.status, r.headers.get('location'), r.headers.get('x-request-id')]).toEqual([303, 'http://localhost:3000/elsewhere', 'proxy-id-87654321']);
+    expect([r.status, r.headers.get('location'), r.headers.get('x-request-id')]).toEqual([
+      303,
+      'http://localhost:3000/elsewhere',
+      'proxy-id-87654321',
+    ]);
   });
 
-  it('the log lines of a request carry its id: the handler\'s own and the closing line with the status', async () => {
+  it("the log lines of a request carry its id: the handler's own and the closing line with the status", async () => {
     const res = await ok(get({ 'x-request-id': 'trace-abcdef-42' }), undefined);
     const mine = lines.filter((l) => l.requestId === 'trace-abcdef-42');
     expect(mine.map((l) => l.msg)).toEqual(['inside the handler', 'request']);
@@ -67,7 +80,9 @@ describe('request ids', () => {
   });
 
   it('an unexpected error is a 500 whose body names the request id, logged with the stack under that id', async () => {
-    const broken = route(async () => { throw new Error('kaboom in the handler'); });
+    const broken = route(async () => {
+      throw new Error('kaboom in the handler');
+    });
     const res = await broken(get(), undefined);
     const id = res.headers.get('x-request-id')!;
     const body = (await res.json()) as { error: string; requestId: string };
@@ -83,11 +98,18 @@ describe('request ids', () => {
 
 describe('background runs', () => {
   it('lines written during a run carry its kind and a run id of its own', async () => {
-    const ids = await Promise.all(['outbox', 'outbox'].map((run) => withRun(run, async (logger) => {
-      log().info('step');
-      return logger.bindings().runId as string;
-    })));
+    const ids = await Promise.all(
+      ['outbox', 'outbox'].map((run) =>
+        withRun(run, async (logger) => {
+          log().info('step');
+          return logger.bindings().runId as string;
+        }),
+      ),
+    );
     expect(ids[0]).not.toBe(ids[1]);
-    expect(lines.filter((l) => l.msg === 'step').map((l) => [l.run, l.runId])).toEqual([['outbox', ids[0]], ['outbox', ids[1]]]);
+    expect(lines.filter((l) => l.msg === 'step').map((l) => [l.run, l.runId])).toEqual([
+      ['outbox', ids[0]],
+      ['outbox', ids[1]],
+    ]);
   });
 });

@@ -19,7 +19,8 @@ export const POST = route(async (request) => {
   const data = await readJson(request, courseCreateSchema);
   const { Course, CourseMembership } = models();
   const course = await sequelize().transaction(async (transaction) => {
-    if (await Course.findOne({ where: { code: data.code }, transaction })) throw new HttpError(409, `A course ${data.code} exists already.`, { code: ['Already taken.'] });
+    if (await Course.findOne({ where: { code: data.code }, transaction }))
+      throw new HttpError(409, `A course ${data.code} exists already.`, { code: ['Already taken.'] });
     const c = await Course.create({ code: data.code, title: data.title, archivedAt: null }, { transaction });
     await CourseMembership.create({ userId: actor.id, courseId: c.id, role: 'instructor', cohortId: null }, { transaction });
     await audit({ actorId: actor.id, action: 'course.create', entityType: 'course', entityId: c.id, after: data }, transaction);

@@ -3,7 +3,10 @@ import { authenticate, permit } from '@/lib/authz';
 import { json, route, validate } from '@/lib/http';
 import { moderationSample } from '@/lib/marking/moderation';
 
-const query = z.object({ courseId: z.coerce.number().int().positive().max(Number.MAX_SAFE_INTEGER), share: z.coerce.number().min(0.01).max(1).optional() });
+const query = z.object({
+  courseId: z.coerce.number().int().positive().max(Number.MAX_SAFE_INTEGER),
+  share: z.coerce.number().min(0.01).max(1).optional(),
+});
 
 /** GET /api/moderation?courseId=…&share=0.1: the sample of each marker's marked submissions. */
 export const GET = route(async (request) => {

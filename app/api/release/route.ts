@@ -41,10 +41,14 @@ export const POST = route(async (request) => {
         line(summary(results));
       } catch (error) {
         logger.error({ err: error }, 'release failed');
-        line({ error: `Something went wrong on our side while releasing; the submissions released so far stay released. The error has been logged (request id ${logger.bindings().requestId}).` });
+        line({
+          error: `Something went wrong on our side while releasing; the submissions released so far stay released. The error has been logged (request id ${logger.bindings().requestId}).`,
+        });
       }
       controller.close();
     },
   });
-  return new Response(stream, { headers: { 'Content-Type': 'application/x-ndjson; charset=utf-8', 'Cache-Control': 'no-store', 'X-Content-Type-Options': 'nosniff' } });
+  return new Response(stream, {
+    headers: { 'Content-Type': 'application/x-ndjson; charset=utf-8', 'Cache-Control': 'no-store', 'X-Content-Type-Options': 'nosniff' },
+  });
 });

@@ -39,17 +39,35 @@ export const POST = route(async (request) => {
     if (draftRow.attempt !== 0) throw new HttpError(409, 'Files can only be added to your draft, not to a submitted attempt.');
     const samples = fields.kind === 'spectrum' ? await samplesForPractical(practical) : [];
     const sample = fields.kind === 'spectrum' ? (fields.sample ? samples.find((x) => x.key === fields.sample) : samples[0]) : undefined;
-    if (fields.kind === 'spectrum' && !sample) throw new HttpError(400, `This practical takes no spectrum called "${fields.sample}"; it takes ${samples.map((x) => `"${x.key}"`).join(', ')}.`);
+    if (fields.kind === 'spectrum' && !sample)
+      throw new HttpError(
+        400,
+        `This practical takes no spectrum called "${fields.sample}"; it takes ${samples.map((x) => `"${x.key}"`).join(', ')}.`,
+      );
     const accepted = await acceptFile(received.file, fields.kind);
     finalPath = accepted.finalPath;
     // Analysed before the transaction, so the database is not held while it runs.
     const analysis = sample ? analyseFile(accepted, 0, sample) : null;
     const upload = await sequelize().transaction(async (transaction) => {
       const up = await Upload.create(
-        { ownerId: actor.id, submissionId: draftRow.id, kind: fields.kind, originalName: accepted.originalName, storedName: accepted.storedName, sha256: accepted.sha256, size: accepted.size, contentType: accepted.contentType, sample: sample?.key ?? null },
+        {
+          ownerId: actor.id,
+          submissionId: draftRow.id,
+          kind: fields.kind,
+          originalName: accepted.originalName,
+          storedName: accepted.storedName,
+          sha256: accepted.sha256,
+          size: accepted.size,
+          contentType: accepted.contentType,
+          sample: sample?.key ?? null,
+        },
         { transaction },
       );
-      if (analysis) await up.update({ analysis: JSON.parse(JSON.stringify({ ...analysis, uploadId: up.id })) as Record<string, unknown> }, { transaction });
+      if (analysis)
+        await up.update(
+          { analysis: JSON.parse(JSON.stringify({ ...analysis, uploadId: up.id })) as Record<string, unknown> },
+          { transaction },
+        );
       const fresh = await Submission.findByPk(draftRow.id, { transaction });
       const draft = readDraft(fresh!.draft, practical.species);
       let previous: number | null;
@@ -75,7 +93,18 @@ export const POST = route(async (request) => {
       return { up, version: fresh!.version };
     });
     finalPath = null;
-    return json({ id: upload.up.id, kind: upload.up.kind, sample: upload.up.sample, originalName: upload.up.originalName, size: upload.up.size, version: upload.version, warnings: accepted.warnings }, 201);
+    return json(
+      {
+        id: upload.up.id,
+        kind: upload.up.kind,
+        sample: upload.up.sample,
+        originalName: upload.up.originalName,
+        size: upload.up.size,
+        version: upload.version,
+        warnings: accepted.warnings,
+      },
+      201,
+    );
   } finally {
     received.cleanup();
     if (finalPath) fs.rmSync(finalPath, { force: true });

@@ -28,9 +28,18 @@ export default async function CoursePage({ params }: { params: Promise<{ courseI
   const summary = (await managedCourses(actor)).find((c) => c.id === course.id)!;
   return (
     <>
-      <p className="mb-2 text-sm"><Link href="/courses">← All courses</Link></p>
-      <PageHeader title={`${course.code} · ${course.title}`} lead={course.archivedAt ? 'This course is archived.' : 'Cohorts, roster, staff, TA duties and practicals.'}>
-        {(await models().LtiContext.count({ where: { courseId: course.id } })) > 0 && <Link className="btn-quiet" href={`/courses/${course.id}/learning-platform`}>Learning platform</Link>}
+      <p className="mb-2 text-sm">
+        <Link href="/courses">← All courses</Link>
+      </p>
+      <PageHeader
+        title={`${course.code} · ${course.title}`}
+        lead={course.archivedAt ? 'This course is archived.' : 'Cohorts, roster, staff, TA duties and practicals.'}
+      >
+        {(await models().LtiContext.count({ where: { courseId: course.id } })) > 0 && (
+          <Link className="btn-quiet" href={`/courses/${course.id}/learning-platform`}>
+            Learning platform
+          </Link>
+        )}
       </PageHeader>
       <CourseWorkspace course={summary} />
     </>

@@ -52,38 +52,76 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
         title={`${view.student.name} — ${view.practical.title}`}
         lead={`${view.course.code} · ${cohortName(view.cohort)} · attempt ${view.submission.attempt} · submitted ${view.submission.submittedAt ? new Date(view.submission.submittedAt).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' }) : '—'}${view.submission.daysLate ? ` · ${view.submission.daysLate} day(s) late, penalty ${view.submission.latePenalty} %` : ''}`}
       >
-        <Link className="btn-quiet" href="/marking">Back to the queue</Link>
-        <a className="btn-quiet" href={`/api/marking/${id}/preview`} target="_blank" rel="noopener">Feedback PDF</a>
-        {next && <Link className="btn-quiet" href={`/marking/${next.id}`} data-testid="next-submission">Next to mark: {next.student} →</Link>}
+        <Link className="btn-quiet" href="/marking">
+          Back to the queue
+        </Link>
+        <a className="btn-quiet" href={`/api/marking/${id}/preview`} target="_blank" rel="noopener">
+          Feedback PDF
+        </a>
+        {next && (
+          <Link className="btn-quiet" href={`/marking/${next.id}`} data-testid="next-submission">
+            Next to mark: {next.student} →
+          </Link>
+        )}
       </PageHeader>
 
       <section aria-labelledby="values-heading" className="card mb-6">
-        <h2 id="values-heading" className="mb-2">Reported, recomputed and reference values</h2>
-        <p className="hint mb-3">Recomputed: from the student’s own data (consistency). Reference: the accepted value (accuracy). Deviation = reported − expected.</p>
+        <h2 id="values-heading" className="mb-2">
+          Reported, recomputed and reference values
+        </h2>
+        <p className="hint mb-3">
+          Recomputed: from the student’s own data (consistency). Reference: the accepted value (accuracy). Deviation = reported − expected.
+        </p>
         <table className="data-table stack-table">
           <thead>
             <tr>
-              <th scope="col" className="min-w-[10rem]">Quantity</th>
+              <th scope="col" className="min-w-[10rem]">
+                Quantity
+              </th>
               <th scope="col">Reported (as typed)</th>
-              <th scope="col" className="num">Recomputed</th>
-              <th scope="col" className="num">Deviation</th>
+              <th scope="col" className="num">
+                Recomputed
+              </th>
+              <th scope="col" className="num">
+                Deviation
+              </th>
               <th scope="col">Consistency</th>
-              <th scope="col" className="num">Reference</th>
-              <th scope="col" className="num">Deviation</th>
+              <th scope="col" className="num">
+                Reference
+              </th>
+              <th scope="col" className="num">
+                Deviation
+              </th>
               <th scope="col">Accuracy</th>
             </tr>
           </thead>
           <tbody>
             {view.quantities.map((q) => (
               <tr key={q.itemKey} data-quantity={q.itemKey}>
-                <th scope="row" className="text-left font-bold sm:font-normal">{q.label}</th>
-                <td className="num" data-label="Reported"><span className="nowrap">{q.reportedTyped}</span></td>
-                <td className="num" data-label="Recomputed"><span className="nowrap">{q.consistency?.expectedDisplay ?? '—'}</span></td>
-                <td className="num" data-label="Deviation">{deviation(q.consistency)}</td>
-                <td data-label="Consistency"><VerdictBadge verdict={q.consistency?.verdict} /></td>
-                <td className="num" data-label="Reference"><span className="nowrap">{q.accuracy?.expectedDisplay ?? '—'}</span></td>
-                <td className="num" data-label="Deviation">{deviation(q.accuracy)}</td>
-                <td data-label="Accuracy"><VerdictBadge verdict={q.accuracy?.verdict} /></td>
+                <th scope="row" className="text-left font-bold sm:font-normal">
+                  {q.label}
+                </th>
+                <td className="num" data-label="Reported">
+                  <span className="nowrap">{q.reportedTyped}</span>
+                </td>
+                <td className="num" data-label="Recomputed">
+                  <span className="nowrap">{q.consistency?.expectedDisplay ?? '—'}</span>
+                </td>
+                <td className="num" data-label="Deviation">
+                  {deviation(q.consistency)}
+                </td>
+                <td data-label="Consistency">
+                  <VerdictBadge verdict={q.consistency?.verdict} />
+                </td>
+                <td className="num" data-label="Reference">
+                  <span className="nowrap">{q.accuracy?.expectedDisplay ?? '—'}</span>
+                </td>
+                <td className="num" data-label="Deviation">
+                  {deviation(q.accuracy)}
+                </td>
+                <td data-label="Accuracy">
+                  <VerdictBadge verdict={q.accuracy?.verdict} />
+                </td>
               </tr>
             ))}
           </tbody>
@@ -91,14 +129,18 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
       </section>
 
       <section aria-labelledby="slips-heading" className="card mb-6">
-        <h2 id="slips-heading" className="mb-2">Named slips</h2>
+        <h2 id="slips-heading" className="mb-2">
+          Named slips
+        </h2>
         {view.slips.length === 0 ? (
           <p className="text-ink-soft">No slip was recognised.</p>
         ) : (
           <ul className="space-y-3">
             {slipsByCode(view.slips).map((s) => (
               <li key={s.title} data-slip={view.slips.find((x) => x.title === s.title)?.code}>
-                <p className="font-bold">{s.title} <span className="font-normal text-ink-soft">— {s.quantity}</span></p>
+                <p className="font-bold">
+                  {s.title} <span className="font-normal text-ink-soft">— {s.quantity}</span>
+                </p>
                 <p>{s.explanation}</p>
                 {s.formula && <p className="num text-sm">{s.formula}</p>}
               </li>
@@ -107,10 +149,22 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
         )}
       </section>
 
-      <Suspense fallback={<p className="card mb-6 text-ink-soft" role="status">Drawing the spectrum with the student’s lines…</p>}>
+      <Suspense
+        fallback={
+          <p className="card mb-6 text-ink-soft" role="status">
+            Drawing the spectrum with the student’s lines…
+          </p>
+        }
+      >
         <SpectrumSection submissionId={id} />
       </Suspense>
-      <Suspense fallback={<p className="card mb-6 text-ink-soft" role="status">Drawing the line fit…</p>}>
+      <Suspense
+        fallback={
+          <p className="card mb-6 text-ink-soft" role="status">
+            Drawing the line fit…
+          </p>
+        }
+      >
         <FitPlots fits={view.fits} />
       </Suspense>
 
@@ -120,11 +174,22 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
       <ScoreDelivery submissionId={id} courseId={view.course.id} />
 
       <section aria-labelledby="report-heading" className="card mb-6">
-        <h2 id="report-heading" className="mb-2">Report</h2>
+        <h2 id="report-heading" className="mb-2">
+          Report
+        </h2>
         {view.report ? (
           <>
-            <p className="mb-2 text-sm"><a href={`/api/marking/${id}/report`} target="_blank" rel="noopener">Open {view.report.originalName} in a new tab</a></p>
-            <iframe title={`Report of ${view.student.name}`} src={`/api/marking/${id}/report`} loading="lazy" className="h-[80vh] w-full border border-rule" />
+            <p className="mb-2 text-sm">
+              <a href={`/api/marking/${id}/report`} target="_blank" rel="noopener">
+                Open {view.report.originalName} in a new tab
+              </a>
+            </p>
+            <iframe
+              title={`Report of ${view.student.name}`}
+              src={`/api/marking/${id}/report`}
+              loading="lazy"
+              className="h-[80vh] w-full border border-rule"
+            />
           </>
         ) : (
           <p className="text-ink-soft">No report PDF was uploaded.</p>
@@ -133,4 +198,3 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
     </>
   );
 }
-

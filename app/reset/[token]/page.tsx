@@ -16,7 +16,9 @@ export default async function ResetPasswordPage({ params }: { params: Promise<{ 
   return (
     <div className="mx-auto mt-10 max-w-md">
       <section className="card" aria-labelledby="reset-password-heading">
-        <h1 id="reset-password-heading" className="mb-3">Choose a new password</h1>
+        <h1 id="reset-password-heading" className="mb-3">
+          Choose a new password
+        </h1>
         {state.ok ? (
           <>
             <p className="mb-4 text-ink-soft">
@@ -26,8 +28,12 @@ export default async function ResetPasswordPage({ params }: { params: Promise<{ 
           </>
         ) : (
           <>
-            <p role="alert" className="rounded border border-danger bg-danger-soft px-3 py-2 text-sm text-danger">{state.message}</p>
-            <p className="hint mt-4"><Link href="/reset">Ask for a new link</Link> or <Link href="/signin">go to sign in</Link>.</p>
+            <p role="alert" className="rounded border border-danger bg-danger-soft px-3 py-2 text-sm text-danger">
+              {state.message}
+            </p>
+            <p className="hint mt-4">
+              <Link href="/reset">Ask for a new link</Link> or <Link href="/signin">go to sign in</Link>.
+            </p>
           </>
         )}
       </section>

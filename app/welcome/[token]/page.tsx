@@ -11,14 +11,20 @@ export default async function WelcomePage({ params }: { params: Promise<{ token:
   return (
     <div className="mx-auto mt-10 max-w-md">
       <section className="card" aria-labelledby="welcome-heading">
-        <h1 id="welcome-heading" className="mb-3">Welcome to Oscillab</h1>
+        <h1 id="welcome-heading" className="mb-3">
+          Welcome to Oscillab
+        </h1>
         {state.ok ? (
           <>
-            <p className="mb-4 text-ink-soft">Choose a password for <strong>{state.email}</strong> ({state.name}). The link works once.</p>
+            <p className="mb-4 text-ink-soft">
+              Choose a password for <strong>{state.email}</strong> ({state.name}). The link works once.
+            </p>
             <WelcomeForm token={token} email={state.email} />
           </>
         ) : (
-          <p role="alert" className="rounded border border-danger bg-danger-soft px-3 py-2 text-sm text-danger">{state.message}</p>
+          <p role="alert" className="rounded border border-danger bg-danger-soft px-3 py-2 text-sm text-danger">
+            {state.message}
+          </p>
         )}
       </section>
     </div>

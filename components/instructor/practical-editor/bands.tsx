@@ -20,34 +20,58 @@ export function Bands({ detail, onChange }: { detail: Detail; onChange: () => vo
   async function submit(method: 'PUT' | 'DELETE', body: Record<string, unknown>) {
     const url = `/api/practicals/${detail.practical.id}/bands`;
     const r = method === 'PUT' ? await api.put<BandChange>(url, body) : await api.delete<BandChange>(url, body);
-    if (!r.ok && r.status === 409 && typeof r.error.body.submissions === 'number' && r.error.body.submissions) return setPending({ body, count: r.error.body.submissions, method });
+    if (!r.ok && r.status === 409 && typeof r.error.body.submissions === 'number' && r.error.body.submissions)
+      return setPending({ body, count: r.error.body.submissions, method });
     setPending(null);
     if (!r.ok) return setMsg({ ok: false, text: r.error.message });
-    setMsg({ ok: true, text: `${method === 'PUT' ? 'Band saved' : 'Band removed'}${typeof r.data.rechecked === 'number' ? `; ${r.data.rechecked} submission(s) re-checked` : ''}.` });
+    setMsg({
+      ok: true,
+      text: `${method === 'PUT' ? 'Band saved' : 'Band removed'}${typeof r.data.rechecked === 'number' ? `; ${r.data.rechecked} submission(s) re-checked` : ''}.`,
+    });
     onChange();
   }
   function save() {
     submit('PUT', {
-      quantityDefinitionId: Number(f.quantityId), cohortId: f.scope === 'course' ? null : Number(f.scope), basis: f.basis, kind: f.kind,
-      inner: Number(f.inner) * scale, outer: f.outer === '' ? null : Number(f.outer) * scale, unit: f.kind === 'absolute' ? unit : null,
+      quantityDefinitionId: Number(f.quantityId),
+      cohortId: f.scope === 'course' ? null : Number(f.scope),
+      basis: f.basis,
+      kind: f.kind,
+      inner: Number(f.inner) * scale,
+      outer: f.outer === '' ? null : Number(f.outer) * scale,
+      unit: f.kind === 'absolute' ? unit : null,
     });
   }
   const set = (k: keyof typeof f) => (e: React.ChangeEvent<HTMLInputElement | HTMLSelectElement>) => setF({ ...f, [k]: e.target.value });
   return (
     <section aria-labelledby="bands" className="card">
-      <h2 id="bands" className="mb-1">Tolerance bands</h2>
-      <p className="hint mb-3">Consistency: is the number right from the student&apos;s own data? Accuracy: is the measurement close to the reference value? A cohort&apos;s own band replaces the course default for that cohort. Inner band: full marks; outer band: partial credit.</p>
+      <h2 id="bands" className="mb-1">
+        Tolerance bands
+      </h2>
+      <p className="hint mb-3">
+        Consistency: is the number right from the student&apos;s own data? Accuracy: is the measurement close to the reference value? A
+        cohort&apos;s own band replaces the course default for that cohort. Inner band: full marks; outer band: partial credit.
+      </p>
       <div className="grid gap-3 md:grid-cols-4">
         <Field id="b-quantity" label="Quantity">
           <select className="field" value={f.quantityId} onChange={set('quantityId')}>
             <option value="">Choose…</option>
-            {detail.quantities.map((q) => <option key={q.id} value={q.id}>{q.label} · {q.species}</option>)}
+            {detail.quantities.map((q) => (
+              <option key={q.id} value={q.id}>
+                {q.label} · {q.species}
+              </option>
+            ))}
           </select>
         </Field>
         <Field id="b-scope" label="Applies to">
           <select className="field" value={f.scope} onChange={set('scope')}>
             <option value="course">Course default (all cohorts)</option>
-            {detail.cohorts.filter((c) => !c.archived).map((c) => <option key={c.id} value={c.id}>Only {c.name} ({c.term})</option>)}
+            {detail.cohorts
+              .filter((c) => !c.archived)
+              .map((c) => (
+                <option key={c.id} value={c.id}>
+                  Only {c.name} ({c.term})
+                </option>
+              ))}
           </select>
         </Field>
         <Field id="b-basis" label="Question">
@@ -75,36 +99,78 @@ export function Bands({ detail, onChange }: { detail: Detail; onChange: () => vo
           </Field>
         )}
       </div>
-      <button type="button" className="btn mt-3" disabled={!f.quantityId || !f.inner} onClick={save}>Save band</button>
+      <button type="button" className="btn mt-3" disabled={!f.quantityId || !f.inner} onClick={save}>
+        Save band
+      </button>
       {pending && (
-        <div role="alertdialog" aria-labelledby="recheck-q" className="mt-3 rounded border-2 border-verdict-partial bg-verdict-partial-bg p-3">
-          <p id="recheck-q" className="font-bold text-verdict-partial">{pending.count} submission(s) were already checked with the current band. Re-check them with the new one?</p>
+        <div
+          role="alertdialog"
+          aria-labelledby="recheck-q"
+          className="mt-3 rounded border-2 border-verdict-partial bg-verdict-partial-bg p-3"
+        >
+          <p id="recheck-q" className="font-bold text-verdict-partial">
+            {pending.count} submission(s) were already checked with the current band. Re-check them with the new one?
+          </p>
           <div className="mt-2 flex flex-wrap gap-2">
-            <button type="button" className="btn" onClick={() => submit(pending.method, { ...pending.body, recheck: true })}>Save and re-check</button>
-            <button type="button" className="btn-quiet" onClick={() => submit(pending.method, { ...pending.body, recheck: false })}>Save, keep existing results</button>
-            <button type="button" className="btn-quiet" onClick={() => setPending(null)}>Cancel</button>
+            <button type="button" className="btn" onClick={() => submit(pending.method, { ...pending.body, recheck: true })}>
+              Save and re-check
+            </button>
+            <button type="button" className="btn-quiet" onClick={() => submit(pending.method, { ...pending.body, recheck: false })}>
+              Save, keep existing results
+            </button>
+            <button type="button" className="btn-quiet" onClick={() => setPending(null)}>
+              Cancel
+            </button>
           </div>
         </div>
       )}
       <Status message={msg} />
       <h3 className="mb-2 mt-4">Bands set</h3>
       <table className="data-table stack-table" aria-label="Tolerance bands">
-        <thead><tr><th>Quantity</th><th>Applies to</th><th>Question</th><th>Band</th><th><span className="sr-only">Actions</span></th></tr></thead>
+        <thead>
+          <tr>
+            <th>Quantity</th>
+            <th>Applies to</th>
+            <th>Question</th>
+            <th>Band</th>
+            <th>
+              <span className="sr-only">Actions</span>
+            </th>
+          </tr>
+        </thead>
         <tbody>
           {detail.quantities.flatMap((q) => [
             ...q.bands.map((b) => (
               <tr key={b.id}>
-                <td data-label=""><strong className="sm:font-normal">{q.label} · {q.species}</strong></td>
+                <td data-label="">
+                  <strong className="sm:font-normal">
+                    {q.label} · {q.species}
+                  </strong>
+                </td>
                 <td data-label="Applies to">{cohortLabel(detail.cohorts, b.cohortId)}</td>
                 <td data-label="Question">{b.basis}</td>
-                <td className="num" data-label="Band">{b.text}</td>
-                <td data-label=""><button type="button" className="btn-quiet" onClick={() => submit('DELETE', { bandId: b.id })}>Remove<span className="sr-only"> band {b.text} of {q.label}</span></button></td>
+                <td className="num" data-label="Band">
+                  {b.text}
+                </td>
+                <td data-label="">
+                  <button type="button" className="btn-quiet" onClick={() => submit('DELETE', { bandId: b.id })}>
+                    Remove
+                    <span className="sr-only">
+                      {' '}
+                      band {b.text} of {q.label}
+                    </span>
+                  </button>
+                </td>
               </tr>
             )),
             ...(q.consistencyDefault && !q.bands.some((b) => b.basis === 'consistency' && b.cohortId === null)
               ? [
                   <tr key={`default-${q.id}`} data-testid="consistency-default">
-                    <td data-label=""><strong className="sm:font-normal">{q.label} · {q.species}</strong></td>
+                    <td data-label="">
+                      <strong className="sm:font-normal">
+                        {q.label} · {q.species}
+                      </strong>
+                    </td>
                     <td data-label="Applies to">Course default</td>
                     <td data-label="Question">consistency</td>
                     <td data-label="Band">Default — {q.consistencyDefault}</td>

@@ -15,7 +15,9 @@ export function Details({ detail, onSaved }: { detail: Detail; onSaved: () => vo
   const [msg, setMsg] = useState<Msg>(null);
   const [speciesText, setSpeciesText] = useState(p.species.join(', '));
   const [html, setHtml] = useState(detail.instructionsHtml);
-  const [deadlines, setDeadlines] = useState<Record<number, string>>(Object.fromEntries(detail.deadlines.map((d) => [d.cohortId, toLocal(d.deadline)])));
+  const [deadlines, setDeadlines] = useState<Record<number, string>>(
+    Object.fromEntries(detail.deadlines.map((d) => [d.cohortId, toLocal(d.deadline)])),
+  );
   const form = useForm<PracticalInput, unknown, PracticalData>({
     resolver: zodResolver(practicalSchema),
     defaultValues: { ...p, deadlines: detail.deadlines },
@@ -34,7 +36,12 @@ export function Details({ detail, onSaved }: { detail: Detail; onSaved: () => vo
     setValue('species', speciesText.split(/[,;\s]+/).filter(Boolean));
   }, [speciesText, setValue]);
   useEffect(() => {
-    setValue('deadlines', Object.entries(deadlines).filter(([, v]) => v).map(([k, v]) => ({ cohortId: Number(k), deadline: fromLocal(v) })));
+    setValue(
+      'deadlines',
+      Object.entries(deadlines)
+        .filter(([, v]) => v)
+        .map(([k, v]) => ({ cohortId: Number(k), deadline: fromLocal(v) })),
+    );
   }, [deadlines, setValue]);
 
   async function onSubmit(values: PracticalData) {
@@ -43,10 +50,13 @@ export function Details({ detail, onSaved }: { detail: Detail; onSaved: () => vo
     if (r.ok) onSaved();
   }
   const err = formState.errors;
-  const speciesError = err.species?.message ?? (err.species as unknown as { message?: string }[] | undefined)?.find?.((x) => x?.message)?.message;
+  const speciesError =
+    err.species?.message ?? (err.species as unknown as { message?: string }[] | undefined)?.find?.((x) => x?.message)?.message;
   return (
     <section aria-labelledby="details" className="card">
-      <h2 id="details" className="mb-3">Definition</h2>
+      <h2 id="details" className="mb-3">
+        Definition
+      </h2>
       <form onSubmit={handleSubmit(onSubmit)} noValidate className="space-y-4">
         <div className="grid gap-3 md:grid-cols-2">
           <Field id="p-title" label="Title" error={err.title?.message}>
@@ -63,9 +73,15 @@ export function Details({ detail, onSaved }: { detail: Detail; onSaved: () => vo
             <textarea rows={10} className="field font-mono text-sm" {...register('instructions')} />
           </Field>
           <div>
-            <p className="label" id="instructions-preview-label">As students will see them</p>
+            <p className="label" id="instructions-preview-label">
+              As students will see them
+            </p>
             {/* Sanitised by renderInstructions on the server (lib/instructor/markdown.ts). */}
-            <div aria-labelledby="instructions-preview-label" className="prose max-w-none rounded border border-rule bg-paper p-3 text-sm" dangerouslySetInnerHTML={{ __html: html }} />
+            <div
+              aria-labelledby="instructions-preview-label"
+              className="prose max-w-none rounded border border-rule bg-paper p-3 text-sm"
+              dangerouslySetInnerHTML={{ __html: html }}
+            />
           </div>
         </div>
         <div className="grid gap-3 md:grid-cols-2">
@@ -75,7 +91,9 @@ export function Details({ detail, onSaved }: { detail: Detail; onSaved: () => vo
           <HazardNotes notes={hazard} headingLevel={3} />
         </div>
         <RubricFields form={form} />
-        <button type="submit" className="btn" disabled={formState.isSubmitting}>Save definition</button>
+        <button type="submit" className="btn" disabled={formState.isSubmitting}>
+          Save definition
+        </button>
         <Status message={msg} />
       </form>
     </section>
@@ -108,25 +126,52 @@ function RuleFields({ form }: { form: DetailsForm }) {
         </select>
       </Field>
       <Field id="p-perday" label="Penalty per day (%)">
-        <input type="number" step="any" className="field num" disabled={!penalty} {...register('latePenaltyPerDay', { valueAsNumber: true })} />
+        <input
+          type="number"
+          step="any"
+          className="field num"
+          disabled={!penalty}
+          {...register('latePenaltyPerDay', { valueAsNumber: true })}
+        />
       </Field>
       <Field id="p-cap" label="Penalty cap (%)" error={err.latePenaltyCap?.message}>
-        <input type="number" step="any" className="field num" disabled={!penalty} {...register('latePenaltyCap', { valueAsNumber: true })} />
+        <input
+          type="number"
+          step="any"
+          className="field num"
+          disabled={!penalty}
+          {...register('latePenaltyCap', { valueAsNumber: true })}
+        />
       </Field>
     </div>
   );
 }
 
-function DeadlineFields({ cohorts, deadlines, setDeadlines }: { cohorts: Detail['cohorts']; deadlines: Record<number, string>; setDeadlines: (d: Record<number, string>) => void }) {
+function DeadlineFields({
+  cohorts,
+  deadlines,
+  setDeadlines,
+}: {
+  cohorts: Detail['cohorts'];
+  deadlines: Record<number, string>;
+  setDeadlines: (d: Record<number, string>) => void;
+}) {
   return (
     <fieldset>
       <legend className="label">Deadlines per cohort (UTC; leave empty if the cohort does not do this practical)</legend>
       <div className="grid gap-3 md:grid-cols-3">
-        {cohorts.filter((c) => !c.archived || deadlines[c.id]).map((c) => (
-          <Field key={c.id} id={`deadline-${c.id}`} label={`${c.name} (${c.term})`} labelClassName="text-sm">
-            <input type="datetime-local" className="field num" value={deadlines[c.id] ?? ''} onChange={(e) => setDeadlines({ ...deadlines, [c.id]: e.target.value })} />
-          </Field>
-        ))}
+        {cohorts
+          .filter((c) => !c.archived || deadlines[c.id])
+          .map((c) => (
+            <Field key={c.id} id={`deadline-${c.id}`} label={`${c.name} (${c.term})`} labelClassName="text-sm">
+              <input
+                type="datetime-local"
+                className="field num"
+                value={deadlines[c.id] ?? ''}
+                onChange={(e) => setDeadlines({ ...deadlines, [c.id]: e.target.value })}
+              />
+            </Field>
+          ))}
       </div>
     </fieldset>
   );
@@ -150,10 +195,18 @@ function RubricFields({ form }: { form: DetailsForm }) {
           <Field id={`rubric-${i}-guidance`} label="Guidance for markers" labelClassName="text-sm">
             <input className="field" {...register(`rubric.${i}.guidance`)} />
           </Field>
-          <button type="button" className="btn-quiet" onClick={() => rubric.remove(i)}>Remove</button>
+          <button type="button" className="btn-quiet" onClick={() => rubric.remove(i)}>
+            Remove
+          </button>
         </div>
       ))}
-      <button type="button" className="btn-quiet" onClick={() => rubric.append({ key: `item-${Date.now().toString(36)}`, title: '', marks: 1, guidance: '' })}>Add hand-marked item</button>
+      <button
+        type="button"
+        className="btn-quiet"
+        onClick={() => rubric.append({ key: `item-${Date.now().toString(36)}`, title: '', marks: 1, guidance: '' })}
+      >
+        Add hand-marked item
+      </button>
     </fieldset>
   );
 }

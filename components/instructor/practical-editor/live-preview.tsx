@@ -18,8 +18,12 @@ export function LivePreview({ detail }: { detail: Detail }) {
     if (!quantity || !ready) return;
     const t = setTimeout(async () => {
       const r = await api.post<VerdictPreview>(`/api/practicals/${detail.practical.id}/preview`, {
-        quantityDefinitionId: quantity.id, cohortId: f.cohort === 'course' ? null : Number(f.cohort), value: Number(f.value), unit: f.unit || quantity.unit,
-        uncertainty: f.uncertainty ? Number(f.uncertainty) : null, recomputed: f.recomputed ? Number(f.recomputed) : null,
+        quantityDefinitionId: quantity.id,
+        cohortId: f.cohort === 'course' ? null : Number(f.cohort),
+        value: Number(f.value),
+        unit: f.unit || quantity.unit,
+        uncertainty: f.uncertainty ? Number(f.uncertainty) : null,
+        recomputed: f.recomputed ? Number(f.recomputed) : null,
       });
       if (r.ok) {
         setResult(r.data);
@@ -36,19 +40,33 @@ export function LivePreview({ detail }: { detail: Detail }) {
   const set = (k: keyof typeof f) => (e: React.ChangeEvent<HTMLInputElement | HTMLSelectElement>) => setF({ ...f, [k]: e.target.value });
   return (
     <section aria-labelledby="live-preview" className="card">
-      <h2 id="live-preview" className="mb-1">Try a value</h2>
-      <p className="hint mb-3">Type a value a student might report and see the verdict and marks it would get in a cohort. Nothing is saved.</p>
+      <h2 id="live-preview" className="mb-1">
+        Try a value
+      </h2>
+      <p className="hint mb-3">
+        Type a value a student might report and see the verdict and marks it would get in a cohort. Nothing is saved.
+      </p>
       <div className="grid gap-3 md:grid-cols-6">
         <Field id="pv-quantity" label="Quantity" className="md:col-span-2">
           <select className="field" value={f.quantityId} onChange={set('quantityId')}>
             <option value="">Choose…</option>
-            {detail.quantities.map((q) => <option key={q.id} value={q.id}>{q.label} · {q.species}</option>)}
+            {detail.quantities.map((q) => (
+              <option key={q.id} value={q.id}>
+                {q.label} · {q.species}
+              </option>
+            ))}
           </select>
         </Field>
         <Field id="pv-cohort" label="Cohort">
           <select className="field" value={f.cohort} onChange={set('cohort')}>
             <option value="course">Course default</option>
-            {detail.cohorts.filter((c) => !c.archived).map((c) => <option key={c.id} value={c.id}>{c.name} ({c.term})</option>)}
+            {detail.cohorts
+              .filter((c) => !c.archived)
+              .map((c) => (
+                <option key={c.id} value={c.id}>
+                  {c.name} ({c.term})
+                </option>
+              ))}
           </select>
         </Field>
         <Field id="pv-value" label="Reported value">
@@ -65,17 +83,45 @@ export function LivePreview({ detail }: { detail: Detail }) {
         {msg && <p className="error-text">{msg}</p>}
         {shown && (
           <div>
-            {shown.reference && <p className="text-sm">Reference: <span className="num">{+shown.reference.value.toPrecision(7)}</span> {shown.reference.unit} ({shown.reference.kind === 'department' ? 'department value' : 'literature'}: {publishedSource(shown.reference.source)})</p>}
+            {shown.reference && (
+              <p className="text-sm">
+                Reference: <span className="num">{+shown.reference.value.toPrecision(7)}</span> {shown.reference.unit} (
+                {shown.reference.kind === 'department' ? 'department value' : 'literature'}: {publishedSource(shown.reference.source)})
+              </p>
+            )}
             <table className="data-table stack-table mt-2" aria-label="Preview verdicts">
-              <thead><tr><th>Question</th><th>Verdict</th><th className="num">Marks</th><th>Band</th><th className="num">Deviation</th></tr></thead>
+              <thead>
+                <tr>
+                  <th>Question</th>
+                  <th>Verdict</th>
+                  <th className="num">Marks</th>
+                  <th>Band</th>
+                  <th className="num">Deviation</th>
+                </tr>
+              </thead>
               <tbody>
                 {shown.results.map((r) => (
                   <tr key={r.basis}>
-                    <td data-label=""><strong className="sm:font-normal">{r.basis}</strong></td>
-                    <td data-label="Verdict"><div><VerdictLabel verdict={r.verdict} />{r.reason && <span className="hint block">{r.reason}</span>}</div></td>
-                    <td className="num" data-label="Marks">{+r.marks.toFixed(2)} / {+r.maxMarks.toFixed(2)}</td>
-                    <td data-label="Band">{r.band ? `${r.band} (${r.bandFrom === 'cohort' ? 'this cohort' : 'course default'})` : 'none set'}</td>
-                    <td className="num nowrap" data-label="Deviation">{r.deviation === null ? '—' : `${r.deviation >= 0 ? '+' : '−'}${+Math.abs(r.deviation).toPrecision(4)} ${quantity?.unitDisplay ?? ''}`}</td>
+                    <td data-label="">
+                      <strong className="sm:font-normal">{r.basis}</strong>
+                    </td>
+                    <td data-label="Verdict">
+                      <div>
+                        <VerdictLabel verdict={r.verdict} />
+                        {r.reason && <span className="hint block">{r.reason}</span>}
+                      </div>
+                    </td>
+                    <td className="num" data-label="Marks">
+                      {+r.marks.toFixed(2)} / {+r.maxMarks.toFixed(2)}
+                    </td>
+                    <td data-label="Band">
+                      {r.band ? `${r.band} (${r.bandFrom === 'cohort' ? 'this cohort' : 'course default'})` : 'none set'}
+                    </td>
+                    <td className="num nowrap" data-label="Deviation">
+                      {r.deviation === null
+                        ? '—'
+                        : `${r.deviation >= 0 ? '+' : '−'}${+Math.abs(r.deviation).toPrecision(4)} ${quantity?.unitDisplay ?? ''}`}
+                    </td>
                   </tr>
                 ))}
               </tbody>

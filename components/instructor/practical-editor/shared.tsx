@@ -7,7 +7,11 @@ export type Cohort = Detail['cohorts'][number];
 export type Msg = { ok: boolean; text: string } | null;
 
 export function Status({ message }: { message: Msg }) {
-  return <p aria-live="polite" className={message?.ok ? 'mt-2 text-sm text-verdict-within' : 'error-text'}>{message ? `${message.ok ? '✓' : '✗'} ${message.text}` : ''}</p>;
+  return (
+    <p aria-live="polite" className={message?.ok ? 'mt-2 text-sm text-verdict-within' : 'error-text'}>
+      {message ? `${message.ok ? '✓' : '✗'} ${message.text}` : ''}
+    </p>
+  );
 }
 
 export const cohortLabel = (cohorts: Cohort[], id: number | null) => {

@@ -61,7 +61,10 @@ export function useHandIn(form: UseFormReturn<Draft>, practicalId: number, draft
       await draft.settle();
       const id = draft.draftId ?? (await draft.save());
       if (!id) return;
-      const r = await api.post<SubmitAnswer>(`/api/submissions/${id}/submit`, { version: draft.versionRef.current, draft: form.getValues() });
+      const r = await api.post<SubmitAnswer>(`/api/submissions/${id}/submit`, {
+        version: draft.versionRef.current,
+        draft: form.getValues(),
+      });
       if (!r.ok) {
         setSubmitError(r.error.message);
         return;
@@ -78,7 +81,18 @@ export function useHandIn(form: UseFormReturn<Draft>, practicalId: number, draft
     }
   };
 
-  return { submitting, submitError, result, attemptsLeft, precheck, checking, confirming, check, submitNow, cancel: () => setConfirming(null) };
+  return {
+    submitting,
+    submitError,
+    result,
+    attemptsLeft,
+    precheck,
+    checking,
+    confirming,
+    check,
+    submitNow,
+    cancel: () => setConfirming(null),
+  };
 }
 
 export type HandIn = ReturnType<typeof useHandIn>;
@@ -86,15 +100,22 @@ export type HandIn = ReturnType<typeof useHandIn>;
 export function HandInBar({ handIn: h, mode }: { handIn: HandIn; mode: 'practice' | 'assessed' }) {
   return (
     <div className="card flex flex-wrap items-center gap-3" aria-labelledby="hand-in-h">
-      <h3 id="hand-in-h" className="sr-only">Check and submit</h3>
+      <h3 id="hand-in-h" className="sr-only">
+        Check and submit
+      </h3>
       <button type="button" className="btn-quiet" onClick={() => void h.check(false)} disabled={h.checking || h.submitting}>
         {h.checking && !h.confirming ? 'Checking…' : 'Check without submitting'}
       </button>
       <button type="submit" className="btn" disabled={h.submitting || h.checking || h.attemptsLeft <= 0}>
         {h.submitting ? 'Submitting…' : 'Submit…'}
       </button>
-      <span className="text-sm text-ink-soft" data-testid="attempts-left">{h.attemptsLeft > 0 ? `${h.attemptsLeft} attempt${h.attemptsLeft === 1 ? '' : 's'} left` : 'No attempts left'}</span>
-      <p className="hint w-full">“Check without submitting” costs nothing: it lists format problems{mode === 'practice' ? ' and shows the verdicts on your numbers' : ''} without using an attempt.</p>
+      <span className="text-sm text-ink-soft" data-testid="attempts-left">
+        {h.attemptsLeft > 0 ? `${h.attemptsLeft} attempt${h.attemptsLeft === 1 ? '' : 's'} left` : 'No attempts left'}
+      </span>
+      <p className="hint w-full">
+        “Check without submitting” costs nothing: it lists format problems
+        {mode === 'practice' ? ' and shows the verdicts on your numbers' : ''} without using an attempt.
+      </p>
     </div>
   );
 }
@@ -102,7 +123,11 @@ export function HandInBar({ handIn: h, mode }: { handIn: HandIn; mode: 'practice
 export function HandInOutcome({ handIn: h }: { handIn: HandIn }) {
   return (
     <div aria-live="polite">
-      {h.submitError && <p className="error-text" role="alert">{h.submitError}</p>}
+      {h.submitError && (
+        <p className="error-text" role="alert">
+          {h.submitError}
+        </p>
+      )}
       {h.precheck && !h.result && <PrecheckPanel view={h.precheck} />}
       {h.result && (
         <div className="space-y-2">

@@ -60,10 +60,24 @@ export function SubmissionForm(props: Props) {
   const handIn = useHandIn(form, props.practicalId, draft, props.attemptsLeft);
 
   return (
-    <form onSubmit={(e) => { e.preventDefault(); void handIn.check(true); }} noValidate className="space-y-6">
+    <form
+      onSubmit={(e) => {
+        e.preventDefault();
+        void handIn.check(true);
+      }}
+      noValidate
+      className="space-y-6"
+    >
       <SaveStatus state={draft.saveState} error={draft.saveError} />
       {props.species.map((s) => (
-        <SpeciesFieldset key={s.name} form={form} species={s} quantities={props.quantities.filter((q) => q.species === s.name)} askOvertone={props.askOvertone} lists={lists} />
+        <SpeciesFieldset
+          key={s.name}
+          form={form}
+          species={s}
+          quantities={props.quantities.filter((q) => q.species === s.name)}
+          askOvertone={props.askOvertone}
+          lists={lists}
+        />
       ))}
       <FilesFieldset form={form} draft={draft} lists={lists} props={props} />
       <HandInBar handIn={handIn} mode={props.mode} />
@@ -84,18 +98,59 @@ function SaveStatus({ state, error }: { state: SaveState; error: string | null }
 }
 
 /** One isotopologue: its line list, band centre (unless asked as a quantity), overtone and quantities. */
-function SpeciesFieldset({ form, species: s, quantities: qs, askOvertone, lists }: { form: UseFormReturn<Draft>; species: { name: string; display: string }; quantities: FormQuantity[]; askOvertone: boolean; lists: LineLists }) {
+function SpeciesFieldset({
+  form,
+  species: s,
+  quantities: qs,
+  askOvertone,
+  lists,
+}: {
+  form: UseFormReturn<Draft>;
+  species: { name: string; display: string };
+  quantities: FormQuantity[];
+  askOvertone: boolean;
+  lists: LineLists;
+}) {
   return (
     <fieldset className="card space-y-4">
       <legend className="px-1 text-lg font-bold">{s.display}</legend>
       <LineListField form={form} sp={s.name} display={s.display} lists={lists} />
       <div className="grid gap-4 md:grid-cols-2">
         {!qs.some((q) => q.key === 'bandCentre') && (
-          <QuantityInput form={form} sp={s.name} name="bandCentre" label={`Band centre ν̃₀ (${s.display})`} options={['cm-1']} required={false} dimension="wavenumber" />
+          <QuantityInput
+            form={form}
+            sp={s.name}
+            name="bandCentre"
+            label={`Band centre ν̃₀ (${s.display})`}
+            options={['cm-1']}
+            required={false}
+            dimension="wavenumber"
+          />
         )}
-        {askOvertone && <QuantityInput form={form} sp={s.name} name="overtone" path="overtone" label={`First overtone band centre (${s.display})`} options={['cm-1']} required={false} dimension="wavenumber" />}
+        {askOvertone && (
+          <QuantityInput
+            form={form}
+            sp={s.name}
+            name="overtone"
+            path="overtone"
+            label={`First overtone band centre (${s.display})`}
+            options={['cm-1']}
+            required={false}
+            dimension="wavenumber"
+          />
+        )}
         {qs.map((q) => (
-          <QuantityInput key={q.key} form={form} sp={s.name} name={q.key} label={`${q.label} (${s.display})`} options={q.unitOptions} required={q.uncertaintyRequired} dimension={q.dimension} defaultUnit={q.unit} />
+          <QuantityInput
+            key={q.key}
+            form={form}
+            sp={s.name}
+            name={q.key}
+            label={`${q.label} (${s.display})`}
+            options={q.unitOptions}
+            required={q.uncertaintyRequired}
+            dimension={q.dimension}
+            defaultUnit={q.unit}
+          />
         ))}
       </div>
     </fieldset>
@@ -153,9 +208,13 @@ function ReportUpload({ form, draft, initialName }: { form: UseFormReturn<Draft>
   };
   return (
     <div>
-      <label className="label" htmlFor="report-file">Report (PDF)</label>
+      <label className="label" htmlFor="report-file">
+        Report (PDF)
+      </label>
       <input id="report-file" type="file" accept=".pdf,application/pdf" onChange={(e) => void upload(e.target.files?.[0])} />
-      <p className="hint" aria-live="polite">{message ?? (name ? `Current: ${name}` : 'No report uploaded yet.')}</p>
+      <p className="hint" aria-live="polite">
+        {message ?? (name ? `Current: ${name}` : 'No report uploaded yet.')}
+      </p>
     </div>
   );
 }

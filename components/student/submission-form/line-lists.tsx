@@ -12,22 +12,37 @@ import { parseLineList, formatLineListCsv, type LineListIssue } from '@/lib/line
 type Issues = { warnings: LineListIssue[]; errors: LineListIssue[] };
 type Proposal = { text: string; count: number; unassigned: number; problems: string[] };
 
-export function useLineLists(form: UseFormReturn<Draft>, species: { name: string }[], initialDraft: Draft, expectedRange?: { from: number; to: number }) {
+export function useLineLists(
+  form: UseFormReturn<Draft>,
+  species: { name: string }[],
+  initialDraft: Draft,
+  expectedRange?: { from: number; to: number },
+) {
   const { setValue, getValues } = form;
   const [issues, setIssues] = useState<Record<string, Issues>>({});
   const [proposals, setProposals] = useState<Record<string, Proposal | null>>({});
 
-  const readLines = useCallback((sp: string, text: string) => {
-    const parsed = parseLineList(text, { expected: expectedRange });
-    setIssues((m) => ({ ...m, [sp]: { warnings: parsed.warnings, errors: parsed.errors } }));
-    setValue(`species.${sp}.lines`, parsed.lines.map((l) => ({ branch: l.branch ?? null, J: l.J ?? null, wavenumber: l.wavenumber })), { shouldDirty: true });
-  }, [expectedRange, setValue]);
+  const readLines = useCallback(
+    (sp: string, text: string) => {
+      const parsed = parseLineList(text, { expected: expectedRange });
+      setIssues((m) => ({ ...m, [sp]: { warnings: parsed.warnings, errors: parsed.errors } }));
+      setValue(
+        `species.${sp}.lines`,
+        parsed.lines.map((l) => ({ branch: l.branch ?? null, J: l.J ?? null, wavenumber: l.wavenumber })),
+        { shouldDirty: true },
+      );
+    },
+    [expectedRange, setValue],
+  );
 
   /** Puts text into a list and reads it, as if the student had typed it. */
-  const putText = useCallback((sp: string, text: string) => {
-    setValue(`species.${sp}.lineText`, text, { shouldDirty: true });
-    readLines(sp, text);
-  }, [readLines, setValue]);
+  const putText = useCallback(
+    (sp: string, text: string) => {
+      setValue(`species.${sp}.lineText`, text, { shouldDirty: true });
+      readLines(sp, text);
+    },
+    [readLines, setValue],
+  );
 
   // The saved lists are read once, when the form opens (the props they come from never change).
   useEffect(() => {
@@ -43,10 +58,18 @@ export function useLineLists(form: UseFormReturn<Draft>, species: { name: string
     const lines = getValues(`species.${sp}.lines`) ?? [];
     // Loaded when asked for: the assignment brings the band fit and its statistics with it.
     const { assignPeaks } = await import('@/lib/grading/assign');
-    const r = assignPeaks(lines.map((l) => l.wavenumber), sp);
+    const r = assignPeaks(
+      lines.map((l) => l.wavenumber),
+      sp,
+    );
     setProposals((m) => ({
       ...m,
-      [sp]: { text: formatLineListCsv(r.assignments.map((a) => ({ branch: a.branch, J: a.J, wavenumber: a.wavenumber }))), count: r.assignments.length, unassigned: r.unassigned.length, problems: r.problems.map((p) => p.message) },
+      [sp]: {
+        text: formatLineListCsv(r.assignments.map((a) => ({ branch: a.branch, J: a.J, wavenumber: a.wavenumber }))),
+        count: r.assignments.length,
+        unassigned: r.unassigned.length,
+        problems: r.problems.map((p) => p.message),
+      },
     }));
   };
 
@@ -69,7 +92,9 @@ export function LineListField({ form, sp, display, lists }: { form: UseFormRetur
   const lines = form.watch(`species.${sp}.lines`) ?? [];
   return (
     <div>
-      <label className="label" htmlFor={`lines-${sp}`}>Line list for {display}</label>
+      <label className="label" htmlFor={`lines-${sp}`}>
+        Line list for {display}
+      </label>
       <textarea
         id={`lines-${sp}`}
         rows={8}
@@ -78,10 +103,13 @@ export function LineListField({ form, sp, display, lists }: { form: UseFormRetur
         {...form.register(`species.${sp}.lineText`, { onChange: (e) => lists.readLines(sp, e.target.value) })}
       />
       <p className="hint" id={`lines-${sp}-hint`}>
-        Paste from a spreadsheet (tab- or comma-separated, with or without a header): branch, J and wavenumber in cm⁻¹ per row, or a label such as P(3), or just the positions.
+        Paste from a spreadsheet (tab- or comma-separated, with or without a header): branch, J and wavenumber in cm⁻¹ per row, or a label
+        such as P(3), or just the positions.
       </p>
       <div className="mt-2 flex flex-wrap items-center gap-3">
-        <label className="btn-quiet cursor-pointer" htmlFor={`linefile-${sp}`}>Read a CSV file…</label>
+        <label className="btn-quiet cursor-pointer" htmlFor={`linefile-${sp}`}>
+          Read a CSV file…
+        </label>
         <input
           id={`linefile-${sp}`}
           type="file"
@@ -92,12 +120,24 @@ export function LineListField({ form, sp, display, lists }: { form: UseFormRetur
             if (f) lists.putText(sp, await f.text());
           }}
         />
-        <button type="button" className="btn-quiet" onClick={() => void lists.propose(sp)} disabled={lines.length === 0}>Propose assignment</button>
+        <button type="button" className="btn-quiet" onClick={() => void lists.propose(sp)} disabled={lines.length === 0}>
+          Propose assignment
+        </button>
       </div>
       <div id={`lines-${sp}-status`} aria-live="polite" className="mt-2 text-sm">
-        <p>{lines.length} line{lines.length === 1 ? '' : 's'} read, {lines.filter((l) => l.branch).length} assigned.</p>
-        {iss?.errors.map((x, i) => <p key={`e${i}`} className="error-text">{x.message}</p>)}
-        {iss?.warnings.map((x, i) => <p key={`w${i}`} className="text-ink-soft">Check: {x.message}</p>)}
+        <p>
+          {lines.length} line{lines.length === 1 ? '' : 's'} read, {lines.filter((l) => l.branch).length} assigned.
+        </p>
+        {iss?.errors.map((x, i) => (
+          <p key={`e${i}`} className="error-text">
+            {x.message}
+          </p>
+        ))}
+        {iss?.warnings.map((x, i) => (
+          <p key={`w${i}`} className="text-ink-soft">
+            Check: {x.message}
+          </p>
+        ))}
       </div>
       {prop && <ProposalBox proposal={prop} onUse={() => lists.accept(sp)} onDiscard={() => lists.discard(sp)} />}
     </div>
@@ -108,13 +148,23 @@ function ProposalBox({ proposal: prop, onUse, onDiscard }: { proposal: Proposal;
   return (
     <div className="mt-3 rounded border border-rule bg-paper-sunk p-3 text-sm" aria-live="polite">
       <p>
-        Proposed assignment: {prop.count} lines assigned{prop.unassigned ? `, ${prop.unassigned} left unassigned (perhaps the other isotopologue)` : ''}. Check it against your spectrum before you use it.
+        Proposed assignment: {prop.count} lines assigned
+        {prop.unassigned ? `, ${prop.unassigned} left unassigned (perhaps the other isotopologue)` : ''}. Check it against your spectrum
+        before you use it.
       </p>
-      {prop.problems.map((p, i) => <p key={i} className="error-text">{p}</p>)}
+      {prop.problems.map((p, i) => (
+        <p key={i} className="error-text">
+          {p}
+        </p>
+      ))}
       <pre className="num mt-2 max-h-40 overflow-auto">{prop.text}</pre>
       <div className="mt-2 flex gap-2">
-        <button type="button" className="btn" onClick={onUse} disabled={prop.count === 0}>Use this assignment</button>
-        <button type="button" className="btn-quiet" onClick={onDiscard}>Discard</button>
+        <button type="button" className="btn" onClick={onUse} disabled={prop.count === 0}>
+          Use this assignment
+        </button>
+        <button type="button" className="btn-quiet" onClick={onDiscard}>
+          Discard
+        </button>
       </div>
     </div>
   );

@@ -8,7 +8,13 @@ const html = (props: Parameters<typeof Field>[0]) => renderToStaticMarkup(create
 
 describe('Field', () => {
   it('ties the label, hint and error to the control', () => {
-    const out = html({ id: 'q-marks', label: 'Marks', hint: 'Whole or half marks', error: 'Must be positive', children: input({ className: 'field' }) });
+    const out = html({
+      id: 'q-marks',
+      label: 'Marks',
+      hint: 'Whole or half marks',
+      error: 'Must be positive',
+      children: input({ className: 'field' }),
+    });
     expect(out).toContain('<label for="q-marks" class="label">Marks</label>');
     expect(out).toContain('id="q-marks"');
     expect(out).toContain('aria-describedby="q-marks-hint q-marks-error"');

@@ -10,9 +10,19 @@ import { PlotFigure } from '@/components/plots/plot-figure';
 // Positions from lib/grading simulateLineList (published constants, see lib/grading/reference.ts).
 const lines = simulateLineList('H35Cl', { jMax: 5 });
 const spectrum = synthesizeSpectrum({ lines, from: 2600, to: 3100, step: 0.25, fwhm: 0.8, noise: 0.002, seed: 3 });
-const reported = [...lines.map((l) => ({ branch: l.branch, J: l.J, wavenumber: Math.round(l.wavenumber * 100) / 100 })), { wavenumber: 2886.0 }];
+const reported = [
+  ...lines.map((l) => ({ branch: l.branch, J: l.J, wavenumber: Math.round(l.wavenumber * 100) / 100 })),
+  { wavenumber: 2886.0 },
+];
 const peaks = pickPeaks(spectrum);
-const model = bandPlotModel({ spectrum, lines: reported, peaks, comparison: compareLinesToPeaks(reported, peaks), width: 800, height: 400 });
+const model = bandPlotModel({
+  spectrum,
+  lines: reported,
+  peaks,
+  comparison: compareLinesToPeaks(reported, peaks),
+  width: 800,
+  height: 400,
+});
 const html = renderToStaticMarkup(createElement(PlotFigure, { model, title: 'Spectrum <a> & b', idPrefix: 'spec 7' }));
 
 describe('PlotFigure', () => {
@@ -31,7 +41,8 @@ describe('PlotFigure', () => {
     expect(values).toEqual(model.markers.map((m) => m.value));
     expect(html.match(/marker-unmatched/g)?.length ?? 0).toBe(model.markers.filter((m) => m.fill === 'hollow').length);
     expect(model.markers.some((m) => m.fill === 'hollow')).toBe(true); // the invented line at 2886.0 matches no peak
-    for (const m of model.markers) expect(html).toContain(`<title>${m.note.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;')}</title>`);
+    for (const m of model.markers)
+      expect(html).toContain(`<title>${m.note.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;')}</title>`);
   });
 
   it('draws the curve through the model’s points and every tick label', () => {
@@ -41,7 +52,12 @@ describe('PlotFigure', () => {
   });
 
   it('draws a residual plot’s zero line and legend', () => {
-    const res = residualPlotModel([{ m: -2, residual: 0.01 }, { m: -1, residual: -0.02 }, { m: 1, residual: 0.015 }, { m: 2, residual: -0.005 }]);
+    const res = residualPlotModel([
+      { m: -2, residual: 0.01 },
+      { m: -1, residual: -0.02 },
+      { m: 1, residual: 0.015 },
+      { m: 2, residual: -0.005 },
+    ]);
     const out = renderToStaticMarkup(createElement(PlotFigure, { model: res, title: 'Residuals', idPrefix: 'res-0' }));
     expect(out).toContain('class="zero-line"');
     expect(out).toContain('oscillab-plot-residual');

@@ -17,10 +17,15 @@ function check(peaks: number[], truth: Map<number, string>, species: string) {
 }
 
 function lines(k: Constants, n: number, drop: string[] = [], offset = 0): Line[] {
-  return fundamentalLines(k, n, n).filter((l) => !drop.includes(label(l))).map((l) => ({ ...l, wavenumber: l.wavenumber + offset }));
+  return fundamentalLines(k, n, n)
+    .filter((l) => !drop.includes(label(l)))
+    .map((l) => ({ ...l, wavenumber: l.wavenumber + offset }));
 }
 
-const H37Cl = isotopologue(PUBLISHED.H35Cl, [['H', 1], ['Cl', 37]]);
+const H37Cl = isotopologue(PUBLISHED.H35Cl, [
+  ['H', 1],
+  ['Cl', 37],
+]);
 
 describe('assignPeaks on a clean peak list', () => {
   it.each([
@@ -33,7 +38,11 @@ describe('assignPeaks on a clean peak list', () => {
       for (const offset of [0, 17.5, -20]) {
         const own = lines(k, n, drop, offset);
         const truth = new Map(own.map((l) => [l.wavenumber, label(l)]));
-        const { r, wrong, right } = check(own.map((l) => l.wavenumber), truth, species);
+        const { r, wrong, right } = check(
+          own.map((l) => l.wavenumber),
+          truth,
+          species,
+        );
         expect(r.ok, `${species} without ${drop.join(', ')} at ${offset}`).toBe(true);
         expect(wrong, `${species} without ${drop.join(', ')} at ${offset}`).toEqual([]);
         expect(right).toBe(own.length);
@@ -47,7 +56,11 @@ describe('assignPeaks on a clean peak list', () => {
     const main = lines(PUBLISHED.H35Cl, 10, ['P(1)', 'R(0)'], 6);
     const partner = lines(H37Cl, 10, [], 6).filter((l) => l.J < 8); // the weak ³⁷Cl lines at the edges not picked
     const truth = new Map(main.map((l) => [l.wavenumber, label(l)]));
-    const { r, wrong, right } = check([...main, ...partner].map((l) => l.wavenumber), truth, 'H35Cl');
+    const { r, wrong, right } = check(
+      [...main, ...partner].map((l) => l.wavenumber),
+      truth,
+      'H35Cl',
+    );
     expect(wrong).toEqual([]);
     expect(right).toBe(main.length);
     expect(r.unassigned.filter((u) => u.likelyIsotopologue === 'H37Cl')).toHaveLength(partner.length);

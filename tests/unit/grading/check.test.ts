@@ -1,5 +1,13 @@
 import { describe, expect, it } from 'vitest';
-import { checkSubmission, simulateLineList, assignPeaks, QUANTITY_KEYS, forceConstantFromBand, parseSpecies, type SubmissionInput } from '@/lib/grading';
+import {
+  checkSubmission,
+  simulateLineList,
+  assignPeaks,
+  QUANTITY_KEYS,
+  forceConstantFromBand,
+  parseSpecies,
+  type SubmissionInput,
+} from '@/lib/grading';
 
 // Band origin of H³⁵Cl 2885.98 cm⁻¹ (reference-diatomics.md, from memory).
 const base = (): SubmissionInput => ({
@@ -15,7 +23,22 @@ describe('checkSubmission contract', () => {
     expect(r.problems).toEqual([]);
     expect(r.quantities.map((q) => q.basis)).toEqual(['consistency', 'accuracy']);
     for (const q of r.quantities) {
-      for (const f of ['key', 'basis', 'reportedSI', 'expectedSI', 'unitSI', 'deviation', 'relativeDeviation', 'verdict', 'diagnoses', 'notes', 'reportedText', 'reportedDisplay', 'expectedDisplay']) expect(q).toHaveProperty(f);
+      for (const f of [
+        'key',
+        'basis',
+        'reportedSI',
+        'expectedSI',
+        'unitSI',
+        'deviation',
+        'relativeDeviation',
+        'verdict',
+        'diagnoses',
+        'notes',
+        'reportedText',
+        'reportedDisplay',
+        'expectedDisplay',
+      ])
+        expect(q).toHaveProperty(f);
       expect(q.verdict).toBe('within');
       expect(q.unitSI).toBe('N m⁻¹');
       expect(q.reportedText).toBe('480.7 N/m');
@@ -40,7 +63,10 @@ describe('checkSubmission contract', () => {
 
   it('notes missing uncertainty and spurious significant figures', () => {
     const input = base();
-    input.reported = { forceConstant: { value: '480.70910', unit: 'N/m', uncertainty: 0.4 }, bandCentre: { value: '2885.98', unit: 'cm-1' } };
+    input.reported = {
+      forceConstant: { value: '480.70910', unit: 'N/m', uncertainty: 0.4 },
+      bandCentre: { value: '2885.98', unit: 'cm-1' },
+    };
     const r = checkSubmission(input);
     const k = r.quantities.find((q) => q.key === 'forceConstant')!;
     expect(k.notes.map((n) => n.code)).toContain('too-many-significant-figures');
@@ -87,7 +113,12 @@ describe('garbage in → problems, never exceptions', () => {
     { species: 'H35Cl', measured: { bandCentre: { value: -5, unit: 'cm-1' } }, reported: {}, tolerances: {} },
     { species: 'H35Cl', measured: { lines: 'not a list' }, reported: {}, tolerances: {} },
     { species: 'H35Cl', measured: { lines: [{ branch: 'P', J: 0, wavenumber: 2886 }] }, reported: {}, tolerances: {} },
-    { species: 'H35Cl', measured: { overtone: { value: 9000, unit: 'cm-1' }, bandCentre: { value: 2886, unit: 'cm-1' } }, reported: {}, tolerances: {} },
+    {
+      species: 'H35Cl',
+      measured: { overtone: { value: 9000, unit: 'cm-1' }, bandCentre: { value: 2886, unit: 'cm-1' } },
+      reported: {},
+      tolerances: {},
+    },
   ];
   it.each(garbage.map((g, i) => [i, g]))('case %i', (_i, g) => {
     const r = checkSubmission(g as SubmissionInput);
@@ -108,26 +139,67 @@ describe('garbage in → problems, never exceptions', () => {
     let seed = 12345;
     const rnd = () => (seed = (seed * 16807) % 2147483647) / 2147483647;
     const species = ['H35Cl', 'D35Cl', 'H37Cl', 'H79Br', '12C16O', 'H19F', '14N2', '13C16O'];
-    const units: Record<string, string[]> = { wavenumber: ['cm-1', 'm-1', '/cm', 'cm⁻¹'], mass: ['u', 'kg', 'g/mol', 'Da'], forceConstant: ['N/m', 'mdyn/Å', 'dyn/cm'], length: ['Å', 'pm', 'nm'], energy: ['cm-1', 'eV', 'kJ/mol'], ratio: [''] };
-    const dims: Record<string, string> = { bandCentre: 'wavenumber', reducedMass: 'mass', forceConstant: 'forceConstant', forceConstantE: 'forceConstant', B0: 'wavenumber', B1: 'wavenumber', Be: 'wavenumber', alphaE: 'wavenumber', D: 'wavenumber', re: 'length', r0: 'length', omegaE: 'wavenumber', omegaExe: 'wavenumber', zeroPointEnergy: 'energy', dissociationEnergy: 'energy', dissociationEnergy0: 'energy', isotopeShift: 'wavenumber', isotopeRatio: 'ratio' };
+    const units: Record<string, string[]> = {
+      wavenumber: ['cm-1', 'm-1', '/cm', 'cm⁻¹'],
+      mass: ['u', 'kg', 'g/mol', 'Da'],
+      forceConstant: ['N/m', 'mdyn/Å', 'dyn/cm'],
+      length: ['Å', 'pm', 'nm'],
+      energy: ['cm-1', 'eV', 'kJ/mol'],
+      ratio: [''],
+    };
+    const dims: Record<string, string> = {
+      bandCentre: 'wavenumber',
+      reducedMass: 'mass',
+      forceConstant: 'forceConstant',
+      forceConstantE: 'forceConstant',
+      B0: 'wavenumber',
+      B1: 'wavenumber',
+      Be: 'wavenumber',
+      alphaE: 'wavenumber',
+      D: 'wavenumber',
+      re: 'length',
+      r0: 'length',
+      omegaE: 'wavenumber',
+      omegaExe: 'wavenumber',
+      zeroPointEnergy: 'energy',
+      dissociationEnergy: 'energy',
+      dissociationEnergy0: 'energy',
+      isotopeShift: 'wavenumber',
+      isotopeRatio: 'ratio',
+    };
     for (let t = 0; t < 200; t++) {
       const sp = species[Math.floor(rnd() * species.length)];
-      const lines = simulateLineList(sp, { jMax: 3 + Math.floor(rnd() * 15) }).map((l) => ({ branch: l.branch, J: l.J, wavenumber: l.wavenumber + (rnd() - 0.5) * 0.2 }));
+      const lines = simulateLineList(sp, { jMax: 3 + Math.floor(rnd() * 15) }).map((l) => ({
+        branch: l.branch,
+        J: l.J,
+        wavenumber: l.wavenumber + (rnd() - 0.5) * 0.2,
+      }));
       const reported: Record<string, { value: string; unit: string }> = {};
       for (const k of QUANTITY_KEYS) {
         if (rnd() < 0.5) continue;
         const us = units[dims[k]];
-        reported[k] = { value: (rnd() * 10 ** (rnd() * 8 - 4)).toPrecision(1 + Math.floor(rnd() * 6)), unit: us[Math.floor(rnd() * us.length)] };
+        reported[k] = {
+          value: (rnd() * 10 ** (rnd() * 8 - 4)).toPrecision(1 + Math.floor(rnd() * 6)),
+          unit: us[Math.floor(rnd() * us.length)],
+        };
       }
       const r = checkSubmission({
         species: sp,
-        measured: { lines: rnd() < 0.8 ? lines : undefined, bandCentre: rnd() < 0.5 ? { value: String(lines[0].wavenumber + 40), unit: 'cm-1' } : undefined },
+        measured: {
+          lines: rnd() < 0.8 ? lines : undefined,
+          bandCentre: rnd() < 0.5 ? { value: String(lines[0].wavenumber + 40), unit: 'cm-1' } : undefined,
+        },
         reported,
         tolerances: { forceConstant: { relative: rnd() * 0.05 }, B0: { sigma: 2 }, re: { absolute: 0.002, unit: 'Å' } },
         centrifugal: rnd() < 0.5,
       });
       for (const q of r.quantities) {
-        expect(Number.isFinite(q.reportedSI) && Number.isFinite(q.expectedSI) && Number.isFinite(q.deviation) && Number.isFinite(q.relativeDeviation)).toBe(true);
+        expect(
+          Number.isFinite(q.reportedSI) &&
+            Number.isFinite(q.expectedSI) &&
+            Number.isFinite(q.deviation) &&
+            Number.isFinite(q.relativeDeviation),
+        ).toBe(true);
         expect(['within', 'partial', 'outside', 'not-checked']).toContain(q.verdict);
         if (q.verdict !== 'outside') expect(q.diagnoses).toEqual([]);
       }
@@ -139,7 +211,10 @@ describe('automatic assignment and simulation', () => {
   it('assigns an unlabelled H³⁵Cl peak list with H³⁷Cl doublets and a 1.5 cm⁻¹ calibration offset', () => {
     const sim = simulateLineList('H35Cl', { jMax: 10, isotopeChlorine: true, bandOrigin: 2885.98 + 1.5 });
     const shuffled = [...sim].sort(() => 0.5 - Math.random());
-    const a = assignPeaks(shuffled.map((l) => l.wavenumber), 'H35Cl');
+    const a = assignPeaks(
+      shuffled.map((l) => l.wavenumber),
+      'H35Cl',
+    );
     expect(a.ok).toBe(true);
     const main = sim.filter((l) => l.species === 'H35Cl');
     expect(a.assignments).toHaveLength(main.length);
@@ -152,9 +227,17 @@ describe('automatic assignment and simulation', () => {
     expect(a.bandCentreEstimate!).toBeCloseTo(2887.48, 0);
   });
 
-  it.each([['12C16O', 30], ['D35Cl', 16], ['H79Br', 12], ['H19F', 8]] as const)('assigns %s (J ≤ %i) with every 7th line missing', (sp, jMax) => {
+  it.each([
+    ['12C16O', 30],
+    ['D35Cl', 16],
+    ['H79Br', 12],
+    ['H19F', 8],
+  ] as const)('assigns %s (J ≤ %i) with every 7th line missing', (sp, jMax) => {
     const sim = simulateLineList(sp, { jMax }).filter((_, i) => i % 7 !== 3);
-    const a = assignPeaks(sim.map((l) => l.wavenumber), sp);
+    const a = assignPeaks(
+      sim.map((l) => l.wavenumber),
+      sp,
+    );
     for (const l of sim) {
       const got = a.assignments.find((x) => Math.abs(x.wavenumber - l.wavenumber) < 1e-9);
       expect(got && `${got.branch}(${got.J})`).toBe(`${l.branch}(${l.J})`);

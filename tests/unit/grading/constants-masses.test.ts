@@ -1,7 +1,18 @@
 import { describe, expect, it } from 'vitest';
 import * as math from 'mathjs';
 import { elementsAndIsotopesObject } from 'chemical-elements';
-import { PHYSICAL_CONSTANTS, SPEED_OF_LIGHT, PLANCK_CONSTANT, BOLTZMANN_CONSTANT, AVOGADRO_CONSTANT, ATOMIC_MASS_CONSTANT, ELEMENTARY_CHARGE, isotope, parseSpecies, listKnownSpecies } from '@/lib/grading';
+import {
+  PHYSICAL_CONSTANTS,
+  SPEED_OF_LIGHT,
+  PLANCK_CONSTANT,
+  BOLTZMANN_CONSTANT,
+  AVOGADRO_CONSTANT,
+  ATOMIC_MASS_CONSTANT,
+  ELEMENTARY_CHARGE,
+  isotope,
+  parseSpecies,
+  listKnownSpecies,
+} from '@/lib/grading';
 
 describe('physical constants (CODATA 2018, cross-checked against mathjs)', () => {
   it.each([
@@ -95,7 +106,14 @@ describe('species and reduced mass', () => {
 
   it('rejects negative or non-finite custom masses', () => {
     for (const massU of [-1, 0, Number.NaN, Number.POSITIVE_INFINITY]) {
-      expect(parseSpecies({ atoms: [{ symbol: 'H', massU }, { symbol: 'Cl', massNumber: 35 }] }).ok).toBe(false);
+      expect(
+        parseSpecies({
+          atoms: [
+            { symbol: 'H', massU },
+            { symbol: 'Cl', massNumber: 35 },
+          ],
+        }).ok,
+      ).toBe(false);
     }
   });
 });

@@ -1,6 +1,16 @@
 import { describe, expect, it } from 'vitest';
 import { PolynomialRegression } from 'ml-regression-polynomial';
-import { bondLengthFromB, parseSpecies, REFERENCE_TABLE, fitBand, simulateLineList, linesFromConstants, referenceEntry, combinationDifferences, type Line } from '@/lib/grading';
+import {
+  bondLengthFromB,
+  parseSpecies,
+  REFERENCE_TABLE,
+  fitBand,
+  simulateLineList,
+  linesFromConstants,
+  referenceEntry,
+  combinationDifferences,
+  type Line,
+} from '@/lib/grading';
 
 const sp = (f: string) => {
   const p = parseSpecies(f);
@@ -24,28 +34,31 @@ describe('reference table self-consistency (Huber & Herzberg via NIST WebBook, f
 });
 
 describe('band fit recovers constants from generated line lists (Huber & Herzberg via NIST WebBook, from memory)', () => {
-  it.each(['H35Cl', 'D35Cl', 'H79Br', 'H19F', '12C16O', 'H127I', 'H37Cl'])('%s: ν̃₀, B₀, B₁, αₑ, Bₑ, D to better than 1e-4 cm⁻¹', (formula) => {
-    const e = referenceEntry(formula)!;
-    const k = e.constants;
-    const jMax = formula === '12C16O' ? 30 : 12;
-    const lines = simulateLineList(formula, { jMax, withCentrifugal: true });
-    const f = fitBand(lines, { centrifugal: true, species: formula });
-    if (!f.ok) throw new Error(JSON.stringify(f.problems));
-    const B0 = k.Be - k.alphaE / 2;
-    const B1 = k.Be - (3 * k.alphaE) / 2;
-    const nu0 = e.bandOrigin?.value ?? (k.omegaE - 2 * k.omegaExe + 3.25 * (k.omegaEye ?? 0));
-    expect(Math.abs(f.nu0.value - nu0)).toBeLessThan(1e-4);
-    expect(Math.abs(f.B0.value - B0)).toBeLessThan(1e-4);
-    expect(Math.abs(f.B1.value - B1)).toBeLessThan(1e-4);
-    expect(Math.abs(f.alphaE.value - k.alphaE)).toBeLessThan(1e-4);
-    expect(Math.abs(f.Be.value - k.Be)).toBeLessThan(1e-4);
-    expect(Math.abs(f.D!.value - k.De!)).toBeLessThan(1e-8);
-    // rₑ follows from the fitted Bₑ exactly (the table's own rₑ is checked separately below)
-    expect(Math.abs(f.re!.value - bondLengthFromB(k.Be * 100, sp(formula).reducedMassKg) * 1e10)).toBeLessThan(1e-5);
-    expect(f.rms).toBeLessThan(1e-6);
-    expect(Math.abs(f.combinationDifferences.B0!.value - B0)).toBeLessThan(1e-4);
-    expect(Math.abs(f.combinationDifferences.B1!.value - B1)).toBeLessThan(1e-4);
-  });
+  it.each(['H35Cl', 'D35Cl', 'H79Br', 'H19F', '12C16O', 'H127I', 'H37Cl'])(
+    '%s: ν̃₀, B₀, B₁, αₑ, Bₑ, D to better than 1e-4 cm⁻¹',
+    (formula) => {
+      const e = referenceEntry(formula)!;
+      const k = e.constants;
+      const jMax = formula === '12C16O' ? 30 : 12;
+      const lines = simulateLineList(formula, { jMax, withCentrifugal: true });
+      const f = fitBand(lines, { centrifugal: true, species: formula });
+      if (!f.ok) throw new Error(JSON.stringify(f.problems));
+      const B0 = k.Be - k.alphaE / 2;
+      const B1 = k.Be - (3 * k.alphaE) / 2;
+      const nu0 = e.bandOrigin?.value ?? k.omegaE - 2 * k.omegaExe + 3.25 * (k.omegaEye ?? 0);
+      expect(Math.abs(f.nu0.value - nu0)).toBeLessThan(1e-4);
+      expect(Math.abs(f.B0.value - B0)).toBeLessThan(1e-4);
+      expect(Math.abs(f.B1.value - B1)).toBeLessThan(1e-4);
+      expect(Math.abs(f.alphaE.value - k.alphaE)).toBeLessThan(1e-4);
+      expect(Math.abs(f.Be.value - k.Be)).toBeLessThan(1e-4);
+      expect(Math.abs(f.D!.value - k.De!)).toBeLessThan(1e-8);
+      // rₑ follows from the fitted Bₑ exactly (the table's own rₑ is checked separately below)
+      expect(Math.abs(f.re!.value - bondLengthFromB(k.Be * 100, sp(formula).reducedMassKg) * 1e10)).toBeLessThan(1e-5);
+      expect(f.rms).toBeLessThan(1e-6);
+      expect(Math.abs(f.combinationDifferences.B0!.value - B0)).toBeLessThan(1e-4);
+      expect(Math.abs(f.combinationDifferences.B1!.value - B1)).toBeLessThan(1e-4);
+    },
+  );
 
   it('agrees with ml-regression-polynomial on a noisy list', () => {
     let seed = 7;
@@ -54,7 +67,11 @@ describe('band fit recovers constants from generated line lists (Huber & Herzber
     const ours = fitBand(lines, { centrifugal: true });
     if (!ours.ok) throw new Error('fit failed');
     const m = lines.map((l) => (l.branch === 'R' ? l.J + 1 : -l.J));
-    const theirs = new PolynomialRegression(m, lines.map((l) => l.wavenumber), 3);
+    const theirs = new PolynomialRegression(
+      m,
+      lines.map((l) => l.wavenumber),
+      3,
+    );
     ours.coefficients.forEach((cf, i) => expect(cf).toBeCloseTo(theirs.coefficients[i], 6));
   });
 
@@ -87,10 +104,41 @@ describe('band fit recovers constants from generated line lists (Huber & Herzber
   });
 
   it.each([
-    ['too few lines', [{ branch: 'R', J: 0, wavenumber: 2906 }, { branch: 'P', J: 1, wavenumber: 2865 }], /only 2 lines/],
-    ['duplicate', [{ branch: 'R', J: 0, wavenumber: 2906 }, { branch: 'R', J: 0, wavenumber: 2907 }, { branch: 'P', J: 1, wavenumber: 2865 }], /Line 2 \(R\(0\)\) repeats/],
-    ['negative J', [{ branch: 'R', J: -1, wavenumber: 2906 }, { branch: 'R', J: 1, wavenumber: 2925 }, { branch: 'P', J: 1, wavenumber: 2865 }], /Line 1 \(R\(-1\)\): J cannot be negative/],
-    ['P(0)', [{ branch: 'P', J: 0, wavenumber: 2886 }, { branch: 'R', J: 1, wavenumber: 2925 }, { branch: 'P', J: 1, wavenumber: 2865 }], /Line 1: P\(0\) does not exist/],
+    [
+      'too few lines',
+      [
+        { branch: 'R', J: 0, wavenumber: 2906 },
+        { branch: 'P', J: 1, wavenumber: 2865 },
+      ],
+      /only 2 lines/,
+    ],
+    [
+      'duplicate',
+      [
+        { branch: 'R', J: 0, wavenumber: 2906 },
+        { branch: 'R', J: 0, wavenumber: 2907 },
+        { branch: 'P', J: 1, wavenumber: 2865 },
+      ],
+      /Line 2 \(R\(0\)\) repeats/,
+    ],
+    [
+      'negative J',
+      [
+        { branch: 'R', J: -1, wavenumber: 2906 },
+        { branch: 'R', J: 1, wavenumber: 2925 },
+        { branch: 'P', J: 1, wavenumber: 2865 },
+      ],
+      /Line 1 \(R\(-1\)\): J cannot be negative/,
+    ],
+    [
+      'P(0)',
+      [
+        { branch: 'P', J: 0, wavenumber: 2886 },
+        { branch: 'R', J: 1, wavenumber: 2925 },
+        { branch: 'P', J: 1, wavenumber: 2865 },
+      ],
+      /Line 1: P\(0\) does not exist/,
+    ],
     ['bad branch', [{ branch: 'Q', J: 1, wavenumber: 2886 }], /branch must be P or R/],
     ['NaN wavenumber', [{ branch: 'R', J: 1, wavenumber: Number.NaN }], /positive number/],
   ])('rejects a list with %s, naming the line', (_n, lines, msg) => {

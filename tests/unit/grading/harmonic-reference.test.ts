@@ -1,5 +1,15 @@
 import { describe, expect, it } from 'vitest';
-import { forceConstantFromBand, bandCentreFromForceConstant, predictIsotopologueBand, referenceValues, referenceEntry, listKnownSpecies, parseSpecies, REFERENCE_TABLE, anharmonicFromOvertone } from '@/lib/grading';
+import {
+  forceConstantFromBand,
+  bandCentreFromForceConstant,
+  predictIsotopologueBand,
+  referenceValues,
+  referenceEntry,
+  listKnownSpecies,
+  parseSpecies,
+  REFERENCE_TABLE,
+  anharmonicFromOvertone,
+} from '@/lib/grading';
 
 const sp = (f: string) => {
   const p = parseSpecies(f);
@@ -83,7 +93,9 @@ describe('reference values', () => {
     // ωₑ scales as μ^−½
     const ratio = Math.sqrt(sp('12C16O').reducedMassU / sp('13C16O').reducedMassU);
     expect(r.omegaE!.valueSI / 100 / 2169.81358).toBeCloseTo(ratio, 12);
-    const derived = listKnownSpecies().filter((s) => s.derived).map((s) => s.formula);
+    const derived = listKnownSpecies()
+      .filter((s) => s.derived)
+      .map((s) => s.formula);
     expect(derived).toEqual(expect.arrayContaining(['H37Cl', 'D37Cl', 'H81Br', '13C16O']));
   });
 

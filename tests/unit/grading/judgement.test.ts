@@ -38,8 +38,14 @@ const noteCodes = (q: QuantityCheck) => q.notes.map((n) => n.code);
 const cm = (x: number, n = 6) => ({ value: typed(x, n), unit: 'cm-1' });
 
 // Computed here by the isotope relations from the H³⁵Cl and D³⁵Cl rows (AME2020 masses).
-const H37Cl = isotopologue(PUBLISHED.H35Cl, [['H', 1], ['Cl', 37]]);
-const D37Cl = isotopologue(PUBLISHED.D35Cl, [['D', 2], ['Cl', 37]]);
+const H37Cl = isotopologue(PUBLISHED.H35Cl, [
+  ['H', 1],
+  ['Cl', 37],
+]);
+const D37Cl = isotopologue(PUBLISHED.D35Cl, [
+  ['D', 2],
+  ['Cl', 37],
+]);
 
 const CASES: { name: string; formula: string; k: Constants; pMax: number; rMax: number }[] = [
   { name: 'H³⁵Cl, P(8)…R(7)', formula: 'H35Cl', k: PUBLISHED.H35Cl, pMax: 8, rMax: 7 },
@@ -76,7 +82,9 @@ describe('the fit model is chosen by the data (lines from Huber & Herzberg const
       expect(r.problems).toEqual([]);
       for (const key of ['bandCentre', 'B0', 'B1', 'Be', 'alphaE', 're', 'r0', ...(withD ? ['D'] : [])]) {
         const q = entry(r, key, 'consistency');
-        expect(q.verdict, `${c.formula} ${key} (D ${withD ? '' : 'not '}reported): ${q.reportedDisplay} vs ${q.expectedDisplay}`).toBe('within');
+        expect(q.verdict, `${c.formula} ${key} (D ${withD ? '' : 'not '}reported): ${q.reportedDisplay} vs ${q.expectedDisplay}`).toBe(
+          'within',
+        );
       }
       expect(r.derived.fit?.model).toBe('cubic');
       // Exact lines: the cubic model fits to rounding; no arc is left in the residuals.
@@ -104,7 +112,13 @@ describe('the fit model is chosen by the data (lines from Huber & Herzberg const
     const r = checkSubmission({
       species: c.formula,
       measured: { lines },
-      reported: { B0: cm(theirs.B0), B1: cm(theirs.B1), Be: cm(theirs.Be), alphaE: cm(theirs.alphaE, 5), re: { value: typed(bondLengthAngstrom(theirs.Be, mu)), unit: 'Å' } },
+      reported: {
+        B0: cm(theirs.B0),
+        B1: cm(theirs.B1),
+        Be: cm(theirs.Be),
+        alphaE: cm(theirs.alphaE, 5),
+        re: { value: typed(bondLengthAngstrom(theirs.Be, mu)), unit: 'Å' },
+      },
       tolerances: {},
       requireUncertainty: false,
     });
@@ -115,7 +129,13 @@ describe('the fit model is chosen by the data (lines from Huber & Herzberg const
   it('lines made without D: the quadratic model is kept, and both analyses are consistent', () => {
     const c = CASES[0];
     const lines = fundamentalLines(c.k, 5, 5, false);
-    const r = checkSubmission({ species: c.formula, measured: { lines }, reported: { B0: cm(Bv(c.k, 0)) }, tolerances: {}, requireUncertainty: false });
+    const r = checkSubmission({
+      species: c.formula,
+      measured: { lines },
+      reported: { B0: cm(Bv(c.k, 0)) },
+      tolerances: {},
+      requireUncertainty: false,
+    });
     expect(r.derived.fit?.model).toBe('quadratic');
     expect(entry(r, 'B0', 'consistency').verdict).toBe('within');
   });
@@ -153,13 +173,23 @@ describe('consistency bands by kind: arithmetic to the digits typed, no flat per
     expect(codes(q)).toEqual(['average-atomic-mass-used']);
     // …and carried into k, the slip is named there too.
     const k = forceConstant(nu0, muAvg);
-    const rk = checkSubmission({ species: 'H35Cl', measured: { bandCentre: cm(nu0) }, reported: { forceConstant: { value: typed(k, 6), unit: 'N/m' } }, tolerances: {} });
+    const rk = checkSubmission({
+      species: 'H35Cl',
+      measured: { bandCentre: cm(nu0) },
+      reported: { forceConstant: { value: typed(k, 6), unit: 'N/m' } },
+      tolerances: {},
+    });
     expect(codes(entry(rk, 'forceConstant', 'consistency'))).toEqual(['average-atomic-mass-used']);
   });
 
   it('the masses of D³⁵Cl for H³⁵Cl in k are named wrong-isotopologue', () => {
     const muD = reducedMassU(isotopicMass('H', 2), isotopicMass('Cl', 35));
-    const r = checkSubmission({ species: 'H35Cl', measured: { bandCentre: cm(nu0) }, reported: { forceConstant: { value: typed(forceConstant(nu0, muD), 5), unit: 'N/m' } }, tolerances: {} });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      measured: { bandCentre: cm(nu0) },
+      reported: { forceConstant: { value: typed(forceConstant(nu0, muD), 5), unit: 'N/m' } },
+      tolerances: {},
+    });
     const q = entry(r, 'forceConstant', 'consistency');
     expect(q.verdict).toBe('outside');
     expect(codes(q)).toContain('wrong-isotopologue');
@@ -171,7 +201,12 @@ describe('consistency bands by kind: arithmetic to the digits typed, no flat per
     const B0 = Bv(co, 0);
     const r0 = bondLengthAngstrom(B0, mu);
     expect(r0 / bondLengthAngstrom(co.Be, mu) - 1).toBeCloseTo(0.0023, 4);
-    const r = checkSubmission({ species: '12C16O', reported: { Be: cm(co.Be, 7), B0: cm(B0, 7), re: { value: typed(r0, 6), unit: 'Å' } }, tolerances: {}, requireUncertainty: false });
+    const r = checkSubmission({
+      species: '12C16O',
+      reported: { Be: cm(co.Be, 7), B0: cm(B0, 7), re: { value: typed(r0, 6), unit: 'Å' } },
+      tolerances: {},
+      requireUncertainty: false,
+    });
     const q = entry(r, 're', 'consistency');
     expect(q.verdict).toBe('outside');
     expect(codes(q)).toContain('r0-reported-as-re');
@@ -181,7 +216,11 @@ describe('consistency bands by kind: arithmetic to the digits typed, no flat per
     const muNumbers = reducedMassU(1, 35);
     const re = bondLengthAngstrom(hcl.Be, muNumbers);
     expect(re / bondLengthAngstrom(hcl.Be, mu35) - 1).toBeCloseTo(0.0038, 3);
-    const r = checkSubmission({ species: 'H35Cl', reported: { Be: cm(hcl.Be), re: { value: typed(re, 6), unit: 'Å', uncertainty: 0.0005 } }, tolerances: {} });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      reported: { Be: cm(hcl.Be), re: { value: typed(re, 6), unit: 'Å', uncertainty: 0.0005 } },
+      tolerances: {},
+    });
     const q = entry(r, 're', 'consistency');
     expect(q.verdict).toBe('outside');
     expect(codes(q)).toContain('mass-numbers-used');
@@ -190,7 +229,12 @@ describe('consistency bands by kind: arithmetic to the digits typed, no flat per
   it('k = "500" ± 0.1 N m⁻¹ for 480.7 is judged at ±0.1, not ±50 from the trailing zeros, and is not called right', () => {
     const k = forceConstant(nu0, mu35);
     expect(k).toBeCloseTo(480.7, 1); // domain brief: k ≈ 481 N m⁻¹ from the fundamental
-    const r = checkSubmission({ species: 'H35Cl', measured: { bandCentre: cm(nu0) }, reported: { forceConstant: { value: '500', unit: 'N/m', uncertainty: 0.1 } }, tolerances: { forceConstant: { relative: 0.05 } } });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      measured: { bandCentre: cm(nu0) },
+      reported: { forceConstant: { value: '500', unit: 'N/m', uncertainty: 0.1 } },
+      tolerances: { forceConstant: { relative: 0.05 } },
+    });
     const cons = entry(r, 'forceConstant', 'consistency');
     expect(cons.verdict).toBe('outside');
     expect(cons.halfWidthSI).toBeLessThanOrEqual(0.1 + 1e-9);
@@ -199,22 +243,47 @@ describe('consistency bands by kind: arithmetic to the digits typed, no flat per
 
   it('k typed to four figures from ν̃₀ typed to six is within; one unit off in the fourth figure is outside', () => {
     const k = forceConstant(nu0, mu35);
-    const right = checkSubmission({ species: 'H35Cl', measured: { bandCentre: cm(nu0) }, reported: { forceConstant: { value: typed(k, 4), unit: 'N/m' } }, tolerances: {} });
+    const right = checkSubmission({
+      species: 'H35Cl',
+      measured: { bandCentre: cm(nu0) },
+      reported: { forceConstant: { value: typed(k, 4), unit: 'N/m' } },
+      tolerances: {},
+    });
     expect(entry(right, 'forceConstant', 'consistency').verdict).toBe('within');
-    const off = checkSubmission({ species: 'H35Cl', measured: { bandCentre: cm(nu0) }, reported: { forceConstant: { value: (Number(typed(k, 4)) + 0.2).toFixed(1), unit: 'N/m' } }, tolerances: {} });
+    const off = checkSubmission({
+      species: 'H35Cl',
+      measured: { bandCentre: cm(nu0) },
+      reported: { forceConstant: { value: (Number(typed(k, 4)) + 0.2).toFixed(1), unit: 'N/m' } },
+      tolerances: {},
+    });
     expect(entry(off, 'forceConstant', 'consistency').verdict).toBe('outside');
   });
 
   it('rounding in the band centre the student typed carries into k: 2886 cm⁻¹ typed, k from it to five figures is within', () => {
     const k = forceConstant(2886, mu35);
-    const r = checkSubmission({ species: 'H35Cl', measured: { bandCentre: { value: '2886', unit: 'cm-1' } }, reported: { forceConstant: { value: typed(k, 5), unit: 'N/m' } }, tolerances: {} });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      measured: { bandCentre: { value: '2886', unit: 'cm-1' } },
+      reported: { forceConstant: { value: typed(k, 5), unit: 'N/m' } },
+      tolerances: {},
+    });
     expect(entry(r, 'forceConstant', 'consistency').verdict).toBe('within');
   });
 });
 
 describe('significant figures by the usual convention (common practice)', () => {
   const run = (value: string, uncertainty: number) =>
-    noteCodes(entry(checkSubmission({ species: 'H35Cl', reported: { forceConstant: { value, unit: 'N/m', uncertainty } }, tolerances: { forceConstant: { relative: 0.1 } } }), 'forceConstant', 'accuracy'));
+    noteCodes(
+      entry(
+        checkSubmission({
+          species: 'H35Cl',
+          reported: { forceConstant: { value, unit: 'N/m', uncertainty } },
+          tolerances: { forceConstant: { relative: 0.1 } },
+        }),
+        'forceConstant',
+        'accuracy',
+      ),
+    );
   it.each([
     ['480', 5, []],
     ['480.1', 0.5, []],
@@ -231,7 +300,12 @@ describe('significant figures by the usual convention (common practice)', () => 
 describe('advice by kind and like-for-like references', () => {
   it('μ is not sent to the measurement: an instructor value that differs points to the masses', () => {
     const mu = speciesMassU(PUBLISHED.H35Cl);
-    const r = checkSubmission({ species: 'H35Cl', reported: { reducedMass: { value: typed(mu, 7), unit: 'u' } }, reference: { reducedMass: { value: 0.98, unit: 'u' } }, tolerances: { reducedMass: { relative: 1e-4 } } });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      reported: { reducedMass: { value: typed(mu, 7), unit: 'u' } },
+      reference: { reducedMass: { value: 0.98, unit: 'u' } },
+      tolerances: { reducedMass: { relative: 1e-4 } },
+    });
     const note = entry(r, 'reducedMass', 'accuracy').notes.find((n) => n.code === 'consistent-not-accurate');
     expect(note?.message).toMatch(/masses/);
     expect(note?.message).not.toMatch(/calibration/);
@@ -248,7 +322,12 @@ describe('advice by kind and like-for-like references', () => {
 
   it('the accepted D₀ is the measured 4.4336 eV: quoting it is accurate; the Morse estimate from the bands is consistent and shown as the model’s', () => {
     expect(morseD0).toBeGreaterThan(4.9); // the Morse estimate overshoots (domain brief: ≈ 5.1 eV)
-    const base = { species: 'H35Cl', measured: { bandCentre: cm(fundamental), overtone: cm(overtone) }, tolerances: { dissociationEnergy0: { relative: 0.02 } }, requireUncertainty: false };
+    const base = {
+      species: 'H35Cl',
+      measured: { bandCentre: cm(fundamental), overtone: cm(overtone) },
+      tolerances: { dissociationEnergy0: { relative: 0.02 } },
+      requireUncertainty: false,
+    };
     const quoted = checkSubmission({ ...base, reported: { dissociationEnergy0: { value: '4.434', unit: 'eV' } } });
     expect(entry(quoted, 'dissociationEnergy0', 'accuracy').verdict).toBe('within');
     const estimated = checkSubmission({ ...base, reported: { dissociationEnergy0: { value: typed(morseD0, 5), unit: 'eV' } } });
@@ -265,7 +344,12 @@ describe('advice by kind and like-for-like references', () => {
     const muD = speciesMassU(PUBLISHED.D35Cl);
     const harmonic = Math.sqrt(muH / muD); // 0.7172 (domain brief)
     expect(harmonic).toBeCloseTo(0.7172, 4);
-    const r = checkSubmission({ species: 'H35Cl', measured: { bandCentre: cm(fundamental), partner: { species: 'D35Cl' } }, reported: { isotopeRatio: { value: typed(harmonic, 5), unit: '' } }, tolerances: { isotopeRatio: { relative: 0.002 } } });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      measured: { bandCentre: cm(fundamental), partner: { species: 'D35Cl' } },
+      reported: { isotopeRatio: { value: typed(harmonic, 5), unit: '' } },
+      tolerances: { isotopeRatio: { relative: 0.002 } },
+    });
     expect(entry(r, 'isotopeRatio', 'consistency').verdict).toBe('within');
     const acc = entry(r, 'isotopeRatio', 'accuracy');
     expect(acc.verdict).toBe('within');
@@ -279,7 +363,13 @@ describe('gross assignment slips and small fits reach the reader', () => {
     const right = fundamentalLines(k, 8, 7);
     const slipped = right.map((l) => (l.branch === 'P' ? { ...l, J: l.J + 1 } : l));
     const theirs = studentFit(slipped, 3);
-    const r = checkSubmission({ species: 'H35Cl', measured: { lines: slipped }, reported: { B0: cm(theirs.B0), bandCentre: cm(theirs.nu0, 7) }, tolerances: {}, requireUncertainty: false });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      measured: { lines: slipped },
+      reported: { B0: cm(theirs.B0), bandCentre: cm(theirs.nu0, 7) },
+      tolerances: {},
+      requireUncertainty: false,
+    });
     expect(r.notices.map((n) => n.code)).toContain('p-branch-numbered-from-j-plus-1');
     expect(r.derived.fitChoice?.renumbered?.rmsAsNumbered).toBeGreaterThan(1);
     const q = entry(r, 'B0', 'consistency');
@@ -290,7 +380,13 @@ describe('gross assignment slips and small fits reach the reader', () => {
 
   it('a three-line fit says its standard errors mean nothing, where people read results', () => {
     const lines = fundamentalLines(PUBLISHED.H35Cl, 1, 1);
-    const r = checkSubmission({ species: 'H35Cl', measured: { lines }, reported: { B0: cm(Bv(PUBLISHED.H35Cl, 0)) }, tolerances: {}, requireUncertainty: false });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      measured: { lines },
+      reported: { B0: cm(Bv(PUBLISHED.H35Cl, 0)) },
+      tolerances: {},
+      requireUncertainty: false,
+    });
     expect(lines).toHaveLength(3);
     expect(r.notices.map((n) => n.code)).toContain('exact-fit');
   });
@@ -309,7 +405,12 @@ describe('the slips a model reproduces are named', () => {
   const we = 3 * fundamental - overtone;
   const wx = (2 * fundamental - overtone) / 2;
   const cm1 = (x: number) => (H * C * 100 * x) / E; // cm⁻¹ → eV (CODATA 2018)
-  const base = { species: 'H35Cl', measured: { bandCentre: cm(fundamental), overtone: cm(overtone) }, tolerances: {}, requireUncertainty: false };
+  const base = {
+    species: 'H35Cl',
+    measured: { bandCentre: cm(fundamental), overtone: cm(overtone) },
+    tolerances: {},
+    requireUncertainty: false,
+  };
 
   it('zero-point-energy-omitted: D₀ given as the Morse Dₑ', () => {
     const r = checkSubmission({ ...base, reported: { dissociationEnergy0: { value: typed(cm1((we * we) / (4 * wx)), 5), unit: 'eV' } } });
@@ -326,15 +427,27 @@ describe('the slips a model reproduces are named', () => {
     const muD = speciesMassU(PUBLISHED.D35Cl);
     const shift = fundamental * (Math.sqrt(muH / muD) - 1);
     const m = { bandCentre: cm(fundamental), partner: { species: 'D35Cl' } };
-    const sign = checkSubmission({ species: 'H35Cl', measured: m, reported: { isotopeShift: cm(-shift, 5) }, tolerances: {}, requireUncertainty: false });
+    const sign = checkSubmission({
+      species: 'H35Cl',
+      measured: m,
+      reported: { isotopeShift: cm(-shift, 5) },
+      tolerances: {},
+      requireUncertainty: false,
+    });
     expect(codes(entry(sign, 'isotopeShift', 'consistency'))).toContain('isotope-shift-sign');
-    const ratio = checkSubmission({ species: 'H35Cl', measured: m, reported: { isotopeRatio: { value: typed(muH / muD, 5), unit: '' } }, tolerances: {} });
+    const ratio = checkSubmission({
+      species: 'H35Cl',
+      measured: m,
+      reported: { isotopeRatio: { value: typed(muH / muD, 5), unit: '' } },
+      tolerances: {},
+    });
     expect(codes(entry(ratio, 'isotopeRatio', 'consistency'))).toEqual(['ratio-without-square-root']);
   });
 });
 
 describe('units and numbers as people type them', () => {
-  const k = (value: string, unit: string) => checkSubmission({ species: 'H35Cl', reported: { forceConstant: { value, unit } }, tolerances: {} });
+  const k = (value: string, unit: string) =>
+    checkSubmission({ species: 'H35Cl', reported: { forceConstant: { value, unit } }, tolerances: {} });
   it.each([
     ['481', 'dyne cm-1', 0.481],
     ['4.81', 'N/cm', 481],
@@ -346,7 +459,11 @@ describe('units and numbers as people type them', () => {
   });
 
   it('"wavenumbers" is cm⁻¹; ×10^, X10^ and *10** exponents are read', () => {
-    const r = checkSubmission({ species: 'H35Cl', reported: { bandCentre: { value: '2885.98', unit: 'wavenumbers' }, reducedMass: { value: '1.6267X10^-27', unit: 'kg' } }, tolerances: {} });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      reported: { bandCentre: { value: '2885.98', unit: 'wavenumbers' }, reducedMass: { value: '1.6267X10^-27', unit: 'kg' } },
+      tolerances: {},
+    });
     expect(r.problems).toEqual([]);
     const r2 = checkSubmission({ species: 'H35Cl', reported: { reducedMass: { value: '1.6267*10**-27', unit: 'kg' } }, tolerances: {} });
     expect(r2.quantities[0].reportedSI).toBeCloseTo(1.6267e-27, 31);
@@ -361,13 +478,22 @@ describe('units and numbers as people type them', () => {
   });
 
   it('"4 8 0" is refused (digits separated by spaces), "2 885.98" is read', () => {
-    expect(k('4 8 0', 'N/m').problems.map((p) => p.message).join(' ')).toMatch(/spaces/);
+    expect(
+      k('4 8 0', 'N/m')
+        .problems.map((p) => p.message)
+        .join(' '),
+    ).toMatch(/spaces/);
     const r = checkSubmission({ species: 'H35Cl', reported: { bandCentre: { value: '2 885.98', unit: 'cm-1' } }, tolerances: {} });
     expect(r.quantities[0].reportedSI).toBeCloseTo(288598, 6);
   });
 
   it('each note is given once per quantity, not once per basis', () => {
-    const r = checkSubmission({ species: 'H35Cl', measured: { bandCentre: cm(2885.98) }, reported: { forceConstant: { value: '480.70910', unit: 'N/m', uncertainty: 0.4 } }, tolerances: { forceConstant: { relative: 0.01 } } });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      measured: { bandCentre: cm(2885.98) },
+      reported: { forceConstant: { value: '480.70910', unit: 'N/m', uncertainty: 0.4 } },
+      tolerances: { forceConstant: { relative: 0.01 } },
+    });
     const all = r.quantities.filter((q) => q.key === 'forceConstant').flatMap((q) => q.notes.map((n) => n.code));
     expect(all.filter((c) => c === 'too-many-significant-figures')).toHaveLength(1);
   });
@@ -383,7 +509,12 @@ describe('rounded constants are named, not silently accepted', () => {
     const mu = speciesMassU(k);
     // r ∝ c^−½: CODATA 2018 c = 299792458 m/s (exact) against the rounded 2.998 × 10⁸.
     const re = bondLengthAngstrom(k.Be, mu) * Math.sqrt(C / 2.998e8);
-    const r = checkSubmission({ species: 'H35Cl', reported: { Be: cm(k.Be, 7), re: { value: typed(re, 7), unit: 'Å' } }, tolerances: {}, requireUncertainty: false });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      reported: { Be: cm(k.Be, 7), re: { value: typed(re, 7), unit: 'Å' } },
+      tolerances: {},
+      requireUncertainty: false,
+    });
     const q = entry(r, 're', 'consistency');
     expect(q.verdict).toBe('outside');
     expect(codes(q)).toEqual(['constants-rounded']);
@@ -407,10 +538,11 @@ describe('noisy lines, as a teaching instrument gives them (±0.05 cm⁻¹ scatt
     const P = new Map(lines.filter((l) => l.branch === 'P').map((l) => [l.J, l.wavenumber]));
     const xs: number[] = [];
     const ds: number[] = [];
-    for (let J = 1; J <= 9; J++) if (R.has(J - 1) && P.has(J + 1)) {
-      xs.push(J + 0.5);
-      ds.push(R.get(J - 1)! - P.get(J + 1)!);
-    }
+    for (let J = 1; J <= 9; J++)
+      if (R.has(J - 1) && P.has(J + 1)) {
+        xs.push(J + 0.5);
+        ds.push(R.get(J - 1)! - P.get(J + 1)!);
+      }
     const s11 = xs.reduce((a, x) => a + x * x, 0);
     const s13 = xs.reduce((a, x) => a + x ** 4, 0);
     const s33 = xs.reduce((a, x) => a + x ** 6, 0);
@@ -422,21 +554,44 @@ describe('noisy lines, as a teaching instrument gives them (±0.05 cm⁻¹ scatt
     const D = -b3 / 8;
     const B0 = (b1 + 6 * D) / 4;
     expect(B0).toBeCloseTo(Bv(k, 0), 2); // Huber & Herzberg B₀ = Bₑ − αₑ/2
-    const r = checkSubmission({ species: 'H35Cl', measured: { lines }, reported: { B0: { value: typed(B0, 5), unit: 'cm-1', uncertainty: 0.002 } }, tolerances: {} });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      measured: { lines },
+      reported: { B0: { value: typed(B0, 5), unit: 'cm-1', uncertainty: 0.002 } },
+      tolerances: {},
+    });
     expect(entry(r, 'B0', 'consistency').verdict).toBe('within');
   });
 
   it('the student’s own cubic least-squares constants are consistent; swapped B₀ and B₁ are not, and are named', () => {
     const theirs = studentFit(lines, 3);
-    const ok = checkSubmission({ species: 'H35Cl', measured: { lines }, reported: { B0: cm(theirs.B0, 5), B1: cm(theirs.B1, 5), bandCentre: cm(theirs.nu0, 6) }, tolerances: {}, requireUncertainty: false });
+    const ok = checkSubmission({
+      species: 'H35Cl',
+      measured: { lines },
+      reported: { B0: cm(theirs.B0, 5), B1: cm(theirs.B1, 5), bandCentre: cm(theirs.nu0, 6) },
+      tolerances: {},
+      requireUncertainty: false,
+    });
     for (const key of ['B0', 'B1', 'bandCentre']) expect(entry(ok, key, 'consistency').verdict, key).toBe('within');
-    const swapped = checkSubmission({ species: 'H35Cl', measured: { lines }, reported: { B0: cm(theirs.B1, 5), B1: cm(theirs.B0, 5) }, tolerances: {}, requireUncertainty: false });
+    const swapped = checkSubmission({
+      species: 'H35Cl',
+      measured: { lines },
+      reported: { B0: cm(theirs.B1, 5), B1: cm(theirs.B0, 5) },
+      tolerances: {},
+      requireUncertainty: false,
+    });
     expect(codes(entry(swapped, 'B0', 'consistency'))).toContain('b0-b1-swapped');
   });
 
   it('P lines numbered one too high are still found in noisy lines', () => {
     const slipped = lines.map((l) => (l.branch === 'P' ? { ...l, J: l.J + 1 } : l));
-    const r = checkSubmission({ species: 'H35Cl', measured: { lines: slipped }, reported: { B0: cm(10.4) }, tolerances: {}, requireUncertainty: false });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      measured: { lines: slipped },
+      reported: { B0: cm(10.4) },
+      tolerances: {},
+      requireUncertainty: false,
+    });
     expect(r.notices.map((n) => n.code)).toContain('p-branch-numbered-from-j-plus-1');
     expect(r.derived.fit!.rms).toBeLessThan(0.1);
   });

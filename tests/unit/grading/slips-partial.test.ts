@@ -3,7 +3,7 @@ import { checkSubmission } from '@/lib/grading';
 
 // c = 2.99792458e10 cm/s (CODATA 2018, exact); u = 1.66053906660e-27 kg (CODATA 2018).
 const C_CM = 2.99792458e10;
-const U_KG = 1.66053906660e-27;
+const U_KG = 1.6605390666e-27;
 // H³⁵Cl band origin 2885.98 cm⁻¹ (Huber & Herzberg via NIST WebBook, from memory; ../shared/reference-diatomics.md).
 const NU0 = 2885.98;
 

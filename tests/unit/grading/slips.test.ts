@@ -32,7 +32,8 @@ const typed = (x: number, n = 5) => x.toPrecision(n);
 
 function codesFor(input: SubmissionInput, key: QuantityKey): string[] {
   const r = checkSubmission(input);
-  const entry = r.quantities.find((q) => q.key === key && q.verdict === 'outside' && q.diagnoses.length > 0) ?? r.quantities.find((q) => q.key === key);
+  const entry =
+    r.quantities.find((q) => q.key === key && q.verdict === 'outside' && q.diagnoses.length > 0) ?? r.quantities.find((q) => q.key === key);
   expect(entry, `no entry for ${key}`).toBeDefined();
   return entry!.diagnoses.map((d) => d.code).sort();
 }
@@ -73,7 +74,12 @@ describe('slip diagnosis: each slip rebuilt reproduces exactly its code', () => 
     // ³⁵Cl₂ band origin from G(1) − G(0) of the reference row (Huber & Herzberg via NIST WebBook, from memory)
     const nu = 559.72 - 2 * 2.675;
     const k = forceConstantFromBand(nu * 100, muSlip);
-    const input: SubmissionInput = { species: '35Cl2', measured: { bandCentre: { value: nu.toFixed(2), unit: 'cm-1' } }, reported: { forceConstant: { value: typed(k), unit: 'N/m' } }, tolerances: {} };
+    const input: SubmissionInput = {
+      species: '35Cl2',
+      measured: { bandCentre: { value: nu.toFixed(2), unit: 'cm-1' } },
+      reported: { forceConstant: { value: typed(k), unit: 'N/m' } },
+      tolerances: {},
+    };
     expect(codesFor(input, 'forceConstant')).toEqual(['average-atomic-mass-used']);
   });
 
@@ -90,14 +96,22 @@ describe('slip diagnosis: each slip rebuilt reproduces exactly its code', () => 
   it('molar-mass-not-per-molecule (kg mol⁻¹ not divided by N_A)', () => {
     const k = forceConstantFromBand(NU0_HCL * 100, HCl.reducedMassU * 1e-3);
     expect(codesFor(kSubmission('H35Cl', k), 'forceConstant')).toEqual(['molar-mass-not-per-molecule']);
-    const r = checkSubmission({ species: 'H35Cl', reported: { reducedMass: { value: typed((HCl.reducedMassU * 1e-3)), unit: 'kg' } }, tolerances: {} });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      reported: { reducedMass: { value: typed(HCl.reducedMassU * 1e-3), unit: 'kg' } },
+      tolerances: {},
+    });
     expect(r.quantities[0].diagnoses.map((d) => d.code)).toEqual(['molar-mass-not-per-molecule']);
     expect(NA).toBe(6.02214076e23);
   });
 
   it('grams-not-kilograms', () => {
     expect(codesFor(kSubmission('H35Cl', kRight * 1000), 'forceConstant')).toEqual(['grams-not-kilograms']);
-    const r = checkSubmission({ species: 'H35Cl', reported: { reducedMass: { value: typed(HCl.reducedMassKg * 1000), unit: 'kg' } }, tolerances: {} });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      reported: { reducedMass: { value: typed(HCl.reducedMassKg * 1000), unit: 'kg' } },
+      tolerances: {},
+    });
     expect(r.quantities[0].diagnoses.map((d) => d.code)).toEqual(['grams-not-kilograms']);
   });
 
@@ -124,7 +138,12 @@ describe('slip diagnosis: each slip rebuilt reproduces exactly its code', () => 
     const k = 4 * Math.PI ** 2 * (c * 100) ** 2 * (NU0_HCL * 100) ** 2 * HCl.reducedMassKg;
     expect(codesFor(kSubmission('H35Cl', k), 'forceConstant')).toEqual(['per-metre-per-centimetre-confusion']);
     const lines = simulateLineList('H35Cl', { jMax: 8, withCentrifugal: false });
-    const input: SubmissionInput = { species: 'H35Cl', measured: { lines }, reported: { B0: { value: typed(10.43982 * 100), unit: 'cm-1' } }, tolerances: {} };
+    const input: SubmissionInput = {
+      species: 'H35Cl',
+      measured: { lines },
+      reported: { B0: { value: typed(10.43982 * 100), unit: 'cm-1' } },
+      tolerances: {},
+    };
     expect(codesFor(input, 'B0')).toEqual(['per-metre-per-centimetre-confusion']);
   });
 
@@ -132,8 +151,18 @@ describe('slip diagnosis: each slip rebuilt reproduces exactly its code', () => 
     const omegaE = 3 * NU0_HCL - OVERTONE_HCL;
     const measured = { bandCentre: { value: String(NU0_HCL), unit: 'cm-1' }, overtone: { value: String(OVERTONE_HCL), unit: 'cm-1' } };
     const kFromOmega = forceConstantFromBand(omegaE * 100, HCl.reducedMassKg);
-    expect(codesFor({ species: 'H35Cl', measured, reported: { forceConstant: { value: typed(kFromOmega), unit: 'N/m' } }, tolerances: {} }, 'forceConstant')).toEqual(['omega-e-instead-of-band-centre']);
-    expect(codesFor({ species: 'H35Cl', measured, reported: { forceConstantE: { value: typed(kRight), unit: 'N/m' } }, tolerances: {} }, 'forceConstantE')).toEqual(['band-centre-instead-of-omega-e']);
+    expect(
+      codesFor(
+        { species: 'H35Cl', measured, reported: { forceConstant: { value: typed(kFromOmega), unit: 'N/m' } }, tolerances: {} },
+        'forceConstant',
+      ),
+    ).toEqual(['omega-e-instead-of-band-centre']);
+    expect(
+      codesFor(
+        { species: 'H35Cl', measured, reported: { forceConstantE: { value: typed(kRight), unit: 'N/m' } }, tolerances: {} },
+        'forceConstantE',
+      ),
+    ).toEqual(['band-centre-instead-of-omega-e']);
   });
 
   it('wrong-isotopologue (masses of D³⁵Cl for H³⁵Cl)', () => {
@@ -145,9 +174,19 @@ describe('slip diagnosis: each slip rebuilt reproduces exactly its code', () => 
     const lines = simulateLineList('H35Cl', { jMax: 9, withCentrifugal: false });
     const slipped = fitBand(lines, { rBranchIndex: 'J' });
     if (!slipped.ok) throw new Error('fit failed');
-    const input: SubmissionInput = { species: 'H35Cl', measured: { lines }, reported: { B0: { value: typed(slipped.B0.value), unit: 'cm-1' } }, tolerances: {} };
+    const input: SubmissionInput = {
+      species: 'H35Cl',
+      measured: { lines },
+      reported: { B0: { value: typed(slipped.B0.value), unit: 'cm-1' } },
+      tolerances: {},
+    };
     expect(codesFor(input, 'B0')).toEqual(['r-branch-numbered-from-j']);
-    const input2: SubmissionInput = { species: 'H35Cl', measured: { lines }, reported: { bandCentre: { value: typed(slipped.nu0.value, 6), unit: 'cm-1' } }, tolerances: {} };
+    const input2: SubmissionInput = {
+      species: 'H35Cl',
+      measured: { lines },
+      reported: { bandCentre: { value: typed(slipped.nu0.value, 6), unit: 'cm-1' } },
+      tolerances: {},
+    };
     expect(codesFor(input2, 'bandCentre')).toEqual(['r-branch-numbered-from-j']);
   });
 
@@ -155,7 +194,12 @@ describe('slip diagnosis: each slip rebuilt reproduces exactly its code', () => 
     const lines = simulateLineList('H35Cl', { jMax: 9, withCentrifugal: false });
     const f = fitBand(lines);
     if (!f.ok) throw new Error('fit failed');
-    const input: SubmissionInput = { species: 'H35Cl', measured: { lines }, reported: { B0: { value: typed(f.B1.value), unit: 'cm-1' }, alphaE: { value: typed(-f.alphaE.value, 4), unit: 'cm-1' } }, tolerances: {} };
+    const input: SubmissionInput = {
+      species: 'H35Cl',
+      measured: { lines },
+      reported: { B0: { value: typed(f.B1.value), unit: 'cm-1' }, alphaE: { value: typed(-f.alphaE.value, 4), unit: 'cm-1' } },
+      tolerances: {},
+    };
     expect(codesFor(input, 'B0')).toEqual(['b0-b1-swapped']);
     expect(codesFor(input, 'alphaE')).toEqual(['b0-b1-swapped']);
   });
@@ -165,7 +209,12 @@ describe('slip diagnosis: each slip rebuilt reproduces exactly its code', () => 
     const f = fitBand(lines, { species: 'H35Cl' });
     if (!f.ok) throw new Error('fit failed');
     const r0 = bondLengthFromB(f.B0.value * 100, HCl.reducedMassKg) * 1e10;
-    const input: SubmissionInput = { species: 'H35Cl', measured: { lines }, reported: { re: { value: typed(r0, 5), unit: 'Å' } }, tolerances: {} };
+    const input: SubmissionInput = {
+      species: 'H35Cl',
+      measured: { lines },
+      reported: { re: { value: typed(r0, 5), unit: 'Å' } },
+      tolerances: {},
+    };
     expect(codesFor(input, 're')).toEqual(['r0-reported-as-re']);
   });
 
@@ -176,7 +225,11 @@ describe('slip diagnosis: each slip rebuilt reproduces exactly its code', () => 
   it('unit-mismatch: right number, wrong unit or no unit', () => {
     expect(codesFor(kSubmission('H35Cl', kRight, 'mdyn/Å'), 'forceConstant')).toEqual(['unit-mismatch']);
     expect(codesFor(kSubmission('H35Cl', kRight, ''), 'forceConstant')).toEqual(['unit-mismatch']);
-    const r = checkSubmission({ species: 'H35Cl', reported: { reducedMass: { value: typed(HCl.reducedMassU), unit: 'kg' } }, tolerances: {} });
+    const r = checkSubmission({
+      species: 'H35Cl',
+      reported: { reducedMass: { value: typed(HCl.reducedMassU), unit: 'kg' } },
+      tolerances: {},
+    });
     expect(r.quantities[0].diagnoses.map((d) => d.code)).toEqual(['unit-mismatch']);
   });
 

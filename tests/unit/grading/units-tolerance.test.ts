@@ -1,5 +1,22 @@
 import { describe, expect, it } from 'vitest';
-import { toSI, fromSI, formatUnit, parseQuantity, parseTypedNumber, precisionAgainstUncertainty, judge, marksFor, formatNumber, QUANTITIES, QUANTITY_KEYS, c, h, e, NA, u } from '@/lib/grading';
+import {
+  toSI,
+  fromSI,
+  formatUnit,
+  parseQuantity,
+  parseTypedNumber,
+  precisionAgainstUncertainty,
+  judge,
+  marksFor,
+  formatNumber,
+  QUANTITIES,
+  QUANTITY_KEYS,
+  c,
+  h,
+  e,
+  NA,
+  u,
+} from '@/lib/grading';
 
 describe('units people type (conversion factors from CODATA 2018 constants)', () => {
   it.each([

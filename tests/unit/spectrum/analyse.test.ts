@@ -47,7 +47,9 @@ function expectLabelsRight(b: BandAnalysis, lines: Line[], offset: number, tol =
     expect(truth, `${b.label} ${l.branch}(${l.J})`).toBeDefined();
     // Within tol, or four of its own standard errors for a weak line; a mislabelled line would sit
     // a whole line spacing (or an isotope shift, ≥ 2 cm⁻¹ here) away.
-    expect(Math.abs(l.wavenumber - truth!.wavenumber - offset), `${b.label} ${l.branch}(${l.J}) at ${l.wavenumber}`).toBeLessThan(Math.max(tol, 4 * l.stdError));
+    expect(Math.abs(l.wavenumber - truth!.wavenumber - offset), `${b.label} ${l.branch}(${l.J}) at ${l.wavenumber}`).toBeLessThan(
+      Math.max(tol, 4 * l.stdError),
+    );
   }
 }
 
@@ -136,7 +138,11 @@ describe('analyseSpectrum: HCl + DCl, fundamentals and overtones, one instrument
   it('leaves the impurity line unassigned and out of every fit', () => {
     const found = a.unassigned.find((u) => Math.abs(u.wavenumber - (impurity.wavenumber + OFFSET)) < 0.05);
     expect(found).toBeDefined();
-    for (const b of a.bands) expect(b.lines.some((l) => Math.abs(l.wavenumber - (impurity.wavenumber + OFFSET)) < 0.3), b.label).toBe(false);
+    for (const b of a.bands)
+      expect(
+        b.lines.some((l) => Math.abs(l.wavenumber - (impurity.wavenumber + OFFSET)) < 0.3),
+        b.label,
+      ).toBe(false);
     // Nothing else is left over: every other strong line belongs to a band.
     expect(a.unassigned.filter((u) => u.snr > 20)).toHaveLength(1);
   });
@@ -168,7 +174,10 @@ describe('analyseSpectrum: HCl + DCl, fundamentals and overtones, one instrument
 describe('analyseSpectrum: what instruments do to the lines', () => {
   const hcl = [...bandLines('H35Cl', 1), ...bandLines('H37Cl', 1)];
   const analyse = (lines: Line[], opts: Partial<Parameters<typeof record>[0]>, species = ['HCl']) =>
-    analyseSpectrum(record({ lines, from: 2500, to: 3250, step: 0.125, resolution: 0.5, noise: 3e-4, seed: 11, ...opts }), { species, bands: ['fundamental'] });
+    analyseSpectrum(record({ lines, from: 2500, to: 3250, step: 0.125, resolution: 0.5, noise: 3e-4, seed: 11, ...opts }), {
+      species,
+      bands: ['fundamental'],
+    });
 
   it.each([20, -20])('a calibration offset of %+d cm⁻¹ (about one line spacing) is found, not mistaken for a renumbering', (offset) => {
     const a = analyse(hcl, { offset });
@@ -235,7 +244,18 @@ describe('analyseSpectrum: what instruments do to the lines', () => {
   });
 
   it('reads transmittance (percent, from a CSV file) with a sloping baseline the same way', () => {
-    const spectrum = record({ lines: hcl, from: 2500, to: 3250, step: 0.125, resolution: 0.5, noise: 1e-3, seed: 4, yKind: 'transmittance', baseline: 0.1, baselineSlope: 2e-4 });
+    const spectrum = record({
+      lines: hcl,
+      from: 2500,
+      to: 3250,
+      step: 0.125,
+      resolution: 0.5,
+      noise: 1e-3,
+      seed: 4,
+      yKind: 'transmittance',
+      baseline: 0.1,
+      baselineSlope: 2e-4,
+    });
     const csv = toCsv({ ...spectrum, y: spectrum.y.map((t) => t * 100) }).replace('transmittance', '%T');
     const parsed = parseSpectrumFile(csv, 'csv');
     if (!parsed.ok) throw new Error(parsed.message);

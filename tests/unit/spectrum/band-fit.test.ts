@@ -61,7 +61,10 @@ describe('fitAssignedLines', () => {
     let inside = 0;
     const runs = 200;
     for (let seed = 1; seed <= runs; seed++) {
-      const r = fitAssignedLines(noisyLines((l) => 1e-3 * (1 + Math.abs(m(l)) ** 2 / 10), seed * 7919), 'H35Cl');
+      const r = fitAssignedLines(
+        noisyLines((l) => 1e-3 * (1 + Math.abs(m(l)) ** 2 / 10), seed * 7919),
+        'H35Cl',
+      );
       if (!('model' in r) || !r.D) continue;
       if (Math.abs(r.D.value - D) <= 2 * r.D.stdError) inside++;
     }
@@ -69,10 +72,19 @@ describe('fitAssignedLines', () => {
   });
 
   it('keeps the −4Dm³ term when D is clearly determined, and leaves it out (saying why) when it is not', () => {
-    const precise = fitAssignedLines(noisyLines(() => 1e-4), 'H35Cl');
-    const rough = fitAssignedLines(noisyLines(() => 0.5).filter((l) => l.J <= 7), 'H35Cl');
+    const precise = fitAssignedLines(
+      noisyLines(() => 1e-4),
+      'H35Cl',
+    );
+    const rough = fitAssignedLines(
+      noisyLines(() => 0.5).filter((l) => l.J <= 7),
+      'H35Cl',
+    );
     // Four lines leave no degree of freedom to test a fourth parameter (as in the grading engine).
-    const few = fitAssignedLines(noisyLines(() => 1e-4).filter((l) => l.J <= 2 && l.J >= 1), 'H35Cl');
+    const few = fitAssignedLines(
+      noisyLines(() => 1e-4).filter((l) => l.J <= 2 && l.J >= 1),
+      'H35Cl',
+    );
     if (!('model' in precise) || !('model' in rough) || !('model' in few)) throw new Error('fit failed');
     expect(precise.model).toBe('cubic');
     expect(precise.modelNote).toMatch(/the lines need it \(F-test p/);
@@ -138,7 +150,10 @@ describe('isotopologues in natural abundance and their predicted bands', () => {
   it('predicted fundamental and overtone lines follow the published term formulas (spacing from the origin)', () => {
     const hcl = isotopologuesOf('HCl');
     if (!hcl.ok) throw new Error(hcl.message);
-    for (const [band, v] of [['fundamental', 1], ['overtone', 2]] as const) {
+    for (const [band, v] of [
+      ['fundamental', 1],
+      ['overtone', 2],
+    ] as const) {
       const p = predictBand(hcl.isotopologues[0], band)!;
       const truth = bandLines('H35Cl', v, { jMax: 12 }); // Huber & Herzberg via NIST WebBook, test helper formulas
       const e = expectedBand('H35Cl', v);

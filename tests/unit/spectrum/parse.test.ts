@@ -130,7 +130,22 @@ describe('JCAMP-DX writer round trip through jcampconverter', () => {
 
   it('writes the records JCAMP-DX 4.24 asks for, lines within 80 characters', () => {
     const text = toJcampDx(spectrum, { title: 'SYNTHETIC round trip', notes: ['synthetic test data'] });
-    for (const label of ['TITLE', 'JCAMP-DX=4.24', 'DATA TYPE=INFRARED SPECTRUM', 'ORIGIN', 'OWNER', 'XUNITS=1/CM', 'YUNITS=ABSORBANCE', 'XFACTOR', 'YFACTOR', 'FIRSTX=2880', 'LASTX=2930', 'NPOINTS=201', 'XYDATA=(X++(Y..Y))', 'END=']) {
+    for (const label of [
+      'TITLE',
+      'JCAMP-DX=4.24',
+      'DATA TYPE=INFRARED SPECTRUM',
+      'ORIGIN',
+      'OWNER',
+      'XUNITS=1/CM',
+      'YUNITS=ABSORBANCE',
+      'XFACTOR',
+      'YFACTOR',
+      'FIRSTX=2880',
+      'LASTX=2930',
+      'NPOINTS=201',
+      'XYDATA=(X++(Y..Y))',
+      'END=',
+    ]) {
       expect(text).toContain(`##${label}`);
     }
     expect(text).toContain('##$OSCILLAB NOTE=synthetic test data');
@@ -197,7 +212,10 @@ describe('parseSpectrumFile: CSV', () => {
   });
 
   it('names a broken row, and refuses too few points', () => {
-    const broken = `x,y\n${rows.slice(0, 5).map((r) => r.join(',')).join('\n')}\n2903,oops\n`;
+    const broken = `x,y\n${rows
+      .slice(0, 5)
+      .map((r) => r.join(','))
+      .join('\n')}\n2903,oops\n`;
     const r = parseSpectrumFile(broken, 'csv');
     expect(r.ok === false && r.message).toMatch(/Row 7 .*oops/);
     const few = parseSpectrumFile('1,2\n3,4\n', 'csv');

@@ -57,7 +57,14 @@ describe('pickPeaks', () => {
   });
 
   it('finds transmittance dips as absorbance peaks', () => {
-    const s = synthesizeSpectrum({ lines: [{ wavenumber: 2000.4, intensity: 1 }], from: 1990, to: 2010, step: 0.2, fwhm: 0.8, yKind: 'transmittance' });
+    const s = synthesizeSpectrum({
+      lines: [{ wavenumber: 2000.4, intensity: 1 }],
+      from: 1990,
+      to: 2010,
+      step: 0.2,
+      fwhm: 0.8,
+      yKind: 'transmittance',
+    });
     const [p] = pickPeaks(s);
     expect(Math.abs(p.wavenumber - 2000.4)).toBeLessThan(0.02);
     expect(p.height).toBeCloseTo(0.8, 2);
@@ -106,7 +113,11 @@ describe('compareLinesToPeaks', () => {
   const spectrum = fixture('hcl-298k.jdx');
   const peaks = pickPeaks(spectrum);
   // What a careful student reports: every line of both isotopologues that stands out.
-  const reported = HCL_MIX.filter((l) => l.intensity >= 0.05).map((l) => ({ branch: l.branch, J: l.J, wavenumber: Math.round(l.wavenumber * 100) / 100 }));
+  const reported = HCL_MIX.filter((l) => l.intensity >= 0.05).map((l) => ({
+    branch: l.branch,
+    J: l.J,
+    wavenumber: Math.round(l.wavenumber * 100) / 100,
+  }));
 
   it('matches every honestly reported line and misses no strong peak', () => {
     const cmp = compareLinesToPeaks(reported, peaks);

@@ -30,7 +30,9 @@ describe('bandPlotModel', () => {
     expect(b.pos).toBeLessThan(a.pos);
     expect(model.yAxis.label).toBe('Absorbance');
     expect(model.curve.length).toBeGreaterThan(100);
-    expect(model.curve.every(([x, y]) => x >= model.area.left - 0.01 && x <= model.area.left + model.area.width + 0.01 && y >= 0 && y <= 400)).toBe(true);
+    expect(
+      model.curve.every(([x, y]) => x >= model.area.left - 0.01 && x <= model.area.left + model.area.width + 0.01 && y >= 0 && y <= 400),
+    ).toBe(true);
   });
 
   it('places a labelled marker per reported line, P and R in different shapes', () => {

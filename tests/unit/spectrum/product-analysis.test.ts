@@ -7,7 +7,14 @@
  */
 import { beforeAll, describe, expect, it } from 'vitest';
 import { analyseSpectrum } from '@/lib/spectrum/analyse';
-import { compareWithAnalysis, matchByBand, moleculeOf, samplesOf, storeAnalysis, type StoredAnalysis } from '@/lib/submissions/spectrum-analysis';
+import {
+  compareWithAnalysis,
+  matchByBand,
+  moleculeOf,
+  samplesOf,
+  storeAnalysis,
+  type StoredAnalysis,
+} from '@/lib/submissions/spectrum-analysis';
 import { bandLines, expectedBand, record } from '../../helpers/diatomic-lines';
 
 const hcl = [...bandLines('H35Cl', 1), ...bandLines('H37Cl', 1)];
@@ -22,7 +29,9 @@ beforeAll(() => {
 describe('samples of a practical', () => {
   it('names the molecule of each isotopologue and defaults to one spectrum holding them all', () => {
     expect(['H35Cl', 'D35Cl', '12C16O', 'H79Br', 'D37Cl'].map(moleculeOf)).toEqual(['HCl', 'DCl', 'CO', 'HBr', 'DCl']);
-    expect(samplesOf({ species: ['H35Cl', 'H37Cl', 'D35Cl'] }, false)).toEqual([{ key: 'cell', label: 'Spectrum', molecules: ['HCl', 'DCl'], bands: ['fundamental'] }]);
+    expect(samplesOf({ species: ['H35Cl', 'H37Cl', 'D35Cl'] }, false)).toEqual([
+      { key: 'cell', label: 'Spectrum', molecules: ['HCl', 'DCl'], bands: ['fundamental'] },
+    ]);
     expect(samplesOf({ species: ['12C16O'] }, true)[0].bands).toEqual(['fundamental', 'overtone']);
     const set = [{ key: 'hcl', label: 'HCl cell', molecules: ['HCl'], bands: ['fundamental' as const] }];
     expect(samplesOf({ species: ['H35Cl'], spectrumSamples: set }, true)).toEqual(set);
@@ -32,11 +41,20 @@ describe('samples of a practical', () => {
 describe('a student’s lines per isotopologue and band', () => {
   it('matches lines of a covered band, and says when a band lies outside the uploaded range', () => {
     const lines = [
-      ...hcl.filter((l) => l.species === 'H35Cl' && l.J <= 8).map((l) => ({ species: 'H35Cl', branch: l.branch, J: l.J, wavenumber: Math.round(l.wavenumber * 100) / 100 })),
+      ...hcl
+        .filter((l) => l.species === 'H35Cl' && l.J <= 8)
+        .map((l) => ({ species: 'H35Cl', branch: l.branch, J: l.J, wavenumber: Math.round(l.wavenumber * 100) / 100 })),
       // One misread position, 1.5 cm⁻¹ off: not a line of the spectrum.
-      { species: 'H35Cl', branch: 'R' as const, J: 9, wavenumber: Math.round(hcl.find((l) => l.species === 'H35Cl' && l.branch === 'R' && l.J === 9)!.wavenumber * 100) / 100 + 1.5 },
+      {
+        species: 'H35Cl',
+        branch: 'R' as const,
+        J: 9,
+        wavenumber: Math.round(hcl.find((l) => l.species === 'H35Cl' && l.branch === 'R' && l.J === 9)!.wavenumber * 100) / 100 + 1.5,
+      },
       // D³⁵Cl lines near 2091 cm⁻¹ (Huber & Herzberg): the file starts at 2500.
-      ...bandLines('D35Cl', 1).filter((l) => l.J <= 3).map((l) => ({ species: 'D35Cl', branch: l.branch, J: l.J, wavenumber: l.wavenumber })),
+      ...bandLines('D35Cl', 1)
+        .filter((l) => l.J <= 3)
+        .map((l) => ({ species: 'D35Cl', branch: l.branch, J: l.J, wavenumber: l.wavenumber })),
     ];
     const rows = matchByBand(lines, [stored]);
     const h = rows.find((r) => r.species === 'H35Cl')!;
@@ -44,7 +62,9 @@ describe('a student’s lines per isotopologue and band', () => {
     const d = rows.find((r) => r.species === 'D35Cl')!;
     expect(d.outsideRange).toBe(true);
     expect(d.matched).toBe(0);
-    expect(d.message).toMatch(/^D³⁵Cl fundamental \(1←0\): your 7 lines lie near 2091 cm⁻¹, outside the spectrum you uploaded \(2500–3200 cm⁻¹\)/);
+    expect(d.message).toMatch(
+      /^D³⁵Cl fundamental \(1←0\): your 7 lines lie near 2091 cm⁻¹, outside the spectrum you uploaded \(2500–3200 cm⁻¹\)/,
+    );
   });
 });
 
@@ -55,7 +75,13 @@ describe('the third comparison: reported numbers against the student’s own spe
     const rows = compareWithAnalysis(
       [
         { key: 'bandCentre', species: 'H35Cl', valueText: e.origin.toFixed(2), unit: 'cm-1', uncertaintyText: '0.05' },
-        { key: 'bandCentre', species: 'H37Cl', valueText: (expectedBand('H37Cl', 1).origin - 20.9).toFixed(2), unit: 'cm-1', uncertaintyText: '0.05' },
+        {
+          key: 'bandCentre',
+          species: 'H37Cl',
+          valueText: (expectedBand('H37Cl', 1).origin - 20.9).toFixed(2),
+          unit: 'cm-1',
+          uncertaintyText: '0.05',
+        },
         { key: 'B0', species: 'H35Cl', valueText: e.B0.toFixed(4), unit: 'cm-1', uncertaintyText: null },
         { key: 'B0', species: 'H35Cl', valueText: (e.B0 * 1.06).toFixed(3), unit: 'cm-1', uncertaintyText: null },
         { key: 're', species: 'H35Cl', valueText: '127.46', unit: 'pm', uncertaintyText: null },
@@ -78,13 +104,25 @@ describe('the third comparison: reported numbers against the student’s own spe
     const quadraticB0 = band!.alternative!.B0.value;
     // Far enough from the cubic model's B₀ to be "outside" against it alone.
     expect(Math.abs(quadraticB0 - band!.B0.value) / band!.B0.value).toBeGreaterThan(0.003);
-    const [row] = compareWithAnalysis([{ key: 'B0', species: 'H35Cl', valueText: quadraticB0.toFixed(4), unit: 'cm-1', uncertaintyText: null }], [stored]);
+    const [row] = compareWithAnalysis(
+      [{ key: 'B0', species: 'H35Cl', valueText: quadraticB0.toFixed(4), unit: 'cm-1', uncertaintyText: null }],
+      [stored],
+    );
     expect(row.verdict).toBe('within');
   });
 
   it('uses the instructor’s accuracy band when there is one', () => {
     const [row] = compareWithAnalysis(
-      [{ key: 'bandCentre', species: 'H35Cl', valueText: (e.origin + 1.5).toFixed(2), unit: 'cm-1', uncertaintyText: null, accuracy: { absolute: 2, unit: 'cm-1' } }],
+      [
+        {
+          key: 'bandCentre',
+          species: 'H35Cl',
+          valueText: (e.origin + 1.5).toFixed(2),
+          unit: 'cm-1',
+          uncertaintyText: null,
+          accuracy: { absolute: 2, unit: 'cm-1' },
+        },
+      ],
       [stored],
     );
     expect(row.verdict).toBe('within');

@@ -30,7 +30,17 @@ describe('synthesizeSpectrum', () => {
   });
 
   it('puts a Lorentzian of the given FWHM at each line, the strongest at peakAbsorbance', () => {
-    const s = synthesizeSpectrum({ lines: [{ wavenumber: 1000, intensity: 4 }, { wavenumber: 1100, intensity: 1 }], from: 990, to: 1110, step: 0.1, fwhm: 1, peakAbsorbance: 0.8 });
+    const s = synthesizeSpectrum({
+      lines: [
+        { wavenumber: 1000, intensity: 4 },
+        { wavenumber: 1100, intensity: 1 },
+      ],
+      from: 990,
+      to: 1110,
+      step: 0.1,
+      fwhm: 1,
+      peakAbsorbance: 0.8,
+    });
     const at = (w: number) => s.y[Math.round((w - 990) / 0.1)];
     expect(at(1000)).toBeCloseTo(0.8, 3);
     expect(at(1000.5) / at(1000)).toBeCloseTo(0.5, 2); // half maximum at FWHM/2

@@ -32,17 +32,24 @@ describe('the compiled upload worker', () => {
   it('is what a production server starts, and it imports nothing but Node itself', () => {
     expect(uploadWorkerEntry()).toBe(compiled);
     const source = fs.readFileSync(compiled, 'utf8');
-    const imports = [...source.matchAll(/^\s*import\s[^'"]*['"]([^'"]+)['"]/gm), ...source.matchAll(/\brequire\(['"]([^'"]+)['"]\)/g)].map((m) => m[1]);
-    expect(imports.filter((s) => !s.startsWith('node:') && !['fs', 'path', 'zlib', 'worker_threads', 'buffer', 'stream', 'util'].includes(s))).toEqual([]);
+    const imports = [...source.matchAll(/^\s*import\s[^'"]*['"]([^'"]+)['"]/gm), ...source.matchAll(/\brequire\(['"]([^'"]+)['"]\)/g)].map(
+      (m) => m[1],
+    );
+    expect(
+      imports.filter((s) => !s.startsWith('node:') && !['fs', 'path', 'zlib', 'worker_threads', 'buffer', 'stream', 'util'].includes(s)),
+    ).toEqual([]);
     expect(source).not.toMatch(/tsx/);
   });
 
-  it.each(['co-298k.jdx', 'co-298k.csv', 'hcl-298k.csv', 'README.md'])('reads %s exactly as the sources do in this process', async (file) => {
-    const bytes = new Uint8Array(fs.readFileSync(path.join(SPECTRA, file)));
-    const off = await readUploadOffThread(bytes, file, true);
-    expect(off.ok).toBe(true);
-    expect(off.ok && off.reading).toEqual(JSON.parse(JSON.stringify(readUpload(bytes, file, true))));
-  });
+  it.each(['co-298k.jdx', 'co-298k.csv', 'hcl-298k.csv', 'README.md'])(
+    'reads %s exactly as the sources do in this process',
+    async (file) => {
+      const bytes = new Uint8Array(fs.readFileSync(path.join(SPECTRA, file)));
+      const off = await readUploadOffThread(bytes, file, true);
+      expect(off.ok).toBe(true);
+      expect(off.ok && off.reading).toEqual(JSON.parse(JSON.stringify(readUpload(bytes, file, true))));
+    },
+  );
 
   it('keeps its time limit', async () => {
     const bytes = new Uint8Array(fs.readFileSync(path.join(SPECTRA, 'hcl-298k.csv')));

@@ -32,7 +32,11 @@ export const POST = route(async (request) => {
       defaults: { userId: user.id, courseId: input.courseId, role: input.role, cohortId: input.cohortId ?? null },
       transaction,
     });
-    if (created) await audit({ actorId: actor.id, action: 'membership.grant', entityType: 'course_membership', entityId: row.id, after: row.toJSON() }, transaction);
+    if (created)
+      await audit(
+        { actorId: actor.id, action: 'membership.grant', entityType: 'course_membership', entityId: row.id, after: row.toJSON() },
+        transaction,
+      );
     return row;
   });
   return json({ membership }, 201);

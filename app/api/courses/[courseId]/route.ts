@@ -14,7 +14,13 @@ export const GET = route<Ctx>(async (request, { params }) => {
   const { Course, Cohort } = models();
   const course = await Course.findByPk(courseId);
   if (!course) throw new HttpError(404, 'No such course.');
-  const cohorts = await Cohort.findAll({ where: { courseId }, order: [['term', 'DESC'], ['name', 'ASC']] });
+  const cohorts = await Cohort.findAll({
+    where: { courseId },
+    order: [
+      ['term', 'DESC'],
+      ['name', 'ASC'],
+    ],
+  });
   return json({ course, cohorts });
 });
 
@@ -28,10 +34,16 @@ export const PATCH = route<Ctx>(async (request, { params }) => {
     if (!c) throw new HttpError(404, 'No such course.');
     const before = { ...c.get({ plain: true }) };
     await c.update(
-      { ...(data.title ? { title: data.title } : {}), ...(data.archived !== undefined ? { archivedAt: data.archived ? (c.archivedAt ?? new Date()) : null } : {}) },
+      {
+        ...(data.title ? { title: data.title } : {}),
+        ...(data.archived !== undefined ? { archivedAt: data.archived ? (c.archivedAt ?? new Date()) : null } : {}),
+      },
       { transaction },
     );
-    await audit({ actorId: actor.id, action: 'course.update', entityType: 'course', entityId: c.id, before, after: c.get({ plain: true }) }, transaction);
+    await audit(
+      { actorId: actor.id, action: 'course.update', entityType: 'course', entityId: c.id, before, after: c.get({ plain: true }) },
+      transaction,
+    );
     return c;
   });
   return json({ course });

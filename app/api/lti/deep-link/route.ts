@@ -22,10 +22,23 @@ export const POST = ltiRoute(async (request) => {
   const raw = form.get('practicalId') ?? '';
   const practical = /^\d{1,12}$/.test(raw) ? await models().Practical.findByPk(Number(raw)) : null;
   if (!practical || practical.courseId !== ctx.courseId || practical.archivedAt) {
-    throw new LaunchRefused(400, 'no-such-practical', 'Choose a practical of this course', 'The practical chosen is not an open practical of the course this learning-platform course is connected to.', 'Go back and choose again.');
+    throw new LaunchRefused(
+      400,
+      'no-such-practical',
+      'Choose a practical of this course',
+      'The practical chosen is not an open practical of the course this learning-platform course is connected to.',
+      'Go back and choose again.',
+    );
   }
   const jwt = await deepLinkResponse(ticket, practical);
-  await audit({ actorId: actor.id, action: 'lti.deep-link', entityType: 'practical', entityId: practical.id, before: null, after: { ltiContextId: ctx.id } });
+  await audit({
+    actorId: actor.id,
+    action: 'lti.deep-link',
+    entityType: 'practical',
+    entityId: practical.id,
+    before: null,
+    after: { ltiContextId: ctx.id },
+  });
   return selfSubmittingForm({
     title: 'Returning to the learning platform…',
     action: ticket.returnUrl,

@@ -10,7 +10,8 @@ export const GET = route<Ctx>(async (request, { params }) => {
   const id = idParam((await params).id);
   const { actor, submission, practical } = await authorizeSubmission(request, id, 'submission-read');
   if (actor.id === submission.studentId) {
-    if (submission.attempt === 0) return json({ id: submission.id, attempt: 0, version: submission.version, draft: readDraft(submission.draft, practical.species) });
+    if (submission.attempt === 0)
+      return json({ id: submission.id, attempt: 0, version: submission.version, draft: readDraft(submission.draft, practical.species) });
     return json(await studentAttemptView(submission, practical));
   }
   return json({ submission });

@@ -9,7 +9,13 @@ export const dynamic = 'force-dynamic';
 export const metadata = { title: 'Learning platform' };
 
 /** A course's connection to the learning platform: cohort for arrivals, roster from the platform, scores sent back. */
-export default async function CourseLearningPlatform({ params, searchParams }: { params: Promise<{ courseId: string }>; searchParams: Promise<{ review?: string; next?: string }> }) {
+export default async function CourseLearningPlatform({
+  params,
+  searchParams,
+}: {
+  params: Promise<{ courseId: string }>;
+  searchParams: Promise<{ review?: string; next?: string }>;
+}) {
   let courseId: number;
   try {
     courseId = idParam((await params).courseId);
@@ -26,7 +32,9 @@ export default async function CourseLearningPlatform({ params, searchParams }: {
     Cohort.findAll({ where: { courseId: course.id, archivedAt: null }, order: [['name', 'ASC']] }),
   ]);
   const registrations = await LtiRegistration.findAll({ where: { id: [...new Set(contexts.map((c) => c.registrationId))] } });
-  const scores = contexts.length ? await LtiScoreOutbox.findAll({ where: { ltiContextId: contexts.map((c) => c.id) }, order: [['id', 'DESC']], limit: 200 }) : [];
+  const scores = contexts.length
+    ? await LtiScoreOutbox.findAll({ where: { ltiContextId: contexts.map((c) => c.id) }, order: [['id', 'DESC']], limit: 200 })
+    : [];
   const [practicals, students] = await Promise.all([
     Practical.findAll({ where: { id: [...new Set(scores.map((s) => s.practicalId))] }, attributes: ['id', 'title'] }),
     User.findAll({ where: { id: [...new Set(scores.map((s) => s.userId))] }, attributes: ['id', 'name'] }),
@@ -56,14 +64,31 @@ export default async function CourseLearningPlatform({ params, searchParams }: {
   const safeNext = next && next.startsWith('/') && !next.startsWith('//') ? next : null;
   return (
     <>
-      <p className="mb-2 text-sm"><a href={`/courses/${course.id}`}>← {course.code}</a></p>
-      <PageHeader title={`${course.code} · learning platform`} lead="Students and staff arriving from the learning platform, its roster, and the scores Oscillab sends back to its gradebook.">
-        {safeNext && <a className="btn" href={safeNext}>Continue to the practical</a>}
+      <p className="mb-2 text-sm">
+        <a href={`/courses/${course.id}`}>← {course.code}</a>
+      </p>
+      <PageHeader
+        title={`${course.code} · learning platform`}
+        lead="Students and staff arriving from the learning platform, its roster, and the scores Oscillab sends back to its gradebook."
+      >
+        {safeNext && (
+          <a className="btn" href={safeNext}>
+            Continue to the practical
+          </a>
+        )}
       </PageHeader>
       {views.length === 0 ? (
-        <p className="card">This course is not connected to a learning-platform course. The site administrator connects it on <a href="/admin/learning-platform">Site administration → Learning platform</a>.</p>
+        <p className="card">
+          This course is not connected to a learning-platform course. The site administrator connects it on{' '}
+          <a href="/admin/learning-platform">Site administration → Learning platform</a>.
+        </p>
       ) : (
-        <PlatformCourse contexts={views} cohorts={cohorts.map((c) => ({ id: c.id, name: c.name }))} scores={rows} review={review ? Number(review) : null} />
+        <PlatformCourse
+          contexts={views}
+          cohorts={cohorts.map((c) => ({ id: c.id, name: c.name }))}
+          scores={rows}
+          review={review ? Number(review) : null}
+        />
       )}
     </>
   );

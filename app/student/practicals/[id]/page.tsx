@@ -32,7 +32,13 @@ export default async function PracticalPage({ params }: { params: Promise<{ id: 
 
   // Independent reads together; the uploads the draft names in one query, not one per file.
   const [qdefs, draftRow, { used, extra }, attempts] = await Promise.all([
-    QuantityDefinition.findAll({ where: { practicalId: practical.id }, order: [['position', 'ASC'], ['id', 'ASC']] }),
+    QuantityDefinition.findAll({
+      where: { practicalId: practical.id },
+      order: [
+        ['position', 'ASC'],
+        ['id', 'ASC'],
+      ],
+    }),
     findDraft(practical.id, actor.id),
     attemptsUsed(practical.id, actor.id),
     Submission.findAll({ where: { practicalId: practical.id, studentId: actor.id }, order: [['attempt', 'DESC']] }),
@@ -40,30 +46,60 @@ export default async function PracticalPage({ params }: { params: Promise<{ id: 
   const draft = readDraft(draftRow?.draft, practical.species);
   const uploadIds = [draft.spectrumUploadId, draft.reportUploadId].filter((x): x is number => x !== null);
   const [views, uploadRows] = await Promise.all([
-    studentAttemptViews(attempts.filter((a) => a.attempt > 0), practical),
+    studentAttemptViews(
+      attempts.filter((a) => a.attempt > 0),
+      practical,
+    ),
     uploadIds.length ? Upload.findAll({ where: { id: uploadIds }, attributes: ['id', 'originalName'] }) : Promise.resolve([]),
   ]);
   const uploadName = (uid: number | null) => (uid ? (uploadRows.find((u) => u.id === uid)?.originalName ?? null) : null);
 
-  const quantities: FormQuantity[] = qdefs.filter((q) => isQuantityKey(q.key)).map((q) => {
-    const info = QUANTITIES[q.key as keyof typeof QUANTITIES];
-    const options = Array.from(new Set([q.unit, ...unitsFor(info.dimension).map((u) => u.display)])).filter(Boolean);
-    return { key: q.key, species: q.species, label: info.label, unit: q.unit, unitOptions: options, uncertaintyRequired: q.uncertaintyRequired, dimension: info.dimension };
-  });
+  const quantities: FormQuantity[] = qdefs
+    .filter((q) => isQuantityKey(q.key))
+    .map((q) => {
+      const info = QUANTITIES[q.key as keyof typeof QUANTITIES];
+      const options = Array.from(new Set([q.unit, ...unitsFor(info.dimension).map((u) => u.display)])).filter(Boolean);
+      return {
+        key: q.key,
+        species: q.species,
+        label: info.label,
+        unit: q.unit,
+        unitOptions: options,
+        uncertaintyRequired: q.uncertaintyRequired,
+        dimension: info.dimension,
+      };
+    });
   const deadline = new Date(pc.deadline);
 
   return (
     <>
-      <PageHeader title={practical.title} lead={practical.mode === 'practice' ? 'Practice: check your numbers at any time without using an attempt; each submitted attempt shows its checks at once.' : 'Assessed: check the format of your draft at any time without using an attempt; verdicts and marks come when the marking is released.'} />
+      <PageHeader
+        title={practical.title}
+        lead={
+          practical.mode === 'practice'
+            ? 'Practice: check your numbers at any time without using an attempt; each submitted attempt shows its checks at once.'
+            : 'Assessed: check the format of your draft at any time without using an attempt; verdicts and marks come when the marking is released.'
+        }
+      />
       <div className="mb-6 grid gap-4 md:grid-cols-3">
         <div className="card">
           <h2 className="text-base">Deadline</h2>
           <p className="num">{deadline.toLocaleString('en-GB', { dateStyle: 'full', timeStyle: 'short' })}</p>
-          <p className="text-sm text-ink-soft">{timeLeft(deadline)}{practical.lateRule === 'penalty' ? ` · late work loses ${practical.latePenaltyPerDay} % per day started, at most ${practical.latePenaltyCap} %` : practical.lateRule === 'not-accepted' ? ' · late work is not accepted' : ''}</p>
+          <p className="text-sm text-ink-soft">
+            {timeLeft(deadline)}
+            {practical.lateRule === 'penalty'
+              ? ` · late work loses ${practical.latePenaltyPerDay} % per day started, at most ${practical.latePenaltyCap} %`
+              : practical.lateRule === 'not-accepted'
+                ? ' · late work is not accepted'
+                : ''}
+          </p>
         </div>
         <div className="card">
           <h2 className="text-base">Attempts</h2>
-          <p><span className="num">{Math.max(0, practical.maxAttempts + extra - used)}</span> of <span className="num">{practical.maxAttempts + extra}</span> left</p>
+          <p>
+            <span className="num">{Math.max(0, practical.maxAttempts + extra - used)}</span> of{' '}
+            <span className="num">{practical.maxAttempts + extra}</span> left
+          </p>
           <p className="text-sm text-ink-soft">Your last submitted attempt is the one marked.</p>
         </div>
         {practical.hazardNotes.trim() && (
@@ -96,7 +132,9 @@ export default async function PracticalPage({ params }: { params: Promise<{ id: 
         <section className="mt-8 space-y-4" aria-labelledby="attempts">
           <h2 id="attempts">Your submitted attempts</h2>
           <p className="text-sm text-ink-soft">Newest first. The last one you submitted is the one that is marked.</p>
-          {views.map((v) => <AttemptResult key={v.id} view={v} />)}
+          {views.map((v) => (
+            <AttemptResult key={v.id} view={v} />
+          ))}
         </section>
       )}
     </>

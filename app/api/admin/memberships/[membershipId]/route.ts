@@ -15,7 +15,16 @@ export const DELETE = route<Ctx>(async (request, { params }) => {
     const row = await CourseMembership.findByPk(id, { transaction });
     if (!row) throw new HttpError(404, 'No such course role.');
     await row.destroy({ transaction });
-    await audit({ actorId: actor.id, action: 'membership.remove', entityType: 'course_membership', entityId: row.id, before: row.get({ plain: true }) }, transaction);
+    await audit(
+      {
+        actorId: actor.id,
+        action: 'membership.remove',
+        entityType: 'course_membership',
+        entityId: row.id,
+        before: row.get({ plain: true }),
+      },
+      transaction,
+    );
   });
   return json({ ok: true });
 });

@@ -14,7 +14,9 @@ export const GET = route<Ctx>(async (request, { params }) => {
   const id = idParam((await params).submissionId);
   await authorizeSubmission(request, id, 'submission-mark');
   const doc = await models().FeedbackDocument.findOne({ where: { submissionId: id }, order: [['id', 'DESC']] });
-  const pdf = doc ? new Uint8Array(await fs.readFile(feedbackPath(doc.storedName))) : await buildFeedbackPdf(feedbackInputFromView(await loadMarkingView(id)));
+  const pdf = doc
+    ? new Uint8Array(await fs.readFile(feedbackPath(doc.storedName)))
+    : await buildFeedbackPdf(feedbackInputFromView(await loadMarkingView(id)));
   return new Response(pdf as BodyInit, {
     headers: {
       'Content-Type': 'application/pdf',

@@ -24,7 +24,14 @@ export const POST = route<Ctx>(async (request, { params }) => {
   if (!(await requeue(row.id))) {
     throw new HttpError(409, `This message was already sent again just now; wait a minute before asking again.`);
   }
-  await audit({ actorId: actor.id, action: 'mail.resend', entityType: 'email_outbox', entityId: row.id, before, after: { requeued: true } });
+  await audit({
+    actorId: actor.id,
+    action: 'mail.resend',
+    entityType: 'email_outbox',
+    entityId: row.id,
+    before,
+    after: { requeued: true },
+  });
   deliverOutbox().catch((error) => log().error({ err: error }, 'outbox after resend failed'));
   return json({ ok: true });
 });

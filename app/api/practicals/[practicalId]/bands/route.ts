@@ -6,7 +6,8 @@ import { deleteBand, NeedsRecheckDecision, saveBand } from '@/lib/instructor/pra
 type Ctx = { params: Promise<{ practicalId: string }> };
 
 const asConflict = (error: unknown) => {
-  if (error instanceof NeedsRecheckDecision) return json({ error: error.message, needsRecheckDecision: true, submissions: error.submissions }, 409);
+  if (error instanceof NeedsRecheckDecision)
+    return json({ error: error.message, needsRecheckDecision: true, submissions: error.submissions }, 409);
   throw error;
 };
 

@@ -14,5 +14,13 @@ export const GET = route<Ctx>(async (request, { params }) => {
   if (sample && !sample.success) throw new HttpError(400, 'The sample is named by lower-case letters, digits and dashes.');
   const figure = await spectrumFigure(submission, practical, 'student', sample?.data);
   if (!figure.ok) throw new HttpError(figure.status, figure.message);
-  return json({ plot: figure.plot, description: figure.description, summary: figure.summary, samples: figure.samples, sample: figure.sample, bands: figure.bands, perBand: figure.perBand });
+  return json({
+    plot: figure.plot,
+    description: figure.description,
+    summary: figure.summary,
+    samples: figure.samples,
+    sample: figure.sample,
+    bands: figure.bands,
+    perBand: figure.perBand,
+  });
 });

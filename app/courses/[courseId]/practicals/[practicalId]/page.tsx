@@ -17,8 +17,13 @@ export default async function PracticalPage({ params }: { params: Promise<{ cour
   const course = (await models().Course.findByPk(practical.courseId))!;
   return (
     <>
-      <p className="mb-2 text-sm"><a href={`/courses/${course.id}`}>← {course.code}</a></p>
-      <PageHeader title={practical.title} lead="Definition, quantities and tolerance bands. Changes apply to new checks; you are asked before existing submissions are re-checked." />
+      <p className="mb-2 text-sm">
+        <a href={`/courses/${course.id}`}>← {course.code}</a>
+      </p>
+      <PageHeader
+        title={practical.title}
+        lead="Definition, quantities and tolerance bands. Changes apply to new checks; you are asked before existing submissions are re-checked."
+      />
       <PracticalEditor practicalId={practical.id} courseId={course.id} />
       <SpectrumSettings practicalId={practical.id} />
     </>

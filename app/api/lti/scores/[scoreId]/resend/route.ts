@@ -17,7 +17,15 @@ export const POST = route<Ctx>(async (request, { params }) => {
   const { actor } = await authorizeSubmission(request, row.submissionId, 'submission-mark');
   if (row.status === 'queued' || row.status === 'sending') throw new HttpError(409, 'This score is still waiting to be sent.');
   await resendScore(id);
-  await audit({ actorId: actor.id, action: 'lti.score.resend', entityType: 'lti_score_outbox', entityId: id, before: { status: row.status }, after: { requeued: true } });
-  if (process.env.OUTBOX_WORKER !== 'off') deliverScores().catch((error) => log().error({ err: error }, 'score delivery after resend failed'));
+  await audit({
+    actorId: actor.id,
+    action: 'lti.score.resend',
+    entityType: 'lti_score_outbox',
+    entityId: id,
+    before: { status: row.status },
+    after: { requeued: true },
+  });
+  if (process.env.OUTBOX_WORKER !== 'off')
+    deliverScores().catch((error) => log().error({ err: error }, 'score delivery after resend failed'));
   return json({ ok: true });
 });
