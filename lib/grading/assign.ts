@@ -113,13 +113,19 @@ function score(byM: Map<number, Match>, lines: Predicted[], offset: number, lo: 
   return { score: byM.size - 0.5 * missing, sumSquares };
 }
 
-export function assignPeaks(peaks: unknown, speciesInput: string | Species, options: AssignOptions = {}): AssignmentResult {
-  const fail = (message: string, field = 'peaks'): AssignmentResult => ({
-    ok: false,
-    assignments: [],
-    unassigned: [],
-    problems: [{ field, message }],
-  });
+const failed = (message: string, field = 'peaks'): AssignmentResult => ({
+  ok: false,
+  assignments: [],
+  unassigned: [],
+  problems: [{ field, message }],
+});
+
+/** The peaks (sorted, without repeats) and the species with its reference constants, or why they cannot be used. */
+function readInput(
+  peaks: unknown,
+  speciesInput: string | Species,
+): { ok: true; sorted: number[]; species: Species; ref: BandConstants } | { ok: false; result: AssignmentResult } {
+  const fail = (message: string, field?: string) => ({ ok: false as const, result: failed(message, field) });
   if (!Array.isArray(peaks)) return fail('The peaks must be a list of wavenumbers in cm⁻¹.');
   if (peaks.length > MAX_LINES) return fail(`${peaks.length} peaks is more than a band has (limit ${MAX_LINES}).`);
   const bad = peaks.findIndex((p) => typeof p !== 'number' || !Number.isFinite(p) || p <= 0);
@@ -140,6 +146,13 @@ export function assignPeaks(peaks: unknown, speciesInput: string | Species, opti
       `Oscillab has no reference constants for ${species.display}, so it cannot propose an assignment; assign the lines by hand.`,
       'species',
     );
+  return { ok: true, sorted, species, ref };
+}
+
+export function assignPeaks(peaks: unknown, speciesInput: string | Species, options: AssignOptions = {}): AssignmentResult {
+  const input = readInput(peaks, speciesInput);
+  if (!input.ok) return input.result;
+  const { sorted, species, ref } = input;
 
   const maxOffset = Math.max(0, Math.min(100, options.maxOffset ?? 25));
   const lo = sorted[0];
@@ -199,7 +212,7 @@ export function assignPeaks(peaks: unknown, speciesInput: string | Species, opti
     }
   }
   if (!best || best.score < 3) {
-    return fail(
+    return failed(
       `No ${species.display} band was found among these peaks: the reference constants put it near ${Math.round(ref.nu0)} cm⁻¹ (within ±${maxOffset} cm⁻¹ of calibration), and fewer than three peaks fall on its lines there.`,
     );
   }
@@ -256,27 +269,52 @@ export function assignPeaks(peaks: unknown, speciesInput: string | Species, opti
       residual,
     });
   }
+  const unassigned = nameLeftovers(
+    sorted,
+    used,
+    species,
+    partner && partnerPolynomial ? { species: partner, lines: partnerLines, polynomial: partnerPolynomial } : undefined,
+    partnerOffset,
+  );
+  assignments.sort((x, y) => x.wavenumber - y.wavenumber);
+  const problems: AssignmentResult['problems'] = [];
+  if (assignments.length < 3)
+    problems.push({ field: 'peaks', message: `Only ${assignments.length} peaks could be assigned to the ${species.display} band.` });
+  return { ok: assignments.length >= 3, assignments, unassigned, bandCentreEstimate: c[0] + offset, offset: calibration, problems };
+}
+
+/** The partner isotopologue, its line polynomial and its predicted lines. */
+interface PartnerPrediction {
+  species: Species;
+  lines: Predicted[];
+  polynomial: Polynomial;
+}
+
+/** Why each peak no line took is left: a line of the partner isotopologue (same calibration), or no line of this band. */
+function nameLeftovers(
+  sorted: number[],
+  used: Set<number>,
+  species: Species,
+  partner: PartnerPrediction | undefined,
+  partnerOffset: number,
+): AssignmentResult['unassigned'] {
   const unassigned: AssignmentResult['unassigned'] = [];
   for (const p of sorted) {
     if (used.has(p)) continue;
-    if (partnerLines.length && partner) {
-      const j = nearest(partnerLines, p - partnerOffset);
-      const m = partnerLines[j].m;
-      if (Math.abs(p - partnerOffset - partnerLines[j].position) < 0.2 * spacingAt(partnerPolynomial!, m)) {
+    if (partner && partner.lines.length) {
+      const j = nearest(partner.lines, p - partnerOffset);
+      const m = partner.lines[j].m;
+      if (Math.abs(p - partnerOffset - partner.lines[j].position) < 0.2 * spacingAt(partner.polynomial, m)) {
         const l = lineOf(m);
         unassigned.push({
           wavenumber: p,
-          reason: `the ${partner.display} line ${l.branch}(${l.J}) of the same band`,
-          likelyIsotopologue: partner.formula,
+          reason: `the ${partner.species.display} line ${l.branch}(${l.J}) of the same band`,
+          likelyIsotopologue: partner.species.formula,
         });
         continue;
       }
     }
     unassigned.push({ wavenumber: p, reason: `no line of the ${species.display} fundamental is predicted here` });
   }
-  assignments.sort((x, y) => x.wavenumber - y.wavenumber);
-  const problems: AssignmentResult['problems'] = [];
-  if (assignments.length < 3)
-    problems.push({ field: 'peaks', message: `Only ${assignments.length} peaks could be assigned to the ${species.display} band.` });
-  return { ok: assignments.length >= 3, assignments, unassigned, bandCentreEstimate: c[0] + offset, offset: calibration, problems };
+  return unassigned;
 }

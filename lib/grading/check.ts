@@ -289,41 +289,9 @@ function checkSubmissionUnsafe(input: SubmissionInput): SubmissionResult {
       }
     : undefined;
   const lit = species ? referenceValues(species, partner) : {};
-  const studentOmegaE = anharmonic ? anharmonic.omegaE * 100 : reportedInputs.omegaE?.valueSI;
-  const studentOmegaExe = anharmonic ? anharmonic.omegaExe * 100 : reportedInputs.omegaExe?.valueSI;
-  const studentInputs: SlipInputs | undefined = species
-    ? {
-        species,
-        nu0: nu0SI,
-        omegaE: studentOmegaE ?? lit.omegaE?.valueSI,
-        omegaExe: studentOmegaExe,
-        B0: lines ? lines.models.fit.B0.value * 100 : reportedInputs.B0?.valueSI,
-        B1: lines ? lines.models.fit.B1.value * 100 : reportedInputs.B1?.valueSI,
-        Be: reportedInputs.Be?.valueSI ?? (lines ? lines.models.fit.Be.value * 100 : undefined),
-        misnumberedFit: lines?.misnumberedFit,
-        asLabelledFit: lines?.asLabelled,
-        partnerMu: partner?.reducedMassKg,
-        partnerNu0: mPartnerBand?.valueSI,
-      }
+  const slipStarts = species
+    ? slipInputs(species, partner, lit, { nu0SI, anharmonic, reported: reportedInputs, lines, partnerBand: mPartnerBand })
     : undefined;
-  const referenceInputs: SlipInputs | undefined = species
-    ? {
-        species,
-        nu0: lit.bandCentre?.valueSI,
-        omegaE: lit.omegaE?.valueSI,
-        omegaExe: lit.omegaExe?.valueSI,
-        B0: lit.B0?.valueSI,
-        B1: lit.B1?.valueSI,
-        partnerMu: partner?.reducedMassKg,
-      }
-    : undefined;
-
-  const required = (key: QuantityKey) => {
-    const r = input.requireUncertainty;
-    if (r === undefined || r === true) return MEASURED_KEYS.has(key);
-    if (r === false) return false;
-    return r[key] === true;
-  };
 
   // 4. Judge each reported quantity.
   const quantities: QuantityCheck[] = [];
@@ -339,9 +307,12 @@ function checkSubmissionUnsafe(input: SubmissionInput): SubmissionResult {
       consistencyTolerance: consistencyTolerances[key],
       accuracyTolerance: tolerances[key],
       accepted: (method) => acceptedValue(key, referenceIn[key], lit, species, partner, method, problems),
-      uncertaintyRequired: required(key) || tolerances[key]?.sigma !== undefined || tolerances[key]?.partial?.sigma !== undefined,
-      studentInputs,
-      referenceInputs,
+      uncertaintyRequired:
+        uncertaintyRequired(input.requireUncertainty, key) ||
+        tolerances[key]?.sigma !== undefined ||
+        tolerances[key]?.partial?.sigma !== undefined,
+      studentInputs: slipStarts?.student,
+      referenceInputs: slipStarts?.reference,
       species,
     });
     const method = entries.find((e) => e.basis === 'consistency' && e.verdict === 'within')?.method;
@@ -364,6 +335,58 @@ function checkSubmissionUnsafe(input: SubmissionInput): SubmissionResult {
     },
     notices,
     problems,
+  };
+}
+
+/** Whether a quantity must carry an uncertainty: every measured one by default, none, or as listed. */
+function uncertaintyRequired(r: SubmissionInput['requireUncertainty'], key: QuantityKey): boolean {
+  if (r === undefined || r === true) return MEASURED_KEYS.has(key);
+  if (r === false) return false;
+  return r[key] === true;
+}
+
+/**
+ * What the slip models start from: the student's own numbers (from their analysis, else as they
+ * reported them) and the literature's.
+ */
+function slipInputs(
+  species: Species,
+  partner: Species | undefined,
+  lit: Partial<Record<QuantityKey, ReferenceValue>>,
+  own: {
+    nu0SI: number | undefined;
+    anharmonic: AnharmonicAnalysis | undefined;
+    reported: Partial<Record<QuantityKey, TypedInput>>;
+    lines: LineAnalysis | undefined;
+    partnerBand: TypedInput | undefined;
+  },
+): { student: SlipInputs; reference: SlipInputs } {
+  const { anharmonic, reported, lines } = own;
+  const studentOmegaE = anharmonic ? anharmonic.omegaE * 100 : reported.omegaE?.valueSI;
+  const studentOmegaExe = anharmonic ? anharmonic.omegaExe * 100 : reported.omegaExe?.valueSI;
+  return {
+    student: {
+      species,
+      nu0: own.nu0SI,
+      omegaE: studentOmegaE ?? lit.omegaE?.valueSI,
+      omegaExe: studentOmegaExe,
+      B0: lines ? lines.models.fit.B0.value * 100 : reported.B0?.valueSI,
+      B1: lines ? lines.models.fit.B1.value * 100 : reported.B1?.valueSI,
+      Be: reported.Be?.valueSI ?? (lines ? lines.models.fit.Be.value * 100 : undefined),
+      misnumberedFit: lines?.misnumberedFit,
+      asLabelledFit: lines?.asLabelled,
+      partnerMu: partner?.reducedMassKg,
+      partnerNu0: own.partnerBand?.valueSI,
+    },
+    reference: {
+      species,
+      nu0: lit.bandCentre?.valueSI,
+      omegaE: lit.omegaE?.valueSI,
+      omegaExe: lit.omegaExe?.valueSI,
+      B0: lit.B0?.valueSI,
+      B1: lit.B1?.valueSI,
+      partnerMu: partner?.reducedMassKg,
+    },
   };
 }
 

@@ -145,209 +145,245 @@ const CD_SOURCE = 'your line list through combination differences: R(J−1) − 
 
 /** Every defensible value of a quantity from the student's own data, the preferred first. */
 export function recompute(key: QuantityKey, own: OwnData): Recomputed[] {
-  const out: (Recomputed | undefined)[] = [];
-  const mu = own.species.reducedMassKg;
-  const rep = own.reported;
+  return candidates(key, own).filter((r): r is Recomputed => r !== undefined);
+}
+
+/** One step per quantity (or family of quantities); a step leaves out what it cannot compute. */
+function candidates(key: QuantityKey, own: OwnData): (Recomputed | undefined)[] {
   switch (key) {
-    case 'bandCentre': {
-      for (const f of fits(own)) out.push(fitted(f.nu0, fitSource(f), fitMethod(f)));
-      const r0 = own.fit?.residuals.find((l) => l.branch === 'R' && l.J === 0);
-      const p1 = own.fit?.residuals.find((l) => l.branch === 'P' && l.J === 1);
-      // Read from the gap: the midpoint of R(0) and P(1) is ν̃₀ + B₁ − B₀.
-      if (r0 && p1)
-        out.push(
-          arithmetic(
-            (a, b) => (a + b) / 2,
-            [exactly(r0.observed * CM), exactly(p1.observed * CM)],
-            'the middle of the band gap, (R(0) + P(1))/2, from your line list',
-            'band-gap',
-          ),
-        );
-      break;
-    }
+    case 'bandCentre':
+      return bandCentreValues(own);
     case 'reducedMass':
-      out.push({
-        valueSI: mu,
-        sigmaSI: 0,
-        inputRoundingSI: 0,
-        kind: 'arithmetic',
-        source: `μ = m₁m₂/(m₁ + m₂) from the isotopic masses of ${own.species.display}`,
-      });
-      break;
-    case 'forceConstant': {
-      // k = 4π²c²ν̃₀²μ, with μ as the student typed it when they did (rounded μ is not a slip).
-      const muIn = rep.reducedMass ? { valueSI: mu, roundingSI: rep.reducedMass.roundingSI } : exactly(mu);
-      const k = (nu: number, m: number) => forceConstantFromBand(nu, m);
-      if (own.bandCentre) out.push(arithmetic(k, [own.bandCentre, muIn], 'k = 4π²c²ν̃₀²μ from your band centre'));
-      if (own.reportedBandCentre) out.push(arithmetic(k, [own.reportedBandCentre, muIn], 'k = 4π²c²ν̃₀²μ from your reported band centre'));
-      if (!own.bandCentre && own.fit) {
-        const e = own.fit.nu0;
-        const kv = forceConstantFromBand(e.value * CM, mu);
-        out.push({
-          valueSI: kv,
-          sigmaSI: (2 * e.stdError * kv) / e.value,
+      return [
+        {
+          valueSI: own.species.reducedMassKg,
+          sigmaSI: 0,
           inputRoundingSI: 0,
-          kind: 'fitted',
-          source: 'k = 4π²c²ν̃₀²μ from the band centre of your line fit',
-        });
-      }
-      break;
-    }
-    case 'forceConstantE': {
-      const muIn = rep.reducedMass ? { valueSI: mu, roundingSI: rep.reducedMass.roundingSI } : exactly(mu);
-      if (own.bandCentre && own.overtone) {
-        out.push(
-          arithmetic(
-            (n1, n2, m) => forceConstantFromBand(3 * n1 - n2, m),
-            [own.bandCentre, own.overtone, muIn],
-            'kₑ = 4π²c²ωₑ²μ with ωₑ = 3ν̃₁←₀ − ν̃₂←₀ from your band positions',
-            'your-band-positions',
-          ),
-        );
-      }
-      if (rep.omegaE)
-        out.push(
-          arithmetic((w, m) => forceConstantFromBand(w, m), [rep.omegaE, muIn], 'kₑ = 4π²c²ωₑ²μ from your ωₑ', 'your-reported-values'),
-        );
-      break;
-    }
+          kind: 'arithmetic',
+          source: `μ = m₁m₂/(m₁ + m₂) from the isotopic masses of ${own.species.display}`,
+        },
+      ];
+    case 'forceConstant':
+      return forceConstantValues(own);
+    case 'forceConstantE':
+      return equilibriumForceConstantValues(own);
     case 'B0':
     case 'B1':
     case 'Be':
     case 'alphaE':
-    case 'D': {
-      for (const f of fits(own)) out.push(fitted(f[key], fitSource(f), fitMethod(f)));
-      if (key !== 'D') {
-        for (const cd of combinationDifferenceBs(own)) {
-          const v = { B0: cd.B0, B1: cd.B1, Be: combine(cd.B0, cd.B1, 1.5, -0.5), alphaE: combine(cd.B0, cd.B1, 1, -1) }[key];
-          out.push(fitted(v, CD_SOURCE, 'combination-differences'));
-        }
-      }
-      // Bₑ and αₑ are arithmetic on the student's own B₀ and B₁ (an error in those is carried forward).
-      if ((key === 'Be' || key === 'alphaE') && rep.B0 && rep.B1) {
-        const f = key === 'Be' ? (b0: number, b1: number) => (3 * b0 - b1) / 2 : (b0: number, b1: number) => b0 - b1;
-        out.push(
-          arithmetic(
-            f,
-            [rep.B0, rep.B1],
-            key === 'Be' ? 'Bₑ = (3B₀ − B₁)/2 from your B₀ and B₁' : 'αₑ = B₀ − B₁ from your B₀ and B₁',
-            'your-rotational-constants',
-          ),
-        );
-      }
-      break;
-    }
+    case 'D':
+      return rotationalConstantValues(key, own);
     case 're':
-    case 'r0': {
-      const r = (B: number) => bondLengthFromB(B, mu);
-      const name = key === 're' ? 'rₑ' : 'r₀';
-      const B = key === 're' ? 'Bₑ' : 'B₀';
-      const own_ = key === 're' ? rep.Be : rep.B0;
-      if (own_ && own_.valueSI > 0)
-        out.push(arithmetic(r, [own_], `${name} = √(h/(8π²cμ${B})) from your ${B}`, 'your-rotational-constants'));
-      else if (key === 're' && rep.B0 && rep.B1) {
-        out.push(
-          arithmetic(
-            (b0, b1) => r((3 * b0 - b1) / 2),
-            [rep.B0, rep.B1],
-            'rₑ = √(h/(8π²cμBₑ)) with Bₑ = (3B₀ − B₁)/2 from your B₀ and B₁',
-            'your-rotational-constants',
-          ),
-        );
-      }
-      for (const f of fits(own)) {
-        const e = f[key === 're' ? 'Be' : 'B0'];
-        if (!(e.value > 0)) continue;
-        const v = r(e.value * CM);
-        out.push({
-          valueSI: v,
-          sigmaSI: (v * e.stdError) / (2 * e.value),
-          inputRoundingSI: 0,
-          kind: 'fitted',
-          source: `${name} = √(h/(8π²cμ${B})) from ${B} of your line list (fit ${f.model === 'cubic' ? 'with' : 'without'} the centrifugal term)`,
-          method: fitMethod(f),
-        });
-      }
-      break;
-    }
+    case 'r0':
+      return bondLengthValues(key, own);
     case 'omegaE':
-      if (own.bandCentre && own.overtone)
-        out.push(
-          arithmetic(
-            (n1, n2) => 3 * n1 - n2,
-            [own.bandCentre, own.overtone],
-            'ωₑ = 3ν̃₁←₀ − ν̃₂←₀ from your band positions',
-            'your-band-positions',
-          ),
-        );
-      break;
     case 'omegaExe':
-      if (own.bandCentre && own.overtone)
-        out.push(
-          arithmetic(
-            (n1, n2) => (2 * n1 - n2) / 2,
-            [own.bandCentre, own.overtone],
-            'ωₑxₑ = (2ν̃₁←₀ − ν̃₂←₀)/2 from your band positions',
-            'your-band-positions',
-          ),
-        );
-      break;
+      return vibrationalConstantValues(key, own);
     case 'zeroPointEnergy':
     case 'dissociationEnergy':
-    case 'dissociationEnergy0': {
-      const energy = ENERGY_FORMULAS[key];
-      // From the student's own ωₑ and ωₑxₑ (carried forward), else from their band positions.
-      if (rep.omegaE && rep.omegaExe)
-        out.push(
-          arithmetic(
-            (w, x) => energy.of(w, x),
-            [rep.omegaE, rep.omegaExe],
-            `${energy.formula} from your ωₑ and ωₑxₑ`,
-            'your-reported-values',
-          ),
-        );
-      if (own.bandCentre && own.overtone) {
-        out.push(
-          arithmetic(
-            (n1, n2) => energy.of(3 * n1 - n2, (2 * n1 - n2) / 2),
-            [own.bandCentre, own.overtone],
-            `${energy.formula} with ωₑ and ωₑxₑ from your band positions`,
-            'your-band-positions',
-          ),
-        );
-      }
-      break;
-    }
+    case 'dissociationEnergy0':
+      return energyValues(key, own);
     case 'isotopeShift':
-    case 'isotopeRatio': {
-      const partner = own.partner;
-      if (!partner || !own.bandCentre) break;
-      const ratio = Math.sqrt(mu / partner.reducedMassKg);
-      if (own.partnerBandCentre) {
-        const f = key === 'isotopeShift' ? (a: number, b: number) => b - a : (a: number, b: number) => b / a;
-        out.push(
-          arithmetic(
-            f,
-            [own.bandCentre, own.partnerBandCentre],
-            `your band centres of ${own.species.display} and ${partner.display}`,
-            'your-band-positions',
-          ),
-        );
-      }
-      // The harmonic prediction ν̃₀′ = ν̃₀√(μ/μ′) from the student's own band centre.
-      const f = key === 'isotopeShift' ? (a: number) => a * ratio - a : () => ratio;
-      out.push(
-        arithmetic(
-          f,
-          [own.bandCentre],
-          `the harmonic prediction ν̃₀′ = ν̃₀√(μ/μ′) for ${partner.display} from your band centre`,
-          'harmonic-prediction',
-        ),
-      );
-      break;
+    case 'isotopeRatio':
+      return isotopeValues(key, own);
+  }
+}
+
+function bandCentreValues(own: OwnData): (Recomputed | undefined)[] {
+  const out: (Recomputed | undefined)[] = [];
+  for (const f of fits(own)) out.push(fitted(f.nu0, fitSource(f), fitMethod(f)));
+  const r0 = own.fit?.residuals.find((l) => l.branch === 'R' && l.J === 0);
+  const p1 = own.fit?.residuals.find((l) => l.branch === 'P' && l.J === 1);
+  // Read from the gap: the midpoint of R(0) and P(1) is ν̃₀ + B₁ − B₀.
+  if (r0 && p1)
+    out.push(
+      arithmetic(
+        (a, b) => (a + b) / 2,
+        [exactly(r0.observed * CM), exactly(p1.observed * CM)],
+        'the middle of the band gap, (R(0) + P(1))/2, from your line list',
+        'band-gap',
+      ),
+    );
+  return out;
+}
+
+/** μ as the student typed it when they did (a rounded μ is not a slip), else exactly. */
+function typedReducedMass(own: OwnData): TypedInput {
+  const mu = own.species.reducedMassKg;
+  return own.reported.reducedMass ? { valueSI: mu, roundingSI: own.reported.reducedMass.roundingSI } : exactly(mu);
+}
+
+function forceConstantValues(own: OwnData): (Recomputed | undefined)[] {
+  const out: (Recomputed | undefined)[] = [];
+  const mu = own.species.reducedMassKg;
+  // k = 4π²c²ν̃₀²μ.
+  const muIn = typedReducedMass(own);
+  const k = (nu: number, m: number) => forceConstantFromBand(nu, m);
+  if (own.bandCentre) out.push(arithmetic(k, [own.bandCentre, muIn], 'k = 4π²c²ν̃₀²μ from your band centre'));
+  if (own.reportedBandCentre) out.push(arithmetic(k, [own.reportedBandCentre, muIn], 'k = 4π²c²ν̃₀²μ from your reported band centre'));
+  if (!own.bandCentre && own.fit) {
+    const e = own.fit.nu0;
+    const kv = forceConstantFromBand(e.value * CM, mu);
+    out.push({
+      valueSI: kv,
+      sigmaSI: (2 * e.stdError * kv) / e.value,
+      inputRoundingSI: 0,
+      kind: 'fitted',
+      source: 'k = 4π²c²ν̃₀²μ from the band centre of your line fit',
+    });
+  }
+  return out;
+}
+
+function equilibriumForceConstantValues(own: OwnData): (Recomputed | undefined)[] {
+  const out: (Recomputed | undefined)[] = [];
+  const rep = own.reported;
+  const muIn = typedReducedMass(own);
+  if (own.bandCentre && own.overtone) {
+    out.push(
+      arithmetic(
+        (n1, n2, m) => forceConstantFromBand(3 * n1 - n2, m),
+        [own.bandCentre, own.overtone, muIn],
+        'kₑ = 4π²c²ωₑ²μ with ωₑ = 3ν̃₁←₀ − ν̃₂←₀ from your band positions',
+        'your-band-positions',
+      ),
+    );
+  }
+  if (rep.omegaE)
+    out.push(arithmetic((w, m) => forceConstantFromBand(w, m), [rep.omegaE, muIn], 'kₑ = 4π²c²ωₑ²μ from your ωₑ', 'your-reported-values'));
+  return out;
+}
+
+function rotationalConstantValues(key: 'B0' | 'B1' | 'Be' | 'alphaE' | 'D', own: OwnData): (Recomputed | undefined)[] {
+  const out: (Recomputed | undefined)[] = [];
+  const rep = own.reported;
+  for (const f of fits(own)) out.push(fitted(f[key], fitSource(f), fitMethod(f)));
+  if (key !== 'D') {
+    for (const cd of combinationDifferenceBs(own)) {
+      const v = { B0: cd.B0, B1: cd.B1, Be: combine(cd.B0, cd.B1, 1.5, -0.5), alphaE: combine(cd.B0, cd.B1, 1, -1) }[key];
+      out.push(fitted(v, CD_SOURCE, 'combination-differences'));
     }
   }
-  return out.filter((r): r is Recomputed => r !== undefined);
+  // Bₑ and αₑ are arithmetic on the student's own B₀ and B₁ (an error in those is carried forward).
+  if ((key === 'Be' || key === 'alphaE') && rep.B0 && rep.B1) {
+    const f = key === 'Be' ? (b0: number, b1: number) => (3 * b0 - b1) / 2 : (b0: number, b1: number) => b0 - b1;
+    out.push(
+      arithmetic(
+        f,
+        [rep.B0, rep.B1],
+        key === 'Be' ? 'Bₑ = (3B₀ − B₁)/2 from your B₀ and B₁' : 'αₑ = B₀ − B₁ from your B₀ and B₁',
+        'your-rotational-constants',
+      ),
+    );
+  }
+  return out;
+}
+
+function bondLengthValues(key: 're' | 'r0', own: OwnData): (Recomputed | undefined)[] {
+  const out: (Recomputed | undefined)[] = [];
+  const mu = own.species.reducedMassKg;
+  const rep = own.reported;
+  const r = (B: number) => bondLengthFromB(B, mu);
+  const name = key === 're' ? 'rₑ' : 'r₀';
+  const B = key === 're' ? 'Bₑ' : 'B₀';
+  const own_ = key === 're' ? rep.Be : rep.B0;
+  if (own_ && own_.valueSI > 0) out.push(arithmetic(r, [own_], `${name} = √(h/(8π²cμ${B})) from your ${B}`, 'your-rotational-constants'));
+  else if (key === 're' && rep.B0 && rep.B1) {
+    out.push(
+      arithmetic(
+        (b0, b1) => r((3 * b0 - b1) / 2),
+        [rep.B0, rep.B1],
+        'rₑ = √(h/(8π²cμBₑ)) with Bₑ = (3B₀ − B₁)/2 from your B₀ and B₁',
+        'your-rotational-constants',
+      ),
+    );
+  }
+  for (const f of fits(own)) {
+    const e = f[key === 're' ? 'Be' : 'B0'];
+    if (!(e.value > 0)) continue;
+    const v = r(e.value * CM);
+    out.push({
+      valueSI: v,
+      sigmaSI: (v * e.stdError) / (2 * e.value),
+      inputRoundingSI: 0,
+      kind: 'fitted',
+      source: `${name} = √(h/(8π²cμ${B})) from ${B} of your line list (fit ${f.model === 'cubic' ? 'with' : 'without'} the centrifugal term)`,
+      method: fitMethod(f),
+    });
+  }
+  return out;
+}
+
+function vibrationalConstantValues(key: 'omegaE' | 'omegaExe', own: OwnData): (Recomputed | undefined)[] {
+  if (!own.bandCentre || !own.overtone) return [];
+  return key === 'omegaE'
+    ? [
+        arithmetic(
+          (n1, n2) => 3 * n1 - n2,
+          [own.bandCentre, own.overtone],
+          'ωₑ = 3ν̃₁←₀ − ν̃₂←₀ from your band positions',
+          'your-band-positions',
+        ),
+      ]
+    : [
+        arithmetic(
+          (n1, n2) => (2 * n1 - n2) / 2,
+          [own.bandCentre, own.overtone],
+          'ωₑxₑ = (2ν̃₁←₀ − ν̃₂←₀)/2 from your band positions',
+          'your-band-positions',
+        ),
+      ];
+}
+
+function energyValues(key: 'zeroPointEnergy' | 'dissociationEnergy' | 'dissociationEnergy0', own: OwnData): (Recomputed | undefined)[] {
+  const out: (Recomputed | undefined)[] = [];
+  const rep = own.reported;
+  const energy = ENERGY_FORMULAS[key];
+  // From the student's own ωₑ and ωₑxₑ (carried forward), else from their band positions.
+  if (rep.omegaE && rep.omegaExe)
+    out.push(
+      arithmetic((w, x) => energy.of(w, x), [rep.omegaE, rep.omegaExe], `${energy.formula} from your ωₑ and ωₑxₑ`, 'your-reported-values'),
+    );
+  if (own.bandCentre && own.overtone) {
+    out.push(
+      arithmetic(
+        (n1, n2) => energy.of(3 * n1 - n2, (2 * n1 - n2) / 2),
+        [own.bandCentre, own.overtone],
+        `${energy.formula} with ωₑ and ωₑxₑ from your band positions`,
+        'your-band-positions',
+      ),
+    );
+  }
+  return out;
+}
+
+function isotopeValues(key: 'isotopeShift' | 'isotopeRatio', own: OwnData): (Recomputed | undefined)[] {
+  const out: (Recomputed | undefined)[] = [];
+  const partner = own.partner;
+  if (!partner || !own.bandCentre) return out;
+  const ratio = Math.sqrt(own.species.reducedMassKg / partner.reducedMassKg);
+  if (own.partnerBandCentre) {
+    const f = key === 'isotopeShift' ? (a: number, b: number) => b - a : (a: number, b: number) => b / a;
+    out.push(
+      arithmetic(
+        f,
+        [own.bandCentre, own.partnerBandCentre],
+        `your band centres of ${own.species.display} and ${partner.display}`,
+        'your-band-positions',
+      ),
+    );
+  }
+  // The harmonic prediction ν̃₀′ = ν̃₀√(μ/μ′) from the student's own band centre.
+  const f = key === 'isotopeShift' ? (a: number) => a * ratio - a : () => ratio;
+  out.push(
+    arithmetic(
+      f,
+      [own.bandCentre],
+      `the harmonic prediction ν̃₀′ = ν̃₀√(μ/μ′) for ${partner.display} from your band centre`,
+      'harmonic-prediction',
+    ),
+  );
+  return out;
 }
 
 /** a·x + b·y for two estimates (their covariance is not known here; taken as independent). */

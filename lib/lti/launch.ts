@@ -54,8 +54,11 @@ export type VerifiedLaunch = {
 const isObject = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
 const text = (v: unknown, max = 255): string | null => (typeof v === 'string' && v.length > 0 && v.length <= max ? v : null);
 
-/** Everything except the writes. Throws LaunchRefused with a clear message for each way a token can be wrong. */
-export async function verifyLaunch(idToken: string, state: string): Promise<VerifiedLaunch> {
+/**
+ * What the token says before its signature is checked: only enough to find the registration
+ * (issuer and audiences), after the size and the algorithm are accepted.
+ */
+function readUnverified(idToken: string): { issuer: string; audiences: string[] } {
   if (Buffer.byteLength(idToken) > limits.maxIdTokenBytes) {
     throw refused(
       413,
@@ -86,8 +89,11 @@ export async function verifyLaunch(idToken: string, state: string): Promise<Veri
       ? [unverified.aud]
       : [];
   if (audiences.length === 0) throw missing('audience (aud)');
+  return { issuer, audiences };
+}
 
-  // Which registration: by issuer, then by the audience naming its client id.
+/** Which registration: by issuer, then by the audience naming its client id; it must be switched on. */
+async function registrationFor(issuer: string, audiences: string[]): Promise<LtiRegistration> {
   const candidates = await models().LtiRegistration.findAll({ where: { issuer } });
   if (candidates.length === 0) {
     throw refused(
@@ -107,6 +113,47 @@ export async function verifyLaunch(idToken: string, state: string): Promise<Veri
       'This learning platform’s connection is switched off',
       'The site administrator has switched off this learning platform’s connection to Oscillab.',
     );
+  return registration;
+}
+
+/** The item a resource-link launch opens, or where a deep-linking request wants its answer. */
+function messageTarget(
+  claims: Claims,
+  messageType: unknown,
+): { resourceLink: VerifiedLaunch['resourceLink']; deepLinking: VerifiedLaunch['deepLinking'] } {
+  let resourceLink: VerifiedLaunch['resourceLink'] = null;
+  let deepLinking: VerifiedLaunch['deepLinking'] = null;
+  if (messageType === MESSAGE.resourceLink) {
+    const link = claims[CLAIM.resourceLink];
+    if (!isObject(link) || !text(link.id)) throw missing('item (resource_link)');
+    resourceLink = { id: link.id as string, title: text(link.title, 300) };
+  } else {
+    const settings = claims[CLAIM.deepLinkingSettings];
+    if (!isObject(settings) || !text(settings.deep_link_return_url, 1000)) throw missing('deep-linking return address');
+    if (!isAcceptablePlatformUrl(settings.deep_link_return_url as string))
+      throw refused(
+        400,
+        'bad-return-url',
+        'The learning platform’s return address is not acceptable',
+        'The deep-linking return address must be an https address.',
+      );
+    const acceptTypes = Array.isArray(settings.accept_types) ? settings.accept_types.filter((t): t is string => typeof t === 'string') : [];
+    if (!acceptTypes.includes('ltiResourceLink'))
+      throw refused(
+        400,
+        'deep-link-type',
+        'The learning platform cannot take an Oscillab item here',
+        'This placement does not accept links to tools (ltiResourceLink).',
+      );
+    deepLinking = { returnUrl: settings.deep_link_return_url as string, data: text(settings.data, 2000), acceptTypes };
+  }
+  return { resourceLink, deepLinking };
+}
+
+/** Everything except the writes. Throws LaunchRefused with a clear message for each way a token can be wrong. */
+export async function verifyLaunch(idToken: string, state: string): Promise<VerifiedLaunch> {
+  const { issuer, audiences } = readUnverified(idToken);
+  const registration = await registrationFor(issuer, audiences);
 
   let claims: Claims;
   try {
@@ -170,32 +217,7 @@ export async function verifyLaunch(idToken: string, state: string): Promise<Veri
   if (!isObject(context) || !text(context.id)) throw missing('course (context)');
   const custom = isObject(claims[CLAIM.custom]) ? (claims[CLAIM.custom] as Record<string, unknown>) : {};
 
-  let resourceLink: VerifiedLaunch['resourceLink'] = null;
-  let deepLinking: VerifiedLaunch['deepLinking'] = null;
-  if (messageType === MESSAGE.resourceLink) {
-    const link = claims[CLAIM.resourceLink];
-    if (!isObject(link) || !text(link.id)) throw missing('item (resource_link)');
-    resourceLink = { id: link.id as string, title: text(link.title, 300) };
-  } else {
-    const settings = claims[CLAIM.deepLinkingSettings];
-    if (!isObject(settings) || !text(settings.deep_link_return_url, 1000)) throw missing('deep-linking return address');
-    if (!isAcceptablePlatformUrl(settings.deep_link_return_url as string))
-      throw refused(
-        400,
-        'bad-return-url',
-        'The learning platform’s return address is not acceptable',
-        'The deep-linking return address must be an https address.',
-      );
-    const acceptTypes = Array.isArray(settings.accept_types) ? settings.accept_types.filter((t): t is string => typeof t === 'string') : [];
-    if (!acceptTypes.includes('ltiResourceLink'))
-      throw refused(
-        400,
-        'deep-link-type',
-        'The learning platform cannot take an Oscillab item here',
-        'This placement does not accept links to tools (ltiResourceLink).',
-      );
-    deepLinking = { returnUrl: settings.deep_link_return_url as string, data: text(settings.data, 2000), acceptTypes };
-  }
+  const { resourceLink, deepLinking } = messageTarget(claims, messageType);
 
   const ags = isObject(claims[CLAIM.ags]) ? (claims[CLAIM.ags] as Record<string, unknown>) : null;
   const nrps = isObject(claims[CLAIM.nrps]) ? (claims[CLAIM.nrps] as Record<string, unknown>) : null;
@@ -388,7 +410,7 @@ export async function completeLaunch(v: VerifiedLaunch): Promise<LaunchOutcome> 
 }
 
 async function writeLaunch(v: VerifiedLaunch): Promise<LaunchOutcome> {
-  const { LtiContext, LtiLaunchState, LtiResourceLink, LtiLineItem, Practical, PracticalCohort, Course } = models();
+  const { LtiContext, LtiLaunchState, PracticalCohort, Course } = models();
   return sequelize().transaction(async (t) => {
     const [used] = await LtiLaunchState.update({ usedAt: new Date() }, { where: { id: v.stateId, usedAt: null }, transaction: t });
     if (used !== 1) throw badToken('replayed', 'This sign-in message has already been used.');
@@ -432,53 +454,7 @@ async function writeLaunch(v: VerifiedLaunch): Promise<LaunchOutcome> {
       );
     }
 
-    // The practical: the item's stored link, or the custom parameter a deep-linked item carries —
-    // always a practical of this context's course, whatever the message says.
-    let practicalId: number | null = null;
-    if (v.resourceLink) {
-      const link = await LtiResourceLink.findOne({ where: { ltiContextId: ctx.id, resourceLinkId: v.resourceLink.id }, transaction: t });
-      if (link) practicalId = link.practicalId;
-      else {
-        const named = v.custom[PRACTICAL_PARAMETER];
-        const id =
-          typeof named === 'string' && /^\d{1,12}$/.test(named)
-            ? Number(named)
-            : typeof named === 'number' && Number.isSafeInteger(named)
-              ? named
-              : null;
-        if (!id) {
-          throw refused(
-            404,
-            'item-not-linked',
-            'This item does not open a practical yet',
-            'The learning platform’s item does not name an Oscillab practical.',
-            'An instructor places Oscillab items through the learning platform’s “add from a tool” (deep linking) page, which records the practical.',
-          );
-        }
-        practicalId = id;
-      }
-      const practical = await Practical.findByPk(practicalId, { transaction: t });
-      if (!practical || practical.courseId !== ctx.courseId) {
-        throw refused(
-          403,
-          'other-course',
-          'This item belongs to another course',
-          'The item names a practical that is not part of the Oscillab course this learning-platform course is connected to. A launch only ever gives access within its own course.',
-        );
-      }
-      if (practical.archivedAt)
-        throw refused(
-          404,
-          'practical-archived',
-          'This practical is closed',
-          'The practical this item opens has been archived in Oscillab.',
-        );
-      if (!link)
-        await LtiResourceLink.create(
-          { ltiContextId: ctx.id, resourceLinkId: v.resourceLink.id, practicalId, title: v.resourceLink.title },
-          { transaction: t },
-        );
-    }
+    const practicalId = v.resourceLink ? await practicalOfItem(ctx, v.resourceLink, v.custom, t) : null;
 
     const person: Person = { sub: v.sub, email: v.email, name: v.name };
     const match = await matchAccount(v.registration.id, person, t);
@@ -507,18 +483,7 @@ async function writeLaunch(v: VerifiedLaunch): Promise<LaunchOutcome> {
         );
     }
 
-    // The services the platform offers for this course, as it announced them in this launch.
-    const updates: Partial<{ title: string; membershipsUrl: string; lineItemsUrl: string; agsScopes: string }> = {};
-    if (v.context.title && v.context.title !== ctx.title) updates.title = v.context.title;
-    if (v.membershipsUrl && v.membershipsUrl !== ctx.membershipsUrl) updates.membershipsUrl = v.membershipsUrl;
-    if (v.ags?.lineitems && v.ags.lineitems !== ctx.lineItemsUrl) updates.lineItemsUrl = v.ags.lineitems;
-    if (v.ags && JSON.stringify(v.ags.scope) !== ctx.agsScopes) updates.agsScopes = JSON.stringify(v.ags.scope);
-    if (Object.keys(updates).length) await ctx.update(updates, { transaction: t });
-    if (practicalId && v.ags?.lineitem) {
-      const item = await LtiLineItem.findOne({ where: { ltiContextId: ctx.id, practicalId }, transaction: t });
-      if (!item) await LtiLineItem.create({ ltiContextId: ctx.id, practicalId, url: v.ags.lineitem }, { transaction: t });
-      else if (item.url !== v.ags.lineitem) await item.update({ url: v.ags.lineitem }, { transaction: t });
-    }
+    await recordServices(v, ctx, practicalId, t);
 
     await audit(
       {
@@ -551,4 +516,73 @@ async function writeLaunch(v: VerifiedLaunch): Promise<LaunchOutcome> {
     else location = `/student/practicals/${practicalId}`;
     return { user, location, role: landing, context: ctx, practicalId };
   });
+}
+
+/**
+ * The practical an item opens: the item's stored link, or the custom parameter a deep-linked item
+ * carries — always a practical of this context's course, whatever the message says. A first
+ * launch of the item stores the link.
+ */
+async function practicalOfItem(
+  ctx: LtiContext,
+  resourceLink: NonNullable<VerifiedLaunch['resourceLink']>,
+  custom: VerifiedLaunch['custom'],
+  t: Transaction,
+): Promise<number> {
+  const { LtiResourceLink, Practical } = models();
+  let practicalId: number;
+  const link = await LtiResourceLink.findOne({ where: { ltiContextId: ctx.id, resourceLinkId: resourceLink.id }, transaction: t });
+  if (link) practicalId = link.practicalId;
+  else {
+    const named = custom[PRACTICAL_PARAMETER];
+    const id =
+      typeof named === 'string' && /^\d{1,12}$/.test(named)
+        ? Number(named)
+        : typeof named === 'number' && Number.isSafeInteger(named)
+          ? named
+          : null;
+    if (!id) {
+      throw refused(
+        404,
+        'item-not-linked',
+        'This item does not open a practical yet',
+        'The learning platform’s item does not name an Oscillab practical.',
+        'An instructor places Oscillab items through the learning platform’s “add from a tool” (deep linking) page, which records the practical.',
+      );
+    }
+    practicalId = id;
+  }
+  const practical = await Practical.findByPk(practicalId, { transaction: t });
+  if (!practical || practical.courseId !== ctx.courseId) {
+    throw refused(
+      403,
+      'other-course',
+      'This item belongs to another course',
+      'The item names a practical that is not part of the Oscillab course this learning-platform course is connected to. A launch only ever gives access within its own course.',
+    );
+  }
+  if (practical.archivedAt)
+    throw refused(404, 'practical-archived', 'This practical is closed', 'The practical this item opens has been archived in Oscillab.');
+  if (!link)
+    await LtiResourceLink.create(
+      { ltiContextId: ctx.id, resourceLinkId: resourceLink.id, practicalId, title: resourceLink.title },
+      { transaction: t },
+    );
+  return practicalId;
+}
+
+/** The services the platform offers for this course, as it announced them in this launch. */
+async function recordServices(v: VerifiedLaunch, ctx: LtiContext, practicalId: number | null, t: Transaction): Promise<void> {
+  const { LtiLineItem } = models();
+  const updates: Partial<{ title: string; membershipsUrl: string; lineItemsUrl: string; agsScopes: string }> = {};
+  if (v.context.title && v.context.title !== ctx.title) updates.title = v.context.title;
+  if (v.membershipsUrl && v.membershipsUrl !== ctx.membershipsUrl) updates.membershipsUrl = v.membershipsUrl;
+  if (v.ags?.lineitems && v.ags.lineitems !== ctx.lineItemsUrl) updates.lineItemsUrl = v.ags.lineitems;
+  if (v.ags && JSON.stringify(v.ags.scope) !== ctx.agsScopes) updates.agsScopes = JSON.stringify(v.ags.scope);
+  if (Object.keys(updates).length) await ctx.update(updates, { transaction: t });
+  if (practicalId && v.ags?.lineitem) {
+    const item = await LtiLineItem.findOne({ where: { ltiContextId: ctx.id, practicalId }, transaction: t });
+    if (!item) await LtiLineItem.create({ ltiContextId: ctx.id, practicalId, url: v.ags.lineitem }, { transaction: t });
+    else if (item.url !== v.ags.lineitem) await item.update({ url: v.ags.lineitem }, { transaction: t });
+  }
 }

@@ -11,6 +11,9 @@ import { describeFit, noticesOf } from '@/lib/submissions/fit-words';
 import type { FitChoiceSummary } from '@/lib/grading';
 import type { Submission } from '@/models/submission';
 import type { Practical } from '@/models/practical';
+import type { SubmittedValue } from '@/models/submitted-value';
+import type { CheckResult } from '@/models/check-result';
+import type { Mark } from '@/models/mark';
 import { spectrumAnalysisView } from '@/lib/submissions/spectrum-analysis-view';
 
 export type BasisRow = {
@@ -147,6 +150,77 @@ export async function loadMarkingView(submissionId: number, loaded?: { submissio
   const course = await Course.findByPk(practical.courseId);
   if (!course) throw new HttpError(404, 'Not found.');
 
+  const rows = quantityRows(values, checks);
+  const markRows = markRowsOf(marks, values, practical);
+  const slipRows = slipRowsOf(rows);
+
+  const report = uploads.find((u) => u.kind === 'report') ?? null;
+  const spectrum = uploads.find((u) => u.kind === 'spectrum') ?? null;
+
+  return {
+    submission: {
+      id: submission.id,
+      status: submission.status,
+      attempt: submission.attempt,
+      submittedAt: submission.submittedAt?.toISOString() ?? null,
+      daysLate: submission.daysLate,
+      latePenalty: submission.latePenalty,
+      proposedTotal: submission.proposedTotal,
+      awardedTotal: submission.awardedTotal,
+      maxTotal: submission.maxTotal,
+      markedAt: submission.markedAt?.toISOString() ?? null,
+      releasedAt: submission.releasedAt?.toISOString() ?? null,
+      version: submission.version,
+      extraAttempts: submission.extraAttempts,
+      resubmissionMessage: submission.resubmissionMessage,
+      markerComment: submission.markerComment ?? null,
+      flags: {
+        outside: submission.flagOutside,
+        slip: submission.flagSlip,
+        late: submission.flagLate,
+        duplicate: submission.flagDuplicate,
+        spectrumMismatch: submission.flagSpectrumMismatch,
+      },
+    },
+    scope: { courseId: course.id, cohortId: cohort.id, studentId: student.id },
+    course: { id: course.id, code: course.code, title: course.title },
+    practical: { id: practical.id, title: practical.title, species: practical.species },
+    cohort: { id: cohort.id, name: cohort.name, term: cohort.term },
+    student: { id: student.id, name: student.name, email: student.email, studentNumber: student.studentNumber },
+    marker: marker ? { id: marker.id, name: marker.name } : null,
+    quantities: rows,
+    marks: markRows,
+    slips: slipRows,
+    fits: fitsFromSummary(submission.checkSummary),
+    spectrumAnalysis: spectrumAnalysisView(submission.checkSummary),
+    report: report ? { id: report.id, originalName: report.originalName } : null,
+    spectrumUpload: spectrum ? { id: spectrum.id, storedName: spectrum.storedName, originalName: spectrum.originalName } : null,
+    feedbackDocuments: docs.map((d) => ({ id: d.id, createdAt: d.createdAt.toISOString(), size: d.size })),
+    deliveries: outbox.map((o) => ({
+      id: o.id,
+      kind: o.dedupeKey.split(':')[0],
+      dedupeKey: o.dedupeKey,
+      to: o.toAddress,
+      status: o.status,
+      attempts: o.attempts,
+      lastError: o.lastError,
+      sentAt: o.sentAt?.toISOString() ?? null,
+      createdAt: o.createdAt.toISOString(),
+    })),
+    moderations: moderations.map((m) => ({
+      id: m.id,
+      decision: m.decision,
+      totalBefore: m.totalBefore,
+      totalAfter: m.totalAfter,
+      note: m.note,
+      moderatorId: m.moderatorId,
+      createdAt: m.createdAt.toISOString(),
+    })),
+  };
+}
+
+/** One row per quantity and species: what the student typed, and each basis the check judged. */
+function quantityRows(values: SubmittedValue[], checks: CheckResult[]): QuantityRow[] {
   const rows = new Map<string, QuantityRow>();
   const rowFor = (key: string, species: string) => {
     const id = `${key}:${species}`;
@@ -187,10 +261,14 @@ export async function loadMarkingView(submissionId: number, loaded?: { submissio
     else row.accuracy = basis;
   }
   for (const row of rows.values()) row.verdict = worstVerdict(row.consistency?.verdict, row.accuracy?.verdict);
+  return [...rows.values()];
+}
 
+/** The marks, each with its rubric guidance and why an unreported quantity is proposed 0. */
+function markRowsOf(marks: Mark[], values: SubmittedValue[], practical: Practical): MarkRow[] {
   const rubric = Array.isArray(practical.rubric) ? practical.rubric : [];
   const reportedKeys = new Set(values.filter((v) => v.valueText.trim() !== '').map((v) => `${v.key}:${v.species}`));
-  const markRows: MarkRow[] = marks.map((m) => {
+  return marks.map((m) => {
     const rubricKey = m.itemKey.startsWith('rubric:') ? m.itemKey.slice('rubric:'.length) : null;
     const item = rubricKey ? rubric.find((r) => r.key === rubricKey) : undefined;
     return {
@@ -205,7 +283,10 @@ export async function loadMarkingView(submissionId: number, loaded?: { submissio
       reason: !rubricKey && !reportedKeys.has(m.itemKey) ? 'Not reported: proposed 0.' : null,
     };
   });
+}
 
+/** The slips named on the check rows, which name the species; a slip found on both bases is listed once. */
+function slipRowsOf(rows: QuantityRow[]): SlipRow[] {
   const slipRows: SlipRow[] = [];
   const seen = new Set<string>();
   const addSlip = (key: string, code: string) => {
@@ -223,71 +304,7 @@ export async function loadMarkingView(submissionId: number, loaded?: { submissio
       quantityLabel: labelFor(qKey, sp),
     });
   };
-  // From the check rows, which name the species; a slip found on both bases is listed once.
-  for (const row of rows.values())
+  for (const row of rows)
     for (const b of [row.consistency, row.accuracy]) for (const code of b?.slipCodes ?? []) addSlip(`${row.key}:${row.species}`, code);
-
-  const report = uploads.find((u) => u.kind === 'report') ?? null;
-  const spectrum = uploads.find((u) => u.kind === 'spectrum') ?? null;
-
-  return {
-    submission: {
-      id: submission.id,
-      status: submission.status,
-      attempt: submission.attempt,
-      submittedAt: submission.submittedAt?.toISOString() ?? null,
-      daysLate: submission.daysLate,
-      latePenalty: submission.latePenalty,
-      proposedTotal: submission.proposedTotal,
-      awardedTotal: submission.awardedTotal,
-      maxTotal: submission.maxTotal,
-      markedAt: submission.markedAt?.toISOString() ?? null,
-      releasedAt: submission.releasedAt?.toISOString() ?? null,
-      version: submission.version,
-      extraAttempts: submission.extraAttempts,
-      resubmissionMessage: submission.resubmissionMessage,
-      markerComment: submission.markerComment ?? null,
-      flags: {
-        outside: submission.flagOutside,
-        slip: submission.flagSlip,
-        late: submission.flagLate,
-        duplicate: submission.flagDuplicate,
-        spectrumMismatch: submission.flagSpectrumMismatch,
-      },
-    },
-    scope: { courseId: course.id, cohortId: cohort.id, studentId: student.id },
-    course: { id: course.id, code: course.code, title: course.title },
-    practical: { id: practical.id, title: practical.title, species: practical.species },
-    cohort: { id: cohort.id, name: cohort.name, term: cohort.term },
-    student: { id: student.id, name: student.name, email: student.email, studentNumber: student.studentNumber },
-    marker: marker ? { id: marker.id, name: marker.name } : null,
-    quantities: [...rows.values()],
-    marks: markRows,
-    slips: slipRows,
-    fits: fitsFromSummary(submission.checkSummary),
-    spectrumAnalysis: spectrumAnalysisView(submission.checkSummary),
-    report: report ? { id: report.id, originalName: report.originalName } : null,
-    spectrumUpload: spectrum ? { id: spectrum.id, storedName: spectrum.storedName, originalName: spectrum.originalName } : null,
-    feedbackDocuments: docs.map((d) => ({ id: d.id, createdAt: d.createdAt.toISOString(), size: d.size })),
-    deliveries: outbox.map((o) => ({
-      id: o.id,
-      kind: o.dedupeKey.split(':')[0],
-      dedupeKey: o.dedupeKey,
-      to: o.toAddress,
-      status: o.status,
-      attempts: o.attempts,
-      lastError: o.lastError,
-      sentAt: o.sentAt?.toISOString() ?? null,
-      createdAt: o.createdAt.toISOString(),
-    })),
-    moderations: moderations.map((m) => ({
-      id: m.id,
-      decision: m.decision,
-      totalBefore: m.totalBefore,
-      totalAfter: m.totalAfter,
-      note: m.note,
-      moderatorId: m.moderatorId,
-      createdAt: m.createdAt.toISOString(),
-    })),
-  };
+  return slipRows;
 }

@@ -703,7 +703,15 @@ async function readKeyed(table: string, keys: string[], keyOf: (r: Row) => strin
 
 /** Add the differences to the aggregate rows: upsert what remains, delete what came to zero. */
 async function applyDeltas(d: Deltas, t: Transaction) {
-  // Groups: every changed cell gets a new change token, even when only its quantities changed.
+  await applyGroupDeltas(d, t);
+  await applyQuantityDeltas(d, t);
+  await applySlipDeltas(d, t);
+  await applySlipCodeDeltas(d, t);
+  await applyMarkerDeltas(d, t);
+}
+
+/** Groups: every changed cell gets a new change token, even when only its quantities changed. */
+async function applyGroupDeltas(d: Deltas, t: Transaction) {
   const cellKeys = [...d.cells].map((c) => c.replace('|', SEP));
   const groups = await readKeyed('statistics_groups', cellKeys, (r) => [r.practicalId, r.cohortId].join(SEP), t);
   const groupRows: unknown[][] = [];
@@ -758,8 +766,10 @@ async function applyDeltas(d: Deltas, t: Transaction) {
     ];
     await insertRows('statistics_groups', cols, groupRows, t, { keys: ['practicalId', 'cohortId'], update: cols.slice(2) });
   }
+}
 
-  // Quantities.
+/** Quantities: counts per verdict, exact sums and the fine histogram. */
+async function applyQuantityDeltas(d: Deltas, t: Transaction) {
   const qKeys = [...d.quantities.keys()];
   const quantities = await readKeyed(
     'statistics_quantities',
@@ -822,8 +832,10 @@ async function applyDeltas(d: Deltas, t: Transaction) {
     ];
     await insertRows('statistics_quantities', cols, qRows, t, { keys: cols.slice(0, 5), update: cols.slice(5) });
   }
+}
 
-  // Slips per code and quantity.
+/** Slips per code and quantity. */
+async function applySlipDeltas(d: Deltas, t: Transaction) {
   const slips = await readKeyed('statistics_slips', [...d.slips.keys()], (r) => [r.practicalId, r.cohortId, r.code, r.key].join(SEP), t);
   const sRows: unknown[][] = [];
   const sGone: number[] = [];
@@ -843,8 +855,10 @@ async function applyDeltas(d: Deltas, t: Transaction) {
       keys: ['practicalId', 'cohortId', 'code', 'key'],
       update: ['findings'],
     });
+}
 
-  // Slips per code: submissions, and the lowest submission id as the example (read from the applied rows).
+/** Slips per code: submissions, and the lowest submission id as the example (read from the applied rows). */
+async function applySlipCodeDeltas(d: Deltas, t: Transaction) {
   const codeKeys = [...d.codes];
   const codes = await readKeyed('statistics_slip_codes', codeKeys, (r) => [r.practicalId, r.cohortId, r.code].join(SEP), t);
   const examples = new Map<string, number | null>();
@@ -882,8 +896,10 @@ async function applyDeltas(d: Deltas, t: Transaction) {
       keys: ['practicalId', 'cohortId', 'code'],
       update: ['submissions', 'example'],
     });
+}
 
-  // Markers.
+/** Markers: what each marked, their marks, awarded − proposed, overrides and moderations. */
+async function applyMarkerDeltas(d: Deltas, t: Transaction) {
   const markers = await readKeyed('statistics_markers', [...d.markers.keys()], (r) => [r.practicalId, r.cohortId, r.markerId].join(SEP), t);
   const mRows: unknown[][] = [];
   const mGone: number[] = [];

@@ -58,6 +58,11 @@ import {
   type StoredAnalysis,
 } from './spectrum-analysis';
 import { log } from '@/lib/log';
+import type { Practical } from '@/models/practical';
+import type { QuantityDefinition } from '@/models/quantity-definition';
+import type { Submission } from '@/models/submission';
+import type { SubmittedValue } from '@/models/submitted-value';
+import type { Upload } from '@/models/upload';
 
 type LineComparisonSummary = LinePeakComparison['summary'];
 
@@ -219,7 +224,7 @@ export async function bandsForCohort(qdefIds: number[], cohortId: number, transa
 }
 
 async function run(submissionId: number, transaction: Transaction): Promise<CheckSummary> {
-  const { Submission, Practical, QuantityDefinition, SubmittedValue, LineAssignment, CheckResult, SlipFinding, Mark, Upload } = models();
+  const { Submission, Practical, QuantityDefinition, SubmittedValue, LineAssignment, Upload } = models();
   const submission = await Submission.findByPk(submissionId, { transaction });
   if (!submission) throw new Error(`Submission ${submissionId} does not exist`);
   const practical = await Practical.findByPk(submission.practicalId, { transaction });
@@ -286,6 +291,58 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
 
   // --- Duplicate data (for staff only) ---------------------------------------------------
   const hash = lineListHash(lines);
+  const { others, dupLines, dupSpectrum } = await duplicatesOf(submission, hash, spectrumUpload, transaction);
+  // The other students' rows are flagged after this transaction commits, not inside it: two
+  // students with the same data submitting at once would otherwise each hold their own row and
+  // wait for the other's (a deadlock on PostgreSQL). The flag is advisory, for staff only.
+  if (others.size) transaction.afterCommit(() => flagDuplicates([...others]));
+
+  // --- Replace the stored results ---------------------------------------------------------
+  const { checkRows, slipRows, anyOutside, anySlip } = await storeCheckResults(submissionId, results, transaction);
+
+  // --- Proposed marks ------------------------------------------------------------------------
+  const { proposedTotal, maxTotal } = await proposeMarks(submissionId, practical, speciesList, qdefs, values, results, transaction);
+
+  // What the marking queue shows, kept on the row so the queue never reads the summary above.
+  const verdicts = verdictCounts(checkRows);
+  const slipCodes = [...new Set(slipRows.map((r) => r.code))].sort().join(',').slice(0, 400);
+
+  const summary: CheckSummary = {
+    version: 1,
+    checkedAt: new Date().toISOString(),
+    species: results,
+    spectrum,
+    spectra,
+    fromSpectrum,
+    duplicate: { lineList: dupLines, spectrum: dupSpectrum, otherSubmissionIds: [...others] },
+  };
+  await submission.update(
+    {
+      checkSummary: JSON.parse(JSON.stringify(summary)),
+      lineListHash: hash,
+      flagOutside: anyOutside,
+      flagSlip: anySlip,
+      flagLate: submission.daysLate > 0,
+      flagDuplicate: others.size > 0,
+      flagSpectrumMismatch: spectrumMismatch(spectrum, spectra),
+      proposedTotal,
+      maxTotal,
+      ...verdicts,
+      slipCodes,
+    },
+    { transaction },
+  );
+  return summary;
+}
+
+/** Other students' submitted attempts with the same line list (by its hash) or the same spectrum file (by its checksum). */
+async function duplicatesOf(
+  submission: Submission,
+  hash: string | null,
+  spectrumUpload: Upload | null,
+  transaction: Transaction,
+): Promise<{ others: Set<number>; dupLines: boolean; dupSpectrum: boolean }> {
+  const { Submission, Upload } = models();
   const others = new Set<number>();
   let dupLines = false;
   let dupSpectrum = false;
@@ -314,12 +371,12 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
       dupSpectrum = subs.length > 0;
     }
   }
-  // The other students' rows are flagged after this transaction commits, not inside it: two
-  // students with the same data submitting at once would otherwise each hold their own row and
-  // wait for the other's (a deadlock on PostgreSQL). The flag is advisory, for staff only.
-  if (others.size) transaction.afterCommit(() => flagDuplicates([...others]));
+  return { others, dupLines, dupSpectrum };
+}
 
-  // --- Replace the stored results ---------------------------------------------------------
+/** Replaces the submission's check results and slip findings with what the engine found now. */
+async function storeCheckResults(submissionId: number, results: Record<string, SubmissionResult>, transaction: Transaction) {
+  const { CheckResult, SlipFinding } = models();
   await CheckResult.destroy({ where: { submissionId }, transaction });
   await SlipFinding.destroy({ where: { submissionId }, transaction });
   const checkRows = [];
@@ -353,8 +410,23 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
   }
   if (checkRows.length) await CheckResult.bulkCreate(checkRows, { transaction });
   if (slipRows.length) await SlipFinding.bulkCreate(slipRows, { transaction });
+  return { checkRows, slipRows, anyOutside, anySlip };
+}
 
-  // --- Proposed marks ------------------------------------------------------------------------
+/**
+ * Proposed marks, one row per quantity item and rubric item: rows a marker has not touched are
+ * updated or removed, an awarded mark or comment is kept. Returns the proposed and the greatest total.
+ */
+async function proposeMarks(
+  submissionId: number,
+  practical: Practical,
+  speciesList: string[],
+  qdefs: QuantityDefinition[],
+  values: SubmittedValue[],
+  results: Record<string, SubmissionResult>,
+  transaction: Transaction,
+): Promise<{ proposedTotal: number | null; maxTotal: number }> {
+  const { Mark } = models();
   const items: { itemKey: string; label: string; maxMarks: number; proposed: number | null }[] = [];
   for (const q of qdefs) {
     if (!isQuantityKey(q.key) || !speciesList.includes(q.species)) continue;
@@ -391,8 +463,11 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
     ? Math.round(quantityItems.reduce((s, i) => s + (i.proposed ?? 0), 0) * 100) / 100
     : null;
   const maxTotal = items.reduce((s, i) => s + i.maxMarks, 0);
+  return { proposedTotal, maxTotal };
+}
 
-  // What the marking queue shows, kept on the row so the queue never reads the summary above.
+/** The check rows counted by verdict. */
+function verdictCounts(checkRows: { verdict: string }[]) {
   const verdicts = { verdictsWithin: 0, verdictsPartial: 0, verdictsOutside: 0, verdictsNotChecked: 0 };
   for (const row of checkRows) {
     if (row.verdict === 'within') verdicts.verdictsWithin++;
@@ -400,34 +475,7 @@ async function run(submissionId: number, transaction: Transaction): Promise<Chec
     else if (row.verdict === 'outside') verdicts.verdictsOutside++;
     else verdicts.verdictsNotChecked++;
   }
-  const slipCodes = [...new Set(slipRows.map((r) => r.code))].sort().join(',').slice(0, 400);
-
-  const summary: CheckSummary = {
-    version: 1,
-    checkedAt: new Date().toISOString(),
-    species: results,
-    spectrum,
-    spectra,
-    fromSpectrum,
-    duplicate: { lineList: dupLines, spectrum: dupSpectrum, otherSubmissionIds: [...others] },
-  };
-  await submission.update(
-    {
-      checkSummary: JSON.parse(JSON.stringify(summary)),
-      lineListHash: hash,
-      flagOutside: anyOutside,
-      flagSlip: anySlip,
-      flagLate: submission.daysLate > 0,
-      flagDuplicate: others.size > 0,
-      flagSpectrumMismatch: spectrumMismatch(spectrum, spectra),
-      proposedTotal,
-      maxTotal,
-      ...verdicts,
-      slipCodes,
-    },
-    { transaction },
-  );
-  return summary;
+  return verdicts;
 }
 
 /**
