@@ -23,8 +23,6 @@ export function RosterImport({ courseId, cohorts, onImported }: { courseId: numb
   const [preview, setPreview] = useState<RosterPreview | null>(null);
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   const [busy, setBusy] = useState(false);
-  const names = cohorts.map((c) => c.name.toLowerCase());
-  const shared = [...new Set(names.filter((n, i) => names.indexOf(n) !== i))];
 
   async function call(mode: 'preview' | 'import') {
     if (!file) return;
@@ -73,13 +71,7 @@ export function RosterImport({ courseId, cohorts, onImported }: { courseId: numb
         A CSV file (UTF-8, at most 1 MB) with the columns name, email, student_number, and optionally cohort and term. Choose the cohort
         here, or let each row’s cohort (and term) say where it goes. The preview writes nothing; the import writes every row or none.
       </p>
-      {shared.length > 0 && (
-        <p className="mb-3 text-sm" role="note">
-          <span aria-hidden="true">⚑ </span>Two open cohorts share a name (
-          {shared.map((n) => `“${cohorts.find((c) => c.name.toLowerCase() === n)!.name}”`).join(', ')}): choose the cohort here, or give a
-          term column in the file.
-        </p>
-      )}
+      <SharedNames cohorts={cohorts} />
       <div className="flex flex-wrap items-end gap-3">
         <Field id="roster-cohort" label="Import into" className="min-w-0 max-w-full">
           <select
@@ -125,55 +117,71 @@ export function RosterImport({ courseId, cohorts, onImported }: { courseId: numb
       <p aria-live="polite" className={msg?.ok ? 'mt-2 text-sm text-verdict-within' : 'error-text'}>
         {msg ? `${msg.ok ? '✓' : '✗'} ${msg.text}` : ''}
       </p>
-      {preview && (
-        <TableScroll label="Roster preview, scrollable" className="mt-3">
-          <table className="data-table" aria-label="Roster preview">
-            <thead>
-              <tr>
-                <th className="num">Line</th>
-                <th>Status</th>
-                <th>Name</th>
-                <th>E-mail</th>
-                <th>Student number</th>
-                <th>Cohort</th>
-                <th>Problems and notes</th>
-              </tr>
-            </thead>
-            <tbody>
-              {preview.rows.map((r) => (
-                <tr key={r.line} data-status={r.status}>
-                  <td className="num">{r.line}</td>
-                  <td>
-                    <span className={`inline-flex gap-1 whitespace-nowrap rounded px-2 py-0.5 text-sm font-bold ${STATUS[r.status].cls}`}>
-                      <span aria-hidden="true">{STATUS[r.status].symbol}</span>
-                      {STATUS[r.status].word}
-                    </span>
-                  </td>
-                  <td>{r.name}</td>
-                  <td>{r.email}</td>
-                  <td className="num">{r.studentNumber}</td>
-                  <td className="whitespace-nowrap">{r.cohort}</td>
-                  <td className="min-w-[16rem]">
-                    {r.reasons?.length ? (
-                      <ul className="list-disc space-y-0.5 pl-4" data-testid="row-problems">
-                        {r.reasons.map((x, i) => (
-                          <li key={i}>{x}</li>
-                        ))}
-                      </ul>
-                    ) : null}
-                    {[
-                      ...(r.notes ?? []),
-                      r.status === 'new' ? 'Will be enrolled; invited by e-mail if they have not set a password yet.' : '',
-                    ]
-                      .filter(Boolean)
-                      .join(' ')}
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </TableScroll>
-      )}
+      {preview && <RosterPreviewTable preview={preview} />}
     </section>
+  );
+}
+
+/** Open cohorts that share a name cannot be told apart by a cohort column alone: say so before the instructor uploads. */
+function SharedNames({ cohorts }: { cohorts: OpenCohort[] }) {
+  const names = cohorts.map((c) => c.name.toLowerCase());
+  const shared = [...new Set(names.filter((n, i) => names.indexOf(n) !== i))];
+  if (shared.length === 0) return null;
+  return (
+    <p className="mb-3 text-sm" role="note">
+      <span aria-hidden="true">⚑ </span>Two open cohorts share a name (
+      {shared.map((n) => `“${cohorts.find((c) => c.name.toLowerCase() === n)!.name}”`).join(', ')}): choose the cohort here, or give a term
+      column in the file.
+    </p>
+  );
+}
+
+/** Every row of the file as the server classified it: status (word, symbol and colour), what it read, and each problem. */
+function RosterPreviewTable({ preview }: { preview: RosterPreview }) {
+  return (
+    <TableScroll label="Roster preview, scrollable" className="mt-3">
+      <table className="data-table" aria-label="Roster preview">
+        <thead>
+          <tr>
+            <th className="num">Line</th>
+            <th>Status</th>
+            <th>Name</th>
+            <th>E-mail</th>
+            <th>Student number</th>
+            <th>Cohort</th>
+            <th>Problems and notes</th>
+          </tr>
+        </thead>
+        <tbody>
+          {preview.rows.map((r) => (
+            <tr key={r.line} data-status={r.status}>
+              <td className="num">{r.line}</td>
+              <td>
+                <span className={`inline-flex gap-1 whitespace-nowrap rounded px-2 py-0.5 text-sm font-bold ${STATUS[r.status].cls}`}>
+                  <span aria-hidden="true">{STATUS[r.status].symbol}</span>
+                  {STATUS[r.status].word}
+                </span>
+              </td>
+              <td>{r.name}</td>
+              <td>{r.email}</td>
+              <td className="num">{r.studentNumber}</td>
+              <td className="whitespace-nowrap">{r.cohort}</td>
+              <td className="min-w-[16rem]">
+                {r.reasons?.length ? (
+                  <ul className="list-disc space-y-0.5 pl-4" data-testid="row-problems">
+                    {r.reasons.map((x, i) => (
+                      <li key={i}>{x}</li>
+                    ))}
+                  </ul>
+                ) : null}
+                {[...(r.notes ?? []), r.status === 'new' ? 'Will be enrolled; invited by e-mail if they have not set a password yet.' : '']
+                  .filter(Boolean)
+                  .join(' ')}
+              </td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </TableScroll>
   );
 }

@@ -48,8 +48,6 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
   });
   const problem = error ?? loaded.error?.message ?? null;
 
-  const update = (i: number, patch: Partial<EditedSample>) => setSamples((list) => list.map((s, k) => (k === i ? { ...s, ...patch } : s)));
-
   const save = async () => {
     setSaving(true);
     setError(null);
@@ -103,89 +101,8 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
           overtone when a quantity needs it).
         </p>
       )}
-      {perSample && (
-        <div className="space-y-3">
-          {samples.map((s, i) => (
-            <div key={i} className="grid gap-2 rounded border border-rule p-3 md:grid-cols-4">
-              <div>
-                <label className="hint" htmlFor={`sample-label-${i}`}>
-                  Spectrum
-                </label>
-                <input id={`sample-label-${i}`} className="field" value={s.label} onChange={(e) => update(i, { label: e.target.value })} />
-              </div>
-              <div>
-                <label className="hint" htmlFor={`sample-key-${i}`}>
-                  Short name (a–z, 0–9, -)
-                </label>
-                <input
-                  id={`sample-key-${i}`}
-                  className="field"
-                  value={s.key}
-                  onChange={(e) => update(i, { key: e.target.value.toLowerCase() })}
-                />
-              </div>
-              <div>
-                <label className="hint" htmlFor={`sample-molecules-${i}`}>
-                  Molecules in it (e.g. HCl, DCl)
-                </label>
-                <input
-                  id={`sample-molecules-${i}`}
-                  className="field"
-                  value={s.moleculesText}
-                  onChange={(e) => update(i, { moleculesText: e.target.value })}
-                />
-              </div>
-              <fieldset>
-                <legend className="hint">Bands expected</legend>
-                {(['fundamental', 'overtone'] as Band[]).map((b) => (
-                  <label key={b} className="flex items-center gap-2 text-sm">
-                    <input
-                      type="checkbox"
-                      checked={s.bands.includes(b)}
-                      onChange={(e) => update(i, { bands: e.target.checked ? [...s.bands, b] : s.bands.filter((x) => x !== b) })}
-                    />
-                    {BAND_WORDS[b]}
-                  </label>
-                ))}
-              </fieldset>
-              <div className="md:col-span-4">
-                <button
-                  type="button"
-                  className="btn-quiet"
-                  onClick={() => setSamples((list) => list.filter((_, k) => k !== i))}
-                  disabled={samples.length <= 1}
-                >
-                  Remove this spectrum
-                </button>
-              </div>
-            </div>
-          ))}
-          <button
-            type="button"
-            className="btn-quiet"
-            onClick={() =>
-              setSamples((list) => [
-                ...list,
-                { key: `sample-${list.length + 1}`, label: `Sample ${list.length + 1}`, moleculesText: '', bands: ['fundamental'] },
-              ])
-            }
-            disabled={samples.length >= 6}
-          >
-            Add a spectrum
-          </button>
-        </div>
-      )}
-      <label className="flex items-start gap-2">
-        <input type="checkbox" className="mt-1" checked={analysis} onChange={(e) => setAnalysis(e.target.checked)} />
-        <span>
-          Show Oscillab’s own reading of each student’s spectrum as a third comparison, “from your spectrum”, on the marking screen and in
-          the feedback.
-          <span className="hint block">
-            It finds, assigns and fits the lines of the uploaded spectrum itself and compares the student’s numbers with the result: it
-            catches misread or misnumbered lines. Its verdicts are advice and do not change marks.
-          </span>
-        </span>
-      </label>
+      {perSample && <SampleList samples={samples} setSamples={setSamples} />}
+      <ThirdComparison checked={analysis} onChange={setAnalysis} />
       <div className="flex items-center gap-3">
         <button type="button" className="btn" onClick={() => void save()} disabled={saving}>
           {saving ? 'Saving…' : 'Save spectrum settings'}
@@ -196,5 +113,121 @@ export function SpectrumSettings({ practicalId }: { practicalId: number }) {
         </span>
       </div>
     </section>
+  );
+}
+
+/** The spectra of a practical taken sample by sample: one editor each, and at most six. */
+function SampleList({
+  samples,
+  setSamples,
+}: {
+  samples: EditedSample[];
+  setSamples: React.Dispatch<React.SetStateAction<EditedSample[]>>;
+}) {
+  const update = (i: number, patch: Partial<EditedSample>) => setSamples((list) => list.map((s, k) => (k === i ? { ...s, ...patch } : s)));
+  return (
+    <div className="space-y-3">
+      {samples.map((s, i) => (
+        <SampleEditor
+          key={i}
+          index={i}
+          sample={s}
+          update={(patch) => update(i, patch)}
+          remove={() => setSamples((list) => list.filter((_, k) => k !== i))}
+          canRemove={samples.length > 1}
+        />
+      ))}
+      <button
+        type="button"
+        className="btn-quiet"
+        onClick={() =>
+          setSamples((list) => [
+            ...list,
+            { key: `sample-${list.length + 1}`, label: `Sample ${list.length + 1}`, moleculesText: '', bands: ['fundamental'] },
+          ])
+        }
+        disabled={samples.length >= 6}
+      >
+        Add a spectrum
+      </button>
+    </div>
+  );
+}
+
+/** One spectrum of a practical taken sample by sample: its name, short name, molecules and expected bands. */
+function SampleEditor({
+  index: i,
+  sample: s,
+  update,
+  remove,
+  canRemove,
+}: {
+  index: number;
+  sample: EditedSample;
+  update: (patch: Partial<EditedSample>) => void;
+  remove: () => void;
+  canRemove: boolean;
+}) {
+  return (
+    <div className="grid gap-2 rounded border border-rule p-3 md:grid-cols-4">
+      <div>
+        <label className="hint" htmlFor={`sample-label-${i}`}>
+          Spectrum
+        </label>
+        <input id={`sample-label-${i}`} className="field" value={s.label} onChange={(e) => update({ label: e.target.value })} />
+      </div>
+      <div>
+        <label className="hint" htmlFor={`sample-key-${i}`}>
+          Short name (a–z, 0–9, -)
+        </label>
+        <input id={`sample-key-${i}`} className="field" value={s.key} onChange={(e) => update({ key: e.target.value.toLowerCase() })} />
+      </div>
+      <div>
+        <label className="hint" htmlFor={`sample-molecules-${i}`}>
+          Molecules in it (e.g. HCl, DCl)
+        </label>
+        <input
+          id={`sample-molecules-${i}`}
+          className="field"
+          value={s.moleculesText}
+          onChange={(e) => update({ moleculesText: e.target.value })}
+        />
+      </div>
+      <fieldset>
+        <legend className="hint">Bands expected</legend>
+        {(['fundamental', 'overtone'] as Band[]).map((b) => (
+          <label key={b} className="flex items-center gap-2 text-sm">
+            <input
+              type="checkbox"
+              checked={s.bands.includes(b)}
+              onChange={(e) => update({ bands: e.target.checked ? [...s.bands, b] : s.bands.filter((x) => x !== b) })}
+            />
+            {BAND_WORDS[b]}
+          </label>
+        ))}
+      </fieldset>
+      <div className="md:col-span-4">
+        <button type="button" className="btn-quiet" onClick={remove} disabled={!canRemove}>
+          Remove this spectrum
+        </button>
+      </div>
+    </div>
+  );
+}
+
+/** The switch for the third comparison, with what it does and that its verdicts are advice only. */
+function ThirdComparison({ checked, onChange }: { checked: boolean; onChange: (on: boolean) => void }) {
+  return (
+    <label className="flex items-start gap-2">
+      <input type="checkbox" className="mt-1" checked={checked} onChange={(e) => onChange(e.target.checked)} />
+      <span>
+        Show Oscillab’s own reading of each student’s spectrum as a third comparison, “from your spectrum”, on the marking screen and in the
+        feedback.
+        <span className="hint block">
+          It finds, assigns and fits the lines of the uploaded spectrum itself and compares the student’s numbers with the result: it
+          catches misread or misnumbered lines. Its verdicts are advice and do not change marks.
+        </span>
+      </span>
+    </label>
   );
 }

@@ -12,7 +12,7 @@ import { SpectrumAnalysisPanel } from '@/components/marking/spectrum-analysis';
 import { HttpError } from '@/lib/http';
 import { submissionScope } from '@/lib/authz/submission';
 import { nextToMark } from '@/lib/marking/next';
-import { loadMarkingView, type BasisRow } from '@/lib/marking/view';
+import { loadMarkingView, type BasisRow, type MarkingView } from '@/lib/marking/view';
 import { slipsByCode } from '@/lib/marking/feedback-input';
 
 export const metadata = { title: 'Mark a submission' };
@@ -28,6 +28,172 @@ function deviation(b: BasisRow | null) {
   );
 }
 
+/** The submission the address names, with its scope for the authorisation; an address that names none is a 404. */
+async function findSubmission(raw: string) {
+  if (!/^\d{1,12}$/.test(raw)) notFound();
+  try {
+    return await submissionScope(Number(raw));
+  } catch (e) {
+    if (e instanceof HttpError && e.status === 404) notFound();
+    throw e;
+  }
+}
+
+/** Course, cohort, attempt, when it came in, and any lateness, in one line under the title. */
+function leadLine(view: MarkingView) {
+  const { submission } = view;
+  const submitted = submission.submittedAt
+    ? new Date(submission.submittedAt).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' })
+    : '—';
+  const late = submission.daysLate ? ` · ${submission.daysLate} day(s) late, penalty ${submission.latePenalty} %` : '';
+  return `${view.course.code} · ${cohortName(view.cohort)} · attempt ${submission.attempt} · submitted ${submitted}${late}`;
+}
+
+function ValuesSection({ quantities }: { quantities: MarkingView['quantities'] }) {
+  return (
+    <section aria-labelledby="values-heading" className="card mb-6">
+      <h2 id="values-heading" className="mb-2">
+        Reported, recomputed and reference values
+      </h2>
+      <p className="hint mb-3">
+        Recomputed: from the student’s own data (consistency). Reference: the accepted value (accuracy). Deviation = reported − expected.
+      </p>
+      <table className="data-table stack-table">
+        <thead>
+          <tr>
+            <th scope="col" className="min-w-[10rem]">
+              Quantity
+            </th>
+            <th scope="col">Reported (as typed)</th>
+            <th scope="col" className="num">
+              Recomputed
+            </th>
+            <th scope="col" className="num">
+              Deviation
+            </th>
+            <th scope="col">Consistency</th>
+            <th scope="col" className="num">
+              Reference
+            </th>
+            <th scope="col" className="num">
+              Deviation
+            </th>
+            <th scope="col">Accuracy</th>
+          </tr>
+        </thead>
+        <tbody>
+          {quantities.map((q) => (
+            <tr key={q.itemKey} data-quantity={q.itemKey}>
+              <th scope="row" className="text-left font-bold sm:font-normal">
+                {q.label}
+              </th>
+              <td className="num" data-label="Reported">
+                <span className="nowrap">{q.reportedTyped}</span>
+              </td>
+              <td className="num" data-label="Recomputed">
+                <span className="nowrap">{q.consistency?.expectedDisplay ?? '—'}</span>
+              </td>
+              <td className="num" data-label="Deviation">
+                {deviation(q.consistency)}
+              </td>
+              <td data-label="Consistency">
+                <VerdictBadge verdict={q.consistency?.verdict} />
+              </td>
+              <td className="num" data-label="Reference">
+                <span className="nowrap">{q.accuracy?.expectedDisplay ?? '—'}</span>
+              </td>
+              <td className="num" data-label="Deviation">
+                {deviation(q.accuracy)}
+              </td>
+              <td data-label="Accuracy">
+                <VerdictBadge verdict={q.accuracy?.verdict} />
+              </td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </section>
+  );
+}
+
+function SlipsSection({ slips }: { slips: MarkingView['slips'] }) {
+  return (
+    <section aria-labelledby="slips-heading" className="card mb-6">
+      <h2 id="slips-heading" className="mb-2">
+        Named slips
+      </h2>
+      {slips.length === 0 ? (
+        <p className="text-ink-soft">No slip was recognised.</p>
+      ) : (
+        <ul className="space-y-3">
+          {slipsByCode(slips).map((s) => (
+            <li key={s.title} data-slip={slips.find((x) => x.title === s.title)?.code}>
+              <p className="font-bold">
+                {s.title} <span className="font-normal text-ink-soft">— {s.quantity}</span>
+              </p>
+              <p>{s.explanation}</p>
+              {s.formula && <p className="num text-sm">{s.formula}</p>}
+            </li>
+          ))}
+        </ul>
+      )}
+    </section>
+  );
+}
+
+/** The slow part: the spectrum and the fit plots, each streamed in behind its own placeholder. */
+function Plots({ submissionId, fits }: { submissionId: number; fits: MarkingView['fits'] }) {
+  return (
+    <>
+      <Suspense
+        fallback={
+          <p className="card mb-6 text-ink-soft" role="status">
+            Drawing the spectrum with the student’s lines…
+          </p>
+        }
+      >
+        <SpectrumSection submissionId={submissionId} />
+      </Suspense>
+      <Suspense
+        fallback={
+          <p className="card mb-6 text-ink-soft" role="status">
+            Drawing the line fit…
+          </p>
+        }
+      >
+        <FitPlots fits={fits} />
+      </Suspense>
+    </>
+  );
+}
+
+function ReportSection({ submissionId, view }: { submissionId: number; view: MarkingView }) {
+  return (
+    <section aria-labelledby="report-heading" className="card mb-6">
+      <h2 id="report-heading" className="mb-2">
+        Report
+      </h2>
+      {view.report ? (
+        <>
+          <p className="mb-2 text-sm">
+            <a href={`/api/marking/${submissionId}/report`} target="_blank" rel="noopener">
+              Open {view.report.originalName} in a new tab
+            </a>
+          </p>
+          <iframe
+            title={`Report of ${view.student.name}`}
+            src={`/api/marking/${submissionId}/report`}
+            loading="lazy"
+            className="h-[80vh] w-full border border-rule"
+          />
+        </>
+      ) : (
+        <p className="text-ink-soft">No report PDF was uploaded.</p>
+      )}
+    </section>
+  );
+}
+
 /**
  * The marking screen. The values, slips and marks come with the first bytes; the spectrum and the
  * fit plots, the slow part to draw, stream in after them (Suspense), so the marker can start at once.
@@ -35,23 +201,13 @@ function deviation(b: BasisRow | null) {
 export default async function MarkSubmission({ params }: { params: Promise<{ submissionId: string }> }) {
   const raw = (await params).submissionId;
   const id = Number(raw);
-  if (!/^\d{1,12}$/.test(raw)) notFound();
-  let found;
-  try {
-    found = await submissionScope(id);
-  } catch (e) {
-    if (e instanceof HttpError && e.status === 404) notFound();
-    throw e;
-  }
+  const found = await findSubmission(raw);
   const actor = await authorizePage({ kind: 'submission-mark', ...found.scope });
   const [view, next] = await Promise.all([loadMarkingView(id, found), nextToMark(actor, id)]);
 
   return (
     <>
-      <PageHeader
-        title={`${view.student.name} — ${view.practical.title}`}
-        lead={`${view.course.code} · ${cohortName(view.cohort)} · attempt ${view.submission.attempt} · submitted ${view.submission.submittedAt ? new Date(view.submission.submittedAt).toLocaleString('en-GB', { dateStyle: 'medium', timeStyle: 'short' }) : '—'}${view.submission.daysLate ? ` · ${view.submission.daysLate} day(s) late, penalty ${view.submission.latePenalty} %` : ''}`}
-      >
+      <PageHeader title={`${view.student.name} — ${view.practical.title}`} lead={leadLine(view)}>
         <Link className="btn-quiet" href="/marking">
           Back to the queue
         </Link>
@@ -64,137 +220,13 @@ export default async function MarkSubmission({ params }: { params: Promise<{ sub
           </Link>
         )}
       </PageHeader>
-
-      <section aria-labelledby="values-heading" className="card mb-6">
-        <h2 id="values-heading" className="mb-2">
-          Reported, recomputed and reference values
-        </h2>
-        <p className="hint mb-3">
-          Recomputed: from the student’s own data (consistency). Reference: the accepted value (accuracy). Deviation = reported − expected.
-        </p>
-        <table className="data-table stack-table">
-          <thead>
-            <tr>
-              <th scope="col" className="min-w-[10rem]">
-                Quantity
-              </th>
-              <th scope="col">Reported (as typed)</th>
-              <th scope="col" className="num">
-                Recomputed
-              </th>
-              <th scope="col" className="num">
-                Deviation
-              </th>
-              <th scope="col">Consistency</th>
-              <th scope="col" className="num">
-                Reference
-              </th>
-              <th scope="col" className="num">
-                Deviation
-              </th>
-              <th scope="col">Accuracy</th>
-            </tr>
-          </thead>
-          <tbody>
-            {view.quantities.map((q) => (
-              <tr key={q.itemKey} data-quantity={q.itemKey}>
-                <th scope="row" className="text-left font-bold sm:font-normal">
-                  {q.label}
-                </th>
-                <td className="num" data-label="Reported">
-                  <span className="nowrap">{q.reportedTyped}</span>
-                </td>
-                <td className="num" data-label="Recomputed">
-                  <span className="nowrap">{q.consistency?.expectedDisplay ?? '—'}</span>
-                </td>
-                <td className="num" data-label="Deviation">
-                  {deviation(q.consistency)}
-                </td>
-                <td data-label="Consistency">
-                  <VerdictBadge verdict={q.consistency?.verdict} />
-                </td>
-                <td className="num" data-label="Reference">
-                  <span className="nowrap">{q.accuracy?.expectedDisplay ?? '—'}</span>
-                </td>
-                <td className="num" data-label="Deviation">
-                  {deviation(q.accuracy)}
-                </td>
-                <td data-label="Accuracy">
-                  <VerdictBadge verdict={q.accuracy?.verdict} />
-                </td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
-      </section>
-
-      <section aria-labelledby="slips-heading" className="card mb-6">
-        <h2 id="slips-heading" className="mb-2">
-          Named slips
-        </h2>
-        {view.slips.length === 0 ? (
-          <p className="text-ink-soft">No slip was recognised.</p>
-        ) : (
-          <ul className="space-y-3">
-            {slipsByCode(view.slips).map((s) => (
-              <li key={s.title} data-slip={view.slips.find((x) => x.title === s.title)?.code}>
-                <p className="font-bold">
-                  {s.title} <span className="font-normal text-ink-soft">— {s.quantity}</span>
-                </p>
-                <p>{s.explanation}</p>
-                {s.formula && <p className="num text-sm">{s.formula}</p>}
-              </li>
-            ))}
-          </ul>
-        )}
-      </section>
-
-      <Suspense
-        fallback={
-          <p className="card mb-6 text-ink-soft" role="status">
-            Drawing the spectrum with the student’s lines…
-          </p>
-        }
-      >
-        <SpectrumSection submissionId={id} />
-      </Suspense>
-      <Suspense
-        fallback={
-          <p className="card mb-6 text-ink-soft" role="status">
-            Drawing the line fit…
-          </p>
-        }
-      >
-        <FitPlots fits={view.fits} />
-      </Suspense>
-
+      <ValuesSection quantities={view.quantities} />
+      <SlipsSection slips={view.slips} />
+      <Plots submissionId={id} fits={view.fits} />
       <SpectrumAnalysisPanel view={view.spectrumAnalysis} />
-
       <MarkingForm initial={view} next={next} />
       <ScoreDelivery submissionId={id} courseId={view.course.id} />
-
-      <section aria-labelledby="report-heading" className="card mb-6">
-        <h2 id="report-heading" className="mb-2">
-          Report
-        </h2>
-        {view.report ? (
-          <>
-            <p className="mb-2 text-sm">
-              <a href={`/api/marking/${id}/report`} target="_blank" rel="noopener">
-                Open {view.report.originalName} in a new tab
-              </a>
-            </p>
-            <iframe
-              title={`Report of ${view.student.name}`}
-              src={`/api/marking/${id}/report`}
-              loading="lazy"
-              className="h-[80vh] w-full border border-rule"
-            />
-          </>
-        ) : (
-          <p className="text-ink-soft">No report PDF was uploaded.</p>
-        )}
-      </section>
+      <ReportSection submissionId={id} view={view} />
     </>
   );
 }
