@@ -29,6 +29,7 @@ MAILDEV_PID=$!
 trap 'kill $MAILDEV_PID 2>/dev/null || true' EXIT
 for _ in $(seq 1 50); do curl -sf "$MAILDEV_API/api/healthz" >/dev/null 2>&1 && break; sleep 0.2; done
 
+npm run --silent lint
 npx tsc --noEmit
 npx vitest run --project unit
 npx vitest run --project integration
