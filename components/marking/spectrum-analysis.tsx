@@ -15,6 +15,18 @@ export function SpectrumVerdictBadge({ verdict }: { verdict: SpectrumVerdict }) 
   );
 }
 
+/** "value unit (note)" as two unbroken lines, the value first: numbers never part from their units. */
+function ValueLines({ text }: { text: string }) {
+  const at = text.indexOf(' (');
+  if (at < 0) return <span className="nowrap">{text}</span>;
+  return (
+    <>
+      <span className="nowrap">{text.slice(0, at)}</span>
+      <span className="nowrap block text-ink-soft">{text.slice(at + 1)}</span>
+    </>
+  );
+}
+
 export function SpectrumAnalysisPanel({ view }: { view: SpectrumAnalysisView | null }) {
   if (!view) return null;
   return (
@@ -60,9 +72,15 @@ export function SpectrumAnalysisPanel({ view }: { view: SpectrumAnalysisView | n
                       <th scope="row" className="text-left font-normal">
                         {r.label}
                       </th>
-                      <td className="num">{r.reported}</td>
-                      <td className="num">{r.fromSpectrum}</td>
-                      <td className="num">{r.deviation}</td>
+                      <td className="num">
+                        <ValueLines text={r.reported} />
+                      </td>
+                      <td className="num">
+                        <ValueLines text={r.fromSpectrum} />
+                      </td>
+                      <td className="num">
+                        <ValueLines text={r.deviation} />
+                      </td>
                       <td title={`Judged against ${r.basis}`}>
                         <SpectrumVerdictBadge verdict={r.verdict} />
                       </td>

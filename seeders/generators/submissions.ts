@@ -9,7 +9,7 @@ import crypto from 'node:crypto';
 import fs from 'node:fs';
 import { models } from '@/models';
 import { uploadPath } from '@/lib/storage';
-import { mulberry32, gaussian, synthesizeSpectrum, toJcampDx } from '@/lib/spectrum';
+import { mulberry32, gaussian, isotopologuesOf, predictBand, synthesizeSpectrum, toJcampDx } from '@/lib/spectrum';
 import { checkStoredSubmission } from '@/lib/submissions/check';
 import { noisyLineList, reportedValues, type DemoLine, type DemoSlip, type DemoValue } from './report';
 
@@ -26,6 +26,39 @@ const SLIP_PLAN: readonly DemoSlip[] = [
   'correct',
 ];
 const SKIP = new Set([1, 21, 15, 35]);
+
+/**
+ * The lines a real cell shows beside the student's: the same molecule's less abundant
+ * isotopologues (H³⁷Cl beside H³⁵Cl) at their predicted positions, for the same branches and J,
+ * weighted by natural abundance relative to the major isotopologue (as predictBand predicts both).
+ */
+function partnerLines(lines: readonly DemoLine[]): DemoLine[] {
+  const out: DemoLine[] = [];
+  for (const species of new Set(lines.map((l) => l.species))) {
+    const own = lines.filter((l) => l.species === species);
+    const strongest = Math.max(...own.map((l) => l.intensity));
+    const family = isotopologuesOf(species.replace(/\d+/g, ''));
+    if (!family.ok) continue;
+    const major = family.isotopologues.find((iso) => iso.rank === 0);
+    const majorStrongest = Math.max(...(major ? (predictBand(major, 'fundamental')?.lines ?? []) : []).map((l) => l.intensity));
+    if (!(majorStrongest > 0)) continue;
+    for (const iso of family.isotopologues) {
+      if (iso.rank === 0 || iso.formula === species) continue;
+      const band = predictBand(iso, 'fundamental');
+      for (const l of band?.lines ?? []) {
+        if (!own.some((o) => o.branch === l.branch && o.J === l.J)) continue;
+        out.push({
+          species: iso.formula,
+          branch: l.branch,
+          J: l.J,
+          wavenumber: l.wavenumber,
+          intensity: (l.intensity / majorStrongest) * strongest,
+        });
+      }
+    }
+  }
+  return out;
+}
 
 export async function seedDemoSubmissions(): Promise<{ created: number; skipped: string | null }> {
   const { Course, Practical, Cohort, User, Submission, SubmittedValue, LineAssignment, Upload, PracticalCohort } = models();
@@ -92,7 +125,7 @@ export async function seedDemoSubmissions(): Promise<{ created: number; skipped:
     );
     if (n % 3 !== 0) {
       const spectrum = synthesizeSpectrum({
-        lines: allLines.map((l) => ({ wavenumber: l.wavenumber, intensity: l.intensity })),
+        lines: [...allLines, ...partnerLines(allLines)].map((l) => ({ wavenumber: l.wavenumber, intensity: l.intensity })),
         from: 1950,
         to: 3150,
         step: 0.25,

@@ -3,6 +3,7 @@ import { Suspense } from 'react';
 import { notFound } from 'next/navigation';
 import { authorizePage } from '@/lib/authz';
 import { PageHeader } from '@/components/ui/page-header';
+import { TableScroll } from '@/components/ui/table-scroll';
 import { VerdictBadge } from '@/components/marking/verdict-badge';
 import { MarkingForm } from '@/components/marking/marking-form';
 import { ScoreDelivery } from '@/components/lti/score-delivery';
@@ -23,7 +24,19 @@ function deviation(b: BasisRow | null) {
   return (
     <span>
       <span className="nowrap">{b.deviationDisplay}</span>
-      {b.relativeDeviationDisplay !== null && <span className="nowrap text-ink-soft"> ({b.relativeDeviationDisplay})</span>}
+      {b.relativeDeviationDisplay !== null && <span className="nowrap block text-ink-soft">({b.relativeDeviationDisplay})</span>}
+    </span>
+  );
+}
+
+/** A typed value with its uncertainty: the uncertainty may take its own line, never a number without its unit. */
+function Typed({ text }: { text: string }) {
+  const at = text.indexOf(' ± ');
+  if (at < 0) return <span className="nowrap">{text}</span>;
+  // One element: a stacked row on a phone puts each child of the cell in its own grid cell.
+  return (
+    <span>
+      <span className="nowrap">{text.slice(0, at)}</span> <span className="nowrap">{text.slice(at + 1)}</span>
     </span>
   );
 }
@@ -58,60 +71,62 @@ function ValuesSection({ quantities }: { quantities: MarkingView['quantities'] }
       <p className="hint mb-3">
         Recomputed: from the student’s own data (consistency). Reference: the accepted value (accuracy). Deviation = reported − expected.
       </p>
-      <table className="data-table stack-table">
-        <thead>
-          <tr>
-            <th scope="col" className="min-w-[10rem]">
-              Quantity
-            </th>
-            <th scope="col">Reported (as typed)</th>
-            <th scope="col" className="num">
-              Recomputed
-            </th>
-            <th scope="col" className="num">
-              Deviation
-            </th>
-            <th scope="col">Consistency</th>
-            <th scope="col" className="num">
-              Reference
-            </th>
-            <th scope="col" className="num">
-              Deviation
-            </th>
-            <th scope="col">Accuracy</th>
-          </tr>
-        </thead>
-        <tbody>
-          {quantities.map((q) => (
-            <tr key={q.itemKey} data-quantity={q.itemKey}>
-              <th scope="row" className="text-left font-bold sm:font-normal">
-                {q.label}
+      <TableScroll label="Reported, recomputed and reference values">
+        <table className="data-table stack-table">
+          <thead>
+            <tr>
+              <th scope="col" className="min-w-[8.5rem]">
+                Quantity
               </th>
-              <td className="num" data-label="Reported">
-                <span className="nowrap">{q.reportedTyped}</span>
-              </td>
-              <td className="num" data-label="Recomputed">
-                <span className="nowrap">{q.consistency?.expectedDisplay ?? '—'}</span>
-              </td>
-              <td className="num" data-label="Deviation">
-                {deviation(q.consistency)}
-              </td>
-              <td data-label="Consistency">
-                <VerdictBadge verdict={q.consistency?.verdict} />
-              </td>
-              <td className="num" data-label="Reference">
-                <span className="nowrap">{q.accuracy?.expectedDisplay ?? '—'}</span>
-              </td>
-              <td className="num" data-label="Deviation">
-                {deviation(q.accuracy)}
-              </td>
-              <td data-label="Accuracy">
-                <VerdictBadge verdict={q.accuracy?.verdict} />
-              </td>
+              <th scope="col">Reported (as typed)</th>
+              <th scope="col" className="num">
+                Recomputed
+              </th>
+              <th scope="col" className="num">
+                Deviation
+              </th>
+              <th scope="col">Consistency</th>
+              <th scope="col" className="num">
+                Reference
+              </th>
+              <th scope="col" className="num">
+                Deviation
+              </th>
+              <th scope="col">Accuracy</th>
             </tr>
-          ))}
-        </tbody>
-      </table>
+          </thead>
+          <tbody>
+            {quantities.map((q) => (
+              <tr key={q.itemKey} data-quantity={q.itemKey}>
+                <th scope="row" className="text-left font-bold sm:font-normal">
+                  {q.label}
+                </th>
+                <td className="num" data-label="Reported">
+                  <Typed text={q.reportedTyped} />
+                </td>
+                <td className="num" data-label="Recomputed">
+                  <span className="nowrap">{q.consistency?.expectedDisplay ?? '—'}</span>
+                </td>
+                <td className="num" data-label="Deviation">
+                  {deviation(q.consistency)}
+                </td>
+                <td data-label="Consistency">
+                  <VerdictBadge verdict={q.consistency?.verdict} />
+                </td>
+                <td className="num" data-label="Reference">
+                  <span className="nowrap">{q.accuracy?.expectedDisplay ?? '—'}</span>
+                </td>
+                <td className="num" data-label="Deviation">
+                  {deviation(q.accuracy)}
+                </td>
+                <td data-label="Accuracy">
+                  <VerdictBadge verdict={q.accuracy?.verdict} />
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </TableScroll>
     </section>
   );
 }
