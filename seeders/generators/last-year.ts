@@ -16,6 +16,7 @@ import { saveMarks } from '@/lib/marking/marks';
 import { checkStoredSubmission } from '@/lib/submissions/check';
 import { DEMO_PASSWORD, FIRST_NAMES, LAST_NAMES } from '../data/demo-cast.cjs';
 import { noisyLineList, reportedValues, type DemoLine, type DemoSlip, type DemoValue } from './report';
+import { createDemoAttempt } from './attempt';
 
 export const LAST_YEAR = {
   term: '2025 Autumn',
@@ -46,7 +47,7 @@ const OVERRIDES: Record<number, { delta: number; comment: string }> = {
 };
 
 export async function seedLastYearDemo(): Promise<{ created: number; skipped: string | null }> {
-  const { Course, Cohort, Practical, PracticalCohort, User, CourseMembership, Submission, SubmittedValue, LineAssignment, Mark } = models();
+  const { Course, Cohort, Practical, PracticalCohort, User, CourseMembership, Submission, Mark } = models();
   const course = await Course.findOne({ where: { code: 'CHEM2041' } });
   if (!course) return { created: 0, skipped: 'CHEM2041 not seeded' };
   const source = await Practical.findOne({ where: { courseId: course.id, title: TITLE, copiedFromId: null } });
@@ -101,41 +102,16 @@ export async function seedLastYearDemo(): Promise<{ created: number; skipped: st
     const plan = SLIP_PLAN[n % SLIP_PLAN.length];
     const late = n % 7 === 0 ? 1 : 0;
     const submittedAt = new Date(deadline.getTime() + (late ? 20 : -(ALUMNI - n) * 5) * 3600_000);
-    const sub = await Submission.create({
-      practicalId: practical.id,
+    const { values, lines } = reportOf(practical.species, plan, 7000 + n);
+    const sub = await createDemoAttempt({
+      practical,
       cohortId: cohort.id,
       studentId: student.id,
-      attempt: 1,
-      status: 'submitted',
-      draft: null,
       submittedAt,
       daysLate: late,
-      latePenalty: late ? Math.min(practical.latePenaltyCap, practical.latePenaltyPerDay * late) : 0,
-      flagLate: late > 0,
-      isMarkedAttempt: true,
-      checkSummary: null,
-      lineListHash: null,
-      proposedTotal: null,
-      awardedTotal: null,
-      maxTotal: null,
-      markedById: null,
-      markedAt: null,
-      releasedAt: null,
-      resubmissionMessage: null,
-      version: 0,
+      values,
+      lines,
     });
-    const { values, lines } = reportOf(practical.species, plan, 7000 + n);
-    await SubmittedValue.bulkCreate(values.map((v) => ({ ...v, submissionId: sub.id, valueSI: null })));
-    await LineAssignment.bulkCreate(
-      lines.map((l) => ({
-        submissionId: sub.id,
-        species: l.species,
-        branch: l.branch,
-        J: l.J,
-        wavenumber: l.wavenumber,
-        source: 'student' as const,
-      })),
-    );
     await checkStoredSubmission(sub.id);
 
     // Marking by ta1: the proposal, hand marks for the rubric, and a few overrides with a reason.

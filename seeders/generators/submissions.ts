@@ -12,6 +12,7 @@ import { uploadPath } from '@/lib/storage';
 import { mulberry32, gaussian, isotopologuesOf, predictBand, synthesizeSpectrum, toJcampDx } from '@/lib/spectrum';
 import { checkStoredSubmission } from '@/lib/submissions/check';
 import { noisyLineList, reportedValues, type DemoLine, type DemoSlip, type DemoValue } from './report';
+import { createDemoAttempt } from './attempt';
 
 const SLIP_PLAN: readonly DemoSlip[] = [
   'correct',
@@ -61,7 +62,7 @@ function partnerLines(lines: readonly DemoLine[]): DemoLine[] {
 }
 
 export async function seedDemoSubmissions(): Promise<{ created: number; skipped: string | null }> {
-  const { Course, Practical, Cohort, User, Submission, SubmittedValue, LineAssignment, Upload, PracticalCohort } = models();
+  const { Course, Practical, Cohort, User, Submission, Upload, PracticalCohort } = models();
   const course = await Course.findOne({ where: { code: 'CHEM2041' } });
   if (!course) return { created: 0, skipped: 'CHEM2041 not seeded' };
   const practical = await Practical.findOne({ where: { courseId: course.id, title: 'HCl/DCl fundamental band' } });
@@ -82,29 +83,6 @@ export async function seedDemoSubmissions(): Promise<{ created: number; skipped:
     const noise = gaussian(rand);
     const plan = SLIP_PLAN[n % SLIP_PLAN.length];
     const late = n % 9 === 0 ? 1 + (n % 2) : 0;
-    const sub = await Submission.create({
-      practicalId: practical.id,
-      cohortId: cohort.id,
-      studentId: student.id,
-      attempt: 1,
-      status: 'submitted',
-      draft: null,
-      submittedAt: new Date(Date.now() - (40 - n) * 3600_000),
-      daysLate: late,
-      latePenalty: late ? Math.min(practical.latePenaltyCap, practical.latePenaltyPerDay * late) : 0,
-      flagLate: late > 0,
-      isMarkedAttempt: true,
-      checkSummary: null,
-      lineListHash: null,
-      proposedTotal: null,
-      awardedTotal: null,
-      maxTotal: null,
-      markedById: null,
-      markedAt: null,
-      releasedAt: null,
-      resubmissionMessage: null,
-      version: 0,
-    });
     const values: DemoValue[] = [];
     const allLines: DemoLine[] = [];
     for (const sp of practical.species) {
@@ -112,17 +90,15 @@ export async function seedDemoSubmissions(): Promise<{ created: number; skipped:
       allLines.push(...lines);
       values.push(...(reportedValues(sp, lines, plan) ?? []));
     }
-    await SubmittedValue.bulkCreate(values.map((v) => ({ ...v, submissionId: sub.id, valueSI: null })));
-    await LineAssignment.bulkCreate(
-      allLines.map((l) => ({
-        submissionId: sub.id,
-        species: l.species,
-        branch: l.branch,
-        J: l.J,
-        wavenumber: l.wavenumber,
-        source: 'student' as const,
-      })),
-    );
+    const sub = await createDemoAttempt({
+      practical,
+      cohortId: cohort.id,
+      studentId: student.id,
+      submittedAt: new Date(Date.now() - (40 - n) * 3600_000),
+      daysLate: late,
+      values,
+      lines: allLines,
+    });
     if (n % 3 !== 0) {
       const spectrum = synthesizeSpectrum({
         lines: [...allLines, ...partnerLines(allLines)].map((l) => ({ wavenumber: l.wavenumber, intensity: l.intensity })),
