@@ -4,6 +4,7 @@
  * switched on — the third comparison, "from the spectrum", with its own verdicts and legend.
  */
 import { SPECTRUM_VERDICT, type SpectrumAnalysisView, type SpectrumVerdict } from '@/lib/submissions/spectrum-analysis-view';
+import { ValueNote, splitNote } from '@/components/ui/value-note';
 
 export function SpectrumVerdictBadge({ verdict }: { verdict: SpectrumVerdict }) {
   const v = SPECTRUM_VERDICT[verdict] ?? SPECTRUM_VERDICT['not-checked'];
@@ -12,18 +13,6 @@ export function SpectrumVerdictBadge({ verdict }: { verdict: SpectrumVerdict }) 
       <span aria-hidden="true">{v.symbol}</span>
       {v.word}
     </span>
-  );
-}
-
-/** "value unit (note)" as two unbroken lines, the value first: numbers never part from their units. */
-function ValueLines({ text }: { text: string }) {
-  const at = text.indexOf(' (');
-  if (at < 0) return <span className="nowrap">{text}</span>;
-  return (
-    <>
-      <span className="nowrap">{text.slice(0, at)}</span>
-      <span className="nowrap block text-ink-soft">{text.slice(at + 1)}</span>
-    </>
   );
 }
 
@@ -73,13 +62,13 @@ export function SpectrumAnalysisPanel({ view }: { view: SpectrumAnalysisView | n
                         {r.label}
                       </th>
                       <td className="num">
-                        <ValueLines text={r.reported} />
+                        <ValueNote {...splitNote(r.reported, ' (')} below />
                       </td>
                       <td className="num">
-                        <ValueLines text={r.fromSpectrum} />
+                        <ValueNote {...splitNote(r.fromSpectrum, ' (')} below />
                       </td>
                       <td className="num">
-                        <ValueLines text={r.deviation} />
+                        <ValueNote {...splitNote(r.deviation, ' (')} below />
                       </td>
                       <td title={`Judged against ${r.basis}`}>
                         <SpectrumVerdictBadge verdict={r.verdict} />

@@ -4,6 +4,7 @@ import { notFound } from 'next/navigation';
 import { authorizePage } from '@/lib/authz';
 import { PageHeader } from '@/components/ui/page-header';
 import { TableScroll } from '@/components/ui/table-scroll';
+import { ValueNote, splitNote } from '@/components/ui/value-note';
 import { VerdictBadge } from '@/components/marking/verdict-badge';
 import { MarkingForm } from '@/components/marking/marking-form';
 import { ScoreDelivery } from '@/components/lti/score-delivery';
@@ -22,22 +23,7 @@ export const dynamic = 'force-dynamic';
 function deviation(b: BasisRow | null) {
   if (!b) return '—';
   return (
-    <span>
-      <span className="nowrap">{b.deviationDisplay}</span>
-      {b.relativeDeviationDisplay !== null && <span className="nowrap block text-ink-soft">({b.relativeDeviationDisplay})</span>}
-    </span>
-  );
-}
-
-/** A typed value with its uncertainty: the uncertainty may take its own line, never a number without its unit. */
-function Typed({ text }: { text: string }) {
-  const at = text.indexOf(' ± ');
-  if (at < 0) return <span className="nowrap">{text}</span>;
-  // One element: a stacked row on a phone puts each child of the cell in its own grid cell.
-  return (
-    <span>
-      <span className="nowrap">{text.slice(0, at)}</span> <span className="nowrap">{text.slice(at + 1)}</span>
-    </span>
+    <ValueNote value={b.deviationDisplay} note={b.relativeDeviationDisplay === null ? null : `(${b.relativeDeviationDisplay})`} below />
   );
 }
 
@@ -102,7 +88,7 @@ function ValuesSection({ quantities }: { quantities: MarkingView['quantities'] }
                   {q.label}
                 </th>
                 <td className="num" data-label="Reported">
-                  <Typed text={q.reportedTyped} />
+                  <ValueNote {...splitNote(q.reportedTyped, ' ± ')} />
                 </td>
                 <td className="num" data-label="Recomputed">
                   <span className="nowrap">{q.consistency?.expectedDisplay ?? '—'}</span>
