@@ -48,7 +48,12 @@ export class EmailOutbox extends Model<InferAttributes<EmailOutbox>, InferCreati
         createdAt: col.date(false),
         updatedAt: col.date(false),
       },
-      { sequelize, modelName: 'EmailOutbox', tableName: 'email_outbox', indexes: [{ fields: ['status', 'nextAttemptAt'] }] },
+      {
+        sequelize,
+        modelName: 'EmailOutbox',
+        tableName: 'email_outbox',
+        indexes: [{ fields: ['status', 'nextAttemptAt'] }, { name: 'email_outbox_submission', fields: ['submissionId', 'id'] }],
+      },
     );
   }
 }

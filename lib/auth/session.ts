@@ -9,6 +9,7 @@ import { models } from '@/models';
 export const SESSION_COOKIES = ['__Secure-next-auth.session-token', 'next-auth.session-token'];
 
 export type Membership = { courseId: number; role: CourseRole; cohortId: number | null };
+/** A cohort (or, with studentId, one student of it) the person marks; only while they are still a TA of that cohort's course. */
 export type TaDuty = { cohortId: number; studentId: number | null };
 
 /** The signed-in person as every authorisation decision sees them, read fresh from the database. */
@@ -87,7 +88,8 @@ export async function endAllSessions(userId: number): Promise<void> {
 export async function loadActor(userId: number, sessionVersion?: number, sessionId?: string): Promise<Actor | null> {
   // One statement for the account, its memberships and its TA duties: this runs on every
   // authenticated request, and three round trips through the driver cost three times one.
-  // Each row says what it is (k); the columns a–t mean what that kind needs.
+  // Each row says what it is (k); the columns a–t mean what that kind needs. A TA duty is read
+  // only while its holder is still a TA of the cohort's course (a removed TA keeps no duty).
   const rows = await sequelize().query<ActorRow>(
     `SELECT 'u' AS "k", "id" AS "o", "id" AS "a", "sessionVersion" AS "b", CASE WHEN "isAdmin" THEN 1 ELSE 0 END AS "c",
             ${sessionId !== undefined ? '(SELECT 1 FROM "ended_sessions" WHERE "sessionId" = :sessionId)' : 'NULL'} AS "d",
@@ -96,7 +98,10 @@ export async function loadActor(userId: number, sessionVersion?: number, session
      UNION ALL
      SELECT 'm', "id", "courseId", "cohortId", NULL, NULL, CAST("role" AS TEXT), NULL FROM "course_memberships" WHERE "userId" = :userId
      UNION ALL
-     SELECT 'd', "id", "cohortId", "studentId", NULL, NULL, NULL, NULL FROM "ta_assignments" WHERE "taId" = :userId
+     SELECT 'd', d."id", d."cohortId", d."studentId", NULL, NULL, NULL, NULL
+       FROM "ta_assignments" d JOIN "cohorts" c ON c."id" = d."cohortId"
+      WHERE d."taId" = :userId
+        AND EXISTS (SELECT 1 FROM "course_memberships" m WHERE m."userId" = :userId AND m."courseId" = c."courseId" AND m."role" = 'ta')
      ORDER BY 1, 2`,
     { replacements: { userId, sessionId: sessionId ?? '' }, type: QueryTypes.SELECT },
   );

@@ -28,19 +28,17 @@ export async function markingCells(
   actor: Actor,
 ): Promise<{ all: boolean; cohorts: number[]; students: { cohortId: number; studentId: number }[] } | null> {
   if (actor.isAdmin) return { all: true, cohorts: [], students: [] };
-  const { Cohort } = models();
   const managed = [...new Set(actor.memberships.filter((m) => m.role === 'instructor' || m.role === 'lead').map((m) => m.courseId))];
-  const taCourses = new Set(actor.memberships.filter((m) => m.role === 'ta').map((m) => m.courseId));
   const managedCohorts = managed.length
-    ? (await Cohort.findAll({ where: { courseId: managed }, attributes: ['id'] })).map((c) => c.id)
+    ? (
+        await sequelize().query<{ id: number }>('SELECT id FROM cohorts WHERE "courseId" IN (:managed)', {
+          replacements: { managed },
+          type: QueryTypes.SELECT,
+        })
+      ).map((c) => Number(c.id))
     : [];
-  let duties = actor.taDuties;
-  if (duties.length) {
-    // A TA duty counts only while the person is still a TA in that cohort's course.
-    const cohorts = await Cohort.findAll({ where: { id: [...new Set(duties.map((d) => d.cohortId))] }, attributes: ['id', 'courseId'] });
-    const ok = new Set(cohorts.filter((c) => taCourses.has(c.courseId)).map((c) => c.id));
-    duties = duties.filter((d) => ok.has(d.cohortId));
-  }
+  // actor.taDuties holds only the duties of courses the person is still a TA of (loadActor).
+  const duties = actor.taDuties;
   const cohorts = [...new Set([...managedCohorts, ...duties.filter((d) => d.studentId === null).map((d) => d.cohortId)])];
   const students = duties.filter((d) => d.studentId !== null).map((d) => ({ cohortId: d.cohortId, studentId: d.studentId! }));
   if (!cohorts.length && !students.length) return null;
@@ -188,56 +186,49 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage>
   const ascending = q.dir !== 'desc';
   const backwards = Boolean(q.before && !q.after);
   const cursor = q.after ?? q.before;
-  const page = [...where];
+  const keyset = [...where];
   if (cursor) {
     const { value, id } = decodeCursor(cursor);
     replacements.ki = id;
     // Before a row: the rows after it in the reversed order, read in that order and turned round.
-    page.push(keysetAfter(col, backwards ? !ascending : ascending, !backwards, value, nullsLargest, replacements));
+    keyset.push(keysetAfter(col, backwards ? !ascending : ascending, !backwards, value, nullsLargest, replacements));
   }
   const orderAsc = backwards ? !ascending : ascending;
   const order = `${col} ${orderAsc ? 'ASC' : 'DESC'}, s.id ${backwards ? 'DESC' : 'ASC'}`;
   const offset = !cursor && q.page > 1 ? (q.page - 1) * q.pageSize : 0;
 
-  const [rows, counted] = await Promise.all([
-    sequelize().query<Record<string, unknown>>(
-      `SELECT s.id, s.status, s.attempt, s."submittedAt", s."proposedTotal", s."awardedTotal", s."maxTotal", s.version,
-              s."flagOutside", s."flagSlip", s."flagLate", s."flagDuplicate", s."flagSpectrumMismatch",
-              s."verdictsWithin", s."verdictsPartial", s."verdictsOutside", s."verdictsNotChecked", s."slipCodes",
-              s."studentId", s."practicalId", s."cohortId", u.name AS "studentName", u.email AS "studentEmail", u."studentNumber" AS "studentNumber",
-              p.title AS "practicalTitle", c.name AS "cohortName", c.term AS "cohortTerm"
-       FROM submissions s JOIN users u ON u.id = s."studentId" JOIN practicals p ON p.id = s."practicalId" JOIN cohorts c ON c.id = s."cohortId"
-       WHERE ${page.join(' AND ')}
-       ORDER BY ${order}
-       LIMIT ${q.pageSize + 1}${offset ? ` OFFSET ${offset}` : ''}`,
-      { replacements, type: QueryTypes.SELECT },
-    ),
-    // Counting stops at the limit: keyset pages need no total, and a department-wide queue would
-    // otherwise pay for reading every matching row on every page.
-    sequelize().query<{ n: number }>(
-      `SELECT COUNT(*) AS n FROM (SELECT 1 AS one FROM submissions s WHERE ${where.join(' AND ')} LIMIT ${COUNT_LIMIT + 1}) c`,
-      { replacements, type: QueryTypes.SELECT },
-    ),
-  ]);
-  const totalExact = Number(counted[0]?.n ?? 0) <= COUNT_LIMIT;
-  const total = Math.min(COUNT_LIMIT, Number(counted[0]?.n ?? 0));
+  // Counting stops at the limit: keyset pages need no total, and a department-wide queue would
+  // otherwise pay for reading every matching row on every page. The count rides on the rows'
+  // statement (one uncorrelated subquery, evaluated once); an empty page counts on its own.
+  const countSql = `SELECT COUNT(*) AS n FROM (SELECT 1 AS one FROM submissions s WHERE ${where.join(' AND ')} LIMIT ${COUNT_LIMIT + 1}) counted`;
+  // The page's rows are chosen first (inner statement, by the index), then each of those few gets
+  // its last release e-mail's state (email_outbox_submission).
+  const outerOrder = `page."${SORT_ALIAS[q.sort]}" ${orderAsc ? 'ASC' : 'DESC'}, page.id ${backwards ? 'DESC' : 'ASC'}`;
+  const rows = await sequelize().query<Record<string, unknown>>(
+    `SELECT page.*, (SELECT o.status FROM email_outbox o WHERE o."submissionId" = page.id AND o."dedupeKey" LIKE 'release:%'
+                     ORDER BY o.id DESC LIMIT 1) AS "delivery"
+     FROM (SELECT s.id, s.status, s.attempt, s."submittedAt", s."proposedTotal", s."awardedTotal", s."maxTotal", s.version,
+            s."flagOutside", s."flagSlip", s."flagLate", s."flagDuplicate", s."flagSpectrumMismatch",
+            s."verdictsWithin", s."verdictsPartial", s."verdictsOutside", s."verdictsNotChecked", s."slipCodes",
+            s."studentId", s."practicalId", s."cohortId", u.name AS "studentName", u.email AS "studentEmail", u."studentNumber" AS "studentNumber",
+            p.title AS "practicalTitle", c.name AS "cohortName", c.term AS "cohortTerm", (${countSql}) AS "matching"
+     FROM submissions s JOIN users u ON u.id = s."studentId" JOIN practicals p ON p.id = s."practicalId" JOIN cohorts c ON c.id = s."cohortId"
+     WHERE ${keyset.join(' AND ')}
+     ORDER BY ${order}
+     LIMIT ${q.pageSize + 1}${offset ? ` OFFSET ${offset}` : ''}) page
+     ORDER BY ${outerOrder}`,
+    { replacements, type: QueryTypes.SELECT },
+  );
+  const matching = rows.length
+    ? Number(rows[0].matching)
+    : cursor || offset
+      ? Number((await sequelize().query<{ n: number }>(countSql, { replacements, type: QueryTypes.SELECT }))[0]?.n ?? 0)
+      : 0;
+  const totalExact = matching <= COUNT_LIMIT;
+  const total = Math.min(COUNT_LIMIT, matching);
   const more = rows.length > q.pageSize;
   const pageRows = rows.slice(0, q.pageSize);
   if (backwards) pageRows.reverse();
-
-  // The e-mail state of the page's rows only.
-  const { EmailOutbox } = models();
-  const ids = pageRows.map((r) => Number(r.id));
-  const mail = ids.length
-    ? await EmailOutbox.findAll({
-        where: { submissionId: ids, dedupeKey: { [Op.like]: 'release:%' } },
-        attributes: ['submissionId', 'status', 'id'],
-        order: [['id', 'ASC']],
-        raw: true,
-      })
-    : [];
-  const lastRelease = new Map<number, string>();
-  for (const m of mail) if (m.submissionId) lastRelease.set(m.submissionId, m.status);
 
   const bool = (v: unknown) => v === true || v === 1 || v === '1';
   const numOrNull = (v: unknown) => (v === null || v === undefined ? null : Number(v));
@@ -287,7 +278,7 @@ export async function queuePage(actor: Actor, q: QueueQuery): Promise<QueuePage>
           .filter(Boolean)
           .map((code) => ({ code, title: slipTitle(code) })),
       },
-      delivery: lastRelease.get(id) ?? null,
+      delivery: r.delivery === null || r.delivery === undefined ? null : String(r.delivery),
     };
   });
 

@@ -1,7 +1,8 @@
 /** The statistics of one practical in one scope, shaped for the API, the page and the exports. */
 import { z } from 'zod';
 import { QUANTITIES, SLIPS } from '@/lib/grading';
-import { models } from '@/models';
+import { QueryTypes } from 'sequelize';
+import { sequelize } from '@/lib/db';
 import { validate } from '@/lib/http';
 import { DEFAULT_MARKER_THRESHOLD, HISTOGRAM_EDGES_PERCENT, MIN_GROUP } from './definitions';
 import {
@@ -22,17 +23,31 @@ export function quantityName(key: string): string {
   return (QUANTITIES as Record<string, { label: string } | undefined>)[key]?.label ?? key;
 }
 
-/** "Student name, attempt n" for each example submission, in one read. */
-async function exampleLabels(ids: number[]): Promise<Map<number, string>> {
-  const out = new Map<number, string>();
-  if (!ids.length) return out;
-  const { Submission, User } = models();
-  const subs = await Submission.findAll({ where: { id: [...new Set(ids)] }, attributes: ['id', 'attempt', 'studentId'] });
-  const users = subs.length
-    ? await User.findAll({ where: { id: [...new Set(subs.map((x) => x.studentId))] }, attributes: ['id', 'name'] })
-    : [];
-  for (const sub of subs) out.set(sub.id, `${users.find((u) => u.id === sub.studentId)?.name ?? 'A student'}, attempt ${sub.attempt}`);
-  return out;
+/**
+ * The names the report shows, in one read: people by id (markers), and "Student name, attempt n"
+ * for each example submission.
+ */
+async function namesAndExamples(
+  userIds: number[],
+  exampleIds: number[],
+): Promise<{ names: Map<number, string>; examples: Map<number, string> }> {
+  const names = new Map<number, string>();
+  const examples = new Map<number, string>();
+  if (!userIds.length && !exampleIds.length) return { names, examples };
+  const rows = await sequelize().query<{ k: 'u' | 'x'; id: number; name: string; attempt: number | null }>(
+    `SELECT 'u' AS k, id, name, NULL AS attempt FROM users WHERE id IN (:userIds)
+     UNION ALL
+     SELECT 'x', s.id, u.name, s.attempt FROM submissions s JOIN users u ON u.id = s."studentId" WHERE s.id IN (:exampleIds)`,
+    {
+      replacements: { userIds: userIds.length ? userIds : [-1], exampleIds: exampleIds.length ? exampleIds : [-1] },
+      type: QueryTypes.SELECT,
+    },
+  );
+  for (const r of rows) {
+    if (r.k === 'u') names.set(Number(r.id), String(r.name));
+    else examples.set(Number(r.id), `${r.name}, attempt ${r.attempt}`);
+  }
+  return { names, examples };
 }
 
 export function slipTitle(code: string): string {
@@ -88,14 +103,9 @@ export async function practicalReport(s: StatisticsScope, threshold: number): Pr
   );
   const counts = countRows[0] ?? { group: 'all', students: 0, submitted: 0, onTime: 0, late: 0, marked: 0, released: 0 };
   const suppressed = counts.students < MIN_GROUP;
-  const [labels, examples] = await Promise.all([
-    markerLabels(
-      s.actor,
-      s.manages,
-      markers.map((m) => m.markerId),
-    ),
-    exampleLabels(slips.map((sl) => sl.exampleSubmissionId)),
-  ]);
+  const markerIds = markers.map((m) => m.markerId);
+  const { names, examples } = await namesAndExamples(s.manages ? markerIds : [], [...new Set(slips.map((sl) => sl.exampleSubmissionId))]);
+  const labels = markerLabels(s.actor, s.manages, markerIds, names);
   const { group: _g, ...plainCounts } = counts;
   void _g;
   return {

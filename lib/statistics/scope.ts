@@ -10,12 +10,16 @@ import type { Practical } from '@/models/practical';
 import type { Cohort } from '@/models/cohort';
 import type { Scope } from './queries';
 
+/** What statistics need of a practical and of a cohort (a model instance has these, and more). */
+export type StatisticsPractical = Pick<Practical, 'id' | 'courseId' | 'title' | 'rubric'>;
+export type StatisticsCohort = Pick<Cohort, 'id' | 'courseId' | 'name' | 'term' | 'instrument'>;
+
 export interface StatisticsScope {
   actor: Actor;
-  practical: Practical;
+  practical: StatisticsPractical;
   /** The cohort asked for, or null for every cohort of the practical. */
-  cohort: Cohort | null;
-  cohorts: Cohort[];
+  cohort: StatisticsCohort | null;
+  cohorts: StatisticsCohort[];
   /** Lead, instructor or admin: may see markers' names and export marks. */
   manages: boolean;
   scope: Scope;
@@ -52,17 +56,17 @@ export async function cohortsOfPractical(practicalId: number): Promise<Cohort[]>
   });
 }
 
-/** Markers' names are shown to course managers; a TA sees only their own name, others as "Marker n". */
-export async function markerLabels(actor: Actor, manages: boolean, markerIds: number[]): Promise<Map<number, string>> {
-  const { User } = models();
+/**
+ * Markers' names are shown to course managers (`names`: every marker's, read by the caller); a TA
+ * sees only their own name, others as "Marker n".
+ */
+export function markerLabels(actor: Actor, manages: boolean, markerIds: number[], names: Map<number, string>): Map<number, string> {
   const labels = new Map<number, string>();
   if (manages) {
-    const users = markerIds.length ? await User.findAll({ where: { id: markerIds }, attributes: ['id', 'name'] }) : [];
-    for (const u of users) labels.set(u.id, u.name);
+    for (const id of markerIds) if (names.has(id)) labels.set(id, names.get(id)!);
   } else {
-    const me = markerIds.includes(actor.id) ? await User.findByPk(actor.id, { attributes: ['id', 'name'] }) : null;
     let n = 0;
-    for (const id of [...markerIds].sort((a, b) => a - b)) labels.set(id, id === actor.id ? `${me?.name ?? 'You'} (you)` : `Marker ${++n}`);
+    for (const id of [...markerIds].sort((a, b) => a - b)) labels.set(id, id === actor.id ? `${actor.name} (you)` : `Marker ${++n}`);
   }
   for (const id of markerIds) if (!labels.has(id)) labels.set(id, `Marker #${id}`);
   return labels;

@@ -7,6 +7,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { apiRequest, params } from '@/tests/helpers/session';
 import { buildWorld, type World } from '@/tests/helpers/world';
 import { models } from '@/models';
+import type { OutboxStatus } from '@/models/email-outbox';
 import { GET as queueGET } from '@/app/api/marking/queue/route';
 import { GET as viewGET, PUT as savePUT } from '@/app/api/marking/[submissionId]/route';
 import { POST as acceptPOST } from '@/app/api/marking/[submissionId]/accept/route';
@@ -100,6 +101,57 @@ describe('queue', () => {
     expect(own.summary.slips.length).toBeGreaterThan(0); // the mass-number slip, by its title
     expect(own.summary.slips[0].title).not.toBe(own.summary.slips[0].code);
     expect((await queueGET(await apiRequest('/api/marking/queue?after=bm90LWpzb24', { as: w.people.instructor.id }), {})).status).toBe(400);
+  });
+
+  it("shows each row's last release e-mail, and counts the queue also on a page past its end", async () => {
+    const { EmailOutbox } = models();
+    const mail = (dedupeKey: string, status: OutboxStatus) => ({
+      dedupeKey,
+      toAddress: 'student@test.example',
+      subject: 'Feedback',
+      textBody: 'Feedback',
+      submissionId: ownId,
+      status,
+      nextAttemptAt: new Date(),
+    });
+    const rows = await EmailOutbox.bulkCreate([
+      mail(`release:${ownId}:1`, 'failed'),
+      mail(`release:${ownId}:2`, 'sent'),
+      mail(`reminder:${ownId}`, 'queued'),
+    ]);
+    try {
+      const get = async (query: string) =>
+        (await queueGET(await apiRequest(`/api/marking/queue?${query}`, { as: w.people.instructor.id }), {})).json();
+      const all = await get('pageSize=100');
+      expect(all.rows.find((r: { id: number }) => r.id === ownId).delivery).toBe('sent'); // the later release row; not the reminder
+      expect(all.rows.find((r: { id: number }) => r.id === otherId).delivery).toBeNull();
+      const beyond = await get('pageSize=2&page=5');
+      expect(beyond.rows).toHaveLength(0);
+      expect(beyond.total).toBe(3);
+      const last = await get('pageSize=3');
+      const afterLast = await get(
+        `pageSize=3&after=${Buffer.from(JSON.stringify({ v: '9999-01-01T00:00:00.000Z', d: 1, i: 999999 })).toString('base64url')}`,
+      );
+      expect(last.rows).toHaveLength(3);
+      expect(afterLast.rows).toHaveLength(0);
+      expect(afterLast.total).toBe(3);
+    } finally {
+      await EmailOutbox.destroy({ where: { id: rows.map((r) => r.id) } });
+    }
+  });
+
+  it('gives a TA removed from the course nothing to mark, though their duty rows remain', async () => {
+    const { CourseMembership } = models();
+    const membership = (await CourseMembership.findOne({ where: { userId: w.people.ta.id, courseId: w.course.id, role: 'ta' } }))!;
+    await membership.destroy();
+    try {
+      const none = await (await queueGET(await apiRequest('/api/marking/queue', { as: w.people.ta.id }), {})).json();
+      expect(none.total).toBe(0);
+      expect((await view(ownId, w.people.ta.id)).status).toBe(403);
+    } finally {
+      await CourseMembership.create({ userId: w.people.ta.id, courseId: w.course.id, role: 'ta', cohortId: membership.cohortId });
+    }
+    expect((await view(ownId, w.people.ta.id)).status).toBe(200);
   });
 
   it('refuses a bad filter with 400 and answers an unknown person with an empty queue', async () => {
