@@ -76,7 +76,7 @@ export type QueueRow = {
 
 export type QueuePage = {
   rows: QueueRow[];
-  /** Matching submissions, counted up to COUNT_LIMIT (totalExact false beyond: "10,000 or more"). */
+  /** Matching submissions, counted up to COUNT_LIMIT (totalExact false beyond: "2,000 or more"). */
   total: number;
   totalExact: boolean;
   page: number;
@@ -87,7 +87,13 @@ export type QueuePage = {
   prev: string | null;
 };
 
-export const COUNT_LIMIT = 10_000;
+/**
+ * The queue counts its matching submissions up to here and says "or more" beyond: 40 pages of 50,
+ * more than anyone pages through (filters narrow a longer queue). Each request pays for the rows
+ * it counts, so a department-wide queue (50,000 rows at 100,000 submissions) must not be counted
+ * whole on every page; the exact figures per cohort are on the statistics page.
+ */
+export const COUNT_LIMIT = 2_000;
 
 const SORT_COLUMN: Record<QueueQuery['sort'], string> = {
   submittedAt: 's."submittedAt"',

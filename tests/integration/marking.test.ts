@@ -9,6 +9,9 @@ import { buildWorld, type World } from '@/tests/helpers/world';
 import { models } from '@/models';
 import type { OutboxStatus } from '@/models/email-outbox';
 import { GET as queueGET } from '@/app/api/marking/queue/route';
+import { COUNT_LIMIT } from '@/lib/marking/queue';
+import { withoutKeeping } from '@/lib/statistics/keep';
+import { seedSubmissions } from './statistics-seed';
 import { GET as viewGET, PUT as savePUT } from '@/app/api/marking/[submissionId]/route';
 import { POST as acceptPOST } from '@/app/api/marking/[submissionId]/accept/route';
 import { POST as resubmitPOST } from '@/app/api/marking/[submissionId]/resubmission/route';
@@ -138,6 +141,55 @@ describe('queue', () => {
     } finally {
       await EmailOutbox.destroy({ where: { id: rows.map((r) => r.id) } });
     }
+  });
+
+  it('counts a long queue up to COUNT_LIMIT and says "or more" beyond; pages still run past the limit', { timeout: 60_000 }, async () => {
+    // A course of its own, so the other tests (moderation samples per marker) do not see these rows.
+    const { User, Course, Cohort, CourseMembership } = models();
+    const course = await Course.create({ code: 'LONG1', title: 'Long queue course', archivedAt: null });
+    const cohort = await Cohort.create({ courseId: course.id, name: 'Long cohort', term: '2026', instrument: null, archivedAt: null });
+    await CourseMembership.create({ userId: w.people.instructor.id, courseId: course.id, role: 'instructor', cohortId: null });
+    const practical = await createFixturePractical(course.id, [cohort.id]);
+    const students = await User.bulkCreate(
+      Array.from({ length: COUNT_LIMIT + 5 }, (_, i) => ({
+        email: `long-${i}@queue.example`,
+        name: `Long Queue ${i}`,
+        passwordHash: null,
+        isAdmin: false,
+        studentNumber: `LQ${i}`,
+      })),
+    );
+    await CourseMembership.bulkCreate(
+      students.map((u) => ({ userId: u.id, courseId: w.course.id, role: 'student' as const, cohortId: w.otherCohort.id })),
+    );
+    await withoutKeeping(() =>
+      seedSubmissions({
+        practicalId: practical.id,
+        cohortId: w.otherCohort.id,
+        studentIds: students.map((u) => u.id),
+        markerIds: [w.people.instructor.id],
+      }),
+    );
+    const get = async (query: string) =>
+      (
+        await queueGET(await apiRequest(`/api/marking/queue?practicalId=${practical.id}&${query}`, { as: w.people.instructor.id }), {})
+      ).json();
+    const first = await get('pageSize=100');
+    expect(first.total).toBe(COUNT_LIMIT);
+    expect(first.totalExact).toBe(false);
+    expect(first.rows).toHaveLength(100);
+    // The matching marked attempts, counted here without the cap: one per student.
+    expect(students.length).toBe(COUNT_LIMIT + 5);
+    let page = first;
+    let seen = page.rows.length;
+    while (page.next) {
+      page = await get(`pageSize=100&after=${page.next}`);
+      seen += page.rows.length;
+    }
+    expect(seen).toBe(COUNT_LIMIT + 5);
+    const marked = await get('pageSize=100&status=marked');
+    expect(marked.totalExact).toBe(true); // fewer than the limit are marked (the rest submitted or released)
+    expect(marked.total).toBeLessThan(COUNT_LIMIT);
   });
 
   it('gives a TA removed from the course nothing to mark, though their duty rows remain', async () => {
