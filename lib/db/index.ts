@@ -38,7 +38,19 @@ export function createSequelize(): Sequelize {
  * before they reach SQLite; the busy timeout is left for writers in other processes.
  * Re-entrant: a query issued inside a transaction's callback runs at once.
  */
-const holding = new AsyncLocalStorage<true>();
+/**
+ * State that must be one per process, not one per copy of this module: Next bundles this file
+ * into several server chunks (instrumentation, route handlers, pages), each with its own module
+ * instance, while the Sequelize instance and Transaction.prototype are shared. Work queued by one
+ * copy must be found by the commit patch another copy installed.
+ */
+function processWide<T>(name: string, make: () => T): T {
+  const store = globalThis as unknown as Record<symbol, T | undefined>;
+  const key = Symbol.for(`oscillab.db.${name}`);
+  return (store[key] ??= make());
+}
+
+const holding = processWide('writerTurn', () => new AsyncLocalStorage<true>());
 
 /** True while this async context holds SQLite's writer turn in this process (see oneWriterAtATime). */
 export const holdsWriterTurn = (): boolean => holding.getStore() === true;
@@ -184,7 +196,7 @@ function reuseTransactionConnections(sequelize: Sequelize): void {
 }
 
 type BeforeCommit = (t: Transaction) => Promise<void>;
-const beforeCommitWork = new WeakMap<Transaction, BeforeCommit[]>();
+const beforeCommitWork = processWide('beforeCommitWork', () => new WeakMap<Transaction, BeforeCommit[]>());
 
 /** The outermost transaction (a savepoint's work commits with it). */
 export function rootTransaction(t: Transaction): Transaction {

@@ -50,3 +50,72 @@ test('course lead sees cohort statistics and downloads the marks CSV', async ({ 
   );
   expect(text.split(/\r?\n/).filter(Boolean).length).toBe(21); // header + the 20 students of Group A
 });
+
+/**
+ * The kept statistics follow a mark and a release made through the running server. The server
+ * loads the database module in several bundles; a statistics update queued by one copy must still
+ * run when another copy's transaction commits (it did not: marks left the kept counts behind).
+ */
+test('a mark and a release through the server move the kept counts at once', async ({ browser }) => {
+  const as = async (email: string) => {
+    const page = await (await browser.newContext()).newPage();
+    await page.goto('/signin');
+    await page.fill('#email', email);
+    await page.fill('#password', 'northmere-demo-26');
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.waitForURL((url) => !url.pathname.startsWith('/signin'));
+    return page;
+  };
+  const lead = await as('lead@northmere.example');
+  await lead.goto('/statistics');
+  const href = (await lead
+    .getByRole('link', { name: /Group B/ })
+    .first()
+    .getAttribute('href'))!;
+  const [, practicalId, cohortId] = href.match(/\/statistics\/(\d+)\?cohortId=(\d+)/)!;
+  const counts = async () =>
+    (await (await lead.request.get(`/api/statistics/practicals/${practicalId}?cohortId=${cohortId}`)).json()).counts as {
+      marked: number;
+      released: number;
+    };
+  const before = await counts();
+
+  // ta2 marks Group B: the oldest submitted attempt (a seeded one), accepted and completed, then released.
+  const ta = await as('ta2@northmere.example');
+  await ta.goto('/marking');
+  const outcome = await ta.evaluate(
+    async ({ practicalId, cohortId }) => {
+      const send = (url: string, method: string, body: unknown) =>
+        fetch(url, { method, headers: { 'Content-Type': 'application/json' }, body: JSON.stringify(body) });
+      const queue = await (
+        await fetch(
+          `/api/marking/queue?practicalId=${practicalId}&cohortId=${cohortId}&status=submitted&sort=submittedAt&dir=asc&pageSize=1`,
+        )
+      ).json();
+      const id = queue.rows[0].id as number;
+      let view = await (await fetch(`/api/marking/${id}`)).json();
+      await send(`/api/marking/${id}/accept`, 'POST', { version: view.submission.version });
+      view = await (await fetch(`/api/marking/${id}`)).json();
+      const open = view.marks
+        .filter((m: { awarded: number | null }) => m.awarded === null)
+        .map((m: { itemKey: string; maxMarks: number }) => ({ itemKey: m.itemKey, awarded: Math.min(1, m.maxMarks) }));
+      const saved = await (await send(`/api/marking/${id}`, 'PUT', { version: view.submission.version, items: open })).json();
+      return { id, status: saved.status as string };
+    },
+    { practicalId, cohortId },
+  );
+  expect(outcome.status).toBe('marked');
+  const marked = await counts();
+  expect(marked.marked).toBe(before.marked + 1);
+
+  const released = await ta.evaluate(async (id) => {
+    const res = await fetch('/api/release', {
+      method: 'POST',
+      headers: { 'Content-Type': 'application/json' },
+      body: JSON.stringify({ submissionIds: [id] }),
+    });
+    return (await res.json()).released as number;
+  }, outcome.id);
+  expect(released).toBe(1);
+  expect((await counts()).released).toBe(before.released + 1);
+});
