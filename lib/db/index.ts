@@ -30,15 +30,6 @@ export function createSequelize(): Sequelize {
 }
 
 /**
- * node-sqlite3 runs every statement on libuv's small thread pool (4 threads), and a statement
- * waiting for SQLite's write lock sleeps in the busy handler on one of those threads. With more
- * waiters than threads the lock holder cannot run its next statement or COMMIT, and everything
- * stalls until busy timeouts expire (8 concurrent transactions: ~10 s; 50: minutes). So within
- * one process, transactions and writes outside a transaction take turns here, in arrival order,
- * before they reach SQLite; the busy timeout is left for writers in other processes.
- * Re-entrant: a query issued inside a transaction's callback runs at once.
- */
-/**
  * State that must be one per process, not one per copy of this module: Next bundles this file
  * into several server chunks (instrumentation, route handlers, pages), each with its own module
  * instance, while the Sequelize instance and Transaction.prototype are shared. Work queued by one
@@ -50,6 +41,15 @@ function processWide<T>(name: string, make: () => T): T {
   return (store[key] ??= make());
 }
 
+/**
+ * node-sqlite3 runs every statement on libuv's small thread pool (4 threads), and a statement
+ * waiting for SQLite's write lock sleeps in the busy handler on one of those threads. With more
+ * waiters than threads the lock holder cannot run its next statement or COMMIT, and everything
+ * stalls until busy timeouts expire (8 concurrent transactions: ~10 s; 50: minutes). So within
+ * one process, transactions and writes outside a transaction take turns here, in arrival order,
+ * before they reach SQLite; the busy timeout is left for writers in other processes.
+ * Re-entrant: a query issued inside a transaction's callback runs at once.
+ */
 const holding = processWide('writerTurn', () => new AsyncLocalStorage<true>());
 
 /** True while this async context holds SQLite's writer turn in this process (see oneWriterAtATime). */
