@@ -12,7 +12,7 @@
  */
 import crypto from 'node:crypto';
 import fs from 'node:fs';
-import { Op, QueryTypes, UniqueConstraintError, type Transaction } from 'sequelize';
+import { Op, QueryTypes, UniqueConstraintError, type CreationAttributes, type Transaction } from 'sequelize';
 import type { Actor } from '@/lib/authz';
 import { audit } from '@/lib/audit';
 import { sequelize } from '@/lib/db';
@@ -39,6 +39,44 @@ export function daysLate(submittedAt: Date, deadline: Date): number {
 export function latePenaltyFor(practical: Pick<Practical, 'lateRule' | 'latePenaltyPerDay' | 'latePenaltyCap'>, days: number): number {
   if (days <= 0 || practical.lateRule !== 'penalty') return 0;
   return Math.min(practical.latePenaltyCap, practical.latePenaltyPerDay * days);
+}
+
+/**
+ * The row of a freshly submitted attempt: counted (the student's marked attempt), unchecked and
+ * unmarked, its late penalty from the practical's rule. The submit path and the demo seed write it.
+ */
+export function submittedAttemptRow(a: {
+  practical: Pick<Practical, 'id' | 'lateRule' | 'latePenaltyPerDay' | 'latePenaltyCap'>;
+  cohortId: number;
+  studentId: number;
+  attempt: number;
+  draft: Draft | null;
+  submittedAt: Date;
+  daysLate: number;
+}): CreationAttributes<Submission> {
+  return {
+    practicalId: a.practical.id,
+    cohortId: a.cohortId,
+    studentId: a.studentId,
+    attempt: a.attempt,
+    status: 'submitted',
+    draft: a.draft,
+    submittedAt: a.submittedAt,
+    daysLate: a.daysLate,
+    latePenalty: latePenaltyFor(a.practical, a.daysLate),
+    flagLate: a.daysLate > 0,
+    isMarkedAttempt: true,
+    checkSummary: null,
+    lineListHash: null,
+    proposedTotal: null,
+    awardedTotal: null,
+    maxTotal: null,
+    markedById: null,
+    markedAt: null,
+    releasedAt: null,
+    resubmissionMessage: null,
+    version: 0,
+  };
 }
 
 export async function attemptsUsed(practicalId: number, studentId: number, transaction?: Transaction) {
@@ -243,29 +281,15 @@ async function submitDraftNow(actor: Actor, draftRow: Submission, practical: Pra
         { where: { practicalId: practical.id, studentId: actor.id, attempt: { [Op.gt]: 0 } }, transaction },
       );
       const attempt = await Submission.create(
-        {
-          practicalId: practical.id,
+        submittedAttemptRow({
+          practical,
           cohortId: draftRow.cohortId,
           studentId: actor.id,
           attempt: lastAttempt + 1,
-          status: 'submitted',
           draft,
           submittedAt: now,
           daysLate: late,
-          latePenalty: latePenaltyFor(practical, late),
-          flagLate: late > 0,
-          isMarkedAttempt: true,
-          checkSummary: null,
-          lineListHash: null,
-          proposedTotal: null,
-          awardedTotal: null,
-          maxTotal: null,
-          markedById: null,
-          markedAt: null,
-          releasedAt: null,
-          resubmissionMessage: null,
-          version: 0,
-        },
+        }),
         { transaction },
       );
       const valueRows = draftValues(draft, practical.species).map((v) => ({ ...v, submissionId: attempt.id, valueSI: null }));

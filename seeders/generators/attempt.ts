@@ -1,12 +1,12 @@
 /**
  * One demo attempt written as a student's hand-in would be: the submission row, its typed values
  * and its line list. Shared by the demo's submissions (submissions.ts) and last year's cohort
- * (last-year.ts); the late penalty follows the practical's rule (latePenaltyFor).
+ * (last-year.ts); the row itself is the submit path's (submittedAttemptRow).
  */
 import { models } from '@/models';
 import type { Practical } from '@/models/practical';
 import type { Submission } from '@/models/submission';
-import { latePenaltyFor } from '@/lib/submissions/service';
+import { submittedAttemptRow } from '@/lib/submissions/service';
 import type { DemoLine, DemoValue } from './report';
 
 export async function createDemoAttempt(input: {
@@ -19,30 +19,17 @@ export async function createDemoAttempt(input: {
   lines: readonly DemoLine[];
 }): Promise<Submission> {
   const { Submission, SubmittedValue, LineAssignment } = models();
-  const { practical, daysLate } = input;
-  const sub = await Submission.create({
-    practicalId: practical.id,
-    cohortId: input.cohortId,
-    studentId: input.studentId,
-    attempt: 1,
-    status: 'submitted',
-    draft: null,
-    submittedAt: input.submittedAt,
-    daysLate,
-    latePenalty: latePenaltyFor(practical, daysLate),
-    flagLate: daysLate > 0,
-    isMarkedAttempt: true,
-    checkSummary: null,
-    lineListHash: null,
-    proposedTotal: null,
-    awardedTotal: null,
-    maxTotal: null,
-    markedById: null,
-    markedAt: null,
-    releasedAt: null,
-    resubmissionMessage: null,
-    version: 0,
-  });
+  const sub = await Submission.create(
+    submittedAttemptRow({
+      practical: input.practical,
+      cohortId: input.cohortId,
+      studentId: input.studentId,
+      attempt: 1,
+      draft: null,
+      submittedAt: input.submittedAt,
+      daysLate: input.daysLate,
+    }),
+  );
   await SubmittedValue.bulkCreate(input.values.map((v) => ({ ...v, submissionId: sub.id, valueSI: null })));
   await LineAssignment.bulkCreate(
     input.lines.map((l) => ({
