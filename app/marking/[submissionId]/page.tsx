@@ -39,6 +39,23 @@ async function findSubmission(raw: string) {
 }
 
 /** Course, cohort, attempt, when it came in, and any lateness, in one line under the title. */
+/** One comparison of a reported value (consistency or accuracy): the expected value, the deviation and the verdict. */
+function ComparisonCells({ basis, expectedLabel, verdictLabel }: { basis: BasisRow | null; expectedLabel: string; verdictLabel: string }) {
+  return (
+    <>
+      <td className="num" data-label={expectedLabel}>
+        <span className="nowrap">{basis?.expectedDisplay ?? '—'}</span>
+      </td>
+      <td className="num" data-label="Deviation">
+        {deviation(basis)}
+      </td>
+      <td data-label={verdictLabel}>
+        <VerdictBadge verdict={basis?.verdict} />
+      </td>
+    </>
+  );
+}
+
 function leadLine(view: MarkingView) {
   const { submission } = view;
   const submitted = submission.submittedAt
@@ -90,24 +107,8 @@ function ValuesSection({ quantities }: { quantities: MarkingView['quantities'] }
                 <td className="num" data-label="Reported">
                   <ValueNote {...splitNote(q.reportedTyped, ' ± ')} />
                 </td>
-                <td className="num" data-label="Recomputed">
-                  <span className="nowrap">{q.consistency?.expectedDisplay ?? '—'}</span>
-                </td>
-                <td className="num" data-label="Deviation">
-                  {deviation(q.consistency)}
-                </td>
-                <td data-label="Consistency">
-                  <VerdictBadge verdict={q.consistency?.verdict} />
-                </td>
-                <td className="num" data-label="Reference">
-                  <span className="nowrap">{q.accuracy?.expectedDisplay ?? '—'}</span>
-                </td>
-                <td className="num" data-label="Deviation">
-                  {deviation(q.accuracy)}
-                </td>
-                <td data-label="Accuracy">
-                  <VerdictBadge verdict={q.accuracy?.verdict} />
-                </td>
+                <ComparisonCells basis={q.consistency} expectedLabel="Recomputed" verdictLabel="Consistency" />
+                <ComparisonCells basis={q.accuracy} expectedLabel="Reference" verdictLabel="Accuracy" />
               </tr>
             ))}
           </tbody>
