@@ -10,6 +10,7 @@ import { log, withRun, type Logger } from '@/lib/log';
 import fs from 'node:fs/promises';
 import { Op, type Transaction } from 'sequelize';
 import { models } from '@/models';
+import { sequelize } from '@/lib/db';
 import { MAIL_FROM, sendMail, smtpPoolSize, type MailMessage } from './transport';
 import { feedbackPath } from '@/lib/storage';
 
@@ -53,24 +54,32 @@ export async function queueEmail(mail: QueuedMail, transaction?: Transaction): P
   );
 }
 
-async function claim(id: number, now: Date): Promise<boolean> {
-  const { EmailOutbox } = models();
-  const [count] = await EmailOutbox.update(
-    { status: 'sending', lockedUntil: new Date(now.getTime() + LEASE_MS) },
-    {
-      where: {
-        id,
-        [Op.or]: [
-          { status: 'queued', nextAttemptAt: { [Op.lte]: now } },
-          { status: 'sending', lockedUntil: { [Op.lt]: now } },
-        ],
-      },
-    },
-  );
-  return count === 1;
-}
-
 type OutboxRow = InstanceType<ReturnType<typeof models>['EmailOutbox']>;
+
+const dueNow = (now: Date) => ({
+  [Op.or]: [
+    { status: 'queued', nextAttemptAt: { [Op.lte]: now } },
+    { status: 'sending', lockedUntil: { [Op.lt]: now } },
+  ],
+});
+
+/**
+ * Claim rows for this worker: each moves to 'sending' with a lease only if it is still due, in one
+ * conditional UPDATE per row (so of several workers exactly one gets it), all in one transaction.
+ * Answers the rows claimed.
+ */
+async function claim(rows: OutboxRow[], now: Date): Promise<OutboxRow[]> {
+  const { EmailOutbox } = models();
+  const lease = { status: 'sending' as const, lockedUntil: new Date(now.getTime() + LEASE_MS) };
+  return sequelize().transaction(async (transaction) => {
+    const claimed: OutboxRow[] = [];
+    for (const row of rows) {
+      const [count] = await EmailOutbox.update(lease, { where: { id: row.id, ...dueNow(now) }, transaction });
+      if (count === 1) claimed.push(row);
+    }
+    return claimed;
+  });
+}
 
 /**
  * One Message-ID per outbox row, the same on every attempt. SMTP cannot be exactly-once: a worker
@@ -83,7 +92,9 @@ export function outboxMessageId(row: Pick<OutboxRow, 'id' | 'createdAt'>): strin
   return `<outbox.${row.id}.${new Date(row.createdAt).getTime()}@${from}>`;
 }
 
-async function messageFor(row: OutboxRow): Promise<MailMessage> {
+type Attached = Pick<InstanceType<ReturnType<typeof models>['FeedbackDocument']>, 'submissionId' | 'storedName'>;
+
+async function messageFor(row: OutboxRow, doc: Attached | undefined): Promise<MailMessage> {
   const message: MailMessage = {
     to: row.toAddress,
     subject: row.subject,
@@ -92,17 +103,14 @@ async function messageFor(row: OutboxRow): Promise<MailMessage> {
     headers: { 'X-Oscillab-Outbox-Id': String(row.id) },
     messageId: outboxMessageId(row),
   };
-  if (row.feedbackDocumentId) {
-    const doc = await models().FeedbackDocument.findByPk(row.feedbackDocumentId);
-    if (doc) {
-      message.attachments = [
-        {
-          filename: `feedback-${row.submissionId ?? doc.submissionId}.pdf`,
-          content: await fs.readFile(feedbackPath(doc.storedName)),
-          contentType: 'application/pdf',
-        },
-      ];
-    }
+  if (doc) {
+    message.attachments = [
+      {
+        filename: `feedback-${row.submissionId ?? doc.submissionId}.pdf`,
+        content: await fs.readFile(feedbackPath(doc.storedName)),
+        contentType: 'application/pdf',
+      },
+    ];
   }
   return message;
 }
@@ -114,30 +122,64 @@ export function deliverOutbox(options: { limit?: number; now?: () => Date } = {}
   return withRun('outbox', (logger) => deliverDue(logger, options));
 }
 
+type Sent = { id: number; messageId: string; attempts: number; sentAt: Date };
+
+/**
+ * Records sent messages a group at a time: whatever was sent while the previous group was being
+ * written goes into the next transaction. A message sent but not yet recorded when the process
+ * dies is sent again when its lease runs out, with the same Message-ID (see outboxMessageId).
+ */
+class SentRecorder {
+  private waiting: Sent[] = [];
+  private writing: Promise<void> | null = null;
+
+  constructor(private readonly logger: Logger) {}
+
+  add(sent: Sent): void {
+    this.waiting.push(sent);
+    this.writing ??= this.write();
+  }
+
+  /** Resolves when everything added so far is written (or has failed and been logged). */
+  async settled(): Promise<void> {
+    while (this.writing) await this.writing;
+  }
+
+  private async write(): Promise<void> {
+    const { EmailOutbox } = models();
+    while (this.waiting.length) {
+      const group = this.waiting.splice(0);
+      try {
+        await sequelize().transaction(async (transaction) => {
+          for (const s of group)
+            // Written by id, not through the claimed instance, which the claim changed behind its back.
+            await EmailOutbox.update(
+              { status: 'sent', sentAt: s.sentAt, messageId: s.messageId, lockedUntil: null, lastError: null, attempts: s.attempts },
+              { where: { id: s.id }, transaction },
+            );
+        });
+      } catch (error) {
+        this.logger.error(
+          { err: error, outboxIds: group.map((s) => s.id) },
+          'sent messages not recorded; they go again when their lease ends',
+        );
+      }
+    }
+    this.writing = null;
+  }
+}
+
 async function deliverDue(logger: Logger, options: { limit?: number; now?: () => Date }): Promise<DeliveryReport> {
-  const { EmailOutbox } = models();
+  const { EmailOutbox, FeedbackDocument } = models();
   const now = options.now ?? (() => new Date());
-  const due = await EmailOutbox.findAll({
-    where: {
-      [Op.or]: [
-        { status: 'queued', nextAttemptAt: { [Op.lte]: now() } },
-        { status: 'sending', lockedUntil: { [Op.lt]: now() } },
-      ],
-    },
-    order: [['id', 'ASC']],
-    limit: options.limit ?? 500,
-  });
+  const due = await EmailOutbox.findAll({ where: dueNow(now()), order: [['id', 'ASC']], limit: options.limit ?? 500 });
+  const recorder = new SentRecorder(logger);
   let sent = 0;
   let failed = 0;
-  const deliver = async (row: OutboxRow) => {
-    if (!(await claim(row.id, now()))) return;
+  const deliver = async (row: OutboxRow, doc: Attached | undefined) => {
     try {
-      const { messageId } = await sendMail(await messageFor(row));
-      // Written by id, not through the stale instance: claim() changed the row behind its back.
-      await EmailOutbox.update(
-        { status: 'sent', sentAt: now(), messageId, lockedUntil: null, lastError: null, attempts: row.attempts + 1 },
-        { where: { id: row.id } },
-      );
+      const { messageId } = await sendMail(await messageFor(row, doc));
+      recorder.add({ id: row.id, messageId, attempts: row.attempts + 1, sentAt: now() });
       sent++;
     } catch (error) {
       const attempts = row.attempts + 1;
@@ -155,13 +197,36 @@ async function deliverDue(logger: Logger, options: { limit?: number; now?: () =>
       logger.warn({ err: error, outboxId: row.id, attempts, willRetry: attempts < MAX_ATTEMPTS }, 'message not sent');
     }
   };
-  // As many messages under way as the SMTP pool has connections, each row claimed on its own.
+  // Rows are claimed a few at a time, a little before they are sent (so a lease never runs out
+  // while its row waits here, and sending never waits for a claim), and sent as many at once as
+  // the SMTP pool has connections.
+  const lanes = smtpPoolSize();
+  const slice = 2 * lanes;
+  const ready: { row: OutboxRow; doc: Attached | undefined }[] = [];
   let next = 0;
+  let refilling: Promise<void> | null = null;
+  const refill = async () => {
+    const rows = await claim(due.slice(next, (next += slice)), now());
+    const docIds = rows.map((r) => r.feedbackDocumentId).filter((id): id is number => id !== null);
+    const docs = docIds.length
+      ? await FeedbackDocument.findAll({ where: { id: docIds }, attributes: ['id', 'submissionId', 'storedName'] })
+      : [];
+    for (const row of rows) ready.push({ row, doc: docs.find((d) => d.id === row.feedbackDocumentId) });
+  };
+  const take = async () => {
+    for (;;) {
+      if (ready.length <= lanes && next < due.length) refilling ??= refill().finally(() => (refilling = null));
+      if (ready.length) return ready.shift();
+      if (!refilling) return undefined;
+      await refilling;
+    }
+  };
   await Promise.all(
-    Array.from({ length: Math.min(due.length, smtpPoolSize()) }, async () => {
-      while (next < due.length) await deliver(due[next++]);
+    Array.from({ length: Math.min(due.length, lanes) }, async () => {
+      for (let item = await take(); item; item = await take()) await deliver(item.row, item.doc);
     }),
   );
+  await recorder.settled();
   const remaining = await EmailOutbox.count({ where: { status: ['queued', 'sending'] } });
   if (due.length) logger.info({ due: due.length, sent, failed, remaining }, 'outbox run');
   return { sent, failed, remaining };
@@ -191,22 +256,42 @@ export async function requeue(id: number, now = new Date()): Promise<boolean> {
   return count === 1;
 }
 
+let running: Promise<void> | null = null;
+let again = false;
+
+/**
+ * Deliver what is due now, in the background. Called while a run is under way, it runs once more
+ * when that run ends (rows queued meanwhile may have been committed after the run read the
+ * queue); calls never overlap within this copy of the module. A release calls this after each
+ * group of releases commits, so the first students' e-mails leave while the rest of the batch is
+ * still being rendered. The promise settles when the runs asked for so far are done; a failed
+ * run is logged, not thrown (its rows stay queued for the next).
+ */
+export function deliverSoon(): Promise<void> {
+  if (running) {
+    again = true;
+    return running;
+  }
+  running = (async () => {
+    try {
+      do {
+        again = false;
+        await deliverOutbox();
+      } while (again);
+    } catch (error) {
+      log().error({ err: error }, 'outbox run failed');
+    } finally {
+      running = null;
+    }
+  })();
+  return running;
+}
+
 let timer: NodeJS.Timeout | null = null;
 
 /** Run the worker in this process every few seconds (started by instrumentation.ts). */
 export function startOutboxWorker(intervalMs = 3000): void {
   if (timer) return;
-  let running = false;
-  timer = setInterval(async () => {
-    if (running) return;
-    running = true;
-    try {
-      await deliverOutbox();
-    } catch (error) {
-      log().error({ err: error }, 'outbox worker failed');
-    } finally {
-      running = false;
-    }
-  }, intervalMs);
+  timer = setInterval(() => void deliverSoon(), intervalMs);
   timer.unref?.();
 }

@@ -1,5 +1,5 @@
 import type { FeedbackInput } from '@/lib/pdf/feedback';
-import type { MarkingView } from './view';
+import type { FeedbackView } from './view';
 import { fitPlotModel, residualModel } from './fit-plot';
 import { rawSum, totalAfterPenalty } from './totals';
 import { speciesDisplay } from '@/lib/grading';
@@ -7,13 +7,15 @@ import { SPECTRUM_VERDICT } from '@/lib/submissions/spectrum-analysis-view';
 
 const n = (v: number | null) => (v === null ? '—' : String(Math.round(v * 100) / 100));
 
+// One formatter for every document: toLocaleString would build a new one per call.
+const WHEN = new Intl.DateTimeFormat('en-GB', { dateStyle: 'long', timeStyle: 'short', timeZone: 'Europe/London' });
+
 function when(iso: string | null): string {
-  if (!iso) return '—';
-  return new Date(iso).toLocaleString('en-GB', { dateStyle: 'long', timeStyle: 'short', timeZone: 'Europe/London' });
+  return iso ? WHEN.format(new Date(iso)) : '—';
 }
 
 /** What the feedback PDF shows, from the marking view. */
-export function feedbackInputFromView(view: MarkingView, now = new Date()): FeedbackInput {
+export function feedbackInputFromView(view: FeedbackView, now = new Date()): FeedbackInput {
   const marksByKey = new Map(view.marks.map((m) => [m.itemKey, m]));
   const max = view.marks.reduce((s, m) => s + m.maxMarks, 0);
   const awarded = view.marks.map((m) => m.awarded);
@@ -73,7 +75,7 @@ export function feedbackInputFromView(view: MarkingView, now = new Date()): Feed
 }
 
 /** One entry per slip, naming every quantity it was found on: a slip is explained once, not once per quantity. */
-export function slipsByCode(slips: MarkingView['slips']): FeedbackInput['slips'] {
+export function slipsByCode(slips: FeedbackView['slips']): FeedbackInput['slips'] {
   const out: (FeedbackInput['slips'][number] & { code: string })[] = [];
   for (const s of slips) {
     const seen = out.find((o) => o.code === s.code);

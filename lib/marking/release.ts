@@ -21,7 +21,7 @@ import { renderEmail } from '@/lib/templates';
 import { pdfWorkerCount, renderFeedbackPdf } from '@/lib/pdf/pool';
 import { cohortName } from '@/lib/display';
 import { models } from '@/models';
-import { loadMarkingView } from './view';
+import { loadFeedbackViews, type FeedbackView } from './view';
 import { feedbackInputFromView } from './feedback-input';
 
 export function appUrl(): string {
@@ -37,10 +37,8 @@ export type ReleaseProgress = { done: number; total: number; submissionId: numbe
 /** Where the time of a release went (ms, summed over submissions; wall is the whole batch). */
 export type ReleaseTimings = { load: number; render: number; commit: number; wall: number };
 
-type Loaded = Awaited<ReturnType<typeof loadMarkingView>>;
-
 /** A release whose PDF is rendered and written to its file, waiting for its transaction. */
-type Rendered = { submissionId: number; view: Loaded; pdf: Uint8Array; storedName: string };
+type Rendered = { submissionId: number; view: FeedbackView; pdf: Uint8Array; storedName: string };
 
 /** Groups of at most this many releases share one transaction (one savepoint each). */
 const MAX_GROUP = 16;
@@ -112,7 +110,10 @@ class GroupCommitter {
   private waiting: { r: Rendered; settle: (o: ReleaseOutcome | Error) => void }[] = [];
   private running = false;
 
-  constructor(private readonly actorId: number) {}
+  constructor(
+    private readonly actorId: number,
+    private readonly afterCommit?: () => void,
+  ) {}
 
   commit(r: Rendered): Promise<ReleaseOutcome> {
     return new Promise((resolve, reject) => {
@@ -149,6 +150,7 @@ class GroupCommitter {
       for (const { settle } of group) settle(error instanceof Error ? error : new Error(String(error)));
       return;
     }
+    if (outcomes.some((o) => o.ok)) this.afterCommit?.();
     for (const [i, { r, settle }] of group.entries()) {
       if (!outcomes[i].ok) await fs.rm(feedbackPath(r.storedName), { force: true });
       settle(outcomes[i]);
@@ -156,15 +158,51 @@ class GroupCommitter {
   }
 }
 
+/** Submissions are read this many at a time, a statement per table for each chunk. */
+const READ_CHUNK = 16;
+
+/**
+ * Reads a batch's feedback views a chunk at a time, and the next chunk while the releases of
+ * this one render, so the reads keep ahead of the PDF threads without holding the whole batch.
+ */
+class ViewReader {
+  private chunks = new Map<number, Promise<Map<number, FeedbackView>>>();
+
+  constructor(private readonly ids: number[]) {}
+
+  read(index: number): Promise<FeedbackView | undefined> {
+    const chunk = Math.floor(index / READ_CHUNK);
+    const views = this.chunk(chunk);
+    this.chunk(chunk + 1);
+    this.chunks.delete(chunk - 2);
+    return views.then((m) => m.get(this.ids[index]));
+  }
+
+  private chunk(n: number): Promise<Map<number, FeedbackView>> {
+    let views = this.chunks.get(n);
+    if (!views) {
+      const ids = this.ids.slice(n * READ_CHUNK, (n + 1) * READ_CHUNK);
+      views = ids.length ? loadFeedbackViews(ids) : Promise.resolve(new Map());
+      // A read ahead that fails is reported to the release that needs it, not as an unhandled rejection.
+      views.catch(() => undefined);
+      this.chunks.set(n, views);
+    }
+    return views;
+  }
+}
+
 async function releaseWith(
   committer: GroupCommitter,
+  reader: ViewReader,
+  index: number,
   submissionId: number,
   batchSize: number,
   timings?: ReleaseTimings,
 ): Promise<ReleaseOutcome> {
   let t0 = performance.now();
-  const view = await loadMarkingView(submissionId);
+  const view = await reader.read(index);
   if (timings) timings.load += performance.now() - t0;
+  if (!view) return { submissionId, ok: false, message: 'Not found.' };
   if (view.submission.status === 'released') return { submissionId, ok: false, message: 'Already released.' };
   if (view.submission.status !== 'marked')
     return { submissionId, ok: false, message: 'Only marked submissions can be released: finish marking first.' };
@@ -193,25 +231,31 @@ export function releaseLanes(): number {
 /**
  * Release a batch. Several submissions are under way at once (four per PDF thread, so a thread
  * never waits for the reads and commits of this thread); outcomes come back in the order asked.
- * onProgress is called after each one.
+ * onProgress is called after each one, afterCommit after each group of releases is committed
+ * (the release route starts sending their e-mails there).
  */
 export async function releaseMany(
   actorId: number,
   submissionIds: number[],
-  options: { onProgress?: (done: number, total: number, outcome: ReleaseOutcome) => void; timings?: ReleaseTimings } = {},
+  options: {
+    onProgress?: (done: number, total: number, outcome: ReleaseOutcome) => void;
+    afterCommit?: () => void;
+    timings?: ReleaseTimings;
+  } = {},
 ): Promise<ReleaseOutcome[]> {
   const ids = [...new Set(submissionIds)];
   const wall = performance.now();
   const out: ReleaseOutcome[] = new Array(ids.length);
   const lanes = Math.min(ids.length, releaseLanes());
-  const committer = new GroupCommitter(actorId);
+  const committer = new GroupCommitter(actorId, options.afterCommit);
+  const reader = new ViewReader(ids);
   let next = 0;
   let done = 0;
   await Promise.all(
     Array.from({ length: lanes }, async () => {
       while (next < ids.length) {
         const i = next++;
-        out[i] = await releaseWith(committer, ids[i], ids.length, options.timings);
+        out[i] = await releaseWith(committer, reader, i, ids[i], ids.length, options.timings);
         options.onProgress?.(++done, ids.length, out[i]);
       }
     }),

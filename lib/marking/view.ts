@@ -11,6 +11,9 @@ import { describeFit, noticesOf } from '@/lib/submissions/fit-words';
 import type { FitChoiceSummary } from '@/lib/grading';
 import type { Submission } from '@/models/submission';
 import type { Practical } from '@/models/practical';
+import type { Cohort } from '@/models/cohort';
+import type { Course } from '@/models/course';
+import type { User } from '@/models/user';
 import type { SubmittedValue } from '@/models/submitted-value';
 import type { CheckResult } from '@/models/check-result';
 import type { Mark } from '@/models/mark';
@@ -111,52 +114,86 @@ export function fitsFromSummary(summary: unknown): FitData[] {
   return out;
 }
 
+type Related = {
+  submission: Submission;
+  practical: Practical;
+  cohort: Cohort;
+  course: Course;
+  student: User;
+  marker: User | null;
+  values: SubmittedValue[];
+  checks: CheckResult[];
+  marks: Mark[];
+};
+
+const unique = (ids: (number | null | undefined)[]) => [...new Set(ids.filter((id): id is number => typeof id === 'number'))];
+
+function bySubmission<T extends { submissionId: number }>(rows: T[]): Map<number, T[]> {
+  const out = new Map<number, T[]>();
+  for (const row of rows) {
+    const list = out.get(row.submissionId);
+    if (list) list.push(row);
+    else out.set(row.submissionId, [row]);
+  }
+  return out;
+}
+
 /**
- * `loaded` passes the submission and practical rows a caller has already read (the marking page
- * reads them to authorise), so they are not read twice; every other read goes out at once.
+ * The rows a submission's feedback is built from, for any number of submissions at once: one
+ * statement per table (then one for the courses), however many submissions. Submissions whose
+ * practical, cohort, course or student is gone are left out. `known` holds practicals the caller
+ * has already read.
  */
-export async function loadMarkingView(submissionId: number, loaded?: { submission: Submission; practical: Practical }) {
+async function readRelated(submissions: Submission[], known: Practical[] = []): Promise<Map<number, Related>> {
   const {
-    Submission: SubmissionModel,
     Practical: PracticalModel,
-    Course,
-    Cohort,
-    User,
-    SubmittedValue,
-    CheckResult,
-    Mark,
-    Upload,
-    FeedbackDocument,
-    EmailOutbox,
-    Moderation,
+    Course: CourseModel,
+    Cohort: CohortModel,
+    User: UserModel,
+    SubmittedValue: Values,
+    CheckResult: Checks,
+    Mark: Marks,
   } = models();
-  const submission = loaded?.submission ?? (await SubmissionModel.findByPk(submissionId));
-  if (!submission || submission.status === 'draft') throw new HttpError(404, 'Not found.');
-  const where = { submissionId };
-  const [practical, cohort, student, marker, values, checks, marks, uploads, docs, outbox, moderations] = await Promise.all([
-    loaded?.practical ?? PracticalModel.findByPk(submission.practicalId),
-    Cohort.findByPk(submission.cohortId),
-    User.findByPk(submission.studentId),
-    submission.markedById ? User.findByPk(submission.markedById) : Promise.resolve(null),
-    SubmittedValue.findAll({ where, order: [['id', 'ASC']] }),
-    CheckResult.findAll({ where, order: [['id', 'ASC']] }),
-    Mark.findAll({ where, order: [['id', 'ASC']] }),
-    Upload.findAll({ where, order: [['id', 'DESC']] }),
-    FeedbackDocument.findAll({ where, order: [['id', 'ASC']] }),
-    EmailOutbox.findAll({ where, order: [['id', 'ASC']] }),
-    Moderation.findAll({ where, order: [['id', 'ASC']] }),
+  if (!submissions.length) return new Map();
+  const where = { submissionId: submissions.map((s) => s.id) };
+  const order: [string, string][] = [['id', 'ASC']];
+  const toRead = unique(submissions.map((s) => s.practicalId)).filter((id) => !known.some((p) => p.id === id));
+  const [practicals, cohorts, users, values, checks, marks] = await Promise.all([
+    toRead.length ? PracticalModel.findAll({ where: { id: toRead } }).then((read) => [...known, ...read]) : known,
+    CohortModel.findAll({ where: { id: unique(submissions.map((s) => s.cohortId)) } }),
+    UserModel.findAll({ where: { id: unique(submissions.flatMap((s) => [s.studentId, s.markedById])) } }),
+    Values.findAll({ where, order }),
+    Checks.findAll({ where, order }),
+    Marks.findAll({ where, order }),
   ]);
-  if (!practical || !cohort || !student) throw new HttpError(404, 'Not found.');
-  const course = await Course.findByPk(practical.courseId);
-  if (!course) throw new HttpError(404, 'Not found.');
+  const courses = await CourseModel.findAll({ where: { id: unique(practicals.map((p) => p.courseId)) } });
+  const find = <T extends { id: number }>(rows: T[], id: number | null) => rows.find((r) => r.id === id);
+  const [valuesOf, checksOf, marksOf] = [bySubmission(values), bySubmission(checks), bySubmission(marks)];
+  const out = new Map<number, Related>();
+  for (const submission of submissions) {
+    const practical = find(practicals, submission.practicalId);
+    const cohort = find(cohorts, submission.cohortId);
+    const student = find(users, submission.studentId);
+    const course = practical && find(courses, practical.courseId);
+    if (!practical || !cohort || !student || !course) continue;
+    out.set(submission.id, {
+      submission,
+      practical,
+      cohort,
+      course,
+      student,
+      marker: (submission.markedById && find(users, submission.markedById)) || null,
+      values: valuesOf.get(submission.id) ?? [],
+      checks: checksOf.get(submission.id) ?? [],
+      marks: marksOf.get(submission.id) ?? [],
+    });
+  }
+  return out;
+}
 
+/** What a submission's feedback shows (the PDF, the release e-mail, the platform's score), and the head of the marking screen. */
+function feedbackViewOf({ submission, practical, cohort, course, student, marker, values, checks, marks }: Related) {
   const rows = quantityRows(values, checks);
-  const markRows = markRowsOf(marks, values, practical);
-  const slipRows = slipRowsOf(rows);
-
-  const report = uploads.find((u) => u.kind === 'report') ?? null;
-  const spectrum = uploads.find((u) => u.kind === 'spectrum') ?? null;
-
   return {
     submission: {
       id: submission.id,
@@ -189,10 +226,51 @@ export async function loadMarkingView(submissionId: number, loaded?: { submissio
     student: { id: student.id, name: student.name, email: student.email, studentNumber: student.studentNumber },
     marker: marker ? { id: marker.id, name: marker.name } : null,
     quantities: rows,
-    marks: markRows,
-    slips: slipRows,
+    marks: markRowsOf(marks, values, practical),
+    slips: slipRowsOf(rows),
     fits: fitsFromSummary(submission.checkSummary),
     spectrumAnalysis: spectrumAnalysisView(submission.checkSummary),
+  };
+}
+
+export type FeedbackView = ReturnType<typeof feedbackViewOf>;
+
+/**
+ * Feedback views of a batch of submissions (a release), read a statement per table for the whole
+ * batch. Drafts, and submissions that are gone, are not in the answer.
+ */
+export async function loadFeedbackViews(submissionIds: number[]): Promise<Map<number, FeedbackView>> {
+  const submissions = await models().Submission.findAll({ where: { id: submissionIds } });
+  const related = await readRelated(submissions.filter((s) => s.status !== 'draft'));
+  return new Map([...related].map(([id, r]) => [id, feedbackViewOf(r)]));
+}
+
+/**
+ * The marking screen's view: the feedback view, and the submission's files, feedback documents,
+ * e-mails and moderations. `loaded` passes the submission and practical rows a caller has already
+ * read (the marking page reads them to authorise), so they are not read twice; every other read
+ * goes out at once.
+ */
+export async function loadMarkingView(submissionId: number, loaded?: { submission: Submission; practical: Practical }) {
+  const { Submission: SubmissionModel, Upload, FeedbackDocument, EmailOutbox, Moderation } = models();
+  const submission = loaded?.submission ?? (await SubmissionModel.findByPk(submissionId));
+  if (!submission || submission.status === 'draft') throw new HttpError(404, 'Not found.');
+  const where = { submissionId };
+  const order: [string, string][] = [['id', 'ASC']];
+  const [related, uploads, docs, outbox, moderations] = await Promise.all([
+    readRelated([submission], loaded ? [loaded.practical] : []),
+    Upload.findAll({ where, order: [['id', 'DESC']] }),
+    FeedbackDocument.findAll({ where, order }),
+    EmailOutbox.findAll({ where, order }),
+    Moderation.findAll({ where, order }),
+  ]);
+  const found = related.get(submission.id);
+  if (!found) throw new HttpError(404, 'Not found.');
+  const report = uploads.find((u) => u.kind === 'report') ?? null;
+  const spectrum = uploads.find((u) => u.kind === 'spectrum') ?? null;
+
+  return {
+    ...feedbackViewOf(found),
     report: report ? { id: report.id, originalName: report.originalName } : null,
     spectrumUpload: spectrum ? { id: spectrum.id, storedName: spectrum.storedName, originalName: spectrum.originalName } : null,
     feedbackDocuments: docs.map((d) => ({ id: d.id, createdAt: d.createdAt.toISOString(), size: d.size })),

@@ -10,7 +10,7 @@ import { fill, templateText } from '@/lib/templates';
 import type { PlotModel } from '@/lib/spectrum';
 import { drawPlot } from './draw-plot';
 import { verdictInfo } from '@/lib/marking/verdict';
-import { embedFonts, wrap } from './fonts';
+import { drawTextIn, embedFonts, wrap } from './fonts';
 import { A4, INK, SOFT } from './style';
 
 export type FeedbackInput = {
@@ -62,6 +62,14 @@ function texts(): Record<string, string> {
   return out;
 }
 
+/** Every string in the input (the plots' numbers are not text). */
+function textsIn(value: unknown, out: string[] = []): string[] {
+  if (typeof value === 'string') out.push(value);
+  else if (Array.isArray(value)) for (const v of value) textsIn(v, out);
+  else if (value && typeof value === 'object') for (const v of Object.values(value)) textsIn(v, out);
+  return out;
+}
+
 const MARGIN = 42;
 const RULE = rgb(0.85, 0.84, 0.78);
 
@@ -90,7 +98,7 @@ class Writer {
     for (const l of lines) {
       this.need(size * 1.35);
       this.y -= size * 1.35;
-      this.page.drawText(l, { x: opts.x ?? MARGIN, y: this.y, size, font, color: opts.color ?? INK });
+      drawTextIn(this.page, l, { x: opts.x ?? MARGIN, y: this.y, size, font, color: opts.color ?? INK });
     }
     this.y -= opts.gap ?? 0;
   }
@@ -124,7 +132,7 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
   const doc = await PDFDocument.create();
   doc.registerFontkit(fontkit);
   // The fonts prepared once per process (fonts.ts), unless some text needs a character they lack.
-  const f: Fonts = await embedFonts(doc, ['regular', 'bold', 'mono'], JSON.stringify(input) + Object.values(T).join(''));
+  const f: Fonts = await embedFonts(doc, ['regular', 'bold', 'mono'], [...textsIn(input), ...Object.values(T)].join(''));
   doc.setTitle(`${fill(T.title, {})}: ${input.practical}`);
   doc.setAuthor('Oscillab');
   doc.setSubject(`${input.course} · ${input.student}`);
@@ -159,7 +167,7 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
     wrapped.forEach((ls, i) => {
       ls.forEach((l, j) => {
         const font = opts.bold ? f.bold : opts.monoCols?.includes(i) ? f.mono : f.regular;
-        w.page.drawText(l, { x, y: w.y - size * 1.1 - j * size * 1.3, size, font, color: opts.colours?.[i] ?? INK });
+        drawTextIn(w.page, l, { x, y: w.y - size * 1.1 - j * size * 1.3, size, font, color: opts.colours?.[i] ?? INK });
       });
       x += COLS[i].w;
     });
@@ -267,7 +275,7 @@ export async function buildFeedbackPdf(input: FeedbackInput): Promise<Uint8Array
   const pages = w.pages.length;
   w.pages.forEach((page, i) => {
     const text = fill(T.footer, { course: input.course, generatedAt: input.generatedAt.slice(0, 10), page: i + 1, pages });
-    page.drawText(text, { x: MARGIN, y: MARGIN - 16, size: 7, font: f.regular, color: SOFT });
+    drawTextIn(page, text, { x: MARGIN, y: MARGIN - 16, size: 7, font: f.regular, color: SOFT });
   });
   return doc.save();
 }

@@ -17,7 +17,17 @@ import fs from 'node:fs';
 import path from 'node:path';
 import zlib from 'node:zlib';
 import fontkit from '@pdf-lib/fontkit';
-import { CustomFontEmbedder, PDFFont, PDFHexString, PDFRawStream, PDFDocument, type PDFContext, type PDFRef } from 'pdf-lib';
+import {
+  CustomFontEmbedder,
+  PDFFont,
+  PDFHexString,
+  PDFRawStream,
+  PDFDocument,
+  type PDFContext,
+  type PDFName,
+  type PDFPage,
+  type PDFRef,
+} from 'pdf-lib';
 
 /** Unicode blocks in the shared subset (only characters the font has are kept). */
 const REPERTOIRE: [number, number][] = [
@@ -188,14 +198,17 @@ export function isSharedFont(font: PDFFont): boolean {
   return (font as unknown as { embedder: unknown }).embedder instanceof SharedSubsetEmbedder;
 }
 
+let everyFontHas: Promise<Set<number>> | null = null;
+
 /** True when every character of the text is in the shared subset of all three fonts. */
 export async function coversText(text: string): Promise<boolean> {
-  const fonts = await Promise.all((Object.keys(FILES) as FontName[]).map(preparedFont));
-  for (const ch of text) {
-    const cp = ch.codePointAt(0)!;
-    if (cp === 0x0a || cp === 0x0d || cp === 0x09) continue;
-    if (!fonts.every((f) => f.glyph.has(cp))) return false;
-  }
+  // Tab and line breaks never reach a page as glyphs.
+  everyFontHas ??= Promise.all((Object.keys(FILES) as FontName[]).map(preparedFont)).then((fonts) => {
+    const shared = [...fonts[0].glyph.keys()].filter((cp) => fonts.every((f) => f.glyph.has(cp)));
+    return new Set([...shared, 0x09, 0x0a, 0x0d]);
+  });
+  const covered = await everyFontHas;
+  for (const ch of text) if (!covered.has(ch.codePointAt(0)!)) return false;
   return true;
 }
 
@@ -275,4 +288,32 @@ export function wrap(text: string, font: PDFFont, size: number, width: number, o
     out.push(line);
   }
   return out;
+}
+
+type TextOptions = Omit<NonNullable<Parameters<PDFPage['drawText']>[1]>, 'font'> & { font: PDFFont };
+const pageFontNames = new WeakMap<PDFPage, Map<PDFFont, PDFName>>();
+
+/**
+ * Draw text in a font. pdf-lib's drawText({ font }) adds the font to the page's resources under
+ * a new name on every call, and once more to restore the font before it, checking each new name
+ * against all the names already there: a page with a few hundred table cells spends longer
+ * naming fonts than drawing, and carries hundreds of resource entries. Here each font is added
+ * to a page once, and made current by its name before drawText is called without `font`.
+ * (pdf-lib keeps the current font in the page's private `font` and `fontKey`; pdf-lib is pinned.)
+ */
+export function drawTextIn(page: PDFPage, text: string, { font, ...options }: TextOptions): void {
+  const current = page as unknown as { font?: PDFFont; fontKey?: PDFName };
+  if (current.font !== font) {
+    let names = pageFontNames.get(page);
+    if (!names) pageFontNames.set(page, (names = new Map()));
+    const name = names.get(font);
+    if (name) {
+      current.font = font;
+      current.fontKey = name;
+    } else {
+      page.setFont(font);
+      names.set(font, current.fontKey!);
+    }
+  }
+  page.drawText(text, options);
 }

@@ -10,7 +10,7 @@
  */
 import fontkit from '@pdf-lib/fontkit';
 import { PDFDocument, rgb, type PDFFont, type PDFPage } from 'pdf-lib';
-import { embedFonts, textWidth, wrap as wrapText } from '@/lib/pdf/fonts';
+import { drawTextIn, embedFonts, textWidth, wrap as wrapText } from '@/lib/pdf/fonts';
 import { A4, INK, SOFT } from '@/lib/pdf/style';
 import type { PracticalReport } from './report';
 import { formatPercent, quantityLabel, symlog, SYMLOG_TICKS, tickLabel } from './scale';
@@ -50,7 +50,7 @@ class Pages {
     if (this.y - h < M + 14) this.newPage();
   }
   text(t: string, x: number, y: number, size = 8, font: PDFFont = this.regular, color = INK) {
-    this.page.drawText(t, { x, y, size, font, color });
+    drawTextIn(this.page, t, { x, y, size, font, color });
   }
 }
 
@@ -97,7 +97,7 @@ export async function summaryPdf(report: PracticalReport, generatedAt = new Date
 
   const total = w.all.length;
   w.all.forEach((p, i) => {
-    p.drawText(`Oscillab · ${report.practical.title} · ${report.scope.label} · page ${i + 1} of ${total}`, {
+    drawTextIn(p, `Oscillab · ${report.practical.title} · ${report.scope.label} · page ${i + 1} of ${total}`, {
       x: M,
       y: M - 16,
       size: 7,

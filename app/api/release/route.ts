@@ -1,7 +1,7 @@
 import { authorize, permit } from '@/lib/authz';
 import { log } from '@/lib/log';
 import { json, readJson, route } from '@/lib/http';
-import { deliverOutbox } from '@/lib/mail/outbox';
+import { deliverSoon } from '@/lib/mail/outbox';
 import { submissionScope } from '@/lib/authz/submission';
 import { releaseMany, type ReleaseOutcome } from '@/lib/marking/release';
 import { releaseSchema } from '@/lib/schemas/marking';
@@ -19,14 +19,14 @@ export const POST = route(async (request) => {
     const { scope } = await submissionScope(id);
     permit(actor, { kind: 'submission-mark', ...scope });
   }
-  // Send now rather than wait for the worker's next tick; failures stay queued and are retried.
+  // Each group's e-mails are sent as soon as it commits, rather than at the worker's next tick
+  // after the whole batch; failures stay queued and are retried.
   const logger = log();
-  const deliver = () => deliverOutbox().catch((error) => logger.error({ err: error }, 'outbox after release failed'));
+  const afterCommit = () => void deliverSoon();
   const summary = (results: ReleaseOutcome[]) => ({ results, released: results.filter((r) => r.ok).length });
 
   if (!(request.headers.get('accept') ?? '').includes('application/x-ndjson')) {
-    const results = await releaseMany(actor.id, submissionIds);
-    deliver();
+    const results = await releaseMany(actor.id, submissionIds, { afterCommit });
     return json(summary(results));
   }
   const encoder = new TextEncoder();
@@ -35,9 +35,9 @@ export const POST = route(async (request) => {
       const line = (v: unknown) => controller.enqueue(encoder.encode(`${JSON.stringify(v)}\n`));
       try {
         const results = await releaseMany(actor.id, submissionIds, {
+          afterCommit,
           onProgress: (done, total, o) => line({ done, total, submissionId: o.submissionId, ok: o.ok }),
         });
-        deliver();
         line(summary(results));
       } catch (error) {
         logger.error({ err: error }, 'release failed');

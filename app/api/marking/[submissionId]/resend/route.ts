@@ -1,7 +1,6 @@
 import { audit } from '@/lib/audit';
-import { log } from '@/lib/log';
 import { json, readJson, route, idParam, HttpError } from '@/lib/http';
-import { deliverOutbox, requeue } from '@/lib/mail/outbox';
+import { deliverSoon, requeue } from '@/lib/mail/outbox';
 import { authorizeSubmission } from '@/lib/authz/submission';
 import { resendSchema } from '@/lib/schemas/marking';
 import { models } from '@/models';
@@ -32,6 +31,6 @@ export const POST = route<Ctx>(async (request, { params }) => {
     before,
     after: { requeued: true },
   });
-  deliverOutbox().catch((error) => log().error({ err: error }, 'outbox after resend failed'));
+  void deliverSoon();
   return json({ ok: true });
 });

@@ -1,6 +1,5 @@
-import { log } from '@/lib/log';
 import { json, readJson, route, idParam } from '@/lib/http';
-import { deliverOutbox } from '@/lib/mail/outbox';
+import { deliverSoon } from '@/lib/mail/outbox';
 import { authorizeSubmission } from '@/lib/authz/submission';
 import { requestResubmission } from '@/lib/marking/resubmission';
 import { resubmissionSchema } from '@/lib/schemas/marking';
@@ -13,6 +12,6 @@ export const POST = route<Ctx>(async (request, { params }) => {
   const { actor } = await authorizeSubmission(request, id, 'submission-mark');
   const input = await readJson(request, resubmissionSchema);
   const result = await requestResubmission(actor, id, input.message, input.version);
-  deliverOutbox().catch((error) => log().error({ err: error }, 'outbox after resubmission request failed'));
+  void deliverSoon();
   return json(result);
 });

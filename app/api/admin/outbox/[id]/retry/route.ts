@@ -1,8 +1,7 @@
 import { authorize } from '@/lib/authz';
 import { idParam, json, route } from '@/lib/http';
 import { retryOutbox } from '@/lib/admin/outbox-health';
-import { deliverOutbox } from '@/lib/mail/outbox';
-import { log } from '@/lib/log';
+import { deliverSoon } from '@/lib/mail/outbox';
 
 type Ctx = { params: Promise<{ id: string }> };
 
@@ -11,6 +10,6 @@ export const POST = route<Ctx>(async (request, { params }) => {
   const actor = await authorize(request, { kind: 'admin' });
   const id = idParam((await params).id);
   await retryOutbox(id, actor.id);
-  deliverOutbox().catch((error) => log().error({ err: error }, 'outbox after retry failed'));
+  void deliverSoon();
   return json({ ok: true });
 });
