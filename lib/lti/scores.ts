@@ -31,28 +31,36 @@ export type ReleasedView = {
 };
 
 /**
- * Queue the score of a release for every platform course connected to the submission's course in
- * which the student is known (linked by their platform user id). Called inside the release's
- * transaction; two small SELECTs when there is nothing to queue.
+ * Queue the scores of releases (a release's group) for every platform course connected to each
+ * submission's course in which its student is known (linked by their platform user id). Called
+ * inside the releases' transaction; one SELECT when there is nothing to queue.
  */
-export async function queueReleaseScores(view: ReleasedView, releaseNumber: number, transaction: Transaction): Promise<number> {
-  const targets = await sequelize().query<{ contextId: number; sub: string }>(
-    `SELECT c."id" AS "contextId", l."sub" AS "sub" FROM "lti_contexts" c
-       JOIN "lti_user_links" l ON l."registrationId" = c."registrationId" AND l."userId" = :studentId
-      WHERE c."courseId" = :courseId ORDER BY c."id"`,
-    { replacements: { courseId: view.course.id, studentId: view.student.id }, type: QueryTypes.SELECT, transaction },
+export async function queueReleaseScores(
+  releases: { view: ReleasedView; releaseNumber: number }[],
+  transaction: Transaction,
+): Promise<number> {
+  if (!releases.length) return 0;
+  const targets = await sequelize().query<{ contextId: number; courseId: number; userId: number; sub: string }>(
+    `SELECT c."id" AS "contextId", c."courseId" AS "courseId", l."userId" AS "userId", l."sub" AS "sub" FROM "lti_contexts" c
+       JOIN "lti_user_links" l ON l."registrationId" = c."registrationId" AND l."userId" IN (:studentIds)
+      WHERE c."courseId" IN (:courseIds) ORDER BY c."id"`,
+    {
+      replacements: {
+        courseIds: [...new Set(releases.map((r) => r.view.course.id))],
+        studentIds: [...new Set(releases.map((r) => r.view.student.id))],
+      },
+      type: QueryTypes.SELECT,
+      transaction,
+    },
   );
   if (!targets.length) return 0;
-  const { LtiScoreOutbox } = models();
   const now = new Date();
-  const scoreMaximum = view.submission.maxTotal ?? view.marks.reduce((s, m) => s + m.maxMarks, 0);
-  let queued = 0;
-  for (const target of targets) {
-    const dedupeKey = `score:${view.submission.id}:${releaseNumber}:${target.contextId}`;
-    if (await LtiScoreOutbox.findOne({ where: { dedupeKey }, transaction })) continue;
-    await LtiScoreOutbox.create(
-      {
-        dedupeKey,
+  const rows = releases.flatMap(({ view, releaseNumber }) => {
+    const scoreMaximum = view.submission.maxTotal ?? view.marks.reduce((s, m) => s + m.maxMarks, 0);
+    return targets
+      .filter((t) => Number(t.courseId) === view.course.id && Number(t.userId) === view.student.id)
+      .map((target) => ({
+        dedupeKey: `score:${view.submission.id}:${releaseNumber}:${target.contextId}`,
         ltiContextId: Number(target.contextId),
         practicalId: view.practical.id,
         submissionId: view.submission.id,
@@ -67,14 +75,18 @@ export async function queueReleaseScores(view: ReleasedView, releaseNumber: numb
         lockedUntil: null,
         lastError: null,
         sentAt: null,
-      },
-      { transaction },
-    );
-    queued++;
-  }
-  if (queued && process.env.OUTBOX_WORKER !== 'off')
+      }));
+  });
+  const { LtiScoreOutbox } = models();
+  const existing = rows.length
+    ? await LtiScoreOutbox.findAll({ where: { dedupeKey: rows.map((r) => r.dedupeKey) }, attributes: ['dedupeKey'], transaction })
+    : [];
+  const taken = new Set(existing.map((e) => e.dedupeKey));
+  const fresh = rows.filter((r) => !taken.has(r.dedupeKey));
+  if (fresh.length) await LtiScoreOutbox.bulkCreate(fresh, { transaction });
+  if (fresh.length && process.env.OUTBOX_WORKER !== 'off')
     transaction.afterCommit(() => void deliverScores().catch((e) => log().error({ err: e }, 'score delivery failed')));
-  return queued;
+  return fresh.length;
 }
 
 async function claim(id: number, now: Date): Promise<boolean> {

@@ -30,11 +30,25 @@ export type QueuedMail = {
 
 /** Queue a message; a second call with the same dedupeKey is a no-op. */
 export async function queueEmail(mail: QueuedMail, transaction?: Transaction): Promise<void> {
+  await queueEmails([mail], transaction);
+}
+
+/** Queue messages (a release's group) in two statements; any whose dedupeKey is already queued is left out. */
+export async function queueEmails(mails: QueuedMail[], transaction?: Transaction): Promise<void> {
+  if (!mails.length) return;
   const { EmailOutbox } = models();
-  const existing = await EmailOutbox.findOne({ where: { dedupeKey: mail.dedupeKey }, transaction });
-  if (existing) return;
-  await EmailOutbox.create(
-    {
+  const existing = await EmailOutbox.findAll({
+    where: { dedupeKey: mails.map((m) => m.dedupeKey) },
+    attributes: ['dedupeKey'],
+    transaction,
+  });
+  const taken = new Set(existing.map((e) => e.dedupeKey));
+  const now = new Date();
+  const rows = [];
+  for (const mail of mails) {
+    if (taken.has(mail.dedupeKey)) continue;
+    taken.add(mail.dedupeKey);
+    rows.push({
       dedupeKey: mail.dedupeKey,
       toAddress: mail.to,
       // One line, whatever the caller built it from: a line break would end the header early.
@@ -44,14 +58,14 @@ export async function queueEmail(mail: QueuedMail, transaction?: Transaction): P
       htmlBody: mail.html ?? null,
       submissionId: mail.submissionId ?? null,
       feedbackDocumentId: mail.feedbackDocumentId ?? null,
-      nextAttemptAt: new Date(),
+      nextAttemptAt: now,
       lockedUntil: null,
       lastError: null,
       messageId: null,
       sentAt: null,
-    },
-    { transaction },
-  );
+    });
+  }
+  if (rows.length) await EmailOutbox.bulkCreate(rows, { transaction });
 }
 
 type OutboxRow = InstanceType<ReturnType<typeof models>['EmailOutbox']>;

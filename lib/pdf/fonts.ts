@@ -21,6 +21,7 @@ import {
   CustomFontEmbedder,
   PDFFont,
   PDFHexString,
+  PDFNumber,
   PDFRawStream,
   PDFDocument,
   type PDFContext,
@@ -59,6 +60,7 @@ interface PreparedFont {
   /** Code point → advance width at size 1000. */
   advance: Map<number, number>;
   widths: number[];
+  widthNumbers?: PDFNumber[];
   fontFile: Uint8Array;
   fontFileLength: number;
   toUnicode: Uint8Array;
@@ -188,8 +190,11 @@ class SharedSubsetEmbedder extends CustomFontEmbedder {
     return context.register(PDFRawStream.of(context.obj({ Filter: 'FlateDecode' }), this.p.toUnicode));
   }
 
+  // The widths as PDF numbers, made once per font: context.obj keeps PDF objects as they are,
+  // where it would format each of a few hundred numbers again in every document.
   protected computeWidths(): (number | number[])[] {
-    return [1, this.p.widths];
+    this.p.widthNumbers ??= this.p.widths.map((w) => PDFNumber.of(w));
+    return [PDFNumber.of(1), this.p.widthNumbers] as unknown as (number | number[])[];
   }
 }
 
