@@ -63,6 +63,11 @@ async function main() {
   process.env.UPLOAD_DIR = path.join(dir, 'uploads');
   process.env.SMTP_URL = `smtp://127.0.0.1:${SMTP}`;
   process.env.OUTBOX_WORKER = 'off';
+  // tsx turns on source maps for stack traces in this thread; the production server (next start)
+  // runs without them. Sequelize formats a stack for every statement it runs, which with source
+  // maps costs about three times as much (19.5 µs against 6.1 µs for a stack nine frames deep,
+  // measured here), so the app's side is measured as it runs in production.
+  process.setSourceMapsEnabled(false);
   // Outbox runs log a line each (lib/log.ts); only warnings and errors here, unless asked.
   process.env.LOG_LEVEL ??= 'warn';
   execFileSync(process.execPath, [path.resolve('node_modules/sequelize-cli/lib/sequelize'), 'db:migrate'], {

@@ -80,6 +80,7 @@ const dueNow = (now: Date) => ({
 /**
  * Claim rows for this worker: each moves to 'sending' with a lease only if it is still due, in one
  * conditional UPDATE per row (so of several workers exactly one gets it), all in one transaction.
+ * The claim also writes the Message-ID the row goes out with (the same on every attempt).
  * Answers the rows claimed.
  */
 async function claim(rows: OutboxRow[], now: Date): Promise<OutboxRow[]> {
@@ -88,7 +89,10 @@ async function claim(rows: OutboxRow[], now: Date): Promise<OutboxRow[]> {
   return sequelize().transaction(async (transaction) => {
     const claimed: OutboxRow[] = [];
     for (const row of rows) {
-      const [count] = await EmailOutbox.update(lease, { where: { id: row.id, ...dueNow(now) }, transaction });
+      const [count] = await EmailOutbox.update(
+        { ...lease, messageId: outboxMessageId(row) },
+        { where: { id: row.id, ...dueNow(now) }, transaction },
+      );
       if (count === 1) claimed.push(row);
     }
     return claimed;
@@ -136,21 +140,23 @@ export function deliverOutbox(options: { limit?: number; now?: () => Date } = {}
   return withRun('outbox', (logger) => deliverDue(logger, options));
 }
 
-type Sent = { id: number; messageId: string; attempts: number; sentAt: Date };
-
 /**
- * Records sent messages a group at a time: whatever was sent while the previous group was being
- * written goes into the next transaction. A message sent but not yet recorded when the process
- * dies is sent again when its lease runs out, with the same Message-ID (see outboxMessageId).
+ * Records sent messages a group at a time, in one statement for the group: whatever was sent while
+ * the previous group was being written goes into the next. A message sent but not yet recorded
+ * when the process dies is sent again when its lease runs out, with the same Message-ID (see
+ * outboxMessageId).
  */
 class SentRecorder {
-  private waiting: Sent[] = [];
+  private waiting: number[] = [];
   private writing: Promise<void> | null = null;
 
-  constructor(private readonly logger: Logger) {}
+  constructor(
+    private readonly logger: Logger,
+    private readonly now: () => Date,
+  ) {}
 
-  add(sent: Sent): void {
-    this.waiting.push(sent);
+  add(id: number): void {
+    this.waiting.push(id);
     this.writing ??= this.write();
   }
 
@@ -162,21 +168,20 @@ class SentRecorder {
   private async write(): Promise<void> {
     const { EmailOutbox } = models();
     while (this.waiting.length) {
-      const group = this.waiting.splice(0);
+      const ids = this.waiting.splice(0);
       try {
-        await sequelize().transaction(async (transaction) => {
-          for (const s of group)
-            // Written by id, not through the claimed instance, which the claim changed behind its back.
-            await EmailOutbox.update(
-              { status: 'sent', sentAt: s.sentAt, messageId: s.messageId, lockedUntil: null, lastError: null, attempts: s.attempts },
-              { where: { id: s.id }, transaction },
-            );
-        });
-      } catch (error) {
-        this.logger.error(
-          { err: error, outboxIds: group.map((s) => s.id) },
-          'sent messages not recorded; they go again when their lease ends',
+        await EmailOutbox.update(
+          {
+            status: 'sent',
+            sentAt: this.now(),
+            lockedUntil: null,
+            lastError: null,
+            attempts: sequelize().literal('attempts + 1') as unknown as number,
+          },
+          { where: { id: ids, status: 'sending' } },
         );
+      } catch (error) {
+        this.logger.error({ err: error, outboxIds: ids }, 'sent messages not recorded; they go again when their lease ends');
       }
     }
     this.writing = null;
@@ -187,13 +192,13 @@ async function deliverDue(logger: Logger, options: { limit?: number; now?: () =>
   const { EmailOutbox, FeedbackDocument } = models();
   const now = options.now ?? (() => new Date());
   const due = await EmailOutbox.findAll({ where: dueNow(now()), order: [['id', 'ASC']], limit: options.limit ?? 500 });
-  const recorder = new SentRecorder(logger);
+  const recorder = new SentRecorder(logger, now);
   let sent = 0;
   let failed = 0;
   const deliver = async (row: OutboxRow, doc: Attached | undefined) => {
     try {
-      const { messageId } = await sendMail(await messageFor(row, doc));
-      recorder.add({ id: row.id, messageId, attempts: row.attempts + 1, sentAt: now() });
+      await sendMail(await messageFor(row, doc));
+      recorder.add(row.id);
       sent++;
     } catch (error) {
       const attempts = row.attempts + 1;

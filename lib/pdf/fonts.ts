@@ -18,6 +18,17 @@ import path from 'node:path';
 import zlib from 'node:zlib';
 import fontkit from '@pdf-lib/fontkit';
 import {
+  beginText,
+  endText,
+  moveText,
+  popGraphicsState,
+  pushGraphicsState,
+  rgb,
+  setFillingColor,
+  setFontAndSize,
+  showText,
+  type Color,
+  type Rotation,
   CustomFontEmbedder,
   PDFFont,
   PDFHexString,
@@ -295,30 +306,45 @@ export function wrap(text: string, font: PDFFont, size: number, width: number, o
   return out;
 }
 
-type TextOptions = Omit<NonNullable<Parameters<PDFPage['drawText']>[1]>, 'font'> & { font: PDFFont };
+type TextOptions = { font: PDFFont; size: number; x: number; y: number; color?: Color; rotate?: Rotation };
 const pageFontNames = new WeakMap<PDFPage, Map<PDFFont, PDFName>>();
+const BLACK = rgb(0, 0, 0);
 
 /**
- * Draw text in a font. pdf-lib's drawText({ font }) adds the font to the page's resources under
- * a new name on every call, and once more to restore the font before it, checking each new name
- * against all the names already there: a page with a few hundred table cells spends longer
- * naming fonts than drawing, and carries hundreds of resource entries. Here each font is added
- * to a page once, and made current by its name before drawText is called without `font`.
- * (pdf-lib keeps the current font in the page's private `font` and `fontKey`; pdf-lib is pinned.)
+ * Draw one line of text in a font, at (x, y). pdf-lib's drawText({ font }) adds the font to the
+ * page's resources under a new name on every call, and once more to restore the font before it,
+ * checking each new name against all the names already there: a page with a few hundred table
+ * cells spends longer naming fonts than drawing, and carries hundreds of resource entries. Here
+ * each font is added to a page once and then used by its name, and a line is written as the few
+ * operators it needs (colour, font, position, text) rather than through drawText's general path
+ * (line breaking, rotation and skew matrices). Rotated text still goes through drawText. (pdf-lib
+ * keeps the current font in the page's private `font` and `fontKey`; pdf-lib is pinned.)
  */
-export function drawTextIn(page: PDFPage, text: string, { font, ...options }: TextOptions): void {
+export function drawTextIn(page: PDFPage, text: string, { font, size, x, y, color = BLACK, rotate }: TextOptions): void {
   const current = page as unknown as { font?: PDFFont; fontKey?: PDFName };
-  if (current.font !== font) {
-    let names = pageFontNames.get(page);
-    if (!names) pageFontNames.set(page, (names = new Map()));
-    const name = names.get(font);
-    if (name) {
-      current.font = font;
-      current.fontKey = name;
-    } else {
-      page.setFont(font);
-      names.set(font, current.fontKey!);
-    }
+  let names = pageFontNames.get(page);
+  if (!names) pageFontNames.set(page, (names = new Map()));
+  let name = names.get(font);
+  if (!name) {
+    page.setFont(font);
+    names.set(font, (name = current.fontKey!));
   }
-  page.drawText(text, options);
+  // What drawText does to a line before it draws it: tabs and line separators become spaces.
+  const line = text.replace(/\t|\u0085|\u2028|\u2029/g, '    ').replace(/[\b\v\r\n]/g, '');
+  if (rotate) {
+    current.font = font;
+    current.fontKey = name;
+    page.drawText(line, { x, y, size, color, rotate });
+    return;
+  }
+  page.pushOperators(
+    pushGraphicsState(),
+    beginText(),
+    setFillingColor(color),
+    setFontAndSize(name, size),
+    moveText(x, y),
+    showText(font.encodeText(line)),
+    endText(),
+    popGraphicsState(),
+  );
 }
