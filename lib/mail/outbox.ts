@@ -224,6 +224,8 @@ async function deliverDue(logger: Logger, options: { limit?: number; now?: () =>
   const ready: { row: OutboxRow; doc: Attached | undefined }[] = [];
   let next = 0;
   let refilling: Promise<void> | null = null;
+  // A claim that fails ends the claiming; what is claimed already is still sent, then the error is thrown.
+  let claimFailed = null as { error: unknown } | null;
   const refill = async () => {
     const rows = await claim(due.slice(next, (next += slice)), now());
     const docIds = rows.map((r) => r.feedbackDocumentId).filter((id): id is number => id !== null);
@@ -234,7 +236,10 @@ async function deliverDue(logger: Logger, options: { limit?: number; now?: () =>
   };
   const take = async () => {
     for (;;) {
-      if (ready.length <= lanes && next < due.length) refilling ??= refill().finally(() => (refilling = null));
+      if (ready.length <= lanes && next < due.length && !claimFailed)
+        refilling ??= refill()
+          .catch((error) => void (claimFailed = { error }))
+          .finally(() => (refilling = null));
       if (ready.length) return ready.shift();
       if (!refilling) return undefined;
       await refilling;
@@ -246,6 +251,7 @@ async function deliverDue(logger: Logger, options: { limit?: number; now?: () =>
     }),
   );
   await recorder.settled();
+  if (claimFailed) throw claimFailed.error;
   const remaining = await EmailOutbox.count({ where: { status: ['queued', 'sending'] } });
   if (due.length) logger.info({ due: due.length, sent, failed, remaining }, 'outbox run');
   return { sent, failed, remaining };

@@ -48,7 +48,7 @@ const REPERTOIRE: [number, number][] = [
   [0x300, 0x30f], // combining marks (the tilde of ν̃, accents)
   [0x391, 0x3c9], // Greek letters
   [0x2010, 0x2044], // dashes, quotes, bullets, …, ‰, ′, ⁄
-  [0x2070, 0x208e], // superscripts and subscripts
+  [0x2070, 0x209c], // superscripts and subscripts, digits and letters (the ₑ of Bₑ, rₑ, ωₑ)
   [0x2103, 0x2103],
   [0x2113, 0x2113],
   [0x212b, 0x212b], // ℃ ℓ Å
