@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { sendMail } from '@/lib/mail/transport';
-import { deliverOutbox, outboxMessageId, queueEmail } from '@/lib/mail/outbox';
+import { deliverOutbox, deliverSoon, outboxMessageId, queueEmail, queueEmails } from '@/lib/mail/outbox';
 import { renderEmail } from '@/lib/templates';
 import { models } from '@/models';
 import { mailTo, waitForMail } from '../helpers/maildev';
@@ -64,5 +64,39 @@ describe('mail module', () => {
     const later = await deliverOutbox({ now: () => new Date(Date.now() + 60 * 60_000) });
     expect(later.sent).toBeGreaterThanOrEqual(1);
     expect(await waitForMail(to)).toHaveLength(1);
+  });
+
+  it('queues a group of messages in one go, leaving out a dedupe key already queued or repeated in the group', async () => {
+    const to = `group-${Date.now()}@test.example`;
+    await queueEmail({ dedupeKey: `group:${to}:1`, to, subject: 'First', text: 'x' });
+    await queueEmails([
+      { dedupeKey: `group:${to}:1`, to, subject: 'First again', text: 'x' },
+      { dedupeKey: `group:${to}:2`, to, subject: 'Second', text: 'x' },
+      { dedupeKey: `group:${to}:2`, to, subject: 'Second again', text: 'x' },
+      { dedupeKey: `group:${to}:3`, to, subject: 'Third\r\nBcc: someone@else.example', text: 'x' },
+    ]);
+    const rows = await models().EmailOutbox.findAll({ where: { toAddress: to }, order: [['dedupeKey', 'ASC']] });
+    expect(rows.map((r) => [r.dedupeKey.split(':').pop(), r.subject])).toEqual([
+      ['1', 'First'],
+      ['2', 'Second'],
+      ['3', 'Third Bcc: someone@else.example'],
+    ]);
+    expect(rows.every((r) => r.status === 'queued' && r.attempts === 0)).toBe(true);
+  });
+
+  it('deliverSoon: runs asked for while one is under way become one more run, which sends what was queued meanwhile, each once', async () => {
+    const to = `soon-${Date.now()}@test.example`;
+    await queueEmails([1, 2, 3].map((n) => ({ dedupeKey: `soon:${to}:${n}`, to, subject: `Soon ${n}`, text: 'x' })));
+    const first = deliverSoon();
+    // Asked again at once, and again after more mail is queued, while the first run is sending.
+    const again = [deliverSoon(), deliverSoon()];
+    await queueEmails([4, 5].map((n) => ({ dedupeKey: `soon:${to}:${n}`, to, subject: `Soon ${n}`, text: 'x' })));
+    again.push(deliverSoon());
+    await Promise.all([first, ...again]);
+    const rows = await models().EmailOutbox.findAll({ where: { toAddress: to } });
+    expect(rows.map((r) => r.status)).toEqual(['sent', 'sent', 'sent', 'sent', 'sent']);
+    expect(rows.every((r) => r.attempts === 1 && r.messageId === outboxMessageId(r))).toBe(true);
+    const mails = await waitForMail(to, 5);
+    expect(mails.map((m) => m.subject).sort()).toEqual(['Soon 1', 'Soon 2', 'Soon 3', 'Soon 4', 'Soon 5']);
   });
 });

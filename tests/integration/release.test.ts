@@ -14,6 +14,7 @@ import { POST as releasePOST } from '@/app/api/release/route';
 import { POST as resendPOST } from '@/app/api/marking/[submissionId]/resend/route';
 import { acceptProposal, saveMarks } from '@/lib/marking/marks';
 import { createCheckedSubmission, createFixturePractical } from '@/lib/marking/test-fixtures';
+import { releaseMany } from '@/lib/marking/release';
 
 const SMTP = 1425;
 const WEB = 1480;
@@ -191,4 +192,49 @@ describe('release', () => {
         await new Promise((r) => setTimeout(r, 200));
     },
   );
+
+  it('a batch commits in groups and says so after each (where the route starts sending); a submission not marked, or gone, is refused without stopping the rest', async () => {
+    const { User, CourseMembership, EmailOutbox } = models();
+    const practical = await createFixturePractical(w.course.id, [w.cohort.id]);
+    const batch: number[] = [];
+    for (let i = 0; i < 7; i++) {
+      const s = await User.create({
+        email: `group.${i}@test.example`,
+        name: `Group Student ${i}`,
+        passwordHash: null,
+        isAdmin: false,
+        studentNumber: `G${i}`,
+      });
+      await CourseMembership.create({ userId: s.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
+      const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: s.id });
+      if (i !== 3) {
+        const r = await acceptProposal(w.people.ta.id, sub.id, sub.version);
+        await saveMarks(w.people.ta.id, sub.id, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 1 }] });
+      }
+      batch.push(sub.id);
+    }
+    const gone = Math.max(...batch) + 1000;
+    // What each group's commit has queued by the time it is announced.
+    const queuedAtEachCommit: Promise<number>[] = [];
+    const outcomes = await releaseMany(w.people.ta.id, [...batch, gone], {
+      afterCommit: () => queuedAtEachCommit.push(EmailOutbox.count({ where: { submissionId: batch } })),
+    });
+    expect(outcomes.map((o) => o.submissionId)).toEqual([...batch, gone]);
+    expect(outcomes.map((o) => o.ok)).toEqual([true, true, true, false, true, true, true, false]);
+    expect(outcomes[3].message).toMatch(/Only marked submissions can be released/);
+    expect(outcomes[7].message).toBe('Not found.');
+    const counts = await Promise.all(queuedAtEachCommit);
+    expect(counts.length).toBeGreaterThanOrEqual(1);
+    expect(counts).toEqual([...counts].sort((a, b) => a - b));
+    expect(counts[counts.length - 1]).toBe(6);
+    const rows = await EmailOutbox.findAll({ where: { submissionId: batch } });
+    expect(rows.map((r) => r.dedupeKey).sort()).toEqual(
+      batch
+        .filter((_, i) => i !== 3)
+        .map((id) => `release:${id}:1`)
+        .sort(),
+    );
+    const { stopPdfWorkers } = await import('@/lib/pdf/pool');
+    await stopPdfWorkers();
+  });
 });
