@@ -5,6 +5,7 @@
  * scroll inside their own labelled box; the page itself may not. Ids are found by following links.
  */
 import { expect, test, type Page, type TestInfo } from '@playwright/test';
+import { markInBrowser } from './mark-in-browser';
 
 const PASSWORD = 'northmere-demo-26';
 
@@ -70,24 +71,29 @@ test('TA pages fit a phone', async ({ page }, info) => {
   await expect(page.getByTestId('fit-plot').first()).toBeVisible();
   // A released submission's screen has the table of its e-mails too (released by the marking
   // test before this one; released here when this file runs on its own).
-  const released = await page.evaluate(async () => {
-    const send = (url: string, method: string, body: unknown) =>
-      fetch(url, { method, headers: { 'Content-Type': 'application/json' }, body: JSON.stringify(body) });
+  const queued = await page.evaluate(async () => {
     const sent = await (await fetch('/api/marking/queue?status=released&pageSize=50')).json();
     const withMail = sent.rows.find((r: { delivery: string | null }) => r.delivery !== null);
-    if (withMail) return withMail.id as number;
+    if (withMail) return { id: withMail.id as number, released: true };
     const queue = await (await fetch('/api/marking/queue?status=submitted&sort=submittedAt&dir=asc&pageSize=1')).json();
-    const id = queue.rows[0].id as number;
-    let view = await (await fetch(`/api/marking/${id}`)).json();
-    await send(`/api/marking/${id}/accept`, 'POST', { version: view.submission.version });
-    view = await (await fetch(`/api/marking/${id}`)).json();
-    const open = view.marks
-      .filter((m: { awarded: number | null }) => m.awarded === null)
-      .map((m: { itemKey: string; maxMarks: number }) => ({ itemKey: m.itemKey, awarded: Math.min(1, m.maxMarks) }));
-    await send(`/api/marking/${id}`, 'PUT', { version: view.submission.version, items: open });
-    await send('/api/release', 'POST', { submissionIds: [id] });
-    return id;
+    return { id: queue.rows[0].id as number, released: false };
   });
+  if (!queued.released) {
+    expect(await markInBrowser(page, queued.id)).toBe('marked');
+    const status = await page.evaluate(
+      async (id) =>
+        (
+          await fetch('/api/release', {
+            method: 'POST',
+            headers: { 'Content-Type': 'application/json' },
+            body: JSON.stringify({ submissionIds: [id] }),
+          })
+        ).status,
+      queued.id,
+    );
+    expect(status).toBe(200);
+  }
+  const released = queued.id;
   await fits(page, info, `/marking/${released}`, 'marking-screen-released', problems);
   await expect(page.getByRole('region', { name: 'E-mails about this submission' })).toBeVisible();
   await fits(page, info, '/statistics', 'ta-statistics', problems);

@@ -4,6 +4,7 @@
  */
 import { expect, test } from '@playwright/test';
 import fs from 'node:fs';
+import { markInBrowser } from './mark-in-browser';
 
 test('course lead sees cohort statistics and downloads the marks CSV', async ({ page }) => {
   await page.goto('/signin');
@@ -83,27 +84,18 @@ test('a mark and a release through the server move the kept counts at once', asy
   // ta2 marks Group B: the oldest submitted attempt (a seeded one), accepted and completed, then released.
   const ta = await as('ta2@northmere.example');
   await ta.goto('/marking');
-  const outcome = await ta.evaluate(
-    async ({ practicalId, cohortId }) => {
-      const send = (url: string, method: string, body: unknown) =>
-        fetch(url, { method, headers: { 'Content-Type': 'application/json' }, body: JSON.stringify(body) });
-      const queue = await (
-        await fetch(
-          `/api/marking/queue?practicalId=${practicalId}&cohortId=${cohortId}&status=submitted&sort=submittedAt&dir=asc&pageSize=1`,
-        )
-      ).json();
-      const id = queue.rows[0].id as number;
-      let view = await (await fetch(`/api/marking/${id}`)).json();
-      await send(`/api/marking/${id}/accept`, 'POST', { version: view.submission.version });
-      view = await (await fetch(`/api/marking/${id}`)).json();
-      const open = view.marks
-        .filter((m: { awarded: number | null }) => m.awarded === null)
-        .map((m: { itemKey: string; maxMarks: number }) => ({ itemKey: m.itemKey, awarded: Math.min(1, m.maxMarks) }));
-      const saved = await (await send(`/api/marking/${id}`, 'PUT', { version: view.submission.version, items: open })).json();
-      return { id, status: saved.status as string };
-    },
+  const id = await ta.evaluate(
+    async ({ practicalId, cohortId }) =>
+      (
+        await (
+          await fetch(
+            `/api/marking/queue?practicalId=${practicalId}&cohortId=${cohortId}&status=submitted&sort=submittedAt&dir=asc&pageSize=1`,
+          )
+        ).json()
+      ).rows[0].id as number,
     { practicalId, cohortId },
   );
+  const outcome = { id, status: await markInBrowser(ta, id) };
   expect(outcome.status).toBe('marked');
   const marked = await counts();
   expect(marked.marked).toBe(before.marked + 1);

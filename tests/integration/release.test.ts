@@ -35,25 +35,42 @@ async function waitFor(url: string, ms = 15000) {
   }
 }
 
+/**
+ * A student of the world's cohort with a checked submission to `practicalId`, marked by the TA
+ * (the proposal accepted and the discussion awarded `awarded`) unless `awarded` is null.
+ */
+async function studentWithSubmission(
+  practicalId: number,
+  tag: string,
+  i: number,
+  { slip = false, awarded = 1 as number | null } = {},
+): Promise<{ id: number; name: string; email: string; submissionId: number }> {
+  const { User, CourseMembership } = models();
+  const name = `${tag[0].toUpperCase()}${tag.slice(1)} Student ${i}`;
+  const s = await User.create({
+    email: `${tag}.${i}@test.example`,
+    name,
+    passwordHash: null,
+    isAdmin: false,
+    studentNumber: `${tag[0].toUpperCase()}${i}`,
+  });
+  await CourseMembership.create({ userId: s.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
+  const sub = await createCheckedSubmission({ practicalId, cohortId: w.cohort.id, studentId: s.id, slip });
+  if (awarded !== null) {
+    const r = await acceptProposal(w.people.ta.id, sub.id, sub.version);
+    await saveMarks(w.people.ta.id, sub.id, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded }] });
+  }
+  return { id: s.id, name, email: s.email, submissionId: sub.id };
+}
+
 beforeAll(async () => {
   process.env.MAILDEV_API = `http://127.0.0.1:${WEB}`;
   w = await buildWorld();
   const practical = await createFixturePractical(w.course.id, [w.cohort.id]);
-  const { User, CourseMembership } = models();
   for (let i = 0; i < 4; i++) {
-    const s = await User.create({
-      email: `release.${i}@test.example`,
-      name: `Release Student ${i}`,
-      passwordHash: null,
-      isAdmin: false,
-      studentNumber: `R${i}`,
-    });
-    await CourseMembership.create({ userId: s.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
+    const s = await studentWithSubmission(practical.id, 'release', i, { slip: i % 2 === 0 });
     students.push({ id: s.id, email: s.email });
-    const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: s.id, slip: i % 2 === 0 });
-    const r = await acceptProposal(w.people.ta.id, sub.id, sub.version);
-    await saveMarks(w.people.ta.id, sub.id, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 1 }] });
-    ids.push(sub.id);
+    ids.push(s.submissionId);
   }
 });
 
@@ -139,23 +156,13 @@ describe('release', () => {
     'a batch reports progress line by line (NDJSON) while its PDFs render on worker threads; every PDF is whole and names its student',
     { timeout: 120_000 },
     async () => {
-      const { User, CourseMembership, FeedbackDocument } = models();
+      const { FeedbackDocument } = models();
       const practical = await createFixturePractical(w.course.id, [w.cohort.id]);
       const batch: number[] = [];
       const names: string[] = [];
       for (let i = 0; i < 5; i++) {
-        const s = await User.create({
-          email: `progress.${i}@test.example`,
-          name: `Progress Student ${i}`,
-          passwordHash: null,
-          isAdmin: false,
-          studentNumber: `P${i}`,
-        });
-        await CourseMembership.create({ userId: s.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
-        const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: s.id, slip: i === 0 });
-        const r = await acceptProposal(w.people.ta.id, sub.id, sub.version);
-        await saveMarks(w.people.ta.id, sub.id, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 2 }] });
-        batch.push(sub.id);
+        const s = await studentWithSubmission(practical.id, 'progress', i, { slip: i === 0, awarded: 2 });
+        batch.push(s.submissionId);
         names.push(s.name);
       }
       const res = await releasePOST(
@@ -194,25 +201,12 @@ describe('release', () => {
   );
 
   it('a batch commits in groups and says so after each (where the route starts sending); a submission not marked, or gone, is refused without stopping the rest', async () => {
-    const { User, CourseMembership, EmailOutbox } = models();
+    const { EmailOutbox } = models();
     const practical = await createFixturePractical(w.course.id, [w.cohort.id]);
     const batch: number[] = [];
-    for (let i = 0; i < 7; i++) {
-      const s = await User.create({
-        email: `group.${i}@test.example`,
-        name: `Group Student ${i}`,
-        passwordHash: null,
-        isAdmin: false,
-        studentNumber: `G${i}`,
-      });
-      await CourseMembership.create({ userId: s.id, courseId: w.course.id, role: 'student', cohortId: w.cohort.id });
-      const sub = await createCheckedSubmission({ practicalId: practical.id, cohortId: w.cohort.id, studentId: s.id });
-      if (i !== 3) {
-        const r = await acceptProposal(w.people.ta.id, sub.id, sub.version);
-        await saveMarks(w.people.ta.id, sub.id, { version: r.version, items: [{ itemKey: 'rubric:discussion', awarded: 1 }] });
-      }
-      batch.push(sub.id);
-    }
+    // The fourth is checked but not marked.
+    for (let i = 0; i < 7; i++)
+      batch.push((await studentWithSubmission(practical.id, 'group', i, { awarded: i === 3 ? null : 1 })).submissionId);
     const gone = Math.max(...batch) + 1000;
     // What each group's commit has queued by the time it is announced.
     const queuedAtEachCommit: Promise<number>[] = [];
