@@ -4,7 +4,7 @@
  * colour: bars are hatched (the open outer buckets plainer), every bar carries its count, and the
  * figure's accessible name lists the counts.
  */
-import { HISTOGRAM_EDGES_PERCENT } from '@/lib/statistics/definitions';
+import { HISTOGRAM_EDGES_PERCENT, bucketLabel } from '@/lib/statistics/definitions';
 import type { QuantityStat } from '@/lib/statistics/queries';
 import { quantityLabel } from '@/lib/statistics/scale';
 
@@ -19,7 +19,7 @@ export function Histogram({ stat }: { stat: QuantityStat }) {
   const name = `${quantityLabel(stat.key, stat.species)}, ${stat.basis}`;
   const alt = bins
     .filter((b) => b.count > 0)
-    .map((b) => `${b.label}: ${b.count}`)
+    .map((b) => `${bucketLabel(b.bucket)}: ${b.count}`)
     .join('; ');
   const n = bins.length;
   return (

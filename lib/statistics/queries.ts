@@ -16,7 +16,7 @@
  */
 import { QueryTypes } from 'sequelize';
 import { sequelize } from '@/lib/db';
-import { HISTOGRAM_EDGES_PERCENT, MIN_GROUP, bucketLabel } from './definitions';
+import { HISTOGRAM_EDGES_PERCENT, MIN_GROUP } from './definitions';
 import { add, meanAndVariance, negate, parse, toNumber, ZERO, type Exact } from './exact';
 import { coarseOfFine, parseHistogram, type FineHistogram } from './bins';
 import { ensureKeptStatistics } from './keep';
@@ -205,7 +205,8 @@ export interface QuantityStat {
   mean?: number | null;
   sd?: number | null;
   box?: BoxPlot | null;
-  histogram?: { bucket: number; label: string; count: number }[];
+  /** Counts per bucket of relative deviation (HISTOGRAM_EDGES_PERCENT; bucketLabel names a bucket). */
+  histogram?: { bucket: number; count: number }[];
 }
 
 interface QuantitySum {
@@ -393,7 +394,7 @@ export async function quantityStatistics(scope: Scope, groupBy: GroupBy = 'none'
         : null;
     const buckets = new Array<number>(HISTOGRAM_EDGES_PERCENT.length + 1).fill(0);
     for (const [bin, count] of s.bins) buckets[coarseOfFine[bin]] += count;
-    stat.histogram = buckets.map((count, b) => ({ bucket: b, label: bucketLabel(b), count }));
+    stat.histogram = buckets.map((count, b) => ({ bucket: b, count }));
     return stat;
   });
 }

@@ -10,7 +10,7 @@
  */
 import { QueryTypes } from 'sequelize';
 import { sequelize } from '@/lib/db';
-import { HISTOGRAM_EDGES_PERCENT, MIN_GROUP, bucketLabel } from './definitions';
+import { HISTOGRAM_EDGES_PERCENT, MIN_GROUP } from './definitions';
 
 import type { Basis, Counts, GroupBy, MarkSummary, MarkerRow, QuantityStat, Scope, SlipStat } from './queries';
 
@@ -170,7 +170,6 @@ export async function quantityStatistics(scope: Scope, groupBy: GroupBy = 'none'
     const ge = (i: number) => (i < 0 ? stat.checked! : i >= HISTOGRAM_EDGES_PERCENT.length ? 0 : num(r[`ge${i}`]));
     stat.histogram = Array.from({ length: HISTOGRAM_EDGES_PERCENT.length + 1 }, (_, b) => ({
       bucket: b,
-      label: bucketLabel(b),
       count: ge(b - 1) - ge(b),
     }));
     return stat;
