@@ -6,6 +6,7 @@
 import { checkSubmission, marksFor, simulateLineList, QUANTITIES, type QuantityKey, type Num } from '@/lib/grading';
 import { models } from '@/models';
 import { worstVerdict } from './verdict';
+import { NOT_YET_CHECKED_OR_MARKED } from '@/lib/submissions/service';
 
 export const FIXTURE_SPECIES = 'H35Cl';
 
@@ -77,17 +78,10 @@ export async function createCheckedSubmission(opts: {
     latePenalty: opts.latePenalty ?? 0,
     daysLate: opts.latePenalty ? 1 : 0,
     flagLate: !!opts.latePenalty,
+    ...NOT_YET_CHECKED_OR_MARKED,
     checkSummary: JSON.parse(JSON.stringify(result)),
-    lineListHash: null,
     flagOutside: outside,
     flagSlip: slips.length > 0,
-    proposedTotal: null,
-    awardedTotal: null,
-    maxTotal: null,
-    markedById: null,
-    markedAt: null,
-    releasedAt: null,
-    resubmissionMessage: null,
   });
   const sid = submission.id;
   await LineAssignment.bulkCreate(

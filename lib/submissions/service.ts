@@ -41,6 +41,19 @@ export function latePenaltyFor(practical: Pick<Practical, 'lateRule' | 'latePena
   return Math.min(practical.latePenaltyCap, practical.latePenaltyPerDay * days);
 }
 
+/** A submission's columns before anything has checked, marked or released it (a draft, or an attempt just submitted). */
+export const NOT_YET_CHECKED_OR_MARKED = {
+  checkSummary: null,
+  lineListHash: null,
+  proposedTotal: null,
+  awardedTotal: null,
+  maxTotal: null,
+  markedById: null,
+  markedAt: null,
+  releasedAt: null,
+  resubmissionMessage: null,
+} as const;
+
 /**
  * The row of a freshly submitted attempt: counted (the student's marked attempt), unchecked and
  * unmarked, its late penalty from the practical's rule. The submit path and the demo seed write it.
@@ -66,15 +79,7 @@ export function submittedAttemptRow(a: {
     latePenalty: latePenaltyFor(a.practical, a.daysLate),
     flagLate: a.daysLate > 0,
     isMarkedAttempt: true,
-    checkSummary: null,
-    lineListHash: null,
-    proposedTotal: null,
-    awardedTotal: null,
-    maxTotal: null,
-    markedById: null,
-    markedAt: null,
-    releasedAt: null,
-    resubmissionMessage: null,
+    ...NOT_YET_CHECKED_OR_MARKED,
     version: 0,
   };
 }
@@ -159,15 +164,7 @@ export async function saveDraft(
       draft,
       submittedAt: null,
       isMarkedAttempt: false,
-      checkSummary: null,
-      lineListHash: null,
-      proposedTotal: null,
-      awardedTotal: null,
-      maxTotal: null,
-      markedById: null,
-      markedAt: null,
-      releasedAt: null,
-      resubmissionMessage: null,
+      ...NOT_YET_CHECKED_OR_MARKED,
       version: 1,
     });
     return { id: row.id, version: row.version, updatedAt: row.updatedAt };
