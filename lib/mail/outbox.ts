@@ -312,6 +312,11 @@ export function deliverSoon(): Promise<void> {
   return running;
 }
 
+/** Settles when the runs deliverSoon started in this copy of the module are done (the tests wait for it before their database goes). */
+export function deliverySettled(): Promise<void> {
+  return running ?? Promise.resolve();
+}
+
 let timer: NodeJS.Timeout | null = null;
 
 /** Run the worker in this process every few seconds (started by instrumentation.ts). */

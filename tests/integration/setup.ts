@@ -39,8 +39,13 @@ execFileSync(process.execPath, [path.resolve('node_modules/sequelize-cli/lib/seq
 });
 
 afterAll(async () => {
+  // An outbox run a route started in the background (deliverSoon) finishes before the database goes.
+  const { deliverySettled } = await import('@/lib/mail/outbox');
+  await deliverySettled();
   const { closeDatabase } = await import('@/lib/db');
   await closeDatabase();
   fs.rmSync(dir, { recursive: true, force: true });
-  if (pgAdmin) psql(`DROP DATABASE IF EXISTS ${pgName}`);
+  // FORCE: a server process whose client has just disconnected may not have ended yet, and a plain
+  // DROP then fails with "being accessed by other users" (the database is this file's own).
+  if (pgAdmin) psql(`DROP DATABASE IF EXISTS ${pgName} WITH (FORCE)`);
 });
